@@ -1,0 +1,41 @@
+// Error types. Only main() catches them and maps them to exit codes:
+// InputError -> 2, SolverError -> 3.
+#pragma once
+
+#include <stdexcept>
+#include <string>
+
+namespace rxtrain {
+
+// A place in an input file. Line and column are 1-based; 0 means unknown.
+struct SourceLocation {
+  std::string file;
+  int line = 0;
+  int column = 0;
+};
+
+// A problem the user can fix in the case file. what() reads
+// "FILE:LINE:COL: error: message" (parts that are unknown are left out).
+class InputError : public std::runtime_error {
+ public:
+  InputError(SourceLocation where, const std::string& message);
+  const SourceLocation& where() const { return where_; }
+  const std::string& message() const { return message_; }
+
+ private:
+  SourceLocation where_;
+  std::string message_;
+};
+
+// A numerical failure, naming the stage and position, e.g.
+// "R1 at V = 1.84 m3: CVODE failed: ...".
+class SolverError : public std::runtime_error {
+ public:
+  using std::runtime_error::runtime_error;
+};
+
+// Formats "FILE:LINE:COL: error: message" the way every diagnostic does.
+std::string format_diagnostic(const SourceLocation& where, const std::string& severity,
+                              const std::string& message);
+
+}  // namespace rxtrain

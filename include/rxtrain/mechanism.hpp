@@ -1,0 +1,80 @@
+// Species + reactions + phase: evaluates rates, heats of reaction and
+// equilibrium constants, with analytic derivatives for the solvers.
+// Immutable after construction; safe to share between threads.
+#pragma once
+
+#include <Eigen/Dense>
+#include <vector>
+
+#include "rxtrain/kinetics.hpp"
+#include "rxtrain/species.hpp"
+
+namespace rxtrain {
+
+enum class Phase { Gas, Liquid };
+
+class Mechanism {
+ public:
+  Mechanism() = default;
+  // Preconditions (checked by the case loader): nu and orders sized to the
+  // species; liquid phase has density and mw for every species.
+  Mechanism(Phase phase, std::vector<Species> species, std::vector<Reaction> reactions);
+
+  Phase phase() const { return phase_; }
+  const std::vector<Species>& species() const { return species_; }
+  const std::vector<Reaction>& reactions() const { return reactions_; }
+  int n_species() const { return static_cast<int>(species_.size()); }
+  int n_reactions() const { return static_cast<int>(reactions_.size()); }
+  int index_of(const std::string& id) const;  // -1 when unknown
+
+  // Volumetric flow (m3/s) of flows F (mol/s) at T (K), P (Pa):
+  // gas F_t R T / P; liquid sum F_i MW_i / rho_i (ideal mixing).
+  double volumetric_flow(double T, double P, const double* F) const;
+  // sum_i F_i cp_i(T), W/K.
+  double heat_capacity_flow(double T, const double* F) const;
+  // sum_i F_i h_sensible_i(T), W (reference 298.15 K).
+  double sensible_enthalpy_flow(double T, const double* F) const;
+  // Mass flow, kg/s; requires every mw.
+  double mass_flow(const double* F) const;
+
+  double dH(int j, double T) const;        // J/mol
+  double dCp(int j, double T) const;       // d(dH)/dT, J/(mol K)
+  double ln_K(int j, double T) const;      // activity basis
+  double dln_K_dT(int j, double T) const;
+  double rate_constant(int j, double T) const;
+
+  // Rates r_j in each reaction's own basis (see kinetics.hpp).
+  void rates(double T, double P, const double* F, double* r) const;
+  // Rates and their derivatives: dr_dF is n_reactions x n_species.
+  void rates_and_jacobian(double T, double P, const double* F, double* r,
+                          Eigen::Ref<Eigen::MatrixXd> dr_dF,
+                          Eigen::Ref<Eigen::VectorXd> dr_dT) const;
+
+ private:
+  struct Participant {
+    int i;
+    double forward_exp;  // o_i
+    double reverse_exp;  // o_i + nu_i
+  };
+  struct Compiled {
+    std::vector<Participant> parts;
+    double dnu = 0;      // sum of nu (for the activity scale)
+  };
+  // Driving forces d_i = max(F_i, 0) * phi; returns phi and its derivatives.
+  struct Scale {
+    double phi = 0;      // d_i = max(F_i, 0) * phi
+    double dphi_dT = 0;
+    double dphi_dFt = 0; // gas: d phi / d F_k for every k
+    double dphi_dv = 0;  // liquid: d phi / d v, with dv/dF_k = MW_k/rho_k
+  };
+  Scale driving_scale(Driving driving, double T, double P, const double* F) const;
+  // log of activity scale s (a_i = s * d_i) and its T derivative.
+  void activity_scale(const Reaction& rx, double T, double& ln_s, double& dln_s_dT) const;
+
+  Phase phase_ = Phase::Gas;
+  std::vector<Species> species_;
+  std::vector<Reaction> reactions_;
+  std::vector<Compiled> compiled_;
+};
+
+}  // namespace rxtrain

@@ -1,0 +1,16 @@
+// Spreadsheet output, SI units (unit in every column header).
+//   stages.csv:   one row per stage (empty cell where a field does not apply)
+//   profiles.csv: every stage's internal profile: stage, position, T, P,
+//                 conversion, each molar flow
+#pragma once
+
+#include <string>
+
+#include "rxtrain/train.hpp"
+
+namespace rxtrain {
+
+std::string stages_csv(const TrainResult& result);
+std::string profiles_csv(const TrainResult& result);
+
+}  // namespace rxtrain

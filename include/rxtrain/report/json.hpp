@@ -1,0 +1,25 @@
+// The whole result of a train run as JSON, SI units only. Layout:
+//   {"title", "species": [ids], "key", "feed": STREAM, "conversion",
+//    "stages": [{"id", "type", "heat", "sized", "volume", "catalyst_mass",
+//                "bulk_density", "space_time", "space_velocity", "ghsv", "whsv",
+//                "lhsv", "duty", "T_max", "T_min", "conversion", "inlet": STREAM,
+//                "outlet": STREAM, "steady_states": [...], "profile": {...},
+//                "solver": {...}, "warnings": [...]}],
+//    "outlet": STREAM, "warnings": [...], "caution"}
+// STREAM = {"T", "P", "flows": {id: mol/s}}. Fields that do not apply are
+// null. GHSV, WHSV and LHSV are in 1/h as the trade quotes them; every
+// other value is SI.
+#pragma once
+
+#include <nlohmann/json.hpp>
+
+#include "rxtrain/train.hpp"
+
+namespace rxtrain {
+
+nlohmann::json to_json(const TrainResult& result);
+
+// Text form written by --json (two-space indent, trailing newline).
+std::string json_text(const TrainResult& result);
+
+}  // namespace rxtrain

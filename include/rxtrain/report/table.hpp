@@ -1,0 +1,13 @@
+// The compact terminal summary of a train run: the numbers an engineer reads
+// first, in display units (°C, kPa/bar, m3, kg, kW) named in the headers.
+#pragma once
+
+#include <string>
+
+#include "rxtrain/train.hpp"
+
+namespace rxtrain {
+
+std::string format_stage_table(const TrainResult& result);
+
+}  // namespace rxtrain

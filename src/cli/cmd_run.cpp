@@ -1,0 +1,60 @@
+// rxtrain run CASE [--json PATH] [--csv DIR]
+#include <cstdio>
+#include <memory>
+#include <string>
+
+#include "commands.hpp"
+#include "rxtrain/case.hpp"
+#include "rxtrain/report/atomic_file.hpp"
+#include "rxtrain/report/csv.hpp"
+#include "rxtrain/report/json.hpp"
+#include "rxtrain/report/table.hpp"
+#include "rxtrain/train.hpp"
+#include "rxtrain/units.hpp"
+
+namespace rxtrain::cli {
+
+namespace {
+
+struct RunOptions {
+  std::string case_file;
+  std::string json_path;
+  std::string csv_dir;
+  double rtol = CvodeOptions{}.rtol;
+};
+
+int run(const RunOptions& o) {
+  const UnitParser units;
+  const Case c = load_case(o.case_file, units);
+  TrainOptions options;
+  options.pfr.cvode.rtol = o.rtol;
+  options.cstr.pfr.cvode.rtol = o.rtol;
+  const TrainResult result = run_train(c, options);
+
+  // Every output is rendered before any is written, and all are renamed
+  // into place together: a failure leaves no half-written file behind.
+  OutputSet out;
+  if (!o.json_path.empty()) out.add(o.json_path, json_text(result));
+  if (!o.csv_dir.empty()) {
+    out.add(std::filesystem::path(o.csv_dir) / "stages.csv", stages_csv(result));
+    out.add(std::filesystem::path(o.csv_dir) / "profiles.csv", profiles_csv(result));
+  }
+  out.commit();
+  std::fputs(format_stage_table(result).c_str(), stdout);
+  return 0;
+}
+
+}  // namespace
+
+Action setup_run(CLI::App& app) {
+  auto o = std::make_shared<RunOptions>();
+  app.add_option("case", o->case_file, "Case file (YAML)")->required();
+  app.add_option("--json", o->json_path, "Write the whole result as JSON (SI units) to PATH");
+  app.add_option("--csv", o->csv_dir, "Write stages.csv and profiles.csv into folder DIR");
+  app.add_option("--rtol", o->rtol, "Relative tolerance of the ODE integrator")
+      ->check(CLI::Range(1e-14, 1e-3))
+      ->capture_default_str();
+  return [o] { return run(*o); };
+}
+
+}  // namespace rxtrain::cli

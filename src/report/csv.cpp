@@ -1,0 +1,60 @@
+#include "rxtrain/report/csv.hpp"
+
+#include <fmt/format.h>
+
+#include <cmath>
+#include <optional>
+
+namespace rxtrain {
+
+namespace {
+
+// Round-trip precision; a value that does not apply (or is not finite,
+// which a finished run never produces) is an empty cell, never "nan".
+std::string cell(double v) { return std::isfinite(v) ? fmt::format("{:.12g}", v) : ""; }
+std::string cell(const std::optional<double>& v) { return v ? cell(*v) : ""; }
+
+const char* kind_name(StageKind k) {
+  return k == StageKind::Pfr ? "pfr" : k == StageKind::Cstr ? "cstr" : "exchanger";
+}
+
+std::string flow_headers(const TrainResult& result) {
+  std::string h;
+  for (const auto& id : result.species) h += fmt::format(",F_{}_mol_per_s", id);
+  return h;
+}
+
+}  // namespace
+
+std::string stages_csv(const TrainResult& result) {
+  std::string out =
+      "stage,type,heat,sized,volume_m3,catalyst_mass_kg,space_time_s,ghsv_per_h,whsv_per_h,"
+      "lhsv_per_h,duty_W,T_in_K,T_out_K,T_max_K,T_min_K,P_Pa,conversion" +
+      flow_headers(result) + "\n";
+  for (const auto& r : result.stages) {
+    std::string heat;
+    if (r.heat) heat = *r.heat == HeatMode::Adiabatic ? "adiabatic" : "isothermal";
+    out += fmt::format("{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{}", r.id,
+                       kind_name(r.kind), heat, r.sized ? "yes" : "no", cell(r.volume),
+                       cell(r.catalyst_mass), cell(r.space_time), cell(r.ghsv), cell(r.whsv),
+                       cell(r.lhsv), cell(r.duty), cell(r.inlet.T), cell(r.outlet.T),
+                       cell(r.T_max), cell(r.T_min), cell(r.outlet.P), cell(r.conversion));
+    for (double f : r.outlet.F) out += fmt::format(",{}", cell(f));
+    out += "\n";
+  }
+  return out;
+}
+
+std::string profiles_csv(const TrainResult& result) {
+  std::string out = "stage,V_m3,T_K,P_Pa,conversion" + flow_headers(result) + "\n";
+  for (const auto& r : result.stages) {
+    for (const auto& p : r.profile) {
+      out += fmt::format("{},{},{},{},{}", r.id, cell(p.V), cell(p.T), cell(r.inlet.P), cell(p.X));
+      for (double f : p.F) out += fmt::format(",{}", cell(f));
+      out += "\n";
+    }
+  }
+  return out;
+}
+
+}  // namespace rxtrain

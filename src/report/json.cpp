@@ -1,0 +1,110 @@
+#include "rxtrain/report/json.hpp"
+
+#include <cmath>
+#include <optional>
+
+#include "rxtrain/report/caution.hpp"
+
+namespace rxtrain {
+
+namespace {
+
+using nlohmann::json;
+
+// A non-finite number never reaches the output: it becomes null.
+json number(double v) { return std::isfinite(v) ? json(v) : json(nullptr); }
+json number(const std::optional<double>& v) { return v ? number(*v) : json(nullptr); }
+
+json flows(const std::vector<std::string>& ids, const std::vector<double>& F) {
+  json o = json::object();
+  for (std::size_t i = 0; i < ids.size() && i < F.size(); ++i) o[ids[i]] = number(F[i]);
+  return o;
+}
+
+json stream(const std::vector<std::string>& ids, const Stream& s) {
+  return {{"T", number(s.T)}, {"P", number(s.P)}, {"flows", flows(ids, s.F)}};
+}
+
+const char* kind_name(StageKind k) {
+  switch (k) {
+    case StageKind::Pfr:
+      return "pfr";
+    case StageKind::Cstr:
+      return "cstr";
+    case StageKind::Exchanger:
+      return "exchanger";
+  }
+  return "?";
+}
+
+json profile(const std::vector<std::string>& ids, const StageResult& r) {
+  json V = json::array(), T = json::array(), X = json::array();
+  std::vector<json> F(ids.size(), json::array());
+  for (const auto& p : r.profile) {
+    V.push_back(number(p.V));
+    T.push_back(number(p.T));
+    X.push_back(number(p.X));
+    for (std::size_t i = 0; i < ids.size() && i < p.F.size(); ++i) F[i].push_back(number(p.F[i]));
+  }
+  json flows_by_id = json::object();
+  for (std::size_t i = 0; i < ids.size(); ++i) flows_by_id[ids[i]] = F[i];
+  return {{"V", V}, {"T", T}, {"X", X}, {"flows", flows_by_id}};
+}
+
+json stage(const std::vector<std::string>& ids, const StageResult& r) {
+  json s;
+  s["id"] = r.id;
+  s["type"] = kind_name(r.kind);
+  s["heat"] = r.heat ? json(*r.heat == HeatMode::Adiabatic ? "adiabatic" : "isothermal")
+                     : json(nullptr);
+  s["sized"] = r.sized;
+  s["volume"] = number(r.volume);
+  s["catalyst_mass"] = number(r.catalyst_mass);
+  s["bulk_density"] = number(r.bulk_density);
+  s["space_time"] = number(r.space_time);
+  s["space_velocity"] = number(r.space_velocity);
+  s["ghsv"] = number(r.ghsv);
+  s["whsv"] = number(r.whsv);
+  s["lhsv"] = number(r.lhsv);
+  s["duty"] = number(r.duty);
+  s["T_max"] = number(r.T_max);
+  s["T_min"] = number(r.T_min);
+  s["conversion"] = number(r.conversion);
+  s["inlet"] = stream(ids, r.inlet);
+  s["outlet"] = stream(ids, r.outlet);
+  json states = json::array();
+  for (const auto& ss : r.steady_states)
+    states.push_back({{"T", number(ss.T)}, {"conversion", number(ss.X)}, {"flows", flows(ids, ss.F)}});
+  s["steady_states"] = r.kind == StageKind::Cstr ? states : json(nullptr);
+  s["profile"] = profile(ids, r);
+  s["solver"] = {{"steps", r.stats.steps},
+                 {"rhs_evals", r.stats.rhs_evals},
+                 {"jac_evals", r.stats.jac_evals},
+                 {"newton_iters", r.stats.newton_iters},
+                 {"error_test_fails", r.stats.error_test_fails},
+                 {"message", r.stats.message}};
+  s["warnings"] = r.warnings;
+  return s;
+}
+
+}  // namespace
+
+nlohmann::json to_json(const TrainResult& result) {
+  json j;
+  j["title"] = result.title;
+  j["species"] = result.species;
+  j["key"] = result.key;
+  j["feed"] = stream(result.species, result.feed);
+  j["conversion"] = number(result.conversion);
+  json stages = json::array();
+  for (const auto& r : result.stages) stages.push_back(stage(result.species, r));
+  j["stages"] = stages;
+  j["outlet"] = stream(result.species, result.outlet);
+  j["warnings"] = result.warnings;
+  j["caution"] = kCaution;
+  return j;
+}
+
+std::string json_text(const TrainResult& result) { return to_json(result).dump(2) + "\n"; }
+
+}  // namespace rxtrain

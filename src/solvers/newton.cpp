@@ -1,0 +1,85 @@
+#include "rxtrain/solvers/newton.hpp"
+
+#include <algorithm>
+#include <cmath>
+
+namespace rxtrain {
+
+namespace {
+double merit(const Eigen::VectorXd& f) { return 0.5 * f.squaredNorm(); }
+bool finite(const Eigen::VectorXd& v) { return v.allFinite(); }
+}  // namespace
+
+NewtonResult solve_newton(const ResidualFunction& fn, Eigen::VectorXd& x,
+                          const Eigen::VectorXd& lower, const Eigen::VectorXd& upper,
+                          const NewtonOptions& options) {
+  const Eigen::Index n = x.size();
+  NewtonResult res;
+  Eigen::VectorXd f(n), f_trial(n), x_trial(n), dx(n);
+  Eigen::MatrixXd J(n, n);
+  fn(x, f, &J);
+  if (!finite(f) || !J.allFinite()) {
+    res.message = "residual or Jacobian not finite at the starting point";
+    return res;
+  }
+  for (int it = 0; it < options.max_iterations; ++it) {
+    res.iterations = it + 1;
+    Eigen::PartialPivLU<Eigen::MatrixXd> lu(J);
+    dx = -lu.solve(f);
+    if (!finite(dx)) {
+      res.message = "singular Jacobian";
+      res.residual_norm = f.lpNorm<Eigen::Infinity>();
+      return res;
+    }
+    // Fraction to the boundary.
+    double alpha_max = 1.0;
+    for (Eigen::Index i = 0; i < n; ++i) {
+      if (dx[i] < 0 && x[i] + dx[i] < lower[i]) {
+        alpha_max = std::min(alpha_max, options.boundary_fraction * (x[i] - lower[i]) / -dx[i]);
+      } else if (dx[i] > 0 && x[i] + dx[i] > upper[i]) {
+        alpha_max = std::min(alpha_max, options.boundary_fraction * (upper[i] - x[i]) / dx[i]);
+      }
+    }
+    const double m0 = merit(f);
+    double alpha = alpha_max;
+    bool accepted = false;
+    while (alpha >= options.min_damping) {
+      x_trial = x + alpha * dx;
+      bool ok = true;
+      try {
+        fn(x_trial, f_trial, nullptr);
+      } catch (...) {
+        ok = false;  // e.g. a property out of its domain: shorten the step
+      }
+      // Armijo with the Newton direction: d(merit) = -2 m0 per unit alpha.
+      if (ok && finite(f_trial) && merit(f_trial) <= (1.0 - 1e-4 * alpha) * m0) {
+        accepted = true;
+        break;
+      }
+      alpha *= 0.5;
+    }
+    if (!accepted) {
+      res.message = "line search failed (no decrease of the residual)";
+      res.residual_norm = f.lpNorm<Eigen::Infinity>();
+      return res;
+    }
+    x = x_trial;
+    fn(x, f, &J);
+    const double step = (alpha * dx).lpNorm<Eigen::Infinity>();
+    res.residual_norm = f.lpNorm<Eigen::Infinity>();
+    if (res.residual_norm <= options.residual_tolerance &&
+        (step <= options.step_tolerance || res.residual_norm == 0)) {
+      res.converged = true;
+      return res;
+    }
+    // Residual at machine precision: further steps cannot improve it.
+    if (res.residual_norm <= 1e-14) {
+      res.converged = true;
+      return res;
+    }
+  }
+  res.message = "no convergence in " + std::to_string(options.max_iterations) + " iterations";
+  return res;
+}
+
+}  // namespace rxtrain

@@ -1,0 +1,143 @@
+// Reporters, tested on a TrainResult built by hand (no solver).
+#include <catch2/catch.hpp>
+#include <filesystem>
+#include <fstream>
+#include <limits>
+#include <sstream>
+
+#include "rxtrain/report/atomic_file.hpp"
+#include "rxtrain/report/csv.hpp"
+#include "rxtrain/report/json.hpp"
+#include "rxtrain/report/table.hpp"
+
+using namespace rxtrain;
+
+namespace {
+
+TrainResult sample_result() {
+  TrainResult t;
+  t.title = "hand-made <result>";
+  t.species = {"A", "B"};
+  t.key = "A";
+  t.feed = Stream{400.0, 2.0e6, {1.0, 0.0}};
+  StageResult r;
+  r.id = "R1";
+  r.kind = StageKind::Pfr;
+  r.heat = HeatMode::Adiabatic;
+  r.inlet = t.feed;
+  r.outlet = Stream{430.0, 2.0e6, {0.4, 0.6}};
+  r.volume = 2.0;
+  r.space_time = 12.5;
+  r.T_max = 430.0;
+  r.T_min = 400.0;
+  r.conversion = 0.6;
+  r.profile = {{0.0, 400.0, 0.0, {1.0, 0.0}}, {2.0, 430.0, 0.6, {0.4, 0.6}}};
+  StageResult e;
+  e.id = "E1";
+  e.kind = StageKind::Exchanger;
+  e.inlet = r.outlet;
+  e.outlet = Stream{400.0, 2.0e6, {0.4, 0.6}};
+  e.duty = -1500.0;
+  e.T_max = 430.0;
+  e.T_min = 400.0;
+  e.conversion = 0.6;
+  t.stages = {r, e};
+  t.outlet = e.outlet;
+  t.conversion = 0.6;
+  return t;
+}
+
+std::string read(const std::filesystem::path& p) {
+  std::ifstream f(p);
+  std::stringstream s;
+  s << f.rdbuf();
+  return s.str();
+}
+
+}  // namespace
+
+TEST_CASE("JSON result follows the documented layout, SI units, null where not applicable",
+          "[report]") {
+  const auto j = to_json(sample_result());
+  REQUIRE(j["title"] == "hand-made <result>");
+  REQUIRE(j["species"] == nlohmann::json({"A", "B"}));
+  REQUIRE(j["key"] == "A");
+  REQUIRE(j["stages"].size() == 2);
+  const auto& r1 = j["stages"][0];
+  CHECK(r1["id"] == "R1");
+  CHECK(r1["type"] == "pfr");
+  CHECK(r1["volume"].get<double>() == 2.0);
+  CHECK(r1["catalyst_mass"].is_null());
+  CHECK(r1["space_time"].get<double>() == 12.5);
+  CHECK(r1["T_max"].get<double>() == 430.0);
+  CHECK(r1["inlet"]["flows"]["A"].get<double>() == 1.0);
+  CHECK(r1["outlet"]["P"].get<double>() == 2.0e6);
+  const auto& e1 = j["stages"][1];
+  CHECK(e1["type"] == "exchanger");
+  CHECK(e1["volume"].is_null());
+  CHECK(e1["heat"].is_null());
+  CHECK(e1["duty"].get<double>() == -1500.0);
+  CHECK(j["outlet"]["T"].get<double>() == 400.0);
+  CHECK(j["caution"].get<std::string>().find("screening") != std::string::npos);
+}
+
+TEST_CASE("a non-finite number never reaches JSON, CSV or the table", "[report]") {
+  auto t = sample_result();
+  t.stages[0].space_time = std::numeric_limits<double>::quiet_NaN();
+  t.stages[0].duty = std::numeric_limits<double>::infinity();
+  const std::string all = json_text(t) + stages_csv(t) + profiles_csv(t) + format_stage_table(t);
+  CHECK(all.find("nan") == std::string::npos);
+  CHECK(all.find("NaN") == std::string::npos);
+  CHECK(all.find("inf") == std::string::npos);
+  CHECK(to_json(t)["stages"][0]["space_time"].is_null());
+}
+
+TEST_CASE("CSV files have one header and one row per stage or profile point", "[report]") {
+  const auto t = sample_result();
+  const std::string s = stages_csv(t);
+  CHECK(s.rfind("stage,type,heat,sized,volume_m3,", 0) == 0);
+  CHECK(std::count(s.begin(), s.end(), '\n') == 3);
+  CHECK(s.find("\nR1,pfr,adiabatic,no,2,,12.5,") != std::string::npos);
+  const std::string p = profiles_csv(t);
+  CHECK(p.rfind("stage,V_m3,T_K,P_Pa,conversion,F_A_mol_per_s,F_B_mol_per_s\n", 0) == 0);
+  CHECK(std::count(p.begin(), p.end(), '\n') == 3);
+}
+
+TEST_CASE("the stage table shows display units and the caution", "[report]") {
+  const std::string s = format_stage_table(sample_result());
+  CHECK(s.find("T max °C") != std::string::npos);
+  CHECK(s.find("156.85") != std::string::npos);  // 430 K
+  CHECK(s.find("-1.50") != std::string::npos);   // duty kW
+  CHECK(s.find("0.6000") != std::string::npos);
+  CHECK(s.find("licensed engineers") != std::string::npos);
+}
+
+TEST_CASE("OutputSet writes nothing until commit and cleans up when abandoned", "[report]") {
+  const auto dir = std::filesystem::temp_directory_path() / "rxtrain_outputset_test";
+  std::filesystem::remove_all(dir);
+  std::filesystem::create_directories(dir);
+  {
+    std::ofstream(dir / "old.json") << "old";
+  }
+  {
+    OutputSet out;
+    out.add(dir / "old.json", "new");
+    out.add(dir / "sub" / "b.csv", "b");
+    CHECK(read(dir / "old.json") == "old");
+    CHECK_FALSE(std::filesystem::exists(dir / "sub" / "b.csv"));
+  }  // abandoned: the existing file stays, no temporary is left
+  CHECK(read(dir / "old.json") == "old");
+  int files = 0;
+  for (const auto& e : std::filesystem::recursive_directory_iterator(dir))
+    files += e.is_regular_file();
+  CHECK(files == 1);
+  {
+    OutputSet out;
+    out.add(dir / "old.json", "new");
+    out.add(dir / "sub" / "b.csv", "b");
+    out.commit();
+  }
+  CHECK(read(dir / "old.json") == "new");
+  CHECK(read(dir / "sub" / "b.csv") == "b");
+  std::filesystem::remove_all(dir);
+}
