@@ -20,4 +20,9 @@ InputError::InputError(SourceLocation where, const std::string& message)
       where_(std::move(where)),
       message_(message) {}
 
+InfeasibleError::InfeasibleError(SourceLocation where, const std::string& message)
+    : SolverError(format_diagnostic(where, "error", message)),
+      where_(std::move(where)),
+      message_(message) {}
+
 }  // namespace rxtrain

@@ -167,8 +167,7 @@ Mechanism::Scale Mechanism::driving_scale(Driving driving, double T, double P,
   return s;
 }
 
-void Mechanism::activity_scale(const Reaction& rx, double T, double& ln_s,
-                               double& dln_s_dT) const {
+void Mechanism::activity_scale(const Reaction& rx, double T, double& ln_s, double& dln_s_dT) const {
   dln_s_dT = 0;
   if (phase_ == Phase::Liquid) {
     ln_s = -std::log(kLiquidStandardConcentration);
@@ -188,8 +187,10 @@ void Mechanism::rates(double T, double P, const double* F, double* r) const {
   for (int j = 0; j < nr; ++j) {
     const auto& rx = reactions_[j];
     const bool pressure = rx.rate.driving == Driving::Pressure;
-    if (pressure && !have_press) press = driving_scale(Driving::Pressure, T, P, F), have_press = true;
-    if (!pressure && !have_conc) conc = driving_scale(Driving::Concentration, T, P, F), have_conc = true;
+    if (pressure && !have_press)
+      press = driving_scale(Driving::Pressure, T, P, F), have_press = true;
+    if (!pressure && !have_conc)
+      conc = driving_scale(Driving::Concentration, T, P, F), have_conc = true;
     const double phi = pressure ? press.phi : conc.phi;
     double fwd = 1, rev = 1;
     for (const auto& p : compiled_[j].parts) {
@@ -262,8 +263,7 @@ void Mechanism::rates_and_jacobian(double T, double P, const double* F, double* 
       for (int i = 0; i < n; ++i)
         if (F[i] > 0) dr_dF(j, i) += common * *species_[i].mw / *species_[i].density;
     }
-    const double dk_dT =
-        k * rx.rate.Ea / (kGasConstant * T * T);  // same for both Arrhenius forms
+    const double dk_dT = k * rx.rate.Ea / (kGasConstant * T * T);  // same for both Arrhenius forms
     dr_dT(j) = dk_dT * value + k * (sum_gF * sc.dphi_dT - dc_rev_dT * rev);
   }
 }

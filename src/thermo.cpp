@@ -167,23 +167,21 @@ double nasa_set_h_abs(const std::array<double, 7>& a, double T) {
 // Absolute s from s/R = a1 ln T + a2 T + a3 T^2/2 + a4 T^3/3 + a5 T^4/4 + a7.
 double nasa_set_s_abs(const std::array<double, 7>& a, double T) {
   return kGasConstant *
-         (a[0] * std::log(T) + T * (a[1] + T * (a[2] / 2 + T * (a[3] / 3 + T * a[4] / 4))) +
-          a[6]);
+         (a[0] * std::log(T) + T * (a[1] + T * (a[2] / 2 + T * (a[3] / 3 + T * a[4] / 4))) + a[6]);
 }
 
 // Same-set differences h(T2) - h(T1), s(T2) - s(T1) without cancelling a6/a7.
 double nasa_set_dh(const std::array<double, 7>& a, double T1, double T2) {
   const double d = T2 - T1;
-  return kGasConstant * (a[0] * d + a[1] / 2 * pow_diff(T2, T1, 2, d) +
-                         a[2] / 3 * pow_diff(T2, T1, 3, d) + a[3] / 4 * pow_diff(T2, T1, 4, d) +
-                         a[4] / 5 * pow_diff(T2, T1, 5, d));
+  return kGasConstant *
+         (a[0] * d + a[1] / 2 * pow_diff(T2, T1, 2, d) + a[2] / 3 * pow_diff(T2, T1, 3, d) +
+          a[3] / 4 * pow_diff(T2, T1, 4, d) + a[4] / 5 * pow_diff(T2, T1, 5, d));
 }
 
 double nasa_set_ds(const std::array<double, 7>& a, double T1, double T2) {
   const double d = T2 - T1;
-  return kGasConstant * (a[0] * log_ratio(T1, d) + a[1] * d +
-                         a[2] / 2 * pow_diff(T2, T1, 2, d) + a[3] / 3 * pow_diff(T2, T1, 3, d) +
-                         a[4] / 4 * pow_diff(T2, T1, 4, d));
+  return kGasConstant * (a[0] * log_ratio(T1, d) + a[1] * d + a[2] / 2 * pow_diff(T2, T1, 2, d) +
+                         a[3] / 3 * pow_diff(T2, T1, 3, d) + a[4] / 4 * pow_diff(T2, T1, 4, d));
 }
 
 // f(T2) - f(T1) for the piecewise NASA function f (h or s). When the two
@@ -256,29 +254,27 @@ double ThermoModel::cp(double T) const {
 double ThermoModel::h_sensible(double T) const {
   check_temperature(T);
   constexpr double Tr = kReferenceT;
-  return std::visit(Overloaded{
-                        [T](const CpConstant& m) { return m.cp * (T - Tr); },
-                        [T](const CpPolynomial& m) { return poly_h(m, Tr, T); },
-                        [T](const CpShomate& m) { return shomate_integral(m, Tr, T, shomate_set_h); },
-                        [T](const Nasa7& m) {
-                          return nasa_difference(m, Tr, T, nasa_set_dh, nasa_set_h_abs);
-                        },
-                    },
-                    cp_);
+  return std::visit(
+      Overloaded{
+          [T](const CpConstant& m) { return m.cp * (T - Tr); },
+          [T](const CpPolynomial& m) { return poly_h(m, Tr, T); },
+          [T](const CpShomate& m) { return shomate_integral(m, Tr, T, shomate_set_h); },
+          [T](const Nasa7& m) { return nasa_difference(m, Tr, T, nasa_set_dh, nasa_set_h_abs); },
+      },
+      cp_);
 }
 
 double ThermoModel::s_sensible(double T) const {
   check_temperature(T);
   constexpr double Tr = kReferenceT;
-  return std::visit(Overloaded{
-                        [T](const CpConstant& m) { return m.cp * log_ratio(Tr, T - Tr); },
-                        [T](const CpPolynomial& m) { return poly_s(m, Tr, T); },
-                        [T](const CpShomate& m) { return shomate_integral(m, Tr, T, shomate_set_s); },
-                        [T](const Nasa7& m) {
-                          return nasa_difference(m, Tr, T, nasa_set_ds, nasa_set_s_abs);
-                        },
-                    },
-                    cp_);
+  return std::visit(
+      Overloaded{
+          [T](const CpConstant& m) { return m.cp * log_ratio(Tr, T - Tr); },
+          [T](const CpPolynomial& m) { return poly_s(m, Tr, T); },
+          [T](const CpShomate& m) { return shomate_integral(m, Tr, T, shomate_set_s); },
+          [T](const Nasa7& m) { return nasa_difference(m, Tr, T, nasa_set_ds, nasa_set_s_abs); },
+      },
+      cp_);
 }
 
 double ThermoModel::h(double T) const {
@@ -317,21 +313,21 @@ bool ThermoModel::in_range(double T) const {
 
 std::optional<std::array<double, 2>> ThermoModel::declared_range() const {
   using Range = std::optional<std::array<double, 2>>;
-  return std::visit(
-      Overloaded{
-          [](const CpConstant&) -> Range { return std::nullopt; },
-          [](const CpPolynomial& m) -> Range { return m.T_range; },
-          [](const CpShomate& m) -> Range {
-            return std::array<double, 2>{m.sets.front().T_low, m.sets.back().T_high};
-          },
-          [](const Nasa7& m) -> Range {
-            if (m.T_low == 0 && m.T_high == 0) return std::nullopt;
-            // An end that was not given is open: 0 below, infinity above.
-            return std::array<double, 2>{
-                m.T_low, m.T_high == 0 ? std::numeric_limits<double>::infinity() : m.T_high};
-          },
-      },
-      cp_);
+  return std::visit(Overloaded{
+                        [](const CpConstant&) -> Range { return std::nullopt; },
+                        [](const CpPolynomial& m) -> Range { return m.T_range; },
+                        [](const CpShomate& m) -> Range {
+                          return std::array<double, 2>{m.sets.front().T_low, m.sets.back().T_high};
+                        },
+                        [](const Nasa7& m) -> Range {
+                          if (m.T_low == 0 && m.T_high == 0) return std::nullopt;
+                          // An end that was not given is open: 0 below, infinity above.
+                          return std::array<double, 2>{
+                              m.T_low,
+                              m.T_high == 0 ? std::numeric_limits<double>::infinity() : m.T_high};
+                        },
+                    },
+                    cp_);
 }
 
 }  // namespace rxtrain

@@ -34,6 +34,21 @@ class SolverError : public std::runtime_error {
   using std::runtime_error::runtime_error;
 };
 
+// A target a stage cannot reach (beyond equilibrium, or past complete
+// conversion), found while running: located at the stage's entry in the case
+// file and mapped to the solver exit code, since only running the train
+// tells. what() reads "FILE:LINE:COL: error: message".
+class InfeasibleError : public SolverError {
+ public:
+  InfeasibleError(SourceLocation where, const std::string& message);
+  const SourceLocation& where() const { return where_; }
+  const std::string& message() const { return message_; }
+
+ private:
+  SourceLocation where_;
+  std::string message_;
+};
+
 // Formats "FILE:LINE:COL: error: message" the way every diagnostic does.
 std::string format_diagnostic(const SourceLocation& where, const std::string& severity,
                               const std::string& message);

@@ -65,6 +65,9 @@ int main(int argc, char** argv) {
   } catch (const rxtrain::InputError& e) {
     std::fprintf(stderr, "%s\n", e.what());
     return cli::kExitInput;
+  } catch (const rxtrain::InfeasibleError& e) {
+    std::fprintf(stderr, "%s\n", e.what());
+    return cli::kExitSolver;
   } catch (const rxtrain::SolverError& e) {
     std::fprintf(stderr, "rxtrain: error: %s\n", e.what());
     return cli::kExitSolver;

@@ -8,6 +8,7 @@
 
 #include <cstring>
 #include <stdexcept>
+#include <string>
 
 #include "rxtrain/error.hpp"
 
@@ -202,6 +203,13 @@ void CvodeIntegrator::set_stop_time(double t_stop) {
 CvodeIntegrator::Event CvodeIntegrator::step(double t_out, double& t, std::vector<double>& y) {
   Impl& m = *impl_;
   m.last_error.clear();
+  // In one-step mode CVODE's own step limit counts per call, i.e. never
+  // trips; count the steps since init() here instead.
+  long steps = 0;
+  m.check(CVodeGetNumSteps(m.mem.get(), &steps), "CVodeGetNumSteps");
+  if (steps >= m.options.max_steps)
+    throw SolverError("CVODE took max_steps = " + std::to_string(m.options.max_steps) +
+                      " steps without reaching the end");
   sunrealtype tret = 0;
   const int flag = CVode(m.mem.get(), t_out, m.y.get(), &tret, CV_ONE_STEP);
   m.check(flag, "CVODE");
@@ -214,7 +222,8 @@ CvodeIntegrator::Event CvodeIntegrator::step(double t_out, double& t, std::vecto
 
 std::vector<int> CvodeIntegrator::roots_found() const {
   std::vector<int> info(impl_->n_roots, 0);
-  if (impl_->n_roots > 0) impl_->check(CVodeGetRootInfo(impl_->mem.get(), info.data()), "CVodeGetRootInfo");
+  if (impl_->n_roots > 0)
+    impl_->check(CVodeGetRootInfo(impl_->mem.get(), info.data()), "CVodeGetRootInfo");
   return info;
 }
 

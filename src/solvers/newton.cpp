@@ -31,33 +31,49 @@ NewtonResult solve_newton(const ResidualFunction& fn, Eigen::VectorXd& x,
       res.residual_norm = f.lpNorm<Eigen::Infinity>();
       return res;
     }
-    // Fraction to the boundary.
+    // Fraction to the boundary: the whole step scaled so that no component
+    // passes `boundary_fraction` of its distance to a bound.
     double alpha_max = 1.0;
+    Eigen::VectorXd bent = dx;  // the step with only the offending components cut
     for (Eigen::Index i = 0; i < n; ++i) {
       if (dx[i] < 0 && x[i] + dx[i] < lower[i]) {
         alpha_max = std::min(alpha_max, options.boundary_fraction * (x[i] - lower[i]) / -dx[i]);
+        bent[i] = -options.boundary_fraction * (x[i] - lower[i]);
       } else if (dx[i] > 0 && x[i] + dx[i] > upper[i]) {
         alpha_max = std::min(alpha_max, options.boundary_fraction * (upper[i] - x[i]) / dx[i]);
+        bent[i] = options.boundary_fraction * (upper[i] - x[i]);
       }
     }
     const double m0 = merit(f);
-    double alpha = alpha_max;
-    bool accepted = false;
-    while (alpha >= options.min_damping) {
-      x_trial = x + alpha * dx;
-      bool ok = true;
-      try {
-        fn(x_trial, f_trial, nullptr);
-      } catch (...) {
-        ok = false;  // e.g. a property out of its domain: shorten the step
+    // Backtracking from x + alpha0 d; true when a step was accepted (x_trial,
+    // f_trial and step hold it).
+    double step = 0;
+    auto line_search = [&](const Eigen::VectorXd& d, double alpha0, bool armijo) {
+      for (double alpha = alpha0; alpha >= options.min_damping; alpha *= 0.5) {
+        x_trial = x + alpha * d;
+        bool ok = true;
+        try {
+          fn(x_trial, f_trial, nullptr);
+        } catch (...) {
+          ok = false;  // e.g. a property out of its domain: shorten the step
+        }
+        if (!ok || !finite(f_trial)) continue;
+        // Armijo with the Newton direction: d(merit) = -2 m0 per unit alpha.
+        // The bent step is no Newton direction; it needs plain decrease.
+        const bool decrease =
+            armijo ? merit(f_trial) <= (1.0 - 1e-4 * alpha) * m0 : merit(f_trial) < m0;
+        if (decrease) {
+          step = (alpha * d).lpNorm<Eigen::Infinity>();
+          return true;
+        }
       }
-      // Armijo with the Newton direction: d(merit) = -2 m0 per unit alpha.
-      if (ok && finite(f_trial) && merit(f_trial) <= (1.0 - 1e-4 * alpha) * m0) {
-        accepted = true;
-        break;
-      }
-      alpha *= 0.5;
-    }
+      return false;
+    };
+    bool accepted = line_search(dx, alpha_max, true);
+    // A component sitting near its bound with the Newton step pointing out
+    // cuts the scaled step to nothing and would stall the others ("jamming");
+    // then the bent step lets the free components move.
+    if (!accepted && alpha_max < 1.0) accepted = line_search(bent, 1.0, false);
     if (!accepted) {
       res.message = "line search failed (no decrease of the residual)";
       res.residual_norm = f.lpNorm<Eigen::Infinity>();
@@ -65,7 +81,6 @@ NewtonResult solve_newton(const ResidualFunction& fn, Eigen::VectorXd& x,
     }
     x = x_trial;
     fn(x, f, &J);
-    const double step = (alpha * dx).lpNorm<Eigen::Infinity>();
     res.residual_norm = f.lpNorm<Eigen::Infinity>();
     if (res.residual_norm <= options.residual_tolerance &&
         (step <= options.step_tolerance || res.residual_norm == 0)) {

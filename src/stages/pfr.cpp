@@ -4,6 +4,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <limits>
 
 #include "rxtrain/error.hpp"
 
@@ -169,18 +170,35 @@ StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream
   }
   ode.set_stop_time(V_end);
 
-  // Roots: 0 = dT/dV (temperature extremes inside the bed), 1 = target.
+  // Roots: dT/dV (temperature extremes; adiabatic only, as T is constant
+  // otherwise) and, when sizing, the target conversion.
   const double X_target = sizing ? *spec.target_conversion : 0.0;
+  const bool track_T = spec.heat == HeatMode::Adiabatic;
+  const int i_T = track_T ? 0 : -1;
+  const int i_target = sizing ? (track_T ? 1 : 0) : -1;
+  const int n_roots = (track_T ? 1 : 0) + (sizing ? 1 : 0);
   std::vector<double> ydot(sys.size());
-  ode.set_roots(
-      sizing ? 2 : 1,
-      [&](double, const double* y, double* g) {
-        if (sys.rhs(y, ydot.data()) != 0) return 1;
-        g[0] = ydot[n];
-        if (sizing) g[1] = basis.conversion(y) - X_target;
-        return 0;
-      },
-      {0, 1});
+  std::vector<int> directions;
+  if (track_T) directions.push_back(0);
+  if (sizing) directions.push_back(1);
+  if (n_roots > 0) {
+    ode.set_roots(
+        n_roots,
+        [&](double, const double* y, double* g) {
+          if (sys.rhs(y, ydot.data()) != 0) return 1;
+          if (track_T) {
+            // dT/dV is exactly zero along a stretch where nothing reacts
+            // (reactant used up, rates clipped, or exact equilibrium). CVODE
+            // stops with "root found at and very near t" on a root function
+            // that stays at zero, and a flat stretch is no extremum, so it
+            // counts as slightly positive.
+            g[i_T] = ydot[n] != 0 ? ydot[n] : std::numeric_limits<double>::min();
+          }
+          if (sizing) g[i_target] = basis.conversion(y) - X_target;
+          return 0;
+        },
+        directions);
+  }
 
   auto record = [&](double V, const std::vector<double>& y) {
     ProfilePoint p;
@@ -205,7 +223,7 @@ StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream
     if (ev == CvodeIntegrator::Event::Stop) break;
     if (ev == CvodeIntegrator::Event::Root && sizing) {
       const auto found = ode.roots_found();
-      if (found[1] != 0) {
+      if (found[i_target] != 0) {
         reached = true;
         break;
       }

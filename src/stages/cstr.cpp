@@ -1,0 +1,720 @@
+#include "rxtrain/stages/cstr.hpp"
+
+#include <fmt/format.h>
+
+#include <algorithm>
+#include <array>
+#include <cmath>
+#include <functional>
+#include <limits>
+#include <optional>
+
+#include "rxtrain/error.hpp"
+#include "rxtrain/stages/exchanger.hpp"
+
+namespace rxtrain {
+
+namespace {
+
+// Bounds of the temperature unknown: the range temperature_for_enthalpy
+// searches, past which no heat-capacity model means anything.
+constexpr double kLowestT = 1.0;     // K
+constexpr double kHighestT = 1.0e4;  // K
+// Starting flows are lifted this far (relative to the inlet total flow)
+// off F = 0: the fraction-to-the-boundary rule cannot move a component
+// that sits exactly on its bound.
+constexpr double kFlowFloor = 1e-9;
+// First point of the continuation, as a fraction of the target volume:
+// the tank barely reacts there, so Newton from the feed converges.
+constexpr double kFirstVolumeFraction = 1e-6;
+// If it still does not, the first volume is divided by 1e3 this often.
+constexpr int kFirstVolumeRetries = 3;
+// A continuation step that moves any scaled unknown (F / F_in,total,
+// T / T_in) by more than this is retried with half the step, so the march
+// follows one branch instead of hopping to another ...
+constexpr double kMaxStateChange = 0.1;
+// ... until it has been halved this often: then the jump is real (a turning
+// point of the branch: ignition or extinction).
+constexpr int kMaxHalvings = 16;
+// Fractions along the line from the first start to the adiabatic limit
+// used as further starts ("points between"); three reach the middle
+// solution of the classic three-state case.
+constexpr std::array<double, 3> kBetween{0.25, 0.5, 0.75};
+// Sizing by continuation covers this many decades of volume below the
+// largest one PfrOptions::max_space_time allows.
+constexpr double kSizingDecades = 12;
+// Bisection steps on ln V when the sizing Newton fails (2^-100 of the
+// bracket is far below double precision).
+constexpr int kMaxBisections = 100;
+
+struct State {
+  std::vector<double> F;  // mol/s
+  double T = 0;           // K
+};
+
+// The tank's balances in SI, unscaled, with R_j = beta_j r_j:
+//   g_i = F_i,in - F_i + V sum_j nu_ij R_j                                 (mol/s)
+//   adiabatic:  g_n = sum_i F_i,in (hs_i(T) - hs_i(T_in)) + V sum_j R_j dH_j(T)   (W)
+//   isothermal: g_n = T - T_in                                             (K)
+// The adiabatic row is sum F_in h(T_in) = sum F h(T) with the mole balances
+// substituted (dH_j(T) = dH_298 + sum_i nu_ij hs_i(T), kinetics.hpp).
+class CstrBalances {
+ public:
+  CstrBalances(const Mechanism& mech, std::vector<double> beta, HeatMode heat, const Stream& inlet)
+      : mech_(mech),
+        beta_(std::move(beta)),
+        heat_(heat),
+        in_(inlet),
+        n_(mech.n_species()),
+        nr_(mech.n_reactions()) {
+    for (int i = 0; i < n_; ++i) hs_in_.push_back(mech.species()[i].thermo.h_sensible(inlet.T));
+  }
+
+  int n() const { return n_; }
+  HeatMode heat() const { return heat_; }
+  const Stream& inlet() const { return in_; }
+  const Mechanism& mechanism() const { return mech_; }
+
+  // g has n + 1 entries; dg (if given) is (n + 1) x (n + 2): derivatives
+  // with respect to [F_1..F_n, T, V].
+  void eval(const double* F, double T, double V, Eigen::VectorXd& g, Eigen::MatrixXd* dg) const {
+    std::vector<double> r(nr_);
+    Eigen::MatrixXd dr_dF(nr_, n_);
+    Eigen::VectorXd dr_dT(nr_);
+    if (dg)
+      mech_.rates_and_jacobian(T, in_.P, F, r.data(), dr_dF, dr_dT);
+    else
+      mech_.rates(T, in_.P, F, r.data());
+    for (int i = 0; i < n_; ++i) g[i] = in_.F[i] - F[i];
+    double q = 0;  // sum_j R_j dH_j(T), W/m3
+    for (int j = 0; j < nr_; ++j) {
+      const auto& nu = mech_.reactions()[j].nu;
+      const double R = beta_[j] * r[j];
+      for (int i = 0; i < n_; ++i)
+        if (nu[i] != 0) g[i] += V * nu[i] * R;
+      q += R * mech_.dH(j, T);
+    }
+    if (heat_ == HeatMode::Adiabatic) {
+      double h = 0;
+      for (int i = 0; i < n_; ++i)
+        h += in_.F[i] * (mech_.species()[i].thermo.h_sensible(T) - hs_in_[i]);
+      g[n_] = h + V * q;
+    } else {
+      g[n_] = T - in_.T;
+    }
+    if (!dg) return;
+
+    Eigen::MatrixXd& d = *dg;
+    d.setZero();
+    for (int i = 0; i < n_; ++i) d(i, i) = -1.0;
+    for (int j = 0; j < nr_; ++j) {
+      const auto& nu = mech_.reactions()[j].nu;
+      const double dHj = mech_.dH(j, T);
+      for (int i = 0; i < n_; ++i) {
+        if (nu[i] == 0) continue;
+        const double c = V * nu[i] * beta_[j];
+        for (int k = 0; k < n_; ++k) d(i, k) += c * dr_dF(j, k);
+        d(i, n_) += c * dr_dT(j);
+        d(i, n_ + 1) += nu[i] * beta_[j] * r[j];
+      }
+      if (heat_ == HeatMode::Adiabatic) {
+        for (int k = 0; k < n_; ++k) d(n_, k) += V * beta_[j] * dHj * dr_dF(j, k);
+        d(n_, n_) += V * beta_[j] * (mech_.dCp(j, T) * r[j] + dHj * dr_dT(j));
+        d(n_, n_ + 1) += beta_[j] * r[j] * dHj;
+      }
+    }
+    if (heat_ == HeatMode::Adiabatic)
+      d(n_, n_) += mech_.heat_capacity_flow(T, in_.F.data());
+    else
+      d(n_, n_) = 1.0;
+  }
+
+  // Heat that holds the contents at T: V sum_j R_j dH_j(T), W (heat added
+  // to the stream; negative for a cooled exothermic tank).
+  double duty(const double* F, double T, double V) const {
+    std::vector<double> r(nr_);
+    mech_.rates(T, in_.P, F, r.data());
+    double q = 0;
+    for (int j = 0; j < nr_; ++j) q += beta_[j] * r[j] * mech_.dH(j, T);
+    return V * q;
+  }
+
+  // Rate of every reaction per reactor volume, R_j = beta_j r_j.
+  std::vector<double> volumetric_rates(const double* F, double T) const {
+    std::vector<double> r(nr_);
+    mech_.rates(T, in_.P, F, r.data());
+    for (int j = 0; j < nr_; ++j) r[j] *= beta_[j];
+    return r;
+  }
+
+ private:
+  const Mechanism& mech_;
+  std::vector<double> beta_;
+  HeatMode heat_;
+  Stream in_;
+  int n_, nr_;
+  std::vector<double> hs_in_;
+};
+
+struct Outcome {
+  bool converged = false;
+  State state;
+  double V = 0;
+  std::string message;
+};
+
+// Newton on the balances in scaled unknowns z = [F / F_in,total, T / T_in]
+// (and ln V when sizing); rows scaled by the inlet total flow and by the
+// inlet heat-capacity flow times T_in, so every residual is of order one.
+class CstrSolver {
+ public:
+  CstrSolver(const CstrBalances& b, const NewtonOptions& options)
+      : b_(b), options_(options), n_(b.n()) {
+    const Stream& in = b.inlet();
+    Fs_ = in.total_flow();
+    Ts_ = in.T;
+    const double C = b.mechanism().heat_capacity_flow(in.T, in.F.data());
+    Es_ = b.heat() == HeatMode::Adiabatic ? (C > 0 ? C * in.T : 1.0) : in.T;
+  }
+
+  // Balances at a fixed volume V from `start`.
+  Outcome rate(const State& start, double V) {
+    const int m = n_ + 1;
+    Eigen::VectorXd z(m), lo(m), up(m);
+    set_start(start, z, lo, up);
+    Eigen::VectorXd g(m);
+    Eigen::MatrixXd dg(m, n_ + 2);
+    std::vector<double> F(n_);
+    auto fn = [&](const Eigen::VectorXd& x, Eigen::VectorXd& f, Eigen::MatrixXd* J) {
+      const double T = unpack(x, F);
+      b_.eval(F.data(), T, V, g, J ? &dg : nullptr);
+      scale_rows(g, f, J ? &dg : nullptr, J, m);
+    };
+    return finish(fn, z, lo, up, V, false);
+  }
+
+  // Volume and contents together, from `start` at V_start, such that the
+  // key conversion is X_target.
+  Outcome size(const State& start, double V_start, const ConversionBasis& basis, double X_target) {
+    const int m = n_ + 2;
+    Eigen::VectorXd z(m), lo(m), up(m);
+    set_start(start, z, lo, up);
+    z[n_ + 1] = std::log(V_start);
+    lo[n_ + 1] = -std::numeric_limits<double>::infinity();
+    up[n_ + 1] = std::numeric_limits<double>::infinity();
+    Eigen::VectorXd g(n_ + 1);
+    Eigen::MatrixXd dg(n_ + 1, n_ + 2);
+    std::vector<double> F(n_);
+    auto fn = [&](const Eigen::VectorXd& x, Eigen::VectorXd& f, Eigen::MatrixXd* J) {
+      const double T = unpack(x, F);
+      const double V = std::exp(x[n_ + 1]);
+      b_.eval(F.data(), T, V, g, J ? &dg : nullptr);
+      scale_rows(g, f, J ? &dg : nullptr, J, n_ + 1);
+      f[n_ + 1] = basis.conversion(F.data()) - X_target;
+      if (J) {
+        for (int r = 0; r <= n_; ++r) (*J)(r, n_ + 1) = dg(r, n_ + 1) * V / row_scale(r);
+        J->row(n_ + 1).setZero();
+        (*J)(n_ + 1, basis.key) = -Fs_ / basis.F_key_feed;
+      }
+    };
+    return finish(fn, z, lo, up, 0.0, true);
+  }
+
+  // Largest change of a scaled unknown between two states.
+  double distance(const State& a, const State& b) const {
+    double d = std::abs(a.T - b.T) / Ts_;
+    for (int i = 0; i < n_; ++i) d = std::max(d, std::abs(a.F[i] - b.F[i]) / Fs_);
+    return d;
+  }
+  double flow_scale() const { return Fs_; }
+  double temperature_scale() const { return Ts_; }
+  long iterations() const { return iterations_; }
+  long solves() const { return solves_; }
+
+ private:
+  void set_start(const State& s, Eigen::VectorXd& z, Eigen::VectorXd& lo,
+                 Eigen::VectorXd& up) const {
+    for (int i = 0; i < n_; ++i) {
+      z[i] = std::max(s.F[i], kFlowFloor * Fs_) / Fs_;
+      lo[i] = 0.0;
+      up[i] = std::numeric_limits<double>::infinity();
+    }
+    z[n_] = std::clamp(s.T, 1.01 * kLowestT, 0.99 * kHighestT) / Ts_;
+    lo[n_] = kLowestT / Ts_;
+    up[n_] = kHighestT / Ts_;
+  }
+  double unpack(const Eigen::VectorXd& x, std::vector<double>& F) const {
+    for (int i = 0; i < n_; ++i) F[i] = x[i] * Fs_;
+    return x[n_] * Ts_;
+  }
+  double row_scale(int r) const { return r < n_ ? Fs_ : Es_; }
+  // f = g / row scale; J (rows 0..n) = dg / row scale * column scale.
+  void scale_rows(const Eigen::VectorXd& g, Eigen::VectorXd& f, const Eigen::MatrixXd* dg,
+                  Eigen::MatrixXd* J, int rows) const {
+    for (int r = 0; r < rows; ++r) {
+      f[r] = g[r] / row_scale(r);
+      if (!J) continue;
+      for (int c = 0; c < n_; ++c) (*J)(r, c) = (*dg)(r, c) / row_scale(r) * Fs_;
+      (*J)(r, n_) = (*dg)(r, n_) / row_scale(r) * Ts_;
+    }
+  }
+  Outcome finish(const ResidualFunction& fn, Eigen::VectorXd& z, const Eigen::VectorXd& lo,
+                 const Eigen::VectorXd& up, double V, bool sizing) {
+    Outcome out;
+    NewtonResult nr;
+    try {
+      nr = solve_newton(fn, z, lo, up, options_);
+    } catch (const std::exception& e) {
+      // A property evaluated out of its domain at the start itself.
+      out.message = e.what();
+      ++solves_;
+      return out;
+    }
+    ++solves_;
+    iterations_ += nr.iterations;
+    out.converged = nr.converged;
+    out.message = nr.message;
+    out.state.F.resize(n_);
+    out.state.T = unpack(z, out.state.F);
+    out.V = sizing ? std::exp(z[n_ + 1]) : V;
+    return out;
+  }
+
+  const CstrBalances& b_;
+  NewtonOptions options_;
+  int n_;
+  double Fs_ = 1, Ts_ = 1, Es_ = 1;
+  long iterations_ = 0;
+  long solves_ = 0;
+};
+
+struct March {
+  bool ok = false;
+  State state;  // last solution
+  double V = 0;
+  State previous;  // the one before it (the feed at V = 0 for the first)
+  double V_previous = 0;
+  std::string message;
+};
+
+// Natural-parameter continuation in ln V from a solution at V_from to V_to,
+// each solution starting the next. A step that hops too far is halved;
+// where the branch ends (a turning point) the march jumps to whichever
+// solution at that volume the fallback starts reach, nearest in T. `stop`
+// (optional) ends the march early when it returns true.
+March march(CstrSolver& s, const State& from, double V_from, double V_to, int steps,
+            const std::vector<State>& fallbacks, const std::function<bool(const State&)>& stop) {
+  March m;
+  m.state = from;
+  m.V = V_from;
+  m.previous = from;
+  m.V_previous = V_from;
+  const double ln_end = std::log(V_to);
+  double ln_V = std::log(V_from);
+  const double h = (ln_end - ln_V) / std::max(steps, 1);
+  while (ln_V < ln_end) {
+    double step = h;
+    int halvings = 0;
+    for (;;) {
+      const double ln_try = (ln_V + step >= ln_end) ? ln_end : ln_V + step;
+      const double V_try = (ln_try == ln_end) ? V_to : std::exp(ln_try);
+      Outcome o = s.rate(m.state, V_try);
+      const bool jump = o.converged && s.distance(o.state, m.state) > kMaxStateChange;
+      if (o.converged && (!jump || halvings >= kMaxHalvings)) {
+        m.previous = m.state;
+        m.V_previous = m.V;
+        m.state = o.state;
+        m.V = V_try;
+        ln_V = ln_try;
+        break;
+      }
+      if (halvings < kMaxHalvings) {
+        step *= 0.5;
+        ++halvings;
+        continue;
+      }
+      // The branch ends before V_try: ignition or extinction.
+      std::optional<Outcome> best;
+      for (const auto& f : fallbacks) {
+        Outcome fo = s.rate(f, V_try);
+        if (fo.converged &&
+            (!best || std::abs(fo.state.T - m.state.T) < std::abs(best->state.T - m.state.T)))
+          best = fo;
+      }
+      if (!best) {
+        m.message = fmt::format("continuation stopped at V = {:.6g} m3: {}", V_try, o.message);
+        return m;
+      }
+      m.previous = m.state;
+      m.V_previous = m.V;
+      m.state = best->state;
+      m.V = V_try;
+      ln_V = ln_try;
+      break;
+    }
+    if (stop && stop(m.state)) break;
+  }
+  m.ok = true;
+  return m;
+}
+
+// The branch that starts at the feed (V -> 0), continued to V_to.
+March feed_branch(CstrSolver& s, const Stream& inlet, double V_first, double V_to, int steps,
+                  const std::vector<State>& fallbacks,
+                  const std::function<bool(const State&)>& stop) {
+  const State feed{inlet.F, inlet.T};
+  Outcome first;
+  double V0 = V_first;
+  for (int k = 0; k <= kFirstVolumeRetries; ++k, V0 *= 1e-3) {
+    first = s.rate(feed, V0);
+    if (first.converged) break;
+  }
+  if (!first.converged) {
+    March m;
+    m.message = "continuation could not start near V = 0: " + first.message;
+    return m;
+  }
+  if ((stop && stop(first.state)) || first.V >= V_to) {
+    March m;
+    m.ok = true;
+    m.state = first.state;
+    m.V = first.V;
+    m.previous = feed;
+    m.V_previous = 0;
+    return m;
+  }
+  return march(s, first.state, first.V, V_to, steps, fallbacks, stop);
+}
+
+bool same_state(const State& a, const State& b, double distinct_T, const CstrSolver& s) {
+  // Isothermal states share T; their flows are compared on the same
+  // relative footing (distinct_T / T_in of the inlet total flow).
+  if (std::abs(a.T - b.T) > distinct_T) return false;
+  for (size_t i = 0; i < a.F.size(); ++i)
+    if (std::abs(a.F[i] - b.F[i]) > distinct_T / s.temperature_scale() * s.flow_scale())
+      return false;
+  return true;
+}
+
+void add_distinct(std::vector<State>& states, const State& x, double distinct_T,
+                  const CstrSolver& s) {
+  for (const auto& y : states)
+    if (same_state(x, y, distinct_T, s)) return;
+  states.push_back(x);
+}
+
+struct Counts {
+  long iterations = 0;
+  long solves = 0;
+};
+
+struct Rating {
+  std::vector<State> states;     // every distinct solution found
+  std::optional<State> reached;  // the one continued from the feed
+  std::string message;           // why the last failed start failed
+};
+
+Rating rate_all(CstrSolver& s, const Stream& inlet, double V, const std::vector<State>& starts,
+                const CstrOptions& options) {
+  Rating out;
+  for (const auto& st : starts) {
+    Outcome o = s.rate(st, V);
+    if (o.converged)
+      add_distinct(out.states, o.state, options.distinct_T, s);
+    else
+      out.message = o.message;
+  }
+  std::vector<State> fallbacks = starts;
+  fallbacks.insert(fallbacks.end(), out.states.begin(), out.states.end());
+  March m = feed_branch(s, inlet, V * kFirstVolumeFraction, V, options.continuation_steps,
+                        fallbacks, nullptr);
+  if (m.ok) {
+    add_distinct(out.states, m.state, options.distinct_T, s);
+    out.reached = m.state;
+  } else {
+    out.message = m.message;
+  }
+  return out;
+}
+
+State between(const State& a, const State& b, double f) {
+  State s;
+  s.T = (1 - f) * a.T + f * b.T;
+  for (size_t i = 0; i < a.F.size(); ++i) s.F.push_back((1 - f) * a.F[i] + f * b.F[i]);
+  return s;
+}
+
+// `first`, the adiabatic limit and points between them.
+std::vector<State> starts_from(const State& first, const Mechanism& mech, HeatMode heat,
+                               const std::vector<double>& beta, const Stream& inlet,
+                               const SunContext& ctx, const CstrOptions& options) {
+  std::vector<State> starts{first};
+  try {
+    const Stream lim = adiabatic_limit(mech, beta, inlet, heat, ctx, options.pfr);
+    const State limit{lim.F, lim.T};
+    starts.push_back(limit);
+    for (double f : kBetween) starts.push_back(between(first, limit, f));
+  } catch (const SolverError&) {
+    // No limit start: the others and the continuation remain.
+  }
+  return starts;
+}
+
+// Every steady state of a tank of volume V, and the one reached from the
+// feed. Starts: (a) the isothermal solution at T_in (the feed itself for
+// an isothermal tank), (b) the adiabatic limit, (c) points between; the
+// continuation from V -> 0 runs in any case. `extra` counts the solves of
+// the isothermal pre-solve.
+Rating rate_tank(const Mechanism& mech, HeatMode heat, const std::vector<double>& beta,
+                 const Stream& inlet, double V, const SunContext& ctx, const CstrOptions& options,
+                 CstrSolver& solver, Counts& extra) {
+  const State feed{inlet.F, inlet.T};
+  State first = feed;
+  if (heat == HeatMode::Adiabatic) {
+    const CstrBalances iso(mech, beta, HeatMode::Isothermal, inlet);
+    CstrSolver iso_solver(iso, options.newton);
+    Rating r = rate_all(iso_solver, inlet, V, {feed}, options);
+    extra.iterations += iso_solver.iterations();
+    extra.solves += iso_solver.solves();
+    if (r.reached) first = *r.reached;
+  }
+  return rate_all(solver, inlet, V, starts_from(first, mech, heat, beta, inlet, ctx, options),
+                  options);
+}
+
+// "300.72 K, 334.79 K and 499.99 K"
+std::string temperature_list(const std::vector<State>& states) {
+  std::string list;
+  for (size_t k = 0; k < states.size(); ++k) {
+    if (k > 0) list += (k + 1 == states.size()) ? " and " : ", ";
+    list += fmt::format("{:.2f} K", states[k].T);
+  }
+  return list;
+}
+
+const char* limit_name(HeatMode heat) {
+  return heat == HeatMode::Adiabatic ? "adiabatic equilibrium" : "equilibrium";
+}
+
+[[noreturn]] void throw_out_of_reach(const Mechanism& mech, const ReactorSpec& spec,
+                                     const std::vector<double>& beta, const Stream& inlet,
+                                     const ConversionBasis& basis, const SunContext& ctx,
+                                     const CstrOptions& options, double X_target) {
+  std::string msg;
+  try {
+    const Stream lim = adiabatic_limit(mech, beta, inlet, spec.heat, ctx, options.pfr);
+    msg = fmt::format(
+        "stage {}: target conversion {:.4f} is out of reach; the most this stage can reach is "
+        "X = {:.4f} (at T = {:.2f} K, the {} limit)",
+        spec.id, X_target, basis.conversion(lim), lim.T, limit_name(spec.heat));
+  } catch (const SolverError&) {
+    msg = fmt::format(
+        "stage {}: target conversion {:.4f} is out of reach: the net rate there is zero or "
+        "negative (at or beyond the {} limit)",
+        spec.id, X_target, limit_name(spec.heat));
+  }
+  throw InfeasibleError(spec.where, msg);
+}
+
+}  // namespace
+
+StageResult run_cstr(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
+                     const ConversionBasis& basis, const SunContext& ctx,
+                     const CstrOptions& options) {
+  const int n = mech.n_species();
+  const std::vector<double> beta = rate_multipliers(mech, spec);
+  const CstrBalances balances(mech, beta, spec.heat, inlet);
+  CstrSolver solver(balances, options.newton);
+  Counts extra;  // the isothermal pre-solve
+
+  const double X_in = basis.conversion(inlet);
+  const bool sizing = spec.target_conversion.has_value();
+  State out;
+  double V = 0;
+  std::vector<State> states;
+  std::vector<std::string> warnings;
+
+  if (sizing) {
+    const double X_t = *spec.target_conversion;
+    if (X_t <= X_in)
+      throw InputError(spec.where,
+                       fmt::format("stage {}: target conversion {:.4f} is not above the "
+                                   "conversion at its inlet ({:.4f})",
+                                   spec.id, X_t, X_in));
+    if (mech.n_reactions() == 1) {
+      // One reaction: the target fixes the extent, hence the outlet flows;
+      // the energy balance then fixes T and the rate there fixes V.
+      const auto& nu = mech.reactions()[0].nu;
+      const double nu_key = nu[basis.key];
+      if (!(nu_key < 0)) throw_out_of_reach(mech, spec, beta, inlet, basis, ctx, options, X_t);
+      const double extent = (X_t - X_in) * basis.F_key_feed / -nu_key;
+      out.F.resize(n);
+      for (int i = 0; i < n; ++i) {
+        out.F[i] = inlet.F[i] + nu[i] * extent;
+        // Round-off of a reactant used up exactly is not a shortage.
+        if (out.F[i] < 0 && out.F[i] > -1e-12 * inlet.total_flow()) out.F[i] = 0;
+        if (out.F[i] < 0) throw_out_of_reach(mech, spec, beta, inlet, basis, ctx, options, X_t);
+      }
+      out.T = inlet.T;
+      if (spec.heat == HeatMode::Adiabatic) {
+        // sum F hs(T) = sum F_in hs(T_in) - extent dH_298 (total enthalpy kept).
+        const double H = mech.sensible_enthalpy_flow(inlet.T, inlet.F.data()) -
+                         extent * mech.reactions()[0].dH_298;
+        try {
+          out.T = temperature_for_enthalpy(mech, out.F, H, inlet.T);
+        } catch (const SolverError& e) {
+          throw SolverError(
+              fmt::format("{}: outlet temperature at X = {:.4f}: {}", spec.id, X_t, e.what()));
+        }
+      }
+      const double R = balances.volumetric_rates(out.F.data(), out.T)[0];
+      if (!(R > 0) || !std::isfinite(R))
+        throw_out_of_reach(mech, spec, beta, inlet, basis, ctx, options, X_t);
+      V = extent / R;
+    } else {
+      // Several reactions: follow the feed branch in volume until the
+      // target is passed, then solve F, T and ln V together.
+      const double v0 = mech.volumetric_flow(inlet.T, inlet.P, inlet.F.data());
+      const double V_end = options.pfr.max_space_time * v0;
+      auto reached = [&](const State& st) { return basis.conversion(st.F.data()) >= X_t; };
+      // Where the branch turns (ignition), these starts find where it lands.
+      const std::vector<State> fallbacks =
+          starts_from(State{inlet.F, inlet.T}, mech, spec.heat, beta, inlet, ctx, options);
+      March m = feed_branch(solver, inlet, V_end * std::pow(10.0, -kSizingDecades), V_end,
+                            options.continuation_steps, fallbacks, reached);
+      if (!m.ok)
+        throw SolverError(
+            fmt::format("{}: sizing by continuation in volume failed ({})", spec.id, m.message));
+      if (!reached(m.state)) throw_out_of_reach(mech, spec, beta, inlet, basis, ctx, options, X_t);
+      // Start from the point interpolated linearly in X inside the bracket.
+      const double X0 = basis.conversion(m.previous.F.data());
+      const double X1 = basis.conversion(m.state.F.data());
+      const double f = X1 > X0 ? (X_t - X0) / (X1 - X0) : 1.0;
+      const double V_lo = m.V_previous > 0 ? m.V_previous : m.V * 1e-3;
+      const double ln_V0 = (1 - f) * std::log(V_lo) + f * std::log(m.V);
+      Outcome o = solver.size(between(m.previous, m.state, f), std::exp(ln_V0), basis, X_t);
+      if (!o.converged) o = solver.size(m.state, m.V, basis, X_t);
+      if (!o.converged) {
+        // Bisection on ln V with rated tanks, each started from the lower end.
+        double lo = std::log(V_lo), hi = std::log(m.V);
+        State lo_state = m.previous;
+        o = Outcome{};
+        for (int k = 0; k < kMaxBisections; ++k) {
+          const double mid = 0.5 * (lo + hi);
+          Outcome t = solver.rate(lo_state, std::exp(mid));
+          if (!t.converged) break;
+          o = t;
+          const double X = basis.conversion(t.state.F.data());
+          if (std::abs(X - X_t) <= 1e-12) break;
+          if (X < X_t) {
+            lo = mid;
+            lo_state = t.state;
+          } else {
+            hi = mid;
+          }
+        }
+        if (!o.converged)
+          throw SolverError(fmt::format(
+              "{}: Newton did not converge when sizing for X = {:.4f} (between V = {:.6g} and "
+              "{:.6g} m3)",
+              spec.id, X_t, V_lo, m.V));
+      }
+      out = o.state;
+      V = o.V;
+    }
+    states.push_back(out);
+    // The target fixes the state; the tank of that volume may still have
+    // other steady states, and start-up from the feed may settle in one of
+    // them. Rating it tells the designer (a failure here only skips that).
+    try {
+      Rating r = rate_tank(mech, spec.heat, beta, inlet, V, ctx, options, solver, extra);
+      for (const auto& st : r.states) add_distinct(states, st, options.distinct_T, solver);
+      if (states.size() > 1) {
+        const bool reached = r.reached && same_state(*r.reached, out, options.distinct_T, solver);
+        std::sort(states.begin(), states.end(),
+                  [](const State& a, const State& b) { return a.T < b.T; });
+        warnings.push_back(fmt::format(
+            "stage {}: {} steady states found at the sized volume (T = {}); reporting the one "
+            "at the target conversion (T = {:.2f} K), which start-up from the feed {}",
+            spec.id, states.size(), temperature_list(states), out.T,
+            reached ? "reaches" : "does not reach"));
+      }
+    } catch (const SolverError&) {
+    }
+  } else {
+    V = spec.volume
+            ? *spec.volume
+            : (spec.catalyst_mass && spec.bulk_density ? *spec.catalyst_mass / *spec.bulk_density
+                                                       : 0.0);
+    if (!(V > 0) || !std::isfinite(V))
+      throw InputError(spec.where,
+                       fmt::format("stage {}: a stirred tank needs a volume above 0 m3 (e.g. "
+                                   "volume: 2 m3), a catalyst_mass with bulk_density, or a "
+                                   "target_conversion",
+                                   spec.id));
+    Rating r = rate_tank(mech, spec.heat, beta, inlet, V, ctx, options, solver, extra);
+    if (r.states.empty())
+      throw SolverError(
+          fmt::format("{}: Newton did not converge from any start ({})", spec.id, r.message));
+    states = r.states;
+    // The reported outlet is the state reached by continuation from V -> 0:
+    // a tank filled and started up from the feed side follows that branch,
+    // so this is the state it physically settles in. Without it, the state
+    // nearest the inlet temperature stands in (and a warning says so).
+    if (r.reached) {
+      out = *r.reached;
+    } else {
+      out = *std::min_element(states.begin(), states.end(), [&](const State& a, const State& b) {
+        return std::abs(a.T - inlet.T) < std::abs(b.T - inlet.T);
+      });
+      warnings.push_back(fmt::format(
+          "stage {}: continuation in volume from the feed failed ({}); reporting the steady "
+          "state nearest the inlet temperature",
+          spec.id, r.message));
+    }
+    std::sort(states.begin(), states.end(),
+              [](const State& a, const State& b) { return a.T < b.T; });
+    if (states.size() > 1) {
+      warnings.push_back(fmt::format(
+          "stage {}: {} steady states found (T = {}); reporting the one reached from the feed "
+          "by continuation in volume",
+          spec.id, states.size(), temperature_list(states)));
+    }
+  }
+
+  StageResult res;
+  res.id = spec.id;
+  res.kind = StageKind::Cstr;
+  res.heat = spec.heat;
+  res.sized = sizing;
+  res.inlet = inlet;
+  res.bulk_density = spec.bulk_density;
+  res.volume = V;
+  if (spec.bulk_density) res.catalyst_mass = V * *spec.bulk_density;
+  res.outlet = Stream{out.T, inlet.P, out.F};
+  for (auto& f : res.outlet.F) f = std::max(f, 0.0);  // solver round-off below zero
+  res.duty = spec.heat == HeatMode::Isothermal ? balances.duty(out.F.data(), out.T, V) : 0.0;
+  res.conversion = basis.conversion(res.outlet);
+  res.T_max = std::max(inlet.T, out.T);
+  res.T_min = std::min(inlet.T, out.T);
+  res.profile.push_back(ProfilePoint{0.0, inlet.T, X_in, inlet.F});
+  res.profile.push_back(ProfilePoint{V, res.outlet.T, res.conversion, res.outlet.F});
+  for (const auto& st : states) {
+    SteadyState ss;
+    ss.T = st.T;
+    ss.F = st.F;
+    for (auto& f : ss.F) f = std::max(f, 0.0);
+    ss.X = basis.conversion(ss.F.data());
+    res.steady_states.push_back(std::move(ss));
+  }
+  res.stats.newton_iters = solver.iterations() + extra.iterations;
+  res.stats.message = fmt::format(
+      "{}Newton: {} solves, {} iterations; {} steady state(s)",
+      sizing && mech.n_reactions() == 1 ? "sized in closed form from the stoichiometry; " : "",
+      solver.solves() + extra.solves, res.stats.newton_iters, states.size());
+  res.warnings = std::move(warnings);
+  add_space_velocities(mech, res);
+  return res;
+}
+
+}  // namespace rxtrain

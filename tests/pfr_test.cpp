@@ -1,0 +1,643 @@
+// Tubular stage and the CVODE wrapper, checked against analytic solutions,
+// the steady-flow energy balance and an independent integrator (GSL odeiv2).
+// All kinetic and physical data here are invented for the tests.
+#include "rxtrain/stages/pfr.hpp"
+
+#include <gsl/gsl_errno.h>
+#include <gsl/gsl_odeiv2.h>
+#include <gsl/gsl_roots.h>
+
+#include <catch2/catch.hpp>
+#include <cmath>
+#include <functional>
+#include <memory>
+#include <stdexcept>
+#include <string>
+#include <vector>
+
+using namespace rxtrain;
+
+namespace {
+
+Species species(const std::string& id, double cp, double mw = 0.1, double density = 1000) {
+  Species s;
+  s.id = id;
+  s.name = id;
+  s.mw = mw;
+  s.density = density;
+  s.thermo = ThermoModel(CpConstant{cp}, 0.0, 100.0);
+  return s;
+}
+
+// First-order irreversible reaction in species `reactant`.
+Reaction first_order(const std::string& id, std::vector<double> nu, int reactant, double A,
+                     double Ea, double dH, std::optional<double> T_ref = std::nullopt) {
+  Reaction r;
+  r.id = id;
+  r.equation = id;
+  r.rate.orders.assign(nu.size(), 0.0);
+  r.rate.orders[reactant] = 1.0;
+  r.nu = std::move(nu);
+  r.rate.A = A;
+  r.rate.Ea = Ea;
+  r.rate.T_ref = T_ref;
+  r.dH_298 = dH;
+  return r;
+}
+
+ReactorSpec volume_spec(double V, HeatMode heat) {
+  ReactorSpec s;
+  s.id = "R1";
+  s.heat = heat;
+  s.volume = V;
+  s.where = {"case.yaml", 12, 5};
+  return s;
+}
+
+ReactorSpec target_spec(double X, HeatMode heat) {
+  ReactorSpec s;
+  s.id = "R1";
+  s.heat = heat;
+  s.target_conversion = X;
+  s.where = {"case.yaml", 12, 5};
+  return s;
+}
+
+PfrOptions tight() {
+  PfrOptions o;
+  o.cvode.rtol = 1e-10;
+  o.cvode.atol = 1e-14;
+  return o;
+}
+
+// ---- GSL odeiv2 (independent reference integrator) ------------------------
+
+struct GslNoAbort {
+  gsl_error_handler_t* old = gsl_set_error_handler_off();
+  ~GslNoAbort() { gsl_set_error_handler(old); }
+};
+
+using OdeRhs = std::function<void(double V, const double* y, double* dy)>;
+
+// Explicit Runge-Kutta-Prince-Dormand (8,9), tolerances 1e-12.
+class GslOde {
+ public:
+  GslOde(int n, OdeRhs f) : f_(std::move(f)) {
+    sys_ = {&GslOde::trampoline, nullptr, static_cast<size_t>(n), this};
+    driver_.reset(gsl_odeiv2_driver_alloc_y_new(&sys_, gsl_odeiv2_step_rk8pd, 1e-6, 1e-12, 1e-12));
+  }
+  // Integrates y from V0 to V1.
+  void advance(double V0, double V1, std::vector<double>& y) {
+    gsl_odeiv2_driver_reset(driver_.get());
+    double V = V0;
+    const int status = gsl_odeiv2_driver_apply(driver_.get(), &V, V1, y.data());
+    REQUIRE(status == GSL_SUCCESS);
+  }
+
+ private:
+  static int trampoline(double t, const double y[], double dydt[], void* p) {
+    static_cast<GslOde*>(p)->f_(t, y, dydt);
+    return GSL_SUCCESS;
+  }
+  OdeRhs f_;
+  gsl_odeiv2_system sys_{};
+  std::unique_ptr<gsl_odeiv2_driver, decltype(&gsl_odeiv2_driver_free)> driver_{
+      nullptr, &gsl_odeiv2_driver_free};
+};
+
+// Brent's method (GSL) for g(x) = 0 on [lo, hi].
+double gsl_brent(const std::function<double(double)>& g, double lo, double hi, double xtol) {
+  gsl_function fn;
+  fn.function = [](double x, void* p) {
+    return (*static_cast<const std::function<double(double)>*>(p))(x);
+  };
+  fn.params = const_cast<std::function<double(double)>*>(&g);
+  std::unique_ptr<gsl_root_fsolver, decltype(&gsl_root_fsolver_free)> s(
+      gsl_root_fsolver_alloc(gsl_root_fsolver_brent), &gsl_root_fsolver_free);
+  REQUIRE(gsl_root_fsolver_set(s.get(), &fn, lo, hi) == GSL_SUCCESS);
+  for (int it = 0; it < 200; ++it) {
+    gsl_root_fsolver_iterate(s.get());
+    const double a = gsl_root_fsolver_x_lower(s.get());
+    const double b = gsl_root_fsolver_x_upper(s.get());
+    if (gsl_root_test_interval(a, b, xtol, 0) == GSL_SUCCESS) break;
+  }
+  return gsl_root_fsolver_root(s.get());
+}
+
+// ---- shared test systems -------------------------------------------------
+
+// Adiabatic gas A -> B with inert I, constant cp, cp_A = cp_B (so dCp = 0).
+struct AdiabaticGas {
+  Mechanism mech;
+  Stream inlet;
+  ConversionBasis basis;
+  double dH = -50e3;        // J/mol
+  double sum_theta_cp = 0;  // sum_i (F_i0 / F_A0) cp_i, J/(mol K)
+};
+
+AdiabaticGas adiabatic_gas() {
+  AdiabaticGas g;
+  // k = 0.8 1/s at 500 K, Ea = 60 kJ/mol (invented).
+  Reaction r = first_order("R", {-1, 1, 0}, 0, 0.8, 60e3, -50e3, 500.0);
+  g.mech = Mechanism(Phase::Gas, {species("A", 40), species("B", 40), species("I", 29)}, {r});
+  g.inlet = Stream{500.0, 2e5, {1.0, 0.0, 4.0}};
+  g.basis = ConversionBasis{0, 1.0};
+  g.sum_theta_cp = 40 + 4 * 29;
+  return g;
+}
+
+}  // namespace
+
+TEST_CASE("isothermal first-order liquid PFR follows X = 1 - exp(-k tau)", "[pfr]") {
+  // Liquid A -> B with equal molar volumes: v is constant, C_A = F_A / v, and
+  // dF_A/dV = -k F_A / v integrates to F_A = F_A0 exp(-k V / v0).
+  const double T = 340;
+  Reaction r = first_order("R", {-1, 1, 0}, 0, 2.0e-3, 55e3, -30e3, 340.0);
+  const Mechanism mech(
+      Phase::Liquid,
+      {species("A", 150, 0.1, 900), species("B", 160, 0.1, 900), species("S", 75, 0.018, 1000)},
+      {r});
+  const Stream inlet{T, 3e5, {2.0, 0.0, 30.0}};
+  const ConversionBasis basis{0, 2.0};
+  const double v0 = 2.0 * 0.1 / 900 + 30 * 0.018 / 1000;
+  const double k = 2.0e-3;
+  const double V = 2.5 * v0 / k;  // k tau = 2.5
+  SunContext ctx;
+  const StageResult res =
+      run_pfr(mech, volume_spec(V, HeatMode::Isothermal), inlet, basis, ctx, tight());
+  CHECK(*res.volume == Approx(V).epsilon(1e-14));
+  CHECK(res.conversion == Approx(1 - std::exp(-2.5)).epsilon(1e-8));
+  CHECK(*res.space_time == Approx(V / v0).epsilon(1e-13));
+  REQUIRE(res.profile.size() > 5);
+  for (const auto& p : res.profile) {
+    const double F_exact = 2.0 * std::exp(-k * p.V / v0);
+    INFO("V = " << p.V);
+    CHECK(p.F[0] == Approx(F_exact).epsilon(1e-8));
+    CHECK(p.X == Approx(1 - F_exact / 2.0).margin(1e-8));
+    CHECK(p.T == T);
+  }
+  // Isothermal duty (steady-flow first law at constant T): heat added =
+  // dH(T) * moles converted, dH(T) = dH_298 + dCp (T - 298.15) (Kirchhoff,
+  // dCp = 160 - 150 J/(mol K)).
+  const double dH_T = -30e3 + 10.0 * (T - kReferenceT);
+  CHECK(res.duty == Approx(dH_T * 2.0 * res.conversion).epsilon(1e-8));
+}
+
+TEST_CASE("isothermal first-order gas PFR with constant moles follows X = 1 - exp(-k tau)",
+          "[pfr]") {
+  const double T = 600, P = 5e5;
+  Reaction r = first_order("R", {-1, 1, 0}, 0, 0.05, 80e3, 10e3, 600.0);
+  const Mechanism mech(Phase::Gas, {species("A", 40), species("B", 40), species("N2", 29)}, {r});
+  const Stream inlet{T, P, {0.4, 0.1, 1.5}};
+  const ConversionBasis basis{0, 0.4};
+  const double v0 = 2.0 * kGasConstant * T / P;
+  const double V = 1.7 * v0 / 0.05;  // k tau = 1.7
+  SunContext ctx;
+  const StageResult res =
+      run_pfr(mech, volume_spec(V, HeatMode::Isothermal), inlet, basis, ctx, tight());
+  CHECK(res.conversion == Approx(1 - std::exp(-1.7)).epsilon(1e-8));
+  for (const auto& p : res.profile) {
+    INFO("V = " << p.V);
+    CHECK(p.F[0] == Approx(0.4 * std::exp(-0.05 * p.V / v0)).epsilon(1e-8));
+  }
+}
+
+TEST_CASE("adiabatic PFR profile obeys the adiabatic energy balance", "[pfr]") {
+  // Steady-flow first law with constant cp and one reaction:
+  // (T - T0) (sum Theta_i cp_i + X dCp) = (-dH(T0)) X; with dCp = 0 this is
+  // T - T0 = (-dH) X / sum Theta_i cp_i (standard adiabatic relation).
+  const AdiabaticGas g = adiabatic_gas();
+  SunContext ctx;
+  const double v0 = g.mech.volumetric_flow(g.inlet.T, g.inlet.P, g.inlet.F.data());
+  const StageResult res =
+      run_pfr(g.mech, volume_spec(3.0 * v0, HeatMode::Adiabatic), g.inlet, g.basis, ctx);
+  REQUIRE(res.conversion > 0.5);
+  REQUIRE(res.profile.size() > 5);
+  for (const auto& p : res.profile) {
+    const double dT_pred = -g.dH * p.X / g.sum_theta_cp;
+    INFO("V = " << p.V << " X = " << p.X << " T - T0 = " << p.T - g.inlet.T << " predicted "
+                << dT_pred);
+    CHECK(std::abs((p.T - g.inlet.T) - dT_pred) <= 1e-8 * std::max(dT_pred, 1e-3));
+  }
+  // Monotonic exothermic bed: the hottest point is the outlet (to the
+  // integration tolerance; round-off lets T wander by ~1e-11 once the
+  // reactant is gone).
+  CHECK(res.T_max == Approx(res.outlet.T).epsilon(1e-9));
+  CHECK(res.duty == 0.0);
+}
+
+TEST_CASE("adiabatic PFR with a heat-capacity change obeys the energy balance", "[pfr]") {
+  // Same relation with dCp = cp_B + cp_C - cp_A != 0 (A -> B + C, mole change).
+  Reaction r = first_order("R", {-1, 1, 1, 0}, 0, 0.3, 70e3, -45e3, 550.0);
+  const Mechanism mech(
+      Phase::Gas, {species("A", 90), species("B", 50), species("C", 32), species("I", 29)}, {r});
+  const Stream inlet{550, 3e5, {1.0, 0.0, 0.0, 2.0}};
+  const ConversionBasis basis{0, 1.0};
+  const double dCp = 50 + 32 - 90;
+  const double sum_theta_cp = 90 + 2 * 29;
+  const double dH0 = -45e3 + dCp * (550 - kReferenceT);  // Kirchhoff
+  SunContext ctx;
+  // With dCp != 0 the balance is no longer a linear invariant of the ODE,
+  // so BDF keeps it only to its tolerance (measured 2.3e-7 K, 1e-8 relative
+  // at the default rtol 1e-8): tighten to hold 1e-8 relative.
+  const StageResult res =
+      run_pfr(mech, volume_spec(2.0, HeatMode::Adiabatic), inlet, basis, ctx, tight());
+  REQUIRE(res.conversion > 0.3);
+  for (const auto& p : res.profile) {
+    const double dT_pred = -dH0 * p.X / (sum_theta_cp + p.X * dCp);
+    INFO("V = " << p.V << " X = " << p.X);
+    CHECK(std::abs((p.T - inlet.T) - dT_pred) <= 1e-8 * std::max(dT_pred, 1e-3));
+  }
+}
+
+TEST_CASE("adiabatic liquid PFR agrees with GSL rk8pd", "[pfr]") {
+  GslNoAbort no_abort;
+  // Liquid A -> B (exothermic, Arrhenius, first order) in solvent S; cp_B !=
+  // cp_A so dH varies with T (Kirchhoff) and sum F cp varies along the bed.
+  const double Ea = 75e3, dH298 = -70e3;
+  const double A = 5e-4 * std::exp(Ea / (kGasConstant * 320));  // k(320 K) = 5e-4 1/s
+  const std::vector<double> cp{150, 170, 75};
+  Reaction r = first_order("R", {-1, 1, 0}, 0, A, Ea, dH298);
+  const Mechanism mech(Phase::Liquid,
+                       {species("A", cp[0], 0.1, 900), species("B", cp[1], 0.1, 900),
+                        species("S", cp[2], 0.018, 1000)},
+                       {r});
+  const Stream inlet{320, 2e5, {4.0, 0.0, 40.0}};
+  const ConversionBasis basis{0, 4.0};
+  const double v = 4.0 * 0.1 / 900 + 40 * 0.018 / 1000;  // constant: equal molar volumes
+  const double V_end = 3.0;
+
+  // The same model written out independently for GSL: y = [F_A, T].
+  GslOde ode(2, [&](double, const double* y, double* dy) {
+    const double FA = y[0], T = y[1];
+    const double FB = 4.0 - FA;
+    const double rate = A * std::exp(-Ea / (kGasConstant * T)) * FA / v;
+    const double dH = dH298 + (cp[1] - cp[0]) * (T - kReferenceT);
+    dy[0] = -rate;
+    dy[1] = -dH * rate / (FA * cp[0] + FB * cp[1] + 40.0 * cp[2]);
+  });
+
+  // This bed ignites: errors made before the runaway grow through it. At
+  // the default rtol 1e-8 the measured difference from GSL near ignition is
+  // 1.1e-6 relative in X and 1e-7 in T, falling in proportion to rtol
+  // (2.7e-8 and 2.3e-9 at rtol 1e-10), so the check runs at rtol 1e-10.
+  SunContext ctx;
+  const StageResult res =
+      run_pfr(mech, volume_spec(V_end, HeatMode::Adiabatic), inlet, basis, ctx, tight());
+  REQUIRE(res.conversion > 0.5);
+  // Compare at every CVODE profile point (GSL is driven to each point's V, so
+  // no interpolation error enters) and at the outlet.
+  std::vector<double> y{4.0, 320.0};
+  double V_prev = 0;
+  int compared = 0;
+  double worst_T = 0, worst_X = 0;
+  for (const auto& p : res.profile) {
+    if (p.V > V_prev) ode.advance(V_prev, p.V, y);
+    V_prev = p.V;
+    const double X_ref = 1 - y[0] / 4.0;
+    worst_T = std::max(worst_T, std::abs(p.T - y[1]) / y[1]);
+    if (X_ref > 1e-3) worst_X = std::max(worst_X, std::abs(p.X - X_ref) / X_ref);
+    CHECK(p.T == Approx(y[1]).epsilon(1e-7));
+    CHECK(p.X == Approx(X_ref).epsilon(1e-7).margin(1e-9));
+    ++compared;
+  }
+  INFO("worst relative T " << worst_T << ", X " << worst_X);
+  CHECK(compared > 10);
+  CHECK(res.outlet.T == Approx(y[1]).epsilon(1e-7));
+  CHECK(res.conversion == Approx(1 - y[0] / 4.0).epsilon(1e-7));
+  // Intermediate volumes that are not solver steps, through the profile's
+  // neighbouring points: GSL from the inlet to V_mid vs CVODE re-run there.
+  for (double f : {0.13, 0.5, 0.77}) {
+    std::vector<double> ym{4.0, 320.0};
+    ode.advance(0.0, f * V_end, ym);
+    const StageResult part =
+        run_pfr(mech, volume_spec(f * V_end, HeatMode::Adiabatic), inlet, basis, ctx, tight());
+    INFO("V = " << f * V_end);
+    CHECK(part.outlet.T == Approx(ym[1]).epsilon(1e-7));
+    CHECK(part.conversion == Approx(1 - ym[0] / 4.0).epsilon(1e-7));
+  }
+}
+
+TEST_CASE("T_max inside an exothermic-then-endothermic bed matches GSL", "[pfr]") {
+  GslNoAbort no_abort;
+  // Liquid A -> B (exothermic, fast), B -> C (endothermic, slower, higher Ea)
+  // in solvent S: T rises, peaks, then falls.
+  const double k1 = 2e-3, Ea1 = 60e3, dH1 = -60e3;
+  const double k2 = 2e-4, Ea2 = 100e3, dH2 = 45e3;
+  const double Tr = 350;
+  Reaction r1 = first_order("R1", {-1, 1, 0, 0}, 0, k1, Ea1, dH1, Tr);
+  Reaction r2 = first_order("R2", {0, -1, 1, 0}, 1, k2, Ea2, dH2, Tr);
+  const Mechanism mech(Phase::Liquid,
+                       {species("A", 150, 0.1, 1000), species("B", 150, 0.1, 1000),
+                        species("C", 150, 0.1, 1000), species("S", 75, 0.018, 1000)},
+                       {r1, r2});
+  const double FA0 = 5, FS = 50;
+  const Stream inlet{Tr, 2e5, {FA0, 0.0, 0.0, FS}};
+  const ConversionBasis basis{0, FA0};
+  const double v = FA0 * 1e-4 + FS * 1.8e-5;
+  const double V_end = 20;
+  const double C_total = FA0 * 150 + FS * 75;  // cp equal for A, B, C: constant
+
+  // y = [F_A, F_B, T]; F_C = FA0 - F_A - F_B.
+  auto rhs = [&](const double* y, double* dy) {
+    const double T = y[2];
+    const double r1v = k1 * std::exp(-Ea1 / kGasConstant * (1 / T - 1 / Tr)) * y[0] / v;
+    const double r2v = k2 * std::exp(-Ea2 / kGasConstant * (1 / T - 1 / Tr)) * y[1] / v;
+    dy[0] = -r1v;
+    dy[1] = r1v - r2v;
+    dy[2] = -(dH1 * r1v + dH2 * r2v) / C_total;
+  };
+  GslOde ode(3, [&](double, const double* y, double* dy) { rhs(y, dy); });
+
+  SunContext ctx;
+  const StageResult res = run_pfr(mech, volume_spec(V_end, HeatMode::Adiabatic), inlet, basis, ctx);
+  REQUIRE(res.T_max > inlet.T + 1);
+  REQUIRE(res.T_max > res.outlet.T + 1);
+
+  // GSL: march on a grid until dT/dV changes sign, then Brent on dT/dV(V),
+  // each evaluation integrating from the left end of the bracket.
+  const int N = 400;
+  std::vector<double> y{FA0, 0, Tr}, y_left, dy(3);
+  double V_left = 0;
+  bool bracketed = false;
+  for (int i = 1; i <= N && !bracketed; ++i) {
+    const double V = V_end * i / N;
+    y_left = y;
+    V_left = V_end * (i - 1) / N;
+    ode.advance(V_left, V, y);
+    rhs(y.data(), dy.data());
+    bracketed = dy[2] < 0;
+  }
+  REQUIRE(bracketed);
+  auto state_at = [&](double V) {
+    std::vector<double> ys = y_left;
+    if (V > V_left) ode.advance(V_left, V, ys);
+    return ys;
+  };
+  const double V_peak = gsl_brent(
+      [&](double V) {
+        std::vector<double> ys = state_at(V), d(3);
+        rhs(ys.data(), d.data());
+        return d[2];
+      },
+      V_left, V_left + V_end / N, 1e-12);
+  const double T_peak = state_at(V_peak)[2];
+  INFO("GSL peak " << T_peak << " K at V = " << V_peak << "; run_pfr T_max " << res.T_max);
+  CHECK(res.T_max == Approx(T_peak).epsilon(1e-6));
+  // The peak is a profile point (the stage stops on dT/dV = 0).
+  bool peak_in_profile = false;
+  for (const auto& p : res.profile)
+    if (p.T == res.T_max) peak_in_profile = std::abs(p.V - V_peak) < 1e-3 * V_end;
+  CHECK(peak_in_profile);
+  CHECK(res.T_min == inlet.T);
+}
+
+TEST_CASE("sizing to a target conversion round-trips", "[pfr]") {
+  const AdiabaticGas g = adiabatic_gas();
+  SunContext ctx;
+  const StageResult sized =
+      run_pfr(g.mech, target_spec(0.65, HeatMode::Adiabatic), g.inlet, g.basis, ctx, tight());
+  REQUIRE(sized.sized);
+  REQUIRE(sized.volume);
+  CHECK(sized.conversion == Approx(0.65).epsilon(1e-8));
+  const StageResult rated = run_pfr(g.mech, volume_spec(*sized.volume, HeatMode::Adiabatic),
+                                    g.inlet, g.basis, ctx, tight());
+  CHECK_FALSE(rated.sized);
+  CHECK(rated.conversion == Approx(0.65).epsilon(1e-8));
+  CHECK(rated.outlet.T == Approx(sized.outlet.T).epsilon(1e-9));
+}
+
+TEST_CASE("a target beyond adiabatic equilibrium is an input error naming the limit", "[pfr]") {
+  GslNoAbort no_abort;
+  // Gas A <=> B (exothermic, no mole change) with inert; K from van 't Hoff.
+  const double dH = -40e3, K_ref = 20, T_ref = 500, T0 = 500;
+  Reaction r = first_order("R", {-1, 1, 0}, 0, 2.0, 50e3, dH, 500.0);
+  r.reversible = true;
+  r.equilibrium.kind = EquilibriumSource::Kind::VantHoff;
+  r.equilibrium.K_ref = K_ref;
+  r.equilibrium.T_ref = T_ref;
+  r.equilibrium.dH = dH;
+  const Mechanism mech(Phase::Gas, {species("A", 35), species("B", 35), species("I", 35)}, {r});
+  const Stream inlet{T0, 2e5, {1.0, 0.0, 3.0}};
+  const ConversionBasis basis{0, 1.0};
+  // Adiabatic equilibrium, independently: X/(1-X) = K(T0 + (-dH) X / 140)
+  // (energy balance with constant cp, Q = F_B/F_A), solved by GSL Brent.
+  const double X_eq = gsl_brent(
+      [&](double X) {
+        const double T = T0 - dH * X / 140.0;
+        return std::log(X / (1 - X)) - (std::log(K_ref) - dH / kGasConstant * (1 / T - 1 / T_ref));
+      },
+      1e-9, 1 - 1e-9, 1e-13);
+  REQUIRE(X_eq > 0.3);
+  REQUIRE(X_eq < 0.8);
+  SunContext ctx;
+  bool thrown = false;
+  try {
+    run_pfr(mech, target_spec(0.9, HeatMode::Adiabatic), inlet, basis, ctx);
+  } catch (const InputError& e) {
+    thrown = true;
+    const std::string what = e.what();
+    INFO(what);
+    CHECK(what.rfind("case.yaml:12:5: error: ", 0) == 0);
+    CHECK(what.find("0.9000") != std::string::npos);
+    CHECK(what.find("the most this stage can reach") != std::string::npos);
+    const std::string key = "can reach is X = ";
+    const auto at = what.find(key);
+    REQUIRE(at != std::string::npos);
+    CHECK(std::stod(what.substr(at + key.size())) == Approx(X_eq).margin(1e-4));
+    CHECK(what.find("nan") == std::string::npos);
+  }
+  CHECK(thrown);
+  // A reachable target below the limit is met.
+  const StageResult ok =
+      run_pfr(mech, target_spec(0.5 * X_eq, HeatMode::Adiabatic), inlet, basis, ctx);
+  CHECK(ok.conversion == Approx(0.5 * X_eq).epsilon(1e-7));
+}
+
+TEST_CASE("per-catalyst rates need a bulk density and scale with it", "[pfr]") {
+  AdiabaticGas g = adiabatic_gas();
+  Reaction per_cat = g.mech.reactions()[0];
+  per_cat.rate.basis = RateBasis::Catalyst;
+  per_cat.rate.A = 0.8 / 750;  // per kg catalyst; 750 kg/m3 bed gives 0.8 per m3
+  const Mechanism cat(Phase::Gas, g.mech.species(), {per_cat});
+  SunContext ctx;
+  ReactorSpec spec = volume_spec(0.05, HeatMode::Adiabatic);
+  try {
+    run_pfr(cat, spec, g.inlet, g.basis, ctx);
+    FAIL("expected an InputError");
+  } catch (const InputError& e) {
+    const std::string what = e.what();
+    INFO(what);
+    CHECK(what.rfind("case.yaml:12:5: error: ", 0) == 0);
+    CHECK(what.find("bulk_density") != std::string::npos);
+  }
+  spec.bulk_density = 750;
+  const StageResult a = run_pfr(cat, spec, g.inlet, g.basis, ctx, tight());
+  const StageResult b =
+      run_pfr(g.mech, volume_spec(0.05, HeatMode::Adiabatic), g.inlet, g.basis, ctx, tight());
+  CHECK(a.conversion == Approx(b.conversion).epsilon(1e-8));
+  CHECK(*a.catalyst_mass == Approx(0.05 * 750).epsilon(1e-14));
+}
+
+// ---- CVODE wrapper ----------------------------------------------------------
+
+namespace {
+struct RhsBoom : std::runtime_error {
+  using std::runtime_error::runtime_error;
+};
+
+// y' = -k y, exact y = y0 exp(-k t).
+CvodeIntegrator decay(const SunContext& ctx, double k, CvodeOptions opt = {}) {
+  return CvodeIntegrator(
+      ctx, 1,
+      [k](double, const double* y, double* yd) {
+        yd[0] = -k * y[0];
+        return 0;
+      },
+      [k](double, const double*, const double*, double* J) {
+        J[0] = -k;
+        return 0;
+      },
+      opt, {1.0});
+}
+}  // namespace
+
+TEST_CASE("CVODE wrapper integrates y' = -k y to its tolerance", "[pfr]") {
+  SunContext ctx;
+  CvodeOptions opt;
+  opt.rtol = 1e-10;
+  opt.atol = 1e-14;
+  CvodeIntegrator ode = decay(ctx, 3.0, opt);
+  ode.init(0.0, {2.0});
+  ode.set_stop_time(1.5);
+  double t = 0;
+  std::vector<double> y;
+  CvodeIntegrator::Event ev;
+  do {
+    ev = ode.step(1.5, t, y);
+    CHECK(y[0] == Approx(2.0 * std::exp(-3.0 * t)).epsilon(1e-8));
+  } while (ev != CvodeIntegrator::Event::Stop);
+  CHECK(t == 1.5);
+  CHECK(ode.interpolate(1.5)[0] == Approx(y[0]).epsilon(1e-14));
+  CHECK(ode.stats().steps > 10);
+}
+
+TEST_CASE("CVODE wrapper moves cleanly", "[pfr]") {
+  SunContext ctx;
+  CvodeIntegrator a = decay(ctx, 1.0);
+  a.init(0.0, {1.0});
+  a.set_stop_time(1.0);
+  double t = 0;
+  std::vector<double> y;
+  a.step(1.0, t, y);
+  // Move construction: the callbacks must follow the object.
+  CvodeIntegrator b(std::move(a));
+  while (b.step(1.0, t, y) != CvodeIntegrator::Event::Stop) {
+  }
+  CHECK(y[0] == Approx(std::exp(-1.0)).epsilon(1e-6));
+  // Move assignment over a live integrator frees the old one.
+  CvodeIntegrator c = decay(ctx, 2.0);
+  c.init(0.0, {1.0});
+  c = std::move(b);
+  c.init(0.0, {1.0});
+  c.set_stop_time(0.5);
+  while (c.step(0.5, t, y) != CvodeIntegrator::Event::Stop) {
+  }
+  CHECK(y[0] == Approx(std::exp(-0.5)).epsilon(1e-6));
+  {
+    CvodeIntegrator d(std::move(c));
+  }  // moved-from a, b, c destruct at scope end without touching freed memory
+  SunContext moved(std::move(ctx));
+  CHECK(moved.get() != nullptr);
+  CHECK(ctx.get() == nullptr);
+}
+
+TEST_CASE("an exception inside the RHS surfaces from step()", "[pfr]") {
+  // cvode.hpp: exceptions thrown inside are caught at the C boundary and
+  // rethrown from step() (the same exception, not a translation).
+  SunContext ctx;
+  CvodeIntegrator ode(ctx, 1,
+                      [](double t, const double* y, double* yd) {
+                        if (t > 0.25) throw RhsBoom("boom at t > 0.25");
+                        yd[0] = -y[0];
+                        return 0;
+                      },
+                      nullptr, CvodeOptions{}, {1.0});
+  ode.init(0.0, {1.0});
+  double t = 0;
+  std::vector<double> y;
+  bool thrown = false;
+  try {
+    for (int i = 0; i < 100000; ++i) ode.step(10.0, t, y);
+  } catch (const RhsBoom& e) {
+    thrown = true;
+    CHECK(std::string(e.what()) == "boom at t > 0.25");
+  }
+  CHECK(thrown);
+  CHECK(t <= 0.25 + 1e-12);
+
+  // A plain failure code (no exception) is a SolverError.
+  CvodeIntegrator bad(ctx, 1,
+                      [](double t2, const double* y2, double* yd) {
+                        yd[0] = -y2[0];
+                        return t2 > 0.1 ? -1 : 0;
+                      },
+                      nullptr, CvodeOptions{}, {1.0});
+  bad.init(0.0, {1.0});
+  CHECK_THROWS_AS(
+      [&] {
+        for (int i = 0; i < 100000; ++i) bad.step(10.0, t, y);
+      }(),
+      SolverError);
+}
+
+TEST_CASE("CVODE wrapper enforces max_steps", "[pfr]") {
+  SunContext ctx;
+  CvodeOptions opt;
+  opt.max_steps = 20;
+  CvodeIntegrator ode = decay(ctx, 1.0, opt);
+  ode.init(0.0, {1.0});
+  ode.set_stop_time(1e6);
+  double t = 0;
+  std::vector<double> y;
+  try {
+    for (int i = 0; i < 1000; ++i)
+      if (ode.step(1e6, t, y) == CvodeIntegrator::Event::Stop) break;
+    FAIL("expected a SolverError after 20 steps");
+  } catch (const SolverError& e) {
+    INFO(e.what());
+    CHECK(std::string(e.what()).find("max_steps") != std::string::npos);
+  }
+}
+
+TEST_CASE("CvodeOptions::validate names the bad field", "[pfr]") {
+  CHECK(CvodeOptions{}.validate().empty());
+  CvodeOptions o;
+  o.rtol = 0;
+  CHECK(o.validate().find("rtol") != std::string::npos);
+  o = {};
+  o.rtol = std::nan("");
+  CHECK(o.validate().find("rtol") != std::string::npos);
+  o = {};
+  o.atol = -1;
+  CHECK(o.validate().find("atol") != std::string::npos);
+  o = {};
+  o.max_steps = 0;
+  CHECK(o.validate().find("max_steps") != std::string::npos);
+  o = {};
+  o.max_order = 6;
+  CHECK(o.validate().find("max_order") != std::string::npos);
+  o = {};
+  o.max_order = 0;
+  CHECK(o.validate().find("max_order") != std::string::npos);
+  // The integrator refuses bad options with that message.
+  SunContext ctx;
+  o = {};
+  o.atol = 0;
+  try {
+    decay(ctx, 1.0, o);
+    FAIL("expected bad options to be refused");
+  } catch (const std::exception& e) {
+    CHECK(std::string(e.what()).find("atol") != std::string::npos);
+  }
+}
