@@ -25,6 +25,7 @@
 
 #include "rxtrain/equation.hpp"
 #include "rxtrain/formula.hpp"
+#include "rxtrain/input_limits.hpp"
 #include "rxtrain/units.hpp"
 
 namespace rxtrain {
@@ -268,6 +269,8 @@ class Loader {
   void read_feed(const YAML::Node& node);
   void read_key(const YAML::Node& node);
   void read_train(const YAML::Node& list);
+  double read_train_target(const YAML::Node& node) const;
+  TemperatureLimits read_limits(const YAML::Node& node) const;
   StageSpec read_stage(const YAML::Node& node, std::size_t index);
   void check_energy_needs() const;
   void check_catalyst_basis() const;
@@ -1014,6 +1017,34 @@ StageSpec Loader::read_stage(const YAML::Node& node, std::size_t index) {
   return r;
 }
 
+// ---- train-level target and temperature limits --------------------------
+
+double Loader::read_train_target(const YAML::Node& node) const {
+  Fields t(*this, node, "target");
+  t.check({"conversion"});
+  const YAML::Node& x =
+      t.need("conversion", "the overall key conversion the train should reach, e.g. 0.92");
+  const double X = number(x, "target conversion");
+  if (!(X > 0 && X < 1))
+    fail(x, fmt::format("target conversion must lie strictly between 0 and 1, got {:g}", X));
+  return X;
+}
+
+TemperatureLimits Loader::read_limits(const YAML::Node& node) const {
+  Fields f(*this, node, "limits");
+  f.check({"T_max", "T_in_min"});
+  TemperatureLimits lim;
+  lim.where = at(node);
+  if (const auto* n = f.find("T_max")) lim.T_max = temperature(*n, "T_max of limits");
+  if (const auto* n = f.find("T_in_min")) lim.T_in_min = temperature(*n, "T_in_min of limits");
+  if (lim.T_max && lim.T_in_min && !(*lim.T_in_min < *lim.T_max))
+    fail(*f.find("T_in_min"),
+         fmt::format("T_in_min of limits ({:.2f} K) must be below T_max ({:.2f} K): T_in_min is "
+                     "the lowest useful bed inlet temperature, T_max the highest allowed in a bed",
+                     *lim.T_in_min, *lim.T_max));
+  return lim;
+}
+
 // Adiabatic reactors and exchangers close an energy balance, which needs
 // cp of every species; an all-isothermal train does not.
 void Loader::check_energy_needs() const {
@@ -1093,7 +1124,7 @@ Case Loader::load(const YAML::Node& root) {
                      "empty case file; expected a mapping with title, species, "
                      "reactions, feed, key and train");
   Fields top(*this, root, "the case");
-  top.check({"title", "phase", "species", "reactions", "feed", "key", "train"});
+  top.check({"title", "phase", "species", "reactions", "feed", "key", "train", "target", "limits"});
   Case c;
   c.file = file_;
   c.title = file_;
@@ -1106,6 +1137,13 @@ Case Loader::load(const YAML::Node& root) {
   read_feed(top.need("feed", "the feed: T, P and flow with composition, or flows"));
   read_key(top.need("key", "the key reactant, e.g. key: NC5"));
   read_train(top.need("train", "the list of stages"));
+  c.target_where = {file_, 0, 0};
+  if (const auto* n = top.find("target")) {
+    c.target_conversion = read_train_target(*n);
+    c.target_where = at(*n);
+  }
+  c.limits.where = {file_, 0, 0};
+  if (const auto* n = top.find("limits")) c.limits = read_limits(*n);
   check_energy_needs();
   check_catalyst_basis();
 
@@ -1133,10 +1171,7 @@ Case Loader::load(const YAML::Node& root) {
 
 Case load_case_from_string(const std::string& text, const std::string& name,
                            const UnitParser& units) {
-  if (text.size() > kMaxFileBytes)
-    throw InputError({name, 0, 0}, fmt::format("case file is {} bytes; the limit is {} bytes "
-                                               "(10 MiB)",
-                                               text.size(), kMaxFileBytes));
+  check_text_limits(text, name, {kMaxFileBytes});  // size, UTF-8, depth: before yaml-cpp
   std::vector<YAML::Node> docs;
   try {
     docs = YAML::LoadAll(text);
@@ -1148,6 +1183,7 @@ Case load_case_from_string(const std::string& text, const std::string& name,
   if (docs.size() > 1)
     throw InputError({name, docs[1].Mark().line + 1, docs[1].Mark().column + 1},
                      "a case file holds one YAML document; found a second one");
+  if (!docs.empty()) check_node_count(docs[0], name);  // aliases: before any walk of the tree
   Loader loader(name, units);
   try {
     return loader.load(docs.empty() ? YAML::Node() : docs[0]);

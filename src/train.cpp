@@ -1,10 +1,64 @@
 #include "rxtrain/train.hpp"
 
+#include <fmt/format.h>
+
+#include <algorithm>
 #include <type_traits>
 
 #include "rxtrain/stages/exchanger.hpp"
 
 namespace rxtrain {
+
+namespace {
+
+// Equilibrium views are a reading aid: a failure to compute one is a
+// warning in the result, never a failed run.
+void add_equilibrium_views(const Case& c, const TrainOptions& options, TrainResult& result) {
+  const Mechanism& mech = c.mechanism;
+  if (!has_reversible_reaction(mech)) return;
+  const ConversionBasis basis = c.conversion_basis();
+  double T_lo = c.feed.T, T_hi = c.feed.T;
+  for (auto& r : result.stages) {
+    T_lo = std::min({T_lo, r.T_min, r.inlet.T, r.outlet.T});
+    T_hi = std::max({T_hi, r.T_max, r.inlet.T, r.outlet.T});
+    if (r.kind == StageKind::Exchanger || !r.heat) continue;
+    try {
+      r.equilibrium = equilibrium_record(mech, r.inlet, r.outlet, *r.heat, basis,
+                                         options.equilibrium);
+      if (r.equilibrium) {
+        T_lo = std::min(T_lo, r.equilibrium->T_ad_eq);
+        T_hi = std::max(T_hi, r.equilibrium->T_ad_eq);
+      }
+    } catch (const std::exception& e) {
+      result.warnings.push_back(
+          fmt::format("stage {}: equilibrium record not computed: {}", r.id, e.what()));
+    }
+  }
+  // A margin around what the train spans, so the curve frames the paths.
+  const double margin = std::max(20.0, 0.1 * (T_hi - T_lo));
+  T_lo = std::max(options.equilibrium.T_min, T_lo - margin);
+  T_hi = std::min(options.equilibrium.T_max, T_hi + margin);
+  const int n = std::max(2, options.curve_points);
+  try {
+    result.equilibrium_curve = equilibrium_curve(mech, c.feed, basis,
+                                                 {T_lo, T_hi, (T_hi - T_lo) / (n - 1)}, {},
+                                                 options.equilibrium);
+    double X_hi = basis.conversion(c.feed);
+    for (const auto& p : result.equilibrium_curve) X_hi = std::max(X_hi, p.X_eq);
+    const double X_lo = basis.conversion(c.feed);
+    if (X_hi > X_lo) {
+      // Stop short of the curve's top, where T_opt runs off the window.
+      const double span = X_hi - X_lo;
+      for (auto& p : max_rate_locus(mech, c.feed, basis, X_lo + 0.01 * span, X_hi - 0.01 * span,
+                                    n, T_lo, T_hi, options.equilibrium))
+        if (p.interior) result.max_rate_locus.push_back(p);
+    }
+  } catch (const std::exception& e) {
+    result.warnings.push_back(fmt::format("equilibrium curve not computed: {}", e.what()));
+  }
+}
+
+}  // namespace
 
 TrainResult run_train(const Case& c, const TrainOptions& options) {
   const Mechanism& mech = c.mechanism;
@@ -38,6 +92,7 @@ TrainResult run_train(const Case& c, const TrainOptions& options) {
   }
   result.outlet = stream;
   result.conversion = basis.conversion(stream);
+  if (options.equilibrium_views) add_equilibrium_views(c, options, result);
   return result;
 }
 

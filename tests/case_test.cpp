@@ -352,7 +352,7 @@ TEST_CASE("an unknown key names the nearest valid key", "[case]") {
   const InputError far = load_error(edit(kCase, "phase: gas", "colour: blue"), units);
   CHECK(far.message() ==
         "unknown key \"colour\" in the case; valid keys: title, phase, species, reactions, feed, "
-        "key, train");
+        "key, train, target, limits");
   CHECK(far.where().line == 2);
   CHECK(far.where().column == 1);
 }
@@ -508,4 +508,68 @@ TEST_CASE("the example in docs/case-format.md loads", "[case]") {
   CHECK(c.mechanism.n_species() == 2);
   CHECK(c.train.size() == 4);
   CHECK(c.warnings.empty());
+}
+
+TEST_CASE("train-level target and temperature limits load in SI", "[case]") {
+  const UnitParser units;
+  const std::string text =
+      kCase + "target: {conversion: 0.92}\nlimits: {T_max: 480 degC, T_in_min: 250 degF}\n";
+  const Case c = load_case_from_string(text, "t.yaml", units);
+  REQUIRE(c.target_conversion.has_value());
+  CHECK(*c.target_conversion == 0.92);
+  CHECK(c.target_where.line == 50);
+  // 480 degC = 753.15 K; 250 degF = (250 + 459.67) / 1.8 K (NIST SP 811,
+  // reference-data.md section 7).
+  CHECK(c.limits.T_max.value() == Approx(753.15).epsilon(1e-12));
+  CHECK(c.limits.T_in_min.value() == Approx((250 + 459.67) / 1.8).epsilon(1e-12));
+  CHECK(c.limits.where.line == 51);
+
+  // Both are optional, and so is each limit.
+  const Case plain = load_case_from_string(kCase, "t.yaml", units);
+  CHECK_FALSE(plain.target_conversion.has_value());
+  CHECK_FALSE(plain.limits.T_max.has_value());
+  CHECK_FALSE(plain.limits.T_in_min.has_value());
+  const Case only_max =
+      load_case_from_string(kCase + "limits: {T_max: 480 degC}\n", "t.yaml", units);
+  CHECK(only_max.limits.T_max.has_value());
+  CHECK_FALSE(only_max.limits.T_in_min.has_value());
+}
+
+TEST_CASE("train-level target and limits are validated where they are written", "[case]") {
+  const UnitParser units;
+  {
+    const InputError e = load_error(kCase + "target: {conversion: 0}\n", units);
+    CHECK(e.where().line == 50);
+    CHECK_THAT(e.message(), Catch::Contains("strictly between 0 and 1, got 0"));
+  }
+  {
+    const InputError e = load_error(kCase + "target: {conversoin: 0.9}\n", units);
+    CHECK(e.where().line == 50);
+    CHECK_THAT(e.message(), Catch::Contains("did you mean \"conversion\""));
+  }
+  {
+    const InputError e = load_error(kCase + "limits: {Tmax: 480 degC}\n", units);
+    CHECK(e.where().line == 50);
+    CHECK_THAT(e.message(),
+               Catch::Contains("unknown key \"Tmax\" in limits; did you mean \"T_max\""));
+  }
+  {
+    const InputError e =
+        load_error(kCase + "limits: {T_max: 480 degC, T_in_min: 500 degC}\n", units);
+    CHECK(e.where().line == 50);
+    CHECK(e.where().column == 37);  // at the T_in_min value
+    CHECK_THAT(e.message(), Catch::Contains("must be below T_max"));
+  }
+  {
+    const InputError e = load_error(kCase + "limits: {T_max: 5 bar}\n", units);
+    CHECK_THAT(e.message(), Catch::Contains("T_max of limits needs a temperature (K)"));
+  }
+  {
+    const InputError e = load_error(kCase + "limits: 480 degC\n", units);
+    CHECK_THAT(e.message(), Catch::Contains("limits needs a mapping"));
+  }
+  {
+    const InputError e = load_error(kCase + "targte: {conversion: 0.9}\n", units);
+    CHECK_THAT(e.message(), Catch::Contains("did you mean \"target\""));
+  }
 }

@@ -407,7 +407,26 @@ TEST_CASE("sizing to a target conversion round-trips", "[pfr]") {
   CHECK(rated.outlet.T == Approx(sized.outlet.T).epsilon(1e-9));
 }
 
-TEST_CASE("a target beyond adiabatic equilibrium is an input error naming the limit", "[pfr]") {
+TEST_CASE("isothermal sizing matches the analytic first-order volume", "[pfr]") {
+  // Liquid first order at constant v: V = (v0 / k) ln(1 / (1 - X)) (analytic).
+  Reaction r = first_order("R", {-1, 1, 0}, 0, 2.0e-3, 55e3, -30e3, 340.0);
+  const Mechanism mech(
+      Phase::Liquid,
+      {species("A", 150, 0.1, 900), species("B", 160, 0.1, 900), species("S", 75, 0.018, 1000)},
+      {r});
+  const Stream inlet{340, 3e5, {2.0, 0.0, 30.0}};
+  const ConversionBasis basis{0, 2.0};
+  const double v0 = 2.0 * 0.1 / 900 + 30 * 0.018 / 1000;
+  SunContext ctx;
+  const StageResult res =
+      run_pfr(mech, target_spec(0.65, HeatMode::Isothermal), inlet, basis, ctx, tight());
+  REQUIRE(res.sized);
+  CHECK(*res.volume == Approx(v0 / 2.0e-3 * std::log(1 / 0.35)).epsilon(1e-8));
+  CHECK(res.conversion == Approx(0.65).epsilon(1e-8));
+  CHECK(res.T_max == 340);
+}
+
+TEST_CASE("a target beyond adiabatic equilibrium is infeasible, naming the limit", "[pfr]") {
   GslNoAbort no_abort;
   // Gas A <=> B (exothermic, no mole change) with inert; K from van 't Hoff.
   const double dH = -40e3, K_ref = 20, T_ref = 500, T0 = 500;
@@ -434,7 +453,7 @@ TEST_CASE("a target beyond adiabatic equilibrium is an input error naming the li
   bool thrown = false;
   try {
     run_pfr(mech, target_spec(0.9, HeatMode::Adiabatic), inlet, basis, ctx);
-  } catch (const InputError& e) {
+  } catch (const InfeasibleError& e) {
     thrown = true;
     const std::string what = e.what();
     INFO(what);
@@ -448,6 +467,10 @@ TEST_CASE("a target beyond adiabatic equilibrium is an input error naming the li
     CHECK(what.find("nan") == std::string::npos);
   }
   CHECK(thrown);
+  // adiabatic_limit: the bed of unlimited size ends at the same point.
+  const Stream lim = adiabatic_limit(mech, {1.0}, inlet, HeatMode::Adiabatic, ctx);
+  CHECK(basis.conversion(lim) == Approx(X_eq).epsilon(1e-6));
+  CHECK(lim.T == Approx(T0 - dH * X_eq / 140.0).epsilon(1e-8));
   // A reachable target below the limit is met.
   const StageResult ok =
       run_pfr(mech, target_spec(0.5 * X_eq, HeatMode::Adiabatic), inlet, basis, ctx);
@@ -640,4 +663,54 @@ TEST_CASE("CvodeOptions::validate names the bad field", "[pfr]") {
   } catch (const std::exception& e) {
     CHECK(std::string(e.what()).find("atol") != std::string::npos);
   }
+}
+
+TEST_CASE("a stop temperature ends an adiabatic bed where T reaches it", "[pfr]") {
+  // Constant cp, one reaction, dCp = 0: T - T0 = (-dH) X / sum Theta_i cp_i
+  // (standard adiabatic relation), so T reaches T_stop at
+  // X_stop = (T_stop - T0) sum Theta_i cp_i / (-dH).
+  const AdiabaticGas g = adiabatic_gas();
+  SunContext ctx;
+  const double v0 = g.mech.volumetric_flow(g.inlet.T, g.inlet.P, g.inlet.F.data());
+  const double T_stop = 600.0;
+  const double X_stop = (T_stop - g.inlet.T) * g.sum_theta_cp / -g.dH;
+  PfrOptions o = tight();
+  o.stop_temperature = T_stop;
+
+  // A fixed bed long enough to pass T_stop (it reaches X > 0.5 without it).
+  const StageResult cut =
+      run_pfr(g.mech, volume_spec(3.0 * v0, HeatMode::Adiabatic), g.inlet, g.basis, ctx, o);
+  CHECK(cut.outlet.T == Approx(T_stop).epsilon(1e-9));
+  CHECK(cut.conversion == Approx(X_stop).epsilon(1e-7));
+  CHECK(*cut.volume < 3.0 * v0);
+  CHECK(cut.T_max <= T_stop * (1 + 1e-9));
+  CHECK_THAT(cut.stats.message, Catch::Contains("stop temperature"));
+  // The same point found by sizing to X_stop without a stop temperature.
+  const StageResult sized =
+      run_pfr(g.mech, target_spec(X_stop, HeatMode::Adiabatic), g.inlet, g.basis, ctx, tight());
+  CHECK(*cut.volume == Approx(*sized.volume).epsilon(1e-6));
+
+  // Sizing past the stop temperature ends there without error.
+  const StageResult short_of_target =
+      run_pfr(g.mech, target_spec(0.6, HeatMode::Adiabatic), g.inlet, g.basis, ctx, o);
+  CHECK(short_of_target.conversion == Approx(X_stop).epsilon(1e-7));
+
+  // An inlet already at, or past, the stop temperature on the side T moves
+  // to (T rising): the bed ends at V = 0.
+  for (const double T_past : {g.inlet.T, 450.0}) {
+    PfrOptions at_inlet = tight();
+    at_inlet.stop_temperature = T_past;
+    const StageResult none = run_pfr(g.mech, volume_spec(3.0 * v0, HeatMode::Adiabatic), g.inlet,
+                                     g.basis, ctx, at_inlet);
+    CHECK(*none.volume == 0.0);
+    CHECK(none.conversion == 0.0);
+  }
+
+  // A stop temperature the bed never reaches leaves it whole.
+  PfrOptions above = tight();
+  above.stop_temperature = 2000.0;
+  const StageResult full =
+      run_pfr(g.mech, volume_spec(3.0 * v0, HeatMode::Adiabatic), g.inlet, g.basis, ctx, above);
+  CHECK(*full.volume == Approx(3.0 * v0).epsilon(1e-12));
+  CHECK(full.conversion > 0.5);
 }

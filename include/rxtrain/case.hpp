@@ -44,6 +44,16 @@ using StageSpec = std::variant<ReactorSpec, ExchangerSpec>;
 
 const std::string& stage_id(const StageSpec& s);
 
+// The catalyst's temperature window (top-level `limits`), both optional:
+// T_max is the highest temperature allowed anywhere in a bed, T_in_min the
+// lowest useful bed inlet temperature. When both are given, T_in_min <
+// T_max. Read by `rxtrain staging` and the design checks.
+struct TemperatureLimits {
+  std::optional<double> T_max;     // K
+  std::optional<double> T_in_min;  // K
+  SourceLocation where;            // the `limits` entry; file only when absent
+};
+
 struct Case {
   std::string title;
   std::string file;          // path as given
@@ -52,6 +62,11 @@ struct Case {
   int key = 0;
   std::vector<StageSpec> train;
   std::vector<std::string> warnings;  // non-fatal findings of the loader
+  // Train-level target (top-level `target: {conversion: X}`), 0 < X < 1:
+  // the overall key conversion the whole train should reach.
+  std::optional<double> target_conversion;
+  SourceLocation target_where;  // the `target` entry; file only when absent
+  TemperatureLimits limits;
 
   ConversionBasis conversion_basis() const { return {key, feed.F[key]}; }
 };

@@ -15,6 +15,13 @@ namespace rxtrain {
 struct TrainOptions {
   PfrOptions pfr;    // tubular stages (CVODE tolerances, sizing limit)
   CstrOptions cstr;  // stirred tanks (Newton, starts)
+  // Compute each stage's equilibrium record, the equilibrium curve and the
+  // maximum-rate locus when a reversible reaction exists. Off for callers
+  // that run a train many times and need only its outlet.
+  bool equilibrium_views = true;
+  EquilibriumOptions equilibrium;
+  // Points of the equilibrium curve and of the maximum-rate locus.
+  int curve_points = 61;
 };
 
 struct TrainResult {
@@ -26,6 +33,11 @@ struct TrainResult {
   Stream outlet;                     // outlet of the last stage
   double conversion = 0;             // overall key conversion at the outlet
   std::vector<std::string> warnings; // loader and stage warnings, in order
+  // X_eq(T) at the feed's composition and pressure over the temperatures
+  // the train spans, and T_opt(X) of the key reaction where it is
+  // reversible and exothermic; empty without a reversible reaction.
+  std::vector<EquilibriumCurvePoint> equilibrium_curve;
+  std::vector<MaxRatePoint> max_rate_locus;
 };
 
 // Runs every stage of the case in order. Throws SolverError (naming the

@@ -1,12 +1,18 @@
 // rxtrain run CASE [--json PATH] [--csv DIR]
 #include <cstdio>
+#include <fstream>
+#include <iterator>
 #include <memory>
 #include <string>
 
 #include "commands.hpp"
 #include "rxtrain/case.hpp"
 #include "rxtrain/report/atomic_file.hpp"
+#include "rxtrain/levenspiel.hpp"
 #include "rxtrain/report/csv.hpp"
+#include "rxtrain/report/figures.hpp"
+#include "rxtrain/report/html.hpp"
+#include "rxtrain/report/sha256.hpp"
 #include "rxtrain/report/json.hpp"
 #include "rxtrain/report/table.hpp"
 #include "rxtrain/train.hpp"
@@ -20,6 +26,7 @@ struct RunOptions {
   std::string case_file;
   std::string json_path;
   std::string csv_dir;
+  std::string report_dir;
   double rtol = CvodeOptions{}.rtol;
 };
 
@@ -34,10 +41,23 @@ int run(const RunOptions& o) {
   // Every output is rendered before any is written, and all are renamed
   // into place together: a failure leaves no half-written file behind.
   OutputSet out;
+  out.protect(o.case_file);  // the case file is never an output
   if (!o.json_path.empty()) out.add(o.json_path, json_text(result));
   if (!o.csv_dir.empty()) {
     out.add(std::filesystem::path(o.csv_dir) / "stages.csv", stages_csv(result));
     out.add(std::filesystem::path(o.csv_dir) / "profiles.csv", profiles_csv(result));
+    out.add(std::filesystem::path(o.csv_dir) / "paths.csv", paths_csv(result));
+  }
+  if (!o.report_dir.empty()) {
+    const auto curves = levenspiel_curves(c.mechanism, c.key, c.feed.F[c.key], result.stages);
+    const auto figures = run_figures(c, result, curves);
+    std::ifstream in(o.case_file, std::ios::binary);
+    const std::string bytes((std::istreambuf_iterator<char>(in)), std::istreambuf_iterator<char>());
+    const ReportProvenance provenance{o.case_file, sha256_hex(bytes), utc_date_today(),
+                                      RXTRAIN_VERSION};
+    const std::filesystem::path dir(o.report_dir);
+    out.add(dir / "report.html", run_report_html(c, result, figures, provenance));
+    for (const auto& f : figures) out.add(dir / (f.name + ".svg"), f.chart.render());
   }
   out.commit();
   std::fputs(format_stage_table(result).c_str(), stdout);
@@ -50,7 +70,10 @@ Action setup_run(CLI::App& app) {
   auto o = std::make_shared<RunOptions>();
   app.add_option("case", o->case_file, "Case file (YAML)")->required();
   app.add_option("--json", o->json_path, "Write the whole result as JSON (SI units) to PATH");
-  app.add_option("--csv", o->csv_dir, "Write stages.csv and profiles.csv into folder DIR");
+  app.add_option("--csv", o->csv_dir, "Write stages.csv, profiles.csv and paths.csv into folder DIR");
+  app.add_option("--report", o->report_dir,
+                 "Write report.html (self-contained, with figures) and the figures as SVG into "
+                 "folder DIR");
   app.add_option("--rtol", o->rtol, "Relative tolerance of the ODE integrator")
       ->check(CLI::Range(1e-14, 1e-3))
       ->capture_default_str();

@@ -28,6 +28,12 @@ constexpr CommandEntry kCommands[] = {
      rxtrain::cli::setup_run},
     {"check", "Validate a case file (units, equations, element balances) without running it",
      rxtrain::cli::setup_check},
+    {"thermo", "Tabulate K(T), dH_r(T) and dG0(T) of every reaction over a temperature range",
+     rxtrain::cli::setup_thermo},
+    {"staging",
+     "Interstage-cooling check: can the train reach its target within the catalyst's "
+     "temperature limits, and how many adiabatic beds with intercoolers does it take",
+     rxtrain::cli::setup_staging},
 };
 
 }  // namespace

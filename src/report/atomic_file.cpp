@@ -7,7 +7,22 @@
 #include <fstream>
 #include <system_error>
 
+#include "rxtrain/error.hpp"
+
 namespace rxtrain {
+
+bool same_file(const std::filesystem::path& a, const std::filesystem::path& b) {
+  std::error_code ec;
+  if (std::filesystem::exists(a, ec) && std::filesystem::exists(b, ec)) {
+    const bool same = std::filesystem::equivalent(a, b, ec);
+    if (!ec) return same;
+  }
+  const auto na = std::filesystem::weakly_canonical(a, ec);
+  if (ec) return a.lexically_normal() == b.lexically_normal();
+  const auto nb = std::filesystem::weakly_canonical(b, ec);
+  if (ec) return a.lexically_normal() == b.lexically_normal();
+  return na == nb;
+}
 
 OutputSet::~OutputSet() {
   for (const auto& p : pending_) {
@@ -17,6 +32,12 @@ OutputSet::~OutputSet() {
 }
 
 void OutputSet::add(const std::filesystem::path& path, const std::string& content) {
+  for (const auto& input : protected_)
+    if (same_file(path, input))
+      throw InputError({input.string(), 0, 0},
+                       "output path " + path.string() +
+                           " is the case file itself; choose another output path (the case "
+                           "file is never written to)");
   std::error_code ec;
   const auto parent = path.parent_path();
   if (!parent.empty()) {

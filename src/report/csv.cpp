@@ -57,4 +57,15 @@ std::string profiles_csv(const TrainResult& result) {
   return out;
 }
 
+std::string paths_csv(const TrainResult& result) {
+  std::string out = "curve,stage,T_K,conversion\n";
+  for (const auto& r : result.stages)
+    for (const auto& p : r.profile) out += fmt::format("path,{},{},{}\n", r.id, cell(p.T), cell(p.X));
+  for (const auto& p : result.equilibrium_curve)
+    out += fmt::format("equilibrium,,{},{}\n", cell(p.T), cell(p.X_eq));
+  for (const auto& p : result.max_rate_locus)
+    out += fmt::format("max_rate,,{},{}\n", cell(p.T), cell(p.X));
+  return out;
+}
+
 }  // namespace rxtrain

@@ -84,6 +84,19 @@ json stage(const std::vector<std::string>& ids, const StageResult& r) {
                  {"error_test_fails", r.stats.error_test_fails},
                  {"message", r.stats.message}};
   s["warnings"] = r.warnings;
+  if (r.equilibrium) {
+    const auto& e = *r.equilibrium;
+    s["equilibrium"] = {{"X_ad_eq", number(e.X_ad_eq)},
+                        {"T_ad_eq", number(e.T_ad_eq)},
+                        {"X_eq_out", number(e.X_eq_out)},
+                        {"approach_X", number(e.approach_X)},
+                        {"approach_T", number(e.approach_T)}};
+  } else {
+    s["equilibrium"] = nullptr;
+  }
+  json path = json::array();
+  for (const auto& p : r.profile) path.push_back({{"T", number(p.T)}, {"X", number(p.X)}});
+  s["path"] = path;
   return s;
 }
 
@@ -100,6 +113,14 @@ nlohmann::json to_json(const TrainResult& result) {
   for (const auto& r : result.stages) stages.push_back(stage(result.species, r));
   j["stages"] = stages;
   j["outlet"] = stream(result.species, result.outlet);
+  json curve = json::array();
+  for (const auto& p : result.equilibrium_curve)
+    curve.push_back({{"T", number(p.T)}, {"X_eq", number(p.X_eq)}});
+  j["equilibrium_curve"] = curve;
+  json locus = json::array();
+  for (const auto& p : result.max_rate_locus)
+    locus.push_back({{"X", number(p.X)}, {"T_opt", number(p.T)}});
+  j["max_rate_locus"] = locus;
   j["warnings"] = result.warnings;
   j["caution"] = kCaution;
   return j;

@@ -73,7 +73,7 @@ std::string format_stage_table(const TrainResult& result) {
 
   std::vector<std::vector<std::string>> rows;
   rows.push_back({"stage", "type", "heat", "V m3", "cat kg", "tau s", "T in °C", "T out °C",
-                  "T max °C", "X out", "duty kW"});
+                  "T max °C", "X out", "X eq-X", "T eq-T K", "duty kW"});
   bool any_sized = false;
   for (const auto& r : result.stages) {
     std::string heat = "-";
@@ -85,10 +85,24 @@ std::string format_stage_table(const TrainResult& result) {
     }
     rows.push_back({r.id, kind_name(r.kind), heat, V, fixed(r.catalyst_mass, 1), sig(r.space_time),
                     celsius(r.inlet.T), celsius(r.outlet.T), celsius(r.T_max),
-                    fixed(r.conversion, 4), fixed(r.duty / 1e3, 2)});
+                    fixed(r.conversion, 4),
+                    r.equilibrium ? fixed(r.equilibrium->approach_X, 4) : "-",
+                    r.equilibrium ? fixed(r.equilibrium->approach_T, 2) : "-",
+                    fixed(r.duty / 1e3, 2)});
   }
   out += render(rows, 3);
   if (any_sized) out += "* volume found from the stage's target conversion\n";
+  bool any_eq = false;
+  for (const auto& r : result.stages) any_eq = any_eq || r.equilibrium.has_value();
+  if (any_eq) {
+    out += "X eq-X, T eq-T: approach to equilibrium at the outlet (X_eq(T_out) - X_out; the "
+           "temperature at which X_out is equilibrium, minus T_out)\n";
+    for (const auto& r : result.stages)
+      if (r.equilibrium)
+        out += fmt::format("  {}: the most this stage can reach at any size is X = {} at {} °C\n",
+                           r.id, fixed(r.equilibrium->X_ad_eq, 4),
+                           celsius(r.equilibrium->T_ad_eq));
+  }
 
   // Space velocities only where they apply (GHSV at 0 °C, 1 atm).
   std::vector<std::vector<std::string>> sv;

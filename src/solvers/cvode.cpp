@@ -6,7 +6,9 @@
 #include <sunlinsol/sunlinsol_dense.h>
 #include <sunmatrix/sunmatrix_dense.h>
 
+#include <cstdlib>
 #include <cstring>
+#include <memory>
 #include <stdexcept>
 #include <string>
 
@@ -126,7 +128,10 @@ struct CvodeIntegrator::Impl {
       std::rethrow_exception(e);
     }
     if (flag < 0) {
-      std::string msg = std::string(what) + " failed (" + CVodeGetReturnFlagName(flag) + ")";
+      // CVodeGetReturnFlagName hands over a malloc'ed string.
+      const std::unique_ptr<char, decltype(&std::free)> name(CVodeGetReturnFlagName(flag),
+                                                             &std::free);
+      std::string msg = std::string(what) + " failed (" + (name ? name.get() : "?") + ")";
       if (!last_error.empty()) msg += ": " + last_error;
       throw SolverError(msg);
     }

@@ -584,7 +584,9 @@ StageResult run_cstr(const Mechanism& mech, const ReactorSpec& spec, const Strea
                             options.continuation_steps, fallbacks, reached);
       if (!m.ok)
         throw SolverError(
-            fmt::format("{}: sizing by continuation in volume failed ({})", spec.id, m.message));
+            fmt::format("{}: sizing by continuation in volume failed ({}); try: a lower target "
+                        "conversion, a different feed temperature, or give a volume to rate",
+                        spec.id, m.message));
       if (!reached(m.state)) throw_out_of_reach(mech, spec, beta, inlet, basis, ctx, options, X_t);
       // Start from the point interpolated linearly in X inside the bracket.
       const double X0 = basis.conversion(m.previous.F.data());
@@ -616,7 +618,8 @@ StageResult run_cstr(const Mechanism& mech, const ReactorSpec& spec, const Strea
         if (!o.converged)
           throw SolverError(fmt::format(
               "{}: Newton did not converge when sizing for X = {:.4f} (between V = {:.6g} and "
-              "{:.6g} m3)",
+              "{:.6g} m3); try: a slightly different target conversion, or rate a given volume "
+              "instead",
               spec.id, X_t, V_lo, m.V));
       }
       out = o.state;
@@ -654,8 +657,11 @@ StageResult run_cstr(const Mechanism& mech, const ReactorSpec& spec, const Strea
                                    spec.id));
     Rating r = rate_tank(mech, spec.heat, beta, inlet, V, ctx, options, solver, extra);
     if (r.states.empty())
-      throw SolverError(
-          fmt::format("{}: Newton did not converge from any start ({})", spec.id, r.message));
+      throw SolverError(fmt::format(
+          "{} at V = {:.6g} m3: Newton did not converge from any start ({}); try: check the "
+          "units and size of A and Ea, change the feed temperature or the volume, or model the "
+          "stage as a pfr",
+          spec.id, V, r.message));
     states = r.states;
     // The reported outlet is the state reached by continuation from V -> 0:
     // a tank filled and started up from the feed side follows that branch,

@@ -176,11 +176,16 @@ StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream
   const bool track_T = spec.heat == HeatMode::Adiabatic;
   const int i_T = track_T ? 0 : -1;
   const int i_target = sizing ? (track_T ? 1 : 0) : -1;
-  const int n_roots = (track_T ? 1 : 0) + (sizing ? 1 : 0);
+  // The stop temperature only matters where T moves.
+  const bool stop_at_T = track_T && options.stop_temperature.has_value();
+  const double T_stop = stop_at_T ? *options.stop_temperature : 0.0;
+  const int i_stop = stop_at_T ? (sizing ? 2 : 1) : -1;
+  const int n_roots = (track_T ? 1 : 0) + (sizing ? 1 : 0) + (stop_at_T ? 1 : 0);
   std::vector<double> ydot(sys.size());
   std::vector<int> directions;
   if (track_T) directions.push_back(0);
   if (sizing) directions.push_back(1);
+  if (stop_at_T) directions.push_back(0);
   if (n_roots > 0) {
     ode.set_roots(
         n_roots,
@@ -195,6 +200,7 @@ StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream
             g[i_T] = ydot[n] != 0 ? ydot[n] : std::numeric_limits<double>::min();
           }
           if (sizing) g[i_target] = basis.conversion(y) - X_target;
+          if (stop_at_T) g[i_stop] = y[n] - T_stop;
           return 0;
         },
         directions);
@@ -212,26 +218,41 @@ StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream
   record(0.0, y);
   double V = 0;
   bool reached = false;
-  for (;;) {
+  bool stopped = false;
+  if (stop_at_T) {
+    // A root at the inlet itself is not reported by CVODE: an inlet at or
+    // past the stop temperature, on the side T moves to, ends the stage here.
+    if (sys.rhs(y.data(), ydot.data()) == 0 &&
+        ((ydot[n] > 0 && inlet.T >= T_stop) || (ydot[n] < 0 && inlet.T <= T_stop)))
+      stopped = true;
+  }
+  while (!stopped) {
     CvodeIntegrator::Event ev;
     try {
       ev = ode.step(V_end, V, y);
     } catch (const SolverError& e) {
-      throw SolverError(fmt::format("{} at V = {:.6g} m3: {}", spec.id, V, e.what()));
+      throw SolverError(fmt::format(
+          "{} at V = {:.6g} m3 (of {:.6g} m3): {}; try: check the units and size of A and Ea "
+          "(a rate far too fast or too slow), split the stage at that volume, or loosen --rtol",
+          spec.id, V, V_end, e.what()));
     }
     record(V, y);
     if (ev == CvodeIntegrator::Event::Stop) break;
-    if (ev == CvodeIntegrator::Event::Root && sizing) {
+    if (ev == CvodeIntegrator::Event::Root && (sizing || stop_at_T)) {
       const auto found = ode.roots_found();
-      if (found[i_target] != 0) {
+      if (sizing && found[i_target] != 0) {
         reached = true;
+        break;
+      }
+      if (stop_at_T && found[i_stop] != 0) {
+        stopped = true;
         break;
       }
     }
   }
-  if (sizing && !reached) {
+  if (sizing && !reached && !stopped) {
     const auto& last = res.profile.back();
-    throw InputError(
+    throw InfeasibleError(
         spec.where,
         fmt::format("stage {}: target conversion {:.4f} is out of reach; the most this stage "
                     "can reach is X = {:.4f} (at T = {:.2f} K, the {} limit)",
@@ -252,6 +273,9 @@ StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream
     res.T_min = std::min(res.T_min, p.T);
   }
   res.stats = ode.stats();
+  if (stopped)
+    res.stats.message =
+        fmt::format("stopped at the stop temperature {:.2f} K at V = {:.6g} m3", T_stop, V);
   add_space_velocities(mech, res);
   return res;
 }

@@ -29,6 +29,9 @@ class OutputSet {
   OutputSet(const OutputSet&) = delete;
   OutputSet& operator=(const OutputSet&) = delete;
 
+  // Marks an input (the case file) that no output may replace: add() then
+  // refuses a path naming the same file (InputError, exit 2).
+  void protect(const std::filesystem::path& input) { protected_.push_back(input); }
   // Writes `content` to a temporary file next to `path` (creating missing
   // parent folders). Throws OutputError naming the path.
   void add(const std::filesystem::path& path, const std::string& content);
@@ -41,6 +44,11 @@ class OutputSet {
     std::filesystem::path target;
   };
   std::vector<Pending> pending_;
+  std::vector<std::filesystem::path> protected_;
 };
+
+// True when `a` and `b` name the same file: the same inode where both
+// exist (through links, "./" or ".."), else the same normalized path.
+bool same_file(const std::filesystem::path& a, const std::filesystem::path& b);
 
 }  // namespace rxtrain

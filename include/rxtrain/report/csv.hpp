@@ -2,6 +2,8 @@
 //   stages.csv:   one row per stage (empty cell where a field does not apply)
 //   profiles.csv: every stage's internal profile: stage, position, T, P,
 //                 conversion, each molar flow
+//   paths.csv:    the temperature-conversion diagram's curves, one point a
+//                 row: curve (path | equilibrium | max_rate), stage, T, X
 #pragma once
 
 #include <string>
@@ -12,5 +14,6 @@ namespace rxtrain {
 
 std::string stages_csv(const TrainResult& result);
 std::string profiles_csv(const TrainResult& result);
+std::string paths_csv(const TrainResult& result);
 
 }  // namespace rxtrain

@@ -4,8 +4,12 @@
 //                "bulk_density", "space_time", "space_velocity", "ghsv", "whsv",
 //                "lhsv", "duty", "T_max", "T_min", "conversion", "inlet": STREAM,
 //                "outlet": STREAM, "steady_states": [...], "profile": {...},
-//                "solver": {...}, "warnings": [...]}],
-//    "outlet": STREAM, "warnings": [...], "caution"}
+//                "solver": {...}, "warnings": [...],
+//                "equilibrium": {"X_ad_eq", "T_ad_eq", "X_eq_out", "approach_X",
+//                                "approach_T"} | null,
+//                "path": [{"T", "X"}, ...]}],
+//    "outlet": STREAM, "equilibrium_curve": [{"T", "X_eq"}, ...],
+//    "max_rate_locus": [{"X", "T_opt"}, ...], "warnings": [...], "caution"}
 // STREAM = {"T", "P", "flows": {id: mol/s}}. Fields that do not apply are
 // null. GHSV, WHSV and LHSV are in 1/h as the trade quotes them; every
 // other value is SI.

@@ -7,6 +7,8 @@
 // density). Pressure is constant.
 #pragma once
 
+#include <optional>
+
 #include "rxtrain/stages/stage.hpp"
 
 namespace rxtrain {
@@ -17,6 +19,13 @@ struct PfrOptions {
   // inlet conditions) is passed; about four months is far past any
   // practical bed, so reaching it means the target is out of reach.
   double max_space_time = 1.0e7;
+  // When set, integration ends where the temperature reaches this value
+  // (K), rising or falling: a bed cut at its catalyst's temperature limit.
+  // The stage then ends there, short of its volume or target, without
+  // error; the result's outlet is the point where T crossed it and
+  // stats.message says so. A stage whose inlet is already at or beyond it
+  // (on the side it moves to) ends at V = 0. Unset: no such stop.
+  std::optional<double> stop_temperature;
 };
 
 StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,

@@ -8,6 +8,7 @@
 #include <vector>
 
 #include "rxtrain/case.hpp"
+#include "rxtrain/equilibrium.hpp"
 #include "rxtrain/solvers/cvode.hpp"
 #include "rxtrain/stream.hpp"
 
@@ -52,6 +53,9 @@ struct StageResult {
   std::vector<SteadyState> steady_states;  // CSTR: every solution found
   SolverStats stats;
   std::vector<std::string> warnings;
+  // Reactor stages of a mechanism with a reversible reaction: where the
+  // stage stands against equilibrium (filled by run_train).
+  std::optional<EquilibriumRecord> equilibrium;
 };
 
 // Fills space time, space velocity, GHSV, WHSV and LHSV from the stage's

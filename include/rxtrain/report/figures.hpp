@@ -1,0 +1,35 @@
+// The figures of a run's report, assembled from the result (plotting lives
+// in svg.hpp; this file decides what is plotted). Temperatures in °C.
+#pragma once
+
+#include <string>
+#include <vector>
+
+#include "rxtrain/case.hpp"
+#include "rxtrain/levenspiel.hpp"
+#include "rxtrain/report/svg.hpp"
+#include "rxtrain/train.hpp"
+
+namespace rxtrain {
+
+struct Figure {
+  std::string name;     // file stem of its standalone SVG, e.g. "tx-diagram"
+  std::string caption;  // one sentence under the figure
+  svg::Chart chart;
+};
+
+// Temperature-conversion diagram: equilibrium curve X_eq(T), maximum-rate
+// locus, every stage's path (exchangers as constant-conversion steps) and
+// T_max when the case gives one.
+Figure tx_diagram(const Case& c, const TrainResult& r);
+// Temperature and conversion against cumulative position (catalyst mass
+// when every reactor has one, else volume) with stage boundaries.
+std::vector<Figure> profile_figures(const TrainResult& r);
+// F/(-r) against X with each stage's area shaded.
+Figure levenspiel_figure(const std::vector<LevenspielCurve>& curves, const std::string& key);
+
+// Every figure of a run report, in order.
+std::vector<Figure> run_figures(const Case& c, const TrainResult& r,
+                                const std::vector<LevenspielCurve>& curves);
+
+}  // namespace rxtrain

@@ -1,0 +1,29 @@
+// Small text-formatting helpers shared by the terminal reports: fixed
+// decimals that never print "-0.00" or "nan", °C from K, and aligned
+// columns. Display units only; the core stays SI.
+//
+// Example:
+//   std::vector<std::vector<std::string>> rows{{"bed", "T in °C"}, {"B1", celsius_text(700.0)}};
+//   std::string table = render_columns(rows, 1);
+#pragma once
+
+#include <optional>
+#include <string>
+#include <vector>
+
+namespace rxtrain {
+
+// `v` with `digits` decimals; "-" when not finite or empty.
+std::string fixed_text(double v, int digits);
+std::string fixed_text(const std::optional<double>& v, int digits);
+// Three significant figures (quantities that span decades); "-" as above.
+std::string sig_text(const std::optional<double>& v);
+// K -> °C with two decimals (number only, no unit).
+std::string celsius_text(double T);
+// Code points, not bytes, so "°C" aligns.
+std::size_t display_width(const std::string& s);
+// Rows of cells: the first `n_left` columns left-aligned (names), the rest
+// right-aligned (numbers), two spaces between; one line per row.
+std::string render_columns(const std::vector<std::vector<std::string>>& rows, std::size_t n_left);
+
+}  // namespace rxtrain

@@ -1,0 +1,71 @@
+// rxtrain staging CASE [--approach F] [--return-to inlet|optimal]
+//                      [--max-beds N] [--json PATH]
+#include <cstdio>
+#include <map>
+#include <memory>
+#include <string>
+
+#include "commands.hpp"
+#include "rxtrain/case.hpp"
+#include "rxtrain/report/atomic_file.hpp"
+#include "rxtrain/report/staging_report.hpp"
+#include "rxtrain/staging.hpp"
+#include "rxtrain/units.hpp"
+
+namespace rxtrain::cli {
+
+namespace {
+
+struct StagingCommandOptions {
+  std::string case_file;
+  std::string json_path;
+  StagingOptions staging;
+};
+
+int run_staging_command(const StagingCommandOptions& o) {
+  const UnitParser units;
+  const Case c = load_case(o.case_file, units);
+  const StagingResult result = run_staging(c, o.staging);
+  // Rendered before anything is written; a failure leaves no file behind.
+  OutputSet out;
+  if (!o.json_path.empty()) out.add(o.json_path, staging_json_text(result));
+  out.commit();
+  std::fputs(format_staging_report(result).c_str(), stdout);
+  return 0;
+}
+
+}  // namespace
+
+Action setup_staging(CLI::App& app) {
+  auto o = std::make_shared<StagingCommandOptions>();
+  app.add_option("case", o->case_file, "Case file (YAML) with a top-level target: {conversion: X}")
+      ->required();
+  app.add_option("--approach", o->staging.approach,
+                 "Each bed ends this fraction of the way from its inlet conversion to its "
+                 "adiabatic equilibrium conversion (0 < F < 1)")
+      ->check(CLI::Range(0.0, 1.0) & CLI::Validator(
+                                         [](const std::string& s) -> std::string {
+                                           const double v = std::stod(s);
+                                           return v > 0 && v < 1 ? ""
+                                                                 : "must lie strictly "
+                                                                   "between 0 and 1";
+                                         },
+                                         "", "open interval"))
+      ->capture_default_str();
+  const std::map<std::string, ReturnTo> returns{{"inlet", ReturnTo::Inlet},
+                                                {"optimal", ReturnTo::Optimal}};
+  app.add_option("--return-to", o->staging.return_to,
+                 "Temperature the exchangers between beds return the stream to: inlet (bed 1's "
+                 "inlet temperature) or optimal (the maximum-rate temperature at that "
+                 "conversion, within the case's limits)")
+      ->transform(CLI::CheckedTransformer(returns, CLI::ignore_case))
+      ->default_str("inlet");
+  app.add_option("--max-beds", o->staging.max_beds,
+                 "Most beds tried before the target is called out of reach")
+      ->check(CLI::Range(1, 100))
+      ->capture_default_str();
+  app.add_option("--json", o->json_path, "Write the answer as JSON (SI units) to PATH");
+  return [o] { return run_staging_command(*o); };
+}
+
+}  // namespace rxtrain::cli

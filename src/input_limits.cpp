@@ -1,0 +1,316 @@
+#include "rxtrain/input_limits.hpp"
+
+#include <fmt/format.h>
+#include <yaml-cpp/yaml.h>
+
+#include <algorithm>
+#include <map>
+#include <utility>
+#include <cstdint>
+#include <optional>
+#include <vector>
+
+namespace rxtrain {
+
+namespace {
+
+// ---- UTF-8 ---------------------------------------------------------------
+
+// Length of the well-formed UTF-8 sequence at text[i] (RFC 3629, Table 3-7
+// of the Unicode Standard: no overlongs, no surrogates, nothing above
+// U+10FFFF), or 0 when it is not one.
+std::size_t utf8_length(std::string_view text, std::size_t i) {
+  const auto byte = [&](std::size_t k) -> unsigned {
+    return i + k < text.size() ? static_cast<unsigned char>(text[i + k]) : 0x100u;
+  };
+  const auto tail = [&](std::size_t k, unsigned lo = 0x80, unsigned hi = 0xBF) {
+    const unsigned b = byte(k);
+    return b >= lo && b <= hi;
+  };
+  const unsigned b0 = byte(0);
+  if (b0 < 0x80) return 1;
+  if (b0 >= 0xC2 && b0 <= 0xDF) return tail(1) ? 2 : 0;
+  if (b0 == 0xE0) return tail(1, 0xA0, 0xBF) && tail(2) ? 3 : 0;
+  if ((b0 >= 0xE1 && b0 <= 0xEC) || b0 == 0xEE || b0 == 0xEF) return tail(1) && tail(2) ? 3 : 0;
+  if (b0 == 0xED) return tail(1, 0x80, 0x9F) && tail(2) ? 3 : 0;
+  if (b0 == 0xF0) return tail(1, 0x90, 0xBF) && tail(2) && tail(3) ? 4 : 0;
+  if (b0 >= 0xF1 && b0 <= 0xF3) return tail(1) && tail(2) && tail(3) ? 4 : 0;
+  if (b0 == 0xF4) return tail(1, 0x80, 0x8F) && tail(2) && tail(3) ? 4 : 0;
+  return 0;
+}
+
+void check_utf8(std::string_view text, const std::string& name) {
+  int line = 1, column = 1;  // column counts characters, as editors do
+  for (std::size_t i = 0; i < text.size();) {
+    const std::size_t len = utf8_length(text, i);
+    if (len == 0)
+      throw InputError({name, line, column},
+                       fmt::format("case file is not valid UTF-8: byte 0x{:02X} cannot start or "
+                                   "continue a character here; save the file as UTF-8",
+                                   static_cast<unsigned char>(text[i])));
+    if (text[i] == '\n') {
+      ++line;
+      column = 1;
+    } else {
+      ++column;
+    }
+    i += len;
+  }
+}
+
+// ---- nesting depth by a scan of the text -----------------------------------
+
+// One open block collection: the column it is indented to and whether it
+// is a list ("- " items) or a mapping.
+struct Level {
+  std::size_t column;
+  bool list;
+};
+
+bool is_space(char c) { return c == ' ' || c == '\t'; }
+
+// Block and flow nesting are tracked together. Block levels: a stack of
+// indentation columns (a "- " item opens a list level, the content after it
+// a further level; a list at the same column as its parent key still counts
+// one deeper). Flow levels: unclosed [ and { outside quotes and comments.
+// Block scalars (| and >) and quoted text are skipped.
+class DepthScan {
+ public:
+  DepthScan(const std::string& name, int max_depth) : name_(name), max_(max_depth) {}
+
+  void run(std::string_view text) {
+    std::size_t start = 0;
+    int line = 1;
+    while (start <= text.size()) {
+      std::size_t end = text.find('\n', start);
+      if (end == std::string_view::npos) end = text.size();
+      std::string_view l = text.substr(start, end - start);
+      if (!l.empty() && l.back() == '\r') l.remove_suffix(1);
+      scan_line(l, line);
+      if (end == text.size()) break;
+      start = end + 1;
+      ++line;
+    }
+  }
+
+ private:
+  void check(int line, std::size_t column) const {
+    const int depth = static_cast<int>(levels_.size()) + flow_;
+    if (depth > max_)
+      throw InputError({name_, line, static_cast<int>(column) + 1},
+                       fmt::format("nesting depth limit exceeded: mappings and lists are nested "
+                                   "more than {} deep here",
+                                   max_));
+  }
+
+  void open_block(std::size_t column, bool list) {
+    // Close deeper levels; a list item at its parent key's column nests.
+    while (!levels_.empty()) {
+      const Level& top = levels_.back();
+      if (top.column > column || (top.column == column && top.list && !list)) {
+        levels_.pop_back();
+        continue;
+      }
+      break;
+    }
+    if (!levels_.empty() && levels_.back().column == column && levels_.back().list == list) return;
+    levels_.push_back({column, list});
+  }
+
+  void scan_line(std::string_view l, int line) {
+    std::size_t i = 0;
+    while (i < l.size() && is_space(l[i])) ++i;
+    const std::size_t indent = i;
+    const bool blank = i == l.size() || l[i] == '#';
+    if (block_scalar_indent_) {
+      if (blank || indent > *block_scalar_indent_) return;
+      block_scalar_indent_.reset();
+    }
+    if (!in_quote_ && flow_ == 0 && !blank) {
+      if (l.substr(i).starts_with("---") || l.substr(i).starts_with("...")) {
+        levels_.clear();
+        return;
+      }
+      // Block indicators at the start of the line: "- ", "? ", one after the other.
+      bool first = true;
+      while (i < l.size() && (l[i] == '-' || l[i] == '?') &&
+             (i + 1 == l.size() || is_space(l[i + 1]))) {
+        if (first) open_block(i, true);
+        else levels_.push_back({i, true});
+        first = false;
+        check(line, i);
+        ++i;
+        while (i < l.size() && is_space(l[i])) ++i;
+      }
+      // YAML forbids a plain value starting with ',' outside [..] and {..}
+      // (YAML 1.2.2, 7.3.3: ns-plain-first excludes the indicators), and
+      // yaml-cpp 0.7 loops forever on one at a smaller indent than the block
+      // before it (found by fuzz_case_loader): refuse it here.
+      if (i < l.size() && l[i] == ',')
+        throw InputError({name_, line, static_cast<int>(i) + 1},
+                         "YAML syntax error: a value cannot start with ',' outside a flow list "
+                         "[...] or mapping {...}");
+      if (i < l.size() && l[i] != '#' && has_key(l.substr(i))) {
+        if (first) open_block(i, false);
+        else levels_.push_back({i, false});
+        check(line, i);
+      } else if (first && i < l.size() && l[i] != '#') {
+        // A scalar line: closes deeper levels, opens none.
+        while (!levels_.empty() && levels_.back().column > i) levels_.pop_back();
+      }
+    }
+    scan_flow(l, i, line, indent);
+  }
+
+  // "key: ..." or "key:" at the start of the content (plain or quoted key).
+  static bool has_key(std::string_view s) {
+    std::size_t i = 0;
+    if (!s.empty() && (s[0] == '"' || s[0] == '\'')) {
+      const char q = s[0];
+      i = 1;
+      while (i < s.size() && s[i] != q) i += s[i] == '\\' && q == '"' ? 2 : 1;
+      ++i;
+      while (i < s.size() && is_space(s[i])) ++i;
+      return i < s.size() && s[i] == ':' && (i + 1 == s.size() || is_space(s[i + 1]));
+    }
+    if (!s.empty() && (s[0] == '[' || s[0] == '{')) return false;
+    for (; i < s.size(); ++i) {
+      if (s[i] == '#' && i > 0 && is_space(s[i - 1])) return false;
+      if (s[i] == ':' && (i + 1 == s.size() || is_space(s[i + 1]))) return true;
+    }
+    return false;
+  }
+
+  // Flow brackets and quotes from position i on; notes a block scalar header.
+  void scan_flow(std::string_view l, std::size_t i, int line, std::size_t indent) {
+    char last = ' ';
+    for (; i < l.size(); ++i) {
+      const char c = l[i];
+      if (in_quote_) {
+        if (c == '\\' && in_quote_ == '"') {
+          ++i;
+        } else if (c == in_quote_) {
+          if (c == '\'' && i + 1 < l.size() && l[i + 1] == '\'') ++i;  // '' inside '...'
+          else in_quote_ = 0;
+        }
+        last = c;
+        continue;
+      }
+      if (c == '#' && is_space(last)) break;
+      if ((c == '"' || c == '\'') && (is_space(last) || last == '[' || last == '{' ||
+                                      last == ',' || last == ':')) {
+        in_quote_ = c;
+      } else if (c == '[' || c == '{') {
+        ++flow_;
+        check(line, i);
+      } else if ((c == ']' || c == '}') && flow_ > 0) {
+        --flow_;
+      } else if ((c == '|' || c == '>') && flow_ == 0 && is_space(last)) {
+        // A block scalar header: "|", "|-", ">+2"... then only a comment.
+        std::size_t k = i + 1;
+        while (k < l.size() && (l[k] == '-' || l[k] == '+' || (l[k] >= '0' && l[k] <= '9'))) ++k;
+        while (k < l.size() && is_space(l[k])) ++k;
+        if (k == l.size() || l[k] == '#') {
+          block_scalar_indent_ = indent;
+          return;
+        }
+      }
+      last = c;
+    }
+  }
+
+  const std::string& name_;
+  int max_;
+  std::vector<Level> levels_;
+  int flow_ = 0;
+  char in_quote_ = 0;
+  std::optional<std::size_t> block_scalar_indent_;
+};
+
+// ---- node count after alias expansion --------------------------------------
+
+// Expanded size of every node of the parsed tree, each computed once: an
+// alias shares its anchor's node, so a "billion laughs" file is counted in
+// time linear in its text. Sizes saturate far above any limit.
+class NodeCounter {
+ public:
+  explicit NodeCounter(const std::string& name) : name_(name) {}
+
+  std::uint64_t count(const YAML::Node& n) {
+    const YAML::Mark m = n.Mark();
+    auto& bucket = memo_[{m.line, m.column}];
+    for (const auto& e : bucket)
+      if (e.node.is(n)) {
+        if (!e.done)
+          throw InputError({name_, m.line + 1, m.column + 1},
+                           "an alias refers to a mapping or list that contains it (a cycle); "
+                           "refer to an anchor only after its node is complete");
+        return e.total;
+      }
+    ++unique_;
+    const std::size_t slot = bucket.size();
+    bucket.push_back({n, false, 1});
+    std::uint64_t total = 1;
+    if (n.IsMap()) {
+      for (auto it = n.begin(); it != n.end(); ++it)
+        total = add(add(total, count(it->first)), count(it->second));
+    } else if (n.IsSequence()) {
+      for (auto it = n.begin(); it != n.end(); ++it) total = add(total, count(*it));
+    }
+    // The bucket may have grown (and moved) while the children were counted.
+    auto& done = memo_[{m.line, m.column}][slot];
+    done.done = true;
+    done.total = total;
+    return total;
+  }
+  std::uint64_t unique() const { return unique_; }
+
+ private:
+  struct Entry {
+    YAML::Node node;
+    bool done;
+    std::uint64_t total;
+  };
+  static std::uint64_t add(std::uint64_t a, std::uint64_t b) {
+    constexpr std::uint64_t kCap = std::uint64_t{1} << 62;
+    return std::min(kCap, a + b);
+  }
+
+  const std::string& name_;
+  std::map<std::pair<int, int>, std::vector<Entry>> memo_;
+  std::uint64_t unique_ = 0;
+};
+
+}  // namespace
+
+void check_text_limits(std::string_view text, const std::string& name,
+                       const InputLimits& limits) {
+  if (text.size() > limits.max_bytes)
+    throw InputError({name, 0, 0},
+                     fmt::format("file size limit exceeded: the case file is {} bytes; the limit "
+                                 "is {} bytes ({} MiB)",
+                                 text.size(), limits.max_bytes, limits.max_bytes >> 20));
+  check_utf8(text, name);
+  DepthScan(name, limits.max_depth).run(text);
+}
+
+void check_node_count(const YAML::Node& root, const std::string& name,
+                      const InputLimits& limits) {
+  NodeCounter counter(name);
+  const std::uint64_t expanded = counter.count(root);
+  // The limit bounds what aliases add: a file without aliases is already
+  // bounded by the size limit (and 5,000 reactions take more than 10,000
+  // nodes), while a few lines of nested aliases can stand for billions.
+  const std::uint64_t added = expanded - counter.unique();
+  if (added > limits.max_nodes) {
+    const YAML::Mark m = root.Mark();
+    throw InputError({name, m.is_null() ? 0 : m.line + 1, m.is_null() ? 0 : m.column + 1},
+                     fmt::format("alias node limit exceeded: expanding the aliases (*name) of the "
+                                 "case adds {} nodes; the limit is {}",
+                                 added >= (std::uint64_t{1} << 62) ? std::string("more than 4e18")
+                                                                   : std::to_string(added),
+                                 limits.max_nodes));
+  }
+}
+
+}  // namespace rxtrain

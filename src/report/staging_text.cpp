@@ -1,0 +1,130 @@
+#include <fmt/format.h>
+
+#include "rxtrain/report/caution.hpp"
+#include "rxtrain/report/staging_report.hpp"
+#include "rxtrain/report/text_format.hpp"
+
+namespace rxtrain {
+
+namespace {
+
+const char* kind_name(StageKind k) {
+  return k == StageKind::Pfr ? "pfr" : k == StageKind::Cstr ? "cstr" : "exchanger";
+}
+
+std::string limit_text(const std::optional<double>& T) {
+  return T ? fmt::format("{} °C", celsius_text(*T)) : std::string("not given");
+}
+
+std::string policy_text(const StagingResult& r) {
+  const char* limit = r.exothermic ? "T_max" : "T_in_min";
+  const char* exchangers = r.exothermic ? "coolers" : "heaters";
+  std::string back = r.return_to == ReturnTo::Inlet
+                         ? fmt::format("{} return the stream to bed 1's inlet temperature ({} °C)",
+                                       exchangers, celsius_text(r.feed_T))
+                         : fmt::format(
+                               "{} return the stream to the maximum-rate temperature T_opt at its "
+                               "conversion, kept within [T_in_min, T_max]",
+                               exchangers);
+  return fmt::format(
+      "policy: each bed runs until it is {:.0f} % of the way from its inlet conversion to its "
+      "adiabatic equilibrium conversion X_ad_eq, or until {}{}, or until the target; {} "
+      "(--approach {:g}, --return-to {})",
+      100 * r.approach, limit,
+      (r.exothermic ? r.limits.T_max : r.limits.T_in_min) ? "" : " (not given)", back, r.approach,
+      return_to_name(r.return_to));
+}
+
+}  // namespace
+
+std::string format_staging_report(const StagingResult& r) {
+  std::string out;
+  out += r.title + "\n";
+  out += fmt::format(
+      "target: overall conversion of {} X = {}; limits: T_max {}, T_in_min {}; feed {} °C\n", r.key,
+      fixed_text(r.target, 4), limit_text(r.limits.T_max), limit_text(r.limits.T_in_min),
+      celsius_text(r.feed_T));
+  out += fmt::format("key reaction: {}", r.exothermic ? "exothermic" : "endothermic");
+  if (r.dT_ad)
+    out += fmt::format("; adiabatic temperature {} of the feed at full conversion: {} K",
+                       *r.dT_ad >= 0 ? "rise" : "fall", fixed_text(std::abs(*r.dT_ad), 2));
+  out += "\n\n";
+
+  // 1. The train as given.
+  out += "Can the train as given reach the target?\n";
+  if (r.reachable)
+    out += fmt::format("  Yes: {}.\n", r.why);
+  else
+    out += fmt::format("  No (limited by {}): {}.\n", limit_name(r.limited_by), r.why);
+  std::vector<std::vector<std::string>> rows;
+  // The extreme the bed runs to: hottest (exothermic) or coldest point.
+  const char* extreme = r.exothermic ? "T max °C" : "T min °C";
+  rows.push_back({"stage", "type", "T in °C", "T out °C", extreme, "X in", "X out", "X_ad_eq",
+                  "T_ad_eq °C", "V m3"});
+  for (const auto& a : r.as_given) {
+    if (!a.ran) {
+      rows.push_back({a.id, kind_name(a.kind), celsius_text(a.T_in), "-", "-",
+                      fixed_text(a.X_in, 4), "-", fixed_text(a.X_ad_eq, 4),
+                      a.T_ad_eq ? celsius_text(*a.T_ad_eq) : "-", "-"});
+      continue;
+    }
+    rows.push_back({a.id, kind_name(a.kind), celsius_text(a.T_in), celsius_text(a.T_out),
+                    celsius_text(r.exothermic ? a.T_max : a.T_min), fixed_text(a.X_in, 4),
+                    fixed_text(a.X_out, 4), fixed_text(a.X_ad_eq, 4),
+                    a.T_ad_eq ? celsius_text(*a.T_ad_eq) : "-", fixed_text(a.volume, 3)});
+  }
+  out += render_columns(rows, 2);
+  out +=
+      "  X_ad_eq, T_ad_eq: where the stage's adiabatic line from its inlet meets equilibrium "
+      "(the most it can reach at any size)\n";
+  for (const auto& a : r.as_given)
+    if (!a.note.empty() && a.id != r.limiting_stage) out += fmt::format("  {}: {}\n", a.id, a.note);
+  out += "\n";
+
+  // 2. The staged answer.
+  out += fmt::format("Is interstage {} needed, and where?\n", r.exothermic ? "cooling" : "heating");
+  out += fmt::format("  {}.\n", r.staged_note);
+  out += fmt::format("  {}\n", policy_text(r));
+  if (!r.beds.empty()) {
+    std::vector<std::vector<std::string>> b;
+    b.push_back({"bed", "T in °C", "T out °C", extreme, "X in", "X out", "X_ad_eq", "V m3",
+                 "cat kg", "ends at"});
+    for (const auto& bed : r.beds)
+      b.push_back({bed.id, celsius_text(bed.T_in), celsius_text(bed.T_out),
+                   celsius_text(r.exothermic ? bed.T_max : bed.T_min), fixed_text(bed.X_in, 4),
+                   fixed_text(bed.X_out, 4), fixed_text(bed.X_ad_eq, 4), fixed_text(bed.volume, 3),
+                   fixed_text(bed.catalyst_mass, 1), bed.ended_by});
+    out += fmt::format("\n{}", render_columns(b, 1));
+    double V = 0, W = 0;
+    bool all_mass = true;
+    for (const auto& bed : r.beds) {
+      V += bed.volume;
+      if (bed.catalyst_mass)
+        W += *bed.catalyst_mass;
+      else
+        all_mass = false;
+    }
+    out += fmt::format("  total: {} m3{}\n", fixed_text(V, 3),
+                       all_mass ? fmt::format(", {} kg of catalyst", fixed_text(W, 1)) : "");
+  }
+  if (!r.coolers.empty()) {
+    std::vector<std::vector<std::string>> x;
+    x.push_back({r.exothermic ? "cooler" : "heater", "after", "T in °C", "T out °C", "duty kW"});
+    for (std::size_t k = 0; k < r.coolers.size(); ++k) {
+      const auto& c = r.coolers[k];
+      x.push_back({c.id, r.beds[k].id, celsius_text(c.T_in), celsius_text(c.T_out),
+                   fixed_text(c.duty / 1e3, 2)});
+    }
+    out += fmt::format("\n{}", render_columns(x, 2));
+    out += "  duty: heat added to the stream (negative: removed)\n";
+  }
+
+  if (!r.warnings.empty()) {
+    out += "\nwarnings:\n";
+    for (const auto& w : r.warnings) out += fmt::format("  - {}\n", w);
+  }
+  out += fmt::format("\n{}\n", kCaution);
+  return out;
+}
+
+}  // namespace rxtrain

@@ -1,0 +1,58 @@
+#include "rxtrain/report/text_format.hpp"
+
+#include <fmt/format.h>
+
+#include <algorithm>
+#include <cmath>
+
+namespace rxtrain {
+
+namespace {
+constexpr double kZeroCelsius = 273.15;  // K
+}  // namespace
+
+std::string fixed_text(double v, int digits) {
+  if (!std::isfinite(v)) return "-";
+  if (std::abs(v) < 0.5 * std::pow(10.0, -digits)) v = 0;  // no "-0.00"
+  return fmt::format("{:.{}f}", v, digits);
+}
+
+std::string fixed_text(const std::optional<double>& v, int digits) {
+  return v ? fixed_text(*v, digits) : "-";
+}
+
+std::string sig_text(const std::optional<double>& v) {
+  if (!v || !std::isfinite(*v)) return "-";
+  return fmt::format("{:.3g}", *v);
+}
+
+std::string celsius_text(double T) { return fixed_text(T - kZeroCelsius, 2); }
+
+std::size_t display_width(const std::string& s) {
+  std::size_t n = 0;
+  for (unsigned char ch : s) n += (ch & 0xC0) != 0x80;
+  return n;
+}
+
+std::string render_columns(const std::vector<std::vector<std::string>>& rows, std::size_t n_left) {
+  std::vector<std::size_t> width;
+  for (const auto& row : rows)
+    for (std::size_t c = 0; c < row.size(); ++c) {
+      if (width.size() <= c) width.push_back(0);
+      width[c] = std::max(width[c], display_width(row[c]));
+    }
+  std::string out;
+  for (const auto& row : rows) {
+    std::string line;
+    for (std::size_t c = 0; c < row.size(); ++c) {
+      const std::string pad(width[c] - display_width(row[c]), ' ');
+      line += c < n_left ? row[c] + pad : pad + row[c];
+      if (c + 1 < row.size()) line += "  ";
+    }
+    while (!line.empty() && line.back() == ' ') line.pop_back();
+    out += line + "\n";
+  }
+  return out;
+}
+
+}  // namespace rxtrain
