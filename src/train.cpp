@@ -23,8 +23,8 @@ void add_equilibrium_views(const Case& c, const TrainOptions& options, TrainResu
     T_hi = std::max({T_hi, r.T_max, r.inlet.T, r.outlet.T});
     if (r.kind == StageKind::Exchanger || !r.heat) continue;
     try {
-      r.equilibrium = equilibrium_record(mech, r.inlet, r.outlet, *r.heat, basis,
-                                         options.equilibrium);
+      r.equilibrium =
+          equilibrium_record(mech, r.inlet, r.outlet, *r.heat, basis, options.equilibrium);
       if (r.equilibrium) {
         T_lo = std::min(T_lo, r.equilibrium->T_ad_eq);
         T_hi = std::max(T_hi, r.equilibrium->T_ad_eq);
@@ -40,17 +40,16 @@ void add_equilibrium_views(const Case& c, const TrainOptions& options, TrainResu
   T_hi = std::min(options.equilibrium.T_max, T_hi + margin);
   const int n = std::max(2, options.curve_points);
   try {
-    result.equilibrium_curve = equilibrium_curve(mech, c.feed, basis,
-                                                 {T_lo, T_hi, (T_hi - T_lo) / (n - 1)}, {},
-                                                 options.equilibrium);
+    result.equilibrium_curve = equilibrium_curve(
+        mech, c.feed, basis, {T_lo, T_hi, (T_hi - T_lo) / (n - 1)}, {}, options.equilibrium);
     double X_hi = basis.conversion(c.feed);
     for (const auto& p : result.equilibrium_curve) X_hi = std::max(X_hi, p.X_eq);
     const double X_lo = basis.conversion(c.feed);
     if (X_hi > X_lo) {
       // Stop short of the curve's top, where T_opt runs off the window.
       const double span = X_hi - X_lo;
-      for (auto& p : max_rate_locus(mech, c.feed, basis, X_lo + 0.01 * span, X_hi - 0.01 * span,
-                                    n, T_lo, T_hi, options.equilibrium))
+      for (auto& p : max_rate_locus(mech, c.feed, basis, X_lo + 0.01 * span, X_hi - 0.01 * span, n,
+                                    T_lo, T_hi, options.equilibrium))
         if (p.interior) result.max_rate_locus.push_back(p);
     }
   } catch (const std::exception& e) {
@@ -92,7 +91,10 @@ TrainResult run_train(const Case& c, const TrainOptions& options) {
   }
   result.outlet = stream;
   result.conversion = basis.conversion(stream);
-  if (options.equilibrium_views) add_equilibrium_views(c, options, result);
+  if (options.equilibrium_views) {
+    add_equilibrium_views(c, options, result);
+    result.levenspiel = levenspiel_curves(mech, c.key, c.feed.F[c.key], result.stages);
+  }
   return result;
 }
 

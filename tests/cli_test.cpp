@@ -27,9 +27,9 @@ TEST_CASE("every demo case under cases/ runs and writes consistent JSON and CSV"
     ++n;
     DYNAMIC_SECTION(e.path().filename().string()) {
       const auto dir = scratch(e.path().stem().string());
-      const auto r = run_rxtrain("run '" + e.path().string() + "' --json '" +
-                                 (dir / "r.json").string() + "' --csv '" + (dir / "csv").string() +
-                                 "'");
+      const auto r =
+          run_rxtrain("run '" + e.path().string() + "' --json '" + (dir / "r.json").string() +
+                      "' --csv '" + (dir / "csv").string() + "'");
       INFO(r.err);
       REQUIRE(r.exit_code == 0);
       CHECK(r.out.find("licensed engineers") != std::string::npos);
@@ -41,7 +41,8 @@ TEST_CASE("every demo case under cases/ runs and writes consistent JSON and CSV"
       for (std::size_t i = 1; i < j["stages"].size(); ++i)
         CHECK(j["stages"][i]["inlet"] == j["stages"][i - 1]["outlet"]);
       CHECK(j["outlet"] == j["stages"].back()["outlet"]);
-      for (const auto& s : j["stages"]) CHECK(s["T_max"].get<double>() >= s["outlet"]["T"].get<double>() - 1e-9);
+      for (const auto& s : j["stages"])
+        CHECK(s["T_max"].get<double>() >= s["outlet"]["T"].get<double>() - 1e-9);
       const std::string stages = slurp(dir / "csv" / "stages.csv");
       CHECK(std::count(stages.begin(), stages.end(), '\n') ==
             static_cast<long>(j["stages"].size()) + 1);

@@ -7,13 +7,13 @@
 #include <nlohmann/json.hpp>
 #include <sstream>
 
+#include "run_command.hpp"
 #include "rxtrain/case.hpp"
 #include "rxtrain/report/figures.hpp"
 #include "rxtrain/report/html.hpp"
 #include "rxtrain/report/sha256.hpp"
 #include "rxtrain/report/text_format.hpp"
 #include "rxtrain/units.hpp"
-#include "run_command.hpp"
 
 using namespace rxtrain;
 namespace fs = std::filesystem;
@@ -72,7 +72,8 @@ TrainResult hand_result(const std::string& title) {
   return t;
 }
 
-void walk(const tinyxml2::XMLElement* e, const std::function<void(const tinyxml2::XMLElement*)>& f) {
+void walk(const tinyxml2::XMLElement* e,
+          const std::function<void(const tinyxml2::XMLElement*)>& f) {
   for (; e != nullptr; e = e->NextSiblingElement()) {
     f(e);
     walk(e->FirstChildElement(), f);
@@ -115,7 +116,8 @@ TEST_CASE("the report is well-formed XML and escapes the title", "[html]") {
   tinyxml2::XMLDocument doc;
   // The DOCTYPE is not XML-declared but tinyxml2 accepts it as an unknown node.
   REQUIRE(doc.Parse(html.c_str()) == tinyxml2::XML_SUCCESS);
-  const auto* head_title = doc.FirstChildElement("html")->FirstChildElement("head")->FirstChildElement("title");
+  const auto* head_title =
+      doc.FirstChildElement("html")->FirstChildElement("head")->FirstChildElement("title");
   REQUIRE(head_title != nullptr);
   CHECK(std::string(head_title->GetText()) == title);
   CHECK(html.find("<script") == std::string::npos);
@@ -123,7 +125,8 @@ TEST_CASE("the report is well-formed XML and escapes the title", "[html]") {
   CHECK(html.find("licensed engineers") != std::string::npos);
   CHECK(html.find("nan") == std::string::npos);
   int svgs = 0;
-  walk(doc.RootElement(), [&](const tinyxml2::XMLElement* e) { svgs += std::string(e->Name()) == "svg"; });
+  walk(doc.RootElement(),
+       [&](const tinyxml2::XMLElement* e) { svgs += std::string(e->Name()) == "svg"; });
   CHECK(svgs == static_cast<int>(figures.size()));
   for (const auto& f : figures) {
     tinyxml2::XMLDocument one;
@@ -162,8 +165,9 @@ TEST_CASE("run --report writes a report whose stage numbers equal the JSON resul
   const auto dir = fs::temp_directory_path() / "rxtrain_html_cli";
   fs::remove_all(dir);
   const std::string demo = std::string(RXTRAIN_SOURCE_DIR) + "/cases/isomerization-two-bed.yaml";
-  const auto res = rxtrain::test::run_rxtrain("run '" + demo + "' --report '" + (dir / "rep").string() +
-                                              "' --json '" + (dir / "r.json").string() + "'");
+  const auto res =
+      rxtrain::test::run_rxtrain("run '" + demo + "' --report '" + (dir / "rep").string() +
+                                 "' --json '" + (dir / "r.json").string() + "'");
   INFO(res.err);
   REQUIRE(res.exit_code == 0);
   const auto j = nlohmann::json::parse(rxtrain::test::slurp(dir / "r.json"));

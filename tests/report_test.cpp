@@ -116,9 +116,7 @@ TEST_CASE("OutputSet writes nothing until commit and cleans up when abandoned", 
   const auto dir = std::filesystem::temp_directory_path() / "rxtrain_outputset_test";
   std::filesystem::remove_all(dir);
   std::filesystem::create_directories(dir);
-  {
-    std::ofstream(dir / "old.json") << "old";
-  }
+  { std::ofstream(dir / "old.json") << "old"; }
   {
     OutputSet out;
     out.add(dir / "old.json", "new");

@@ -30,9 +30,10 @@ struct LevenspielCurve {
   double X_out = 0;
   std::vector<LevenspielPoint> points;
   // Volume (or catalyst mass) the curve stands for: the rectangle for a
-  // stirred tank, the trapezoidal area under the profile points for a
-  // tubular stage (exact in the limit of fine profiles; the stage's own
-  // volume is the authority).
+  // stirred tank; for a tubular stage the area under the curve, with the
+  // state between profile points a cubic Hermite interpolant in X (slopes
+  // from the stage's balances) and 1/r integrated by adaptive
+  // Gauss-Legendre, so it matches the stage's volume to ~1e-8.
   double area = 0;
 };
 

@@ -7,13 +7,15 @@
 
 #include "commands.hpp"
 #include "rxtrain/case.hpp"
-#include "rxtrain/report/atomic_file.hpp"
+#include "rxtrain/design_checks.hpp"
 #include "rxtrain/levenspiel.hpp"
+#include "rxtrain/result_guard.hpp"
+#include "rxtrain/report/atomic_file.hpp"
 #include "rxtrain/report/csv.hpp"
 #include "rxtrain/report/figures.hpp"
 #include "rxtrain/report/html.hpp"
-#include "rxtrain/report/sha256.hpp"
 #include "rxtrain/report/json.hpp"
+#include "rxtrain/report/sha256.hpp"
 #include "rxtrain/report/table.hpp"
 #include "rxtrain/train.hpp"
 #include "rxtrain/units.hpp"
@@ -36,7 +38,9 @@ int run(const RunOptions& o) {
   TrainOptions options;
   options.pfr.cvode.rtol = o.rtol;
   options.cstr.pfr.cvode.rtol = o.rtol;
-  const TrainResult result = run_train(c, options);
+  TrainResult result = run_train(c, options);
+  for (auto& w : design_warnings(c, result)) result.warnings.push_back(std::move(w));
+  check_finite(result);  // no NaN or Inf may reach an output
 
   // Every output is rendered before any is written, and all are renamed
   // into place together: a failure leaves no half-written file behind.
@@ -47,10 +51,10 @@ int run(const RunOptions& o) {
     out.add(std::filesystem::path(o.csv_dir) / "stages.csv", stages_csv(result));
     out.add(std::filesystem::path(o.csv_dir) / "profiles.csv", profiles_csv(result));
     out.add(std::filesystem::path(o.csv_dir) / "paths.csv", paths_csv(result));
+    out.add(std::filesystem::path(o.csv_dir) / "levenspiel.csv", levenspiel_csv(result));
   }
   if (!o.report_dir.empty()) {
-    const auto curves = levenspiel_curves(c.mechanism, c.key, c.feed.F[c.key], result.stages);
-    const auto figures = run_figures(c, result, curves);
+    const auto figures = run_figures(c, result, result.levenspiel);
     std::ifstream in(o.case_file, std::ios::binary);
     const std::string bytes((std::istreambuf_iterator<char>(in)), std::istreambuf_iterator<char>());
     const ReportProvenance provenance{o.case_file, sha256_hex(bytes), utc_date_today(),
@@ -70,7 +74,8 @@ Action setup_run(CLI::App& app) {
   auto o = std::make_shared<RunOptions>();
   app.add_option("case", o->case_file, "Case file (YAML)")->required();
   app.add_option("--json", o->json_path, "Write the whole result as JSON (SI units) to PATH");
-  app.add_option("--csv", o->csv_dir, "Write stages.csv, profiles.csv and paths.csv into folder DIR");
+  app.add_option("--csv", o->csv_dir,
+                 "Write stages.csv, profiles.csv, paths.csv and levenspiel.csv into folder DIR");
   app.add_option("--report", o->report_dir,
                  "Write report.html (self-contained, with figures) and the figures as SVG into "
                  "folder DIR");

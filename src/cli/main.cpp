@@ -34,6 +34,10 @@ constexpr CommandEntry kCommands[] = {
      "Interstage-cooling check: can the train reach its target within the catalyst's "
      "temperature limits, and how many adiabatic beds with intercoolers does it take",
      rxtrain::cli::setup_staging},
+    {"compare",
+     "Compare layouts: every order of the reactor stages, as written, all adiabatic and all "
+     "isothermal; best first",
+     rxtrain::cli::setup_compare},
 };
 
 }  // namespace

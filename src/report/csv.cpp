@@ -14,10 +14,6 @@ namespace {
 std::string cell(double v) { return std::isfinite(v) ? fmt::format("{:.12g}", v) : ""; }
 std::string cell(const std::optional<double>& v) { return v ? cell(*v) : ""; }
 
-const char* kind_name(StageKind k) {
-  return k == StageKind::Pfr ? "pfr" : k == StageKind::Cstr ? "cstr" : "exchanger";
-}
-
 std::string flow_headers(const TrainResult& result) {
   std::string h;
   for (const auto& id : result.species) h += fmt::format(",F_{}_mol_per_s", id);
@@ -33,12 +29,12 @@ std::string stages_csv(const TrainResult& result) {
       flow_headers(result) + "\n";
   for (const auto& r : result.stages) {
     std::string heat;
-    if (r.heat) heat = *r.heat == HeatMode::Adiabatic ? "adiabatic" : "isothermal";
+    if (r.heat) heat = heat_mode_name(*r.heat);
     out += fmt::format("{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{}", r.id,
-                       kind_name(r.kind), heat, r.sized ? "yes" : "no", cell(r.volume),
+                       stage_kind_name(r.kind), heat, r.sized ? "yes" : "no", cell(r.volume),
                        cell(r.catalyst_mass), cell(r.space_time), cell(r.ghsv), cell(r.whsv),
-                       cell(r.lhsv), cell(r.duty), cell(r.inlet.T), cell(r.outlet.T),
-                       cell(r.T_max), cell(r.T_min), cell(r.outlet.P), cell(r.conversion));
+                       cell(r.lhsv), cell(r.duty), cell(r.inlet.T), cell(r.outlet.T), cell(r.T_max),
+                       cell(r.T_min), cell(r.outlet.P), cell(r.conversion));
     for (double f : r.outlet.F) out += fmt::format(",{}", cell(f));
     out += "\n";
   }
@@ -60,11 +56,23 @@ std::string profiles_csv(const TrainResult& result) {
 std::string paths_csv(const TrainResult& result) {
   std::string out = "curve,stage,T_K,conversion\n";
   for (const auto& r : result.stages)
-    for (const auto& p : r.profile) out += fmt::format("path,{},{},{}\n", r.id, cell(p.T), cell(p.X));
+    for (const auto& p : r.profile)
+      out += fmt::format("path,{},{},{}\n", r.id, cell(p.T), cell(p.X));
   for (const auto& p : result.equilibrium_curve)
     out += fmt::format("equilibrium,,{},{}\n", cell(p.T), cell(p.X_eq));
   for (const auto& p : result.max_rate_locus)
     out += fmt::format("max_rate,,{},{}\n", cell(p.T), cell(p.X));
+  return out;
+}
+
+std::string levenspiel_csv(const TrainResult& result) {
+  std::string out = "stage,basis,conversion,inverse_rate,area\n";
+  for (const auto& c : result.levenspiel) {
+    const char* unit = c.catalyst_basis ? "catalyst_kg" : "volume_m3";
+    for (const auto& p : c.points)
+      out += fmt::format("{},{},{},{},\n", c.stage, unit, cell(p.X), cell(p.inverse_rate));
+    out += fmt::format("{},{},,,{}\n", c.stage, unit, cell(c.area));
+  }
   return out;
 }
 

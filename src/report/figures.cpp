@@ -41,8 +41,11 @@ Figure tx_diagram(const Case& c, const TrainResult& r) {
       x.push_back(p.T - kZeroCelsius);
       y.push_back(p.X_eq);
     }
-    chart.add_line(x, y, {.label = "equilibrium X_eq(T) at the feed composition",
-                          .colour = "#000000", .dash = "", .width = 2.5});
+    chart.add_line(x, y,
+                   {.label = "equilibrium X_eq(T) at the feed composition",
+                    .colour = "#000000",
+                    .dash = "",
+                    .width = 2.5});
   }
   if (r.max_rate_locus.size() >= 2) {
     x.clear();
@@ -51,8 +54,9 @@ Figure tx_diagram(const Case& c, const TrainResult& r) {
       x.push_back(p.T - kZeroCelsius);
       y.push_back(p.X);
     }
-    chart.add_line(x, y, {.label = "maximum-rate locus T_opt(X)", .colour = "#777777",
-                          .dash = "2 3", .width = 1.5});
+    chart.add_line(
+        x, y,
+        {.label = "maximum-rate locus T_opt(X)", .colour = "#777777", .dash = "2 3", .width = 1.5});
   }
   for (const auto& s : r.stages) {
     x.clear();
@@ -76,8 +80,7 @@ Figure tx_diagram(const Case& c, const TrainResult& r) {
   }
   if (c.limits.T_max)
     chart.add_vline(*c.limits.T_max - kZeroCelsius, {.label = "T_max", .colour = "#D55E00"});
-  if (c.limits.T_in_min)
-    chart.add_vline(*c.limits.T_in_min - kZeroCelsius, {.label = "T_in_min"});
+  if (c.limits.T_in_min) chart.add_vline(*c.limits.T_in_min - kZeroCelsius, {.label = "T_in_min"});
   if (c.target_conversion) chart.add_hline(*c.target_conversion, {.label = "target"});
   std::string caption =
       "Each stage's operating path; exchangers are the constant-conversion steps between "
@@ -89,8 +92,8 @@ Figure tx_diagram(const Case& c, const TrainResult& r) {
 
 std::vector<Figure> profile_figures(const TrainResult& r) {
   const bool catalyst = all_reactors_have_catalyst(r);
-  const std::string position = catalyst ? "Catalyst mass from the train inlet (kg)"
-                                        : "Volume from the train inlet (m³)";
+  const std::string position =
+      catalyst ? "Catalyst mass from the train inlet (kg)" : "Volume from the train inlet (m³)";
   svg::ChartOptions ot;
   ot.width = 720;
   ot.height = 340;

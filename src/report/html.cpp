@@ -39,10 +39,6 @@ std::string cell(const std::string& text, bool numeric) {
   return fmt::format("<td{}>{}</td>", numeric ? " class=\"num\"" : "", xml_escape(text));
 }
 
-const char* kind_name(StageKind k) {
-  return k == StageKind::Pfr ? "pfr" : k == StageKind::Cstr ? "cstr" : "exchanger";
-}
-
 // A temperature cell: °C on top, K below, both with two decimals.
 std::string temperature_cell(double T) {
   return fmt::format("<td class=\"num\">{}<br/><span class=\"kelvin\">{} K</span></td>",
@@ -58,8 +54,8 @@ std::string stage_table(const TrainResult& r) {
   h += "</tr>\n";
   for (const auto& s : r.stages) {
     std::string heat = "-";
-    if (s.heat) heat = *s.heat == HeatMode::Adiabatic ? "adiabatic" : "isothermal";
-    h += "<tr>" + cell(s.id, false) + cell(kind_name(s.kind), false) + cell(heat, false) +
+    if (s.heat) heat = heat_mode_name(*s.heat);
+    h += "<tr>" + cell(s.id, false) + cell(stage_kind_name(s.kind), false) + cell(heat, false) +
          cell(fixed_text(s.volume, 3) + (s.sized ? "*" : ""), true) +
          cell(fixed_text(s.catalyst_mass, 1), true) + cell(sig_text(s.space_time), true) +
          temperature_cell(s.inlet.T) + temperature_cell(s.outlet.T) + temperature_cell(s.T_max) +
@@ -88,7 +84,8 @@ std::string space_velocity_table(const TrainResult& r) {
 }
 
 std::string stream_table(const TrainResult& r) {
-  std::string h = "<table>\n<tr><th>species</th><th>feed (mol/s)</th><th>outlet (mol/s)</th></tr>\n";
+  std::string h =
+      "<table>\n<tr><th>species</th><th>feed (mol/s)</th><th>outlet (mol/s)</th></tr>\n";
   for (std::size_t i = 0; i < r.species.size(); ++i)
     h += "<tr>" + cell(r.species[i], false) + cell(fmt::format("{:.5g}", r.feed.F[i]), true) +
          cell(fmt::format("{:.5g}", std::max(0.0, r.outlet.F[i])), true) + "</tr>\n";
@@ -97,7 +94,9 @@ std::string stream_table(const TrainResult& r) {
 
 std::string cp_text(const ThermoModel& t) {
   struct Visitor {
-    std::string operator()(const CpConstant& m) const { return fmt::format("{:g} J/(mol·K)", m.cp); }
+    std::string operator()(const CpConstant& m) const {
+      return fmt::format("{:g} J/(mol·K)", m.cp);
+    }
     std::string operator()(const CpPolynomial& m) const {
       return fmt::format("{:g} + {:g}·T + {:g}·T² + {:g}·T³ J/(mol·K)", m.a[0], m.a[1], m.a[2],
                          m.a[3]);
@@ -113,7 +112,8 @@ std::string cp_text(const ThermoModel& t) {
 // The rate law written out with the case's own numbers (SI).
 std::string rate_text(const Mechanism& mech, const Reaction& rx) {
   const bool pressure = rx.rate.driving == Driving::Pressure;
-  std::string s = fmt::format("r = {:.4g} · exp[−{:.4g} kJ/mol / R · ", rx.rate.A, rx.rate.Ea / 1e3);
+  std::string s =
+      fmt::format("r = {:.4g} · exp[−{:.4g} kJ/mol / R · ", rx.rate.A, rx.rate.Ea / 1e3);
   s += rx.rate.T_ref ? fmt::format("(1/T − 1/{:.2f} K)]", *rx.rate.T_ref) : std::string("1/T]");
   for (int i = 0; i < mech.n_species(); ++i) {
     const double o = rx.rate.orders[i];
@@ -129,8 +129,9 @@ std::string rate_text(const Mechanism& mech, const Reaction& rx) {
 
 std::string inputs_section(const Case& c) {
   const Mechanism& m = c.mechanism;
-  std::string h = "<h2 id=\"inputs\">Inputs</h2>\n<h3>Species</h3>\n<table>\n<tr><th>id</th>"
-                  "<th>name</th><th>M (g/mol)</th><th>h_f (kJ/mol)</th><th>c_p</th></tr>\n";
+  std::string h =
+      "<h2 id=\"inputs\">Inputs</h2>\n<h3>Species</h3>\n<table>\n<tr><th>id</th>"
+      "<th>name</th><th>M (g/mol)</th><th>h_f (kJ/mol)</th><th>c_p</th></tr>\n";
   for (const auto& s : m.species())
     h += "<tr>" + cell(s.id, false) + cell(s.name, false) +
          cell(s.mw ? fmt::format("{:.3f}", *s.mw * 1e3) : "-", true) +
@@ -167,9 +168,10 @@ std::string run_report_html(const Case& c, const TrainResult& r, const std::vect
                    kStyle);
   h += fmt::format("<h1>{}</h1>\n", xml_escape(r.title));
   h += "<table class=\"origin\">\n";
-  h += fmt::format("<tr><td>case file</td><td><code>{}</code></td></tr>\n",
-                   xml_escape(p.case_file));
-  h += fmt::format("<tr><td>SHA-256</td><td><code>{}</code></td></tr>\n", xml_escape(p.case_sha256));
+  h +=
+      fmt::format("<tr><td>case file</td><td><code>{}</code></td></tr>\n", xml_escape(p.case_file));
+  h +=
+      fmt::format("<tr><td>SHA-256</td><td><code>{}</code></td></tr>\n", xml_escape(p.case_sha256));
   h += fmt::format("<tr><td>rxtrain</td><td>{}</td></tr>\n", xml_escape(p.version));
   h += fmt::format("<tr><td>date</td><td>{}</td></tr>\n</table>\n", xml_escape(p.date));
   h += fmt::format("<p class=\"caution\"><strong>Caution.</strong> {}</p>\n", xml_escape(kCaution));

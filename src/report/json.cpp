@@ -25,18 +25,6 @@ json stream(const std::vector<std::string>& ids, const Stream& s) {
   return {{"T", number(s.T)}, {"P", number(s.P)}, {"flows", flows(ids, s.F)}};
 }
 
-const char* kind_name(StageKind k) {
-  switch (k) {
-    case StageKind::Pfr:
-      return "pfr";
-    case StageKind::Cstr:
-      return "cstr";
-    case StageKind::Exchanger:
-      return "exchanger";
-  }
-  return "?";
-}
-
 json profile(const std::vector<std::string>& ids, const StageResult& r) {
   json V = json::array(), T = json::array(), X = json::array();
   std::vector<json> F(ids.size(), json::array());
@@ -54,9 +42,8 @@ json profile(const std::vector<std::string>& ids, const StageResult& r) {
 json stage(const std::vector<std::string>& ids, const StageResult& r) {
   json s;
   s["id"] = r.id;
-  s["type"] = kind_name(r.kind);
-  s["heat"] = r.heat ? json(*r.heat == HeatMode::Adiabatic ? "adiabatic" : "isothermal")
-                     : json(nullptr);
+  s["type"] = stage_kind_name(r.kind);
+  s["heat"] = r.heat ? json(heat_mode_name(*r.heat)) : json(nullptr);
   s["sized"] = r.sized;
   s["volume"] = number(r.volume);
   s["catalyst_mass"] = number(r.catalyst_mass);
@@ -74,7 +61,8 @@ json stage(const std::vector<std::string>& ids, const StageResult& r) {
   s["outlet"] = stream(ids, r.outlet);
   json states = json::array();
   for (const auto& ss : r.steady_states)
-    states.push_back({{"T", number(ss.T)}, {"conversion", number(ss.X)}, {"flows", flows(ids, ss.F)}});
+    states.push_back(
+        {{"T", number(ss.T)}, {"conversion", number(ss.X)}, {"flows", flows(ids, ss.F)}});
   s["steady_states"] = r.kind == StageKind::Cstr ? states : json(nullptr);
   s["profile"] = profile(ids, r);
   s["solver"] = {{"steps", r.stats.steps},
@@ -121,6 +109,20 @@ nlohmann::json to_json(const TrainResult& result) {
   for (const auto& p : result.max_rate_locus)
     locus.push_back({{"X", number(p.X)}, {"T_opt", number(p.T)}});
   j["max_rate_locus"] = locus;
+  json lev = json::array();
+  for (const auto& c : result.levenspiel) {
+    json points = json::array();
+    for (const auto& p : c.points)
+      points.push_back({{"X", number(p.X)}, {"inverse_rate", number(p.inverse_rate)}});
+    lev.push_back({{"stage", c.stage},
+                   {"basis", c.catalyst_basis ? "catalyst" : "volume"},
+                   {"rectangle", c.rectangle},
+                   {"X_in", number(c.X_in)},
+                   {"X_out", number(c.X_out)},
+                   {"area", number(c.area)},
+                   {"points", points}});
+  }
+  j["levenspiel"] = lev;
   j["warnings"] = result.warnings;
   j["caution"] = kCaution;
   return j;

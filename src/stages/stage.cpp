@@ -7,10 +7,26 @@ namespace rxtrain {
 namespace {
 // Normal conditions for GHSV: 0 degC and 1 atm (common practice; the basis
 // is stated in every report).
-constexpr double kNormalT = 273.15;     // K
-constexpr double kNormalP = 101325.0;   // Pa (1 atm, NIST SP 811)
+constexpr double kNormalT = 273.15;    // K
+constexpr double kNormalP = 101325.0;  // Pa (1 atm, NIST SP 811)
 constexpr double kSecondsPerHour = 3600.0;
 }  // namespace
+
+const char* stage_kind_name(StageKind kind) {
+  switch (kind) {
+    case StageKind::Pfr:
+      return "pfr";
+    case StageKind::Cstr:
+      return "cstr";
+    case StageKind::Exchanger:
+      return "exchanger";
+  }
+  return "?";
+}
+
+const char* heat_mode_name(HeatMode heat) {
+  return heat == HeatMode::Adiabatic ? "adiabatic" : "isothermal";
+}
 
 void add_space_velocities(const Mechanism& mech, StageResult& r) {
   if (!r.volume || *r.volume <= 0) return;

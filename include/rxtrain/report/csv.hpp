@@ -4,6 +4,9 @@
 //                 conversion, each molar flow
 //   paths.csv:    the temperature-conversion diagram's curves, one point a
 //                 row: curve (path | equilibrium | max_rate), stage, T, X
+//   levenspiel.csv: each reactor stage's F_key,feed/(-r_key) against X,
+//                 one point a row (basis volume_m3 | catalyst_kg), then a
+//                 row with only the stage's area
 #pragma once
 
 #include <string>
@@ -15,5 +18,6 @@ namespace rxtrain {
 std::string stages_csv(const TrainResult& result);
 std::string profiles_csv(const TrainResult& result);
 std::string paths_csv(const TrainResult& result);
+std::string levenspiel_csv(const TrainResult& result);
 
 }  // namespace rxtrain

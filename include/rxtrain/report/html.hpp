@@ -15,10 +15,10 @@ namespace rxtrain {
 
 // What the report says about where it came from.
 struct ReportProvenance {
-  std::string case_file;   // as passed on the command line
-  std::string case_sha256; // of the case file's bytes
-  std::string date;        // ISO 8601, UTC
-  std::string version;     // rxtrain version
+  std::string case_file;    // as passed on the command line
+  std::string case_sha256;  // of the case file's bytes
+  std::string date;         // ISO 8601, UTC
+  std::string version;      // rxtrain version
 };
 
 std::string run_report_html(const Case& c, const TrainResult& r, const std::vector<Figure>& figures,

@@ -9,7 +9,10 @@
 //                                "approach_T"} | null,
 //                "path": [{"T", "X"}, ...]}],
 //    "outlet": STREAM, "equilibrium_curve": [{"T", "X_eq"}, ...],
-//    "max_rate_locus": [{"X", "T_opt"}, ...], "warnings": [...], "caution"}
+//    "max_rate_locus": [{"X", "T_opt"}, ...],
+//    "levenspiel": [{"stage", "basis": "volume" | "catalyst", "rectangle",
+//                    "X_in", "X_out", "area", "points": [{"X",
+//                    "inverse_rate"}, ...]}], "warnings": [...], "caution"}
 // STREAM = {"T", "P", "flows": {id: mol/s}}. Fields that do not apply are
 // null. GHSV, WHSV and LHSV are in 1/h as the trade quotes them; every
 // other value is SI.

@@ -16,6 +16,11 @@ namespace rxtrain {
 
 enum class StageKind { Pfr, Cstr, Exchanger };
 
+// The names every output uses: "pfr", "cstr", "exchanger"; "adiabatic",
+// "isothermal".
+const char* stage_kind_name(StageKind kind);
+const char* heat_mode_name(HeatMode heat);
+
 struct ProfilePoint {
   double V = 0;            // m3 from the stage inlet
   double T = 0;            // K
