@@ -84,3 +84,18 @@ TEST_CASE("an unknown option is a usage error with exit code 2", "[cli]") {
   const auto r = run_rxtrain("run --no-such-option x.yaml");
   CHECK(r.exit_code == 2);
 }
+
+TEST_CASE("the README's example case runs", "[cli]") {
+  const std::string readme = slurp(fs::path(RXTRAIN_SOURCE_DIR) / "README.md");
+  const auto start = readme.find("```yaml\n");
+  REQUIRE(start != std::string::npos);
+  const auto end = readme.find("```", start + 8);
+  const auto dir = scratch("readme");
+  {
+    std::ofstream(dir / "readme.yaml") << readme.substr(start + 8, end - start - 8);
+  }
+  const auto r = run_rxtrain("run '" + (dir / "readme.yaml").string() + "'");
+  INFO(r.err);
+  CHECK(r.exit_code == 0);
+  fs::remove_all(dir);
+}
