@@ -8,8 +8,11 @@
 
 #include <catch2/catch.hpp>
 #include <cmath>
+#include <filesystem>
+#include <nlohmann/json.hpp>
 #include <string>
 
+#include "run_command.hpp"
 #include "rxtrain/case.hpp"
 #include "rxtrain/report/csv.hpp"
 #include "rxtrain/report/json.hpp"
@@ -24,8 +27,8 @@ using rxtrain::TrainResult;
 double rel(double a, double b) { return std::abs(a - b) / std::abs(b); }
 
 // Invented liquid A -> B, exothermic, per-volume first-order rate with
-// SI constants: k = 2e-3 1/s at 330 K, Ea 60 kJ/mol, dH -60 kJ/mol, so
-// an adiabatic stage heats up by ~50 K across the conversion.
+// SI constants: k = 3e-4 1/s at 330 K, Ea 60 kJ/mol, dH -20 kJ/mol, so
+// an adiabatic stage heats up by ~31 K for complete conversion.
 std::string liquid_case(const std::string& train) {
   return R"(title: Levenspiel test, liquid A -> B (invented data)
 phase: liquid
@@ -36,15 +39,16 @@ species:
 reactions:
   - id: r1
     equation: A => B
-    rate: {A: 2.0e-3, Ea: 60 kJ/mol, T_ref: 330 K}
-    dH: -60 kJ/mol
+    rate: {A: 3.0e-4, Ea: 60 kJ/mol, T_ref: 330 K}
+    dH: -20 kJ/mol
 feed:
   T: 330 K
   P: 2 bar
   flows: {A: 2 mol/s, S: 6 mol/s}
 key: A
 train:
-)" + train + "\n";
+)" + train +
+         "\n";
 }
 
 TrainResult run(const std::string& text) {
@@ -56,7 +60,7 @@ TrainResult run(const std::string& text) {
 }  // namespace
 
 TEST_CASE("Levenspiel areas equal the volumes of adiabatic tubular stages", "[levenspiel]") {
-  const TrainResult r = run(liquid_case(R"(  - {type: pfr, id: P1, volume: 0.5 m3}
+  const TrainResult r = run(liquid_case(R"(  - {type: pfr, id: P1, volume: 1.0 m3}
   - {type: exchanger, id: C1, T_out: 335 K}
   - {type: pfr, id: P2, target: {conversion: 0.9}})"));
   REQUIRE(r.levenspiel.size() == 2);
@@ -99,8 +103,9 @@ TEST_CASE("isothermal first order: 1/r follows the closed form", "[levenspiel]")
   // -r_A = k C_A0 (1 - X) at constant density, so F_A0/(-r_A) = v0 / (k (1 - X))
   // and the area from 0 to X is (v0/k) (-ln(1 - X)) (first-order PFR design
   // equation, closed form).
-  const TrainResult r = run(liquid_case(R"(  - {type: pfr, id: P1, volume: 0.8 m3, heat: isothermal})"));
-  const double k = 2.0e-3;
+  const TrainResult r =
+      run(liquid_case(R"(  - {type: pfr, id: P1, volume: 0.8 m3, heat: isothermal})"));
+  const double k = 3.0e-4;
   // v0 from the feed: A 2 mol/s * 0.1 kg/mol / 900 + S 6 * 0.08 / 800 (ideal mixing of volumes).
   const double v0 = 2 * 0.1 / 900 + 6 * 0.08 / 800;
   const auto& c = r.levenspiel.at(0);
@@ -111,9 +116,11 @@ TEST_CASE("isothermal first order: 1/r follows the closed form", "[levenspiel]")
 }
 
 TEST_CASE("catalyst-basis curves stand for catalyst mass", "[levenspiel]") {
-  std::string text = liquid_case(R"(  - {type: pfr, id: P1, catalyst: 400 kg, bulk_density: 800 kg/m3}
+  std::string text =
+      liquid_case(R"(  - {type: pfr, id: P1, catalyst: 400 kg, bulk_density: 800 kg/m3}
   - {type: cstr, id: T1, catalyst: 300 kg, bulk_density: 800 kg/m3})");
-  text.replace(text.find("rate: {A"), 8, "rate: {per: catalyst, A");
+  // The same rate per kg at 800 kg/m3: A = 3e-4 / 800.
+  text.replace(text.find("rate: {A: 3.0e-4"), 16, "rate: {per: catalyst, A: 3.75e-7");
   const TrainResult r = run(text);
   REQUIRE(r.levenspiel.size() == 2);
   for (int k : {0, 1}) {
@@ -135,5 +142,34 @@ TEST_CASE("Levenspiel data in the JSON and CSV outputs", "[levenspiel]") {
   CHECK(j["levenspiel"][1]["points"][0].contains("inverse_rate"));
   const std::string csv = rxtrain::levenspiel_csv(r);
   CHECK(csv.rfind("stage,basis,conversion,inverse_rate,area\n", 0) == 0);
-  CHECK(csv.find("P1,volume_m3,,,0.5") != std::string::npos);  // area 0.5 to 12 digits
+  const auto row = csv.find("P1,volume_m3,,,");  // the stage's area row
+  REQUIRE(row != std::string::npos);
+  CHECK(std::stod(csv.substr(row + 15)) == Approx(0.5).epsilon(1e-6));
+}
+
+TEST_CASE("run --json and --csv carry the Levenspiel data of a demo case", "[levenspiel][cli]") {
+  namespace fs = std::filesystem;
+  const auto dir = fs::temp_directory_path() / "rxtrain_cli_levenspiel";
+  fs::remove_all(dir);
+  fs::create_directories(dir);
+  const std::string demo = std::string(RXTRAIN_SOURCE_DIR) + "/cases/isomerization-two-bed.yaml";
+  const auto r =
+      rxtrain::test::run_rxtrain("run '" + demo + "' --json '" + (dir / "r.json").string() +
+                                 "' --csv '" + (dir / "csv").string() + "'");
+  INFO(r.err);
+  REQUIRE(r.exit_code == 0);
+  const auto j = nlohmann::json::parse(rxtrain::test::slurp(dir / "r.json"));
+  REQUIRE(j.at("levenspiel").size() == 2);
+  for (std::size_t k = 0; k < 2; ++k) {
+    const auto& c = j["levenspiel"][k];
+    // Both beds count per kg of catalyst: the area is the catalyst mass.
+    CHECK(c["basis"] == "catalyst");
+    const auto& stage = j["stages"][k == 0 ? 0 : 2];
+    CHECK(c["stage"] == stage["id"]);
+    CHECK(c["area"].get<double>() == Approx(stage["catalyst_mass"].get<double>()).epsilon(1e-6));
+  }
+  const std::string csv = rxtrain::test::slurp(dir / "csv" / "levenspiel.csv");
+  CHECK(csv.rfind("stage,basis,conversion,inverse_rate,area\n", 0) == 0);
+  CHECK(csv.find("nan") == std::string::npos);
+  fs::remove_all(dir);
 }

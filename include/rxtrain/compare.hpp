@@ -30,9 +30,9 @@ struct CompareOptions {
 struct Layout {
   std::vector<std::string> order;  // reactor-stage ids in train order
   LayoutHeat heat = LayoutHeat::AsWritten;
-  bool case_layout = false;        // the case exactly as written
+  bool case_layout = false;  // the case exactly as written
   bool feasible = false;
-  std::string reason;              // why not, when infeasible
+  std::string reason;                    // why not, when infeasible
   std::optional<double> total_volume;    // m3
   std::optional<double> total_catalyst;  // kg, when every reactor has one
   std::optional<double> conversion;      // overall key conversion at the outlet

@@ -33,7 +33,10 @@ struct LevenspielCurve {
   // stirred tank; for a tubular stage the area under the curve, with the
   // state between profile points a cubic Hermite interpolant in X (slopes
   // from the stage's balances) and 1/r integrated by adaptive
-  // Gauss-Legendre, so it matches the stage's volume to ~1e-8.
+  // Gauss-Legendre, so it matches the stage's volume to ~1e-7 or better.
+  // A bed that runs onto equilibrium (or complete conversion) is the
+  // exception: its inverse rate grows without bound and the length that
+  // sits at equilibrium adds nothing, so the area falls short of its size.
   double area = 0;
 };
 
