@@ -127,7 +127,8 @@ train:
   - {{type: pfr, id: R1, volume: {} m3, heat: isothermal}}
 )",
                                        k1, k2, T, P, Ft, V);
-  const auto& s = only_stage(run_text(text));
+  const TrainResult run_s = run_text(text);
+  const auto& s = only_stage(run_s);
   const double t = V * P / (Ft * kR * T);
   const double FB = Ft * k1 / (k2 - k1) * (std::exp(-k1 * t) - std::exp(-k2 * t));
   CHECK(s.outlet.F[0] == Approx(0).margin(1e-12));
@@ -144,7 +145,8 @@ TEST_CASE("hard: activation energy 300 kJ/mol, adiabatic ignition in the bed", "
   s.dH = -10e3;  // adiabatic rise 100 K at full conversion
   s.V = 100;
   s.heat = "adiabatic";
-  const auto& st = only_stage(run_text(single_reaction_case(s)));
+  const TrainResult run_st = run_text(single_reaction_case(s));
+  const auto& st = only_stage(run_st);
   const auto ref = gsl_pfr(s, true);
   CHECK(st.outlet.F[0] == Approx(ref[0]).epsilon(1e-5).margin(1e-9));
   CHECK(st.outlet.T == Approx(ref[1]).epsilon(1e-7));
@@ -196,7 +198,8 @@ train:
   - {{type: pfr, id: R1, volume: {} m3, heat: isothermal}}
 )",
                                        kA, kC, T, P, Ft * (1 - xC), Ft * xC, V);
-  const auto& s = only_stage(run_text(text));
+  const TrainResult run_s = run_text(text);
+  const auto& s = only_stage(run_s);
   const double t = V * P / (Ft * kR * T);
   CHECK(s.outlet.F[0] == Approx(Ft * (1 - xC) * std::exp(-kA * t)).epsilon(1e-6));
   CHECK(s.outlet.F[2] == Approx(Ft * xC * std::exp(-kC * t)).epsilon(1e-4));
@@ -252,7 +255,8 @@ TEST_CASE("hard: adiabatic CSTR with three steady states, each a true root", "[h
   s.Ea = 100e3;
   s.dH = -20e3;
   s.V = 1;
-  const auto& st = only_stage(run_text(single_reaction_case(s)));
+  const TrainResult run_st = run_text(single_reaction_case(s));
+  const auto& st = only_stage(run_st);
 
   struct G {
     static double f(double T, void* p) {
@@ -301,7 +305,8 @@ TEST_CASE("hard: endothermic adiabatic bed cools by more than 150 K", "[hard]") 
   s.dH = 40e3;  // adiabatic drop 400 K at full conversion
   s.V = 1;
   s.heat = "adiabatic";
-  const auto& st = only_stage(run_text(single_reaction_case(s)));
+  const TrainResult run_st = run_text(single_reaction_case(s));
+  const auto& st = only_stage(run_st);
   const auto ref = gsl_pfr(s, true);
   CHECK(s.T0 - st.outlet.T > 150);
   CHECK(st.outlet.T == Approx(ref[1]).epsilon(1e-7));
@@ -319,7 +324,8 @@ TEST_CASE("hard: very small (1e-6 m3) and very large (1e4 m3) volumes", "[hard]"
     for (const char* type : {"pfr", "cstr"}) {
       s.type = type;
       INFO(type << " V = " << V);
-      const auto& st = only_stage(run_text(single_reaction_case(s)));
+      const TrainResult run_st = run_text(single_reaction_case(s));
+      const auto& st = only_stage(run_st);
       const double kt = s.k_ref * V * s.P / (s.Ft * kR * s.T0);
       CHECK(kt > 0.5);
       CHECK(kt < 5);  // a conversion worth checking, neither ~0 nor ~1

@@ -28,6 +28,7 @@ int run_staging_command(const StagingCommandOptions& o) {
   const StagingResult result = run_staging(c, o.staging);
   // Rendered before anything is written; a failure leaves no file behind.
   OutputSet out;
+  out.protect(o.case_file);  // the case file is never an output
   if (!o.json_path.empty()) out.add(o.json_path, staging_json_text(result));
   out.commit();
   std::fputs(format_staging_report(result).c_str(), stdout);
