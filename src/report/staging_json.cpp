@@ -14,10 +14,6 @@ json num(double v) { return std::isfinite(v) ? json(v) : json(nullptr); }
 json num(const std::optional<double>& v) { return v ? num(*v) : json(nullptr); }
 json text_or_null(const std::string& s) { return s.empty() ? json(nullptr) : json(s); }
 
-const char* kind_name(StageKind k) {
-  return k == StageKind::Pfr ? "pfr" : k == StageKind::Cstr ? "cstr" : "exchanger";
-}
-
 json path_of(const StagingResult& r, const std::string& id) {
   json path = json::array();
   for (const auto& st : r.staged_run.stages)
@@ -50,7 +46,7 @@ json staging_json(const StagingResult& r) {
   json given = json::array();
   for (const auto& a : r.as_given)
     given.push_back({{"id", a.id},
-                     {"type", kind_name(a.kind)},
+                     {"type", stage_kind_name(a.kind)},
                      {"ran", a.ran},
                      {"T_in", num(a.T_in)},
                      {"T_out", a.ran ? num(a.T_out) : json(nullptr)},

@@ -8,10 +8,6 @@ namespace rxtrain {
 
 namespace {
 
-const char* kind_name(StageKind k) {
-  return k == StageKind::Pfr ? "pfr" : k == StageKind::Cstr ? "cstr" : "exchanger";
-}
-
 std::string limit_text(const std::optional<double>& T) {
   return T ? fmt::format("{} °C", celsius_text(*T)) : std::string("not given");
 }
@@ -63,12 +59,12 @@ std::string format_staging_report(const StagingResult& r) {
                   "T_ad_eq °C", "V m3"});
   for (const auto& a : r.as_given) {
     if (!a.ran) {
-      rows.push_back({a.id, kind_name(a.kind), celsius_text(a.T_in), "-", "-",
+      rows.push_back({a.id, stage_kind_name(a.kind), celsius_text(a.T_in), "-", "-",
                       fixed_text(a.X_in, 4), "-", fixed_text(a.X_ad_eq, 4),
                       a.T_ad_eq ? celsius_text(*a.T_ad_eq) : "-", "-"});
       continue;
     }
-    rows.push_back({a.id, kind_name(a.kind), celsius_text(a.T_in), celsius_text(a.T_out),
+    rows.push_back({a.id, stage_kind_name(a.kind), celsius_text(a.T_in), celsius_text(a.T_out),
                     celsius_text(r.exothermic ? a.T_max : a.T_min), fixed_text(a.X_in, 4),
                     fixed_text(a.X_out, 4), fixed_text(a.X_ad_eq, 4),
                     a.T_ad_eq ? celsius_text(*a.T_ad_eq) : "-", fixed_text(a.volume, 3)});
