@@ -22,6 +22,26 @@ double seconds_since(Clock::time_point t0) {
   return std::chrono::duration<double>(Clock::now() - t0).count();
 }
 
+// Median over ten batches, each calibrated to about budget/10 seconds.
+double median_seconds_per_run(const rxtrain::Case& c, const rxtrain::TrainOptions& o,
+                              double budget) {
+  long batch = 1;
+  for (;;) {
+    const auto t0 = Clock::now();
+    for (long k = 0; k < batch; ++k) rxtrain::run_train(c, o);
+    if (seconds_since(t0) > budget / 10 || batch > (1L << 24)) break;
+    batch *= 2;
+  }
+  std::vector<double> per_run;
+  for (int b = 0; b < 10; ++b) {
+    const auto t0 = Clock::now();
+    for (long k = 0; k < batch; ++k) rxtrain::run_train(c, o);
+    per_run.push_back(seconds_since(t0) / static_cast<double>(batch));
+  }
+  std::nth_element(per_run.begin(), per_run.begin() + 5, per_run.end());
+  return per_run[5];
+}
+
 }  // namespace
 
 int main(int argc, char** argv) {
@@ -43,38 +63,30 @@ int main(int argc, char** argv) {
     std::sort(files.begin(), files.end());
   }
   const UnitParser units;
-  fmt::print("{:<44} {:>12} {:>8} {:>8} {:>8} {:>8}\n", "case", "time/run", "stages", "steps",
-             "rhs", "jac");
+  fmt::print("{:<36} {:>12} {:>14} {:>7} {:>7} {:>7} {:>7}\n", "case", "core/run",
+             "with views/run", "stages", "steps", "rhs", "jac");
   for (const auto& f : files) {
     try {
       const Case c = load_case(f, units);
-      TrainResult first = run_train(c);
+      // "core": the train alone; "with views": plus equilibrium records,
+      // the equilibrium curve, the maximum-rate locus and Levenspiel data,
+      // as `rxtrain run` computes them.
+      TrainOptions core;
+      core.equilibrium_views = false;
+      TrainResult first = run_train(c, core);
       long steps = 0, rhs = 0, jac = 0;
       for (const auto& s : first.stages) {
         steps += s.stats.steps;
         rhs += s.stats.rhs_evals;
         jac += s.stats.jac_evals;
       }
-      // Calibrate the batch size to about budget/10 seconds.
-      long batch = 1;
-      for (;;) {
-        const auto t0 = Clock::now();
-        for (long k = 0; k < batch; ++k) run_train(c);
-        if (seconds_since(t0) > budget / 10 || batch > (1L << 24)) break;
-        batch *= 2;
-      }
-      std::vector<double> per_run;
-      for (int b = 0; b < 10; ++b) {
-        const auto t0 = Clock::now();
-        for (long k = 0; k < batch; ++k) run_train(c);
-        per_run.push_back(seconds_since(t0) / static_cast<double>(batch));
-      }
-      std::nth_element(per_run.begin(), per_run.begin() + 5, per_run.end());
-      fmt::print("{:<44} {:>9.3f} ms {:>8} {:>8} {:>8} {:>8}\n",
-                 std::filesystem::path(f).filename().string(), per_run[5] * 1e3,
+      const double t_core = median_seconds_per_run(c, core, budget);
+      const double t_views = median_seconds_per_run(c, TrainOptions{}, budget);
+      fmt::print("{:<36} {:>9.3f} ms {:>11.3f} ms {:>7} {:>7} {:>7} {:>7}\n",
+                 std::filesystem::path(f).filename().string(), t_core * 1e3, t_views * 1e3,
                  first.stages.size(), steps, rhs, jac);
     } catch (const std::exception& e) {
-      fmt::print("{:<44} failed: {}\n", std::filesystem::path(f).filename().string(), e.what());
+      fmt::print("{:<36} failed: {}\n", std::filesystem::path(f).filename().string(), e.what());
     }
   }
   return 0;
