@@ -184,22 +184,34 @@ class DepthScan {
   // Flow brackets and quotes from position i on; notes a block scalar header.
   void scan_flow(std::string_view l, std::size_t i, int line, std::size_t indent) {
     char last = ' ';
+    // The last character that is not a space; 0 at the start of the
+    // content. A quote opens a quoted scalar only where a value can
+    // begin (here, or after ':', '[', '{', ','); elsewhere, as in
+    // "Reactor 'R1', second pass", it is part of a plain scalar.
+    char last_solid = 0;
     for (; i < l.size(); ++i) {
       const char c = l[i];
       if (in_quote_) {
         if (c == '\\' && in_quote_ == '"') {
           ++i;
         } else if (c == in_quote_) {
-          if (c == '\'' && i + 1 < l.size() && l[i + 1] == '\'') ++i;  // '' inside '...'
-          else in_quote_ = 0;
+          if (c == '\'' && i + 1 < l.size() && l[i + 1] == '\'') {
+            ++i;  // '' inside '...'
+          } else {
+            in_quote_ = 0;
+            if (flow_ == 0 && quote_opens_scalar_) refuse_comma_after_quote(l, i + 1, line);
+          }
         }
         last = c;
+        if (!is_space(c)) last_solid = c;
         continue;
       }
       if (c == '#' && is_space(last)) break;
       if ((c == '"' || c == '\'') && (is_space(last) || last == '[' || last == '{' ||
                                       last == ',' || last == ':')) {
         in_quote_ = c;
+        quote_opens_scalar_ = last_solid == 0 || last_solid == ':' || last_solid == '[' ||
+                              last_solid == '{' || last_solid == ',';
       } else if (c == '[' || c == '{') {
         ++flow_;
         check(line, i);
@@ -216,7 +228,20 @@ class DepthScan {
         }
       }
       last = c;
+      if (!is_space(c)) last_solid = c;
     }
+  }
+
+  // Outside [..] and {..} only a comment, ':' or the end of the line may
+  // follow a quoted scalar (YAML 1.2.2, 7.3 and 8.2). yaml-cpp 0.7 loops
+  // forever on a ',' there when the scalar is a document's root (found by
+  // fuzz_case_loader), so every such ',' is refused before it parses.
+  void refuse_comma_after_quote(std::string_view l, std::size_t k, int line) const {
+    while (k < l.size() && is_space(l[k])) ++k;
+    if (k < l.size() && l[k] == ',')
+      throw InputError({name_, line, static_cast<int>(k) + 1},
+                       "YAML syntax error: ',' after a quoted value outside a flow list [...] or "
+                       "mapping {...}; only ':' or a comment may follow it here");
   }
 
   const std::string& name_;
@@ -224,6 +249,7 @@ class DepthScan {
   std::vector<Level> levels_;
   int flow_ = 0;
   char in_quote_ = 0;
+  bool quote_opens_scalar_ = false;  // the open quote began a quoted scalar
   std::optional<std::size_t> block_scalar_indent_;
 };
 

@@ -184,6 +184,22 @@ TEST_CASE("very long strings and numbers: a clear answer, never a crash", "[limi
   CHECK_THAT(refusal("title: a\ntitle: b\n"), Catch::Contains("x.yaml:2:1: error: duplicate key"));
 }
 
+TEST_CASE("a ',' after a quoted root value is refused before yaml-cpp loops on it",
+          "[limits]") {
+  // yaml-cpp 0.7 never returns from these (found by fuzz_case_loader); YAML
+  // 1.2.2 (7.3, 8.2) allows only ':' or a comment after a quoted scalar in
+  // block context, so each is refused at the ','.
+  CHECK_THAT(refusal("'',"), Catch::Contains("x.yaml:1:3: error: YAML syntax error: ','"));
+  CHECK_THAT(refusal("\"a\" , b"), Catch::Contains("x.yaml:1:5:"));
+  CHECK_THAT(refusal("title: a\n---\n'x',\n"), Catch::Contains("x.yaml:3:4:"));
+  CHECK_THAT(refusal("'a\n  b',\n"), Catch::Contains("x.yaml:2:5:"));
+  // Quotes inside plain scalars and inside flow collections are not that.
+  CHECK(refusal("title: Reactor 'R1', second pass (invented data)\n" +
+                small_case().substr(small_case().find('\n') + 1)).empty());
+  CHECK(refusal(small_case("['A', \"B\"]")).empty());
+  CHECK(refusal(small_case("[\n  {id: 'A'},\n  {id: B}\n]")).empty());
+}
+
 TEST_CASE("check_finite names the stage and the field of a NaN or Inf", "[limits]") {
   const UnitParser units;
   const Case c = load_case_from_string(small_case(), "x.yaml", units);
