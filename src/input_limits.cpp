@@ -181,14 +181,22 @@ class DepthScan {
     return false;
   }
 
-  // Flow brackets and quotes from position i on; notes a block scalar header.
+  static bool is_flow_indicator(char c) {
+    return c == ',' || c == '[' || c == ']' || c == '{' || c == '}';
+  }
+
+  // Flow brackets and quotes from position i on; notes a block scalar
+  // header. Outside [..] and {..} it also follows where a token may begin
+  // (`token_start`): at the start of the content, after ": ", and right
+  // after a quoted scalar, a closed flow collection, an anchor, an alias or
+  // a tag. There YAML allows no ',' (YAML 1.2.2, 7.3 and 8.2: it is a flow
+  // indicator, and a plain scalar cannot start with one), and yaml-cpp 0.7
+  // loops forever on one at a document's root ("'',", "[a],", "&x 'a',",
+  // found by fuzz_case_loader), so each is refused before it parses. A ','
+  // inside a plain scalar ("Reactor 'R1', second pass") is text.
   void scan_flow(std::string_view l, std::size_t i, int line, std::size_t indent) {
     char last = ' ';
-    // The last character that is not a space; 0 at the start of the
-    // content. A quote opens a quoted scalar only where a value can
-    // begin (here, or after ':', '[', '{', ','); elsewhere, as in
-    // "Reactor 'R1', second pass", it is part of a plain scalar.
-    char last_solid = 0;
+    bool token_start = true;
     for (; i < l.size(); ++i) {
       const char c = l[i];
       if (in_quote_) {
@@ -199,25 +207,46 @@ class DepthScan {
             ++i;  // '' inside '...'
           } else {
             in_quote_ = 0;
-            if (flow_ == 0 && quote_opens_scalar_) refuse_comma_after_quote(l, i + 1, line);
+            token_start = flow_ == 0 && quote_opens_token_;
           }
         }
         last = c;
-        if (!is_space(c)) last_solid = c;
         continue;
       }
       if (c == '#' && is_space(last)) break;
-      if ((c == '"' || c == '\'') && (is_space(last) || last == '[' || last == '{' ||
-                                      last == ',' || last == ':')) {
+      const bool block = flow_ == 0;
+      if (block && token_start) {
+        if (is_space(c)) {
+          last = c;
+          continue;
+        }
+        if (c == ',')
+          throw InputError({name_, line, static_cast<int>(i) + 1},
+                           "YAML syntax error: ',' where a value or a key must begin, outside a "
+                           "flow list [...] or mapping {...}");
+        if (c == '&' || c == '*' || c == '!') {
+          // Anchor, alias or tag: a name up to a space or a flow indicator.
+          while (i + 1 < l.size() && !is_space(l[i + 1]) && !is_flow_indicator(l[i + 1])) ++i;
+          last = l[i];
+          continue;
+        }
+      }
+      if ((c == '"' || c == '\'') && (block ? token_start
+                                            : is_space(last) || last == '[' || last == '{' ||
+                                                  last == ',' || last == ':')) {
         in_quote_ = c;
-        quote_opens_scalar_ = last_solid == 0 || last_solid == ':' || last_solid == '[' ||
-                              last_solid == '{' || last_solid == ',';
-      } else if (c == '[' || c == '{') {
+        quote_opens_token_ = block;
+      } else if ((c == '[' || c == '{') && (!block || token_start)) {
         ++flow_;
         check(line, i);
       } else if ((c == ']' || c == '}') && flow_ > 0) {
         --flow_;
-      } else if ((c == '|' || c == '>') && flow_ == 0 && is_space(last)) {
+        if (flow_ == 0) {
+          token_start = true;
+          last = c;
+          continue;
+        }
+      } else if ((c == '|' || c == '>') && block && token_start) {
         // A block scalar header: "|", "|-", ">+2"... then only a comment.
         std::size_t k = i + 1;
         while (k < l.size() && (l[k] == '-' || l[k] == '+' || (l[k] >= '0' && l[k] <= '9'))) ++k;
@@ -227,21 +256,11 @@ class DepthScan {
           return;
         }
       }
+      // ": " (or ':' at the end) after a key starts the value's token; any
+      // other character in block context is part of a plain scalar.
+      if (block) token_start = c == ':' && (i + 1 == l.size() || is_space(l[i + 1]));
       last = c;
-      if (!is_space(c)) last_solid = c;
     }
-  }
-
-  // Outside [..] and {..} only a comment, ':' or the end of the line may
-  // follow a quoted scalar (YAML 1.2.2, 7.3 and 8.2). yaml-cpp 0.7 loops
-  // forever on a ',' there when the scalar is a document's root (found by
-  // fuzz_case_loader), so every such ',' is refused before it parses.
-  void refuse_comma_after_quote(std::string_view l, std::size_t k, int line) const {
-    while (k < l.size() && is_space(l[k])) ++k;
-    if (k < l.size() && l[k] == ',')
-      throw InputError({name_, line, static_cast<int>(k) + 1},
-                       "YAML syntax error: ',' after a quoted value outside a flow list [...] or "
-                       "mapping {...}; only ':' or a comment may follow it here");
   }
 
   const std::string& name_;
@@ -249,7 +268,7 @@ class DepthScan {
   std::vector<Level> levels_;
   int flow_ = 0;
   char in_quote_ = 0;
-  bool quote_opens_scalar_ = false;  // the open quote began a quoted scalar
+  bool quote_opens_token_ = false;  // the open quote began a token in block context
   std::optional<std::size_t> block_scalar_indent_;
 };
 

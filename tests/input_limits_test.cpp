@@ -184,20 +184,29 @@ TEST_CASE("very long strings and numbers: a clear answer, never a crash", "[limi
   CHECK_THAT(refusal("title: a\ntitle: b\n"), Catch::Contains("x.yaml:2:1: error: duplicate key"));
 }
 
-TEST_CASE("a ',' after a quoted root value is refused before yaml-cpp loops on it",
-          "[limits]") {
-  // yaml-cpp 0.7 never returns from these (found by fuzz_case_loader); YAML
-  // 1.2.2 (7.3, 8.2) allows only ':' or a comment after a quoted scalar in
-  // block context, so each is refused at the ','.
+TEST_CASE("a ',' where a token begins is refused before yaml-cpp loops on it", "[limits]") {
+  // yaml-cpp 0.7 never returns from these (found by fuzz_case_loader). In
+  // block context YAML 1.2.2 (7.3, 8.2) allows no ',' where a value or key
+  // begins, so each is refused at the ','.
   CHECK_THAT(refusal("'',"), Catch::Contains("x.yaml:1:3: error: YAML syntax error: ','"));
   CHECK_THAT(refusal("\"a\" , b"), Catch::Contains("x.yaml:1:5:"));
   CHECK_THAT(refusal("title: a\n---\n'x',\n"), Catch::Contains("x.yaml:3:4:"));
   CHECK_THAT(refusal("'a\n  b',\n"), Catch::Contains("x.yaml:2:5:"));
-  // Quotes inside plain scalars and inside flow collections are not that.
-  CHECK(refusal("title: Reactor 'R1', second pass (invented data)\n" +
-                small_case().substr(small_case().find('\n') + 1)).empty());
-  CHECK(refusal(small_case("['A', \"B\"]")).empty());
+  CHECK_THAT(refusal("\"\"\"\","), Catch::Contains("x.yaml:1:5:"));
+  CHECK_THAT(refusal("\"\" \"\","), Catch::Contains("x.yaml:1:6:"));
+  CHECK_THAT(refusal("[a],"), Catch::Contains("x.yaml:1:4:"));
+  CHECK_THAT(refusal("{a: 1} ,"), Catch::Contains("x.yaml:1:8:"));
+  CHECK_THAT(refusal("&x 'a',"), Catch::Contains("x.yaml:1:7:"));
+  CHECK_THAT(refusal("!t \"a\","), Catch::Contains("x.yaml:1:7:"));
+  CHECK_THAT(refusal("'a''b',"), Catch::Contains("x.yaml:1:7:"));
+  // Quotes, commas and brackets inside plain scalars, and commas inside
+  // flow collections, are not that.
+  const std::string rest = small_case().substr(small_case().find('\n') + 1);
+  CHECK(refusal("title: Reactor 'R1', second pass (invented data)\n" + rest).empty());
+  CHECK(refusal("title: Pentane [C5 isomerization, {invented data\n" + rest).empty());
+  CHECK(refusal(small_case("[{id: 'A'}, {id: \"B\"}]")).empty());
   CHECK(refusal(small_case("[\n  {id: 'A'},\n  {id: B}\n]")).empty());
+  CHECK(refusal(small_case("[{id: A}, &b {id: B}]")).empty());
 }
 
 TEST_CASE("check_finite names the stage and the field of a NaN or Inf", "[limits]") {
