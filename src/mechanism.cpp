@@ -41,9 +41,14 @@ Mechanism::Mechanism(Phase phase, std::vector<Species> species, std::vector<Reac
     for (int i = 0; i < n; ++i) {
       const double o = rx.rate.orders[i];
       const double nu = rx.nu[i];
-      if (o != 0 || nu != 0) c.parts.push_back({i, o, o + nu});
+      if (o != 0 || nu != 0) {
+        c.parts.push_back({i, o, o + nu});
+        c.species.push_back(i);
+      }
       c.dnu += nu;
     }
+    c.offset = n_direct_;
+    n_direct_ += static_cast<int>(c.parts.size());
     compiled_.push_back(std::move(c));
   }
 }
@@ -208,63 +213,114 @@ void Mechanism::rates(double T, double P, const double* F, double* r) const {
   }
 }
 
+const Mechanism::Scale& Mechanism::scale_for(Driving driving, double T, double P, const double* F,
+                                             Scales& s) const {
+  if (driving == Driving::Pressure) {
+    if (!s.have_press) s.press = driving_scale(Driving::Pressure, T, P, F), s.have_press = true;
+    return s.press;
+  }
+  if (!s.have_conc) s.conc = driving_scale(Driving::Concentration, T, P, F), s.have_conc = true;
+  return s.conc;
+}
+
+double Mechanism::reaction_derivatives(int j, double T, const Scale& sc, const double* F, double* d,
+                                       double* g, double* direct, double& dilution,
+                                       double& dr_dT) const {
+  const auto& rx = reactions_[j];
+  const auto& parts = compiled_[j].parts;
+  for (const auto& p : parts) d[p.i] = std::max(F[p.i], 0.0) * sc.phi;
+
+  // Forward and reverse power products and their gradients in d.
+  const double k = rate_constant(j, T);
+  double fwd = 1, rev = 1;
+  for (const auto& p : parts) {
+    fwd *= safe_pow(d[p.i], p.forward_exp);
+    if (rx.reversible) rev *= safe_pow(d[p.i], p.reverse_exp);
+  }
+  double c_rev = 0, dc_rev_dT = 0;  // rev * c_rev is the reverse term
+  if (rx.reversible) {
+    double ln_s, dln_s;
+    activity_scale(rx, T, ln_s, dln_s);
+    c_rev = std::exp(compiled_[j].dnu * ln_s - ln_K(j, T));
+    dc_rev_dT = c_rev * (compiled_[j].dnu * dln_s - dln_K_dT(j, T));
+  }
+  // g_i = d(value)/d(d_i), products over the other participants.
+  for (const auto& p : parts) {
+    double gf = safe_pow_derivative(d[p.i], p.forward_exp);
+    double gr = rx.reversible ? safe_pow_derivative(d[p.i], p.reverse_exp) : 0.0;
+    for (const auto& q : parts) {
+      if (q.i == p.i) continue;
+      gf *= safe_pow(d[q.i], q.forward_exp);
+      if (rx.reversible) gr *= safe_pow(d[q.i], q.reverse_exp);
+    }
+    g[p.i] = gf - c_rev * gr;
+  }
+  const double value = fwd - c_rev * rev;
+
+  // Chain rule through d_i = max(F_i,0) * phi(F, T).
+  double sum_gF = 0;  // sum_i g_i * F_i+ (only participants have g != 0)
+  for (const auto& p : parts) sum_gF += g[p.i] * std::max(F[p.i], 0.0);
+  for (std::size_t q = 0; q < parts.size(); ++q)
+    direct[q] = F[parts[q].i] > 0 ? k * g[parts[q].i] * sc.phi : 0.0;
+  dilution = k * sum_gF * (phase_ == Phase::Gas ? sc.dphi_dFt : sc.dphi_dv);
+  const double dk_dT = k * rx.rate.Ea / (kGasConstant * T * T);  // same for both Arrhenius forms
+  dr_dT = dk_dT * value + k * (sum_gF * sc.dphi_dT - dc_rev_dT * rev);
+  return k * value;
+}
+
+double Mechanism::dilution_weight(int k, const double* F) const {
+  if (!(F[k] > 0)) return 0.0;
+  return phase_ == Phase::Gas ? 1.0 : *species_[k].mw / *species_[k].density;
+}
+
 void Mechanism::rates_and_jacobian(double T, double P, const double* F, double* r,
                                    Eigen::Ref<Eigen::MatrixXd> dr_dF,
                                    Eigen::Ref<Eigen::VectorXd> dr_dT) const {
+  Scratch scratch;
+  rates_and_jacobian(T, P, F, r, dr_dF, dr_dT, scratch);
+}
+
+void Mechanism::rates_and_jacobian(double T, double P, const double* F, double* r,
+                                   Eigen::Ref<Eigen::MatrixXd> dr_dF,
+                                   Eigen::Ref<Eigen::VectorXd> dr_dT, Scratch& scratch) const {
   const int n = n_species();
   const int nr = n_reactions();
   dr_dF.setZero();
-  std::vector<double> d(n), g(n);
+  scratch.d.resize(n);
+  scratch.g.resize(n);
+  scratch.direct.resize(n);
+  Scales scales;
   for (int j = 0; j < nr; ++j) {
-    const auto& rx = reactions_[j];
-    const Scale sc = driving_scale(rx.rate.driving, T, P, F);
+    const Scale& sc = scale_for(reactions_[j].rate.driving, T, P, F, scales);
+    double dilution = 0, dT = 0;
+    r[j] = reaction_derivatives(j, T, sc, F, scratch.d.data(), scratch.g.data(),
+                                scratch.direct.data(), dilution, dT);
     const auto& parts = compiled_[j].parts;
-    for (const auto& p : parts) d[p.i] = std::max(F[p.i], 0.0) * sc.phi;
-
-    // Forward and reverse power products and their gradients in d.
-    const double k = rate_constant(j, T);
-    double fwd = 1, rev = 1;
-    for (const auto& p : parts) {
-      fwd *= safe_pow(d[p.i], p.forward_exp);
-      if (rx.reversible) rev *= safe_pow(d[p.i], p.reverse_exp);
-    }
-    double c_rev = 0, dc_rev_dT = 0;  // rev * c_rev is the reverse term
-    if (rx.reversible) {
-      double ln_s, dln_s;
-      activity_scale(rx, T, ln_s, dln_s);
-      c_rev = std::exp(compiled_[j].dnu * ln_s - ln_K(j, T));
-      dc_rev_dT = c_rev * (compiled_[j].dnu * dln_s - dln_K_dT(j, T));
-    }
-    // g_i = d(value)/d(d_i), products over the other participants.
-    for (const auto& p : parts) {
-      double gf = safe_pow_derivative(d[p.i], p.forward_exp);
-      double gr = rx.reversible ? safe_pow_derivative(d[p.i], p.reverse_exp) : 0.0;
-      for (const auto& q : parts) {
-        if (q.i == p.i) continue;
-        gf *= safe_pow(d[q.i], q.forward_exp);
-        if (rx.reversible) gr *= safe_pow(d[q.i], q.reverse_exp);
-      }
-      g[p.i] = gf - c_rev * gr;
-    }
-    const double value = fwd - c_rev * rev;
-    r[j] = k * value;
-
-    // Chain rule through d_i = max(F_i,0) * phi(F, T).
-    double sum_gF = 0;  // sum_i g_i * F_i+ (only participants have g != 0)
-    for (const auto& p : parts) sum_gF += g[p.i] * std::max(F[p.i], 0.0);
-    for (const auto& p : parts)
-      if (F[p.i] > 0) dr_dF(j, p.i) += k * g[p.i] * sc.phi;
+    for (std::size_t q = 0; q < parts.size(); ++q)
+      if (F[parts[q].i] > 0) dr_dF(j, parts[q].i) += scratch.direct[q];
     if (phase_ == Phase::Gas) {
-      const double common = k * sum_gF * sc.dphi_dFt;
       for (int i = 0; i < n; ++i)
-        if (F[i] > 0) dr_dF(j, i) += common;
+        if (F[i] > 0) dr_dF(j, i) += dilution;
     } else {
-      const double common = k * sum_gF * sc.dphi_dv;
       for (int i = 0; i < n; ++i)
-        if (F[i] > 0) dr_dF(j, i) += common * *species_[i].mw / *species_[i].density;
+        if (F[i] > 0) dr_dF(j, i) += dilution * *species_[i].mw / *species_[i].density;
     }
-    const double dk_dT = k * rx.rate.Ea / (kGasConstant * T * T);  // same for both Arrhenius forms
-    dr_dT(j) = dk_dT * value + k * (sum_gF * sc.dphi_dT - dc_rev_dT * rev);
+    dr_dT(j) = dT;
+  }
+}
+
+void Mechanism::rates_and_sparse_jacobian(double T, double P, const double* F, double* r,
+                                          double* direct, double* dilution, double* dr_dT,
+                                          Scratch& scratch) const {
+  const int n = n_species();
+  const int nr = n_reactions();
+  scratch.d.resize(n);
+  scratch.g.resize(n);
+  Scales scales;
+  for (int j = 0; j < nr; ++j) {
+    const Scale& sc = scale_for(reactions_[j].rate.driving, T, P, F, scales);
+    r[j] = reaction_derivatives(j, T, sc, F, scratch.d.data(), scratch.g.data(),
+                                direct + compiled_[j].offset, dilution[j], dr_dT[j]);
   }
 }
 

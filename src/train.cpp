@@ -13,7 +13,7 @@ namespace {
 
 // Equilibrium views are a reading aid: a failure to compute one is a
 // warning in the result, never a failed run.
-void add_equilibrium_views(const Case& c, const TrainOptions& options, TrainResult& result) {
+void add_equilibrium_records(const Case& c, const TrainOptions& options, TrainResult& result) {
   const Mechanism& mech = c.mechanism;
   if (!has_reversible_reaction(mech)) return;
   const ConversionBasis basis = c.conversion_basis();
@@ -59,10 +59,21 @@ void add_equilibrium_views(const Case& c, const TrainOptions& options, TrainResu
 
 }  // namespace
 
+TrainWorkspace::TrainWorkspace()
+    : ctx_(std::make_unique<SunContext>()), pfr_(std::make_unique<PfrWorkspace>(*ctx_)) {}
+TrainWorkspace::~TrainWorkspace() = default;
+TrainWorkspace::TrainWorkspace(TrainWorkspace&&) noexcept = default;
+TrainWorkspace& TrainWorkspace::operator=(TrainWorkspace&&) noexcept = default;
+
 TrainResult run_train(const Case& c, const TrainOptions& options) {
+  TrainWorkspace ws;  // one per run, shared by every tubular stage
+  return run_train(c, options, ws);
+}
+
+TrainResult run_train(const Case& c, const TrainOptions& options, TrainWorkspace& ws) {
   const Mechanism& mech = c.mechanism;
   const ConversionBasis basis = c.conversion_basis();
-  SunContext ctx;  // one per run, shared by every tubular stage
+  const SunContext& ctx = ws.context();
 
   TrainResult result;
   result.title = c.title;
@@ -79,7 +90,7 @@ TrainResult run_train(const Case& c, const TrainOptions& options) {
           if constexpr (std::is_same_v<T, ExchangerSpec>) {
             return run_exchanger(mech, s, stream, basis);
           } else if (s.type == ReactorType::Pfr) {
-            return run_pfr(mech, s, stream, basis, ctx, options.pfr);
+            return run_pfr(mech, s, stream, basis, ws.pfr(), options.pfr);
           } else {
             return run_cstr(mech, s, stream, basis, ctx, options.cstr);
           }
@@ -91,11 +102,13 @@ TrainResult run_train(const Case& c, const TrainOptions& options) {
   }
   result.outlet = stream;
   result.conversion = basis.conversion(stream);
-  if (options.equilibrium_views) {
-    add_equilibrium_views(c, options, result);
-    result.levenspiel = levenspiel_curves(mech, c.key, c.feed.F[c.key], result.stages);
-  }
+  if (options.equilibrium_views) add_equilibrium_views(c, options, result);
   return result;
+}
+
+void add_equilibrium_views(const Case& c, const TrainOptions& options, TrainResult& result) {
+  add_equilibrium_records(c, options, result);
+  result.levenspiel = levenspiel_curves(c.mechanism, c.key, c.feed.F[c.key], result.stages);
 }
 
 }  // namespace rxtrain

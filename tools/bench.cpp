@@ -1,93 +1,313 @@
-// Wall time per run of each case: `rxtrain_bench [CASE...]` (default: every
-// cases/*.yaml). A plain timed loop: each case is run repeatedly for at
-// least `--seconds` (default 1 s) and the median of ten batches is reported
-// with the solver's work counts of one run.
+// Speed benchmark (docs/performance.md): `rxtrain_bench [OPTIONS] [CASE...]`.
+//   --seconds S   time budget per measurement (default 1)
+//   --runs N      runs of the threaded sweep (default 2000)
+//   --only PART   one of startup, cases, tolerances, synthetic, threads
+// Cases default to cases/*.yaml and tools/bench-cases/*.yaml. Each figure
+// is the median of ten batches, each calibrated to about S/10 seconds,
+// with the solver's work counts of one run. Plain timed loops; nothing
+// here is a pass/fail test.
 #include <fmt/format.h>
+#include <time.h>
 
 #include <algorithm>
+#include <atomic>
 #include <chrono>
+#include <cmath>
+#include <cstdlib>
 #include <filesystem>
+#include <fstream>
+#include <functional>
+#include <new>
 #include <string>
+#include <thread>
 #include <vector>
 
 #include "rxtrain/case.hpp"
+#include "rxtrain/synthetic_mechanism.hpp"
 #include "rxtrain/train.hpp"
 #include "rxtrain/units.hpp"
 
+// Counts every heap allocation of this process, to report allocations per
+// run. A benchmark-only global; the library itself keeps no global state.
+namespace {
+std::atomic<long> g_allocations{0};
+}  // namespace
+
+void* operator new(std::size_t size) {
+  g_allocations.fetch_add(1, std::memory_order_relaxed);
+  if (void* p = std::malloc(size == 0 ? 1 : size)) return p;
+  throw std::bad_alloc();
+}
+void operator delete(void* p) noexcept { std::free(p); }
+void operator delete(void* p, std::size_t) noexcept { std::free(p); }
+
 namespace {
 
+using namespace rxtrain;
 using Clock = std::chrono::steady_clock;
 
 double seconds_since(Clock::time_point t0) {
   return std::chrono::duration<double>(Clock::now() - t0).count();
 }
 
-// Median over ten batches, each calibrated to about budget/10 seconds.
-double median_seconds_per_run(const rxtrain::Case& c, const rxtrain::TrainOptions& o,
-                              double budget) {
+double cpu_seconds() {
+  timespec ts{};
+  clock_gettime(CLOCK_PROCESS_CPUTIME_ID, &ts);
+  return static_cast<double>(ts.tv_sec) + 1e-9 * static_cast<double>(ts.tv_nsec);
+}
+
+// Seconds per call: wall-clock time, and the process's CPU time, which
+// other work on a shared machine disturbs far less.
+struct Timing {
+  double wall = 0;
+  double cpu = 0;
+};
+
+// Medians per call of `f` over ten batches of about budget/10 s each.
+Timing median_seconds(const std::function<void()>& f, double budget) {
   long batch = 1;
   for (;;) {
     const auto t0 = Clock::now();
-    for (long k = 0; k < batch; ++k) rxtrain::run_train(c, o);
+    for (long k = 0; k < batch; ++k) f();
     if (seconds_since(t0) > budget / 10 || batch > (1L << 24)) break;
     batch *= 2;
   }
-  std::vector<double> per_run;
+  std::vector<double> wall, cpu;
   for (int b = 0; b < 10; ++b) {
     const auto t0 = Clock::now();
-    for (long k = 0; k < batch; ++k) rxtrain::run_train(c, o);
-    per_run.push_back(seconds_since(t0) / static_cast<double>(batch));
+    const double c0 = cpu_seconds();
+    for (long k = 0; k < batch; ++k) f();
+    cpu.push_back((cpu_seconds() - c0) / static_cast<double>(batch));
+    wall.push_back(seconds_since(t0) / static_cast<double>(batch));
   }
-  std::nth_element(per_run.begin(), per_run.begin() + 5, per_run.end());
-  return per_run[5];
+  std::nth_element(wall.begin(), wall.begin() + 5, wall.end());
+  std::nth_element(cpu.begin(), cpu.begin() + 5, cpu.end());
+  return {wall[5], cpu[5]};
+}
+
+struct Work {
+  long steps = 0, rhs = 0, jac = 0, roots = 0;
+};
+
+Work work_of(const TrainResult& r) {
+  Work w;
+  for (const auto& s : r.stages) {
+    w.steps += s.stats.steps;
+    w.rhs += s.stats.rhs_evals;
+    w.jac += s.stats.jac_evals;
+    w.roots += s.stats.root_evals;
+  }
+  return w;
+}
+
+TrainOptions core_options() {
+  TrainOptions o;
+  o.equilibrium_views = false;  // the train alone, as a sweep runs it
+  return o;
+}
+
+std::string load_average() {
+  std::ifstream f("/proc/loadavg");
+  std::string a, b, c;
+  f >> a >> b >> c;
+  return f ? a + " " + b + " " + c : "?";
+}
+
+void bench_startup(const std::string& file, double budget) {
+  fmt::print("\n== start-up: unit database + case parse and validation ({})\n",
+             std::filesystem::path(file).filename().string());
+  const Timing t_units = median_seconds([] { const UnitParser u; }, budget);
+  const UnitParser units;
+  const Timing t_load = median_seconds([&] { (void)load_case(file, units); }, budget);
+  const Timing t_both = median_seconds(
+      [&] {
+        const UnitParser u;
+        (void)load_case(file, u);
+      },
+      budget);
+  fmt::print(
+      "unit database {:.3f} ms, load_case {:.3f} ms, together {:.3f} ms wall "
+      "({:.3f} ms CPU)\n",
+      t_units.wall * 1e3, t_load.wall * 1e3, t_both.wall * 1e3, t_both.cpu * 1e3);
+}
+
+void bench_cases(const std::vector<std::string>& files, double budget) {
+  fmt::print(
+      "\n== cases: wall time per run (fresh: run_train(c, o); reused: with a "
+      "TrainWorkspace; views: as `rxtrain run`)\n");
+  fmt::print("{:<36} {:>6} {:>6} {:>6} {:>5} {:>6} {:>7} {:>11} {:>11} {:>11} {:>11}\n", "case",
+             "stages", "steps", "rhs", "jac", "g", "allocs", "fresh", "reused", "reused CPU",
+             "views");
+  const UnitParser units;
+  for (const auto& f : files) {
+    const std::string name = std::filesystem::path(f).filename().string();
+    try {
+      const Case c = load_case(f, units);
+      const TrainOptions core = core_options();
+      TrainWorkspace ws;
+      const TrainResult first = run_train(c, core, ws);
+      const Work w = work_of(first);
+      // Heap allocations of one reused run, the result's own included.
+      const long a0 = g_allocations.load();
+      (void)run_train(c, core, ws);
+      const long allocs = g_allocations.load() - a0;
+      const Timing t_fresh = median_seconds([&] { (void)run_train(c, core); }, budget);
+      const Timing t_reused = median_seconds([&] { (void)run_train(c, core, ws); }, budget);
+      const Timing t_views =
+          median_seconds([&] { (void)run_train(c, TrainOptions{}, ws); }, budget);
+      fmt::print(
+          "{:<36} {:>6} {:>6} {:>6} {:>5} {:>6} {:>7} {:>8.1f} us {:>8.1f} us {:>8.1f} us "
+          "{:>8.2f} ms\n",
+          name, first.stages.size(), w.steps, w.rhs, w.jac, w.roots, allocs, t_fresh.wall * 1e6,
+          t_reused.wall * 1e6, t_reused.cpu * 1e6, t_views.wall * 1e3);
+    } catch (const std::exception& e) {
+      fmt::print("{:<36} failed: {}\n", name, e.what());
+    }
+  }
+}
+
+// Cost against accuracy for one case: the overall conversion at each rtol
+// against a run at rtol 1e-12.
+void bench_tolerances(const std::string& file, double budget) {
+  fmt::print("\n== {}: cost against rtol (reused workspace; default rtol 1e-8)\n",
+             std::filesystem::path(file).filename().string());
+  fmt::print("{:>7} {:>6} {:>6} {:>5} {:>11} {:>11} {:>12}\n", "rtol", "steps", "rhs", "jac",
+             "wall/run", "CPU/run", "|X - X_ref|");
+  const UnitParser units;
+  const Case c = load_case(file, units);
+  TrainOptions ref = core_options();
+  ref.pfr.cvode.rtol = 1e-12;
+  const double X_ref = run_train(c, ref).conversion;
+  for (double rtol : {1e-4, 1e-6, 1e-8, 1e-10}) {
+    TrainOptions o = core_options();
+    o.pfr.cvode.rtol = rtol;
+    TrainWorkspace ws;
+    const TrainResult r = run_train(c, o, ws);
+    const Work w = work_of(r);
+    const Timing t = median_seconds([&] { (void)run_train(c, o, ws); }, budget);
+    fmt::print("{:>7.0e} {:>6} {:>6} {:>5} {:>8.1f} us {:>8.1f} us {:>12.1e}\n", rtol, w.steps,
+               w.rhs, w.jac, t.wall * 1e6, t.cpu * 1e6, std::abs(r.conversion - X_ref));
+  }
+}
+
+double max_relative_difference(const Stream& a, const Stream& b) {
+  double d = std::abs(a.T - b.T) / a.T;
+  const double Ft = a.total_flow();
+  for (std::size_t i = 0; i < a.F.size(); ++i) d = std::max(d, std::abs(a.F[i] - b.F[i]) / Ft);
+  return d;
+}
+
+void bench_synthetic(double budget) {
+  fmt::print("\n== synthetic mechanisms, one adiabatic tubular stage, reused workspace\n");
+  fmt::print("{:>7} {:>9} {:>11} {:>11} {:>11} {:>11} {:>13} {:>9} {:>9}\n", "species", "reactions",
+             "dense", "dense CPU", "sparse", "sparse CPU", "steps/jac", "T out K", "max diff");
+  // The series of the issue (10/20, 50/100, 200/400) and, to place the
+  // automatic dense/sparse switch, a few sizes in between.
+  const int sizes[][2] = {{5, 10}, {10, 20}, {20, 40}, {30, 60}, {50, 100}, {100, 200}, {200, 400}};
+  double previous = 0;
+  int previous_nr = 0;
+  for (const auto& sz : sizes) {
+    const Case c = synthetic_case(sz[0], sz[1]);
+    TrainOptions dense = core_options(), sparse = core_options();
+    dense.pfr.jacobian = JacobianForm::Dense;
+    sparse.pfr.jacobian = JacobianForm::Sparse;
+    TrainWorkspace ws_d, ws_s;
+    const TrainResult rd = run_train(c, dense, ws_d);
+    const TrainResult rs = run_train(c, sparse, ws_s);
+    const Work wd = work_of(rd), wsp = work_of(rs);
+    const Timing t_d = median_seconds([&] { (void)run_train(c, dense, ws_d); }, budget);
+    const Timing t_s = median_seconds([&] { (void)run_train(c, sparse, ws_s); }, budget);
+    fmt::print(
+        "{:>7} {:>9} {:>8.3f} ms {:>8.3f} ms {:>8.3f} ms {:>8.3f} ms {:>7}/{:<5} {:>9.2f} "
+        "{:>9.1e}\n",
+        sz[0], sz[1], t_d.wall * 1e3, t_d.cpu * 1e3, t_s.wall * 1e3, t_s.cpu * 1e3, wsp.steps,
+        wsp.jac, rs.outlet.T, max_relative_difference(rd.outlet, rs.outlet));
+    if (wd.steps != wsp.steps) fmt::print("        dense took {} steps\n", wd.steps);
+    if (previous > 0)
+      fmt::print("        sparse CPU time x{:.2f} for reactions x{:.1f}\n", t_s.cpu / previous,
+                 static_cast<double>(sz[1]) / previous_nr);
+    previous = t_s.cpu;
+    previous_nr = sz[1];
+  }
+}
+
+// `runs` runs of the case split over `threads` threads, one workspace each.
+Timing sweep_seconds(const Case& c, int runs, int threads) {
+  const TrainOptions o = core_options();
+  const auto t0 = Clock::now();
+  const double c0 = cpu_seconds();
+  std::vector<std::thread> pool;
+  for (int t = 0; t < threads; ++t) {
+    const int share = runs / threads + (t < runs % threads ? 1 : 0);
+    pool.emplace_back([&c, &o, share] {
+      TrainWorkspace ws;
+      for (int k = 0; k < share; ++k) (void)run_train(c, o, ws);
+    });
+  }
+  for (auto& th : pool) th.join();
+  return {seconds_since(t0), cpu_seconds() - c0};
+}
+
+void bench_threads(const std::string& file, int runs) {
+  fmt::print(
+      "\n== in-process sweep: {} runs of {}, one TrainWorkspace per thread "
+      "(best of 3)\n",
+      runs, std::filesystem::path(file).filename().string());
+  const UnitParser units;
+  const Case c = load_case(file, units);
+  Timing t1{1e300, 1e300}, t2{1e300, 1e300};
+  for (int rep = 0; rep < 3; ++rep) {
+    const Timing a = sweep_seconds(c, runs, 1), b = sweep_seconds(c, runs, 2);
+    if (a.wall < t1.wall) t1 = a;
+    if (b.wall < t2.wall) t2 = b;
+  }
+  // CPU per run that stays put from 1 to 2 threads means the threads do not
+  // get in each other's way; the wall-clock speed-up then only depends on
+  // how much of the second core the machine has free.
+  fmt::print("1 thread:  {:.3f} s wall ({:.0f} runs/s), {:.1f} us CPU per run\n", t1.wall,
+             runs / t1.wall, t1.cpu / runs * 1e6);
+  fmt::print("2 threads: {:.3f} s wall ({:.0f} runs/s), {:.1f} us CPU per run\n", t2.wall,
+             runs / t2.wall, t2.cpu / runs * 1e6);
+  fmt::print("speed-up 1 -> 2 threads: {:.2f}x\n", t1.wall / t2.wall);
 }
 
 }  // namespace
 
 int main(int argc, char** argv) {
-  using namespace rxtrain;
   std::vector<std::string> files;
   double budget = 1.0;
+  int runs = 2000;
+  std::string only;
   for (int i = 1; i < argc; ++i) {
     const std::string a = argv[i];
     if (a == "--seconds" && i + 1 < argc) {
       budget = std::stod(argv[++i]);
+    } else if (a == "--runs" && i + 1 < argc) {
+      runs = std::stoi(argv[++i]);
+    } else if (a == "--only" && i + 1 < argc) {
+      only = argv[++i];
     } else {
       files.push_back(a);
     }
   }
+  const std::filesystem::path root(RXTRAIN_SOURCE_DIR);
   if (files.empty()) {
-    const std::filesystem::path dir = std::filesystem::path(RXTRAIN_SOURCE_DIR) / "cases";
-    for (const auto& e : std::filesystem::directory_iterator(dir))
-      if (e.path().extension() == ".yaml") files.push_back(e.path().string());
-    std::sort(files.begin(), files.end());
-  }
-  const UnitParser units;
-  fmt::print("{:<36} {:>12} {:>14} {:>7} {:>7} {:>7} {:>7}\n", "case", "core/run",
-             "with views/run", "stages", "steps", "rhs", "jac");
-  for (const auto& f : files) {
-    try {
-      const Case c = load_case(f, units);
-      // "core": the train alone; "with views": plus equilibrium records,
-      // the equilibrium curve, the maximum-rate locus and Levenspiel data,
-      // as `rxtrain run` computes them.
-      TrainOptions core;
-      core.equilibrium_views = false;
-      TrainResult first = run_train(c, core);
-      long steps = 0, rhs = 0, jac = 0;
-      for (const auto& s : first.stages) {
-        steps += s.stats.steps;
-        rhs += s.stats.rhs_evals;
-        jac += s.stats.jac_evals;
-      }
-      const double t_core = median_seconds_per_run(c, core, budget);
-      const double t_views = median_seconds_per_run(c, TrainOptions{}, budget);
-      fmt::print("{:<36} {:>9.3f} ms {:>11.3f} ms {:>7} {:>7} {:>7} {:>7}\n",
-                 std::filesystem::path(f).filename().string(), t_core * 1e3, t_views * 1e3,
-                 first.stages.size(), steps, rhs, jac);
-    } catch (const std::exception& e) {
-      fmt::print("{:<36} failed: {}\n", std::filesystem::path(f).filename().string(), e.what());
+    for (const auto* dir : {"cases", "tools/bench-cases"}) {
+      std::vector<std::string> found;
+      for (const auto& e : std::filesystem::directory_iterator(root / dir))
+        if (e.path().extension() == ".yaml") found.push_back(e.path().string());
+      std::sort(found.begin(), found.end());
+      files.insert(files.end(), found.begin(), found.end());
     }
   }
+  const std::string reference = (root / "cases/so2-three-bed-converter.yaml").string();
+  fmt::print("rxtrain_bench: {} hardware threads, load average {} at start\n",
+             std::thread::hardware_concurrency(), load_average());
+  if (only.empty() || only == "startup") bench_startup(reference, budget);
+  if (only.empty() || only == "cases") bench_cases(files, budget);
+  if (only.empty() || only == "tolerances") bench_tolerances(reference, budget);
+  if (only.empty() || only == "synthetic") bench_synthetic(budget);
+  if (only.empty() || only == "threads") bench_threads(reference, runs);
+  fmt::print("\nload average {} at end\n", load_average());
   return 0;
 }

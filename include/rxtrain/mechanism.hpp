@@ -50,6 +50,35 @@ class Mechanism {
                           Eigen::Ref<Eigen::MatrixXd> dr_dF,
                           Eigen::Ref<Eigen::VectorXd> dr_dT) const;
 
+  // Working buffers of the derivative evaluations, owned by the caller
+  // (one per thread) so that repeated calls never allocate.
+  struct Scratch {
+    std::vector<double> d, g, direct;
+  };
+  void rates_and_jacobian(double T, double P, const double* F, double* r,
+                          Eigen::Ref<Eigen::MatrixXd> dr_dF, Eigen::Ref<Eigen::VectorXd> dr_dT,
+                          Scratch& scratch) const;
+
+  // Sparsity of the rate derivatives. The species whose flows enter
+  // reaction j's rate law directly (nonzero order or stoichiometric
+  // coefficient), ascending. Through the mixture's total flow (gas) or
+  // volume (liquid) every rate also depends on every species; that part is
+  // one "dilution" coefficient per reaction (below), so a sparse Jacobian
+  // keeps it as a rank-one term instead of a dense block.
+  const std::vector<int>& rate_species(int j) const { return compiled_[j].species; }
+  // Entries of `direct` before reaction j's: sum of rate_species(i).size(), i < j.
+  int direct_offset(int j) const { return compiled_[j].offset; }
+  int n_direct() const { return n_direct_; }
+  // dr_j/dF_k = direct[direct_offset(j) + p]       (k = rate_species(j)[p])
+  //           + dilution[j] * dilution_weight(k, F)  (every k)
+  // with the same values rates_and_jacobian gives.
+  void rates_and_sparse_jacobian(double T, double P, const double* F, double* r, double* direct,
+                                 double* dilution, double* dr_dT, Scratch& scratch) const;
+  // d(total flow or mixture volume)/dF_k as the rates see it: 1 (gas) or
+  // MW_k / rho_k (liquid) where F_k > 0; 0 where F_k <= 0 (flows are
+  // clipped at zero in the rate laws).
+  double dilution_weight(int k, const double* F) const;
+
  private:
   struct Participant {
     int i;
@@ -58,6 +87,8 @@ class Mechanism {
   };
   struct Compiled {
     std::vector<Participant> parts;
+    std::vector<int> species;  // parts[p].i, for rate_species()
+    int offset = 0;            // see direct_offset()
     double dnu = 0;      // sum of nu (for the activity scale)
   };
   // Driving forces d_i = max(F_i, 0) * phi; returns phi and its derivatives.
@@ -70,11 +101,23 @@ class Mechanism {
   Scale driving_scale(Driving driving, double T, double P, const double* F) const;
   // log of activity scale s (a_i = s * d_i) and its T derivative.
   void activity_scale(const Reaction& rx, double T, double& ln_s, double& dln_s_dT) const;
+  // Reaction j's rate, the derivatives through its participants (direct[p]
+  // for parts[p]; 0 where F <= 0), the coefficient of the dilution term and
+  // dr_j/dT. d and g are scratch indexed by species.
+  double reaction_derivatives(int j, double T, const Scale& sc, const double* F, double* d,
+                              double* g, double* direct, double& dilution, double& dr_dT) const;
+  // The driving-force scale of each kind, computed once per evaluation.
+  struct Scales {
+    Scale conc, press;
+    bool have_conc = false, have_press = false;
+  };
+  const Scale& scale_for(Driving driving, double T, double P, const double* F, Scales& s) const;
 
   Phase phase_ = Phase::Gas;
   std::vector<Species> species_;
   std::vector<Reaction> reactions_;
   std::vector<Compiled> compiled_;
+  int n_direct_ = 0;
 };
 
 }  // namespace rxtrain

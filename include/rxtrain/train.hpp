@@ -2,6 +2,7 @@
 // before. run_train() is the only entry point the command line needs.
 #pragma once
 
+#include <memory>
 #include <string>
 #include <vector>
 
@@ -44,9 +45,45 @@ struct TrainResult {
   std::vector<LevenspielCurve> levenspiel;
 };
 
+// What repeated runs of trains reuse: the SUNDIALS context and the tubular
+// stages' integrator and buffers (see PfrWorkspace). One per thread:
+// distinct workspaces on distinct threads share nothing mutable (a Case is
+// read-only, and the unit database and YAML parser are used only while
+// loading it). Movable, not copyable.
+//
+// Example:
+//   TrainWorkspace ws;
+//   for (const Case& c : variants) outlets.push_back(run_train(c, options, ws).outlet);
+class TrainWorkspace {
+ public:
+  TrainWorkspace();
+  ~TrainWorkspace();
+  TrainWorkspace(TrainWorkspace&&) noexcept;
+  TrainWorkspace& operator=(TrainWorkspace&&) noexcept;
+  TrainWorkspace(const TrainWorkspace&) = delete;
+  TrainWorkspace& operator=(const TrainWorkspace&) = delete;
+
+  const SunContext& context() const { return *ctx_; }
+  PfrWorkspace& pfr() { return *pfr_; }
+
+ private:
+  std::unique_ptr<SunContext> ctx_;  // on the heap: pfr_ points at it
+  std::unique_ptr<PfrWorkspace> pfr_;
+};
+
 // Runs every stage of the case in order. Throws SolverError (naming the
 // stage and position) or InputError (a target out of reach, located at the
 // stage's entry in the case file).
 TrainResult run_train(const Case& c, const TrainOptions& options = {});
+
+// Fills what TrainOptions::equilibrium_views adds (each stage's equilibrium
+// record, the equilibrium curve, the maximum-rate locus, the Levenspiel
+// curves) into a result built with the views off or assembled stage by
+// stage (staging, optimize), for its report. A view that cannot be
+// computed becomes a warning in the result.
+void add_equilibrium_views(const Case& c, const TrainOptions& options, TrainResult& result);
+// Same result, reusing `ws` instead of creating the solvers afresh: the
+// fast path for many runs (the per-run cost is in docs/performance.md).
+TrainResult run_train(const Case& c, const TrainOptions& options, TrainWorkspace& ws);
 
 }  // namespace rxtrain

@@ -4,8 +4,12 @@
 #include <nvector/nvector_serial.h>
 #include <sundials/sundials_context.h>
 #include <sunlinsol/sunlinsol_dense.h>
+#include <sunlinsol/sunlinsol_klu.h>
 #include <sunmatrix/sunmatrix_dense.h>
+#include <sunmatrix/sunmatrix_sparse.h>
 
+#include <algorithm>
+#include <cmath>
 #include <cstdlib>
 #include <cstring>
 #include <memory>
@@ -46,6 +50,23 @@ std::string CvodeOptions::validate() const {
   return {};
 }
 
+std::string SparsePattern::validate() const {
+  if (n <= 0) return "n must be positive";
+  if (static_cast<int>(col_start.size()) != n + 1 || col_start[0] != 0 ||
+      col_start[n] != nonzeros())
+    return "col_start must have n + 1 entries from 0 to the number of nonzeros";
+  for (int k = 0; k < n; ++k) {
+    bool diagonal = false;
+    for (int p = col_start[k]; p < col_start[k + 1]; ++p) {
+      if (row[p] < 0 || row[p] >= n) return "row index out of range";
+      if (p > col_start[k] && row[p] <= row[p - 1]) return "rows of a column must ascend";
+      diagonal = diagonal || row[p] == k;
+    }
+    if (!diagonal) return "every diagonal entry must be in the pattern";
+  }
+  return {};
+}
+
 SunContext::SunContext() {
   SUNContext ctx = nullptr;
   if (SUNContext_Create(nullptr, &ctx) != 0 || ctx == nullptr)
@@ -75,6 +96,8 @@ struct CvodeIntegrator::Impl {
   int n = 0;
   Rhs rhs;
   Jacobian jac;
+  SparseJacobian sparse_jac;
+  SparsePattern pattern;
   Roots roots;
   int n_roots = 0;
   std::exception_ptr pending;  // exception thrown inside a callback
@@ -82,10 +105,35 @@ struct CvodeIntegrator::Impl {
   NVectorPtr y;
   NVectorPtr atol;
   MatrixPtr A;
-  LinSolPtr LS;
+  // Sparse only: KLU, and the rank-one term J = S + u w^T with
+  // z = (I - gamma S)^-1 u from the last setup.
+  LinSolPtr klu;
+  NVectorPtr u, w, z;
+  double gamma = 0;     // gamma of the last setup
+  double sm_denom = 1;  // 1 - gamma w^T z
+  bool rank_one = false;
+  LinSolPtr LS;  // what CVODE calls: the dense LU, or the KLU wrapper
   CvodeMemPtr mem;
   CvodeOptions options;
   bool initialized = false;
+
+  void allocate_vectors(SUNContext sctx, const std::vector<double>& scale) {
+    y.reset(N_VNew_Serial(n, sctx));
+    atol.reset(N_VNew_Serial(n, sctx));
+    if (!y || !atol) throw SolverError("could not allocate CVODE vectors");
+    set_scale(scale);
+  }
+  void set_scale(const std::vector<double>& scale) {
+    if (static_cast<int>(scale.size()) != n)
+      throw std::invalid_argument("CvodeIntegrator: scale must have n entries");
+    double* a = N_VGetArrayPointer(atol.get());
+    for (int i = 0; i < n; ++i) a[i] = options.atol * (scale[i] > 0 ? scale[i] : 1.0);
+  }
+  void create_cvode(SUNContext sctx) {
+    mem.reset(CVodeCreate(CV_BDF, sctx));
+    if (!mem) throw SolverError("could not create CVODE");
+    check(CVodeSetErrHandlerFn(mem.get(), &Impl::err_fn, this), "CVodeSetErrHandlerFn");
+  }
 
   // C trampolines: no exception may cross into CVODE.
   static int rhs_fn(sunrealtype t, N_Vector y, N_Vector ydot, void* data) {
@@ -107,6 +155,27 @@ struct CvodeIntegrator::Impl {
       return -1;
     }
   }
+  static int sparse_jac_fn(sunrealtype t, N_Vector y, N_Vector fy, SUNMatrix J, void* data,
+                           N_Vector, N_Vector, N_Vector) {
+    auto* self = static_cast<Impl*>(data);
+    try {
+      // SUNMatZero clears the index arrays too: restore the fixed pattern.
+      sunindextype* cp = SUNSparseMatrix_IndexPointers(J);
+      sunindextype* ri = SUNSparseMatrix_IndexValues(J);
+      const SparsePattern& pat = self->pattern;
+      std::copy(pat.col_start.begin(), pat.col_start.end(), cp);
+      std::copy(pat.row.begin(), pat.row.end(), ri);
+      double* u = N_VGetArrayPointer(self->u.get());
+      double* w = N_VGetArrayPointer(self->w.get());
+      std::fill(u, u + self->n, 0.0);
+      std::fill(w, w + self->n, 0.0);
+      return self->sparse_jac(t, N_VGetArrayPointer(y), N_VGetArrayPointer(fy),
+                              SUNSparseMatrix_Data(J), u, w);
+    } catch (...) {
+      self->pending = std::current_exception();
+      return -1;
+    }
+  }
   static int root_fn(sunrealtype t, N_Vector y, sunrealtype* g, void* data) {
     auto* self = static_cast<Impl*>(data);
     try {
@@ -119,6 +188,44 @@ struct CvodeIntegrator::Impl {
   static void err_fn(int, const char*, const char*, char* msg, void* data) {
     // Keep CVODE quiet on stderr; its message goes into the SolverError.
     static_cast<Impl*>(data)->last_error = msg != nullptr ? msg : "";
+  }
+
+  // The linear solver CVODE sees in the sparse case: KLU for S, plus the
+  // rank-one correction by Sherman-Morrison:
+  //   (M_s - gamma u w^T)^-1 b = x0 + gamma z (w^T x0) / (1 - gamma w^T z),
+  //   M_s = I - gamma S, x0 = M_s^-1 b, z = M_s^-1 u.
+  static Impl& of(SUNLinearSolver S) { return *static_cast<Impl*>(S->content); }
+  static SUNLinearSolver_Type ls_type(SUNLinearSolver) { return SUNLINEARSOLVER_DIRECT; }
+  static SUNLinearSolver_ID ls_id(SUNLinearSolver) { return SUNLINEARSOLVER_CUSTOM; }
+  static int ls_initialize(SUNLinearSolver S) { return SUNLinSolInitialize(of(S).klu.get()); }
+  static int ls_setup(SUNLinearSolver S, SUNMatrix A) {
+    Impl& m = of(S);
+    const int flag = SUNLinSolSetup(m.klu.get(), A);
+    if (flag != 0) return flag;
+    const double* u = N_VGetArrayPointer(m.u.get());
+    m.rank_one = std::any_of(u, u + m.n, [](double v) { return v != 0; });
+    if (!m.rank_one) return 0;
+    if (CVodeGetCurrentGamma(m.mem.get(), &m.gamma) != CV_SUCCESS) return SUNLS_PACKAGE_FAIL_UNREC;
+    const int sflag = SUNLinSolSolve(m.klu.get(), A, m.z.get(), m.u.get(), 0.0);
+    if (sflag != 0) return sflag;
+    m.sm_denom = 1.0 - m.gamma * N_VDotProd(m.w.get(), m.z.get());
+    // A (near-)singular update: let CVODE retry with a smaller step.
+    if (!std::isfinite(m.sm_denom) || std::abs(m.sm_denom) < 1e-12) return SUNLS_PACKAGE_FAIL_REC;
+    return 0;
+  }
+  static int ls_solve(SUNLinearSolver S, SUNMatrix A, N_Vector x, N_Vector b, sunrealtype tol) {
+    Impl& m = of(S);
+    const int flag = SUNLinSolSolve(m.klu.get(), A, x, b, tol);
+    if (flag != 0 || !m.rank_one) return flag;
+    const double c = m.gamma * N_VDotProd(m.w.get(), x) / m.sm_denom;
+    N_VLinearSum(1.0, x, c, m.z.get(), x);
+    return 0;
+  }
+  static sunindextype ls_last_flag(SUNLinearSolver S) { return SUNLinSolLastFlag(of(S).klu.get()); }
+  static int ls_free(SUNLinearSolver S) {
+    S->content = nullptr;  // the Impl owns itself
+    SUNLinSolFreeEmpty(S);
+    return 0;
   }
 
   void check(int flag, const char* what) {
@@ -143,26 +250,63 @@ CvodeIntegrator::CvodeIntegrator(const SunContext& ctx, int n, Rhs rhs, Jacobian
     : impl_(std::make_unique<Impl>()) {
   if (auto msg = options.validate(); !msg.empty())
     throw std::invalid_argument("CvodeOptions: " + msg);
-  if (static_cast<int>(scale.size()) != n)
-    throw std::invalid_argument("CvodeIntegrator: scale must have n entries");
   auto sctx = static_cast<SUNContext>(ctx.get());
   Impl& m = *impl_;
   m.n = n;
   m.rhs = std::move(rhs);
   m.jac = std::move(jac);
   m.options = options;
-  m.y.reset(N_VNew_Serial(n, sctx));
-  m.atol.reset(N_VNew_Serial(n, sctx));
-  if (!m.y || !m.atol) throw SolverError("could not allocate CVODE vectors");
-  double* a = N_VGetArrayPointer(m.atol.get());
-  for (int i = 0; i < n; ++i) a[i] = options.atol * (scale[i] > 0 ? scale[i] : 1.0);
+  m.allocate_vectors(sctx, scale);
   m.A.reset(SUNDenseMatrix(n, n, sctx));
   if (!m.A) throw SolverError("could not allocate the CVODE matrix");
   m.LS.reset(SUNLinSol_Dense(m.y.get(), m.A.get(), sctx));
   if (!m.LS) throw SolverError("could not create the dense linear solver");
-  m.mem.reset(CVodeCreate(CV_BDF, sctx));
-  if (!m.mem) throw SolverError("could not create CVODE");
-  m.check(CVodeSetErrHandlerFn(m.mem.get(), &Impl::err_fn, &m), "CVodeSetErrHandlerFn");
+  m.create_cvode(sctx);
+}
+
+CvodeIntegrator::CvodeIntegrator(const SunContext& ctx, int n, Rhs rhs, SparsePattern pattern,
+                                 SparseJacobian jac, const CvodeOptions& options,
+                                 const std::vector<double>& scale)
+    : impl_(std::make_unique<Impl>()) {
+  if (auto msg = options.validate(); !msg.empty())
+    throw std::invalid_argument("CvodeOptions: " + msg);
+  if (pattern.n != n) throw std::invalid_argument("CvodeIntegrator: pattern must be n x n");
+  if (auto msg = pattern.validate(); !msg.empty())
+    throw std::invalid_argument("SparsePattern: " + msg);
+  if (!jac) throw std::invalid_argument("CvodeIntegrator: a sparse solver needs its Jacobian");
+  auto sctx = static_cast<SUNContext>(ctx.get());
+  Impl& m = *impl_;
+  m.n = n;
+  m.rhs = std::move(rhs);
+  m.sparse_jac = std::move(jac);
+  m.pattern = std::move(pattern);
+  m.options = options;
+  m.allocate_vectors(sctx, scale);
+  m.A.reset(SUNSparseMatrix(n, n, m.pattern.nonzeros(), CSC_MAT, sctx));
+  if (!m.A) throw SolverError("could not allocate the sparse CVODE matrix");
+  std::copy(m.pattern.col_start.begin(), m.pattern.col_start.end(),
+            SUNSparseMatrix_IndexPointers(m.A.get()));
+  std::copy(m.pattern.row.begin(), m.pattern.row.end(), SUNSparseMatrix_IndexValues(m.A.get()));
+  m.klu.reset(SUNLinSol_KLU(m.y.get(), m.A.get(), sctx));
+  if (!m.klu) throw SolverError("could not create the KLU sparse linear solver");
+  m.u.reset(N_VNew_Serial(n, sctx));
+  m.w.reset(N_VNew_Serial(n, sctx));
+  m.z.reset(N_VNew_Serial(n, sctx));
+  if (!m.u || !m.w || !m.z) throw SolverError("could not allocate CVODE vectors");
+  N_VConst(0.0, m.u.get());
+  N_VConst(0.0, m.w.get());
+  SUNLinearSolver S = SUNLinSolNewEmpty(sctx);
+  if (S == nullptr) throw SolverError("could not create the sparse linear solver");
+  S->content = &m;
+  S->ops->gettype = &Impl::ls_type;
+  S->ops->getid = &Impl::ls_id;
+  S->ops->initialize = &Impl::ls_initialize;
+  S->ops->setup = &Impl::ls_setup;
+  S->ops->solve = &Impl::ls_solve;
+  S->ops->lastflag = &Impl::ls_last_flag;
+  S->ops->free = &Impl::ls_free;
+  m.LS.reset(S);
+  m.create_cvode(sctx);
 }
 
 CvodeIntegrator::~CvodeIntegrator() = default;
@@ -179,14 +323,24 @@ void CvodeIntegrator::init(double t0, const std::vector<double>& y0) {
     m.check(CVodeSetUserData(mem, &m), "CVodeSetUserData");
     m.check(CVodeSVtolerances(mem, m.options.rtol, m.atol.get()), "CVodeSVtolerances");
     m.check(CVodeSetLinearSolver(mem, m.LS.get(), m.A.get()), "CVodeSetLinearSolver");
-    if (m.jac) m.check(CVodeSetJacFn(mem, &Impl::jac_fn), "CVodeSetJacFn");
+    if (m.sparse_jac)
+      m.check(CVodeSetJacFn(mem, &Impl::sparse_jac_fn), "CVodeSetJacFn");
+    else if (m.jac)
+      m.check(CVodeSetJacFn(mem, &Impl::jac_fn), "CVodeSetJacFn");
     m.check(CVodeSetMaxNumSteps(mem, m.options.max_steps), "CVodeSetMaxNumSteps");
     m.check(CVodeSetMaxOrd(mem, m.options.max_order), "CVodeSetMaxOrd");
     m.initialized = true;
   } else {
     m.check(CVodeReInit(mem, t0, m.y.get()), "CVodeReInit");
+    // The scales may have changed since the first init (set_scale).
+    m.check(CVodeSVtolerances(mem, m.options.rtol, m.atol.get()), "CVodeSVtolerances");
   }
 }
+
+void CvodeIntegrator::set_scale(const std::vector<double>& scale) { impl_->set_scale(scale); }
+int CvodeIntegrator::size() const { return impl_->n; }
+bool CvodeIntegrator::sparse() const { return static_cast<bool>(impl_->sparse_jac); }
+const CvodeOptions& CvodeIntegrator::options() const { return impl_->options; }
 
 void CvodeIntegrator::set_roots(int count, Roots g, const std::vector<int>& direction) {
   Impl& m = *impl_;
@@ -248,6 +402,7 @@ SolverStats CvodeIntegrator::stats() const {
   CVodeGetNumJacEvals(mem, &s.jac_evals);
   CVodeGetNumNonlinSolvIters(mem, &s.newton_iters);
   CVodeGetNumErrTestFails(mem, &s.error_test_fails);
+  CVodeGetNumGEvals(mem, &s.root_evals);
   return s;
 }
 

@@ -1,5 +1,8 @@
-// RAII wrapper of SUNDIALS CVODE (BDF, dense direct linear solver, analytic
-// Jacobian). The only user of CVODE. One SunContext per run, passed down.
+// RAII wrapper of SUNDIALS CVODE (BDF, analytic Jacobian, dense or sparse
+// direct linear solver). The only user of CVODE. One SunContext per thread,
+// passed down; an integrator is reused across runs by calling init() again
+// (CVodeReInit: no allocation, the sparse solver keeps its symbolic
+// analysis).
 //
 // Example:
 //   SunContext ctx;
@@ -38,10 +41,24 @@ struct SolverStats {
   long jac_evals = 0;
   long newton_iters = 0;
   long error_test_fails = 0;
+  long root_evals = 0;  // evaluations of the root functions (CVODE's g)
   std::string message;
 };
 
-// Owner of a SUNContext. Move-only.
+// Fixed nonzero pattern of an n x n sparse Jacobian, compressed by columns:
+// the rows of column k are row[col_start[k] .. col_start[k+1]), ascending.
+// Every diagonal entry must be in the pattern (CVODE adds the identity to
+// the matrix in place).
+struct SparsePattern {
+  int n = 0;
+  std::vector<int> col_start;  // n + 1 entries
+  std::vector<int> row;
+  int nonzeros() const { return static_cast<int>(row.size()); }
+  // Empty when valid, else what is wrong.
+  std::string validate() const;
+};
+
+// Owner of a SUNContext. Move-only. Not thread-safe: one per thread.
 class SunContext {
  public:
   SunContext();  // throws SolverError when SUNContext_Create fails
@@ -65,16 +82,35 @@ class CvodeIntegrator {
   // J is column-major n x n: J[i + n*k] = d ydot_i / d y_k.
   using Jacobian = std::function<int(double t, const double* y, const double* ydot, double* J)>;
   using Roots = std::function<int(double t, const double* y, double* g)>;
+  // Sparse Jacobian J = S + u w^T: S holds values[p] at the pattern's
+  // p-th entry; u and w (n each, zeroed before the call) carry one dense
+  // rank-one term that stays out of the pattern, e.g. the dependence of
+  // every concentration on the total flow. The rank-one term is solved
+  // exactly (Sherman-Morrison on top of KLU's factorization of I - gamma S),
+  // so Newton sees the whole Jacobian.
+  using SparseJacobian = std::function<int(double t, const double* y, const double* ydot,
+                                           double* values, double* u, double* w)>;
 
+  // Dense direct solver (SUNDIALS' LU). `scale` multiplies atol per state.
   CvodeIntegrator(const SunContext& ctx, int n, Rhs rhs, Jacobian jac, const CvodeOptions& options,
                   const std::vector<double>& scale);
+  // Sparse direct solver (SUNDIALS' KLU) on a fixed pattern.
+  CvodeIntegrator(const SunContext& ctx, int n, Rhs rhs, SparsePattern pattern, SparseJacobian jac,
+                  const CvodeOptions& options, const std::vector<double>& scale);
   ~CvodeIntegrator();
   CvodeIntegrator(CvodeIntegrator&&) noexcept;
   CvodeIntegrator& operator=(CvodeIntegrator&&) noexcept;
   CvodeIntegrator(const CvodeIntegrator&) = delete;
   CvodeIntegrator& operator=(const CvodeIntegrator&) = delete;
 
+  // Starts (first call) or restarts (CVodeReInit) the integration at t0.
+  // A restart keeps every allocation; statistics start again from zero.
   void init(double t0, const std::vector<double>& y0);
+  // New per-state scales of atol, taking effect at the next init().
+  void set_scale(const std::vector<double>& scale);
+  int size() const;
+  bool sparse() const;
+  const CvodeOptions& options() const;
   // Root functions g_k(t, y); direction +1, -1 or 0 (both) per function.
   void set_roots(int count, Roots g, const std::vector<int>& direction);
   void set_stop_time(double t_stop);

@@ -7,11 +7,31 @@
 // density). Pressure is constant.
 #pragma once
 
+#include <memory>
 #include <optional>
 
 #include "rxtrain/stages/stage.hpp"
 
 namespace rxtrain {
+
+// How CVODE's Newton iteration solves its linear systems.
+enum class JacobianForm {
+  // Sparse from kSparseJacobianMinSpecies species up, dense below.
+  Automatic,
+  // Dense LU of the full (n+2) x (n+2) matrix: cubic in the species count.
+  Dense,
+  // KLU on the pattern the stoichiometry gives (species i depends on
+  // species k when a reaction making or using i has k in its rate law),
+  // plus one dense row (energy) and column (T), and the dilution term kept
+  // as an exact rank-one update (see Mechanism::rate_species).
+  Sparse,
+};
+
+// Where Automatic switches to the sparse solver. Measured with tools/bench
+// on the synthetic mechanisms (docs/performance.md): below about this size
+// the dense LU of a small matrix is as cheap as KLU's bookkeeping; above it
+// the dense factorization's n^3 cost dominates a run.
+inline constexpr int kSparseJacobianMinSpecies = 40;
 
 struct PfrOptions {
   CvodeOptions cvode;
@@ -26,11 +46,44 @@ struct PfrOptions {
   // stats.message says so. A stage whose inlet is already at or beyond it
   // (on the side it moves to) ends at V = 0. Unset: no such stop.
   std::optional<double> stop_temperature;
+  // Dense or sparse linear algebra; the results agree to the tolerances
+  // (both use the exact Jacobian), only the cost differs.
+  JacobianForm jacobian = JacobianForm::Automatic;
 };
+
+// Reusable state of tubular-stage runs: the CVODE integrator (re-initialized
+// with CVodeReInit between stages and runs, re-created only when the size,
+// the options or the sparsity pattern change) and the buffers of the
+// right-hand side and Jacobian, so that repeated runs allocate next to
+// nothing and the RHS and Jacobian never do. One per thread: it is bound to
+// that thread's SunContext, which must outlive it.
+class PfrWorkspace {
+ public:
+  explicit PfrWorkspace(const SunContext& ctx);
+  ~PfrWorkspace();
+  PfrWorkspace(PfrWorkspace&&) noexcept;
+  PfrWorkspace& operator=(PfrWorkspace&&) noexcept;
+  PfrWorkspace(const PfrWorkspace&) = delete;
+  PfrWorkspace& operator=(const PfrWorkspace&) = delete;
+
+  const SunContext& context() const { return *ctx_; }
+  struct State;  // pfr.cpp
+  State& state() { return *state_; }
+
+ private:
+  const SunContext* ctx_;
+  std::unique_ptr<State> state_;
+};
+
+// True when `options` selects the sparse solver for a mechanism of n species.
+bool uses_sparse_jacobian(const PfrOptions& options, int n_species);
 
 StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
                     const ConversionBasis& basis, const SunContext& ctx,
                     const PfrOptions& options = {});
+// Same, reusing `ws` (the results are the same).
+StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
+                    const ConversionBasis& basis, PfrWorkspace& ws, const PfrOptions& options = {});
 
 // Outlet of an adiabatic tubular bed of practically unlimited size fed
 // with `inlet`: the adiabatic equilibrium point (or complete conversion of
@@ -38,5 +91,17 @@ StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream
 Stream adiabatic_limit(const Mechanism& mech, const std::vector<double>& multipliers,
                        const Stream& inlet, HeatMode heat, const SunContext& ctx,
                        const PfrOptions& options = {});
+Stream adiabatic_limit(const Mechanism& mech, const std::vector<double>& multipliers,
+                       const Stream& inlet, HeatMode heat, PfrWorkspace& ws,
+                       const PfrOptions& options = {});
+
+namespace detail {
+// The tubular stage's right-hand side f and Jacobian at state y = [F, T, Q],
+// both column-major (n+2)^2: the dense form, and the sparse form assembled
+// densely (S + u w^T). For tests.
+void pfr_jacobians(const Mechanism& mech, const std::vector<double>& multipliers, HeatMode heat,
+                   double P, const std::vector<double>& y, std::vector<double>& f,
+                   std::vector<double>& J_dense, std::vector<double>& J_sparse);
+}  // namespace detail
 
 }  // namespace rxtrain
