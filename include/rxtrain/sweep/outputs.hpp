@@ -1,0 +1,57 @@
+// The result columns of a study, named as the user writes them:
+//   X, T_out                the train outlet's key conversion and temperature
+//   STAGE.FIELD             a numeric field of the stage's JSON result
+//                           (report/json.hpp): volume, catalyst_mass,
+//                           bulk_density, space_time, space_velocity, ghsv,
+//                           whsv, lhsv, duty, T_max, T_min, conversion,
+//                           inlet.T, inlet.P, outlet.T, outlet.P,
+//                           inlet.flows.SP, outlet.flows.SP,
+//                           equilibrium.X_ad_eq | T_ad_eq | X_eq_out |
+//                           approach_X | approach_T
+// Values are SI (GHSV, WHSV, LHSV in 1/h, as in the JSON).
+#pragma once
+
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "rxtrain/case.hpp"
+#include "rxtrain/train.hpp"
+
+namespace rxtrain::sweep {
+
+struct OutputColumn {
+  std::string name;
+  int stage = -1;     // -1: the train (X, T_out)
+  std::string field;  // JSON field name within the stage, dotted
+  int species = -1;   // for *.flows.SP
+};
+
+class OutputSpec {
+ public:
+  // The default columns: X, T_out, every stage's T_max and outlet.T, and
+  // every sized reactor's volume (and catalyst_mass where it has a bulk
+  // density).
+  static OutputSpec defaults(const Case& c);
+  // A comma-separated list. Throws InputError located at "--output" for an
+  // unknown stage or field, with the nearest valid name.
+  static OutputSpec parse(const std::string& list, const Case& c);
+
+  const std::vector<OutputColumn>& columns() const { return columns_; }
+  std::vector<std::string> names() const;
+  // True when a column reads a stage's equilibrium record (which needs
+  // TrainOptions::equilibrium_views).
+  bool needs_equilibrium_views() const;
+  // Column i of a finished run; nullopt where the field does not apply
+  // (e.g. a liquid stage's GHSV) or is not finite.
+  std::optional<double> extract(std::size_t i, const TrainResult& r) const;
+
+ private:
+  std::vector<OutputColumn> columns_;
+};
+
+// Names of the sized catalyst (or volume, without a bulk density) of every
+// stage sized to a target: the columns the design margin is taken over.
+std::vector<std::string> design_margin_columns(const Case& c);
+
+}  // namespace rxtrain::sweep

@@ -1,0 +1,49 @@
+// One point of a study: run the train of an edited case and read the
+// output columns. Every run of a sweep goes through evaluate_point(), so
+// a faster way to run a train (reusable solver state in the workspace)
+// changes this one function.
+#pragma once
+
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "rxtrain/case.hpp"
+#include "rxtrain/sweep/outputs.hpp"
+#include "rxtrain/train.hpp"
+
+namespace rxtrain::sweep {
+
+// How a run ended. A failed run is a row with its reason, never dropped.
+enum class RunStatus {
+  Ok,
+  Infeasible,     // a target out of reach (equilibrium, complete conversion)
+  SolverFailure,  // the integrator or Newton failed, or a non-finite result
+  InvalidInput,   // a sampled value outside its field's range
+};
+
+// "ok", "infeasible", "solver-failure", "invalid-input".
+const char* run_status_name(RunStatus s);
+
+struct PointResult {
+  std::vector<std::optional<double>> outputs;  // SI; all empty unless Ok
+  RunStatus status = RunStatus::Ok;
+  std::string message;  // why the run failed; empty when Ok
+};
+
+// What one thread keeps between its runs: the train options and the
+// solver state (CVODE re-initialized, not re-created, from run to run).
+// Reuse does not change results: a reused workspace gives exactly the
+// numbers of a fresh one (tests/sparse_jacobian_test.cpp), so output stays
+// identical whatever the number of threads or shards.
+struct PointWorkspace {
+  TrainOptions train;
+  TrainWorkspace solver{};
+};
+
+// Runs the train of `point` and extracts every column. Never throws for
+// a failure of the run itself (it becomes the status and message); lets
+// other exceptions (out of memory, programmer errors) through.
+PointResult evaluate_point(const Case& point, const OutputSpec& outputs, PointWorkspace& ws);
+
+}  // namespace rxtrain::sweep

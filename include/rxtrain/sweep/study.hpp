@@ -1,0 +1,92 @@
+// What a study runs: a full grid over varied case paths, or a Monte Carlo
+// set of sampled inputs, and which slice of it a shard takes.
+//
+// Run order (the order of rows in every output):
+//   grid: row-major over the --vary options in the order given, the last
+//         varying fastest (as nested loops written in that order);
+//   Monte Carlo: run 0 .. runs-1, the inputs of run r drawn from the
+//         counter-based generator of sampling.hpp with (seed, r, input
+//         position), so any run can be computed alone.
+// Shard K of N (1-based) takes the contiguous block of runs
+//   [floor((K-1) M / N), floor(K M / N))   of the M runs,
+// so shards 1..N together hold every run once, in order.
+#pragma once
+
+#include <cstddef>
+#include <cstdint>
+#include <span>
+#include <string>
+#include <utility>
+#include <vector>
+
+#include "rxtrain/sweep/case_path.hpp"
+#include "rxtrain/sweep/sampling.hpp"
+#include "rxtrain/units.hpp"
+
+namespace rxtrain::sweep {
+
+// One grid axis: n values from start to stop (SI), evenly spaced, or
+// evenly spaced in ln for a logarithmic axis; the ends are exact.
+struct Axis {
+  std::size_t path = 0;  // index in the CasePathTable
+  std::string name;
+  double start = 0, stop = 0;
+  std::size_t n = 1;
+  bool log = false;
+
+  double value(std::size_t i) const;
+};
+
+struct SampledInput {
+  std::size_t path = 0;
+  std::string name;
+  Distribution dist;
+};
+
+struct Study {
+  std::vector<Axis> axes;             // a grid study
+  std::vector<SampledInput> samples;  // or a Monte Carlo study
+  std::size_t runs = 0;               // Monte Carlo: number of runs
+  std::uint64_t seed = 0;             // Monte Carlo: the generator's seed
+
+  bool monte_carlo() const { return !samples.empty(); }
+  std::size_t run_count() const;
+  std::vector<std::size_t> paths() const;        // table indices, input order
+  std::vector<std::string> input_names() const;  // the paths, input order
+  // The inputs (SI) of run `run`, in input order; out.size() == inputs.
+  void inputs(std::size_t run, std::span<double> out) const;
+  // Canonical description, one line each (SI, shortest round-trip
+  // numbers): what two shards must share to belong to one study.
+  std::vector<std::string> definition() const;
+};
+
+// Most runs one study may hold (a grid's product or --runs): beyond it a
+// typo such as a missing colon would silently ask for years of work.
+inline constexpr std::size_t kMaxRuns = 100'000'000;
+
+// Parses --vary "PATH=START:STOP:N" ("PATH=log:START:STOP:N" or
+// "log:PATH=START:STOP:N" for a logarithmic axis) and --sample
+// "PATH=normal(MEAN,SD)" | "uniform(LO,HI)" | "lognormal(MEDIAN,SIGMA)"
+// (SIGMA a plain number, the SD of ln X). Values carry units of the
+// field's dimension; an SD is a difference, so "5 degC" there is 5 K.
+// Throws InputError located at the option for an unknown path, a unit of
+// the wrong dimension, a value outside the field's range, a malformed
+// spec, a path given twice, --vary with --sample, or neither.
+Study parse_study(const std::vector<std::string>& vary, const std::vector<std::string>& sample,
+                  std::size_t runs, std::uint64_t seed, const CasePathTable& table,
+                  const UnitParser& units);
+
+inline constexpr std::size_t kMaxShards = 1'000'000;
+
+// A slice of the runs, "K/N" with 1 <= K <= N.
+struct Shard {
+  std::size_t k = 1, n = 1;
+
+  // Throws InputError located at "--shard" when malformed.
+  static Shard parse(const std::string& text);
+  // [first, last) run indices of this shard among `total` runs.
+  std::pair<std::size_t, std::size_t> range(std::size_t total) const;
+  std::string to_string() const;
+};
+
+}  // namespace rxtrain::sweep

@@ -1,0 +1,246 @@
+// rxtrain sweep CASE (--vary PATH=START:STOP:N ... | --sample PATH=DIST ... --runs N)
+//   [--output COLS] [--csv PATH] [--json PATH] [--report DIR] [--jobs N] [--shard K/N]
+#include <fmt/format.h>
+#include <unistd.h>
+
+#include <algorithm>
+#include <chrono>
+#include <cmath>
+#include <cstdio>
+#include <fstream>
+#include <iterator>
+#include <memory>
+#include <string>
+#include <vector>
+
+#include "commands.hpp"
+#include "rxtrain/case.hpp"
+#include "rxtrain/report/atomic_file.hpp"
+#include "rxtrain/report/caution.hpp"
+#include "rxtrain/report/sha256.hpp"
+#include "rxtrain/sweep/case_path.hpp"
+#include "rxtrain/sweep/outputs.hpp"
+#include "rxtrain/sweep/study.hpp"
+#include "rxtrain/sweep/summary.hpp"
+#include "rxtrain/sweep/sweep.hpp"
+#include "rxtrain/sweep/sweep_csv.hpp"
+#include "rxtrain/sweep/sweep_report.hpp"
+#include "rxtrain/units.hpp"
+
+namespace rxtrain::cli {
+
+namespace {
+
+using namespace rxtrain::sweep;
+
+struct SweepCommandOptions {
+  std::string case_file;
+  std::vector<std::string> vary;
+  std::vector<std::string> sample;
+  std::size_t runs = 0;
+  std::uint64_t seed = 1;
+  bool seed_given = false;
+  std::string output;
+  std::string csv_path;
+  std::string json_path;
+  std::string report_dir;
+  std::size_t jobs = 0;
+  std::string shard = "1/1";
+  double rtol = CvodeOptions{}.rtol;
+};
+
+// "42 s", "3 min 20 s", "2 h 05 min".
+std::string duration(double seconds) {
+  const auto s = static_cast<long long>(std::llround(seconds));
+  if (s < 60) return fmt::format("{} s", s);
+  if (s < 3600) return fmt::format("{} min {:02} s", s / 60, s % 60);
+  return fmt::format("{} h {:02} min", s / 3600, (s % 3600) / 60);
+}
+
+// Progress on stderr: a bar redrawn in place on a terminal, otherwise a
+// plain line every few seconds (logs of batch jobs stay readable).
+class Progress {
+ public:
+  Progress() : tty_(isatty(STDERR_FILENO) == 1), start_(Clock::now()), last_(start_) {}
+
+  void operator()(std::size_t done, std::size_t total) {
+    const auto now = Clock::now();
+    const double elapsed = std::chrono::duration<double>(now - start_).count();
+    const bool finished = done == total;
+    if (!tty_ && !finished && now - last_ < std::chrono::seconds(5)) return;
+    if (!tty_ && finished && !printed_) return;  // a short study needs no line
+    last_ = now;
+    const double rate = elapsed > 0 ? static_cast<double>(done) / elapsed : 0.0;
+    const std::string left = rate > 0 ? duration(static_cast<double>(total - done) / rate) + " left"
+                                      : std::string("time left unknown");
+    if (tty_) {
+      constexpr int kWidth = 30;
+      const int filled = total ? static_cast<int>(kWidth * done / total) : kWidth;
+      std::fprintf(stderr, "\r[%s%s] %zu/%zu runs, %.1f runs/s, %s   ",
+                   std::string(static_cast<std::size_t>(filled), '#').c_str(),
+                   std::string(static_cast<std::size_t>(kWidth - filled), ' ').c_str(), done, total,
+                   rate, finished ? "done" : left.c_str());
+      if (finished) std::fputc('\n', stderr);
+    } else {
+      std::fprintf(stderr, "sweep: %zu/%zu runs, %.1f runs/s, %s\n", done, total, rate,
+                   finished ? "done" : left.c_str());
+    }
+    std::fflush(stderr);
+    printed_ = true;
+  }
+
+ private:
+  using Clock = std::chrono::steady_clock;
+  bool tty_;
+  Clock::time_point start_, last_;
+  bool printed_ = false;
+};
+
+// A grid's rows as a small table (inputs and outputs, 6 significant digits).
+std::string grid_table(const std::vector<std::string>& inputs,
+                       const std::vector<std::string>& outputs, const std::vector<RunRow>& rows) {
+  std::vector<std::string> head{"run"};
+  head.insert(head.end(), inputs.begin(), inputs.end());
+  head.insert(head.end(), outputs.begin(), outputs.end());
+  head.push_back("status");
+  std::vector<std::vector<std::string>> cells;
+  for (const auto& r : rows) {
+    std::vector<std::string> line{fmt::format("{}", r.run)};
+    for (double v : r.inputs) line.push_back(fmt::format("{:.6g}", v));
+    for (const auto& v : r.result.outputs) line.push_back(v ? fmt::format("{:.6g}", *v) : "-");
+    line.push_back(run_status_name(r.result.status));
+    cells.push_back(std::move(line));
+  }
+  std::vector<std::size_t> w(head.size());
+  for (std::size_t i = 0; i < head.size(); ++i) {
+    w[i] = head[i].size();
+    for (const auto& l : cells) w[i] = std::max(w[i], l[i].size());
+  }
+  const auto line = [&](const std::vector<std::string>& l) {
+    std::string t;
+    for (std::size_t i = 0; i < l.size(); ++i)
+      t += fmt::format("{}{:>{}}", i ? "  " : "", l[i], w[i]);
+    return t + "\n";
+  };
+  std::string out = line(head);
+  for (const auto& l : cells) out += line(l);
+  return out;
+}
+
+int run_sweep_command(const SweepCommandOptions& o) {
+  const UnitParser units;
+  const Case c = load_case(o.case_file, units);
+  const Shard shard = Shard::parse(o.shard);
+  const CasePathTable table(c);
+  const Study study = parse_study(o.vary, o.sample, o.runs, o.seed, table, units);
+  if (o.seed_given && !study.monte_carlo())
+    throw InputError({"--seed", 0, 0}, "--seed applies to --sample (Monte Carlo) only");
+  const OutputSpec outputs =
+      o.output.empty() ? OutputSpec::defaults(c) : OutputSpec::parse(o.output, c);
+
+  std::ifstream in(o.case_file, std::ios::binary);
+  const std::string bytes((std::istreambuf_iterator<char>(in)), std::istreambuf_iterator<char>());
+  StudyHeader header{RXTRAIN_VERSION, sha256_hex(bytes), study.definition(), outputs.names()};
+  // The integrator's tolerance changes the numbers, so it is part of the study.
+  header.definition.push_back(fmt::format("rtol: {}", o.rtol));
+  for (const auto& m : design_margin_columns(c)) {
+    const auto names = outputs.names();
+    if (std::find(names.begin(), names.end(), m) != names.end()) header.margin.push_back(m);
+  }
+
+  SweepOptions options;
+  options.jobs = o.jobs;
+  options.shard = shard;
+  options.train.pfr.cvode.rtol = o.rtol;
+  options.train.cstr.pfr.cvode.rtol = o.rtol;
+  options.progress = Progress();
+  const std::vector<RunRow> rows = run_sweep(c, table, study, outputs, options);
+  const auto inputs = study.input_names();
+  const StudySummary summary = summarize_study(outputs.names(), header.margin, rows);
+
+  // Every output is rendered before any is written (all or nothing).
+  OutputSet out;
+  out.protect(o.case_file);
+  if (!o.csv_path.empty()) out.add(o.csv_path, sweep_csv(header, shard, inputs, rows));
+  if (!o.json_path.empty())
+    out.add(o.json_path, sweep_json_text(header, shard, inputs, rows, summary));
+  if (!o.report_dir.empty()) {
+    const std::filesystem::path dir(o.report_dir);
+    const auto figures = sweep_figures(study, outputs.names(), rows);
+    out.add(dir / "report.html", sweep_report_html(c.title, o.case_file, header, shard, summary,
+                                                   study.monte_carlo(), figures));
+    for (const auto& f : figures) out.add(dir / (f.name + ".svg"), f.chart.render());
+  }
+  out.commit();
+
+  std::string text = fmt::format("{}\nStudy of {} ({}), shard {}\n", c.title, o.case_file,
+                                 study.monte_carlo() ? "Monte Carlo" : "grid", shard.to_string());
+  constexpr std::size_t kMaxTableRows = 100;
+  if (!study.monte_carlo()) {
+    text += rows.size() <= kMaxTableRows
+                ? grid_table(inputs, outputs.names(), rows)
+                : fmt::format("({} rows; write them with --csv PATH)\n", rows.size());
+  }
+  text += summary_text(summary, study.monte_carlo());
+  for (const auto& r : rows)
+    if (r.result.status != RunStatus::Ok) {
+      text += fmt::format("first failed run: {} ({}): {}\n", r.run,
+                          run_status_name(r.result.status), r.result.message);
+      break;
+    }
+  text += fmt::format("\nCAUTION: {}\n", kCaution);
+  std::fputs(text.c_str(), stdout);
+  const bool all_failed =
+      !rows.empty() && std::none_of(rows.begin(), rows.end(), [](const RunRow& r) {
+        return r.result.status == RunStatus::Ok;
+      });
+  if (all_failed) {
+    std::fprintf(stderr,
+                 "rxtrain: error: every run of the study failed (see the rows' messages)\n");
+    return kExitSolver;
+  }
+  return 0;
+}
+
+}  // namespace
+
+Action setup_sweep(CLI::App& app) {
+  auto o = std::make_shared<SweepCommandOptions>();
+  app.add_option("case", o->case_file, "Case file (YAML)")->required();
+  app.add_option("--vary", o->vary,
+                 "PATH=START:STOP:N: N evenly spaced values of a case field, with units "
+                 "(feed.T=120degC:200degC:41); PATH=log:START:STOP:N for log spacing; repeat for "
+                 "a full grid (the last given varies fastest)")
+      ->take_all();
+  app.add_option("--sample", o->sample,
+                 "PATH=normal(MEAN,SD) | uniform(LO,HI) | lognormal(MEDIAN,SIGMA): Monte Carlo "
+                 "over uncertain inputs (with --runs); SIGMA is the SD of ln X; repeatable")
+      ->take_all();
+  app.add_option("--runs", o->runs, "Monte Carlo: number of runs");
+  CLI::Option* seed = app.add_option("--seed", o->seed, "Monte Carlo: seed of the generator")
+                          ->capture_default_str();
+  app.add_option("--output", o->output,
+                 "Columns, comma-separated: X, T_out, STAGE.FIELD (e.g. R1.T_max, R2.volume, "
+                 "E1.outlet.T); default: X, T_out, every stage's T_max and outlet.T, every sized "
+                 "stage's volume and catalyst_mass");
+  app.add_option("--csv", o->csv_path, "Write one row per run (SI) to PATH");
+  app.add_option("--json", o->json_path,
+                 "Write the rows, percentiles and design margin (SI) to PATH");
+  app.add_option("--report", o->report_dir,
+                 "Write report.html and SVG plots (outputs against the varied input, or "
+                 "histograms) into folder DIR");
+  app.add_option("--jobs", o->jobs, "Worker threads (0: every core)")->capture_default_str();
+  app.add_option("--shard", o->shard,
+                 "K/N: run only the K-th of N contiguous slices of the runs (merge the CSVs "
+                 "with rxtrain merge)")
+      ->capture_default_str();
+  app.add_option("--rtol", o->rtol, "Relative tolerance of the ODE integrator")
+      ->check(CLI::Range(1e-14, 1e-3))
+      ->capture_default_str();
+  return [o, seed] {
+    o->seed_given = seed->count() > 0;
+    return run_sweep_command(*o);
+  };
+}
+
+}  // namespace rxtrain::cli

@@ -1,0 +1,191 @@
+#include "rxtrain/sweep/sweep_report.hpp"
+
+#include <fmt/format.h>
+
+#include <algorithm>
+#include <cmath>
+#include <limits>
+
+#include "rxtrain/report/caution.hpp"
+#include "rxtrain/report/svg.hpp"
+
+namespace rxtrain::sweep {
+
+namespace {
+
+using svg::xml_escape;
+
+constexpr std::size_t kMaxLines = 8;
+constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+
+// A file stem from a column name ("R1.T_max" -> "R1-T_max").
+std::string stem(const std::string& name) {
+  std::string s = name;
+  for (char& c : s)
+    if (!std::isalnum(static_cast<unsigned char>(c)) && c != '_' && c != '-') c = '-';
+  return s;
+}
+
+Figure grid_figure(const Study& study, const std::string& output, std::size_t col,
+                   const std::vector<RunRow>& rows) {
+  const Axis& x_axis = study.axes.front();
+  std::size_t others = 1;
+  for (std::size_t k = 1; k < study.axes.size(); ++k) others *= study.axes[k].n;
+  svg::ChartOptions o;
+  o.title = output + " against " + x_axis.name;
+  o.x_label = x_axis.name + " (SI)";
+  o.y_label = output + " (SI)";
+  svg::Chart chart(o);
+  const std::size_t lines = std::min(others, kMaxLines);
+  for (std::size_t s = 0; s < lines; ++s) {
+    std::vector<double> x, y;
+    std::string label;
+    for (const auto& r : rows) {
+      if (r.run % others != s) continue;
+      x.push_back(r.inputs[0]);
+      y.push_back(r.result.outputs[col] ? *r.result.outputs[col] : kNaN);
+      if (label.empty() && study.axes.size() > 1)
+        for (std::size_t k = 1; k < study.axes.size(); ++k)
+          label += fmt::format("{}{} = {:.4g}", label.empty() ? "" : ", ", study.axes[k].name,
+                               r.inputs[k]);
+    }
+    if (x.empty()) continue;  // this shard holds none of the line
+    svg::LineOptions lo;
+    lo.label = label;
+    lo.marker = svg::Marker::Circle;
+    chart.add_line(x, y, lo);
+  }
+  std::string caption = fmt::format("{} (SI) at each grid point; a gap is a failed run.", output);
+  if (others > kMaxLines)
+    caption += fmt::format(" The first {} of {} combinations of the other inputs are drawn.",
+                           kMaxLines, others);
+  return {"sweep-" + stem(output), caption, std::move(chart)};
+}
+
+Figure histogram(const std::string& output, std::size_t col, const std::vector<RunRow>& rows,
+                 const std::optional<PercentileSummary>& p) {
+  std::vector<double> v;
+  for (const auto& r : rows)
+    if (r.result.status == RunStatus::Ok && r.result.outputs[col])
+      v.push_back(*r.result.outputs[col]);
+  svg::ChartOptions o;
+  o.title = "Distribution of " + output;
+  o.x_label = output + " (SI)";
+  o.y_label = "runs";
+  o.legend = svg::LegendPosition::None;
+  svg::Chart chart(o);
+  std::string caption = fmt::format("{} over the {} runs that succeeded", output, v.size());
+  if (!v.empty()) {
+    const auto [lo_it, hi_it] = std::minmax_element(v.begin(), v.end());
+    const double lo = *lo_it, hi = *hi_it;
+    // Sturges: 1 + log2 n bins.
+    const auto bins = static_cast<std::size_t>(
+        std::max(1.0, std::ceil(1.0 + std::log2(static_cast<double>(v.size())))));
+    const double width = hi > lo ? (hi - lo) / static_cast<double>(bins) : 1.0;
+    std::vector<double> counts(hi > lo ? bins : 1, 0.0);
+    for (double x : v) {
+      auto b = hi > lo ? static_cast<std::size_t>((x - lo) / width) : 0;
+      counts[std::min(b, counts.size() - 1)] += 1;
+    }
+    std::vector<std::string> categories;
+    for (std::size_t b = 0; b < counts.size(); ++b)
+      categories.push_back(fmt::format("{:.4g}", lo + (static_cast<double>(b) + 0.5) * width));
+    chart.add_bars(categories, counts, {});
+    if (p && hi > lo) {
+      // Category i sits at x = i and spans [lo + i w, lo + (i + 1) w].
+      const auto at = [&](double value) { return (value - lo) / width - 0.5; };
+      chart.add_vline(at(p->p5), {.label = "P5"});
+      chart.add_vline(at(p->p50), {.label = "P50"});
+      chart.add_vline(at(p->p95), {.label = "P95"});
+    }
+    if (p)
+      caption += fmt::format("; P5 {:.6g}, P50 {:.6g}, P95 {:.6g} (bin centres on the axis).",
+                             p->p5, p->p50, p->p95);
+  } else {
+    caption += ".";
+  }
+  return {"histogram-" + stem(output), caption, std::move(chart)};
+}
+
+}  // namespace
+
+std::vector<Figure> sweep_figures(const Study& study, const std::vector<std::string>& outputs,
+                                  const std::vector<RunRow>& rows) {
+  std::vector<Figure> figures;
+  if (study.monte_carlo()) {
+    const auto s = summarize_study(outputs, {}, rows);
+    for (std::size_t c = 0; c < outputs.size(); ++c)
+      figures.push_back(histogram(outputs[c], c, rows, s.percentiles[c].p));
+  } else {
+    for (std::size_t c = 0; c < outputs.size(); ++c)
+      figures.push_back(grid_figure(study, outputs[c], c, rows));
+  }
+  return figures;
+}
+
+std::string sweep_report_html(const std::string& title, const std::string& case_file,
+                              const StudyHeader& header, const Shard& shard,
+                              const StudySummary& summary, bool monte_carlo,
+                              const std::vector<Figure>& figures) {
+  std::string h =
+      "<!DOCTYPE html>\n<html xmlns=\"http://www.w3.org/1999/xhtml\" lang=\"en\">\n<head>\n"
+      "<meta charset=\"utf-8\"/>\n";
+  h += fmt::format(
+      "<title>{}</title>\n<style>body {{ font-family: \"DejaVu Sans\", Arial, sans-serif; "
+      "max-width: 60em; margin: 1.5em auto; padding: 0 1em; }} table {{ border-collapse: "
+      "collapse; }} th, td {{ padding: 0.2em 0.6em; border-bottom: 1px solid #ddd; }} td.num {{ "
+      "text-align: right; }} .caution {{ border: 2px solid #D55E00; padding: 0.5em 0.8em; }} "
+      "figcaption {{ font-size: 0.9em; color: #444; }}</style>\n</head>\n<body>\n",
+      xml_escape("Study: " + title));
+  h += fmt::format("<h1>Study: {}</h1>\n", xml_escape(title));
+  h += "<table>\n";
+  h += fmt::format("<tr><td>case file</td><td><code>{}</code></td></tr>\n", xml_escape(case_file));
+  h += fmt::format("<tr><td>SHA-256</td><td><code>{}</code></td></tr>\n",
+                   xml_escape(header.case_sha256));
+  h += fmt::format("<tr><td>rxtrain</td><td>{}</td></tr>\n", xml_escape(header.version));
+  for (const auto& d : header.definition)
+    h += fmt::format("<tr><td>study</td><td><code>{}</code></td></tr>\n", xml_escape(d));
+  h += fmt::format("<tr><td>shard</td><td>{}</td></tr>\n</table>\n", shard.to_string());
+  h += fmt::format("<p class=\"caution\"><strong>Caution.</strong> {}</p>\n", xml_escape(kCaution));
+  std::string counts;
+  for (const auto& [status, n] : summary.statuses)
+    counts += fmt::format("{}{} {}", counts.empty() ? "" : ", ", n, status);
+  h += fmt::format("<h2>Runs</h2>\n<p>{} runs: {}.</p>\n", summary.runs, xml_escape(counts));
+  if (monte_carlo) {
+    h += "<h2>Percentiles (SI)</h2>\n<table>\n<tr><th>output</th><th>n</th><th>P5</th>"
+         "<th>P50</th><th>P95</th></tr>\n";
+    for (const auto& p : summary.percentiles) {
+      if (!p.p) {
+        h += fmt::format(
+            "<tr><td>{}</td><td class=\"num\">0</td><td>-</td><td>-</td><td>-</td></tr>\n",
+            xml_escape(p.name));
+        continue;
+      }
+      h += fmt::format(
+          "<tr><td>{}</td><td class=\"num\">{}</td><td class=\"num\">{:.6g}</td><td "
+          "class=\"num\">{:.6g}</td><td class=\"num\">{:.6g}</td></tr>\n",
+          xml_escape(p.name), p.p->n, p.p->p5, p.p->p50, p.p->p95);
+    }
+    h += "</table>\n<p>Percentiles: Hyndman &amp; Fan (1996) definition 7, over the runs that "
+         "succeeded.</p>\n";
+    if (!summary.margins.empty()) {
+      h += "<h2>Design margin</h2>\n<p>The amount each sized stage needs to meet its target in "
+           "95 % of the runs (a run whose target is out of reach counts as unbounded).</p>\n<ul>\n";
+      const auto v = [](const std::optional<double>& x) {
+        return x ? fmt::format("{:.6g}", *x) : std::string("unbounded");
+      };
+      for (const auto& m : summary.margins)
+        h += fmt::format("<li>{}: P50 {}, P95 {} ({} runs with a value, {} infeasible)</li>\n",
+                         xml_escape(m.column), v(m.p50), v(m.p95), m.ok, m.infeasible);
+      h += "</ul>\n";
+    }
+  }
+  h += "<h2>Figures</h2>\n";
+  for (const auto& f : figures)
+    h += fmt::format("<figure id=\"{}\">\n{}\n<figcaption>{}</figcaption>\n</figure>\n", f.name,
+                     f.chart.render_inline(), xml_escape(f.caption));
+  h += "</body>\n</html>\n";
+  return h;
+}
+
+}  // namespace rxtrain::sweep
