@@ -99,3 +99,143 @@ TEST_CASE("the README's example case runs", "[cli]") {
   CHECK(r.exit_code == 0);
   fs::remove_all(dir);
 }
+
+TEST_CASE("sweep: four shards merged equal one unsharded run, byte for byte", "[cli][sweep]") {
+  const auto dir = scratch("sweep_shards");
+  const std::string c = (fs::path(RXTRAIN_SOURCE_DIR) / "cases" / "isomerization-two-bed.yaml").string();
+  const std::string study =
+      "sweep '" + c + "' --sample 'feed.T=normal(150degC,3degC)' --sample "
+      "'reactions.isom.rate.Ea=uniform(68kJ/mol,72kJ/mol)' --runs 23 --seed 5 ";
+  auto r = run_rxtrain(study + "--jobs 2 --csv '" + (dir / "all.csv").string() + "' --json '" +
+                       (dir / "all.json").string() + "'");
+  INFO(r.err);
+  REQUIRE(r.exit_code == 0);
+  CHECK(r.out.find("P95") != std::string::npos);
+  r = run_rxtrain(study + "--jobs 1 --csv '" + (dir / "serial.csv").string() + "'");
+  REQUIRE(r.exit_code == 0);
+  CHECK(slurp(dir / "serial.csv") == slurp(dir / "all.csv"));
+  std::string shards;
+  for (int k = 1; k <= 4; ++k) {
+    const auto p = dir / ("s" + std::to_string(k) + ".csv");
+    r = run_rxtrain(study + "--shard " + std::to_string(k) + "/4 --csv '" + p.string() + "'");
+    REQUIRE(r.exit_code == 0);
+    shards += " '" + p.string() + "'";
+  }
+  r = run_rxtrain("merge '" + (dir / "merged.csv").string() + "'" + shards + " --json '" +
+                  (dir / "merged.json").string() + "'");
+  INFO(r.err);
+  REQUIRE(r.exit_code == 0);
+  CHECK(slurp(dir / "merged.csv") == slurp(dir / "all.csv"));
+  CHECK(slurp(dir / "merged.json") == slurp(dir / "all.json"));
+  const auto j = nlohmann::json::parse(slurp(dir / "all.json"));
+  CHECK(j["runs"].size() == 23);
+  CHECK(j["percentiles"]["X"]["P50"].is_number());
+  // A missing shard is refused and nothing is written.
+  r = run_rxtrain("merge '" + (dir / "partial.csv").string() + "' '" + (dir / "s1.csv").string() +
+                  "' '" + (dir / "s2.csv").string() + "'");
+  CHECK(r.exit_code == 2);
+  CHECK(r.err.find("missing shards 3/4, 4/4") != std::string::npos);
+  CHECK_FALSE(fs::exists(dir / "partial.csv"));
+  fs::remove_all(dir);
+}
+
+TEST_CASE("sweep: a bad path or unit is an input error and writes nothing", "[cli][sweep]") {
+  const auto dir = scratch("sweep_bad");
+  const std::string c = (fs::path(RXTRAIN_SOURCE_DIR) / "cases" / "isomerization-two-bed.yaml").string();
+  const std::string csv = " --csv '" + (dir / "x.csv").string() + "'";
+  auto r = run_rxtrain("sweep '" + c + "' --vary feed.temperature=120degC:200degC:5" + csv);
+  CHECK(r.exit_code == 2);
+  CHECK(r.err.find("--vary: error: unknown case path \"feed.temperature\"") != std::string::npos);
+  r = run_rxtrain("sweep '" + c + "' --vary train.R1.catalyst=1m3:4m3:13" + csv);
+  CHECK(r.exit_code == 2);
+  CHECK(r.err.find("kg") != std::string::npos);
+  r = run_rxtrain("sweep '" + c + "' --vary feed.T=120degC:200degC:5 --output X,R7.T_max" + csv);
+  CHECK(r.exit_code == 2);
+  CHECK(r.err.find("--output") != std::string::npos);
+  CHECK_FALSE(fs::exists(dir / "x.csv"));
+  fs::remove_all(dir);
+}
+
+TEST_CASE("sweep: a grid writes one row per point and a report",
+          "[cli][sweep]") {
+  const auto dir = scratch("sweep_grid");
+  const std::string c =
+      (fs::path(RXTRAIN_SOURCE_DIR) / "cases" / "liquid-tank-then-tube.yaml").string();
+  const auto r = run_rxtrain("sweep '" + c +
+                             "' --vary train.T2.target.conversion=0.9:0.98:3 --jobs 2 --csv '" +
+                             (dir / "g.csv").string() + "' --report '" + (dir / "rep").string() + "'");
+  INFO(r.err);
+  REQUIRE(r.exit_code == 0);
+  const std::string csv = slurp(dir / "g.csv");
+  CHECK(std::count(csv.begin(), csv.end(), '\n') == 11 + 3);  // 11 header lines, 3 rows
+  CHECK(csv.find("\n# margin: T1.volume,T2.volume\n") != std::string::npos);
+  CHECK(csv.find("nan") == std::string::npos);
+  CHECK(fs::exists(dir / "rep" / "report.html"));
+  CHECK(fs::exists(dir / "rep" / "sweep-X.svg"));
+  CHECK(r.out.find("licensed engineers") != std::string::npos);
+  fs::remove_all(dir);
+}
+
+TEST_CASE("optimize writes the optimum as JSON and a case that run reproduces", "[cli][design]") {
+  const auto dir = scratch("optimize");
+  const std::string demo = std::string(RXTRAIN_SOURCE_DIR) + "/cases/three-bed-optimize.yaml";
+  const auto r = run_rxtrain("optimize '" + demo + "' --json '" + (dir / "o.json").string() +
+                             "' --write-case '" + (dir / "opt.yaml").string() + "'");
+  INFO(r.err);
+  REQUIRE(r.exit_code == 0);
+  CHECK(r.out.find("licensed engineers") != std::string::npos);
+  CHECK(r.out.find("nan") == std::string::npos);
+  CHECK(r.out.find("active constraints:") != std::string::npos);
+  const auto j = nlohmann::json::parse(slurp(dir / "o.json"));
+  CHECK(j["objective"] == "catalyst");
+  REQUIRE(j["beds"].size() == 3);
+  CHECK(j["coolers"].size() == 2);
+  CHECK(j["active_constraints"].is_array());
+  CHECK(j["as_written"].is_object());
+  CHECK(j["by_bed_count"].size() == 1);
+  CHECK(j["feed_conditioning"]["duty"].is_number());
+  double W = 0;
+  for (const auto& b : j["beds"]) W += b["catalyst_mass"].get<double>();
+  const double total = j["total_catalyst"].get<double>();
+  CHECK(W == Approx(total).epsilon(1e-12));
+  // The optimum needs less catalyst than the layout as written.
+  CHECK(j["as_written"]["saving"].get<double>() > 0);
+
+  // The written case, run as any case, holds the same catalyst and reaches the target.
+  const auto run = run_rxtrain("run '" + (dir / "opt.yaml").string() + "' --json '" +
+                               (dir / "r.json").string() + "'");
+  INFO(run.err);
+  REQUIRE(run.exit_code == 0);
+  const auto rj = nlohmann::json::parse(slurp(dir / "r.json"));
+  double W_run = 0;
+  for (const auto& s : rj["stages"])
+    if (s["type"] == "pfr") W_run += s["catalyst_mass"].get<double>();
+  CHECK(W_run == Approx(total).epsilon(1e-10));
+  CHECK(rj["conversion"].get<double>() == Approx(j["target"].get<double>()).margin(1e-6));
+  fs::remove_all(dir);
+}
+
+TEST_CASE("optimize: bad options and unwritable outputs", "[cli][design]") {
+  const auto dir = scratch("optimize_errors");
+  const std::string demo = std::string(RXTRAIN_SOURCE_DIR) + "/cases/three-bed-optimize.yaml";
+  SECTION("--beds and --max-beds exclude each other") {
+    const auto r = run_rxtrain("optimize '" + demo + "' --beds 2 --max-beds 3");
+    CHECK(r.exit_code == 2);
+    CHECK(r.err.find("--max-beds") != std::string::npos);
+  }
+  SECTION("a case without target and limits is an input error") {
+    const auto r = run_rxtrain("optimize '" + std::string(RXTRAIN_SOURCE_DIR) +
+                               "/cases/isomerization-two-bed.yaml'");
+    CHECK(r.exit_code == 2);
+    CHECK(r.err.find("error: the case has no train-level target") != std::string::npos);
+  }
+  SECTION("an output that cannot be written leaves no other output") {
+    { std::ofstream(dir / "file") << "x"; }
+    // The JSON is rendered and staged first; the case cannot be written.
+    const auto r = run_rxtrain("optimize '" + demo + "' --json '" + (dir / "o.json").string() +
+                               "' --write-case '" + (dir / "file" / "opt.yaml").string() + "'");
+    CHECK(r.exit_code == 4);
+    CHECK_FALSE(fs::exists(dir / "o.json"));
+  }
+  fs::remove_all(dir);
+}

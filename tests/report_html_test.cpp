@@ -1,5 +1,6 @@
 // The HTML report and its figures: well-formed (parsed by tinyxml2, an
 // independent XML parser), escaped, and mapped faithfully to the result.
+#include <fmt/format.h>
 #include <tinyxml2.h>
 
 #include <catch2/catch.hpp>
@@ -10,7 +11,9 @@
 #include "run_command.hpp"
 #include "rxtrain/case.hpp"
 #include "rxtrain/report/figures.hpp"
+#include "rxtrain/report/compare_report.hpp"
 #include "rxtrain/report/html.hpp"
+#include "rxtrain/report/staging_html.hpp"
 #include "rxtrain/report/sha256.hpp"
 #include "rxtrain/report/text_format.hpp"
 #include "rxtrain/units.hpp"
@@ -206,4 +209,148 @@ TEST_CASE("run --report writes a report whose stage numbers equal the JSON resul
     CHECK(one.LoadFile((dir / "rep" / svg).c_str()) == tinyxml2::XML_SUCCESS);
   }
   fs::remove_all(dir);
+}
+
+namespace {
+
+// Rows (<td> texts, with the K line of temperature cells apart) of the
+// first table with class "stages" after the heading with this id.
+struct HtmlRow {
+  std::vector<std::string> cells;
+  std::vector<std::string> kelvin;
+};
+
+std::vector<HtmlRow> table_after(const tinyxml2::XMLDocument& doc, const std::string& heading_id) {
+  std::vector<HtmlRow> rows;
+  bool after = false, done = false;
+  walk(doc.RootElement(), [&](const tinyxml2::XMLElement* e) {
+    const std::string name = e->Name();
+    if (name == "h2") after = e->Attribute("id", heading_id.c_str()) != nullptr;
+    if (done || !after || name != "table") return;
+    done = true;
+    for (auto* tr = e->FirstChildElement("tr"); tr; tr = tr->NextSiblingElement("tr")) {
+      HtmlRow row;
+      for (auto* td = tr->FirstChildElement("td"); td; td = td->NextSiblingElement("td")) {
+        row.cells.push_back(td->GetText() ? td->GetText() : "");
+        const auto* k = td->FirstChildElement("span");
+        row.kelvin.push_back(k && k->GetText() ? k->GetText() : "");
+      }
+      if (!row.cells.empty()) rows.push_back(row);
+    }
+  });
+  return rows;
+}
+
+}  // namespace
+
+TEST_CASE("staging --report: the beds and coolers shown equal the JSON answer", "[html]") {
+  const auto dir = fs::temp_directory_path() / "rxtrain_html_staging";
+  fs::remove_all(dir);
+  const std::string demo = std::string(RXTRAIN_SOURCE_DIR) + "/cases/so2-oxidation-staging.yaml";
+  const auto res =
+      rxtrain::test::run_rxtrain("staging '" + demo + "' --report '" + (dir / "rep").string() +
+                                 "' --json '" + (dir / "s.json").string() + "'");
+  INFO(res.err);
+  REQUIRE(res.exit_code == 0);
+  const auto j = nlohmann::json::parse(rxtrain::test::slurp(dir / "s.json"));
+  tinyxml2::XMLDocument doc;
+  REQUIRE(doc.LoadFile((dir / "rep" / "report.html").c_str()) == tinyxml2::XML_SUCCESS);
+  const auto beds = table_after(doc, "beds");
+  REQUIRE(beds.size() == j["beds"].size());
+  REQUIRE(beds.size() >= 2);  // the demo needs intercooling (3 beds, see staging_test)
+  for (std::size_t i = 0; i < beds.size(); ++i) {
+    const auto& b = j["beds"][i];
+    CHECK(beds[i].cells[0] == b["id"].get<std::string>());
+    CHECK(beds[i].cells[1] == celsius_text(b["T_in"].get<double>()));
+    CHECK(beds[i].kelvin[2] == fixed_text(b["T_out"].get<double>(), 2) + " K");
+    CHECK(beds[i].cells[5] == fixed_text(b["X_out"].get<double>(), 4));
+    CHECK(beds[i].cells[7] == fixed_text(b["volume"].get<double>(), 3));
+  }
+  const auto coolers = table_after(doc, "exchangers");
+  REQUIRE(coolers.size() == j["coolers"].size());
+  for (std::size_t i = 0; i < coolers.size(); ++i)
+    CHECK(coolers[i].cells[4] == fixed_text(j["coolers"][i]["duty"].get<double>() / 1e3, 2));
+  // Every figure also stands alone as a well-formed SVG; the staged T-X
+  // diagram draws one path per bed and cooler.
+  int files = 0;
+  for (const auto& f : fs::directory_iterator(dir / "rep")) {
+    if (f.path().extension() != ".svg") continue;
+    ++files;
+    tinyxml2::XMLDocument one;
+    CHECK(one.LoadFile(f.path().c_str()) == tinyxml2::XML_SUCCESS);
+  }
+  CHECK(files == 4);
+  tinyxml2::XMLDocument tx;
+  REQUIRE(tx.LoadFile((dir / "rep" / "tx-staged.svg").c_str()) == tinyxml2::XML_SUCCESS);
+  int paths = 0;
+  walk(tx.RootElement(), [&](const tinyxml2::XMLElement* e) {
+    if (std::string(e->Name()) == "g" && e->Attribute("class", "line")) ++paths;
+  });
+  // Equilibrium curve, maximum-rate locus, beds and coolers.
+  CHECK(paths == 2 + static_cast<int>(j["beds"].size() + j["coolers"].size()));
+  fs::remove_all(dir);
+}
+
+TEST_CASE("compare --report: the layouts shown equal the JSON, one bar per feasible layout",
+          "[html]") {
+  const auto dir = fs::temp_directory_path() / "rxtrain_html_compare";
+  fs::remove_all(dir);
+  const std::string demo = std::string(RXTRAIN_SOURCE_DIR) + "/cases/liquid-tank-then-tube.yaml";
+  const auto res =
+      rxtrain::test::run_rxtrain("compare '" + demo + "' --report '" + (dir / "rep").string() +
+                                 "' --json '" + (dir / "c.json").string() + "'");
+  INFO(res.err);
+  REQUIRE(res.exit_code == 0);
+  const auto j = nlohmann::json::parse(rxtrain::test::slurp(dir / "c.json"));
+  tinyxml2::XMLDocument doc;
+  REQUIRE(doc.LoadFile((dir / "rep" / "report.html").c_str()) == tinyxml2::XML_SUCCESS);
+  const auto rows = table_after(doc, "summary");
+  REQUIRE(rows.size() == j["layouts"].size());
+  std::size_t feasible = 0;
+  for (std::size_t i = 0; i < rows.size(); ++i) {
+    const auto& l = j["layouts"][i];
+    std::string order;
+    for (const auto& id : l["order"]) order += (order.empty() ? "" : " > ") + id.get<std::string>();
+    CHECK(rows[i].cells[2] == order);
+    CHECK(rows[i].cells[3] == l["heat"].get<std::string>());
+    if (l["conversion"].is_number())
+      CHECK(rows[i].cells[6] == fmt::format("{:.5f}", l["conversion"].get<double>()));
+    if (l["feasible"].get<bool>()) ++feasible;
+  }
+  tinyxml2::XMLDocument bars;
+  REQUIRE(bars.LoadFile((dir / "rep" / "compare-layouts.svg").c_str()) == tinyxml2::XML_SUCCESS);
+  std::size_t rects = 0;
+  walk(bars.RootElement(), [&](const tinyxml2::XMLElement* e) {
+    if (std::string(e->Name()) == "g" && e->Attribute("class", "bar"))
+      for (auto* r = e->FirstChildElement("rect"); r; r = r->NextSiblingElement("rect")) ++rects;
+  });
+  CHECK(rects == feasible);
+  fs::remove_all(dir);
+}
+
+TEST_CASE("staging and compare pages escape a title with XML special characters", "[html]") {
+  const UnitParser units;
+  std::string text = kTinyCase;
+  text.replace(text.find("title: tiny"), 11, "title: '<R&D> \"train\"'");
+  const Case c = load_case_from_string(text, "tiny.yaml", units);
+  CompareResult cr;
+  cr.sized = false;
+  Layout l;
+  l.order = {"R1"};
+  l.case_layout = true;
+  l.feasible = true;
+  l.conversion = 0.4;
+  l.T_max = 600;
+  cr.layouts = {l};
+  StagingResult sr;
+  sr.title = c.title;
+  const ReportProvenance p{"tiny.yaml", "0", "2026-12-02", "0.1.0"};
+  for (const std::string& page :
+       {compare_report_html(c, cr, {compare_figure(cr)}, p), staging_report_html(c, sr, {}, p)}) {
+    tinyxml2::XMLDocument doc;
+    REQUIRE(doc.Parse(page.c_str()) == tinyxml2::XML_SUCCESS);
+    const auto* h1 = doc.RootElement()->FirstChildElement("body")->FirstChildElement("h1");
+    REQUIRE(h1 != nullptr);
+    CHECK_THAT(std::string(h1->GetText()), Catch::StartsWith("<R&D> \"train\""));
+  }
 }

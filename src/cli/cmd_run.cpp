@@ -1,7 +1,6 @@
 // rxtrain run CASE [--json PATH] [--csv DIR]
 #include <cstdio>
-#include <fstream>
-#include <iterator>
+#include <filesystem>
 #include <memory>
 #include <string>
 
@@ -15,7 +14,6 @@
 #include "rxtrain/report/figures.hpp"
 #include "rxtrain/report/html.hpp"
 #include "rxtrain/report/json.hpp"
-#include "rxtrain/report/sha256.hpp"
 #include "rxtrain/report/table.hpp"
 #include "rxtrain/train.hpp"
 #include "rxtrain/units.hpp"
@@ -55,12 +53,9 @@ int run(const RunOptions& o) {
   }
   if (!o.report_dir.empty()) {
     const auto figures = run_figures(c, result, result.levenspiel);
-    std::ifstream in(o.case_file, std::ios::binary);
-    const std::string bytes((std::istreambuf_iterator<char>(in)), std::istreambuf_iterator<char>());
-    const ReportProvenance provenance{o.case_file, sha256_hex(bytes), utc_date_today(),
-                                      RXTRAIN_VERSION};
     const std::filesystem::path dir(o.report_dir);
-    out.add(dir / "report.html", run_report_html(c, result, figures, provenance));
+    out.add(dir / "report.html",
+            run_report_html(c, result, figures, provenance_of(o.case_file, RXTRAIN_VERSION)));
     for (const auto& f : figures) out.add(dir / (f.name + ".svg"), f.chart.render());
   }
   out.commit();

@@ -1,6 +1,7 @@
 // rxtrain staging CASE [--approach F] [--return-to inlet|optimal]
-//                      [--max-beds N] [--json PATH]
+//                      [--max-beds N] [--json PATH] [--report DIR]
 #include <cstdio>
+#include <filesystem>
 #include <map>
 #include <memory>
 #include <string>
@@ -8,6 +9,7 @@
 #include "commands.hpp"
 #include "rxtrain/case.hpp"
 #include "rxtrain/report/atomic_file.hpp"
+#include "rxtrain/report/staging_html.hpp"
 #include "rxtrain/report/staging_report.hpp"
 #include "rxtrain/staging.hpp"
 #include "rxtrain/units.hpp"
@@ -19,6 +21,7 @@ namespace {
 struct StagingCommandOptions {
   std::string case_file;
   std::string json_path;
+  std::string report_dir;
   StagingOptions staging;
 };
 
@@ -30,6 +33,16 @@ int run_staging_command(const StagingCommandOptions& o) {
   OutputSet out;
   out.protect(o.case_file);  // the case file is never an output
   if (!o.json_path.empty()) out.add(o.json_path, staging_json_text(result));
+  if (!o.report_dir.empty()) {
+    TrainOptions views;
+    views.pfr = o.staging.pfr;
+    views.equilibrium = o.staging.equilibrium;
+    const auto figures = staging_figures(c, result, views);
+    const std::filesystem::path dir(o.report_dir);
+    out.add(dir / "report.html",
+            staging_report_html(c, result, figures, provenance_of(o.case_file, RXTRAIN_VERSION)));
+    for (const auto& f : figures) out.add(dir / (f.name + ".svg"), f.chart.render());
+  }
   out.commit();
   std::fputs(format_staging_report(result).c_str(), stdout);
   return 0;
@@ -66,6 +79,9 @@ Action setup_staging(CLI::App& app) {
       ->check(CLI::Range(1, 100))
       ->capture_default_str();
   app.add_option("--json", o->json_path, "Write the answer as JSON (SI units) to PATH");
+  app.add_option("--report", o->report_dir,
+                 "Write report.html (self-contained, with the staged beds on the "
+                 "temperature-conversion diagram) and the figures as SVG into folder DIR");
   return [o] { return run_staging_command(*o); };
 }
 

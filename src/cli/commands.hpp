@@ -15,6 +15,9 @@ Action setup_check(CLI::App& app);
 Action setup_thermo(CLI::App& app);
 Action setup_staging(CLI::App& app);
 Action setup_compare(CLI::App& app);
+Action setup_optimize(CLI::App& app);
+Action setup_sweep(CLI::App& app);
+Action setup_merge(CLI::App& app);
 
 // Exit codes (also in --help): 0 success, 2 input error, 3 solver failure,
 // 4 output could not be written.

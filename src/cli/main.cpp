@@ -38,6 +38,16 @@ constexpr CommandEntry kCommands[] = {
      "Compare layouts: every order of the reactor stages, as written, all adiabatic and all "
      "isothermal; best first",
      rxtrain::cli::setup_compare},
+    {"optimize",
+     "Optimal adiabatic beds with intercoolers: inlet temperatures and bed conversions of least "
+     "total catalyst for the target, within the catalyst's temperature window",
+     rxtrain::cli::setup_optimize},
+    {"sweep",
+     "Run a case over a grid of inputs (--vary) or a Monte Carlo sample (--sample): one row "
+     "per run, percentiles, design margin; parallel, shardable",
+     rxtrain::cli::setup_sweep},
+    {"merge", "Merge the CSVs of the shards of one sweep into the CSV of the whole study",
+     rxtrain::cli::setup_merge},
 };
 
 }  // namespace

@@ -4,6 +4,8 @@
 
 #include <algorithm>
 #include <cmath>
+#include <string>
+#include <vector>
 
 namespace rxtrain {
 
@@ -25,13 +27,22 @@ bool all_reactors_have_catalyst(const TrainResult& r) {
   return any;
 }
 
+// Palette colour of the k-th stage path; black is left to the equilibrium
+// curve, so long trains never draw a bed in the curve's colour.
+std::string path_colour(std::size_t k) {
+  std::vector<std::string> colours;
+  for (std::size_t i = 0; i < svg::kOkabeIto.size(); ++i)
+    if (svg::series_colour(i) != "#000000") colours.emplace_back(svg::series_colour(i));
+  return colours[k % colours.size()];
+}
+
 }  // namespace
 
-Figure tx_diagram(const Case& c, const TrainResult& r) {
+Figure tx_diagram(const Case& c, const TrainResult& r, const std::string& title) {
   svg::ChartOptions o;
   o.width = 720;
   o.height = 460;
-  o.title = "Temperature–conversion diagram";
+  o.title = title;
   o.x_label = "Temperature (°C)";
   o.y_label = fmt::format("Conversion of {} (–)", r.key);
   svg::Chart chart(o);
@@ -58,6 +69,7 @@ Figure tx_diagram(const Case& c, const TrainResult& r) {
         x, y,
         {.label = "maximum-rate locus T_opt(X)", .colour = "#777777", .dash = "2 3", .width = 1.5});
   }
+  std::size_t path_index = 0;
   for (const auto& s : r.stages) {
     x.clear();
     y.clear();
@@ -67,6 +79,7 @@ Figure tx_diagram(const Case& c, const TrainResult& r) {
     }
     svg::LineOptions lo;
     lo.label = fmt::format("{} ({})", s.id, stage_word(s.kind));
+    lo.colour = path_colour(path_index++);
     if (s.kind == StageKind::Exchanger) {
       lo.dash = "6 3";
       lo.width = 1.5;

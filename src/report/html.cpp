@@ -2,48 +2,19 @@
 
 #include <fmt/format.h>
 
-#include <chrono>
+#include <algorithm>
 #include <cmath>
-#include <ctime>
 
-#include "rxtrain/report/caution.hpp"
+#include "rxtrain/report/html_page.hpp"
 #include "rxtrain/report/text_format.hpp"
 
 namespace rxtrain {
 
 namespace {
 
+using html::cell;
+using html::temperature_cell;
 using svg::xml_escape;
-
-// Print-friendly, own design: serif-free body, light rules, tabular figures.
-constexpr const char* kStyle = R"(
-body { font-family: "DejaVu Sans", Arial, sans-serif; color: #1a1a1a; max-width: 60em;
-       margin: 1.5em auto; padding: 0 1em; line-height: 1.4; }
-h1 { font-size: 1.5em; margin-bottom: 0.2em; }
-h2 { font-size: 1.15em; border-bottom: 1px solid #999; padding-bottom: 0.15em; margin-top: 1.6em; }
-table { border-collapse: collapse; font-variant-numeric: tabular-nums; margin: 0.5em 0; }
-th, td { padding: 0.2em 0.6em; border-bottom: 1px solid #ddd; }
-th { text-align: left; background: #f2f2f2; font-weight: 600; }
-td.num { text-align: right; white-space: nowrap; }
-table.stages { font-size: 0.88em; }
-.kelvin { color: #555; }
-.origin td { border: none; padding: 0.05em 0.6em 0.05em 0; }
-.caution { border: 2px solid #D55E00; padding: 0.5em 0.8em; margin: 1em 0; background: #fff7f2; }
-figure { margin: 1.2em 0; page-break-inside: avoid; }
-figcaption { font-size: 0.9em; color: #444; }
-code { font-family: "DejaVu Sans Mono", monospace; font-size: 0.92em; }
-@media print { body { max-width: none; margin: 0; } h2 { page-break-after: avoid; } }
-)";
-
-std::string cell(const std::string& text, bool numeric) {
-  return fmt::format("<td{}>{}</td>", numeric ? " class=\"num\"" : "", xml_escape(text));
-}
-
-// A temperature cell: °C on top, K below, both with two decimals.
-std::string temperature_cell(double T) {
-  return fmt::format("<td class=\"num\">{}<br/><span class=\"kelvin\">{} K</span></td>",
-                     celsius_text(T), fixed_text(T, 2));
-}
 
 std::string stage_table(const TrainResult& r) {
   std::string h = "<table class=\"stages\">\n<tr>";
@@ -92,90 +63,11 @@ std::string stream_table(const TrainResult& r) {
   return h + "</table>\n";
 }
 
-std::string cp_text(const ThermoModel& t) {
-  struct Visitor {
-    std::string operator()(const CpConstant& m) const {
-      return fmt::format("{:g} J/(mol·K)", m.cp);
-    }
-    std::string operator()(const CpPolynomial& m) const {
-      return fmt::format("{:g} + {:g}·T + {:g}·T² + {:g}·T³ J/(mol·K)", m.a[0], m.a[1], m.a[2],
-                         m.a[3]);
-    }
-    std::string operator()(const CpShomate& m) const {
-      return fmt::format("Shomate, {} range(s)", m.sets.size());
-    }
-    std::string operator()(const Nasa7&) const { return "NASA-7 polynomials"; }
-  };
-  return std::visit(Visitor{}, t.model());
-}
-
-// The rate law written out with the case's own numbers (SI).
-std::string rate_text(const Mechanism& mech, const Reaction& rx) {
-  const bool pressure = rx.rate.driving == Driving::Pressure;
-  std::string s =
-      fmt::format("r = {:.4g} · exp[−{:.4g} kJ/mol / R · ", rx.rate.A, rx.rate.Ea / 1e3);
-  s += rx.rate.T_ref ? fmt::format("(1/T − 1/{:.2f} K)]", *rx.rate.T_ref) : std::string("1/T]");
-  for (int i = 0; i < mech.n_species(); ++i) {
-    const double o = rx.rate.orders[i];
-    if (o == 0) continue;
-    s += fmt::format(" · {}({})", pressure ? "p" : "C", mech.species()[i].id);
-    if (o != 1) s += fmt::format("^{:g}", o);
-  }
-  if (rx.reversible) s += " · (1 − Q/K)";
-  s += rx.rate.basis == RateBasis::Catalyst ? "   [mol/(kg·s)" : "   [mol/(m³·s)";
-  s += pressure ? ", p in Pa]" : ", C in mol/m³]";
-  return s;
-}
-
-std::string inputs_section(const Case& c) {
-  const Mechanism& m = c.mechanism;
-  std::string h =
-      "<h2 id=\"inputs\">Inputs</h2>\n<h3>Species</h3>\n<table>\n<tr><th>id</th>"
-      "<th>name</th><th>M (g/mol)</th><th>h_f (kJ/mol)</th><th>c_p</th></tr>\n";
-  for (const auto& s : m.species())
-    h += "<tr>" + cell(s.id, false) + cell(s.name, false) +
-         cell(s.mw ? fmt::format("{:.3f}", *s.mw * 1e3) : "-", true) +
-         cell(s.thermo.h_f() ? fmt::format("{:.3f}", *s.thermo.h_f() / 1e3) : "-", true) +
-         cell(cp_text(s.thermo), false) + "</tr>\n";
-  h += "</table>\n<h3>Reactions</h3>\n<table>\n<tr><th>id</th><th>equation</th>"
-       "<th>ΔH_r(298.15 K) (kJ/mol)</th><th>rate law (SI)</th></tr>\n";
-  for (const auto& rx : m.reactions())
-    h += "<tr>" + cell(rx.id, false) + cell(rx.equation, false) +
-         cell(fmt::format("{:.3f}", rx.dH_298 / 1e3), true) + "<td><code>" +
-         xml_escape(rate_text(m, rx)) + "</code></td></tr>\n";
-  h += "</table>\n";
-  h += fmt::format("<h3>Feed</h3>\n<p>{} °C ({} K), {} bar; key species {}.</p>\n",
-                   celsius_text(c.feed.T), fixed_text(c.feed.T, 2), fixed_text(c.feed.P / 1e5, 3),
-                   xml_escape(m.species()[c.key].id));
-  return h;
-}
-
 }  // namespace
-
-std::string utc_date_today() {
-  const std::time_t now = std::chrono::system_clock::to_time_t(std::chrono::system_clock::now());
-  std::tm tm{};
-  gmtime_r(&now, &tm);
-  return fmt::format("{:04}-{:02}-{:02}", tm.tm_year + 1900, tm.tm_mon + 1, tm.tm_mday);
-}
 
 std::string run_report_html(const Case& c, const TrainResult& r, const std::vector<Figure>& figures,
                             const ReportProvenance& p) {
-  std::string h;
-  h += "<!DOCTYPE html>\n<html xmlns=\"http://www.w3.org/1999/xhtml\" lang=\"en\">\n<head>\n"
-       "<meta charset=\"utf-8\"/>\n";
-  h += fmt::format("<title>{}</title>\n<style>{}</style>\n</head>\n<body>\n", xml_escape(r.title),
-                   kStyle);
-  h += fmt::format("<h1>{}</h1>\n", xml_escape(r.title));
-  h += "<table class=\"origin\">\n";
-  h +=
-      fmt::format("<tr><td>case file</td><td><code>{}</code></td></tr>\n", xml_escape(p.case_file));
-  h +=
-      fmt::format("<tr><td>SHA-256</td><td><code>{}</code></td></tr>\n", xml_escape(p.case_sha256));
-  h += fmt::format("<tr><td>rxtrain</td><td>{}</td></tr>\n", xml_escape(p.version));
-  h += fmt::format("<tr><td>date</td><td>{}</td></tr>\n</table>\n", xml_escape(p.date));
-  h += fmt::format("<p class=\"caution\"><strong>Caution.</strong> {}</p>\n", xml_escape(kCaution));
-
+  std::string h = html::page_begin(r.title, p);
   h += "<h2 id=\"summary\">Stages</h2>\n" + stage_table(r);
   h += fmt::format("<p>Outlet: {} °C ({} K), {} bar; overall conversion of {} = {}.</p>\n",
                    celsius_text(r.outlet.T), fixed_text(r.outlet.T, 2),
@@ -187,22 +79,10 @@ std::string run_report_html(const Case& c, const TrainResult& r, const std::vect
                        celsius_text(s.equilibrium->T_ad_eq));
   h += space_velocity_table(r);
   h += stream_table(r);
-
-  h += "<h2 id=\"figures\">Figures</h2>\n";
-  for (const auto& f : figures)
-    h += fmt::format("<figure id=\"{}\">\n{}\n<figcaption>{}</figcaption>\n</figure>\n", f.name,
-                     f.chart.render_inline(), xml_escape(f.caption));
-
-  h += "<h2 id=\"warnings\">Warnings</h2>\n";
-  if (r.warnings.empty()) {
-    h += "<p>None.</p>\n";
-  } else {
-    h += "<ul>\n";
-    for (const auto& w : r.warnings) h += fmt::format("<li>{}</li>\n", xml_escape(w));
-    h += "</ul>\n";
-  }
-  h += inputs_section(c);
-  h += "</body>\n</html>\n";
+  h += html::figures_section(figures);
+  h += html::warnings_section(r.warnings);
+  h += html::inputs_section(c);
+  h += html::page_end();
   return h;
 }
 

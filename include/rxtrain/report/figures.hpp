@@ -21,7 +21,8 @@ struct Figure {
 // Temperature-conversion diagram: equilibrium curve X_eq(T), maximum-rate
 // locus, every stage's path (exchangers as constant-conversion steps) and
 // T_max when the case gives one.
-Figure tx_diagram(const Case& c, const TrainResult& r);
+Figure tx_diagram(const Case& c, const TrainResult& r,
+                  const std::string& title = "Temperature–conversion diagram");
 // Temperature and conversion against cumulative position (catalyst mass
 // when every reactor has one, else volume) with stage boundaries.
 std::vector<Figure> profile_figures(const TrainResult& r);

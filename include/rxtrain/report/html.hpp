@@ -9,22 +9,14 @@
 
 #include "rxtrain/case.hpp"
 #include "rxtrain/report/figures.hpp"
+#include "rxtrain/report/html_page.hpp"
 #include "rxtrain/train.hpp"
 
 namespace rxtrain {
 
-// What the report says about where it came from.
-struct ReportProvenance {
-  std::string case_file;    // as passed on the command line
-  std::string case_sha256;  // of the case file's bytes
-  std::string date;         // ISO 8601, UTC
-  std::string version;      // rxtrain version
-};
-
+// A run's report: the stage table, outlet, space velocities, streams, the
+// figures, warnings and inputs.
 std::string run_report_html(const Case& c, const TrainResult& r, const std::vector<Figure>& figures,
                             const ReportProvenance& provenance);
-
-// Today's date (UTC) as YYYY-MM-DD.
-std::string utc_date_today();
 
 }  // namespace rxtrain
