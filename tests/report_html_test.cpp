@@ -354,3 +354,52 @@ TEST_CASE("staging and compare pages escape a title with XML special characters"
     CHECK_THAT(std::string(h1->GetText()), Catch::StartsWith("<R&D> \"train\""));
   }
 }
+
+TEST_CASE("optimize --report: the optimum shown equals the JSON; the trade-off has a bar per N",
+          "[html]") {
+  const auto dir = fs::temp_directory_path() / "rxtrain_html_optimize";
+  fs::remove_all(dir);
+  const std::string demo = std::string(RXTRAIN_SOURCE_DIR) + "/cases/three-bed-optimize.yaml";
+  const auto res =
+      rxtrain::test::run_rxtrain("optimize '" + demo + "' --max-beds 2 --report '" +
+                                 (dir / "rep").string() + "' --json '" +
+                                 (dir / "o.json").string() + "'");
+  INFO(res.err);
+  REQUIRE(res.exit_code == 0);
+  const auto j = nlohmann::json::parse(rxtrain::test::slurp(dir / "o.json"));
+  tinyxml2::XMLDocument doc;
+  REQUIRE(doc.LoadFile((dir / "rep" / "report.html").c_str()) == tinyxml2::XML_SUCCESS);
+  const auto beds = table_after(doc, "summary");
+  REQUIRE(beds.size() == j["beds"].size());
+  for (std::size_t i = 0; i < beds.size(); ++i) {
+    const auto& b = j["beds"][i];
+    CHECK(beds[i].cells[0] == b["id"].get<std::string>());
+    CHECK(beds[i].cells[1] == celsius_text(b["T_in"].get<double>()));
+    CHECK(beds[i].kelvin[2] == fixed_text(b["T_out"].get<double>(), 2) + " K");
+    CHECK(beds[i].cells[4] == fixed_text(b["X_out"].get<double>(), 4));
+    CHECK(beds[i].cells[6] == fixed_text(b["volume"].get<double>(), 3));
+    CHECK(beds[i].cells[7] == fixed_text(b["catalyst_mass"].get<double>(), 1));
+  }
+  const auto counts = table_after(doc, "by-bed-count");
+  REQUIRE(counts.size() == j["by_bed_count"].size());
+  std::size_t feasible = 0;
+  for (std::size_t i = 0; i < counts.size(); ++i)
+    if (j["by_bed_count"][i]["total_catalyst"].is_number()) {
+      ++feasible;
+      CHECK(counts[i].cells[2] ==
+            fixed_text(j["by_bed_count"][i]["total_catalyst"].get<double>(), 1));
+    }
+  tinyxml2::XMLDocument bars;
+  REQUIRE(bars.LoadFile((dir / "rep" / "beds-catalyst.svg").c_str()) == tinyxml2::XML_SUCCESS);
+  std::size_t rects = 0;
+  walk(bars.RootElement(), [&](const tinyxml2::XMLElement* e) {
+    if (std::string(e->Name()) == "g" && e->Attribute("class", "bar"))
+      for (auto* r = e->FirstChildElement("rect"); r; r = r->NextSiblingElement("rect")) ++rects;
+  });
+  CHECK(rects == feasible);
+  for (const char* svg : {"tx-optimum.svg", "profile-temperature-optimum.svg", "beds-duty.svg"}) {
+    tinyxml2::XMLDocument one;
+    CHECK(one.LoadFile((dir / "rep" / svg).c_str()) == tinyxml2::XML_SUCCESS);
+  }
+  fs::remove_all(dir);
+}

@@ -1,11 +1,12 @@
 // rxtrain optimize CASE [--beds N | --max-beds N] [--fixed-feed-T]
-//                       [--json PATH] [--write-case PATH]
+//                       [--json PATH] [--write-case PATH] [--report DIR]
 #include <fmt/format.h>
 #include <unistd.h>
 
 #include <chrono>
 #include <cmath>
 #include <cstdio>
+#include <filesystem>
 #include <fstream>
 #include <iterator>
 #include <memory>
@@ -18,6 +19,7 @@
 #include "rxtrain/design_case.hpp"
 #include "rxtrain/report/atomic_file.hpp"
 #include "rxtrain/report/caution.hpp"
+#include "rxtrain/report/optimize_html.hpp"
 #include "rxtrain/report/text_format.hpp"
 #include "rxtrain/units.hpp"
 
@@ -31,6 +33,7 @@ struct OptimizeCommandOptions {
   std::string case_file;
   std::string json_path;
   std::string case_path;
+  std::string report_dir;
   int beds = 0;      // 0: not given
   int max_beds = 0;  // 0: not given
   bool fixed_feed_T = false;
@@ -332,6 +335,16 @@ int run_optimize_command(const OptimizeCommandOptions& o) {
     const std::string text((std::istreambuf_iterator<char>(in)), std::istreambuf_iterator<char>());
     out.add(o.case_path, design_case_text(c, text, result, result.best, units, o.case_path));
   }
+  if (!o.report_dir.empty()) {
+    TrainOptions views;
+    views.pfr = options.pfr;
+    views.equilibrium = options.equilibrium;
+    const auto figures = optimize_figures(c, result, views);
+    const std::filesystem::path dir(o.report_dir);
+    out.add(dir / "report.html",
+            optimize_report_html(c, result, figures, provenance_of(o.case_file, RXTRAIN_VERSION)));
+    for (const auto& f : figures) out.add(dir / (f.name + ".svg"), f.chart.render());
+  }
   out.commit();
   std::fputs(optimize_table(result, options).c_str(), stdout);
   return 0;
@@ -355,6 +368,10 @@ Action setup_optimize(CLI::App& app) {
   app.add_flag("--fixed-feed-T", o->fixed_feed_T,
                "Keep bed 1's inlet at the feed temperature (no feed conditioning)");
   app.add_option("--json", o->json_path, "Write the optimum as JSON (SI units) to PATH");
+  app.add_option("--report", o->report_dir,
+                 "Write report.html (self-contained: the optimum over the equilibrium curve, "
+                 "profiles, and with --max-beds the beds-against-catalyst trade-off) and the "
+                 "figures as SVG into folder DIR");
   app.add_option("--write-case", o->case_path,
                  "Write the case with the optimum's train to PATH (rxtrain run reproduces it)");
   return [o] { return run_optimize_command(*o); };
