@@ -6,7 +6,7 @@
 #include <cmath>
 #include <limits>
 
-#include "rxtrain/report/caution.hpp"
+#include "rxtrain/report/html_page.hpp"
 #include "rxtrain/report/svg.hpp"
 
 namespace rxtrain::sweep {
@@ -17,6 +17,8 @@ using svg::xml_escape;
 
 constexpr std::size_t kMaxLines = 8;
 constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+// Relative spread below which an output counts as constant over a study.
+constexpr double kConstant = 1e-9;
 
 // A file stem from a column name ("R1.T_max" -> "R1-T_max").
 std::string stem(const std::string& name) {
@@ -62,12 +64,21 @@ Figure grid_figure(const Study& study, const std::string& output, std::size_t co
   return {"sweep-" + stem(output), caption, std::move(chart)};
 }
 
-Figure histogram(const std::string& output, std::size_t col, const std::vector<RunRow>& rows,
-                 const std::optional<PercentileSummary>& p) {
+// The histogram of one output, or nothing when the output did not vary by
+// more than rounding noise (a sized stage's outlet X is the target in every
+// run): bins of such a spread would only draw the noise.
+std::optional<Figure> histogram(const std::string& output, std::size_t col,
+                                const std::vector<RunRow>& rows,
+                                const std::optional<PercentileSummary>& p) {
   std::vector<double> v;
   for (const auto& r : rows)
     if (r.result.status == RunStatus::Ok && r.result.outputs[col])
       v.push_back(*r.result.outputs[col]);
+  if (!v.empty()) {
+    const auto [lo_it, hi_it] = std::minmax_element(v.begin(), v.end());
+    if (*hi_it - *lo_it <= kConstant * std::max(std::abs(*lo_it), std::abs(*hi_it)))
+      return std::nullopt;
+  }
   svg::ChartOptions o;
   o.title = "Distribution of " + output;
   o.x_label = output + " (SI)";
@@ -104,7 +115,7 @@ Figure histogram(const std::string& output, std::size_t col, const std::vector<R
   } else {
     caption += ".";
   }
-  return {"histogram-" + stem(output), caption, std::move(chart)};
+  return Figure{"histogram-" + stem(output), caption, std::move(chart)};
 }
 
 }  // namespace
@@ -115,7 +126,8 @@ std::vector<Figure> sweep_figures(const Study& study, const std::vector<std::str
   if (study.monte_carlo()) {
     const auto s = summarize_study(outputs, {}, rows);
     for (std::size_t c = 0; c < outputs.size(); ++c)
-      figures.push_back(histogram(outputs[c], c, rows, s.percentiles[c].p));
+      if (auto f = histogram(outputs[c], c, rows, s.percentiles[c].p))
+        figures.push_back(std::move(*f));
   } else {
     for (std::size_t c = 0; c < outputs.size(); ++c)
       figures.push_back(grid_figure(study, outputs[c], c, rows));
@@ -127,32 +139,19 @@ std::string sweep_report_html(const std::string& title, const std::string& case_
                               const StudyHeader& header, const Shard& shard,
                               const StudySummary& summary, bool monte_carlo,
                               const std::vector<Figure>& figures) {
-  std::string h =
-      "<!DOCTYPE html>\n<html xmlns=\"http://www.w3.org/1999/xhtml\" lang=\"en\">\n<head>\n"
-      "<meta charset=\"utf-8\"/>\n";
-  h += fmt::format(
-      "<title>{}</title>\n<style>body {{ font-family: \"DejaVu Sans\", Arial, sans-serif; "
-      "max-width: 60em; margin: 1.5em auto; padding: 0 1em; }} table {{ border-collapse: "
-      "collapse; }} th, td {{ padding: 0.2em 0.6em; border-bottom: 1px solid #ddd; }} td.num {{ "
-      "text-align: right; }} .caution {{ border: 2px solid #D55E00; padding: 0.5em 0.8em; }} "
-      "figcaption {{ font-size: 0.9em; color: #444; }}</style>\n</head>\n<body>\n",
-      xml_escape("Study: " + title));
-  h += fmt::format("<h1>Study: {}</h1>\n", xml_escape(title));
-  h += "<table>\n";
-  h += fmt::format("<tr><td>case file</td><td><code>{}</code></td></tr>\n", xml_escape(case_file));
-  h += fmt::format("<tr><td>SHA-256</td><td><code>{}</code></td></tr>\n",
-                   xml_escape(header.case_sha256));
-  h += fmt::format("<tr><td>rxtrain</td><td>{}</td></tr>\n", xml_escape(header.version));
+  const ReportProvenance provenance{case_file, header.case_sha256, utc_date_today(),
+                                    header.version};
+  std::string h = html::page_begin("Study: " + title, provenance);
+  h += "<h2 id=\"study\">Study</h2>\n<table class=\"origin\">\n";
   for (const auto& d : header.definition)
-    h += fmt::format("<tr><td>study</td><td><code>{}</code></td></tr>\n", xml_escape(d));
-  h += fmt::format("<tr><td>shard</td><td>{}</td></tr>\n</table>\n", shard.to_string());
-  h += fmt::format("<p class=\"caution\"><strong>Caution.</strong> {}</p>\n", xml_escape(kCaution));
+    h += fmt::format("<tr><td><code>{}</code></td></tr>\n", xml_escape(d));
+  h += fmt::format("<tr><td>shard {}</td></tr>\n</table>\n", shard.to_string());
   std::string counts;
   for (const auto& [status, n] : summary.statuses)
     counts += fmt::format("{}{} {}", counts.empty() ? "" : ", ", n, status);
-  h += fmt::format("<h2>Runs</h2>\n<p>{} runs: {}.</p>\n", summary.runs, xml_escape(counts));
+  h += fmt::format("<h2 id=\"runs\">Runs</h2>\n<p>{} runs: {}.</p>\n", summary.runs, xml_escape(counts));
   if (monte_carlo) {
-    h += "<h2>Percentiles (SI)</h2>\n<table>\n<tr><th>output</th><th>n</th><th>P5</th>"
+    h += "<h2 id=\"percentiles\">Percentiles (SI)</h2>\n<table>\n<tr><th>output</th><th>n</th><th>P5</th>"
          "<th>P50</th><th>P95</th></tr>\n";
     for (const auto& p : summary.percentiles) {
       if (!p.p) {
@@ -169,7 +168,7 @@ std::string sweep_report_html(const std::string& title, const std::string& case_
     h += "</table>\n<p>Percentiles: Hyndman &amp; Fan (1996) definition 7, over the runs that "
          "succeeded.</p>\n";
     if (!summary.margins.empty()) {
-      h += "<h2>Design margin</h2>\n<p>The amount each sized stage needs to meet its target in "
+      h += "<h2 id=\"margin\">Design margin</h2>\n<p>The amount each sized stage needs to meet its target in "
            "95 % of the runs (a run whose target is out of reach counts as unbounded).</p>\n<ul>\n";
       const auto v = [](const std::optional<double>& x) {
         return x ? fmt::format("{:.6g}", *x) : std::string("unbounded");
@@ -180,11 +179,11 @@ std::string sweep_report_html(const std::string& title, const std::string& case_
       h += "</ul>\n";
     }
   }
-  h += "<h2>Figures</h2>\n";
-  for (const auto& f : figures)
-    h += fmt::format("<figure id=\"{}\">\n{}\n<figcaption>{}</figcaption>\n</figure>\n", f.name,
-                     f.chart.render_inline(), xml_escape(f.caption));
-  h += "</body>\n</html>\n";
+  h += html::figures_section(figures);
+  if (monte_carlo && figures.size() < summary.percentiles.size())
+    h += "<p>Outputs without a histogram did not vary by more than one part in 10⁹ over the "
+         "runs; the percentiles table gives their value.</p>\n";
+  h += html::page_end();
   return h;
 }
 
