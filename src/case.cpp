@@ -26,6 +26,7 @@
 #include "rxtrain/equation.hpp"
 #include "rxtrain/formula.hpp"
 #include "rxtrain/input_limits.hpp"
+#include "rxtrain/suggest.hpp"
 #include "rxtrain/units.hpp"
 
 namespace rxtrain {
@@ -50,49 +51,10 @@ constexpr double kCompositionTolerance = 1e-6;
 
 // ---- small text helpers --------------------------------------------------
 
-std::string lower(std::string_view s) {
-  std::string out(s);
-  for (char& c : out) c = static_cast<char>(std::tolower(static_cast<unsigned char>(c)));
-  return out;
-}
-
-// Edit distance, ignoring case (a key that differs only in case is the
-// likeliest meaning of all).
-std::size_t edit_distance(std::string_view a_in, std::string_view b_in) {
-  const std::string a = lower(a_in);
-  const std::string b = lower(b_in);
-  std::vector<std::size_t> prev(b.size() + 1), cur(b.size() + 1);
-  for (std::size_t j = 0; j <= b.size(); ++j) prev[j] = j;
-  for (std::size_t i = 1; i <= a.size(); ++i) {
-    cur[0] = i;
-    for (std::size_t j = 1; j <= b.size(); ++j) {
-      const std::size_t sub = prev[j - 1] + (a[i - 1] == b[j - 1] ? 0 : 1);
-      cur[j] = std::min({prev[j] + 1, cur[j - 1] + 1, sub});
-    }
-    std::swap(prev, cur);
-  }
-  return prev[b.size()];
-}
-
 // "; did you mean "x"?" for a near candidate, else the list of candidates.
 std::string suggest(std::string_view word, const std::vector<std::string>& candidates,
                     std::string_view what = "valid keys") {
-  const std::string* best = nullptr;
-  std::size_t best_d = 0;
-  for (const auto& c : candidates) {
-    const std::size_t d = edit_distance(word, c);
-    if (!best || d < best_d) best = &c, best_d = d;
-  }
-  // Up to a third of the longer word may differ (at least one edit).
-  if (best && best_d <= std::max<std::size_t>(1, std::max(word.size(), best->size()) / 3))
-    return fmt::format("; did you mean \"{}\"?", *best);
-  if (candidates.empty()) return "";
-  constexpr std::size_t kMaxListed = 12;
-  std::string list;
-  for (std::size_t i = 0; i < candidates.size() && i < kMaxListed; ++i)
-    list += (i ? ", " : "") + candidates[i];
-  if (candidates.size() > kMaxListed) list += ", ...";
-  return fmt::format("; {}: {}", what, list);
+  return suggest_nearest(word, candidates, what);
 }
 
 std::vector<std::string> to_strings(std::initializer_list<std::string_view> keys) {

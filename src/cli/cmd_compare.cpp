@@ -38,10 +38,10 @@ int run_compare_command(const CompareCommandOptions& o) {
   if (!o.json_path.empty()) out.add(o.json_path, compare_json_text(result));
   if (!o.report_dir.empty()) {
     const std::vector<Figure> figures{compare_figure(result)};
-    const std::filesystem::path dir(o.report_dir);
-    out.add(dir / "report.html",
-            compare_report_html(c, result, figures, provenance_of(o.case_file, RXTRAIN_VERSION)));
-    for (const auto& f : figures) out.add(dir / (f.name + ".svg"), f.chart.render());
+    add_report_files(
+        out, o.report_dir,
+        compare_report_html(c, result, figures, provenance_of(o.case_file, RXTRAIN_VERSION)),
+        figures);
   }
   out.commit();
   std::fputs(format_compare_table(result).c_str(), stdout);

@@ -340,10 +340,10 @@ int run_optimize_command(const OptimizeCommandOptions& o) {
     views.pfr = options.pfr;
     views.equilibrium = options.equilibrium;
     const auto figures = optimize_figures(c, result, views);
-    const std::filesystem::path dir(o.report_dir);
-    out.add(dir / "report.html",
-            optimize_report_html(c, result, figures, provenance_of(o.case_file, RXTRAIN_VERSION)));
-    for (const auto& f : figures) out.add(dir / (f.name + ".svg"), f.chart.render());
+    add_report_files(
+        out, o.report_dir,
+        optimize_report_html(c, result, figures, provenance_of(o.case_file, RXTRAIN_VERSION)),
+        figures);
   }
   out.commit();
   std::fputs(optimize_table(result, options).c_str(), stdout);

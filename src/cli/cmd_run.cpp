@@ -53,10 +53,9 @@ int run(const RunOptions& o) {
   }
   if (!o.report_dir.empty()) {
     const auto figures = run_figures(c, result, result.levenspiel);
-    const std::filesystem::path dir(o.report_dir);
-    out.add(dir / "report.html",
-            run_report_html(c, result, figures, provenance_of(o.case_file, RXTRAIN_VERSION)));
-    for (const auto& f : figures) out.add(dir / (f.name + ".svg"), f.chart.render());
+    add_report_files(out, o.report_dir,
+                     run_report_html(c, result, figures, provenance_of(o.case_file, RXTRAIN_VERSION)),
+                     figures);
   }
   out.commit();
   std::fputs(format_stage_table(result).c_str(), stdout);

@@ -38,10 +38,10 @@ int run_staging_command(const StagingCommandOptions& o) {
     views.pfr = o.staging.pfr;
     views.equilibrium = o.staging.equilibrium;
     const auto figures = staging_figures(c, result, views);
-    const std::filesystem::path dir(o.report_dir);
-    out.add(dir / "report.html",
-            staging_report_html(c, result, figures, provenance_of(o.case_file, RXTRAIN_VERSION)));
-    for (const auto& f : figures) out.add(dir / (f.name + ".svg"), f.chart.render());
+    add_report_files(
+        out, o.report_dir,
+        staging_report_html(c, result, figures, provenance_of(o.case_file, RXTRAIN_VERSION)),
+        figures);
   }
   out.commit();
   std::fputs(format_staging_report(result).c_str(), stdout);

@@ -17,6 +17,7 @@
 #include "rxtrain/case.hpp"
 #include "rxtrain/report/atomic_file.hpp"
 #include "rxtrain/report/caution.hpp"
+#include "rxtrain/report/html_page.hpp"
 #include "rxtrain/report/sha256.hpp"
 #include "rxtrain/sweep/case_path.hpp"
 #include "rxtrain/sweep/outputs.hpp"
@@ -165,11 +166,11 @@ int run_sweep_command(const SweepCommandOptions& o) {
   if (!o.json_path.empty())
     out.add(o.json_path, sweep_json_text(header, shard, inputs, rows, summary));
   if (!o.report_dir.empty()) {
-    const std::filesystem::path dir(o.report_dir);
     const auto figures = sweep_figures(study, outputs.names(), rows);
-    out.add(dir / "report.html", sweep_report_html(c.title, o.case_file, header, shard, summary,
-                                                   study.monte_carlo(), figures));
-    for (const auto& f : figures) out.add(dir / (f.name + ".svg"), f.chart.render());
+    add_report_files(out, o.report_dir,
+                     sweep_report_html(c.title, o.case_file, header, shard, summary,
+                                       study.monte_carlo(), figures),
+                     figures);
   }
   out.commit();
 

@@ -28,6 +28,12 @@ ReportProvenance provenance_of(const std::string& case_file, const std::string& 
   return {case_file, sha256_hex(bytes), utc_date_today(), version};
 }
 
+void add_report_files(OutputSet& out, const std::filesystem::path& dir, const std::string& page,
+                      const std::vector<Figure>& figures) {
+  out.add(dir / "report.html", page);
+  for (const auto& f : figures) out.add(dir / (f.name + ".svg"), f.chart.render());
+}
+
 namespace html {
 
 using svg::xml_escape;

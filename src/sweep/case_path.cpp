@@ -5,7 +5,7 @@
 #include <cmath>
 #include <variant>
 
-#include "rxtrain/sweep/suggest.hpp"
+#include "rxtrain/suggest.hpp"
 
 namespace rxtrain::sweep {
 
@@ -141,7 +141,7 @@ std::size_t CasePathTable::find(std::string_view name, const std::string& option
   for (std::size_t i = 0; i < paths_.size(); ++i)
     if (paths_[i].name == name) return i;
   throw InputError({option, 0, 0},
-                   fmt::format("unknown case path \"{}\"{}", name, suggestion(name, names())));
+                   fmt::format("unknown case path \"{}\"{}", name, suggest_nearest(name, names(), "valid names", 40)));
 }
 
 double CasePathTable::base_value(std::size_t i, const Case& base) const {

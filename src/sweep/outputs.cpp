@@ -5,7 +5,7 @@
 #include <cmath>
 #include <variant>
 
-#include "rxtrain/sweep/suggest.hpp"
+#include "rxtrain/suggest.hpp"
 
 namespace rxtrain::sweep {
 
@@ -41,7 +41,7 @@ std::vector<std::string> all_names(const Case& c) {
 OutputColumn column(const std::string& name, const Case& c) {
   const auto fail = [&]() -> OutputColumn {
     throw InputError({"--output", 0, 0},
-                     fmt::format("unknown output \"{}\"{}", name, suggestion(name, all_names(c))));
+                     fmt::format("unknown output \"{}\"{}", name, suggest_nearest(name, all_names(c), "valid names", 40)));
   };
   if (name == "X" || name == "T_out") return {name, -1, name, -1};
   const auto dot = name.find('.');

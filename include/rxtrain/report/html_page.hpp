@@ -11,10 +11,12 @@
 //   h += html::page_end();
 #pragma once
 
+#include <filesystem>
 #include <string>
 #include <vector>
 
 #include "rxtrain/case.hpp"
+#include "rxtrain/report/atomic_file.hpp"
 #include "rxtrain/report/figures.hpp"
 
 namespace rxtrain {
@@ -34,6 +36,11 @@ std::string utc_date_today();
 // this build's version. Throws OutputError when the file cannot be read
 // again (it was just loaded, so only a race gets there).
 ReportProvenance provenance_of(const std::string& case_file, const std::string& version);
+
+// Queues a report folder in `out`: DIR/report.html and each figure as
+// DIR/<name>.svg (written when `out` commits, all or nothing).
+void add_report_files(OutputSet& out, const std::filesystem::path& dir, const std::string& page,
+                      const std::vector<Figure>& figures);
 
 namespace html {
 

@@ -1,13 +1,11 @@
-#include "rxtrain/sweep/suggest.hpp"
+#include "rxtrain/suggest.hpp"
 
 #include <fmt/format.h>
 
 #include <algorithm>
 #include <cctype>
 
-namespace rxtrain::sweep {
-
-namespace {
+namespace rxtrain {
 
 std::size_t edit_distance(std::string_view a, std::string_view b) {
   const auto eq = [](char x, char y) {
@@ -26,24 +24,22 @@ std::size_t edit_distance(std::string_view a, std::string_view b) {
   return prev[b.size()];
 }
 
-}  // namespace
-
-std::string suggestion(std::string_view word, const std::vector<std::string>& candidates) {
+std::string suggest_nearest(std::string_view word, const std::vector<std::string>& candidates,
+                            std::string_view what, std::size_t max_listed) {
   const std::string* best = nullptr;
   std::size_t best_d = 0;
   for (const auto& c : candidates) {
     const std::size_t d = edit_distance(word, c);
     if (!best || d < best_d) best = &c, best_d = d;
   }
-  // Up to a third of the longer name may differ, as in the case loader.
   if (best && best_d <= std::max<std::size_t>(1, std::max(word.size(), best->size()) / 3))
     return fmt::format("; did you mean \"{}\"?", *best);
-  constexpr std::size_t kMaxListed = 40;
+  if (candidates.empty()) return "";
   std::string list;
-  for (std::size_t i = 0; i < candidates.size() && i < kMaxListed; ++i)
+  for (std::size_t i = 0; i < candidates.size() && i < max_listed; ++i)
     list += (i ? ", " : "") + candidates[i];
-  if (candidates.size() > kMaxListed) list += ", ...";
-  return candidates.empty() ? std::string() : "; valid names: " + list;
+  if (candidates.size() > max_listed) list += ", ...";
+  return fmt::format("; {}: {}", what, list);
 }
 
-}  // namespace rxtrain::sweep
+}  // namespace rxtrain
