@@ -6,7 +6,10 @@ namespace rxtrain::sweep {
 
 std::vector<RunRow> run_sweep(const Case& base, const CasePathTable& table, const Study& study,
                               const OutputSpec& outputs, const SweepOptions& options) {
-  const auto [first, last] = options.shard.range(study.run_count());
+  // Plain copies, not a structured binding: clang 14 (the fuzz build)
+  // cannot capture one in a lambda.
+  const auto range = options.shard.range(study.run_count());
+  const std::size_t first = range.first, last = range.second;
   const std::size_t count = last - first;
   const std::size_t jobs = std::min(resolve_jobs(options.jobs), std::max<std::size_t>(count, 1));
   const CaseEditor editor(table, study.paths());
