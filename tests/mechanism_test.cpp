@@ -1,6 +1,7 @@
 // Rates, their analytic Jacobian, and equilibrium constants, checked against
 // finite differences, the definition of the rate law, published thermo data
 // and a published correlation.
+#include "test_species.hpp"
 #include "rxtrain/mechanism.hpp"
 
 #include <catch2/catch.hpp>
@@ -12,16 +13,7 @@ using namespace rxtrain;
 
 namespace {
 
-Species make_species(const std::string& id, double cp, double h_f, double s298, double mw,
-                     double density) {
-  Species s;
-  s.id = id;
-  s.name = id;
-  s.mw = mw;
-  s.density = density;
-  s.thermo = ThermoModel(CpConstant{cp}, h_f, s298);
-  return s;
-}
+using rxtrain::test::make_species;
 
 Reaction make_reaction(const std::string& id, std::vector<double> nu, std::vector<double> orders,
                        bool reversible) {

@@ -9,6 +9,7 @@
 #include <thread>
 #include <vector>
 
+#include "test_species.hpp"
 #include "rxtrain/case.hpp"
 #include "rxtrain/stages/pfr.hpp"
 #include "rxtrain/synthetic_mechanism.hpp"
@@ -19,16 +20,7 @@ using namespace rxtrain;
 
 namespace {
 
-Species make_species(const std::string& id, double cp, double h_f, double s298, double mw,
-                     double density) {
-  Species s;
-  s.id = id;
-  s.name = id;
-  s.mw = mw;
-  s.density = density;
-  s.thermo = ThermoModel(CpConstant{cp}, h_f, s298);
-  return s;
-}
+using rxtrain::test::make_species;
 
 // Invented mechanism over A, B, C, D, E, I touching every branch of the
 // rate law: reversible with fractional and product orders and a van 't Hoff
