@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <cmath>
 #include <stdexcept>
+#include <string>
 
 namespace rxtrain {
 
@@ -16,6 +17,7 @@ double safe_pow(double d, double e) {
   if (e == 0) return 1.0;
   if (e == 1) return d;
   if (e == 2) return d * d;
+  if (e == 0.5) return std::sqrt(d);  // common half orders: sqrt is far cheaper than pow
   return std::pow(d, e);
 }
 
@@ -34,6 +36,11 @@ double safe_pow_derivative(double d, double e) {
 Mechanism::Mechanism(Phase phase, std::vector<Species> species, std::vector<Reaction> reactions)
     : phase_(phase), species_(std::move(species)), reactions_(std::move(reactions)) {
   const int n = n_species();
+  cp_start_.push_back(0);
+  for (const auto& sp : species_) {
+    for (const CpPiece& p : sp.thermo.pieces()) cp_pieces_.push_back(p);
+    cp_start_.push_back(static_cast<int>(cp_pieces_.size()));
+  }
   for (const auto& rx : reactions_) {
     if (static_cast<int>(rx.nu.size()) != n || static_cast<int>(rx.rate.orders.size()) != n)
       throw std::invalid_argument("reaction " + rx.id + ": vectors not sized to species");
@@ -49,6 +56,10 @@ Mechanism::Mechanism(Phase phase, std::vector<Species> species, std::vector<Reac
     }
     c.offset = n_direct_;
     n_direct_ += static_cast<int>(c.parts.size());
+    c.thermo = ReactionThermo(species_, rx.nu, rx.dH_298);
+    // Activity a = s d: liquid C / (1 mol/L), gas by pressure p / 1 bar.
+    c.ln_s = phase_ == Phase::Liquid ? -std::log(kLiquidStandardConcentration)
+                                     : -std::log(kStandardPressure);
     compiled_.push_back(std::move(c));
   }
 }
@@ -71,9 +82,20 @@ double Mechanism::volumetric_flow(double T, double P, const double* F) const {
   return v;
 }
 
+double Mechanism::cp(int i, double T) const {
+  if (!(T > 0) || !std::isfinite(T))
+    throw std::domain_error("thermo: temperature must be finite and positive (got " +
+                            std::to_string(T) + " K)");
+  const CpPiece* p = &cp_pieces_[cp_start_[i]];
+  const CpPiece* last = &cp_pieces_[cp_start_[i + 1] - 1];
+  while (p != last && !(T < p->T_to)) ++p;
+  const auto& c = p->c;
+  return c[0] + T * (c[1] + T * (c[2] + T * (c[3] + T * c[4]))) + c[5] / (T * T);
+}
+
 double Mechanism::heat_capacity_flow(double T, const double* F) const {
   double c = 0;
-  for (int i = 0; i < n_species(); ++i) c += F[i] * species_[i].thermo.cp(T);
+  for (int i = 0; i < n_species(); ++i) c += F[i] * cp(i, T);
   return c;
 }
 
@@ -89,25 +111,9 @@ double Mechanism::mass_flow(const double* F) const {
   return m;
 }
 
-double Mechanism::dH(int j, double T) const {
-  const auto& rx = reactions_[j];
-  double h = rx.dH_298;
-  for (const auto& p : compiled_[j].parts) {
-    const double nu = rx.nu[p.i];
-    if (nu != 0) h += nu * species_[p.i].thermo.h_sensible(T);
-  }
-  return h;
-}
+double Mechanism::dH(int j, double T) const { return compiled_[j].thermo.dH(T); }
 
-double Mechanism::dCp(int j, double T) const {
-  const auto& rx = reactions_[j];
-  double c = 0;
-  for (const auto& p : compiled_[j].parts) {
-    const double nu = rx.nu[p.i];
-    if (nu != 0) c += nu * species_[p.i].thermo.cp(T);
-  }
-  return c;
-}
+double Mechanism::dCp(int j, double T) const { return compiled_[j].thermo.dCp(T); }
 
 double Mechanism::ln_K(int j, double T) const {
   const auto& rx = reactions_[j];
@@ -115,14 +121,8 @@ double Mechanism::ln_K(int j, double T) const {
   switch (eq.kind) {
     case EquilibriumSource::Kind::VantHoff:
       return std::log(eq.K_ref) - eq.dH / kGasConstant * (1.0 / T - 1.0 / eq.T_ref);
-    case EquilibriumSource::Kind::Thermo: {
-      double dG = 0;
-      for (const auto& p : compiled_[j].parts) {
-        const double nu = rx.nu[p.i];
-        if (nu != 0) dG += nu * (species_[p.i].thermo.h(T) - T * species_[p.i].thermo.s(T));
-      }
-      return -dG / (kGasConstant * T);
-    }
+    case EquilibriumSource::Kind::Thermo:
+      return compiled_[j].thermo.ln_K(T);
     case EquilibriumSource::Kind::None:
       break;
   }
@@ -134,12 +134,7 @@ double Mechanism::dln_K_dT(int j, double T) const {
   const auto& eq = rx.equilibrium;
   if (eq.kind == EquilibriumSource::Kind::VantHoff) return eq.dH / (kGasConstant * T * T);
   // van 't Hoff equation, exact for thermo built from the same h(T), s(T).
-  double dH0 = 0;
-  for (const auto& p : compiled_[j].parts) {
-    const double nu = rx.nu[p.i];
-    if (nu != 0) dH0 += nu * species_[p.i].thermo.h(T);
-  }
-  return dH0 / (kGasConstant * T * T);
+  return compiled_[j].thermo.dln_K_dT(T);
 }
 
 double Mechanism::rate_constant(int j, double T) const {
@@ -172,16 +167,14 @@ Mechanism::Scale Mechanism::driving_scale(Driving driving, double T, double P,
   return s;
 }
 
-void Mechanism::activity_scale(const Reaction& rx, double T, double& ln_s, double& dln_s_dT) const {
+void Mechanism::activity_scale(int j, double T, double& ln_s, double& dln_s_dT) const {
   dln_s_dT = 0;
-  if (phase_ == Phase::Liquid) {
-    ln_s = -std::log(kLiquidStandardConcentration);
-  } else if (rx.rate.driving == Driving::Pressure) {
-    ln_s = -std::log(kStandardPressure);
-  } else {
+  if (phase_ == Phase::Gas && reactions_[j].rate.driving == Driving::Concentration) {
     // a = C R T / p0
     ln_s = std::log(kGasConstant * T / kStandardPressure);
     dln_s_dT = 1.0 / T;
+  } else {
+    ln_s = compiled_[j].ln_s;  // constant: computed once in the constructor
   }
 }
 
@@ -206,7 +199,7 @@ void Mechanism::rates(double T, double P, const double* F, double* r) const {
     double value = fwd;
     if (rx.reversible) {
       double ln_s, dln_s;
-      activity_scale(rx, T, ln_s, dln_s);
+      activity_scale(j, T, ln_s, dln_s);
       value -= rev * std::exp(compiled_[j].dnu * ln_s - ln_K(j, T));
     }
     r[j] = rate_constant(j, T) * value;
@@ -240,7 +233,7 @@ double Mechanism::reaction_derivatives(int j, double T, const Scale& sc, const d
   double c_rev = 0, dc_rev_dT = 0;  // rev * c_rev is the reverse term
   if (rx.reversible) {
     double ln_s, dln_s;
-    activity_scale(rx, T, ln_s, dln_s);
+    activity_scale(j, T, ln_s, dln_s);
     c_rev = std::exp(compiled_[j].dnu * ln_s - ln_K(j, T));
     dc_rev_dT = c_rev * (compiled_[j].dnu * dln_s - dln_K_dT(j, T));
   }

@@ -311,6 +311,38 @@ bool ThermoModel::in_range(double T) const {
                     cp_);
 }
 
+std::vector<CpPiece> ThermoModel::pieces() const {
+  constexpr double kInf = std::numeric_limits<double>::infinity();
+  return std::visit(
+      Overloaded{
+          [&](const CpConstant& m) {
+            return std::vector<CpPiece>{{0, kInf, {m.cp, 0, 0, 0, 0, 0}}};
+          },
+          [&](const CpPolynomial& m) {
+            return std::vector<CpPiece>{{0, kInf, {m.a[0], m.a[1], m.a[2], m.a[3], 0, 0}}};
+          },
+          [&](const CpShomate& m) {
+            // t = T/1000: B t = (B/1e3) T, ..., E/t^2 = (E 1e6)/T^2.
+            std::vector<CpPiece> out;
+            for (std::size_t i = 0; i < m.sets.size(); ++i) {
+              const auto& c = m.sets[i].c;
+              out.push_back({i == 0 ? 0.0 : shomate_boundary(m, i - 1),
+                             i + 1 == m.sets.size() ? kInf : shomate_boundary(m, i),
+                             {c[0], c[1] / 1e3, c[2] / 1e6, c[3] / 1e9, 0, c[4] * 1e6}});
+            }
+            return out;
+          },
+          [&](const Nasa7& m) {
+            auto piece = [](double lo, double hi, const std::array<double, 7>& a) {
+              const double R = kGasConstant;
+              return CpPiece{lo, hi, {R * a[0], R * a[1], R * a[2], R * a[3], R * a[4], 0}};
+            };
+            return std::vector<CpPiece>{piece(0, m.T_mid, m.low), piece(m.T_mid, kInf, m.high)};
+          },
+      },
+      cp_);
+}
+
 std::optional<std::array<double, 2>> ThermoModel::declared_range() const {
   using Range = std::optional<std::array<double, 2>>;
   return std::visit(Overloaded{

@@ -7,6 +7,7 @@
 #include <vector>
 
 #include "rxtrain/kinetics.hpp"
+#include "rxtrain/reaction_thermo.hpp"
 #include "rxtrain/species.hpp"
 
 namespace rxtrain {
@@ -32,6 +33,9 @@ class Mechanism {
   double volumetric_flow(double T, double P, const double* F) const;
   // sum_i F_i cp_i(T), W/K.
   double heat_capacity_flow(double T, const double* F) const;
+  // cp_i(T) of species i, J/(mol K): species()[i].thermo.cp(T) from the
+  // compiled pieces (no model dispatch; the right-hand side calls it).
+  double cp(int i, double T) const;
   // sum_i F_i h_sensible_i(T), W (reference 298.15 K).
   double sensible_enthalpy_flow(double T, const double* F) const;
   // Mass flow, kg/s; requires every mw.
@@ -90,6 +94,8 @@ class Mechanism {
     std::vector<int> species;  // parts[p].i, for rate_species()
     int offset = 0;            // see direct_offset()
     double dnu = 0;      // sum of nu (for the activity scale)
+    ReactionThermo thermo;  // dH, dCp, ln K from the species' cp models
+    double ln_s = 0;        // activity scale ln s where it is constant (see activity_scale)
   };
   // Driving forces d_i = max(F_i, 0) * phi; returns phi and its derivatives.
   struct Scale {
@@ -100,7 +106,7 @@ class Mechanism {
   };
   Scale driving_scale(Driving driving, double T, double P, const double* F) const;
   // log of activity scale s (a_i = s * d_i) and its T derivative.
-  void activity_scale(const Reaction& rx, double T, double& ln_s, double& dln_s_dT) const;
+  void activity_scale(int j, double T, double& ln_s, double& dln_s_dT) const;
   // Reaction j's rate, the derivatives through its participants (direct[p]
   // for parts[p]; 0 where F <= 0), the coefficient of the dilution term and
   // dr_j/dT. d and g are scratch indexed by species.
@@ -117,6 +123,10 @@ class Mechanism {
   std::vector<Species> species_;
   std::vector<Reaction> reactions_;
   std::vector<Compiled> compiled_;
+  // Heat-capacity pieces of every species, species i's at
+  // cp_pieces_[cp_start_[i] .. cp_start_[i+1]).
+  std::vector<CpPiece> cp_pieces_;
+  std::vector<int> cp_start_;
   int n_direct_ = 0;
 };
 

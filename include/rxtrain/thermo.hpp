@@ -60,6 +60,17 @@ struct Nasa7 {
 
 using CpModel = std::variant<CpConstant, CpPolynomial, CpShomate, Nasa7>;
 
+// cp on one stretch of temperature [T_from, T_to) where one coefficient set
+// applies, in a basis every model above fits (T in K):
+//   cp = c0 + c1 T + c2 T^2 + c3 T^3 + c4 T^4 + c5 / T^2
+// Lets a caller combine several species into one polynomial per stretch
+// (see ReactionThermo).
+struct CpPiece {
+  double T_from = 0;  // K; 0 for the first piece
+  double T_to = 0;    // K; +infinity for the last
+  std::array<double, 6> c{};
+};
+
 class ThermoModel {
  public:
   ThermoModel() = default;
@@ -89,6 +100,9 @@ class ThermoModel {
   std::optional<std::array<double, 2>> declared_range() const;
 
   const CpModel& model() const { return cp_; }
+  // The pieces in ascending order, covering (0, infinity) with the same
+  // choice of coefficient set as cp(T), extrapolation included.
+  std::vector<CpPiece> pieces() const;
 
  private:
   CpModel cp_ = CpConstant{0};

@@ -3,7 +3,6 @@
 #include <cvode/cvode.h>
 #include <nvector/nvector_serial.h>
 #include <sundials/sundials_context.h>
-#include <sunlinsol/sunlinsol_dense.h>
 #include <sunlinsol/sunlinsol_klu.h>
 #include <sunmatrix/sunmatrix_dense.h>
 #include <sunmatrix/sunmatrix_sparse.h>
@@ -16,6 +15,7 @@
 #include <stdexcept>
 #include <string>
 
+#include "fast_serial_ops.hpp"
 #include "rxtrain/error.hpp"
 
 namespace rxtrain {
@@ -104,6 +104,7 @@ struct CvodeIntegrator::Impl {
   std::string last_error;      // CVODE's own message for the last failure
   NVectorPtr y;
   NVectorPtr atol;
+  NVectorPtr dky;  // interpolate()'s output, made on first use
   MatrixPtr A;
   // Sparse only: KLU, and the rank-one term J = S + u w^T with
   // z = (I - gamma S)^-1 u from the last setup.
@@ -121,6 +122,13 @@ struct CvodeIntegrator::Impl {
     y.reset(N_VNew_Serial(n, sctx));
     atol.reset(N_VNew_Serial(n, sctx));
     if (!y || !atol) throw SolverError("could not allocate CVODE vectors");
+    // Fused vector operations (one call for a linear combination of many
+    // vectors instead of one call per pair): CVODE clones its work vectors
+    // from y, so they inherit them. Off by default for serial vectors.
+    if (N_VEnableFusedOps_Serial(y.get(), SUNTRUE) != 0)
+      throw SolverError("could not enable fused vector operations");
+    detail::use_fast_serial_ops(y.get());
+    detail::use_fast_serial_ops(atol.get());
     set_scale(scale);
   }
   void set_scale(const std::vector<double>& scale) {
@@ -259,7 +267,8 @@ CvodeIntegrator::CvodeIntegrator(const SunContext& ctx, int n, Rhs rhs, Jacobian
   m.allocate_vectors(sctx, scale);
   m.A.reset(SUNDenseMatrix(n, n, sctx));
   if (!m.A) throw SolverError("could not allocate the CVODE matrix");
-  m.LS.reset(SUNLinSol_Dense(m.y.get(), m.A.get(), sctx));
+  detail::use_fast_dense_ops(m.A.get());
+  m.LS.reset(detail::make_fast_dense_solver(n, sctx));
   if (!m.LS) throw SolverError("could not create the dense linear solver");
   m.create_cvode(sctx);
 }
@@ -293,6 +302,7 @@ CvodeIntegrator::CvodeIntegrator(const SunContext& ctx, int n, Rhs rhs, SparsePa
   m.w.reset(N_VNew_Serial(n, sctx));
   m.z.reset(N_VNew_Serial(n, sctx));
   if (!m.u || !m.w || !m.z) throw SolverError("could not allocate CVODE vectors");
+  for (N_Vector v : {m.u.get(), m.w.get(), m.z.get()}) detail::use_fast_serial_ops(v);
   N_VConst(0.0, m.u.get());
   N_VConst(0.0, m.w.get());
   SUNLinearSolver S = SUNLinSolNewEmpty(sctx);
@@ -392,6 +402,13 @@ std::vector<double> CvodeIntegrator::interpolate(double t) const {
   m.check(CVodeGetDky(m.mem.get(), t, 0, out.get()), "CVodeGetDky");
   const double* p = N_VGetArrayPointer(out.get());
   return {p, p + m.n};
+}
+
+void CvodeIntegrator::interpolate(double t, int k, double* out) const {
+  Impl& m = *impl_;
+  if (!m.dky) m.dky.reset(N_VClone(m.y.get()));
+  m.check(CVodeGetDky(m.mem.get(), t, k, m.dky.get()), "CVodeGetDky");
+  std::memcpy(out, N_VGetArrayPointer(m.dky.get()), sizeof(double) * m.n);
 }
 
 SolverStats CvodeIntegrator::stats() const {

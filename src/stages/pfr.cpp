@@ -200,7 +200,7 @@ class PfrSystem {
       const double dC_dT =
           (mech.heat_capacity_flow(T + h, y) - mech.heat_capacity_flow(T - h, y)) / (2 * h);
       for (int k = 0; k < n_; ++k) {
-        const double cp_k = mech.species()[k].thermo.cp(T);
+        const double cp_k = mech.cp(k, T);
         at(n_, k) = -dq_dF_[k] / C + q * cp_k / (C * C);
       }
       at(n_, n_) = -dq_dT / C + q * dC_dT / (C * C);
@@ -258,30 +258,21 @@ struct PfrWorkspace::State {
   std::optional<CvodeIntegrator> ode;
   SparsePattern pattern;  // of the current sparse integrator
   std::vector<double> y, ydot, scale;
-  // Root functions of the current stage (see run_pfr).
+  // Root functions of the current stage (see run_pfr): the target
+  // conversion and the stop temperature. Neither needs the right-hand side.
   struct Roots {
-    PfrSystem* sys = nullptr;
-    std::vector<double>* ydot = nullptr;
     ConversionBasis basis{0, 0};
     int n = 0;
-    bool track_T = false, sizing = false, stop_at_T = false;
-    int i_T = -1, i_target = -1, i_stop = -1;
+    bool sizing = false, stop_at_T = false;
+    int i_target = -1, i_stop = -1;
     double X_target = 0, T_stop = 0;
     int eval(const double* y, double* g) const {
-      if (sys->rhs(y, ydot->data()) != 0) return 1;
-      if (track_T) {
-        // dT/dV is exactly zero along a stretch where nothing reacts
-        // (reactant used up, rates clipped, or exact equilibrium). CVODE
-        // stops with "root found at and very near t" on a root function
-        // that stays at zero, and a flat stretch is no extremum, so it
-        // counts as slightly positive.
-        g[i_T] = (*ydot)[n] != 0 ? (*ydot)[n] : std::numeric_limits<double>::min();
-      }
       if (sizing) g[i_target] = basis.conversion(y) - X_target;
       if (stop_at_T) g[i_stop] = y[n] - T_stop;
       return 0;
     }
   } roots;
+  std::vector<double> dky;  // interpolated dT/dV search (see run_pfr)
 
   // Binds the system to a stage and (re)starts the integrator at its inlet,
   // re-creating the integrator only when it cannot be reused.
@@ -379,30 +370,28 @@ StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream
   }
   ode.set_stop_time(V_end);
 
-  // Roots: dT/dV (temperature extremes; adiabatic only, as T is constant
-  // otherwise) and, when sizing, the target conversion.
+  // Roots: the target conversion when sizing, and the stop temperature.
+  // Temperature extremes (dT/dV = 0) are found after each step from the
+  // integrator's interpolating polynomial instead (below): as a root
+  // function dT/dV would cost one more right-hand side per step.
   auto& rt = st.roots;
-  rt.sys = &sys;
-  rt.ydot = &st.ydot;
   rt.basis = basis;
   rt.n = n;
   rt.X_target = sizing ? *spec.target_conversion : 0.0;
-  rt.track_T = spec.heat == HeatMode::Adiabatic;
   rt.sizing = sizing;
-  rt.i_T = rt.track_T ? 0 : -1;
-  rt.i_target = sizing ? (rt.track_T ? 1 : 0) : -1;
+  rt.i_target = sizing ? 0 : -1;
   // The stop temperature only matters where T moves.
-  const bool stop_at_T = rt.track_T && options.stop_temperature.has_value();
+  const bool adiabatic = spec.heat == HeatMode::Adiabatic;
+  const bool stop_at_T = adiabatic && options.stop_temperature.has_value();
   rt.stop_at_T = stop_at_T;
   const double T_stop = stop_at_T ? *options.stop_temperature : 0.0;
   rt.T_stop = T_stop;
-  rt.i_stop = stop_at_T ? (sizing ? 2 : 1) : -1;
-  const int n_roots = (rt.track_T ? 1 : 0) + (sizing ? 1 : 0) + (stop_at_T ? 1 : 0);
+  rt.i_stop = stop_at_T ? (sizing ? 1 : 0) : -1;
+  const int n_roots = (sizing ? 1 : 0) + (stop_at_T ? 1 : 0);
   const double X_target = rt.X_target;
   const int i_target = rt.i_target, i_stop = rt.i_stop;
   std::vector<double>& ydot = st.ydot;
   std::vector<int> directions;
-  if (rt.track_T) directions.push_back(0);
   if (sizing) directions.push_back(1);
   if (stop_at_T) directions.push_back(0);
   // Always set, so that a reused integrator drops the last stage's roots.
@@ -422,13 +411,45 @@ StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream
   double V = 0;
   bool reached = false;
   bool stopped = false;
+  // dT/dV at the last recorded point; 0 where it is unknown or flat.
+  double slope = 0;
+  if (adiabatic && sys.rhs(y.data(), ydot.data()) == 0) slope = ydot[n];
   if (stop_at_T) {
     // A root at the inlet itself is not reported by CVODE: an inlet at or
     // past the stop temperature, on the side T moves to, ends the stage here.
-    if (sys.rhs(y.data(), ydot.data()) == 0 &&
-        ((ydot[n] > 0 && inlet.T >= T_stop) || (ydot[n] < 0 && inlet.T <= T_stop)))
-      stopped = true;
+    if ((slope > 0 && inlet.T >= T_stop) || (slope < 0 && inlet.T <= T_stop)) stopped = true;
   }
+  std::vector<double>& dky = st.dky;
+  dky.resize(y.size());
+  // dT/dV of the interpolating polynomial of the last step at V.
+  auto slope_at = [&](double at) {
+    ode.interpolate(at, 1, dky.data());
+    return dky[n];
+  };
+  // A sign change of dT/dV between the last point and V (both inside the
+  // last step) is a temperature extreme: bisect the polynomial's dT/dV for
+  // it and record the point, so T_max and T_min are the true extremes.
+  auto record_extreme = [&](double V_prev, double V_now) {
+    double lo = V_prev, hi = V_now, s_lo = slope;
+    for (int it = 0; it < 60 && hi - lo > 1e-14 * std::max(std::abs(hi), 1e-300); ++it) {
+      const double mid = 0.5 * (lo + hi);
+      const double s_mid = slope_at(mid);
+      if (s_mid == 0) {
+        lo = hi = mid;
+        break;
+      }
+      if ((s_mid > 0) == (s_lo > 0)) {
+        lo = mid;
+        s_lo = s_mid;
+      } else {
+        hi = mid;
+      }
+    }
+    const double V_ext = 0.5 * (lo + hi);
+    std::vector<double> y_ext(y.size());
+    ode.interpolate(V_ext, 0, y_ext.data());
+    record(V_ext, y_ext);
+  };
   while (!stopped) {
     CvodeIntegrator::Event ev;
     try {
@@ -438,6 +459,13 @@ StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream
           "{} at V = {:.6g} m3 (of {:.6g} m3): {}; try: check the units and size of A and Ea "
           "(a rate far too fast or too slow), split the stage at that volume, or loosen --rtol",
           spec.id, V, V_end, e.what()));
+    }
+    if (adiabatic) {
+      const double V_prev = res.profile.back().V;
+      const double s_now = slope_at(V);
+      if ((slope > 0 && s_now < 0) || (slope < 0 && s_now > 0))
+        record_extreme(V_prev, V);
+      if (s_now != 0) slope = s_now;
     }
     record(V, y);
     if (ev == CvodeIntegrator::Event::Stop) break;

@@ -123,6 +123,10 @@ class CvodeIntegrator {
   std::vector<int> roots_found() const;
   // Interpolated solution at t inside the last step.
   std::vector<double> interpolate(double t) const;
+  // The k-th derivative (k = 0: the solution itself) of the interpolating
+  // polynomial at t inside the last step, into out (n entries). Costs no
+  // right-hand-side evaluation and allocates nothing.
+  void interpolate(double t, int k, double* out) const;
 
   SolverStats stats() const;
 

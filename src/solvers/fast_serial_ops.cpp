@@ -1,0 +1,322 @@
+#include "fast_serial_ops.hpp"
+
+#include <nvector/nvector_serial.h>
+#include <sunmatrix/sunmatrix_dense.h>
+
+#include <cmath>
+#include <memory>
+#include <utility>
+#include <vector>
+
+namespace rxtrain::detail {
+
+namespace {
+
+// ---- serial vector operations (same definitions as nvector_serial.c) ----
+
+inline sunindextype len(N_Vector v) { return NV_LENGTH_S(v); }
+inline double* data(N_Vector v) { return NV_DATA_S(v); }
+
+void linear_sum(double a, N_Vector x, double b, N_Vector y, N_Vector z) {
+  const double *xd = data(x), *yd = data(y);
+  double* zd = data(z);
+  const sunindextype n = len(x);
+  for (sunindextype i = 0; i < n; ++i) zd[i] = a * xd[i] + b * yd[i];
+}
+void constant(double c, N_Vector z) {
+  double* zd = data(z);
+  const sunindextype n = len(z);
+  for (sunindextype i = 0; i < n; ++i) zd[i] = c;
+}
+void prod(N_Vector x, N_Vector y, N_Vector z) {
+  const double *xd = data(x), *yd = data(y);
+  double* zd = data(z);
+  const sunindextype n = len(x);
+  for (sunindextype i = 0; i < n; ++i) zd[i] = xd[i] * yd[i];
+}
+void div(N_Vector x, N_Vector y, N_Vector z) {
+  const double *xd = data(x), *yd = data(y);
+  double* zd = data(z);
+  const sunindextype n = len(x);
+  for (sunindextype i = 0; i < n; ++i) zd[i] = xd[i] / yd[i];
+}
+void scale(double c, N_Vector x, N_Vector z) {
+  const double* xd = data(x);
+  double* zd = data(z);
+  const sunindextype n = len(x);
+  for (sunindextype i = 0; i < n; ++i) zd[i] = c * xd[i];
+}
+void abs_value(N_Vector x, N_Vector z) {
+  const double* xd = data(x);
+  double* zd = data(z);
+  const sunindextype n = len(x);
+  for (sunindextype i = 0; i < n; ++i) zd[i] = std::abs(xd[i]);
+}
+void inv(N_Vector x, N_Vector z) {
+  const double* xd = data(x);
+  double* zd = data(z);
+  const sunindextype n = len(x);
+  for (sunindextype i = 0; i < n; ++i) zd[i] = 1.0 / xd[i];
+}
+void add_const(N_Vector x, double b, N_Vector z) {
+  const double* xd = data(x);
+  double* zd = data(z);
+  const sunindextype n = len(x);
+  for (sunindextype i = 0; i < n; ++i) zd[i] = xd[i] + b;
+}
+double dot(N_Vector x, N_Vector y) {
+  const double *xd = data(x), *yd = data(y);
+  const sunindextype n = len(x);
+  double s = 0;
+  for (sunindextype i = 0; i < n; ++i) s += xd[i] * yd[i];
+  return s;
+}
+double max_norm(N_Vector x) {
+  const double* xd = data(x);
+  const sunindextype n = len(x);
+  double m = 0;
+  for (sunindextype i = 0; i < n; ++i) m = std::abs(xd[i]) > m ? std::abs(xd[i]) : m;
+  return m;
+}
+double wsqr_sum(N_Vector x, N_Vector w) {
+  const double *xd = data(x), *wd = data(w);
+  const sunindextype n = len(x);
+  double s = 0;
+  for (sunindextype i = 0; i < n; ++i) {
+    const double p = xd[i] * wd[i];
+    s += p * p;
+  }
+  return s;
+}
+double wrms_norm(N_Vector x, N_Vector w) {
+  return std::sqrt(wsqr_sum(x, w) / static_cast<double>(len(x)));
+}
+double wrms_norm_mask(N_Vector x, N_Vector w, N_Vector id) {
+  const double *xd = data(x), *wd = data(w), *idd = data(id);
+  const sunindextype n = len(x);
+  double s = 0;
+  for (sunindextype i = 0; i < n; ++i)
+    if (idd[i] > 0) {
+      const double p = xd[i] * wd[i];
+      s += p * p;
+    }
+  return std::sqrt(s / static_cast<double>(n));
+}
+double min_value(N_Vector x) {
+  const double* xd = data(x);
+  const sunindextype n = len(x);
+  double m = xd[0];
+  for (sunindextype i = 1; i < n; ++i) m = xd[i] < m ? xd[i] : m;
+  return m;
+}
+void compare(double c, N_Vector x, N_Vector z) {
+  const double* xd = data(x);
+  double* zd = data(z);
+  const sunindextype n = len(x);
+  for (sunindextype i = 0; i < n; ++i) zd[i] = std::abs(xd[i]) >= c ? 1.0 : 0.0;
+}
+sunbooleantype inv_test(N_Vector x, N_Vector z) {
+  const double* xd = data(x);
+  double* zd = data(z);
+  const sunindextype n = len(x);
+  sunbooleantype ok = SUNTRUE;
+  for (sunindextype i = 0; i < n; ++i) {
+    if (xd[i] == 0)
+      ok = SUNFALSE;
+    else
+      zd[i] = 1.0 / xd[i];
+  }
+  return ok;
+}
+
+// Fused operations. Element by element, so an output that is also an
+// input (z == X[0], as CVODE passes) is read before it is written.
+int linear_combination(int nv, double* c, N_Vector* X, N_Vector z) {
+  double* zd = data(z);
+  const sunindextype n = len(z);
+  for (sunindextype i = 0; i < n; ++i) {
+    double s = c[0] * data(X[0])[i];
+    for (int k = 1; k < nv; ++k) s += c[k] * data(X[k])[i];
+    zd[i] = s;
+  }
+  return 0;
+}
+int scale_add_multi(int nv, double* a, N_Vector x, N_Vector* Y, N_Vector* Z) {
+  const double* xd = data(x);
+  const sunindextype n = len(x);
+  for (int k = 0; k < nv; ++k) {
+    const double* yd = data(Y[k]);
+    double* zd = data(Z[k]);
+    for (sunindextype i = 0; i < n; ++i) zd[i] = a[k] * xd[i] + yd[i];
+  }
+  return 0;
+}
+int dot_prod_multi(int nv, N_Vector x, N_Vector* Y, double* d) {
+  for (int k = 0; k < nv; ++k) d[k] = dot(x, Y[k]);
+  return 0;
+}
+
+// ---- dense matrix (column-major, SM_COLS_D) --------------------------------
+
+int mat_zero(SUNMatrix A) {
+  double* a = SM_DATA_D(A);
+  const sunindextype n = SM_LDATA_D(A);
+  for (sunindextype i = 0; i < n; ++i) a[i] = 0;
+  return 0;
+}
+int mat_copy(SUNMatrix A, SUNMatrix B) {
+  const double* a = SM_DATA_D(A);
+  double* b = SM_DATA_D(B);
+  const sunindextype n = SM_LDATA_D(A);
+  for (sunindextype i = 0; i < n; ++i) b[i] = a[i];
+  return 0;
+}
+// A = c A + I
+int mat_scale_add_identity(double c, SUNMatrix A) {
+  double* a = SM_DATA_D(A);
+  const sunindextype rows = SM_ROWS_D(A), cols = SM_COLUMNS_D(A);
+  for (sunindextype j = 0; j < cols; ++j)
+    for (sunindextype i = 0; i < rows; ++i) {
+      double& v = a[i + j * rows];
+      v = c * v + (i == j ? 1.0 : 0.0);
+    }
+  return 0;
+}
+
+// ---- dense LU linear solver --------------------------------------------------
+
+struct DenseLu {
+  std::vector<sunindextype> pivots;
+  sunindextype last_flag = 0;
+};
+DenseLu& lu_of(SUNLinearSolver S) { return *static_cast<DenseLu*>(S->content); }
+
+SUNLinearSolver_Type lu_type(SUNLinearSolver) { return SUNLINEARSOLVER_DIRECT; }
+SUNLinearSolver_ID lu_id(SUNLinearSolver) { return SUNLINEARSOLVER_CUSTOM; }
+int lu_initialize(SUNLinearSolver S) {
+  lu_of(S).last_flag = 0;
+  return SUNLS_SUCCESS;
+}
+
+// In-place LU with partial pivoting (row interchanges recorded in p), the
+// method of the library's dense solver. Returns 0, or k + 1 when the k-th
+// pivot is exactly zero (a singular iteration matrix: CVODE retries with a
+// smaller step).
+int lu_setup(SUNLinearSolver S, SUNMatrix A) {
+  DenseLu& lu = lu_of(S);
+  const sunindextype n = SM_COLUMNS_D(A);
+  double* a = SM_DATA_D(A);
+  auto at = [a, n](sunindextype i, sunindextype j) -> double& { return a[i + j * n]; };
+  for (sunindextype k = 0; k < n; ++k) {
+    sunindextype p = k;
+    for (sunindextype i = k + 1; i < n; ++i)
+      if (std::abs(at(i, k)) > std::abs(at(p, k))) p = i;
+    lu.pivots[k] = p;
+    if (at(p, k) == 0) {
+      lu.last_flag = k + 1;
+      return SUNLS_LUFACT_FAIL;
+    }
+    if (p != k)
+      for (sunindextype j = 0; j < n; ++j) std::swap(at(k, j), at(p, j));
+    const double inv_pivot = 1.0 / at(k, k);
+    for (sunindextype i = k + 1; i < n; ++i) at(i, k) *= inv_pivot;
+    for (sunindextype j = k + 1; j < n; ++j) {
+      const double akj = at(k, j);
+      if (akj == 0) continue;
+      for (sunindextype i = k + 1; i < n; ++i) at(i, j) -= at(i, k) * akj;
+    }
+  }
+  lu.last_flag = 0;
+  return SUNLS_SUCCESS;
+}
+
+int lu_solve(SUNLinearSolver S, SUNMatrix A, N_Vector x, N_Vector b, double) {
+  DenseLu& lu = lu_of(S);
+  const sunindextype n = SM_COLUMNS_D(A);
+  const double* a = SM_DATA_D(A);
+  double* xd = data(x);
+  if (x != b) {
+    const double* bd = data(b);
+    for (sunindextype i = 0; i < n; ++i) xd[i] = bd[i];
+  }
+  for (sunindextype k = 0; k < n; ++k)
+    if (lu.pivots[k] != k) std::swap(xd[k], xd[lu.pivots[k]]);
+  for (sunindextype j = 0; j < n; ++j) {  // L y = P b (unit diagonal)
+    const double v = xd[j];
+    if (v != 0)
+      for (sunindextype i = j + 1; i < n; ++i) xd[i] -= a[i + j * n] * v;
+  }
+  for (sunindextype j = n - 1; j >= 0; --j) {  // U x = y
+    xd[j] /= a[j + j * n];
+    const double v = xd[j];
+    if (v != 0)
+      for (sunindextype i = 0; i < j; ++i) xd[i] -= a[i + j * n] * v;
+  }
+  lu.last_flag = 0;
+  return SUNLS_SUCCESS;
+}
+
+sunindextype lu_last_flag(SUNLinearSolver S) { return lu_of(S).last_flag; }
+
+int lu_free(SUNLinearSolver S) {
+  if (S == nullptr) return SUNLS_SUCCESS;
+  delete static_cast<DenseLu*>(S->content);
+  S->content = nullptr;
+  SUNLinSolFreeEmpty(S);
+  return SUNLS_SUCCESS;
+}
+
+}  // namespace
+
+void use_fast_serial_ops(N_Vector v) {
+  N_Vector_Ops o = v->ops;
+  o->nvlinearsum = &linear_sum;
+  o->nvconst = &constant;
+  o->nvprod = &prod;
+  o->nvdiv = &div;
+  o->nvscale = &scale;
+  o->nvabs = &abs_value;
+  o->nvinv = &inv;
+  o->nvaddconst = &add_const;
+  o->nvdotprod = &dot;
+  o->nvmaxnorm = &max_norm;
+  o->nvwrmsnorm = &wrms_norm;
+  o->nvwrmsnormmask = &wrms_norm_mask;
+  o->nvmin = &min_value;
+  o->nvcompare = &compare;
+  o->nvinvtest = &inv_test;
+  o->nvlinearcombination = &linear_combination;
+  o->nvscaleaddmulti = &scale_add_multi;
+  o->nvdotprodmulti = &dot_prod_multi;
+  // The same operations where the library calls them "local" (the serial
+  // vector's global and local values coincide).
+  o->nvdotprodlocal = &dot;
+  o->nvmaxnormlocal = &max_norm;
+  o->nvminlocal = &min_value;
+  o->nvinvtestlocal = &inv_test;
+  o->nvwsqrsumlocal = &wsqr_sum;
+}
+
+void use_fast_dense_ops(SUNMatrix A) {
+  A->ops->zero = &mat_zero;
+  A->ops->copy = &mat_copy;
+  A->ops->scaleaddi = &mat_scale_add_identity;
+}
+
+SUNLinearSolver make_fast_dense_solver(int n, SUNContext ctx) {
+  auto lu = std::make_unique<DenseLu>();
+  lu->pivots.assign(static_cast<std::size_t>(n), 0);
+  SUNLinearSolver S = SUNLinSolNewEmpty(ctx);
+  if (S == nullptr) return nullptr;
+  S->content = lu.release();
+  S->ops->gettype = &lu_type;
+  S->ops->getid = &lu_id;
+  S->ops->initialize = &lu_initialize;
+  S->ops->setup = &lu_setup;
+  S->ops->solve = &lu_solve;
+  S->ops->lastflag = &lu_last_flag;
+  S->ops->free = &lu_free;
+  return S;
+}
+
+}  // namespace rxtrain::detail
