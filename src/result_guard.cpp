@@ -5,6 +5,7 @@
 #include <cmath>
 #include <optional>
 #include <string>
+#include <type_traits>
 #include <vector>
 
 #include "rxtrain/error.hpp"
@@ -14,33 +15,58 @@ namespace rxtrain {
 namespace {
 
 // Checks values of one owner ("stage R1", "feed"...) and throws on the first
-// non-finite one.
+// non-finite one. Labels are built only for that one: a sweep checks every
+// profile point of every run, and formatting a label per value cost more
+// than the integration.
 class Guard {
  public:
   Guard(std::string owner, const std::vector<std::string>& species)
       : owner_(std::move(owner)), species_(species) {}
 
-  void value(const std::string& field, double v) const {
+  // `label` is a string or a callable returning one.
+  template <class Label>
+  void value(const Label& label, double v) const {
     if (std::isfinite(v)) return;
+    if constexpr (std::is_invocable_v<Label>)
+      fail(label(), v);
+    else
+      fail(std::string(label), v);
+  }
+  template <class Label>
+  void value(const Label& label, const std::optional<double>& v) const {
+    if (v) value(label, *v);
+  }
+  template <class Where>
+  void flows(const Where& where, const std::vector<double>& F) const {
+    for (std::size_t i = 0; i < F.size(); ++i)
+      value(
+          [&] {
+            return fmt::format("{} flow of {}", text(where),
+                               i < species_.size() ? species_[i] : "?");
+          },
+          F[i]);
+  }
+  void stream(const std::string& where, const Stream& s) const {
+    value([&] { return where + " T"; }, s.T);
+    value([&] { return where + " P"; }, s.P);
+    flows(where, s.F);
+  }
+
+ private:
+  template <class Where>
+  static std::string text(const Where& where) {
+    if constexpr (std::is_invocable_v<Where>)
+      return where();
+    else
+      return std::string(where);
+  }
+  [[noreturn]] void fail(const std::string& field, double v) const {
     throw SolverError(fmt::format(
         "non-finite result: {}, {} = {}; the solver produced no usable number there (check "
         "the units and magnitudes of that stage's inputs, or tighten --rtol)",
         owner_, field, std::isnan(v) ? "NaN" : (v > 0 ? "+Inf" : "-Inf")));
   }
-  void value(const std::string& field, const std::optional<double>& v) const {
-    if (v) value(field, *v);
-  }
-  void flows(const std::string& where, const std::vector<double>& F) const {
-    for (std::size_t i = 0; i < F.size(); ++i)
-      value(fmt::format("{} flow of {}", where, i < species_.size() ? species_[i] : "?"), F[i]);
-  }
-  void stream(const std::string& where, const Stream& s) const {
-    value(where + " T", s.T);
-    value(where + " P", s.P);
-    flows(where, s.F);
-  }
 
- private:
   std::string owner_;
   const std::vector<std::string>& species_;
 };
@@ -63,17 +89,17 @@ void check_stage(const StageResult& s, const std::vector<std::string>& species) 
   g.value("conversion", s.conversion);
   for (std::size_t k = 0; k < s.profile.size(); ++k) {
     const auto& p = s.profile[k];
-    g.value(fmt::format("profile point {} position V", k + 1), p.V);
-    const std::string at = fmt::format("profile point {} (V = {:.6g} m3)", k + 1, p.V);
-    g.value(at + " T", p.T);
-    g.value(at + " X", p.X);
+    g.value([&] { return fmt::format("profile point {} position V", k + 1); }, p.V);
+    const auto at = [&] { return fmt::format("profile point {} (V = {:.6g} m3)", k + 1, p.V); };
+    g.value([&] { return at() + " T"; }, p.T);
+    g.value([&] { return at() + " X"; }, p.X);
     g.flows(at, p.F);
   }
   for (std::size_t k = 0; k < s.steady_states.size(); ++k) {
     const auto& st = s.steady_states[k];
-    const std::string at = fmt::format("steady state {}", k + 1);
-    g.value(at + " T", st.T);
-    g.value(at + " X", st.X);
+    const auto at = [&] { return fmt::format("steady state {}", k + 1); };
+    g.value([&] { return at() + " T"; }, st.T);
+    g.value([&] { return at() + " X"; }, st.X);
     g.flows(at, st.F);
   }
   if (const auto& e = s.equilibrium) {

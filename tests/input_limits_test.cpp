@@ -220,6 +220,10 @@ TEST_CASE("check_finite names the stage and the field of a NaN or Inf", "[limits
                                            Catch::Contains("profile point 2") &&
                                            Catch::Contains("T = NaN"));
   bad = r;
+  bad.stages[0].profile[2].F[0] = std::numeric_limits<double>::quiet_NaN();
+  CHECK_THROWS_WITH(check_finite(bad), Catch::Contains("profile point 3 (V = ") &&
+                                           Catch::Contains("m3) flow of A = NaN"));
+  bad = r;
   bad.stages[0].outlet.F[1] = std::numeric_limits<double>::infinity();
   CHECK_THROWS_WITH(check_finite(bad), Catch::Contains("outlet flow of B = +Inf"));
   bad = r;
