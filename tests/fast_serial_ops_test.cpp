@@ -152,6 +152,13 @@ TEST_CASE("fast dense LU solves like SUNDIALS' dense solver and GSL's LU", "[sol
     for (int i = 0; i < n; ++i) bb.d()[i] = bl.d()[i];
     REQUIRE(SUNLinSolSolve(Lf, Af, bb.v, bb.v, 0) == 0);
     for (int i = 0; i < n; ++i) CHECK(bb.d()[i] == xf.d()[i]);
+    // CVODE's saved Jacobian is a clone: it keeps the fast operations.
+    SUNMatrix C = SUNMatClone(Af);
+    CHECK(C->ops->copy == Af->ops->copy);
+    CHECK(C->ops->copy != Al->ops->copy);
+    SUNMatCopy(Af, C);
+    for (int k = 0; k < n * n; ++k) CHECK(SM_DATA_D(C)[k] == SM_DATA_D(Af)[k]);
+    SUNMatDestroy(C);
     SUNLinSolFree(Ll), SUNLinSolFree(Lf);
     SUNMatDestroy(Al), SUNMatDestroy(Af), SUNMatDestroy(Jf);
   }

@@ -183,6 +183,12 @@ int mat_scale_add_identity(double c, SUNMatrix A) {
   return 0;
 }
 
+SUNMatrix mat_clone(SUNMatrix A) {
+  SUNMatrix B = SUNDenseMatrix(SM_ROWS_D(A), SM_COLUMNS_D(A), A->sunctx);
+  if (B != nullptr) use_fast_dense_ops(B);
+  return B;
+}
+
 // ---- dense LU linear solver --------------------------------------------------
 
 struct DenseLu {
@@ -298,6 +304,9 @@ void use_fast_serial_ops(N_Vector v) {
 }
 
 void use_fast_dense_ops(SUNMatrix A) {
+  // CVODE keeps its saved Jacobian in a clone of A and copies it back at
+  // most setups: the clone gets these operations too.
+  A->ops->clone = &mat_clone;
   A->ops->zero = &mat_zero;
   A->ops->copy = &mat_copy;
   A->ops->scaleaddi = &mat_scale_add_identity;
