@@ -460,7 +460,12 @@ StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream
           "(a rate far too fast or too slow), split the stage at that volume, or loosen --rtol",
           spec.id, V, V_end, e.what()));
     }
-    if (adiabatic) {
+    // With one reaction dT/dV = -dH r / sum F cp: r keeps its sign along a
+    // bed (the reaction approaches its equilibrium without crossing it) and
+    // so does dH over the few hundred kelvin of one bed, so T is monotonic
+    // and its extremes are the end points: the search is for several
+    // reactions only.
+    if (adiabatic && mech.n_reactions() > 1) {
       const double V_prev = res.profile.back().V;
       const double s_now = slope_at(V);
       if ((slope > 0 && s_now < 0) || (slope < 0 && s_now > 0))
