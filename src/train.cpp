@@ -60,7 +60,9 @@ void add_equilibrium_records(const Case& c, const TrainOptions& options, TrainRe
 }  // namespace
 
 TrainWorkspace::TrainWorkspace()
-    : ctx_(std::make_unique<SunContext>()), pfr_(std::make_unique<PfrWorkspace>(*ctx_)) {}
+    : ctx_(std::make_unique<SunContext>()),
+      pfr_(std::make_unique<PfrWorkspace>(*ctx_)),
+      cstr_(std::make_unique<CstrWorkspace>(*ctx_)) {}
 TrainWorkspace::~TrainWorkspace() = default;
 TrainWorkspace::TrainWorkspace(TrainWorkspace&&) noexcept = default;
 TrainWorkspace& TrainWorkspace::operator=(TrainWorkspace&&) noexcept = default;
@@ -73,7 +75,6 @@ TrainResult run_train(const Case& c, const TrainOptions& options) {
 TrainResult run_train(const Case& c, const TrainOptions& options, TrainWorkspace& ws) {
   const Mechanism& mech = c.mechanism;
   const ConversionBasis basis = c.conversion_basis();
-  const SunContext& ctx = ws.context();
 
   TrainResult result;
   result.title = c.title;
@@ -92,7 +93,11 @@ TrainResult run_train(const Case& c, const TrainOptions& options, TrainWorkspace
           } else if (s.type == ReactorType::Pfr) {
             return run_pfr(mech, s, stream, basis, ws.pfr(), options.pfr);
           } else {
-            return run_cstr(mech, s, stream, basis, ctx, options.cstr);
+            CstrOptions o = options.cstr;
+            o.guesses = {};
+            for (const auto& w : options.warm_starts)
+              if (w.stage == s.id) o.guesses = w.states;
+            return run_cstr(mech, s, stream, basis, ws.cstr(), o);
           }
         },
         spec);
@@ -104,6 +109,18 @@ TrainResult run_train(const Case& c, const TrainOptions& options, TrainWorkspace
   result.conversion = basis.conversion(stream);
   if (options.equilibrium_views) add_equilibrium_views(c, options, result);
   return result;
+}
+
+void set_warm_starts(const TrainResult& result, std::vector<CstrWarmStart>& warm_starts) {
+  std::size_t k = 0;
+  for (const auto& r : result.stages) {
+    if (r.kind != StageKind::Cstr) continue;
+    if (k == warm_starts.size()) warm_starts.emplace_back();
+    warm_starts[k].stage = r.id;
+    warm_starts[k].states = r.steady_states;
+    ++k;
+  }
+  warm_starts.resize(k);
 }
 
 void add_equilibrium_views(const Case& c, const TrainOptions& options, TrainResult& result) {

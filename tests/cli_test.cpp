@@ -167,7 +167,7 @@ TEST_CASE("sweep: a grid writes one row per point and a report",
   INFO(r.err);
   REQUIRE(r.exit_code == 0);
   const std::string csv = slurp(dir / "g.csv");
-  CHECK(std::count(csv.begin(), csv.end(), '\n') == 11 + 3);  // 11 header lines, 3 rows
+  CHECK(std::count(csv.begin(), csv.end(), '\n') == 12 + 3);  // 12 header lines, 3 rows
   CHECK(csv.find("\n# margin: T1.volume,T2.volume\n") != std::string::npos);
   CHECK(csv.find("nan") == std::string::npos);
   CHECK(fs::exists(dir / "rep" / "report.html"));

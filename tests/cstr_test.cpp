@@ -13,7 +13,10 @@
 #include <string>
 #include <vector>
 
+#include "rxtrain/case.hpp"
 #include "rxtrain/error.hpp"
+#include "rxtrain/train.hpp"
+#include "rxtrain/units.hpp"
 
 namespace {
 
@@ -424,4 +427,152 @@ TEST_CASE("adiabatic sizing with two reactions round-trips through rating", "[cs
       rxtrain::run_cstr(mech, tank(HeatMode::Adiabatic, *sized.volume), in, {0, 10.0}, ctx);
   CHECK(std::abs(rated.conversion - 0.8) < 1e-8);
   CHECK(rel(rated.outlet.T, sized.outlet.T) < 1e-9);
+}
+
+namespace {
+
+// Everything a stirred-tank result reports, compared exactly.
+void require_same_tank(const StageResult& a, const StageResult& b) {
+  CHECK(a.outlet.T == b.outlet.T);
+  CHECK(a.outlet.F == b.outlet.F);
+  CHECK(a.volume == b.volume);
+  CHECK(a.duty == b.duty);
+  CHECK(a.conversion == b.conversion);
+  CHECK(a.stats.newton_iters == b.stats.newton_iters);
+  CHECK(a.stats.message == b.stats.message);
+  CHECK(a.warnings == b.warnings);
+  REQUIRE(a.steady_states.size() == b.steady_states.size());
+  for (std::size_t k = 0; k < a.steady_states.size(); ++k) {
+    CHECK(a.steady_states[k].T == b.steady_states[k].T);
+    CHECK(a.steady_states[k].F == b.steady_states[k].F);
+  }
+}
+
+// The S-curve tank of the tests above as a case file (the same invented
+// data): pure A at 10 mol/s, v0 = 1e-3 m3/s, so tau = V / 1e-3 m3/s.
+constexpr const char* kSCurveCase = R"(title: S-curve tank (invented data)
+phase: liquid
+species:
+  - {id: A, mw: 0.1 kg/mol, density: 1000 kg/m3, thermo: {cp: 150 J/mol/K}}
+  - {id: B, mw: 0.1 kg/mol, density: 1000 kg/m3, thermo: {cp: 150 J/mol/K}}
+reactions:
+  - id: r1
+    equation: A => B
+    rate: {A: 1, Ea: 99773.55 J/mol, T_ref: 350 K, orders: {A: 1}}
+    dH: -30 kJ/mol
+feed: {T: 300 K, P: 2 bar, flows: {A: 10 mol/s}}
+key: A
+train:
+  - {type: cstr, id: R1, volume: 1e-3 m3}
+)";
+
+}  // namespace
+
+TEST_CASE("a reused CstrWorkspace gives the results of fresh runs", "[cstr][workspace]") {
+  // Tanks of other sizes, heat modes and paths (three states, ignition,
+  // closed-form sizing, sizing by continuation) in turn on one workspace:
+  // nothing of one run may leak into the next.
+  const Mechanism s_curve = s_curve_mechanism();
+  const Stream s_in{kS_T0, 2e5, {10.0, 0.0}};
+  const Mechanism series(
+      Phase::Liquid,
+      {species("A", 150, 0.1, 1000), species("B", 150, 0.1, 1000), species("C", 150, 0.1, 1000)},
+      {reaction("r1", {-1, 1, 0}, {1, 0, 0}, 0.2, 20000.0, 350.0, -10000.0),
+       reaction("r2", {0, -1, 1}, {0, 1, 0}, 0.1, 30000.0, 350.0, -15000.0)});
+  const Stream series_in{340.0, 2e5, {10.0, 0.0, 0.0}};
+  struct Run {
+    const Mechanism* mech;
+    ReactorSpec spec;
+    const Stream* in;
+  };
+  const std::vector<Run> runs{
+      {&s_curve, tank(HeatMode::Adiabatic, 1.0 * kS_v0), &s_in},
+      {&series, tank(HeatMode::Adiabatic, std::nullopt, 0.8), &series_in},
+      {&s_curve, tank(HeatMode::Adiabatic, 10.0 * kS_v0), &s_in},
+      {&s_curve, tank(HeatMode::Adiabatic, std::nullopt, 0.5), &s_in},
+      {&series, tank(HeatMode::Isothermal, 2e-2), &series_in},
+  };
+  SunContext ctx;
+  std::vector<StageResult> fresh;
+  for (const auto& r : runs)
+    fresh.push_back(rxtrain::run_cstr(*r.mech, r.spec, *r.in, {0, 10.0}, ctx));
+  REQUIRE(fresh[0].steady_states.size() == 3);
+  rxtrain::CstrWorkspace ws(ctx);
+  for (int pass = 0; pass < 2; ++pass)
+    for (std::size_t k = 0; k < runs.size(); ++k) {
+      INFO("pass " << pass << ", run " << k);
+      require_same_tank(rxtrain::run_cstr(*runs[k].mech, runs[k].spec, *runs[k].in, {0, 10.0}, ws),
+                        fresh[k]);
+    }
+  // An infeasible target leaves the workspace fit for the next run.
+  CHECK_THROWS_AS(rxtrain::run_cstr(s_curve, tank(HeatMode::Adiabatic, std::nullopt, 1.0),
+                                    Stream{kS_T0, 2e5, {10.0, 1.0}}, {0, 10.0}, ws),
+                  rxtrain::InfeasibleError);
+  require_same_tank(rxtrain::run_cstr(s_curve, runs[0].spec, s_in, {0, 10.0}, ws), fresh[0]);
+}
+
+TEST_CASE("a reused TrainWorkspace gives the results of fresh runs with stirred tanks",
+          "[cstr][workspace]") {
+  const rxtrain::UnitParser units;
+  const rxtrain::Case demo =
+      rxtrain::load_case(RXTRAIN_SOURCE_DIR "/cases/liquid-tank-then-tube.yaml", units);
+  const rxtrain::Case s_curve = rxtrain::load_case_from_string(kSCurveCase, "s.yaml", units);
+  rxtrain::TrainOptions o;
+  o.equilibrium_views = false;
+  const rxtrain::TrainResult fresh_demo = rxtrain::run_train(demo, o);
+  const rxtrain::TrainResult fresh_s = rxtrain::run_train(s_curve, o);
+  REQUIRE(fresh_s.stages[0].steady_states.size() == 3);
+  rxtrain::TrainWorkspace ws;
+  for (int k = 0; k < 2; ++k) {
+    const rxtrain::TrainResult a = rxtrain::run_train(demo, o, ws);
+    const rxtrain::TrainResult b = rxtrain::run_train(s_curve, o, ws);
+    REQUIRE(a.stages.size() == fresh_demo.stages.size());
+    for (std::size_t s = 0; s < a.stages.size(); ++s) {
+      CHECK(a.stages[s].outlet.T == fresh_demo.stages[s].outlet.T);
+      CHECK(a.stages[s].outlet.F == fresh_demo.stages[s].outlet.F);
+      CHECK(a.stages[s].volume == fresh_demo.stages[s].volume);
+      CHECK(a.stages[s].stats.message == fresh_demo.stages[s].stats.message);
+    }
+    require_same_tank(a.stages[0], fresh_demo.stages[0]);
+    require_same_tank(b.stages[0], fresh_s.stages[0]);
+  }
+}
+
+TEST_CASE("a warm-started chain of tanks finds the steady states of cold runs", "[cstr]") {
+  // tau from inside the multiplicity region past ignition; each tank gets
+  // the previous one's steady states as first starts. Every state must be
+  // one of GSL's roots (see gsl_steady_states) and the set and the
+  // reported (feed-branch) state those of a cold run, within the Newton
+  // tolerance.
+  const Mechanism mech = s_curve_mechanism();
+  const Stream in{kS_T0, 2e5, {10.0, 0.0}};
+  SunContext ctx;
+  rxtrain::CstrWorkspace ws(ctx);
+  std::vector<rxtrain::SteadyState> previous;
+  for (double tau : {0.2, 0.3, 0.5, 0.7, 1.0, 1.5, 2.0, 3.0, 5.0, 10.0, 5.0, 2.0, 1.0}) {
+    INFO("tau = " << tau << " s");
+    const ReactorSpec spec = tank(HeatMode::Adiabatic, tau * kS_v0);
+    const StageResult cold = rxtrain::run_cstr(mech, spec, in, {0, 10.0}, ctx);
+    rxtrain::CstrOptions warm_options;
+    warm_options.guesses = previous;
+    const StageResult warm = rxtrain::run_cstr(mech, spec, in, {0, 10.0}, ws, warm_options);
+    const std::vector<double> ref = gsl_steady_states(tau);
+    REQUIRE(cold.steady_states.size() == ref.size());
+    REQUIRE(warm.steady_states.size() == ref.size());
+    for (std::size_t k = 0; k < ref.size(); ++k) {
+      CHECK(rel(warm.steady_states[k].T, ref[k]) < 1e-7);
+      // Newton stops at a scaled residual of 1e-11 (NewtonOptions).
+      CHECK(std::abs(warm.steady_states[k].T - cold.steady_states[k].T) < 1e-6);
+      CHECK(std::abs(warm.steady_states[k].X - cold.steady_states[k].X) < 1e-9);
+    }
+    CHECK(std::abs(warm.outlet.T - cold.outlet.T) < 1e-6);
+    previous = warm.steady_states;
+  }
+  // A guess must have one flow per species.
+  const std::vector<rxtrain::SteadyState> bad{{400.0, 0.5, {5.0}}};
+  rxtrain::CstrOptions bad_options;
+  bad_options.guesses = bad;
+  CHECK_THROWS_AS(
+      rxtrain::run_cstr(mech, tank(HeatMode::Adiabatic, kS_v0), in, {0, 10.0}, ws, bad_options),
+      std::invalid_argument);
 }

@@ -69,6 +69,26 @@ train:
   - {type: pfr, id: R1, target: {conversion: 0.3}, heat: isothermal}
 )";
 
+// An adiabatic stirred tank with up to three steady states (invented
+// data, the S-curve tank of tests/cstr_test.cpp): pure A at 10 mol/s,
+// v0 = 1e-3 m3/s; tau = V / v0 from 0.1 s to 10 s spans the region of
+// three states and ignition (near tau = 3.5 s).
+constexpr const char* kSCurveTank = R"(title: S-curve tank (invented data)
+phase: liquid
+species:
+  - {id: A, mw: 0.1 kg/mol, density: 1000 kg/m3, thermo: {cp: 150 J/mol/K}}
+  - {id: B, mw: 0.1 kg/mol, density: 1000 kg/m3, thermo: {cp: 150 J/mol/K}}
+reactions:
+  - id: r1
+    equation: A => B
+    rate: {A: 1, Ea: 99773.55 J/mol, T_ref: 350 K, orders: {A: 1}}
+    dH: -30 kJ/mol
+feed: {T: 300 K, P: 2 bar, flows: {A: 10 mol/s}}
+key: A
+train:
+  - {type: cstr, id: R1, volume: 1e-3 m3}
+)";
+
 std::string demo_text() {
   std::ifstream in(std::filesystem::path(RXTRAIN_SOURCE_DIR) / "cases" /
                    "isomerization-two-bed.yaml");
@@ -328,6 +348,77 @@ TEST_CASE("rows and CSV are identical for any number of jobs and shards", "[swee
     truncated[0].second.erase(truncated[0].second.rfind('\n', truncated[0].second.size() - 2) + 1);
     CHECK(input_error([&] { merge_sweep_csv(truncated); }).find("incomplete") != std::string::npos);
   }
+}
+
+TEST_CASE("warm-started stirred tanks give the same rows for any jobs and shards", "[sweep]") {
+  const Fixture f(kSCurveTank);
+  // 40 runs: chains [0, 16), [16, 32), [32, 40); shards of 3 and 7 begin
+  // inside chains, so they must recompute the chains' earlier runs.
+  const Study s = f.study({"train.R1.volume=log:1e-4:1e-2:40"});
+  REQUIRE(s.chain_length() == kGridChainLength);
+  // Nothing to warm-start without a tank, no neighbours in Monte Carlo.
+  CHECK(Fixture(kFirstOrder).study({"train.R1.volume=0.1:0.2:40"}).chain_length() == 1);
+  CHECK(f.study({}, {"train.R1.volume=uniform(1e-4,1e-2)"}, 40).chain_length() == 1);
+  const OutputSpec o = OutputSpec::defaults(f.c);
+  const StudyHeader h{"test", "abc", s.definition(), o.names()};
+  const auto names = s.input_names();
+  const std::vector<RunRow> serial_rows = run(f, s, o, 1);
+  const std::string serial = sweep_csv(h, {}, names, serial_rows);
+  CHECK(serial.find("# chain: 16\n") != std::string::npos);
+  CHECK(sweep_csv(h, {}, names, run(f, s, o, 2)) == serial);
+  CHECK(sweep_csv(h, {}, names, run(f, s, o, 3)) == serial);
+  for (std::size_t n : {3, 7}) {
+    std::vector<std::pair<std::string, std::string>> shards;
+    for (std::size_t k = 1; k <= n; ++k)
+      shards.emplace_back(fmt::format("s{}.csv", k),
+                          sweep_csv(h, {k, n}, names, run(f, s, o, 2, {k, n})));
+    CHECK(merge_sweep_csv(shards).csv == serial);
+  }
+
+  // Each row is the run warm-started from its predecessor in the chain
+  // (the chain's first run cold), exactly.
+  TrainOptions opt;
+  opt.equilibrium_views = false;
+  TrainWorkspace ws;
+  Case work = f.c;
+  const CaseEditor editor(f.table, s.paths());
+  std::size_t several = 0;
+  for (std::size_t run_index = 0; run_index < s.run_count(); ++run_index) {
+    INFO("run " << run_index);
+    if (run_index % s.chain_length() == 0) opt.warm_starts.clear();
+    std::vector<double> in(names.size());
+    s.inputs(run_index, in);
+    editor.apply(f.c, in, work);
+    const TrainResult r = run_train(work, opt, ws);
+    const RunRow& row = serial_rows[run_index];
+    REQUIRE(row.result.status == RunStatus::Ok);
+    for (std::size_t i = 0; i < o.columns().size(); ++i)
+      CHECK(row.result.outputs[i] == o.extract(i, r));
+    if (r.stages[0].steady_states.size() > 1) ++several;
+    set_warm_starts(r, opt.warm_starts);
+    REQUIRE(opt.warm_starts.size() == 1);
+    CHECK(opt.warm_starts[0].stage == "R1");
+  }
+  CHECK(several > 10);  // the chains do cross the region of three states
+}
+
+TEST_CASE("a run passes its tanks' steady states on; a failed run passes none", "[sweep]") {
+  const Fixture tank(kSCurveTank);
+  PointWorkspace ws;
+  ws.train.equilibrium_views = false;
+  const OutputSpec o = OutputSpec::defaults(tank.c);
+  REQUIRE(evaluate_point(tank.c, o, ws).status == RunStatus::Ok);
+  REQUIRE(ws.train.warm_starts.size() == 1);
+  CHECK(ws.train.warm_starts[0].stage == "R1");
+  CHECK(ws.train.warm_starts[0].states.size() == 3);  // tau = 1 s: three states
+  // Beyond equilibrium (X_eq = 0.5): infeasible, and nothing passed on.
+  const Fixture tube(kReversibleSized);
+  CaseEditor editor(tube.table, tube.study({"train.R1.target.conversion=0.6:0.6:1"}).paths());
+  Case beyond = tube.c;
+  const std::vector<double> X{0.6};
+  editor.apply(tube.c, X, beyond);
+  CHECK(evaluate_point(beyond, OutputSpec::defaults(tube.c), ws).status == RunStatus::Infeasible);
+  CHECK(ws.train.warm_starts.empty());
 }
 
 TEST_CASE("Monte Carlo percentiles of X follow the first-order PFR solution", "[sweep]") {

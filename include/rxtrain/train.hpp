@@ -14,9 +14,22 @@
 
 namespace rxtrain {
 
+// Warm starts for one stirred-tank stage: states to try first (see
+// CstrOptions::guesses), e.g. that stage's steady states in a neighbouring
+// run of a sweep.
+struct CstrWarmStart {
+  std::string stage;  // stage id
+  std::vector<SteadyState> states;
+};
+
 struct TrainOptions {
   PfrOptions pfr;    // tubular stages (CVODE tolerances, sizing limit)
-  CstrOptions cstr;  // stirred tanks (Newton, starts)
+  CstrOptions cstr;  // stirred tanks (Newton, starts); its guesses are not read
+  // Warm starts of stirred-tank stages by stage id, passed on as that
+  // stage's CstrOptions::guesses. They add Newton starts, so a result may
+  // differ from a cold run's in the last digits and may hold a steady
+  // state more. Empty (the default): every tank starts cold.
+  std::vector<CstrWarmStart> warm_starts;
   // Compute each stage's equilibrium record, the equilibrium curve and the
   // maximum-rate locus when a reversible reaction exists, and the
   // Levenspiel curves of every reactor stage. Off for callers
@@ -45,8 +58,9 @@ struct TrainResult {
   std::vector<LevenspielCurve> levenspiel;
 };
 
-// What repeated runs of trains reuse: the SUNDIALS context and the tubular
-// stages' integrator and buffers (see PfrWorkspace). One per thread:
+// What repeated runs of trains reuse: the SUNDIALS context, the tubular
+// stages' integrator and buffers (see PfrWorkspace) and the stirred tanks'
+// buffers (see CstrWorkspace). One per thread:
 // distinct workspaces on distinct threads share nothing mutable (a Case is
 // read-only, and the unit database and YAML parser are used only while
 // loading it). Movable, not copyable.
@@ -65,10 +79,12 @@ class TrainWorkspace {
 
   const SunContext& context() const { return *ctx_; }
   PfrWorkspace& pfr() { return *pfr_; }
+  CstrWorkspace& cstr() { return *cstr_; }
 
  private:
-  std::unique_ptr<SunContext> ctx_;  // on the heap: pfr_ points at it
+  std::unique_ptr<SunContext> ctx_;  // on the heap: pfr_ and cstr_ point at it
   std::unique_ptr<PfrWorkspace> pfr_;
+  std::unique_ptr<CstrWorkspace> cstr_;
 };
 
 // Runs every stage of the case in order. Throws SolverError (naming the
@@ -85,5 +101,10 @@ void add_equilibrium_views(const Case& c, const TrainOptions& options, TrainResu
 // Same result, reusing `ws` instead of creating the solvers afresh: the
 // fast path for many runs (the per-run cost is in docs/performance.md).
 TrainResult run_train(const Case& c, const TrainOptions& options, TrainWorkspace& ws);
+
+// Sets `warm_starts` to the steady states of every stirred-tank stage of
+// `result`, the warm starts of a next run of the same case (reusing the
+// vectors' storage).
+void set_warm_starts(const TrainResult& result, std::vector<CstrWarmStart>& warm_starts);
 
 }  // namespace rxtrain

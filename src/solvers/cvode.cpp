@@ -298,6 +298,14 @@ CvodeIntegrator::CvodeIntegrator(const SunContext& ctx, int n, Rhs rhs, SparsePa
   std::copy(m.pattern.row.begin(), m.pattern.row.end(), SUNSparseMatrix_IndexValues(m.A.get()));
   m.klu.reset(SUNLinSol_KLU(m.y.get(), m.A.get(), sctx));
   if (!m.klu) throw SolverError("could not create the KLU sparse linear solver");
+  // AMD, not SUNDIALS' default COLAMD: it leaves less fill-in on reaction
+  // networks, whose species couple nearly symmetrically (reactants with
+  // each other, products with reactants). Measured on the synthetic
+  // 200-species stage (tools/bench): nnz(L+U) 9566 -> 5929, factorization
+  // flops 328k -> 91k (15848 -> 11048 with the structurally zero entries
+  // of irreversible reactions' products kept in the pattern).
+  if (SUNLinSol_KLUSetOrdering(m.klu.get(), 0) != SUNLS_SUCCESS)
+    throw SolverError("could not set the KLU ordering");
   m.u.reset(N_VNew_Serial(n, sctx));
   m.w.reset(N_VNew_Serial(n, sctx));
   m.z.reset(N_VNew_Serial(n, sctx));

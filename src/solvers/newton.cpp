@@ -13,10 +13,27 @@ bool finite(const Eigen::VectorXd& v) { return v.allFinite(); }
 NewtonResult solve_newton(const ResidualFunction& fn, Eigen::VectorXd& x,
                           const Eigen::VectorXd& lower, const Eigen::VectorXd& upper,
                           const NewtonOptions& options) {
+  NewtonWorkspace ws;
+  return solve_newton(fn, x, lower, upper, options, ws);
+}
+
+NewtonResult solve_newton(const ResidualFunction& fn, Eigen::VectorXd& x,
+                          const Eigen::VectorXd& lower, const Eigen::VectorXd& upper,
+                          const NewtonOptions& options, NewtonWorkspace& ws) {
   const Eigen::Index n = x.size();
   NewtonResult res;
-  Eigen::VectorXd f(n), f_trial(n), x_trial(n), dx(n);
-  Eigen::MatrixXd J(n, n);
+  Eigen::VectorXd& f = ws.f;
+  Eigen::VectorXd& f_trial = ws.f_trial;
+  Eigen::VectorXd& x_trial = ws.x_trial;
+  Eigen::VectorXd& dx = ws.dx;
+  Eigen::VectorXd& bent = ws.bent;  // the step with only the offending components cut
+  Eigen::MatrixXd& J = ws.J;
+  f.resize(n);
+  f_trial.resize(n);
+  x_trial.resize(n);
+  dx.resize(n);
+  bent.resize(n);
+  J.resize(n, n);
   fn(x, f, &J);
   if (!finite(f) || !J.allFinite()) {
     res.message = "residual or Jacobian not finite at the starting point";
@@ -24,8 +41,9 @@ NewtonResult solve_newton(const ResidualFunction& fn, Eigen::VectorXd& x,
   }
   for (int it = 0; it < options.max_iterations; ++it) {
     res.iterations = it + 1;
-    Eigen::PartialPivLU<Eigen::MatrixXd> lu(J);
-    dx = -lu.solve(f);
+    ws.lu.compute(J);
+    dx.noalias() = ws.lu.solve(f);
+    dx = -dx;  // exact: the same numbers as -lu.solve(f)
     if (!finite(dx)) {
       res.message = "singular Jacobian";
       res.residual_norm = f.lpNorm<Eigen::Infinity>();
@@ -34,7 +52,7 @@ NewtonResult solve_newton(const ResidualFunction& fn, Eigen::VectorXd& x,
     // Fraction to the boundary: the whole step scaled so that no component
     // passes `boundary_fraction` of its distance to a bound.
     double alpha_max = 1.0;
-    Eigen::VectorXd bent = dx;  // the step with only the offending components cut
+    bent = dx;
     for (Eigen::Index i = 0; i < n; ++i) {
       if (dx[i] < 0 && x[i] + dx[i] < lower[i]) {
         alpha_max = std::min(alpha_max, options.boundary_fraction * (x[i] - lower[i]) / -dx[i]);

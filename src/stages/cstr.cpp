@@ -8,6 +8,8 @@
 #include <functional>
 #include <limits>
 #include <optional>
+#include <span>
+#include <stdexcept>
 
 #include "rxtrain/error.hpp"
 #include "rxtrain/stages/exchanger.hpp"
@@ -58,46 +60,53 @@ struct State {
 //   isothermal: g_n = T - T_in                                             (K)
 // The adiabatic row is sum F_in h(T_in) = sum F h(T) with the mole balances
 // substituted (dH_j(T) = dH_298 + sum_i nu_ij hs_i(T), kinetics.hpp).
+// Kept in a CstrWorkspace: reset() for each tank reuses the buffers.
 class CstrBalances {
  public:
-  CstrBalances(const Mechanism& mech, std::vector<double> beta, HeatMode heat, const Stream& inlet)
-      : mech_(mech),
-        beta_(std::move(beta)),
-        heat_(heat),
-        in_(inlet),
-        n_(mech.n_species()),
-        nr_(mech.n_reactions()) {
-    for (int i = 0; i < n_; ++i) hs_in_.push_back(mech.species()[i].thermo.h_sensible(inlet.T));
+  void reset(const Mechanism& mech, const std::vector<double>& beta, HeatMode heat,
+             const Stream& inlet) {
+    mech_ = &mech;
+    beta_ = beta;
+    heat_ = heat;
+    in_ = inlet;
+    n_ = mech.n_species();
+    nr_ = mech.n_reactions();
+    hs_in_.resize(n_);
+    for (int i = 0; i < n_; ++i) hs_in_[i] = mech.species()[i].thermo.h_sensible(inlet.T);
+    r_.resize(nr_);
+    dr_dF_.resize(nr_, n_);
+    dr_dT_.resize(nr_);
   }
 
   int n() const { return n_; }
   HeatMode heat() const { return heat_; }
   const Stream& inlet() const { return in_; }
-  const Mechanism& mechanism() const { return mech_; }
+  const Mechanism& mechanism() const { return *mech_; }
 
   // g has n + 1 entries; dg (if given) is (n + 1) x (n + 2): derivatives
   // with respect to [F_1..F_n, T, V].
-  void eval(const double* F, double T, double V, Eigen::VectorXd& g, Eigen::MatrixXd* dg) const {
-    std::vector<double> r(nr_);
-    Eigen::MatrixXd dr_dF(nr_, n_);
-    Eigen::VectorXd dr_dT(nr_);
+  void eval(const double* F, double T, double V, Eigen::VectorXd& g, Eigen::MatrixXd* dg) {
+    const Mechanism& mech = *mech_;
+    std::vector<double>& r = r_;
+    Eigen::MatrixXd& dr_dF = dr_dF_;
+    Eigen::VectorXd& dr_dT = dr_dT_;
     if (dg)
-      mech_.rates_and_jacobian(T, in_.P, F, r.data(), dr_dF, dr_dT);
+      mech.rates_and_jacobian(T, in_.P, F, r.data(), dr_dF, dr_dT, scratch_);
     else
-      mech_.rates(T, in_.P, F, r.data());
+      mech.rates(T, in_.P, F, r.data());
     for (int i = 0; i < n_; ++i) g[i] = in_.F[i] - F[i];
     double q = 0;  // sum_j R_j dH_j(T), W/m3
     for (int j = 0; j < nr_; ++j) {
-      const auto& nu = mech_.reactions()[j].nu;
+      const auto& nu = mech.reactions()[j].nu;
       const double R = beta_[j] * r[j];
       for (int i = 0; i < n_; ++i)
         if (nu[i] != 0) g[i] += V * nu[i] * R;
-      q += R * mech_.dH(j, T);
+      q += R * mech.dH(j, T);
     }
     if (heat_ == HeatMode::Adiabatic) {
       double h = 0;
       for (int i = 0; i < n_; ++i)
-        h += in_.F[i] * (mech_.species()[i].thermo.h_sensible(T) - hs_in_[i]);
+        h += in_.F[i] * (mech.species()[i].thermo.h_sensible(T) - hs_in_[i]);
       g[n_] = h + V * q;
     } else {
       g[n_] = T - in_.T;
@@ -108,8 +117,8 @@ class CstrBalances {
     d.setZero();
     for (int i = 0; i < n_; ++i) d(i, i) = -1.0;
     for (int j = 0; j < nr_; ++j) {
-      const auto& nu = mech_.reactions()[j].nu;
-      const double dHj = mech_.dH(j, T);
+      const auto& nu = mech.reactions()[j].nu;
+      const double dHj = mech.dH(j, T);
       for (int i = 0; i < n_; ++i) {
         if (nu[i] == 0) continue;
         const double c = V * nu[i] * beta_[j];
@@ -119,41 +128,43 @@ class CstrBalances {
       }
       if (heat_ == HeatMode::Adiabatic) {
         for (int k = 0; k < n_; ++k) d(n_, k) += V * beta_[j] * dHj * dr_dF(j, k);
-        d(n_, n_) += V * beta_[j] * (mech_.dCp(j, T) * r[j] + dHj * dr_dT(j));
+        d(n_, n_) += V * beta_[j] * (mech.dCp(j, T) * r[j] + dHj * dr_dT(j));
         d(n_, n_ + 1) += beta_[j] * r[j] * dHj;
       }
     }
     if (heat_ == HeatMode::Adiabatic)
-      d(n_, n_) += mech_.heat_capacity_flow(T, in_.F.data());
+      d(n_, n_) += mech.heat_capacity_flow(T, in_.F.data());
     else
       d(n_, n_) = 1.0;
   }
 
   // Heat that holds the contents at T: V sum_j R_j dH_j(T), W (heat added
   // to the stream; negative for a cooled exothermic tank).
-  double duty(const double* F, double T, double V) const {
-    std::vector<double> r(nr_);
-    mech_.rates(T, in_.P, F, r.data());
+  double duty(const double* F, double T, double V) {
+    mech_->rates(T, in_.P, F, r_.data());
     double q = 0;
-    for (int j = 0; j < nr_; ++j) q += beta_[j] * r[j] * mech_.dH(j, T);
+    for (int j = 0; j < nr_; ++j) q += beta_[j] * r_[j] * mech_->dH(j, T);
     return V * q;
   }
 
-  // Rate of every reaction per reactor volume, R_j = beta_j r_j.
-  std::vector<double> volumetric_rates(const double* F, double T) const {
-    std::vector<double> r(nr_);
-    mech_.rates(T, in_.P, F, r.data());
-    for (int j = 0; j < nr_; ++j) r[j] *= beta_[j];
-    return r;
+  // Rate of reaction j per reactor volume, R_j = beta_j r_j.
+  double volumetric_rate(const double* F, double T, int j) {
+    mech_->rates(T, in_.P, F, r_.data());
+    return r_[j] * beta_[j];
   }
 
  private:
-  const Mechanism& mech_;
+  const Mechanism* mech_ = nullptr;
   std::vector<double> beta_;
-  HeatMode heat_;
+  HeatMode heat_ = HeatMode::Adiabatic;
   Stream in_;
-  int n_, nr_;
+  int n_ = 0, nr_ = 0;
   std::vector<double> hs_in_;
+  // Scratch of eval(), duty() and volumetric_rate().
+  std::vector<double> r_;
+  Eigen::MatrixXd dr_dF_;
+  Eigen::VectorXd dr_dT_;
+  Mechanism::Scratch scratch_;
 };
 
 struct Outcome {
@@ -166,49 +177,66 @@ struct Outcome {
 // Newton on the balances in scaled unknowns z = [F / F_in,total, T / T_in]
 // (and ln V when sizing); rows scaled by the inlet total flow and by the
 // inlet heat-capacity flow times T_in, so every residual is of order one.
+// Kept in a CstrWorkspace: reset() for each tank reuses the buffers.
 class CstrSolver {
  public:
-  CstrSolver(const CstrBalances& b, const NewtonOptions& options)
-      : b_(b), options_(options), n_(b.n()) {
+  void reset(CstrBalances& b, const NewtonOptions& options) {
+    b_ = &b;
+    options_ = options;
+    n_ = b.n();
     const Stream& in = b.inlet();
     Fs_ = in.total_flow();
     Ts_ = in.T;
     const double C = b.mechanism().heat_capacity_flow(in.T, in.F.data());
     Es_ = b.heat() == HeatMode::Adiabatic ? (C > 0 ? C * in.T : 1.0) : in.T;
+    iterations_ = 0;
+    solves_ = 0;
+    g_.resize(n_ + 1);
+    dg_.resize(n_ + 1, n_ + 2);
+    F_.resize(n_);
   }
 
   // Balances at a fixed volume V from `start`.
   Outcome rate(const State& start, double V) {
+    Outcome out;
+    rate(start, V, out);
+    return out;
+  }
+  // Same, into `out` (its buffers reused).
+  void rate(const State& start, double V, Outcome& out) {
     const int m = n_ + 1;
-    Eigen::VectorXd z(m), lo(m), up(m);
-    set_start(start, z, lo, up);
-    Eigen::VectorXd g(m);
-    Eigen::MatrixXd dg(m, n_ + 2);
-    std::vector<double> F(n_);
-    auto fn = [&](const Eigen::VectorXd& x, Eigen::VectorXd& f, Eigen::MatrixXd* J) {
-      const double T = unpack(x, F);
-      b_.eval(F.data(), T, V, g, J ? &dg : nullptr);
-      scale_rows(g, f, J ? &dg : nullptr, J, m);
+    Eigen::VectorXd& z = z_;
+    z.resize(m);
+    lo_.resize(m);
+    up_.resize(m);
+    set_start(start, z, lo_, up_);
+    auto fn = [this, V](const Eigen::VectorXd& x, Eigen::VectorXd& f, Eigen::MatrixXd* J) {
+      const double T = unpack(x, F_);
+      b_->eval(F_.data(), T, V, g_, J ? &dg_ : nullptr);
+      scale_rows(g_, f, J ? &dg_ : nullptr, J, n_ + 1);
     };
-    return finish(fn, z, lo, up, V, false);
+    finish(std::cref(fn), z, lo_, up_, V, false, rate_newton_, out);
   }
 
   // Volume and contents together, from `start` at V_start, such that the
   // key conversion is X_target.
   Outcome size(const State& start, double V_start, const ConversionBasis& basis, double X_target) {
     const int m = n_ + 2;
-    Eigen::VectorXd z(m), lo(m), up(m);
-    set_start(start, z, lo, up);
+    Eigen::VectorXd& z = z_;
+    z.resize(m);
+    lo_.resize(m);
+    up_.resize(m);
+    set_start(start, z, lo_, up_);
     z[n_ + 1] = std::log(V_start);
-    lo[n_ + 1] = -std::numeric_limits<double>::infinity();
-    up[n_ + 1] = std::numeric_limits<double>::infinity();
-    Eigen::VectorXd g(n_ + 1);
-    Eigen::MatrixXd dg(n_ + 1, n_ + 2);
-    std::vector<double> F(n_);
+    lo_[n_ + 1] = -std::numeric_limits<double>::infinity();
+    up_[n_ + 1] = std::numeric_limits<double>::infinity();
     auto fn = [&](const Eigen::VectorXd& x, Eigen::VectorXd& f, Eigen::MatrixXd* J) {
-      const double T = unpack(x, F);
+      const double T = unpack(x, F_);
       const double V = std::exp(x[n_ + 1]);
-      b_.eval(F.data(), T, V, g, J ? &dg : nullptr);
+      Eigen::VectorXd& g = g_;
+      Eigen::MatrixXd& dg = dg_;
+      std::vector<double>& F = F_;
+      b_->eval(F.data(), T, V, g, J ? &dg : nullptr);
       scale_rows(g, f, J ? &dg : nullptr, J, n_ + 1);
       f[n_ + 1] = basis.conversion(F.data()) - X_target;
       if (J) {
@@ -217,7 +245,9 @@ class CstrSolver {
         (*J)(n_ + 1, basis.key) = -Fs_ / basis.F_key_feed;
       }
     };
-    return finish(fn, z, lo, up, 0.0, true);
+    Outcome out;
+    finish(std::cref(fn), z, lo_, up_, 0.0, true, size_newton_, out);
+    return out;
   }
 
   // Largest change of a scaled unknown between two states.
@@ -258,17 +288,23 @@ class CstrSolver {
       (*J)(r, n_) = (*dg)(r, n_) / row_scale(r) * Ts_;
     }
   }
-  Outcome finish(const ResidualFunction& fn, Eigen::VectorXd& z, const Eigen::VectorXd& lo,
-                 const Eigen::VectorXd& up, double V, bool sizing) {
-    Outcome out;
+  // `fn` wraps a reference to the caller's lambda: a std::function holding
+  // a reference_wrapper never allocates.
+  void finish(const ResidualFunction& fn, Eigen::VectorXd& z, const Eigen::VectorXd& lo,
+              const Eigen::VectorXd& up, double V, bool sizing, NewtonWorkspace& newton,
+              Outcome& out) {
+    out.converged = false;
+    out.V = 0;
+    out.message.clear();
     NewtonResult nr;
     try {
-      nr = solve_newton(fn, z, lo, up, options_);
+      nr = solve_newton(fn, z, lo, up, options_, newton);
     } catch (const std::exception& e) {
       // A property evaluated out of its domain at the start itself.
+      out.state = State{};
       out.message = e.what();
       ++solves_;
-      return out;
+      return;
     }
     ++solves_;
     iterations_ += nr.iterations;
@@ -277,15 +313,29 @@ class CstrSolver {
     out.state.F.resize(n_);
     out.state.T = unpack(z, out.state.F);
     out.V = sizing ? std::exp(z[n_ + 1]) : V;
-    return out;
   }
 
-  const CstrBalances& b_;
+  CstrBalances* b_ = nullptr;
   NewtonOptions options_;
-  int n_;
+  int n_ = 0;
   double Fs_ = 1, Ts_ = 1, Es_ = 1;
   long iterations_ = 0;
   long solves_ = 0;
+  // Buffers of the solves; rating (n + 1 unknowns) and sizing (n + 2)
+  // keep separate Newton buffers so that neither resizes the other's.
+  Eigen::VectorXd z_, lo_, up_, g_;
+  Eigen::MatrixXd dg_;
+  std::vector<double> F_;
+  NewtonWorkspace rate_newton_, size_newton_;
+};
+
+// What a CstrWorkspace keeps between runs.
+struct Buffers {
+  explicit Buffers(const SunContext& ctx) : pfr(ctx) {}
+  PfrWorkspace pfr;  // the adiabatic-limit start
+  std::vector<double> beta;
+  CstrBalances balances, iso_balances;
+  CstrSolver solver, iso_solver;
 };
 
 struct March {
@@ -312,13 +362,14 @@ March march(CstrSolver& s, const State& from, double V_from, double V_to, int st
   const double ln_end = std::log(V_to);
   double ln_V = std::log(V_from);
   const double h = (ln_end - ln_V) / std::max(steps, 1);
+  Outcome o;  // reused by every step
   while (ln_V < ln_end) {
     double step = h;
     int halvings = 0;
     for (;;) {
       const double ln_try = (ln_V + step >= ln_end) ? ln_end : ln_V + step;
       const double V_try = (ln_try == ln_end) ? V_to : std::exp(ln_try);
-      Outcome o = s.rate(m.state, V_try);
+      s.rate(m.state, V_try, o);
       const bool jump = o.converged && s.distance(o.state, m.state) > kMaxStateChange;
       if (o.converged && (!jump || halvings >= kMaxHalvings)) {
         m.previous = m.state;
@@ -366,7 +417,7 @@ March feed_branch(CstrSolver& s, const Stream& inlet, double V_first, double V_t
   Outcome first;
   double V0 = V_first;
   for (int k = 0; k <= kFirstVolumeRetries; ++k, V0 *= 1e-3) {
-    first = s.rate(feed, V0);
+    s.rate(feed, V0, first);
     if (first.converged) break;
   }
   if (!first.converged) {
@@ -417,8 +468,9 @@ struct Rating {
 Rating rate_all(CstrSolver& s, const Stream& inlet, double V, const std::vector<State>& starts,
                 const CstrOptions& options) {
   Rating out;
+  Outcome o;
   for (const auto& st : starts) {
-    Outcome o = s.rate(st, V);
+    s.rate(st, V, o);
     if (o.converged)
       add_distinct(out.states, o.state, options.distinct_T, s);
     else
@@ -444,18 +496,53 @@ State between(const State& a, const State& b, double f) {
   return s;
 }
 
-// `first`, the adiabatic limit and points between them.
-std::vector<State> starts_from(const State& first, const Mechanism& mech, HeatMode heat,
-                               const std::vector<double>& beta, const Stream& inlet,
-                               const SunContext& ctx, const CstrOptions& options) {
-  std::vector<State> starts{first};
-  try {
-    const Stream lim = adiabatic_limit(mech, beta, inlet, heat, ctx, options.pfr);
-    const State limit{lim.F, lim.T};
-    starts.push_back(limit);
-    for (double f : kBetween) starts.push_back(between(first, limit, f));
-  } catch (const SolverError&) {
-    // No limit start: the others and the continuation remain.
+// The tank's adiabatic limit (see adiabatic_limit), computed at most once
+// per run: it is the costliest start (a CVODE run through a practically
+// unlimited bed), and sizing asks for it up to three times.
+class LimitOnce {
+ public:
+  LimitOnce(const Mechanism& mech, const std::vector<double>& beta, const Stream& inlet,
+            HeatMode heat, PfrWorkspace& pfr, const PfrOptions& options)
+      : mech_(mech), beta_(beta), inlet_(inlet), heat_(heat), pfr_(pfr), options_(options) {}
+  // nullptr when the integration failed (SolverError).
+  const Stream* get() {
+    if (!tried_) {
+      tried_ = true;
+      try {
+        value_ = adiabatic_limit(mech_, beta_, inlet_, heat_, pfr_, options_);
+      } catch (const SolverError&) {
+      }
+    }
+    return value_ ? &*value_ : nullptr;
+  }
+
+ private:
+  const Mechanism& mech_;
+  const std::vector<double>& beta_;
+  const Stream& inlet_;
+  HeatMode heat_;
+  PfrWorkspace& pfr_;
+  const PfrOptions& options_;
+  bool tried_ = false;
+  std::optional<Stream> value_;
+};
+
+// The guesses, then `first`, the adiabatic limit and points between them.
+std::vector<State> starts_from(std::span<const SteadyState> guesses, const State& first,
+                               const Stream& inlet, LimitOnce& limit) {
+  std::vector<State> starts;
+  starts.reserve(guesses.size() + 2 + kBetween.size());
+  for (const auto& g : guesses) {
+    if (g.F.size() != inlet.F.size())
+      throw std::invalid_argument("CstrOptions::guesses: a guess has the wrong number of flows");
+    starts.push_back(State{g.F, g.T});
+  }
+  starts.push_back(first);
+  // Without the limit start, the others and the continuation remain.
+  if (const Stream* lim = limit.get()) {
+    const State limit_state{lim->F, lim->T};
+    starts.push_back(limit_state);
+    for (double f : kBetween) starts.push_back(between(first, limit_state, f));
   }
   return starts;
 }
@@ -463,23 +550,22 @@ std::vector<State> starts_from(const State& first, const Mechanism& mech, HeatMo
 // Every steady state of a tank of volume V, and the one reached from the
 // feed. Starts: (a) the isothermal solution at T_in (the feed itself for
 // an isothermal tank), (b) the adiabatic limit, (c) points between; the
-// continuation from V -> 0 runs in any case. `extra` counts the solves of
-// the isothermal pre-solve.
-Rating rate_tank(const Mechanism& mech, HeatMode heat, const std::vector<double>& beta,
-                 const Stream& inlet, double V, const SunContext& ctx, const CstrOptions& options,
-                 CstrSolver& solver, Counts& extra) {
+// continuation from V -> 0 runs in any case. Warm starts
+// (options.guesses) come first. `extra` counts the solves of the
+// isothermal pre-solve.
+Rating rate_tank(const Mechanism& mech, HeatMode heat, const Stream& inlet, double V,
+                 const CstrOptions& options, Buffers& ws, LimitOnce& limit, Counts& extra) {
   const State feed{inlet.F, inlet.T};
   State first = feed;
   if (heat == HeatMode::Adiabatic) {
-    const CstrBalances iso(mech, beta, HeatMode::Isothermal, inlet);
-    CstrSolver iso_solver(iso, options.newton);
-    Rating r = rate_all(iso_solver, inlet, V, {feed}, options);
-    extra.iterations += iso_solver.iterations();
-    extra.solves += iso_solver.solves();
+    ws.iso_balances.reset(mech, ws.beta, HeatMode::Isothermal, inlet);
+    ws.iso_solver.reset(ws.iso_balances, options.newton);
+    Rating r = rate_all(ws.iso_solver, inlet, V, {feed}, options);
+    extra.iterations += ws.iso_solver.iterations();
+    extra.solves += ws.iso_solver.solves();
     if (r.reached) first = *r.reached;
   }
-  return rate_all(solver, inlet, V, starts_from(first, mech, heat, beta, inlet, ctx, options),
-                  options);
+  return rate_all(ws.solver, inlet, V, starts_from(options.guesses, first, inlet, limit), options);
 }
 
 // "300.72 K, 334.79 K and 499.99 K"
@@ -496,18 +582,15 @@ const char* limit_name(HeatMode heat) {
   return heat == HeatMode::Adiabatic ? "adiabatic equilibrium" : "equilibrium";
 }
 
-[[noreturn]] void throw_out_of_reach(const Mechanism& mech, const ReactorSpec& spec,
-                                     const std::vector<double>& beta, const Stream& inlet,
-                                     const ConversionBasis& basis, const SunContext& ctx,
-                                     const CstrOptions& options, double X_target) {
+[[noreturn]] void throw_out_of_reach(const ReactorSpec& spec, const ConversionBasis& basis,
+                                     LimitOnce& limit, double X_target) {
   std::string msg;
-  try {
-    const Stream lim = adiabatic_limit(mech, beta, inlet, spec.heat, ctx, options.pfr);
+  if (const Stream* lim = limit.get()) {
     msg = fmt::format(
         "stage {}: target conversion {:.4f} is out of reach; the most this stage can reach is "
         "X = {:.4f} (at T = {:.2f} K, the {} limit)",
-        spec.id, X_target, basis.conversion(lim), lim.T, limit_name(spec.heat));
-  } catch (const SolverError&) {
+        spec.id, X_target, basis.conversion(*lim), lim->T, limit_name(spec.heat));
+  } else {
     msg = fmt::format(
         "stage {}: target conversion {:.4f} is out of reach: the net rate there is zero or "
         "negative (at or beyond the {} limit)",
@@ -518,13 +601,34 @@ const char* limit_name(HeatMode heat) {
 
 }  // namespace
 
+struct CstrWorkspace::State : Buffers {
+  using Buffers::Buffers;
+};
+
+CstrWorkspace::CstrWorkspace(const SunContext& ctx) : state_(std::make_unique<State>(ctx)) {}
+CstrWorkspace::~CstrWorkspace() = default;
+CstrWorkspace::CstrWorkspace(CstrWorkspace&&) noexcept = default;
+CstrWorkspace& CstrWorkspace::operator=(CstrWorkspace&&) noexcept = default;
+
 StageResult run_cstr(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
                      const ConversionBasis& basis, const SunContext& ctx,
                      const CstrOptions& options) {
+  CstrWorkspace ws(ctx);
+  return run_cstr(mech, spec, inlet, basis, ws, options);
+}
+
+StageResult run_cstr(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
+                     const ConversionBasis& basis, CstrWorkspace& workspace,
+                     const CstrOptions& options) {
   const int n = mech.n_species();
-  const std::vector<double> beta = rate_multipliers(mech, spec);
-  const CstrBalances balances(mech, beta, spec.heat, inlet);
-  CstrSolver solver(balances, options.newton);
+  Buffers& ws = workspace.state();
+  ws.beta = rate_multipliers(mech, spec);
+  const std::vector<double>& beta = ws.beta;
+  CstrBalances& balances = ws.balances;
+  balances.reset(mech, beta, spec.heat, inlet);
+  CstrSolver& solver = ws.solver;
+  solver.reset(balances, options.newton);
+  LimitOnce limit(mech, beta, inlet, spec.heat, ws.pfr, options.pfr);
   Counts extra;  // the isothermal pre-solve
 
   const double X_in = basis.conversion(inlet);
@@ -546,14 +650,14 @@ StageResult run_cstr(const Mechanism& mech, const ReactorSpec& spec, const Strea
       // the energy balance then fixes T and the rate there fixes V.
       const auto& nu = mech.reactions()[0].nu;
       const double nu_key = nu[basis.key];
-      if (!(nu_key < 0)) throw_out_of_reach(mech, spec, beta, inlet, basis, ctx, options, X_t);
+      if (!(nu_key < 0)) throw_out_of_reach(spec, basis, limit, X_t);
       const double extent = (X_t - X_in) * basis.F_key_feed / -nu_key;
       out.F.resize(n);
       for (int i = 0; i < n; ++i) {
         out.F[i] = inlet.F[i] + nu[i] * extent;
         // Round-off of a reactant used up exactly is not a shortage.
         if (out.F[i] < 0 && out.F[i] > -1e-12 * inlet.total_flow()) out.F[i] = 0;
-        if (out.F[i] < 0) throw_out_of_reach(mech, spec, beta, inlet, basis, ctx, options, X_t);
+        if (out.F[i] < 0) throw_out_of_reach(spec, basis, limit, X_t);
       }
       out.T = inlet.T;
       if (spec.heat == HeatMode::Adiabatic) {
@@ -567,9 +671,8 @@ StageResult run_cstr(const Mechanism& mech, const ReactorSpec& spec, const Strea
               fmt::format("{}: outlet temperature at X = {:.4f}: {}", spec.id, X_t, e.what()));
         }
       }
-      const double R = balances.volumetric_rates(out.F.data(), out.T)[0];
-      if (!(R > 0) || !std::isfinite(R))
-        throw_out_of_reach(mech, spec, beta, inlet, basis, ctx, options, X_t);
+      const double R = balances.volumetric_rate(out.F.data(), out.T, 0);
+      if (!(R > 0) || !std::isfinite(R)) throw_out_of_reach(spec, basis, limit, X_t);
       V = extent / R;
     } else {
       // Several reactions: follow the feed branch in volume until the
@@ -578,8 +681,7 @@ StageResult run_cstr(const Mechanism& mech, const ReactorSpec& spec, const Strea
       const double V_end = options.pfr.max_space_time * v0;
       auto reached = [&](const State& st) { return basis.conversion(st.F.data()) >= X_t; };
       // Where the branch turns (ignition), these starts find where it lands.
-      const std::vector<State> fallbacks =
-          starts_from(State{inlet.F, inlet.T}, mech, spec.heat, beta, inlet, ctx, options);
+      const std::vector<State> fallbacks = starts_from({}, State{inlet.F, inlet.T}, inlet, limit);
       March m = feed_branch(solver, inlet, V_end * std::pow(10.0, -kSizingDecades), V_end,
                             options.continuation_steps, fallbacks, reached);
       if (!m.ok)
@@ -587,7 +689,7 @@ StageResult run_cstr(const Mechanism& mech, const ReactorSpec& spec, const Strea
             fmt::format("{}: sizing by continuation in volume failed ({}); try: a lower target "
                         "conversion, a different feed temperature, or give a volume to rate",
                         spec.id, m.message));
-      if (!reached(m.state)) throw_out_of_reach(mech, spec, beta, inlet, basis, ctx, options, X_t);
+      if (!reached(m.state)) throw_out_of_reach(spec, basis, limit, X_t);
       // Start from the point interpolated linearly in X inside the bracket.
       const double X0 = basis.conversion(m.previous.F.data());
       const double X1 = basis.conversion(m.state.F.data());
@@ -630,7 +732,7 @@ StageResult run_cstr(const Mechanism& mech, const ReactorSpec& spec, const Strea
     // other steady states, and start-up from the feed may settle in one of
     // them. Rating it tells the designer (a failure here only skips that).
     try {
-      Rating r = rate_tank(mech, spec.heat, beta, inlet, V, ctx, options, solver, extra);
+      Rating r = rate_tank(mech, spec.heat, inlet, V, options, ws, limit, extra);
       for (const auto& st : r.states) add_distinct(states, st, options.distinct_T, solver);
       if (states.size() > 1) {
         const bool reached = r.reached && same_state(*r.reached, out, options.distinct_T, solver);
@@ -655,7 +757,7 @@ StageResult run_cstr(const Mechanism& mech, const ReactorSpec& spec, const Strea
                                    "volume: 2 m3), a catalyst_mass with bulk_density, or a "
                                    "target_conversion",
                                    spec.id));
-    Rating r = rate_tank(mech, spec.heat, beta, inlet, V, ctx, options, solver, extra);
+    Rating r = rate_tank(mech, spec.heat, inlet, V, options, ws, limit, extra);
     if (r.states.empty())
       throw SolverError(fmt::format(
           "{} at V = {:.6g} m3: Newton did not converge from any start ({}); try: check the "

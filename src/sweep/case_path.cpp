@@ -78,6 +78,7 @@ CasePathTable::CasePathTable(const Case& base) {
   for (std::size_t k = 0; k < base.train.size(); ++k) {
     const int ki = static_cast<int>(k);
     if (const auto* r = std::get_if<ReactorSpec>(&base.train[k])) {
+      if (r->type == ReactorType::Cstr) has_stirred_tank_ = true;
       const std::string pre = "train." + r->id + ".";
       if (r->catalyst_mass)
         paths_.push_back(

@@ -26,6 +26,7 @@ PointResult evaluate_point(const Case& point, const OutputSpec& outputs, PointWo
     check_finite(r);  // no NaN may become a number in a row
     p.outputs.reserve(n);
     for (std::size_t i = 0; i < n; ++i) p.outputs.push_back(outputs.extract(i, r));
+    set_warm_starts(r, ws.train.warm_starts);
     return p;
   } catch (const InfeasibleError& e) {
     p.status = RunStatus::Infeasible;
@@ -40,6 +41,7 @@ PointResult evaluate_point(const Case& point, const OutputSpec& outputs, PointWo
     p.message = e.what();
   }
   p.outputs.assign(n, std::nullopt);
+  ws.train.warm_starts.clear();
   return p;
 }
 

@@ -230,6 +230,8 @@ std::vector<std::string> Study::definition() const {
           fmt::format("vary: {}={}{}:{}:{}", a.name, a.log ? "log:" : "", a.start, a.stop, a.n));
     out.push_back(fmt::format("runs: {}", run_count()));
   }
+  // The rows depend on it (warm starts), so shards must share it.
+  out.push_back(fmt::format("chain: {}", chain_length()));
   return out;
 }
 
@@ -259,6 +261,7 @@ Study parse_study(const std::vector<std::string>& vary, const std::vector<std::s
         fail("--vary", fmt::format("the grid holds more than {} runs", kMaxRuns));
       m *= s.axes.back().n;
     }
+    s.chain = table.has_stirred_tank() ? kGridChainLength : 1;
     return s;
   }
   if (runs < 1) fail("--runs", "--sample needs --runs N (N >= 1 runs)");

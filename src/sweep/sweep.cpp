@@ -1,5 +1,7 @@
 #include "rxtrain/sweep/sweep.hpp"
 
+#include <atomic>
+
 #include "rxtrain/sweep/thread_pool.hpp"
 
 namespace rxtrain::sweep {
@@ -11,7 +13,13 @@ std::vector<RunRow> run_sweep(const Case& base, const CasePathTable& table, cons
   const auto range = options.shard.range(study.run_count());
   const std::size_t first = range.first, last = range.second;
   const std::size_t count = last - first;
-  const std::size_t jobs = std::min(resolve_jobs(options.jobs), std::max<std::size_t>(count, 1));
+  if (count == 0) return {};
+  // The chains that hold runs of this shard; the first may begin before
+  // `first` (its earlier runs are recomputed, not written).
+  const std::size_t chain = study.chain_length();
+  const std::size_t first_chain = first / chain;
+  const std::size_t chains = (last - 1) / chain + 1 - first_chain;
+  const std::size_t jobs = std::min(resolve_jobs(options.jobs), chains);
   const CaseEditor editor(table, study.paths());
   const std::size_t n_inputs = study.paths().size();
 
@@ -32,27 +40,42 @@ std::vector<RunRow> run_sweep(const Case& base, const CasePathTable& table, cons
   }
 
   std::vector<RunRow> rows(count);
+  std::atomic<std::size_t> done{0};  // runs of this shard finished
+  // One run into `row`; evaluate_point passes its steady states on to the
+  // worker's next run (or none when it failed).
+  const auto run_one = [&](RunRow& row, Worker& wk) {
+    row.inputs.assign(n_inputs, 0.0);
+    study.inputs(row.run, row.inputs);
+    try {
+      editor.apply(base, row.inputs, wk.work);
+    } catch (const InputError& e) {
+      row.result.status = RunStatus::InvalidInput;
+      row.result.message = e.message();
+      row.result.outputs.assign(outputs.columns().size(), std::nullopt);
+      // The working case may be half edited: start the next run afresh.
+      wk.work = base;
+      wk.ws.train.warm_starts.clear();
+      return;
+    }
+    row.result = evaluate_point(wk.work, outputs, wk.ws);
+  };
+  // A thread takes a whole chain, so each run follows its predecessor.
   parallel_for(
-      count, jobs,
-      [&](std::size_t i, std::size_t w) {
-        RunRow& row = rows[i];
-        row.run = first + i;
-        row.inputs.assign(n_inputs, 0.0);
-        study.inputs(row.run, row.inputs);
+      chains, jobs,
+      [&](std::size_t c, std::size_t w) {
         Worker& wk = workers[w];
-        try {
-          editor.apply(base, row.inputs, wk.work);
-        } catch (const InputError& e) {
-          row.result.status = RunStatus::InvalidInput;
-          row.result.message = e.message();
-          row.result.outputs.assign(outputs.columns().size(), std::nullopt);
-          // The working case may be half edited: start the next run afresh.
-          wk.work = base;
-          return;
+        wk.ws.train.warm_starts.clear();  // a chain starts cold
+        const std::size_t begin = (first_chain + c) * chain;
+        const std::size_t end = std::min(begin + chain, last);
+        RunRow before;  // a run of the chain before this shard's first
+        for (std::size_t run = begin; run < end; ++run) {
+          RunRow& row = run < first ? before : rows[run - first];
+          row.run = run;
+          run_one(row, wk);
+          if (run >= first) done.fetch_add(1);
         }
-        row.result = evaluate_point(wk.work, outputs, wk.ws);
       },
-      options.progress ? [&](std::size_t done) { options.progress(done, count); }
+      options.progress ? [&](std::size_t) { options.progress(done.load(), count); }
                        : std::function<void(std::size_t)>{},
       options.progress_period);
   return rows;

@@ -35,9 +35,22 @@ struct NewtonResult {
 using ResidualFunction =
     std::function<void(const Eigen::VectorXd& x, Eigen::VectorXd& f, Eigen::MatrixXd* J)>;
 
+// The solver's vectors, Jacobian and LU factors, kept between solves of
+// one size so that repeated solves allocate nothing (a change of size
+// resizes them once). Reuse does not change results. One per thread.
+struct NewtonWorkspace {
+  Eigen::VectorXd f, f_trial, x_trial, dx, bent;
+  Eigen::MatrixXd J;
+  Eigen::PartialPivLU<Eigen::MatrixXd> lu;
+};
+
 // Solves f(x) = 0 from x (updated in place) with lower <= x <= upper.
 NewtonResult solve_newton(const ResidualFunction& fn, Eigen::VectorXd& x,
                           const Eigen::VectorXd& lower, const Eigen::VectorXd& upper,
                           const NewtonOptions& options = {});
+// Same, with the buffers of `ws` (the results are the same).
+NewtonResult solve_newton(const ResidualFunction& fn, Eigen::VectorXd& x,
+                          const Eigen::VectorXd& lower, const Eigen::VectorXd& upper,
+                          const NewtonOptions& options, NewtonWorkspace& ws);
 
 }  // namespace rxtrain

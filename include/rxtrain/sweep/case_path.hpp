@@ -84,9 +84,13 @@ class CasePathTable {
   std::size_t find(std::string_view name, const std::string& option) const;
   // The base case's value of path i (SI).
   double base_value(std::size_t i, const Case& base) const;
+  // Whether the case's train holds a stirred tank (the only stage that
+  // takes warm starts; see Study::chain).
+  bool has_stirred_tank() const { return has_stirred_tank_; }
 
  private:
   std::vector<CasePath> paths_;
+  bool has_stirred_tank_ = false;
 };
 
 // Writes values of chosen paths into a working copy of the base case.

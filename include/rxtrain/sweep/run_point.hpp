@@ -34,16 +34,23 @@ struct PointResult {
 // What one thread keeps between its runs: the train options and the
 // solver state (CVODE re-initialized, not re-created, from run to run).
 // Reuse does not change results: a reused workspace gives exactly the
-// numbers of a fresh one (tests/sparse_jacobian_test.cpp), so output stays
-// identical whatever the number of threads or shards.
+// numbers of a fresh one (tests/sparse_jacobian_test.cpp,
+// tests/cstr_test.cpp). What does carry over is explicit: the warm starts
+// in train.warm_starts, which evaluate_point() sets from each run for the
+// next and the sweep clears where a chain starts (sweep.hpp), so output
+// stays identical whatever the number of threads or shards.
 struct PointWorkspace {
   TrainOptions train;
   TrainWorkspace solver{};
 };
 
-// Runs the train of `point` and extracts every column. Never throws for
-// a failure of the run itself (it becomes the status and message); lets
-// other exceptions (out of memory, programmer errors) through.
+// Runs the train of `point` (stirred tanks warm-started from
+// ws.train.warm_starts) and extracts every column; then sets
+// ws.train.warm_starts to this run's stirred-tank steady states, or
+// clears them when the run failed (a failed run passes no guess on).
+// Never throws for a failure of the run itself (it becomes the status and
+// message); lets other exceptions (out of memory, programmer errors)
+// through.
 PointResult evaluate_point(const Case& point, const OutputSpec& outputs, PointWorkspace& ws);
 
 }  // namespace rxtrain::sweep

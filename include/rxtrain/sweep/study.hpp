@@ -10,8 +10,17 @@
 // Shard K of N (1-based) takes the contiguous block of runs
 //   [floor((K-1) M / N), floor(K M / N))   of the M runs,
 // so shards 1..N together hold every run once, in order.
+//
+// Chains: the runs are cut into fixed chains of `chain` consecutive runs,
+// [0, L), [L, 2L), ... In a chain every run's stirred tanks are
+// warm-started from the previous run's steady states; a chain's first run
+// (and any run after a failed one) starts cold. The chains depend only on
+// the study and its case, never on --jobs or --shard, so every run sees
+// the same predecessor however the study is split, and its row is the
+// same.
 #pragma once
 
+#include <algorithm>
 #include <cstddef>
 #include <cstdint>
 #include <span>
@@ -24,6 +33,14 @@
 #include "rxtrain/units.hpp"
 
 namespace rxtrain::sweep {
+
+// Runs per chain of a grid over a case with a stirred tank: neighbouring
+// grid points are close, so the previous point's steady states are good
+// Newton starts. Long chains cost parallelism (a thread takes a whole
+// chain) and recomputation (a shard that starts inside a chain reruns its
+// earlier runs, up to L - 1), short ones cold starts; 16 keeps both small
+// for sweeps of a few hundred runs.
+inline constexpr std::size_t kGridChainLength = 16;
 
 // One grid axis: n values from start to stop (SI), evenly spaced, or
 // evenly spaced in ln for a logarithmic axis; the ends are exact.
@@ -48,9 +65,16 @@ struct Study {
   std::vector<SampledInput> samples;  // or a Monte Carlo study
   std::size_t runs = 0;               // Monte Carlo: number of runs
   std::uint64_t seed = 0;             // Monte Carlo: the generator's seed
+  // Runs per warm-start chain: kGridChainLength for a grid over a case
+  // with a stirred tank; 1 (every run cold, each handed out alone) for a
+  // case without one, which has nothing to warm-start, and for Monte
+  // Carlo, whose consecutive runs are independent draws, so a neighbour's
+  // state is no better a start than a cold one.
+  std::size_t chain = 1;
 
   bool monte_carlo() const { return !samples.empty(); }
   std::size_t run_count() const;
+  std::size_t chain_length() const { return std::max<std::size_t>(chain, 1); }
   std::vector<std::size_t> paths() const;        // table indices, input order
   std::vector<std::string> input_names() const;  // the paths, input order
   // The inputs (SI) of run `run`, in input order; out.size() == inputs.

@@ -1,13 +1,16 @@
 // Runs a study: every run of the shard, each on a working copy of the
 // case edited by a CaseEditor (the case is never parsed or validated
-// again), in parallel, rows in run order. The rows are the same for any
-// number of jobs: each run depends only on its own inputs.
+// again), in parallel, rows in run order.
 //
-// Stirred tanks are not warm-started from the neighbouring point: Newton's
-// converged answer depends on its start in the last digits, so a guess
-// from whichever run a thread or shard did before would make rows differ
-// between --jobs and --shard settings (CstrOptions has no guess field
-// either). Every point starts from the stage's own starts.
+// Stirred tanks are warm-started along the study's fixed chains of
+// consecutive runs (study.hpp): inside a chain each run's tanks get the
+// previous run's steady states as first Newton starts (TrainOptions::
+// warm_starts), then their cold starts. Newton's converged answer depends
+// on its start in the last digits, so a run must always see the same
+// predecessor: a thread takes whole chains, each chain's first run starts
+// cold, a failed run passes nothing on, and a shard that begins inside a
+// chain first recomputes that chain's earlier runs (without writing them).
+// The rows are then the same for any number of jobs and any sharding.
 #pragma once
 
 #include <chrono>
