@@ -105,6 +105,7 @@ Work work_of(const TrainResult& r) {
 TrainOptions core_options() {
   TrainOptions o;
   o.equilibrium_views = false;  // the train alone, as a sweep runs it
+  o.pfr.full_profile = false;
   return o;
 }
 

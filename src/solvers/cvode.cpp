@@ -397,6 +397,23 @@ CvodeIntegrator::Event CvodeIntegrator::step(double t_out, double& t, std::vecto
   return Event::Step;
 }
 
+CvodeIntegrator::Event CvodeIntegrator::advance(double t_out, double& t, std::vector<double>& y) {
+  Impl& m = *impl_;
+  m.last_error.clear();
+  // CVODE's own step limit (CVodeSetMaxNumSteps) counts per call here.
+  sunrealtype tret = 0;
+  const int flag = CVode(m.mem.get(), t_out, m.y.get(), &tret, CV_NORMAL);
+  if (flag == CV_TOO_MUCH_WORK)
+    throw SolverError("CVODE took max_steps = " + std::to_string(m.options.max_steps) +
+                      " steps without reaching the end");
+  m.check(flag, "CVODE");
+  t = tret;
+  y.assign(N_VGetArrayPointer(m.y.get()), N_VGetArrayPointer(m.y.get()) + m.n);
+  // CV_SUCCESS here means t_out was reached (CVODE reports t_out before
+  // the stop time when the two coincide).
+  return flag == CV_ROOT_RETURN ? Event::Root : Event::Stop;
+}
+
 std::vector<int> CvodeIntegrator::roots_found() const {
   std::vector<int> info(impl_->n_roots, 0);
   if (impl_->n_roots > 0)

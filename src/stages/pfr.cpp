@@ -474,22 +474,24 @@ StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream
     ode.interpolate(V_ext, 0, y_ext.data());
     record(V_ext, y_ext);
   };
+  // With one reaction dT/dV = -dH r / sum F cp: r keeps its sign along a
+  // bed (the reaction approaches its equilibrium without crossing it) and
+  // so does dH over the few hundred kelvin of one bed, so T is monotonic
+  // and its extremes are the end points (isothermal: T is constant).
+  const bool monotonic = !adiabatic || mech.n_reactions() == 1;
+  const bool every_step = options.full_profile || !monotonic;
   while (!stopped) {
     CvodeIntegrator::Event ev;
     try {
-      ev = ode.step(V_end, V, y);
+      ev = every_step ? ode.step(V_end, V, y) : ode.advance(V_end, V, y);
     } catch (const SolverError& e) {
       throw SolverError(fmt::format(
           "{} at V = {:.6g} m3 (of {:.6g} m3): {}; try: check the units and size of A and Ea "
           "(a rate far too fast or too slow), split the stage at that volume, or loosen --rtol",
           spec.id, V, V_end, e.what()));
     }
-    // With one reaction dT/dV = -dH r / sum F cp: r keeps its sign along a
-    // bed (the reaction approaches its equilibrium without crossing it) and
-    // so does dH over the few hundred kelvin of one bed, so T is monotonic
-    // and its extremes are the end points: the search is for several
-    // reactions only.
-    if (adiabatic && mech.n_reactions() > 1) {
+    // A temperature extreme inside the last step (several reactions only).
+    if (!monotonic) {
       const double V_prev = res.profile.back().V;
       const double s_now = slope_at(V);
       if ((slope > 0 && s_now < 0) || (slope < 0 && s_now > 0))
@@ -559,7 +561,7 @@ Stream adiabatic_limit(const Mechanism& mech, const std::vector<double>& multipl
   ode.set_stop_time(V_end);
   std::vector<double>& y = st.y;
   double V = 0;
-  while (ode.step(V_end, V, y) != CvodeIntegrator::Event::Stop) {
+  while (ode.advance(V_end, V, y) != CvodeIntegrator::Event::Stop) {
   }
   Stream out{y[n], inlet.P, std::vector<double>(y.begin(), y.begin() + n)};
   for (auto& f : out.F) f = std::max(f, 0.0);

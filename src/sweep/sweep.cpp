@@ -37,6 +37,8 @@ std::vector<RunRow> run_sweep(const Case& base, const CasePathTable& table, cons
     workers.back().work = base;
     workers.back().ws.train = options.train;
     workers.back().ws.train.equilibrium_views = outputs.needs_equilibrium_views();
+    // Without the views nothing reads the profiles: outlets only.
+    workers.back().ws.train.pfr.full_profile = outputs.needs_equilibrium_views();
   }
 
   std::vector<RunRow> rows(count);

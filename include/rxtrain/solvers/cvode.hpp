@@ -122,6 +122,11 @@ class CvodeIntegrator {
   // One internal step towards t_out (never past the stop time). On return
   // t, y hold the new point. Throws SolverError on failure.
   Event step(double t_out, double& t, std::vector<double>& y);
+  // Integrates towards t_out without returning after every step: stops at
+  // a root (Event::Root), or at t_out or the stop time, whichever comes
+  // first (Event::Stop). Same steps, same results as calling step() until
+  // there; less overhead when the intermediate points are not wanted.
+  Event advance(double t_out, double& t, std::vector<double>& y);
   // Which roots fired at the last Root event (+1/-1 rising/falling, 0 none).
   std::vector<int> roots_found() const;
   // Interpolated solution at t inside the last step.

@@ -46,6 +46,14 @@ struct PfrOptions {
   // stats.message says so. A stage whose inlet is already at or beyond it
   // (on the side it moves to) ends at V = 0. Unset: no such stop.
   std::optional<double> stop_temperature;
+  // Keep every integrator step as a profile point (reports, figures, the
+  // design checks). When false, a stage whose temperature is monotonic
+  // (one reaction, or isothermal) integrates to its end in one call and
+  // keeps its inlet and outlet (and any root it stopped at) only: the same
+  // steps, outlet and volume; T_max and T_min can differ by the integration
+  // tolerance (a full profile near equilibrium may hold an overshoot of that
+  // size). Sweeps that need no equilibrium views turn it off.
+  bool full_profile = true;
   // Dense or sparse linear algebra; the results agree to the tolerances
   // (both use the exact Jacobian), only the cost differs.
   JacobianForm jacobian = JacobianForm::Automatic;
