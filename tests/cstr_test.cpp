@@ -17,6 +17,7 @@
 #include "rxtrain/error.hpp"
 #include "rxtrain/train.hpp"
 #include "rxtrain/units.hpp"
+#include "s_curve_tank.hpp"
 
 namespace {
 
@@ -448,23 +449,6 @@ void require_same_tank(const StageResult& a, const StageResult& b) {
   }
 }
 
-// The S-curve tank of the tests above as a case file (the same invented
-// data): pure A at 10 mol/s, v0 = 1e-3 m3/s, so tau = V / 1e-3 m3/s.
-constexpr const char* kSCurveCase = R"(title: S-curve tank (invented data)
-phase: liquid
-species:
-  - {id: A, mw: 0.1 kg/mol, density: 1000 kg/m3, thermo: {cp: 150 J/mol/K}}
-  - {id: B, mw: 0.1 kg/mol, density: 1000 kg/m3, thermo: {cp: 150 J/mol/K}}
-reactions:
-  - id: r1
-    equation: A => B
-    rate: {A: 1, Ea: 99773.55 J/mol, T_ref: 350 K, orders: {A: 1}}
-    dH: -30 kJ/mol
-feed: {T: 300 K, P: 2 bar, flows: {A: 10 mol/s}}
-key: A
-train:
-  - {type: cstr, id: R1, volume: 1e-3 m3}
-)";
 
 }  // namespace
 
@@ -516,7 +500,7 @@ TEST_CASE("a reused TrainWorkspace gives the results of fresh runs with stirred 
   const rxtrain::UnitParser units;
   const rxtrain::Case demo =
       rxtrain::load_case(RXTRAIN_SOURCE_DIR "/cases/liquid-tank-then-tube.yaml", units);
-  const rxtrain::Case s_curve = rxtrain::load_case_from_string(kSCurveCase, "s.yaml", units);
+  const rxtrain::Case s_curve = rxtrain::load_case_from_string(rxtrain::test::kSCurveTank, "s.yaml", units);
   rxtrain::TrainOptions o;
   o.equilibrium_views = false;
   const rxtrain::TrainResult fresh_demo = rxtrain::run_train(demo, o);

@@ -25,6 +25,7 @@
 #include "rxtrain/sweep/sweep_csv.hpp"
 #include "rxtrain/train.hpp"
 #include "rxtrain/units.hpp"
+#include "s_curve_tank.hpp"
 
 using namespace rxtrain;
 using namespace rxtrain::sweep;
@@ -69,25 +70,6 @@ train:
   - {type: pfr, id: R1, target: {conversion: 0.3}, heat: isothermal}
 )";
 
-// An adiabatic stirred tank with up to three steady states (invented
-// data, the S-curve tank of tests/cstr_test.cpp): pure A at 10 mol/s,
-// v0 = 1e-3 m3/s; tau = V / v0 from 0.1 s to 10 s spans the region of
-// three states and ignition (near tau = 3.5 s).
-constexpr const char* kSCurveTank = R"(title: S-curve tank (invented data)
-phase: liquid
-species:
-  - {id: A, mw: 0.1 kg/mol, density: 1000 kg/m3, thermo: {cp: 150 J/mol/K}}
-  - {id: B, mw: 0.1 kg/mol, density: 1000 kg/m3, thermo: {cp: 150 J/mol/K}}
-reactions:
-  - id: r1
-    equation: A => B
-    rate: {A: 1, Ea: 99773.55 J/mol, T_ref: 350 K, orders: {A: 1}}
-    dH: -30 kJ/mol
-feed: {T: 300 K, P: 2 bar, flows: {A: 10 mol/s}}
-key: A
-train:
-  - {type: cstr, id: R1, volume: 1e-3 m3}
-)";
 
 std::string demo_text() {
   std::ifstream in(std::filesystem::path(RXTRAIN_SOURCE_DIR) / "cases" /
@@ -351,7 +333,7 @@ TEST_CASE("rows and CSV are identical for any number of jobs and shards", "[swee
 }
 
 TEST_CASE("warm-started stirred tanks give the same rows for any jobs and shards", "[sweep]") {
-  const Fixture f(kSCurveTank);
+  const Fixture f(test::kSCurveTank);
   // 40 runs: chains [0, 16), [16, 32), [32, 40); shards of 3 and 7 begin
   // inside chains, so they must recompute the chains' earlier runs.
   const Study s = f.study({"train.R1.volume=log:1e-4:1e-2:40"});
@@ -403,7 +385,7 @@ TEST_CASE("warm-started stirred tanks give the same rows for any jobs and shards
 }
 
 TEST_CASE("a run passes its tanks' steady states on; a failed run passes none", "[sweep]") {
-  const Fixture tank(kSCurveTank);
+  const Fixture tank(test::kSCurveTank);
   PointWorkspace ws;
   ws.train.equilibrium_views = false;
   const OutputSpec o = OutputSpec::defaults(tank.c);
