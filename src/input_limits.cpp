@@ -48,6 +48,21 @@ void check_utf8(std::string_view text, const std::string& name) {
                        fmt::format("case file is not valid UTF-8: byte 0x{:02X} cannot start or "
                                    "continue a character here; save the file as UTF-8",
                                    static_cast<unsigned char>(text[i])));
+    // YAML's character set (YAML 1.2.2, section 5.1, c-printable) has no
+    // control characters but tab, line feed and carriage return (and U+0085).
+    // yaml-cpp 0.7 does not refuse them, and a NUL before a ',' hides the
+    // token start from the pre-parse check below and hangs its parser.
+    const unsigned b0 = static_cast<unsigned char>(text[i]);
+    const unsigned b1 = len == 2 ? static_cast<unsigned char>(text[i + 1]) : 0u;
+    const bool c0 = len == 1 && (b0 < 0x20 || b0 == 0x7F) && b0 != '\t' && b0 != '\n' &&
+                    b0 != '\r';
+    const bool c1 = len == 2 && b0 == 0xC2 && b1 >= 0x80 && b1 <= 0x9F && b1 != 0x85;
+    if (c0 || c1)
+      throw InputError({name, line, column},
+                       fmt::format("case file has a control character (U+{:04X}) here; YAML "
+                                   "allows only tab, line feed and carriage return; remove it "
+                                   "(was the file saved as UTF-16, or is it binary?)",
+                                   c0 ? b0 : b1));
     if (text[i] == '\n') {
       ++line;
       column = 1;

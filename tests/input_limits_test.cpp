@@ -142,6 +142,23 @@ TEST_CASE("alias node limit: billion laughs is refused in linear time", "[limits
   CHECK(refusal(ok).empty());
 }
 
+TEST_CASE("control characters are refused (YAML 1.2.2 section 5.1)", "[limits]") {
+  // A NUL before a ',' hid the token start from the comma check and hung
+  // yaml-cpp 0.7 (found by fuzzing; the input is a corpus seed).
+  using namespace std::string_literals;
+  const std::string bad[] = {"title: a\0b\n"s, "title: a\x01\n"s, "\0,\n"s, "title: \x1B[0m\n"s,
+                             "title: a\x7F\n"s, "title: \xC2\x9B\n"s};
+  for (const auto& t : bad) {
+    INFO(t);
+    CHECK_THROWS_WITH(check_text_limits("a: 1\n" + t, "c.yaml"),
+                      Catch::Contains("c.yaml:2:") && Catch::Contains("control character"));
+  }
+  CHECK_THROWS_WITH(check_text_limits("title: ab\x01\n", "c.yaml"),
+                    Catch::StartsWith("c.yaml:1:10:") && Catch::Contains("U+0001"));
+  // Tab, CR LF line ends and U+0085 (NEL) are YAML characters.
+  CHECK_NOTHROW(check_text_limits("title:\tx\r\nb: \xC2\x85\n", "c.yaml"));
+}
+
 TEST_CASE("an alias that refers to its own node (a cycle) is refused", "[limits]") {
   CHECK_THAT(refusal("title: &t [a, *t]\n"), Catch::Contains("cycle"));
   CHECK_THAT(refusal("a: &m {b: *m}\n"), Catch::Contains("cycle"));
