@@ -138,8 +138,31 @@ class DepthScan {
     const std::size_t indent = i;
     const bool blank = i == l.size() || l[i] == '#';
     if (block_scalar_indent_) {
-      if (blank || indent > *block_scalar_indent_) return;
+      // Inside a block scalar every line is text (a '#' too) until one is
+      // indented less than its content (YAML 1.2.2, 8.1.1.1).
+      const bool empty = i == l.size();
+      if (empty) {
+        if (!block_scalar_content_) leading_spaces_ = std::max(leading_spaces_, indent);
+        return;
+      }
+      if (!block_scalar_content_ && indent > *block_scalar_indent_) {
+        // The first line of text fixes the content indentation (without an
+        // indentation indicator); a leading empty line may not have more
+        // spaces than it. yaml-cpp 0.7 takes such a line's spaces as the
+        // indentation instead and, on a ',' line after it, never returns
+        // (found by fuzz_case_loader: ">", "  ", " ,").
+        if (block_scalar_auto_ && leading_spaces_ > indent)
+          throw InputError({name_, line, static_cast<int>(indent) + 1},
+                           fmt::format("YAML syntax error: a block scalar's leading empty line has "
+                                       "{} spaces, more than its first line of text ({}); remove "
+                                       "the spaces from the empty line",
+                                       leading_spaces_, indent));
+        block_scalar_content_ = block_scalar_auto_ ? indent : *block_scalar_indent_ + 1;
+        return;
+      }
+      if (block_scalar_content_ && indent >= *block_scalar_content_) return;
       block_scalar_indent_.reset();
+      block_scalar_content_.reset();
     }
     if (!in_quote_ && flow_ == 0 && !blank) {
       if (l.substr(i).starts_with("---") || l.substr(i).starts_with("...")) {
@@ -264,10 +287,17 @@ class DepthScan {
       } else if ((c == '|' || c == '>') && block && token_start) {
         // A block scalar header: "|", "|-", ">+2"... then only a comment.
         std::size_t k = i + 1;
-        while (k < l.size() && (l[k] == '-' || l[k] == '+' || (l[k] >= '0' && l[k] <= '9'))) ++k;
+        bool indicator = false;
+        while (k < l.size() && (l[k] == '-' || l[k] == '+' || (l[k] >= '0' && l[k] <= '9'))) {
+          indicator = indicator || (l[k] != '-' && l[k] != '+');
+          ++k;
+        }
         while (k < l.size() && is_space(l[k])) ++k;
         if (k == l.size() || l[k] == '#') {
           block_scalar_indent_ = indent;
+          block_scalar_auto_ = !indicator;
+          block_scalar_content_.reset();
+          leading_spaces_ = 0;
           return;
         }
       }
@@ -284,7 +314,10 @@ class DepthScan {
   int flow_ = 0;
   char in_quote_ = 0;
   bool quote_opens_token_ = false;  // the open quote began a token in block context
-  std::optional<std::size_t> block_scalar_indent_;
+  std::optional<std::size_t> block_scalar_indent_;   // the header line's indentation
+  std::optional<std::size_t> block_scalar_content_;  // set by its first line of text
+  bool block_scalar_auto_ = true;                    // no indentation indicator
+  std::size_t leading_spaces_ = 0;                   // most spaces on a leading empty line
 };
 
 // ---- node count after alias expansion --------------------------------------

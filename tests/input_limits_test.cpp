@@ -159,6 +159,28 @@ TEST_CASE("control characters are refused (YAML 1.2.2 section 5.1)", "[limits]")
   CHECK_NOTHROW(check_text_limits("title:\tx\r\nb: \xC2\x85\n", "c.yaml"));
 }
 
+TEST_CASE("block scalars: text lines are skipped, a less indented line ends them",
+          "[limits]") {
+  // yaml-cpp 0.7 never returned from these (found by fuzzing): the ',' line
+  // ends the block scalar and begins a token (YAML 1.2.2, 8.1.1.1).
+  for (const char* t : {">\n  a\n , b\n", "|\n   a\n  ,\n", "a: |\n    x\n   ,\n"}) {
+    INFO(t);
+    CHECK_THROWS_WITH(check_text_limits(t, "b.yaml"), Catch::Contains("b.yaml:3:") &&
+                                                          Catch::Contains("','"));
+  }
+  // A leading empty line with more spaces than the first line of text.
+  CHECK_THROWS_WITH(check_text_limits(">\n  \n ,\n", "b.yaml"),
+                    Catch::StartsWith("b.yaml:3:2:") && Catch::Contains("leading empty line"));
+  // Text that looks like YAML stays text inside the scalar; an indentation
+  // indicator allows leading spaces; the scalar ends where the indent drops.
+  CHECK_NOTHROW(check_text_limits(
+      "notes: |\n  , a comma first\n\n    [more indented] # not a comment\n  back\nkey: 1\n",
+      "b.yaml"));
+  CHECK_NOTHROW(check_text_limits("notes: >2\n     \n   x\n  , y\nkey: 1\n", "b.yaml"));
+  CHECK_THROWS_WITH(check_text_limits("notes: |\n  text\n, x\n", "b.yaml"),
+                    Catch::Contains("b.yaml:3:1:"));
+}
+
 TEST_CASE("an alias that refers to its own node (a cycle) is refused", "[limits]") {
   CHECK_THAT(refusal("title: &t [a, *t]\n"), Catch::Contains("cycle"));
   CHECK_THAT(refusal("a: &m {b: *m}\n"), Catch::Contains("cycle"));
