@@ -157,7 +157,7 @@ class DepthScan {
                                        "{} spaces, more than its first line of text ({}); remove "
                                        "the spaces from the empty line",
                                        leading_spaces_, indent));
-        block_scalar_content_ = block_scalar_auto_ ? indent : *block_scalar_indent_ + 1;
+        block_scalar_content_ = indent;
         return;
       }
       if (block_scalar_content_ && indent >= *block_scalar_content_) return;
@@ -287,16 +287,21 @@ class DepthScan {
       } else if ((c == '|' || c == '>') && block && token_start) {
         // A block scalar header: "|", "|-", ">+2"... then only a comment.
         std::size_t k = i + 1;
-        bool indicator = false;
+        std::size_t indicator = 0;  // the indentation indicator, 0 when absent
         while (k < l.size() && (l[k] == '-' || l[k] == '+' || (l[k] >= '0' && l[k] <= '9'))) {
-          indicator = indicator || (l[k] != '-' && l[k] != '+');
+          if (l[k] >= '0' && l[k] <= '9') indicator = static_cast<std::size_t>(l[k] - '0');
           ++k;
         }
         while (k < l.size() && is_space(l[k])) ++k;
         if (k == l.size() || l[k] == '#') {
           block_scalar_indent_ = indent;
-          block_scalar_auto_ = !indicator;
+          block_scalar_auto_ = indicator == 0;
+          // With an indicator the text is indented that much past the parent
+          // (the header line's indentation here, the larger of YAML's
+          // readings at a document's root, so no shorter line is taken
+          // for text: ">9" then " ," hung yaml-cpp 0.7, found by fuzzing).
           block_scalar_content_.reset();
+          if (indicator > 0) block_scalar_content_ = indent + indicator;
           leading_spaces_ = 0;
           return;
         }
