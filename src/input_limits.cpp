@@ -165,9 +165,17 @@ class DepthScan {
       block_scalar_content_.reset();
     }
     if (!in_quote_ && flow_ == 0 && !blank) {
-      if (l.substr(i).starts_with("---") || l.substr(i).starts_with("...")) {
+      if (l.substr(i).starts_with("...")) {
         levels_.clear();
         return;
+      }
+      // "--- " may have the document's root node on the same line: scan it
+      // ("--- ," hung yaml-cpp 0.7, found by fuzzing).
+      if (l.substr(i).starts_with("---") && (i + 3 == l.size() || is_space(l[i + 3]))) {
+        levels_.clear();
+        i += 3;
+        while (i < l.size() && is_space(l[i])) ++i;
+        if (i == l.size() || l[i] == '#') return;
       }
       // Block indicators at the start of the line: "- ", "? ", one after the other.
       bool first = true;

@@ -169,6 +169,11 @@ TEST_CASE("block scalars: text lines are skipped, a less indented line ends them
     CHECK_THROWS_WITH(check_text_limits(t, "b.yaml"), Catch::Contains("b.yaml:3:") &&
                                                           Catch::Contains("','"));
   }
+  // After a document marker the root node may follow on the same line.
+  CHECK_THROWS_WITH(check_text_limits("a: 1\n--- ,\n", "b.yaml"), Catch::Contains("b.yaml:2:5:"));
+  CHECK_THROWS_WITH(check_text_limits(">9\n \n >9\n \n--- ,\n", "b.yaml"),
+                    Catch::Contains("b.yaml:5:5:"));
+  CHECK_NOTHROW(check_text_limits("--- # a comment\ntitle: x\n---\ntitle: y\n", "b.yaml"));
   // A leading empty line with more spaces than the first line of text.
   CHECK_THROWS_WITH(check_text_limits(">\n  \n ,\n", "b.yaml"),
                     Catch::StartsWith("b.yaml:3:2:") && Catch::Contains("leading empty line"));
