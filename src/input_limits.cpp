@@ -243,6 +243,7 @@ class DepthScan {
   void scan_flow(std::string_view l, std::size_t i, int line, std::size_t indent) {
     char last = ' ';
     bool token_start = true;
+    after_quote_ = false;
     for (; i < l.size(); ++i) {
       const char c = l[i];
       if (in_quote_) {
@@ -254,6 +255,7 @@ class DepthScan {
           } else {
             in_quote_ = 0;
             token_start = flow_ == 0 && quote_opens_token_;
+            after_quote_ = token_start;
           }
         }
         last = c;
@@ -261,6 +263,17 @@ class DepthScan {
       }
       if (c == '#' && is_space(last)) break;
       const bool block = flow_ == 0;
+      if (after_quote_ && !is_space(c)) {
+        // A quoted scalar that began a token in block context is a whole
+        // node: only ':' (it was a key) or a comment may follow on its line
+        // (YAML 1.2.2, 7.3). yaml-cpp 0.7 looped forever on '"a"5' then
+        // '?' (found by fuzzing).
+        after_quote_ = false;
+        if (c != ':' && c != ',')
+          throw InputError({name_, line, static_cast<int>(i) + 1},
+                           "YAML syntax error: text after a quoted value on its line; only ':' "
+                           "(after a quoted key) or a comment may follow the closing quote");
+      }
       if (block && token_start) {
         if (is_space(c)) {
           last = c;
@@ -327,6 +340,7 @@ class DepthScan {
   int flow_ = 0;
   char in_quote_ = 0;
   bool quote_opens_token_ = false;  // the open quote began a token in block context
+  bool after_quote_ = false;        // such a quote has just closed on this line
   std::optional<std::size_t> block_scalar_indent_;   // the header line's indentation
   std::optional<std::size_t> block_scalar_content_;  // set by its first line of text
   bool block_scalar_auto_ = true;                    // no indentation indicator

@@ -169,6 +169,14 @@ TEST_CASE("block scalars: text lines are skipped, a less indented line ends them
     CHECK_THROWS_WITH(check_text_limits(t, "b.yaml"), Catch::Contains("b.yaml:3:") &&
                                                           Catch::Contains("','"));
   }
+  // Only ':' or a comment may follow a quoted value on its line.
+  for (const char* t : {"\"a\"5\n?\n", "'a' b\n", "x:\n  - \"a\"b\n"}) {
+    INFO(t);
+    CHECK_THROWS_WITH(check_text_limits(t, "b.yaml"), Catch::Contains("after a quoted value"));
+  }
+  CHECK_NOTHROW(check_text_limits(
+      "\"a\": 1\n'b' : 2\nc: \"x\"  # note\nd: 'it''s'\ne: [\"a\"b]\nf: \"multi\n  line\"\n",
+      "b.yaml"));
   // After a document marker the root node may follow on the same line.
   CHECK_THROWS_WITH(check_text_limits("a: 1\n--- ,\n", "b.yaml"), Catch::Contains("b.yaml:2:5:"));
   CHECK_THROWS_WITH(check_text_limits(">9\n \n >9\n \n--- ,\n", "b.yaml"),
@@ -237,8 +245,12 @@ TEST_CASE("a ',' where a token begins is refused before yaml-cpp loops on it", "
   CHECK_THAT(refusal("\"a\" , b"), Catch::Contains("x.yaml:1:5:"));
   CHECK_THAT(refusal("title: a\n---\n'x',\n"), Catch::Contains("x.yaml:3:4:"));
   CHECK_THAT(refusal("'a\n  b',\n"), Catch::Contains("x.yaml:2:5:"));
-  CHECK_THAT(refusal("\"\"\"\","), Catch::Contains("x.yaml:1:5:"));
-  CHECK_THAT(refusal("\"\" \"\","), Catch::Contains("x.yaml:1:6:"));
+  // A second quoted value on the line is refused at its opening quote,
+  // before the ',' (only ':' or a comment may follow a quoted value).
+  CHECK_THAT(refusal("\"\"\"\","), Catch::Contains("x.yaml:1:3:") &&
+                                       Catch::Contains("after a quoted value"));
+  CHECK_THAT(refusal("\"\" \"\","), Catch::Contains("x.yaml:1:4:") &&
+                                        Catch::Contains("after a quoted value"));
   CHECK_THAT(refusal("[a],"), Catch::Contains("x.yaml:1:4:"));
   CHECK_THAT(refusal("{a: 1} ,"), Catch::Contains("x.yaml:1:8:"));
   CHECK_THAT(refusal("&x 'a',"), Catch::Contains("x.yaml:1:7:"));
