@@ -145,7 +145,9 @@ class DepthScan {
         if (!block_scalar_content_) leading_spaces_ = std::max(leading_spaces_, indent);
         return;
       }
-      if (!block_scalar_content_ && indent > *block_scalar_indent_) {
+      // At a document's root (no enclosing collection) the text may start
+      // at any column, even the header's (" >", " \"", "," hung yaml-cpp).
+      if (!block_scalar_content_ && (indent > *block_scalar_indent_ || block_scalar_root_)) {
         // The first line of text fixes the content indentation (without an
         // indentation indicator); a leading empty line may not have more
         // spaces than it. yaml-cpp 0.7 takes such a line's spaces as the
@@ -317,6 +319,7 @@ class DepthScan {
         if (k == l.size() || l[k] == '#') {
           block_scalar_indent_ = indent;
           block_scalar_auto_ = indicator == 0;
+          block_scalar_root_ = levels_.empty();
           // With an indicator the text is indented that much past the parent
           // (the header line's indentation here, the larger of YAML's
           // readings at a document's root, so no shorter line is taken
@@ -344,6 +347,7 @@ class DepthScan {
   std::optional<std::size_t> block_scalar_indent_;   // the header line's indentation
   std::optional<std::size_t> block_scalar_content_;  // set by its first line of text
   bool block_scalar_auto_ = true;                    // no indentation indicator
+  bool block_scalar_root_ = false;                   // the document's root node
   std::size_t leading_spaces_ = 0;                   // most spaces on a leading empty line
 };
 

@@ -164,7 +164,7 @@ TEST_CASE("block scalars: text lines are skipped, a less indented line ends them
   // yaml-cpp 0.7 never returned from these (found by fuzzing): the ',' line
   // ends the block scalar and begins a token (YAML 1.2.2, 8.1.1.1).
   for (const char* t :
-       {">\n  a\n , b\n", "|\n   a\n  ,\n", "a: |\n    x\n   ,\n", ">9\n  \n ,\n"}) {
+       {">\n  a\n , b\n", "|\n   a\n  ,\n", "a: |\n    x\n   ,\n", ">9\n  \n ,\n", " >\n \"\n,\n"}) {
     INFO(t);
     CHECK_THROWS_WITH(check_text_limits(t, "b.yaml"), Catch::Contains("b.yaml:3:") &&
                                                           Catch::Contains("','"));
