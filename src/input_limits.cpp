@@ -146,8 +146,10 @@ class DepthScan {
         return;
       }
       // At a document's root (no enclosing collection) the text may start
-      // at any column, even the header's (" >", " \"", "," hung yaml-cpp).
-      if (!block_scalar_content_ && (indent > *block_scalar_indent_ || block_scalar_root_)) {
+      // at any column from 1, even the header's (" >", " \"", "," hung
+      // yaml-cpp); column 0 ends it (">", "," hung it too).
+      if (!block_scalar_content_ &&
+          (indent > *block_scalar_indent_ || (block_scalar_root_ && indent >= 1))) {
         // The first line of text fixes the content indentation (without an
         // indentation indicator); a leading empty line may not have more
         // spaces than it. yaml-cpp 0.7 takes such a line's spaces as the
