@@ -169,7 +169,14 @@ class DepthScan {
       block_scalar_content_.reset();
     }
     if (!in_quote_ && flow_ == 0 && !blank) {
-      if (l.substr(i).starts_with("...")) {
+      if (l.substr(i).starts_with("...") && (i + 3 == l.size() || is_space(l[i + 3]))) {
+        // Only a comment may follow a document end marker ("... ," hung
+        // yaml-cpp 0.7, found by fuzzing).
+        std::size_t k = i + 3;
+        while (k < l.size() && is_space(l[k])) ++k;
+        if (k < l.size() && l[k] != '#')
+          throw InputError({name_, line, static_cast<int>(k) + 1},
+                           "YAML syntax error: only a comment may follow '...' on its line");
         levels_.clear();
         return;
       }

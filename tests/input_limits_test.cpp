@@ -182,6 +182,8 @@ TEST_CASE("block scalars: text lines are skipped, a less indented line ends them
   CHECK_THROWS_WITH(check_text_limits(">9\n \n >9\n \n--- ,\n", "b.yaml"),
                     Catch::Contains("b.yaml:5:5:"));
   CHECK_NOTHROW(check_text_limits("--- # a comment\ntitle: x\n---\ntitle: y\n", "b.yaml"));
+  CHECK_THROWS_WITH(check_text_limits(">\n... ,\n", "b.yaml"), Catch::Contains("b.yaml:2:5:"));
+  CHECK_NOTHROW(check_text_limits("title: x\n... # end\n", "b.yaml"));
   // At the root, column 0 ends a block scalar.
   CHECK_THROWS_WITH(check_text_limits(">\n,\n", "b.yaml"), Catch::Contains("b.yaml:2:1:"));
   // A leading empty line with more spaces than the first line of text.
