@@ -188,10 +188,12 @@ class DepthScan {
         while (i < l.size() && is_space(l[i])) ++i;
         if (i == l.size() || l[i] == '#') return;
       }
-      // Block indicators at the start of the line: "- ", "? ", one after the other.
+      // Block indicators at the start of the line: "- ", one after the other
+      // ("? " is refused, see refuse_unsupported).
       bool first = true;
       while (i < l.size() && (l[i] == '-' || l[i] == '?') &&
              (i + 1 == l.size() || is_space(l[i + 1]))) {
+        refuse_unsupported(l, i, line);
         if (first) open_block(i, true);
         else levels_.push_back({i, true});
         first = false;
@@ -217,6 +219,30 @@ class DepthScan {
       }
     }
     scan_flow(l, i, line, indent);
+  }
+
+  // A case file is plain data: mappings, lists, scalars, comments, anchors
+  // and aliases. Tags ("!x"), explicit keys ("? ") and directives ("%...")
+  // have no use in one, and yaml-cpp 0.7 never returns on some files that
+  // use them ("! 5" then "?", found by fuzz_case_loader), so they are
+  // refused where a token begins, as are the reserved indicators '@' and
+  // '`', which cannot start a plain scalar (YAML 1.2.2, 5.3).
+  void refuse_unsupported(std::string_view l, std::size_t i, int line) const {
+    const char c = l[i];
+    const bool ends = i + 1 == l.size() || is_space(l[i + 1]) ||
+                      (flow_ > 0 && is_flow_indicator(l[i + 1]));
+    const char* what = nullptr;
+    if (c == '!') what = "a YAML tag ('!') is not allowed in a case file; remove it";
+    else if (c == '?' && ends)
+      what = "an explicit key ('? ') is not allowed in a case file; write 'key: value'";
+    else if (c == '%')
+      what = "a YAML directive or a value starting with '%' is not allowed in a case file; "
+             "quote the value";
+    else if (c == '@' || c == '`')
+      what = "a value cannot start with '@' or '`' (reserved in YAML); quote the value";
+    if (what)
+      throw InputError({name_, line, static_cast<int>(i) + 1},
+                       fmt::format("YAML syntax error: {}", what));
   }
 
   // "key: ..." or "key:" at the start of the content (plain or quoted key).
@@ -253,6 +279,7 @@ class DepthScan {
   // inside a plain scalar ("Reactor 'R1', second pass") is text.
   void scan_flow(std::string_view l, std::size_t i, int line, std::size_t indent) {
     char last = ' ';
+    char last_nonspace = 0;  // in flow context, on this line
     bool token_start = true;
     after_quote_ = false;
     for (; i < l.size(); ++i) {
@@ -270,6 +297,7 @@ class DepthScan {
           }
         }
         last = c;
+        last_nonspace = c;
         continue;
       }
       if (c == '#' && is_space(last)) break;
@@ -294,12 +322,27 @@ class DepthScan {
           throw InputError({name_, line, static_cast<int>(i) + 1},
                            "YAML syntax error: ',' where a value or a key must begin, outside a "
                            "flow list [...] or mapping {...}");
-        if (c == '&' || c == '*' || c == '!') {
-          // Anchor, alias or tag: a name up to a space or a flow indicator.
+        refuse_unsupported(l, i, line);
+        if (c == '&' || c == '*') {
+          // Anchor or alias: a name up to a space or a flow indicator.
           while (i + 1 < l.size() && !is_space(l[i + 1]) && !is_flow_indicator(l[i + 1])) ++i;
           last = l[i];
           continue;
         }
+      }
+      if (!block && !is_space(c)) {
+        // Where a flow entry, key or value begins.
+        if (last_nonspace == 0 || last_nonspace == '[' || last_nonspace == '{' ||
+            last_nonspace == ',' || last_nonspace == ':') {
+          refuse_unsupported(l, i, line);
+          if (c == '&') {
+            // An anchor's name; the node it names begins after it.
+            while (i + 1 < l.size() && !is_space(l[i + 1]) && !is_flow_indicator(l[i + 1])) ++i;
+            last = l[i];
+            continue;
+          }
+        }
+        last_nonspace = c;
       }
       if ((c == '"' || c == '\'') && (block ? token_start
                                             : is_space(last) || last == '[' || last == '{' ||
