@@ -137,6 +137,7 @@ class DepthScan {
     while (i < l.size() && is_space(l[i])) ++i;
     const std::size_t indent = i;
     const bool blank = i == l.size() || l[i] == '#';
+    bool continuation = false;  // of a multi-line plain scalar
     if (block_scalar_indent_) {
       // Inside a block scalar every line is text (a '#' too) until one is
       // indented less than its content (YAML 1.2.2, 8.1.1.1).
@@ -178,22 +179,30 @@ class DepthScan {
           throw InputError({name_, line, static_cast<int>(k) + 1},
                            "YAML syntax error: only a comment may follow '...' on its line");
         levels_.clear();
+        plain_open_ = false;
         return;
       }
       // "--- " may have the document's root node on the same line: scan it
       // ("--- ," hung yaml-cpp 0.7, found by fuzzing).
       if (l.substr(i).starts_with("---") && (i + 3 == l.size() || is_space(l[i + 3]))) {
         levels_.clear();
+        plain_open_ = false;
         i += 3;
         while (i < l.size() && is_space(l[i])) ++i;
         if (i == l.size() || l[i] == '#') return;
       }
+      // A line after an unfinished plain scalar that is neither a list item
+      // nor a key continues it (YAML 1.2.2, 7.3.3): a quote or a bracket
+      // there is text, as yaml-cpp reads it (it hung on '&> e', ' "', ',':
+      // the ',' starts a token, found by fuzz_case_loader).
+      continuation = plain_open_;
       // Block indicators at the start of the line: "- ", one after the other
       // ("? " is refused, see refuse_unsupported).
       bool first = true;
       while (i < l.size() && (l[i] == '-' || l[i] == '?') &&
              (i + 1 == l.size() || is_space(l[i + 1]))) {
         refuse_unsupported(l, i, line);
+        continuation = false;
         if (first) open_block(i, true);
         else levels_.push_back({i, true});
         first = false;
@@ -210,6 +219,7 @@ class DepthScan {
                          "YAML syntax error: a value cannot start with ',' outside a flow list "
                          "[...] or mapping {...}");
       if (i < l.size() && l[i] != '#' && has_key(l.substr(i))) {
+        continuation = false;
         if (first) open_block(i, false);
         else levels_.push_back({i, false});
         check(line, i);
@@ -218,7 +228,7 @@ class DepthScan {
         while (!levels_.empty() && levels_.back().column > i) levels_.pop_back();
       }
     }
-    scan_flow(l, i, line, indent);
+    scan_flow(l, i, line, indent, continuation);
   }
 
   // A case file is plain data: mappings, lists, scalars, comments, anchors
@@ -277,11 +287,14 @@ class DepthScan {
   // loops forever on one at a document's root ("'',", "[a],", "&x 'a',",
   // found by fuzz_case_loader), so each is refused before it parses. A ','
   // inside a plain scalar ("Reactor 'R1', second pass") is text.
-  void scan_flow(std::string_view l, std::size_t i, int line, std::size_t indent) {
+  void scan_flow(std::string_view l, std::size_t i, int line, std::size_t indent,
+                 bool continuation) {
     char last = ' ';
     char last_nonspace = 0;  // in flow context, on this line
-    bool token_start = true;
+    bool token_start = !continuation;
+    bool plain = continuation;  // a block plain scalar is open
     after_quote_ = false;
+    if (i == l.size()) return;  // an empty line neither ends nor starts a scalar
     for (; i < l.size(); ++i) {
       const char c = l[i];
       if (in_quote_) {
@@ -300,7 +313,10 @@ class DepthScan {
         last_nonspace = c;
         continue;
       }
-      if (c == '#' && is_space(last)) break;
+      if (c == '#' && is_space(last)) {
+        plain = false;  // a comment ends a plain scalar
+        break;
+      }
       const bool block = flow_ == 0;
       if (after_quote_ && !is_space(c)) {
         // A quoted scalar that began a token in block context is a whole
@@ -379,14 +395,21 @@ class DepthScan {
           block_scalar_content_.reset();
           if (indicator > 0) block_scalar_content_ = indent + indicator;
           leading_spaces_ = 0;
+          plain_open_ = false;
           return;
         }
       }
       // ": " (or ':' at the end) after a key starts the value's token; any
       // other character in block context is part of a plain scalar.
-      if (block) token_start = c == ':' && (i + 1 == l.size() || is_space(l[i + 1]));
+      if (block) {
+        if (token_start && !is_space(c) && c != '"' && c != '\'' && c != '[' && c != '{')
+          plain = true;
+        token_start = c == ':' && (i + 1 == l.size() || is_space(l[i + 1]));
+        if (token_start) plain = false;  // the plain text was a key
+      }
       last = c;
     }
+    plain_open_ = plain && flow_ == 0 && !in_quote_;
   }
 
   const std::string& name_;
@@ -396,6 +419,7 @@ class DepthScan {
   char in_quote_ = 0;
   bool quote_opens_token_ = false;  // the open quote began a token in block context
   bool after_quote_ = false;        // such a quote has just closed on this line
+  bool plain_open_ = false;         // the last text line ended inside a block plain scalar
   std::optional<std::size_t> block_scalar_indent_;   // the header line's indentation
   std::optional<std::size_t> block_scalar_content_;  // set by its first line of text
   bool block_scalar_auto_ = true;                    // no indentation indicator

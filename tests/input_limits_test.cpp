@@ -298,6 +298,22 @@ TEST_CASE("tags, explicit keys, directives and reserved indicators are refused",
   CHECK(refusal(small_case("[{id: A}, {id: B, name: 50 % x}]")).empty());
 }
 
+TEST_CASE("a line that continues a plain scalar is text, quotes and all", "[limits]") {
+  // yaml-cpp 0.7 reads ' "' after '&> e' as more of the plain scalar and
+  // never returns on the ',' that starts the next line (found by
+  // fuzz_case_loader); YAML 1.2.2, 7.3.3 reads it the same way.
+  CHECK_THAT(refusal("&> e\n \"\n,"), Catch::Contains("x.yaml:3:1: error:") &&
+                                          Catch::Contains("','"));
+  CHECK_THAT(refusal("title: a\n  'b\n,\n"), Catch::Contains("x.yaml:3:1:"));
+  // A wrapped title with quotes and commas on its second line loads.
+  const std::string rest = small_case().substr(small_case().find('\n') + 1);
+  CHECK(refusal("title: Pentane isomerization\n  \"two beds\", invented data\n" + rest).empty());
+  CHECK(refusal("title: a\n  [b, c] d\n" + rest).empty());
+  // A comment ends the plain scalar: a quote after it begins a token.
+  CHECK(refusal("title: a\n# note\n" + rest).empty());
+  CHECK_THAT(refusal("a: b\n# c\n'x',\n"), Catch::Contains("x.yaml:3:4:"));
+}
+
 TEST_CASE("check_finite names the stage and the field of a NaN or Inf", "[limits]") {
   const UnitParser units;
   const Case c = load_case_from_string(small_case(), "x.yaml", units);
