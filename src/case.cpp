@@ -1134,6 +1134,7 @@ Case Loader::load(const YAML::Node& root) {
 Case load_case_from_string(const std::string& text, const std::string& name,
                            const UnitParser& units) {
   check_text_limits(text, name, {kMaxFileBytes});  // size, UTF-8, depth: before yaml-cpp
+  check_parser_finishes(text, name);
   std::vector<YAML::Node> docs;
   try {
     docs = YAML::LoadAll(text);

@@ -1,6 +1,7 @@
 #include "rxtrain/input_limits.hpp"
 
 #include <fmt/format.h>
+#include <yaml-cpp/eventhandler.h>
 #include <yaml-cpp/yaml.h>
 
 #include <algorithm>
@@ -8,6 +9,7 @@
 #include <utility>
 #include <cstdint>
 #include <optional>
+#include <sstream>
 #include <vector>
 
 namespace rxtrain {
@@ -195,7 +197,9 @@ class DepthScan {
       // nor a key continues it (YAML 1.2.2, 7.3.3): a quote or a bracket
       // there is text, as yaml-cpp reads it (it hung on '&> e', ' "', ',':
       // the ',' starts a token, found by fuzz_case_loader).
-      continuation = plain_open_;
+      // Only a line indented past the collection holding the scalar continues
+      // it (' : p' then '"",' hung yaml-cpp: that line is a new token).
+      continuation = plain_open_ && (levels_.empty() || indent > levels_.back().column);
       // Block indicators at the start of the line: "- ", one after the other
       // ("? " is refused, see refuse_unsupported).
       bool first = true;
@@ -481,7 +485,66 @@ class NodeCounter {
   std::uint64_t unique_ = 0;
 };
 
+// ---- a bound on the parser's work ----------------------------------------
+
+class EventBudget : public YAML::EventHandler {
+ public:
+  EventBudget(const std::string& name, std::size_t bytes)
+      : name_(name), limit_(8 * bytes + 64), bytes_(bytes) {}
+
+  void OnDocumentStart(const YAML::Mark& m) override { tick(m); }
+  void OnDocumentEnd() override { tick(); }
+  void OnNull(const YAML::Mark& m, YAML::anchor_t) override { tick(m); }
+  void OnAlias(const YAML::Mark& m, YAML::anchor_t) override { tick(m); }
+  void OnScalar(const YAML::Mark& m, const std::string&, YAML::anchor_t,
+                const std::string&) override {
+    tick(m);
+  }
+  void OnSequenceStart(const YAML::Mark& m, const std::string&, YAML::anchor_t,
+                       YAML::EmitterStyle::value) override {
+    tick(m);
+  }
+  void OnSequenceEnd() override { tick(); }
+  void OnMapStart(const YAML::Mark& m, const std::string&, YAML::anchor_t,
+                  YAML::EmitterStyle::value) override {
+    tick(m);
+  }
+  void OnMapEnd() override { tick(); }
+
+ private:
+  void tick(const YAML::Mark& m) {
+    if (!m.is_null()) last_ = m;
+    tick();
+  }
+  void tick() {
+    if (++events_ <= limit_) return;
+    throw InputError({name_, last_.line + 1, last_.column + 1},
+                     fmt::format("YAML syntax error: the YAML parser did not finish this file "
+                                 "(more than {} nodes from {} bytes, last here); the file is "
+                                 "malformed at or before this point",
+                                 limit_, bytes_));
+  }
+
+  const std::string& name_;
+  std::size_t limit_;
+  std::size_t bytes_;
+  std::size_t events_ = 0;
+  YAML::Mark last_;
+};
+
 }  // namespace
+
+void check_parser_finishes(const std::string& text, const std::string& name) {
+  std::istringstream in(text);
+  EventBudget budget(name, text.size());
+  try {
+    YAML::Parser parser(in);
+    while (parser.HandleNextDocument(budget)) {
+    }
+  } catch (const YAML::Exception& e) {
+    throw InputError({name, e.mark.line + 1, e.mark.column + 1}, "YAML syntax error: " + e.msg);
+  }
+}
 
 void check_text_limits(std::string_view text, const std::string& name,
                        const InputLimits& limits) {

@@ -10,6 +10,7 @@
 #include <cmath>
 #include <filesystem>
 #include <fstream>
+#include <iterator>
 #include <limits>
 #include <string>
 #include <unistd.h>
@@ -305,6 +306,9 @@ TEST_CASE("a line that continues a plain scalar is text, quotes and all", "[limi
   CHECK_THAT(refusal("&> e\n \"\n,"), Catch::Contains("x.yaml:3:1: error:") &&
                                           Catch::Contains("','"));
   CHECK_THAT(refusal("title: a\n  'b\n,\n"), Catch::Contains("x.yaml:3:1:"));
+  // A line indented no further than the scalar's mapping begins a token.
+  CHECK_THAT(refusal(" : p\n\"\",\n"), Catch::Contains("x.yaml:2:3:"));
+  CHECK_THAT(refusal("a:\n  b: c\n  'd',\n"), Catch::Contains("x.yaml:3:6:"));
   // A wrapped title with quotes and commas on its second line loads.
   const std::string rest = small_case().substr(small_case().find('\n') + 1);
   CHECK(refusal("title: Pentane isomerization\n  \"two beds\", invented data\n" + rest).empty());
@@ -312,6 +316,41 @@ TEST_CASE("a line that continues a plain scalar is text, quotes and all", "[limi
   // A comment ends the plain scalar: a quote after it begins a token.
   CHECK(refusal("title: a\n# note\n" + rest).empty());
   CHECK_THAT(refusal("a: b\n# c\n'x',\n"), Catch::Contains("x.yaml:3:4:"));
+}
+
+TEST_CASE("the parser's event budget stops every yaml-cpp hang found so far", "[limits]") {
+  // Each regression input made yaml-cpp 0.7 loop forever (found by
+  // fuzz_case_loader). The pre-parse scan refuses each with a specific
+  // message; here the budget alone, without that scan, must stop each.
+  namespace fs = std::filesystem;
+  int n = 0;
+  for (const auto& e :
+       fs::directory_iterator(std::string(RXTRAIN_SOURCE_DIR) + "/tests/fuzz/corpus/case_loader")) {
+    if (e.path().filename().string().rfind("regression-", 0) != 0) continue;
+    std::ifstream in(e.path(), std::ios::binary);
+    const std::string text((std::istreambuf_iterator<char>(in)), std::istreambuf_iterator<char>());
+    INFO(e.path().filename().string());
+    CHECK_THROWS_WITH(check_parser_finishes(text, "x.yaml"),
+                      Catch::Contains("x.yaml:") && Catch::Contains("did not finish"));
+    ++n;
+  }
+  CHECK(n >= 15);
+  // Valid files finish well inside the budget, the demo cases among them.
+  for (const auto& e : fs::directory_iterator(std::string(RXTRAIN_SOURCE_DIR) + "/cases")) {
+    std::ifstream in(e.path(), std::ios::binary);
+    const std::string text((std::istreambuf_iterator<char>(in)), std::istreambuf_iterator<char>());
+    CHECK_NOTHROW(check_parser_finishes(text, e.path().string()));
+  }
+  // The densest valid YAML: about 2 events per byte.
+  std::string dense;
+  for (int i = 0; i < 1000; ++i) dense += "- {: }\n";
+  CHECK_NOTHROW(check_parser_finishes(dense, "x.yaml"));
+  std::string dashes;
+  for (int i = 0; i < 1000; ++i) dashes += "-\n";
+  CHECK_NOTHROW(check_parser_finishes(dashes, "x.yaml"));
+  // A syntax error keeps its position.
+  CHECK_THROWS_WITH(check_parser_finishes("a: [1, 2\n", "x.yaml"),
+                    Catch::Contains("x.yaml:") && Catch::Contains("YAML syntax error"));
 }
 
 TEST_CASE("check_finite names the stage and the field of a NaN or Inf", "[limits]") {

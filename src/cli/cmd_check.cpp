@@ -20,8 +20,14 @@ Action setup_check(CLI::App& app) {
     const Case c = load_case(*file, units);
     for (const auto& w : c.warnings)
       std::fprintf(stderr, "%s\n", format_diagnostic({*file, 0, 0}, "warning", w).c_str());
-    std::printf("%s: ok: %d species, %d reactions, %zu stages\n", file->c_str(),
-                c.mechanism.n_species(), c.mechanism.n_reactions(), c.train.size());
+    const auto count = [](std::size_t n, const char* one, const char* many) {
+      return fmt::format("{} {}", n, n == 1 ? one : many);
+    };
+    std::printf("%s: ok: %d species, %s, %s\n", file->c_str(), c.mechanism.n_species(),
+                count(static_cast<std::size_t>(c.mechanism.n_reactions()), "reaction",
+                      "reactions")
+                    .c_str(),
+                count(c.train.size(), "stage", "stages").c_str());
     return 0;
   };
 }

@@ -222,8 +222,8 @@ Action setup_sweep(CLI::App& app) {
                           ->capture_default_str();
   app.add_option("--output", o->output,
                  "Columns, comma-separated: X, T_out, STAGE.FIELD (e.g. R1.T_max, R2.volume, "
-                 "E1.outlet.T); default: X, T_out, every stage's T_max and outlet.T, every sized "
-                 "stage's volume and catalyst_mass");
+                 "E1.outlet.T); default: X, T_out, every reactor's T_max, every stage's outlet.T, "
+                 "every sized stage's volume and catalyst_mass");
   app.add_option("--csv", o->csv_path, "Write one row per run (SI) to PATH");
   app.add_option("--json", o->json_path,
                  "Write the rows, percentiles and design margin (SI) to PATH");

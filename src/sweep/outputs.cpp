@@ -73,7 +73,8 @@ OutputSpec OutputSpec::defaults(const Case& c) {
   o.columns_.push_back(column("T_out", c));
   for (const auto& s : c.train) {
     const std::string& id = stage_id(s);
-    o.columns_.push_back(column(id + ".T_max", c));
+    // An exchanger's T_max is only the hotter of its ends; its outlet says it.
+    if (!std::holds_alternative<ExchangerSpec>(s)) o.columns_.push_back(column(id + ".T_max", c));
     o.columns_.push_back(column(id + ".outlet.T", c));
     if (const auto* r = std::get_if<ReactorSpec>(&s); r && r->target_conversion) {
       o.columns_.push_back(column(id + ".volume", c));
