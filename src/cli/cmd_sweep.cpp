@@ -99,11 +99,17 @@ class Progress {
 
 // A grid's rows as a small table (inputs and outputs, 6 significant digits).
 std::string grid_table(const std::vector<std::string>& inputs,
-                       const std::vector<std::string>& outputs, const std::vector<RunRow>& rows) {
+                       const std::vector<std::string>& outputs, const ColumnUnits& units,
+                       const std::vector<RunRow>& rows) {
   std::vector<std::string> head{"run"};
   head.insert(head.end(), inputs.begin(), inputs.end());
   head.insert(head.end(), outputs.begin(), outputs.end());
   head.push_back("status");
+  // A second header line with each column's SI unit.
+  std::vector<std::string> unit_line{""};
+  for (const auto& u : units.inputs) unit_line.push_back("[" + u + "]");
+  for (const auto& u : units.outputs) unit_line.push_back("[" + u + "]");
+  unit_line.push_back("");
   std::vector<std::vector<std::string>> cells;
   for (const auto& r : rows) {
     std::vector<std::string> line{fmt::format("{}", r.run)};
@@ -114,16 +120,17 @@ std::string grid_table(const std::vector<std::string>& inputs,
   }
   std::vector<std::size_t> w(head.size());
   for (std::size_t i = 0; i < head.size(); ++i) {
-    w[i] = head[i].size();
+    w[i] = std::max(head[i].size(), unit_line[i].size());
     for (const auto& l : cells) w[i] = std::max(w[i], l[i].size());
   }
   const auto line = [&](const std::vector<std::string>& l) {
     std::string t;
     for (std::size_t i = 0; i < l.size(); ++i)
       t += fmt::format("{}{:>{}}", i ? "  " : "", l[i], w[i]);
+    while (!t.empty() && t.back() == ' ') t.pop_back();
     return t + "\n";
   };
-  std::string out = line(head);
+  std::string out = line(head) + line(unit_line);
   for (const auto& l : cells) out += line(l);
   return out;
 }
@@ -157,7 +164,15 @@ int run_sweep_command(const SweepCommandOptions& o) {
   options.progress = Progress();
   const std::vector<RunRow> rows = run_sweep(c, table, study, outputs, options);
   const auto inputs = study.input_names();
-  const StudySummary summary = summarize_study(outputs.names(), header.margin, rows);
+  StudySummary summary = summarize_study(outputs.names(), header.margin, rows);
+  ColumnUnits col_units;
+  for (std::size_t p : study.paths()) {
+    const std::string u = table.at(p).unit.to_string();
+    col_units.inputs.push_back(u.empty() || u == "1" ? "-" : u);
+  }
+  col_units.outputs = outputs.units();
+  for (std::size_t k = 0; k < summary.percentiles.size(); ++k)
+    summary.percentiles[k].unit = col_units.outputs[k];
 
   // Every output is rendered before any is written (all or nothing).
   OutputSet out;
@@ -166,7 +181,7 @@ int run_sweep_command(const SweepCommandOptions& o) {
   if (!o.json_path.empty())
     out.add(o.json_path, sweep_json_text(header, shard, inputs, rows, summary));
   if (!o.report_dir.empty()) {
-    const auto figures = sweep_figures(study, outputs.names(), rows);
+    const auto figures = sweep_figures(study, outputs.names(), col_units, rows);
     add_report_files(out, o.report_dir,
                      sweep_report_html(c.title, o.case_file, header, shard, summary,
                                        study.monte_carlo(), figures),
@@ -179,7 +194,7 @@ int run_sweep_command(const SweepCommandOptions& o) {
   constexpr std::size_t kMaxTableRows = 100;
   if (!study.monte_carlo()) {
     text += rows.size() <= kMaxTableRows
-                ? grid_table(inputs, outputs.names(), rows)
+                ? grid_table(inputs, outputs.names(), col_units, rows)
                 : fmt::format("({} rows; write them with --csv PATH)\n", rows.size());
   }
   text += summary_text(summary, study.monte_carlo());

@@ -65,6 +65,24 @@ OutputColumn column(const std::string& name, const Case& c) {
   return fail();
 }
 
+const char* unit_of(const OutputColumn& col) {
+  const std::string& f = col.field;
+  const auto ends = [&](std::string_view tail) { return f.ends_with(tail); };
+  if (col.species >= 0) return "mol/s";
+  if (f == "T_out" || f == "T_max" || f == "T_min" || ends(".T") || ends("T_ad_eq") ||
+      ends("approach_T"))
+    return "K";
+  if (ends(".P")) return "Pa";
+  if (f == "volume") return "m3";
+  if (f == "catalyst_mass") return "kg";
+  if (f == "bulk_density") return "kg/m3";
+  if (f == "space_time") return "s";
+  if (f == "space_velocity") return "1/s";
+  if (f == "ghsv" || f == "whsv" || f == "lhsv") return "1/h";
+  if (f == "duty") return "W";
+  return "-";  // X, conversion, equilibrium X and approach_X
+}
+
 }  // namespace
 
 OutputSpec OutputSpec::defaults(const Case& c) {
@@ -110,6 +128,12 @@ OutputSpec OutputSpec::parse(const std::string& list, const Case& c) {
 std::vector<std::string> OutputSpec::names() const {
   std::vector<std::string> out;
   for (const auto& col : columns_) out.push_back(col.name);
+  return out;
+}
+
+std::vector<std::string> OutputSpec::units() const {
+  std::vector<std::string> out;
+  for (const auto& col : columns_) out.emplace_back(unit_of(col));
   return out;
 }
 

@@ -36,7 +36,7 @@ StudySummary summarize_study(const std::vector<std::string>& output_names,
     for (const auto& r : rows)
       if (r.result.status == RunStatus::Ok && r.result.outputs[c])
         v.push_back(*r.result.outputs[c]);
-    s.percentiles.push_back({output_names[c], summarize(std::move(v))});
+    s.percentiles.push_back({output_names[c], summarize(std::move(v)), ""});
   }
   for (const auto& m : margin_columns) {
     const auto it = std::find(output_names.begin(), output_names.end(), m);
@@ -111,25 +111,36 @@ std::string summary_text(const StudySummary& s, bool monte_carlo) {
   for (const auto& [status, n] : s.statuses) out += fmt::format(" {} {},", n, status);
   out.back() = '\n';
   if (!monte_carlo) return out;
-  std::size_t w = 6;
-  for (const auto& p : s.percentiles) w = std::max(w, p.name.size());
-  out += fmt::format("\n{:<{}}  {:>6}  {:>14}  {:>14}  {:>14}\n", "output (SI)", w, "n", "P5",
-                     "P50", "P95");
+  std::size_t w = 6, wu = 4;
+  for (const auto& p : s.percentiles) {
+    w = std::max(w, p.name.size());
+    wu = std::max(wu, p.unit.size());
+  }
+  out += fmt::format("\n{:<{}}  {:<{}}  {:>6}  {:>14}  {:>14}  {:>14}\n", "output", w, "unit",
+                     wu, "n", "P5", "P50", "P95");
   for (const auto& p : s.percentiles) {
     if (!p.p) {
-      out += fmt::format("{:<{}}  {:>6}  {:>14}  {:>14}  {:>14}\n", p.name, w, 0, "-", "-", "-");
+      out += fmt::format("{:<{}}  {:<{}}  {:>6}  {:>14}  {:>14}  {:>14}\n", p.name, w, p.unit, wu,
+                         0, "-", "-", "-");
       continue;
     }
-    out += fmt::format("{:<{}}  {:>6}  {:>14.6g}  {:>14.6g}  {:>14.6g}\n", p.name, w, p.p->n,
-                       p.p->p5, p.p->p50, p.p->p95);
+    out += fmt::format("{:<{}}  {:<{}}  {:>6}  {:>14.6g}  {:>14.6g}  {:>14.6g}\n", p.name, w,
+                       p.unit, wu, p.p->n, p.p->p5, p.p->p50, p.p->p95);
   }
   if (!s.margins.empty()) {
     out +=
         "\nDesign margin (amount that meets the target in 95 % of the runs; an infeasible run "
         "counts as unbounded):\n";
-    for (const auto& m : s.margins)
+    for (const auto& m : s.margins) {
+      std::string unit;
+      for (const auto& p : s.percentiles)
+        if (p.name == m.column && !p.unit.empty() && p.unit != "-") unit = " " + p.unit;
+      const auto with_unit = [&](const std::optional<double>& v) {
+        return v ? cell(v) + unit : cell(v);
+      };
       out += fmt::format("  {}: P50 {}, P95 {} ({} runs with a value, {} infeasible)\n", m.column,
-                         cell(m.p50), cell(m.p95), m.ok, m.infeasible);
+                         with_unit(m.p50), with_unit(m.p95), m.ok, m.infeasible);
+    }
   }
   return out;
 }

@@ -28,15 +28,20 @@ std::string stem(const std::string& name) {
   return s;
 }
 
-Figure grid_figure(const Study& study, const std::string& output, std::size_t col,
-                   const std::vector<RunRow>& rows) {
+// "name [unit]" for an axis label.
+std::string labelled(const std::string& name, const std::string& unit) {
+  return unit.empty() ? name : fmt::format("{} [{}]", name, unit);
+}
+
+Figure grid_figure(const Study& study, const ColumnUnits& units, const std::string& output,
+                   std::size_t col, const std::vector<RunRow>& rows) {
   const Axis& x_axis = study.axes.front();
   std::size_t others = 1;
   for (std::size_t k = 1; k < study.axes.size(); ++k) others *= study.axes[k].n;
   svg::ChartOptions o;
   o.title = output + " against " + x_axis.name;
-  o.x_label = x_axis.name + " (SI)";
-  o.y_label = output + " (SI)";
+  o.x_label = labelled(x_axis.name, units.inputs.empty() ? "" : units.inputs.front());
+  o.y_label = labelled(output, col < units.outputs.size() ? units.outputs[col] : "");
   svg::Chart chart(o);
   const std::size_t lines = std::min(others, kMaxLines);
   for (std::size_t s = 0; s < lines; ++s) {
@@ -57,7 +62,7 @@ Figure grid_figure(const Study& study, const std::string& output, std::size_t co
     lo.marker = svg::Marker::Circle;
     chart.add_line(x, y, lo);
   }
-  std::string caption = fmt::format("{} (SI) at each grid point; a gap is a failed run.", output);
+  std::string caption = fmt::format("{} at each grid point; a gap is a failed run.", output);
   if (others > kMaxLines)
     caption += fmt::format(" The first {} of {} combinations of the other inputs are drawn.",
                            kMaxLines, others);
@@ -67,7 +72,8 @@ Figure grid_figure(const Study& study, const std::string& output, std::size_t co
 // The histogram of one output, or nothing when the output did not vary by
 // more than rounding noise (a sized stage's outlet X is the target in every
 // run): bins of such a spread would only draw the noise.
-std::optional<Figure> histogram(const std::string& output, std::size_t col,
+std::optional<Figure> histogram(const std::string& output, const std::string& unit,
+                                std::size_t col,
                                 const std::vector<RunRow>& rows,
                                 const std::optional<PercentileSummary>& p) {
   std::vector<double> v;
@@ -81,7 +87,7 @@ std::optional<Figure> histogram(const std::string& output, std::size_t col,
   }
   svg::ChartOptions o;
   o.title = "Distribution of " + output;
-  o.x_label = output + " (SI)";
+  o.x_label = labelled(output, unit);
   o.y_label = "runs";
   o.legend = svg::LegendPosition::None;
   svg::Chart chart(o);
@@ -121,16 +127,17 @@ std::optional<Figure> histogram(const std::string& output, std::size_t col,
 }  // namespace
 
 std::vector<Figure> sweep_figures(const Study& study, const std::vector<std::string>& outputs,
-                                  const std::vector<RunRow>& rows) {
+                                  const ColumnUnits& units, const std::vector<RunRow>& rows) {
   std::vector<Figure> figures;
   if (study.monte_carlo()) {
     const auto s = summarize_study(outputs, {}, rows);
     for (std::size_t c = 0; c < outputs.size(); ++c)
-      if (auto f = histogram(outputs[c], c, rows, s.percentiles[c].p))
+      if (auto f = histogram(outputs[c], c < units.outputs.size() ? units.outputs[c] : "", c,
+                             rows, s.percentiles[c].p))
         figures.push_back(std::move(*f));
   } else {
     for (std::size_t c = 0; c < outputs.size(); ++c)
-      figures.push_back(grid_figure(study, outputs[c], c, rows));
+      figures.push_back(grid_figure(study, units, outputs[c], c, rows));
   }
   return figures;
 }
@@ -151,19 +158,20 @@ std::string sweep_report_html(const std::string& title, const std::string& case_
     counts += fmt::format("{}{} {}", counts.empty() ? "" : ", ", n, status);
   h += fmt::format("<h2 id=\"runs\">Runs</h2>\n<p>{} runs: {}.</p>\n", summary.runs, xml_escape(counts));
   if (monte_carlo) {
-    h += "<h2 id=\"percentiles\">Percentiles (SI)</h2>\n<table>\n<tr><th>output</th><th>n</th><th>P5</th>"
-         "<th>P50</th><th>P95</th></tr>\n";
+    h += "<h2 id=\"percentiles\">Percentiles</h2>\n<table>\n<tr><th>output</th><th>unit</th>"
+         "<th>n</th><th>P5</th><th>P50</th><th>P95</th></tr>\n";
     for (const auto& p : summary.percentiles) {
       if (!p.p) {
         h += fmt::format(
-            "<tr><td>{}</td><td class=\"num\">0</td><td>-</td><td>-</td><td>-</td></tr>\n",
-            xml_escape(p.name));
+            "<tr><td>{}</td><td>{}</td><td class=\"num\">0</td><td>-</td><td>-</td><td>-</td>"
+            "</tr>\n",
+            xml_escape(p.name), xml_escape(p.unit));
         continue;
       }
       h += fmt::format(
-          "<tr><td>{}</td><td class=\"num\">{}</td><td class=\"num\">{:.6g}</td><td "
+          "<tr><td>{}</td><td>{}</td><td class=\"num\">{}</td><td class=\"num\">{:.6g}</td><td "
           "class=\"num\">{:.6g}</td><td class=\"num\">{:.6g}</td></tr>\n",
-          xml_escape(p.name), p.p->n, p.p->p5, p.p->p50, p.p->p95);
+          xml_escape(p.name), xml_escape(p.unit), p.p->n, p.p->p5, p.p->p50, p.p->p95);
     }
     h += "</table>\n<p>Percentiles: Hyndman &amp; Fan (1996) definition 7, over the runs that "
          "succeeded.</p>\n";

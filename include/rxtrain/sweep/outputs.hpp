@@ -39,6 +39,9 @@ class OutputSpec {
 
   const std::vector<OutputColumn>& columns() const { return columns_; }
   std::vector<std::string> names() const;
+  // The SI unit each column is given in ("K", "m3", "1/h"; "-" for a
+  // fraction), for headers and axis labels.
+  std::vector<std::string> units() const;
   // True when a column reads a stage's equilibrium record (which needs
   // TrainOptions::equilibrium_views).
   bool needs_equilibrium_views() const;

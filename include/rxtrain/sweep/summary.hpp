@@ -25,6 +25,7 @@ namespace rxtrain::sweep {
 struct OutputPercentiles {
   std::string name;
   std::optional<PercentileSummary> p;  // empty when no run gave a value
+  std::string unit;                    // SI, for display ("K", "-"); set by the caller
 };
 
 struct DesignMargin {

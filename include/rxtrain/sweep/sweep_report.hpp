@@ -15,8 +15,14 @@
 
 namespace rxtrain::sweep {
 
+// SI units of the study's columns, for axis labels ("K", "m3", "-").
+struct ColumnUnits {
+  std::vector<std::string> inputs;   // input order
+  std::vector<std::string> outputs;  // output order
+};
+
 std::vector<Figure> sweep_figures(const Study& study, const std::vector<std::string>& outputs,
-                                  const std::vector<RunRow>& rows);
+                                  const ColumnUnits& units, const std::vector<RunRow>& rows);
 
 std::string sweep_report_html(const std::string& title, const std::string& case_file,
                               const StudyHeader& header, const Shard& shard,
