@@ -106,6 +106,12 @@ std::string sweep_json_text(const StudyHeader& header, const Shard& shard,
   return j.dump(2) + "\n";
 }
 
+std::string column_unit(const StudySummary& summary, const std::string& column) {
+  for (const auto& p : summary.percentiles)
+    if (p.name == column && p.unit != "-") return p.unit;
+  return "";
+}
+
 std::string summary_text(const StudySummary& s, bool monte_carlo) {
   std::string out = fmt::format("{} runs:", s.runs);
   for (const auto& [status, n] : s.statuses) out += fmt::format(" {} {},", n, status);
@@ -132,9 +138,8 @@ std::string summary_text(const StudySummary& s, bool monte_carlo) {
         "\nDesign margin (amount that meets the target in 95 % of the runs; an infeasible run "
         "counts as unbounded):\n";
     for (const auto& m : s.margins) {
-      std::string unit;
-      for (const auto& p : s.percentiles)
-        if (p.name == m.column && !p.unit.empty() && p.unit != "-") unit = " " + p.unit;
+      const std::string u = column_unit(s, m.column);
+      const std::string unit = u.empty() ? u : " " + u;
       const auto with_unit = [&](const std::optional<double>& v) {
         return v ? cell(v) + unit : cell(v);
       };

@@ -178,12 +178,15 @@ std::string sweep_report_html(const std::string& title, const std::string& case_
     if (!summary.margins.empty()) {
       h += "<h2 id=\"margin\">Design margin</h2>\n<p>The amount each sized stage needs to meet its target in "
            "95 % of the runs (a run whose target is out of reach counts as unbounded).</p>\n<ul>\n";
-      const auto v = [](const std::optional<double>& x) {
-        return x ? fmt::format("{:.6g}", *x) : std::string("unbounded");
-      };
-      for (const auto& m : summary.margins)
+      for (const auto& m : summary.margins) {
+        const std::string u = column_unit(summary, m.column);
+        const auto v = [&](const std::optional<double>& x) {
+          return x ? fmt::format("{:.6g}{}{}", *x, u.empty() ? "" : " ", u)
+                   : std::string("unbounded");
+        };
         h += fmt::format("<li>{}: P50 {}, P95 {} ({} runs with a value, {} infeasible)</li>\n",
                          xml_escape(m.column), v(m.p50), v(m.p95), m.ok, m.infeasible);
+      }
       h += "</ul>\n";
     }
   }

@@ -52,6 +52,10 @@ std::string sweep_json_text(const StudyHeader& header, const Shard& shard,
                             const std::vector<std::string>& input_names,
                             const std::vector<RunRow>& rows, const StudySummary& summary);
 
+// The unit of an output column as set in its percentiles ("" when none or
+// dimensionless).
+std::string column_unit(const StudySummary& summary, const std::string& column);
+
 // The terminal summary: counts, then for Monte Carlo the percentiles and
 // the design margin.
 std::string summary_text(const StudySummary& summary, bool monte_carlo);
