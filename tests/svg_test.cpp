@@ -341,6 +341,7 @@ TEST_CASE("a chart renders a well-formed, accessible SVG document", "[svg]") {
   o.x_label = "Catalyst mass (kg)";
   o.y_label = "Temperature (°C)";
   o.description = "Two invented profiles.";
+  o.legend = LegendPosition::TopLeft;  // in the plot: the figure keeps its size
   Chart c(o);
   const std::vector<double> x{0, 100, 200, 300, 400};
   c.add_line(x, std::vector<double>{380, 455, 492, 505, 509},
@@ -653,6 +654,24 @@ TEST_CASE("the automatic legend avoids the corner where the data are", "[svg]") 
   for (const auto& p : pts) CHECK_FALSE((p.x >= bx0 && p.x <= bx1 && p.y >= by0 && p.y <= by1));
   const ChartLayout L = c.layout();
   CHECK(bx0 < 0.5 * (L.plot_left + L.plot_right));  // a left corner
+}
+
+TEST_CASE("with data in every corner the automatic legend goes under the chart", "[svg]") {
+  // Lines across all four corners: no corner is free, and a legend must
+  // never hide data, so it is drawn below the plot and the figure grows.
+  ChartOptions o;
+  Chart c(o);
+  c.add_line(std::vector<double>{0, 10}, std::vector<double>{0, 10}, {.label = "rising"});
+  c.add_line(std::vector<double>{0, 10}, std::vector<double>{10, 0}, {.label = "falling"});
+  Doc d(c.render());
+  const double height = std::stod(d.root()->Attribute("height"));
+  CHECK(height > o.height);
+  CHECK(std::string(d.root()->Attribute("viewBox")) ==
+        "0 0 640 " + std::string(d.root()->Attribute("height")));
+  const auto* box = find_all(d, "g", "legend").at(0)->FirstChildElement("rect");
+  const ChartLayout L = c.layout();
+  CHECK(attr(box, "y") >= L.plot_bottom);
+  CHECK(attr(box, "y") + attr(box, "height") <= height);
 }
 
 TEST_CASE("fixed domains clip the drawing and keep ticks inside", "[svg]") {

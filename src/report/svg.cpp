@@ -780,12 +780,16 @@ std::string Chart::render_svg() const {
       fmt::format("rxsvg-{:016x}", fnv1a(plot_body + texts + o.title + o.x_label + o.y_label +
                                          fmt::format("{}x{}", num(o.width), num(o.height))));
 
-  std::string out = fmt::format(
-      "<svg xmlns=\"http://www.w3.org/2000/svg\" width=\"{0}\" height=\"{1}\" viewBox=\"0 0 {0} "
-      "{1}\" role=\"img\" aria-labelledby=\"{2}-title{3}\" font-family=\"sans-serif\" "
-      "font-size=\"{4}\">\n",
-      dim(o.width), dim(o.height), id, o.description.empty() ? "" : fmt::format(" {}-desc", id),
-      num(fs));
+  const auto svg_head = [&](double height) {
+    return fmt::format(
+        "<svg xmlns=\"http://www.w3.org/2000/svg\" width=\"{0}\" height=\"{1}\" viewBox=\"0 0 {0} "
+        "{1}\" role=\"img\" aria-labelledby=\"{2}-title{3}\" font-family=\"sans-serif\" "
+        "font-size=\"{4}\">\n",
+        dim(o.width), dim(height), id, o.description.empty() ? "" : fmt::format(" {}-desc", id),
+        num(fs));
+  };
+  const std::string head = svg_head(o.height);
+  std::string out = head;
   std::string accessible_title = o.title;
   if (accessible_title.empty())
     accessible_title = !o.y_label.empty() && !o.x_label.empty() ? o.y_label + " versus " + o.x_label
@@ -919,6 +923,7 @@ std::string Chart::render_svg() const {
       return Box{x0, y0, x0 + bw, y0 + bh};
     };
     LegendPosition where = o.legend;
+    bool below = false;  // under the chart, which grows to hold it
     if (where == LegendPosition::Auto) {
       std::size_t best = std::numeric_limits<std::size_t>::max();
       for (auto p : {LegendPosition::TopRight, LegendPosition::TopLeft, LegendPosition::BottomRight,
@@ -930,8 +935,15 @@ std::string Chart::render_svg() const {
           hits += 20 * (bar.x0 < b.x1 && bar.x1 > b.x0 && bar.y0 < b.y1 && bar.y1 > b.y0);
         if (hits < best) best = hits, where = p;
       }
+      // A legend never hides data: when every corner holds some, it goes
+      // under the chart.
+      below = best > 0;
     }
-    const Box b = corner(where);
+    Box b = corner(where);
+    if (below) {
+      b = Box{plot.x0, o.height, plot.x0 + bw, o.height + bh};
+      out.replace(0, head.size(), svg_head(o.height + bh + kLegendInset));
+    }
     out += fmt::format(
         "<g class=\"legend\" font-size=\"{}\">\n<rect x=\"{}\" y=\"{}\" width=\"{}\" height=\"{}\" "
         "rx=\"3\" fill=\"#ffffff\" fill-opacity=\"0.9\" stroke=\"#bbbbbb\" stroke-width=\"1\"/>\n",
