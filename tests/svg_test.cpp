@@ -674,6 +674,29 @@ TEST_CASE("with data in every corner the automatic legend goes under the chart",
   CHECK(attr(box, "y") + attr(box, "height") <= height);
 }
 
+TEST_CASE("a text label that would sit on a reference-line label moves down", "[svg]") {
+  // A vertical limit's label sits at the plot's top edge; a stage label
+  // placed at the same spot must not be drawn over it.
+  ChartOptions o;
+  o.legend = LegendPosition::None;
+  o.x_domain = Interval{0.0, 10.0};
+  o.y_domain = Interval{0.0, 1.0};
+  Chart c(o);
+  c.add_line(std::vector<double>{0, 10}, std::vector<double>{0, 1});
+  c.add_vline(2.0, {.label = "T_in_min"});
+  c.add_vline(2.1, {.label = "T_low"});  // its label would cover the first one's
+  c.add_text(2.2, 1.0, "B3", {.dy = 0.0});
+  Doc d(c.render());
+  const auto* ref = find_all(d, "text", "refline-label").at(0);
+  const auto* ref2 = find_all(d, "text", "refline-label").at(1);
+  const auto* lab = find_all(d, "text", "label").at(0);
+  const double fs = o.font_size;
+  // Baselines a line apart at least: the boxes do not meet.
+  CHECK(std::abs(attr(ref2, "y") - attr(ref, "y")) >= fs);
+  CHECK(attr(lab, "y") - attr(ref, "y") >= fs);
+  CHECK(attr(lab, "y") - attr(ref2, "y") >= o.font_size - 1.0);  // label font 11 px
+}
+
 TEST_CASE("fixed domains clip the drawing and keep ticks inside", "[svg]") {
   ChartOptions o;
   o.x_domain = Interval{0.0, 10.0};

@@ -221,7 +221,16 @@ struct LegendEntry {
 struct Box {
   double x0, y0, x1, y1;
   bool contains(double x, double y) const { return x >= x0 && x <= x1 && y >= y0 && y <= y1; }
+  bool overlaps(const Box& b) const { return x0 < b.x1 && b.x0 < x1 && y0 < b.y1 && b.y0 < y1; }
 };
+
+// The box of a text line at baseline y, by its anchor.
+Box text_box(double x, double y, double width, double size, TextAnchor anchor) {
+  const double x0 = anchor == TextAnchor::Start ? x
+                    : anchor == TextAnchor::End ? x - width
+                                                : x - 0.5 * width;
+  return {x0, y - size, x0 + width, y + 0.3 * size};
+}
 
 }  // namespace
 
@@ -634,6 +643,25 @@ std::string Chart::render_svg() const {
     }
   };
   std::vector<Box> bar_boxes;
+  std::vector<Box> label_boxes;  // reference-line labels placed so far
+  // A label's baseline moved down, a line at a time, until its box meets no
+  // reference-line label already placed (the T-X diagram's limit labels
+  // share the plot's top edge with the stage labels).
+  const auto free_baseline = [&](double x, double y, double width, double size, TextAnchor a) {
+    for (int tries = 0; tries < 4; ++tries) {
+      const Box b = text_box(x, y, width, size, a);
+      if (std::none_of(label_boxes.begin(), label_boxes.end(),
+                       [&](const Box& placed) { return placed.overlaps(b); }))
+        break;
+      y += size + 3.0;
+    }
+    return y;
+  };
+  struct PendingText {
+    std::size_t series;
+    const detail::TextLabel* t;
+  };
+  std::vector<PendingText> pending_texts;  // drawn after every reference label is placed
   const std::size_t n_bar_series = bar_series_;
 
   for (std::size_t si = 0; si < series_.size(); ++si) {
@@ -742,16 +770,23 @@ std::string Chart::render_svg() const {
         g += fmt::format("<line x1=\"{0}\" y1=\"{1}\" x2=\"{0}\" y2=\"{2}\"/>\n", num(px),
                          num(L.plot_top), num(L.plot_bottom));
         const bool left_side = px + 4.0 + tw > L.plot_right;
-        label = fmt::format("<text x=\"{}\" y=\"{}\" text-anchor=\"{}\"",
-                            num(left_side ? px - 4.0 : px + 4.0), num(L.plot_top + fs + 2.0),
+        const double lx = left_side ? px - 4.0 : px + 4.0;
+        const TextAnchor anchor = left_side ? TextAnchor::End : TextAnchor::Start;
+        const double ly = free_baseline(lx, L.plot_top + fs + 2.0, tw, fs, anchor);
+        if (!r->opt.label.empty()) label_boxes.push_back(text_box(lx, ly, tw, fs, anchor));
+        label = fmt::format("<text x=\"{}\" y=\"{}\" text-anchor=\"{}\"", num(lx), num(ly),
                             left_side ? "end" : "start");
       } else {
         const double py = L.y.map(r->value);
         g += fmt::format("<line x1=\"{0}\" y1=\"{1}\" x2=\"{2}\" y2=\"{1}\"/>\n", num(L.plot_left),
                          num(py), num(L.plot_right));
         const bool below = py - 4.0 - fs < L.plot_top;
+        const double ly = free_baseline(L.plot_right - 4.0, below ? py + fs + 2.0 : py - 4.0, tw,
+                                        fs, TextAnchor::End);
+        if (!r->opt.label.empty())
+          label_boxes.push_back(text_box(L.plot_right - 4.0, ly, tw, fs, TextAnchor::End));
         label = fmt::format("<text x=\"{}\" y=\"{}\" text-anchor=\"end\"", num(L.plot_right - 4.0),
-                            num(below ? py + fs + 2.0 : py - 4.0));
+                            num(ly));
       }
       g += "</g>\n";
       if (!r->opt.label.empty())
@@ -763,14 +798,20 @@ std::string Chart::render_svg() const {
       refs += g;
     } else if (const auto* t = std::get_if<detail::TextLabel>(&s)) {
       if (!in_x(t->x) || !in_y(t->y)) continue;
-      texts += fmt::format(
-          "<text class=\"label\" data-series=\"{}\" x=\"{}\" y=\"{}\" text-anchor=\"{}\" "
-          "fill=\"{}\" font-size=\"{}\" stroke=\"#ffffff\" stroke-width=\"3\" "
-          "paint-order=\"stroke\">{}</text>\n",
-          si, num(L.x.map(t->x) + t->opt.dx), num(L.y.map(t->y) + t->opt.dy),
-          anchor_name(t->opt.anchor), xml_escape(t->opt.colour), num(t->opt.font_size),
-          xml_escape(t->text));
+      pending_texts.push_back({si, t});
     }
+  }
+  for (const auto& [si, t] : pending_texts) {
+    const double x = L.x.map(t->x) + t->opt.dx;
+    const double y = free_baseline(x, L.y.map(t->y) + t->opt.dy,
+                                   text_width(t->text, t->opt.font_size), t->opt.font_size,
+                                   t->opt.anchor);
+    texts += fmt::format(
+        "<text class=\"label\" data-series=\"{}\" x=\"{}\" y=\"{}\" text-anchor=\"{}\" "
+        "fill=\"{}\" font-size=\"{}\" stroke=\"#ffffff\" stroke-width=\"3\" "
+        "paint-order=\"stroke\">{}</text>\n",
+        si, num(x), num(y), anchor_name(t->opt.anchor), xml_escape(t->opt.colour),
+        num(t->opt.font_size), xml_escape(t->text));
   }
   const std::string plot_body = fills + bars + refs + lines;
   texts = ref_labels + texts;  // above the data, unclipped, with a white halo to stay legible
