@@ -62,7 +62,8 @@ void add_equilibrium_records(const Case& c, const TrainOptions& options, TrainRe
 TrainWorkspace::TrainWorkspace()
     : ctx_(std::make_unique<SunContext>()),
       pfr_(std::make_unique<PfrWorkspace>(*ctx_)),
-      cstr_(std::make_unique<CstrWorkspace>(*ctx_)) {}
+      cstr_(std::make_unique<CstrWorkspace>(*ctx_)),
+      pfr_batch_(std::make_unique<PfrBatchWorkspace>(*ctx_)) {}
 TrainWorkspace::~TrainWorkspace() = default;
 TrainWorkspace::TrainWorkspace(TrainWorkspace&&) noexcept = default;
 TrainWorkspace& TrainWorkspace::operator=(TrainWorkspace&&) noexcept = default;

@@ -170,3 +170,71 @@ TEST_CASE("fast dense LU solves like SUNDIALS' dense solver and GSL's LU", "[sol
   SUNLinSolFree(L);
   SUNMatDestroy(S);
 }
+
+TEST_CASE("block-diagonal matrix and block LU solve each block like GSL's LU", "[solver][fastops]") {
+  Ctx c;
+  std::mt19937 rng(13);
+  std::uniform_real_distribution<double> u(-1, 1);
+  const int m = 3, N = 4;
+  SUNMatrix J = detail::make_block_diagonal_matrix(m, N, c.ctx);
+  double* jd = detail::block_diagonal_data(J);
+  for (int k = 0; k < m * N * N; ++k) jd[k] = u(rng);
+  // M = I - gamma J through clone, copy and scale-add-I, as CVODE forms it.
+  SUNMatrix A = SUNMatClone(J);
+  CHECK(A->ops->scaleaddi == J->ops->scaleaddi);
+  REQUIRE(SUNMatCopy(J, A) == 0);
+  REQUIRE(SUNMatScaleAddI(-0.7, A) == 0);
+  const double* ad = detail::block_diagonal_data(A);
+  for (int b = 0; b < m; ++b)
+    for (int j = 0; j < N; ++j)
+      for (int i = 0; i < N; ++i) {
+        const int k = b * N * N + i + j * N;
+        CHECK(ad[k] == -0.7 * jd[k] + (i == j ? 1.0 : 0.0));
+      }
+  std::vector<double> a(ad, ad + m * N * N);  // before factoring in place
+
+  Vec bv(m * N, c.ctx, true), xv(m * N, c.ctx, true);
+  for (int i = 0; i < m * N; ++i) bv.d()[i] = u(rng);
+  SUNLinearSolver L = detail::make_block_lu_solver(m, N, c.ctx);
+  REQUIRE(SUNLinSolInitialize(L) == 0);
+  REQUIRE(SUNLinSolSetup(L, A) == 0);
+  REQUIRE(SUNLinSolSolve(L, A, xv.v, bv.v, 0) == 0);
+  for (int b = 0; b < m; ++b) {
+    gsl_matrix* g = gsl_matrix_alloc(N, N);
+    for (int i = 0; i < N; ++i)
+      for (int j = 0; j < N; ++j) gsl_matrix_set(g, i, j, a[b * N * N + i + j * N]);
+    gsl_permutation* p = gsl_permutation_alloc(N);
+    gsl_vector* gb = gsl_vector_alloc(N);
+    gsl_vector* gx = gsl_vector_alloc(N);
+    for (int i = 0; i < N; ++i) gsl_vector_set(gb, i, bv.d()[b * N + i]);
+    int sign = 0;
+    gsl_linalg_LU_decomp(g, p, &sign);
+    gsl_linalg_LU_solve(g, p, gb, gx);
+    for (int i = 0; i < N; ++i) CHECK(xv.d()[b * N + i] == Approx(gsl_vector_get(gx, i)).epsilon(1e-12));
+    gsl_vector_free(gx), gsl_vector_free(gb), gsl_permutation_free(p), gsl_matrix_free(g);
+  }
+  // A zero block is a recoverable failure naming its first zero pivot.
+  SUNMatZero(A);
+  for (int b = 0; b < m; ++b)
+    if (b != 1)
+      for (int i = 0; i < N; ++i) detail::block_diagonal_data(A)[b * N * N + i + i * N] = 1.0;
+  CHECK(SUNLinSolSetup(L, A) == SUNLS_LUFACT_FAIL);
+  CHECK(SUNLinSolLastFlag(L) == N + 1);
+  SUNLinSolFree(L);
+  SUNMatDestroy(A);
+  SUNMatDestroy(J);
+}
+
+TEST_CASE("the block norm is the largest WRMS norm of any one block", "[solver][fastops]") {
+  Ctx c;
+  const int N = 3;
+  Vec x(3 * N, c.ctx, true), w(3 * N, c.ctx, true);
+  const double xs[] = {1, 2, 3, 10, 0, 0, 0.5, 0.5, 0.5};
+  for (int i = 0; i < 3 * N; ++i) x.d()[i] = xs[i], w.d()[i] = 0.5;
+  detail::use_block_max_norm(x.v, N);
+  // Block 2: sqrt((5^2 + 0 + 0) / 3); the whole vector's RMS would be smaller.
+  CHECK(N_VWrmsNorm(x.v, w.v) == Approx(5.0 / std::sqrt(3.0)).epsilon(1e-15));
+  N_Vector clone = N_VClone(x.v);
+  CHECK(clone->ops->nvwrmsnorm == x.v->ops->nvwrmsnorm);
+  N_VDestroy(clone);
+}

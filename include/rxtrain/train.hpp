@@ -3,6 +3,7 @@
 #pragma once
 
 #include <memory>
+#include <span>
 #include <string>
 #include <vector>
 
@@ -10,6 +11,7 @@
 #include "rxtrain/levenspiel.hpp"
 #include "rxtrain/stages/cstr.hpp"
 #include "rxtrain/stages/pfr.hpp"
+#include "rxtrain/stages/pfr_batch.hpp"
 #include "rxtrain/stages/stage.hpp"
 
 namespace rxtrain {
@@ -80,11 +82,13 @@ class TrainWorkspace {
   const SunContext& context() const { return *ctx_; }
   PfrWorkspace& pfr() { return *pfr_; }
   CstrWorkspace& cstr() { return *cstr_; }
+  PfrBatchWorkspace& pfr_batch() { return *pfr_batch_; }
 
  private:
   std::unique_ptr<SunContext> ctx_;  // on the heap: pfr_ and cstr_ point at it
   std::unique_ptr<PfrWorkspace> pfr_;
   std::unique_ptr<CstrWorkspace> cstr_;
+  std::unique_ptr<PfrBatchWorkspace> pfr_batch_;
 };
 
 // Runs every stage of the case in order. Throws SolverError (naming the
@@ -106,5 +110,21 @@ TrainResult run_train(const Case& c, const TrainOptions& options, TrainWorkspace
 // `result`, the warm starts of a next run of the same case (reusing the
 // vectors' storage).
 void set_warm_starts(const TrainResult& result, std::vector<CstrWarmStart>& warm_starts);
+
+// True when run_trains_batched can run c's train under `options`: every
+// reactor a tubular stage run_pfr_batch takes (pfr_batchable), and no
+// equilibrium views (they need full profiles).
+bool train_batchable(const Case& c, const TrainOptions& options);
+
+// Runs the trains of several cases with one layout (the same stages in the
+// same order, as the points of one study have) side by side, stage by
+// stage: exchangers per case, tubular stages as one batch (run_pfr_batch,
+// which says how the numbers relate to a lone run's). Results in case
+// order, as run_train gives them with options.equilibrium_views off.
+// Every case must pass train_batchable. Throws what a stage throws, for
+// the batch as a whole: a caller that needs each run's own outcome reruns
+// the cases one by one with run_train.
+std::vector<TrainResult> run_trains_batched(std::span<const Case* const> cases,
+                                            const TrainOptions& options, TrainWorkspace& ws);
 
 }  // namespace rxtrain

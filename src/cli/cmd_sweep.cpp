@@ -140,11 +140,20 @@ int run_sweep_command(const SweepCommandOptions& o) {
   const Case c = load_case(o.case_file, units);
   const Shard shard = Shard::parse(o.shard);
   const CasePathTable table(c);
-  const Study study = parse_study(o.vary, o.sample, o.runs, o.seed, table, units);
+  Study study = parse_study(o.vary, o.sample, o.runs, o.seed, table, units);
   if (o.seed_given && !study.monte_carlo())
     throw InputError({"--seed", 0, 0}, "--seed applies to --sample (Monte Carlo) only");
   const OutputSpec outputs =
       o.output.empty() ? OutputSpec::defaults(c) : OutputSpec::parse(o.output, c);
+
+  SweepOptions options;
+  options.jobs = o.jobs;
+  options.shard = shard;
+  options.train.pfr.cvode.rtol = o.rtol;
+  options.train.cstr.pfr.cvode.rtol = o.rtol;
+  options.progress = Progress();
+  // Runs solved in batches share their steps: the batches are part of the study.
+  if (batched_study(c, table, outputs, options)) study.chain = kBatchRuns;
 
   std::ifstream in(o.case_file, std::ios::binary);
   const std::string bytes((std::istreambuf_iterator<char>(in)), std::istreambuf_iterator<char>());
@@ -156,12 +165,6 @@ int run_sweep_command(const SweepCommandOptions& o) {
     if (std::find(names.begin(), names.end(), m) != names.end()) header.margin.push_back(m);
   }
 
-  SweepOptions options;
-  options.jobs = o.jobs;
-  options.shard = shard;
-  options.train.pfr.cvode.rtol = o.rtol;
-  options.train.cstr.pfr.cvode.rtol = o.rtol;
-  options.progress = Progress();
   const std::vector<RunRow> rows = run_sweep(c, table, study, outputs, options);
   const auto inputs = study.input_names();
   StudySummary summary = summarize_study(outputs.names(), header.margin, rows);

@@ -97,6 +97,8 @@ struct CvodeIntegrator::Impl {
   Rhs rhs;
   Jacobian jac;
   SparseJacobian sparse_jac;
+  BlockJacobian block_jac;
+  int blocks = 1;
   SparsePattern pattern;
   Roots roots;
   int n_roots = 0;
@@ -158,6 +160,16 @@ struct CvodeIntegrator::Impl {
     auto* self = static_cast<Impl*>(data);
     try {
       return self->jac(t, N_VGetArrayPointer(y), N_VGetArrayPointer(fy), SUNDenseMatrix_Data(J));
+    } catch (...) {
+      self->pending = std::current_exception();
+      return -1;
+    }
+  }
+  static int block_jac_fn(sunrealtype t, N_Vector y, N_Vector, SUNMatrix J, void* data, N_Vector,
+                          N_Vector, N_Vector) {
+    auto* self = static_cast<Impl*>(data);
+    try {
+      return self->block_jac(t, N_VGetArrayPointer(y), detail::block_diagonal_data(J));
     } catch (...) {
       self->pending = std::current_exception();
       return -1;
@@ -327,6 +339,32 @@ CvodeIntegrator::CvodeIntegrator(const SunContext& ctx, int n, Rhs rhs, SparsePa
   m.create_cvode(sctx);
 }
 
+CvodeIntegrator::CvodeIntegrator(const SunContext& ctx, int blocks, int block_size, Rhs rhs,
+                                 BlockJacobian jac, const CvodeOptions& options,
+                                 const std::vector<double>& scale)
+    : impl_(std::make_unique<Impl>()) {
+  if (auto msg = options.validate(); !msg.empty())
+    throw std::invalid_argument("CvodeOptions: " + msg);
+  if (blocks < 1 || block_size < 1 || block_size > kMaxBlockSize)
+    throw std::invalid_argument("CvodeIntegrator: blocks >= 1 of 1..64 states each");
+  if (!jac) throw std::invalid_argument("CvodeIntegrator: a block solver needs its Jacobian");
+  auto sctx = static_cast<SUNContext>(ctx.get());
+  Impl& m = *impl_;
+  m.n = blocks * block_size;
+  m.blocks = blocks;
+  m.rhs = std::move(rhs);
+  m.block_jac = std::move(jac);
+  m.options = options;
+  m.allocate_vectors(sctx, scale);
+  // Before CVODE clones its work vectors from y.
+  detail::use_block_max_norm(m.y.get(), block_size);
+  m.A.reset(detail::make_block_diagonal_matrix(blocks, block_size, sctx));
+  if (!m.A) throw SolverError("could not allocate the block-diagonal CVODE matrix");
+  m.LS.reset(detail::make_block_lu_solver(blocks, block_size, sctx));
+  if (!m.LS) throw SolverError("could not create the block linear solver");
+  m.create_cvode(sctx);
+}
+
 CvodeIntegrator::~CvodeIntegrator() = default;
 CvodeIntegrator::CvodeIntegrator(CvodeIntegrator&&) noexcept = default;
 CvodeIntegrator& CvodeIntegrator::operator=(CvodeIntegrator&&) noexcept = default;
@@ -343,6 +381,8 @@ void CvodeIntegrator::init(double t0, const std::vector<double>& y0) {
     m.check(CVodeSetLinearSolver(mem, m.LS.get(), m.A.get()), "CVodeSetLinearSolver");
     if (m.sparse_jac)
       m.check(CVodeSetJacFn(mem, &Impl::sparse_jac_fn), "CVodeSetJacFn");
+    else if (m.block_jac)
+      m.check(CVodeSetJacFn(mem, &Impl::block_jac_fn), "CVodeSetJacFn");
     else if (m.jac)
       m.check(CVodeSetJacFn(mem, &Impl::jac_fn), "CVodeSetJacFn");
     m.check(CVodeSetMaxNumSteps(mem, m.options.max_steps), "CVodeSetMaxNumSteps");
@@ -358,6 +398,7 @@ void CvodeIntegrator::init(double t0, const std::vector<double>& y0) {
 void CvodeIntegrator::set_scale(const std::vector<double>& scale) { impl_->set_scale(scale); }
 int CvodeIntegrator::size() const { return impl_->n; }
 bool CvodeIntegrator::sparse() const { return static_cast<bool>(impl_->sparse_jac); }
+int CvodeIntegrator::blocks() const { return impl_->blocks; }
 const CvodeOptions& CvodeIntegrator::options() const { return impl_->options; }
 
 void CvodeIntegrator::set_roots(int count, Roots g, const std::vector<int>& direction) {

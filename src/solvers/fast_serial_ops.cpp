@@ -3,6 +3,8 @@
 #include <nvector/nvector_serial.h>
 #include <sunmatrix/sunmatrix_dense.h>
 
+#include <algorithm>
+#include <array>
 #include <cmath>
 #include <memory>
 #include <utility>
@@ -204,24 +206,18 @@ int lu_initialize(SUNLinearSolver S) {
   return SUNLS_SUCCESS;
 }
 
-// In-place LU with partial pivoting (row interchanges recorded in p), the
-// method of the library's dense solver. Returns 0, or k + 1 when the k-th
-// pivot is exactly zero (a singular iteration matrix: CVODE retries with a
-// smaller step).
-int lu_setup(SUNLinearSolver S, SUNMatrix A) {
-  DenseLu& lu = lu_of(S);
-  const sunindextype n = SM_COLUMNS_D(A);
-  double* a = SM_DATA_D(A);
+// In-place LU with partial pivoting of the n x n column-major matrix a
+// (row interchanges recorded in p), the method of the library's dense
+// solver. Returns 0, or k + 1 when the k-th pivot is exactly zero (a
+// singular iteration matrix: CVODE retries with a smaller step).
+sunindextype lu_factor(double* a, sunindextype n, sunindextype* piv) {
   auto at = [a, n](sunindextype i, sunindextype j) -> double& { return a[i + j * n]; };
   for (sunindextype k = 0; k < n; ++k) {
     sunindextype p = k;
     for (sunindextype i = k + 1; i < n; ++i)
       if (std::abs(at(i, k)) > std::abs(at(p, k))) p = i;
-    lu.pivots[k] = p;
-    if (at(p, k) == 0) {
-      lu.last_flag = k + 1;
-      return SUNLS_LUFACT_FAIL;
-    }
+    piv[k] = p;
+    if (at(p, k) == 0) return k + 1;
     if (p != k)
       for (sunindextype j = 0; j < n; ++j) std::swap(at(k, j), at(p, j));
     const double inv_pivot = 1.0 / at(k, k);
@@ -232,21 +228,13 @@ int lu_setup(SUNLinearSolver S, SUNMatrix A) {
       for (sunindextype i = k + 1; i < n; ++i) at(i, j) -= at(i, k) * akj;
     }
   }
-  lu.last_flag = 0;
-  return SUNLS_SUCCESS;
+  return 0;
 }
 
-int lu_solve(SUNLinearSolver S, SUNMatrix A, N_Vector x, N_Vector b, double) {
-  DenseLu& lu = lu_of(S);
-  const sunindextype n = SM_COLUMNS_D(A);
-  const double* a = SM_DATA_D(A);
-  double* xd = data(x);
-  if (x != b) {
-    const double* bd = data(b);
-    for (sunindextype i = 0; i < n; ++i) xd[i] = bd[i];
-  }
+// Solves (LU) x = P b in place in x with the factors of lu_factor().
+void lu_substitute(const double* a, sunindextype n, const sunindextype* piv, double* xd) {
   for (sunindextype k = 0; k < n; ++k)
-    if (lu.pivots[k] != k) std::swap(xd[k], xd[lu.pivots[k]]);
+    if (piv[k] != k) std::swap(xd[k], xd[piv[k]]);
   for (sunindextype j = 0; j < n; ++j) {  // L y = P b (unit diagonal)
     const double v = xd[j];
     if (v != 0)
@@ -258,6 +246,23 @@ int lu_solve(SUNLinearSolver S, SUNMatrix A, N_Vector x, N_Vector b, double) {
     if (v != 0)
       for (sunindextype i = 0; i < j; ++i) xd[i] -= a[i + j * n] * v;
   }
+}
+
+int lu_setup(SUNLinearSolver S, SUNMatrix A) {
+  DenseLu& lu = lu_of(S);
+  lu.last_flag = lu_factor(SM_DATA_D(A), SM_COLUMNS_D(A), lu.pivots.data());
+  return lu.last_flag == 0 ? SUNLS_SUCCESS : SUNLS_LUFACT_FAIL;
+}
+
+int lu_solve(SUNLinearSolver S, SUNMatrix A, N_Vector x, N_Vector b, double) {
+  DenseLu& lu = lu_of(S);
+  const sunindextype n = SM_COLUMNS_D(A);
+  double* xd = data(x);
+  if (x != b) {
+    const double* bd = data(b);
+    for (sunindextype i = 0; i < n; ++i) xd[i] = bd[i];
+  }
+  lu_substitute(SM_DATA_D(A), n, lu.pivots.data(), xd);
   lu.last_flag = 0;
   return SUNLS_SUCCESS;
 }
@@ -267,6 +272,120 @@ sunindextype lu_last_flag(SUNLinearSolver S) { return lu_of(S).last_flag; }
 int lu_free(SUNLinearSolver S) {
   if (S == nullptr) return SUNLS_SUCCESS;
   delete static_cast<DenseLu*>(S->content);
+  S->content = nullptr;
+  SUNLinSolFreeEmpty(S);
+  return SUNLS_SUCCESS;
+}
+
+// ---- block-diagonal systems (independent runs solved together) -------------
+
+// The WRMS norm of the block (of N states) with the largest one: each run's
+// error is held to the tolerance as if it were integrated alone, instead
+// of the whole vector's RMS, in which one run's error would count
+// 1/sqrt(blocks) as much.
+template <int N>
+double block_max_wrms_norm(N_Vector x, N_Vector w) {
+  const double *xd = data(x), *wd = data(w);
+  const sunindextype n = len(x);
+  double worst = 0;
+  for (sunindextype b = 0; b + N <= n; b += N) {
+    double s = 0;
+    for (int i = 0; i < N; ++i) {
+      const double p = xd[b + i] * wd[b + i];
+      s += p * p;
+    }
+    worst = s > worst ? s : worst;
+  }
+  return std::sqrt(worst / N);
+}
+using NormFn = double (*)(N_Vector, N_Vector);
+template <std::size_t... I>
+constexpr std::array<NormFn, sizeof...(I)> block_norms(std::index_sequence<I...>) {
+  return {&block_max_wrms_norm<static_cast<int>(I) + 1>...};
+}
+constexpr auto kBlockNorms = block_norms(std::make_index_sequence<kMaxBlockSize>{});
+
+// A block-diagonal matrix: `blocks` column-major N x N blocks, one after
+// the other. CVODE only zeroes, copies, clones and shifts its matrix.
+struct BlockMatrix {
+  sunindextype blocks = 0, N = 0;
+  std::vector<double> data;
+};
+BlockMatrix& blocks_of(SUNMatrix A) { return *static_cast<BlockMatrix*>(A->content); }
+
+SUNMatrix_ID block_id(SUNMatrix) { return SUNMATRIX_CUSTOM; }
+int block_zero(SUNMatrix A) {
+  auto& d = blocks_of(A).data;
+  std::fill(d.begin(), d.end(), 0.0);
+  return 0;
+}
+int block_copy(SUNMatrix A, SUNMatrix B) {
+  blocks_of(B).data = blocks_of(A).data;  // same sizes: no allocation
+  return 0;
+}
+// A = c A + I
+int block_scale_add_identity(double c, SUNMatrix A) {
+  BlockMatrix& m = blocks_of(A);
+  const sunindextype N = m.N;
+  for (sunindextype b = 0; b < m.blocks; ++b) {
+    double* a = m.data.data() + b * N * N;
+    for (sunindextype k = 0; k < N * N; ++k) a[k] *= c;
+    for (sunindextype i = 0; i < N; ++i) a[i + i * N] += 1.0;
+  }
+  return 0;
+}
+void block_destroy(SUNMatrix A) {
+  if (A == nullptr) return;
+  delete static_cast<BlockMatrix*>(A->content);
+  A->content = nullptr;
+  SUNMatFreeEmpty(A);
+}
+SUNMatrix block_clone(SUNMatrix A) {
+  const BlockMatrix& m = blocks_of(A);
+  return make_block_diagonal_matrix(static_cast<int>(m.blocks), static_cast<int>(m.N), A->sunctx);
+}
+
+struct BlockLu {
+  std::vector<sunindextype> pivots;  // N per block
+  sunindextype last_flag = 0;
+};
+BlockLu& block_lu_of(SUNLinearSolver S) { return *static_cast<BlockLu*>(S->content); }
+int block_lu_initialize(SUNLinearSolver S) {
+  block_lu_of(S).last_flag = 0;
+  return SUNLS_SUCCESS;
+}
+int block_lu_setup(SUNLinearSolver S, SUNMatrix A) {
+  BlockLu& lu = block_lu_of(S);
+  BlockMatrix& m = blocks_of(A);
+  const sunindextype N = m.N;
+  for (sunindextype b = 0; b < m.blocks; ++b) {
+    const sunindextype f = lu_factor(m.data.data() + b * N * N, N, lu.pivots.data() + b * N);
+    if (f != 0) {
+      lu.last_flag = b * N + f;
+      return SUNLS_LUFACT_FAIL;
+    }
+  }
+  lu.last_flag = 0;
+  return SUNLS_SUCCESS;
+}
+int block_lu_solve(SUNLinearSolver S, SUNMatrix A, N_Vector x, N_Vector b, double) {
+  BlockLu& lu = block_lu_of(S);
+  const BlockMatrix& m = blocks_of(A);
+  const sunindextype N = m.N;
+  double* xd = data(x);
+  if (x != b) {
+    const double* bd = data(b);
+    for (sunindextype i = 0; i < len(x); ++i) xd[i] = bd[i];
+  }
+  for (sunindextype k = 0; k < m.blocks; ++k)
+    lu_substitute(m.data.data() + k * N * N, N, lu.pivots.data() + k * N, xd + k * N);
+  lu.last_flag = 0;
+  return SUNLS_SUCCESS;
+}
+sunindextype block_lu_last_flag(SUNLinearSolver S) { return block_lu_of(S).last_flag; }
+int block_lu_free(SUNLinearSolver S) {
+  if (S == nullptr) return SUNLS_SUCCESS;
+  delete static_cast<BlockLu*>(S->content);
   S->content = nullptr;
   SUNLinSolFreeEmpty(S);
   return SUNLS_SUCCESS;
@@ -325,6 +444,49 @@ SUNLinearSolver make_fast_dense_solver(int n, SUNContext ctx) {
   S->ops->solve = &lu_solve;
   S->ops->lastflag = &lu_last_flag;
   S->ops->free = &lu_free;
+  return S;
+}
+
+}  // namespace rxtrain::detail
+
+namespace rxtrain::detail {
+
+void use_block_max_norm(N_Vector v, int block_size) {
+  v->ops->nvwrmsnorm = kBlockNorms.at(static_cast<std::size_t>(block_size) - 1);
+}
+
+SUNMatrix make_block_diagonal_matrix(int blocks, int block_size, SUNContext ctx) {
+  auto m = std::make_unique<BlockMatrix>();
+  m->blocks = blocks;
+  m->N = block_size;
+  m->data.assign(static_cast<std::size_t>(blocks) * block_size * block_size, 0.0);
+  SUNMatrix A = SUNMatNewEmpty(ctx);
+  if (A == nullptr) return nullptr;
+  A->content = m.release();
+  A->ops->getid = &block_id;
+  A->ops->clone = &block_clone;
+  A->ops->destroy = &block_destroy;
+  A->ops->zero = &block_zero;
+  A->ops->copy = &block_copy;
+  A->ops->scaleaddi = &block_scale_add_identity;
+  return A;
+}
+
+double* block_diagonal_data(SUNMatrix A) { return blocks_of(A).data.data(); }
+
+SUNLinearSolver make_block_lu_solver(int blocks, int block_size, SUNContext ctx) {
+  auto lu = std::make_unique<BlockLu>();
+  lu->pivots.assign(static_cast<std::size_t>(blocks) * block_size, 0);
+  SUNLinearSolver S = SUNLinSolNewEmpty(ctx);
+  if (S == nullptr) return nullptr;
+  S->content = lu.release();
+  S->ops->gettype = &lu_type;
+  S->ops->getid = &lu_id;
+  S->ops->initialize = &block_lu_initialize;
+  S->ops->setup = &block_lu_setup;
+  S->ops->solve = &block_lu_solve;
+  S->ops->lastflag = &block_lu_last_flag;
+  S->ops->free = &block_lu_free;
   return S;
 }
 

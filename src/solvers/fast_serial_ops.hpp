@@ -15,6 +15,8 @@
 #include <sundials/sundials_matrix.h>
 #include <sundials/sundials_nvector.h>
 
+#include "rxtrain/solvers/cvode.hpp"
+
 namespace rxtrain::detail {
 
 // Replaces the operations of serial vector v (and of every clone CVODE
@@ -27,5 +29,22 @@ void use_fast_dense_ops(SUNMatrix A);
 // A dense direct linear solver (LU with partial pivoting) for an n x n
 // SUNDenseMatrix. Owned by the caller (SUNLinSolFree).
 SUNLinearSolver make_fast_dense_solver(int n, SUNContext ctx);
+
+// Block-diagonal systems: `blocks` independent systems of block_size
+// states each, stacked in one vector, so that CVODE's per-step work is
+// shared by all of them (see CvodeIntegrator's block constructor).
+// Makes N_VWrmsNorm of v (and of its clones) the largest WRMS norm of any
+// block of block_size states (1 <= block_size <= kMaxBlockSize).
+void use_block_max_norm(N_Vector v, int block_size);
+
+// A block-diagonal matrix of `blocks` dense block_size x block_size blocks
+// (custom SUNMatrix: zero, copy, clone, scale-add-identity). Owned by the
+// caller (SUNMatDestroy).
+SUNMatrix make_block_diagonal_matrix(int blocks, int block_size, SUNContext ctx);
+// Its blocks: column-major, block b at b * block_size^2.
+double* block_diagonal_data(SUNMatrix A);
+
+// LU with partial pivoting of each block of such a matrix.
+SUNLinearSolver make_block_lu_solver(int blocks, int block_size, SUNContext ctx);
 
 }  // namespace rxtrain::detail

@@ -18,16 +18,14 @@ const char* run_status_name(RunStatus s) {
   return "?";
 }
 
-PointResult evaluate_point(const Case& point, const OutputSpec& outputs, PointWorkspace& ws) {
+namespace {
+
+// The run's failure as its row's status; other exceptions go through.
+template <class Run>
+PointResult guarded(std::size_t columns, Run&& run) {
   PointResult p;
-  const std::size_t n = outputs.columns().size();
   try {
-    const TrainResult r = run_train(point, ws.train, ws.solver);
-    check_finite(r);  // no NaN may become a number in a row
-    p.outputs.reserve(n);
-    for (std::size_t i = 0; i < n; ++i) p.outputs.push_back(outputs.extract(i, r));
-    set_warm_starts(r, ws.train.warm_starts);
-    return p;
+    return run();
   } catch (const InfeasibleError& e) {
     p.status = RunStatus::Infeasible;
     p.message = e.message();
@@ -40,9 +38,36 @@ PointResult evaluate_point(const Case& point, const OutputSpec& outputs, PointWo
     p.status = RunStatus::SolverFailure;
     p.message = e.what();
   }
-  p.outputs.assign(n, std::nullopt);
-  ws.train.warm_starts.clear();
+  p.outputs.assign(columns, std::nullopt);
   return p;
+}
+
+PointResult read_outputs(const TrainResult& r, const OutputSpec& outputs) {
+  check_finite(r);  // no NaN may become a number in a row
+  PointResult p;
+  const std::size_t n = outputs.columns().size();
+  p.outputs.reserve(n);
+  for (std::size_t i = 0; i < n; ++i) p.outputs.push_back(outputs.extract(i, r));
+  return p;
+}
+
+}  // namespace
+
+PointResult evaluate_point(const Case& point, const OutputSpec& outputs, PointWorkspace& ws) {
+  bool ok = false;
+  PointResult p = guarded(outputs.columns().size(), [&] {
+    const TrainResult r = run_train(point, ws.train, ws.solver);
+    PointResult q = read_outputs(r, outputs);
+    set_warm_starts(r, ws.train.warm_starts);
+    ok = true;
+    return q;
+  });
+  if (!ok) ws.train.warm_starts.clear();
+  return p;
+}
+
+PointResult evaluate_result(const TrainResult& r, const OutputSpec& outputs) {
+  return guarded(outputs.columns().size(), [&] { return read_outputs(r, outputs); });
 }
 
 }  // namespace rxtrain::sweep

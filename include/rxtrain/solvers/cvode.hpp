@@ -20,6 +20,10 @@
 
 namespace rxtrain {
 
+// Most states per block of a block-diagonal integrator (the block
+// constructor of CvodeIntegrator).
+inline constexpr int kMaxBlockSize = 64;
+
 struct CvodeOptions {
   // Relative tolerance on every state. 1e-8 keeps profile points good to
   // ~1e-7 in T and X, well past what kinetic data justify.
@@ -92,6 +96,11 @@ class CvodeIntegrator {
   using SparseJacobian = std::function<int(double t, const double* y, const double* ydot,
                                            double* values, double* u, double* w)>;
 
+  // Blocks of a block-diagonal Jacobian: `blocks` column-major N x N
+  // blocks one after the other (zeroed before the call), block b holding
+  // d ydot_{bN+i} / d y_{bN+k} at [b N^2 + i + N k].
+  using BlockJacobian = std::function<int(double t, const double* y, double* blocks)>;
+
   // Dense direct solver (SUNDIALS' LU). `scale` multiplies atol per state.
   CvodeIntegrator(const SunContext& ctx, int n, Rhs rhs, Jacobian jac, const CvodeOptions& options,
                   const std::vector<double>& scale);
@@ -99,6 +108,14 @@ class CvodeIntegrator {
   // Its cost follows the fill-in of the LU factors: leave structurally zero
   // entries out of the pattern.
   CvodeIntegrator(const SunContext& ctx, int n, Rhs rhs, SparsePattern pattern, SparseJacobian jac,
+                  const CvodeOptions& options, const std::vector<double>& scale);
+  // Independent systems integrated together: `blocks` systems of
+  // block_size states each (1..kMaxBlockSize), stacked in y, with a block-diagonal
+  // Jacobian, each block factored by dense LU. CVODE's own work per step is
+  // shared by all blocks. The error test and the Newton convergence test
+  // use the largest WRMS norm of any one block, so every system is held to
+  // the tolerances as if it ran alone (on the step sizes all share).
+  CvodeIntegrator(const SunContext& ctx, int blocks, int block_size, Rhs rhs, BlockJacobian jac,
                   const CvodeOptions& options, const std::vector<double>& scale);
   ~CvodeIntegrator();
   CvodeIntegrator(CvodeIntegrator&&) noexcept;
@@ -113,6 +130,7 @@ class CvodeIntegrator {
   void set_scale(const std::vector<double>& scale);
   int size() const;
   bool sparse() const;
+  int blocks() const;  // 1 unless made by the block constructor
   const CvodeOptions& options() const;
   // Root functions g_k(t, y); direction +1, -1 or 0 (both) per function.
   void set_roots(int count, Roots g, const std::vector<int>& direction);

@@ -53,4 +53,8 @@ struct PointWorkspace {
 // through.
 PointResult evaluate_point(const Case& point, const OutputSpec& outputs, PointWorkspace& ws);
 
+// The row of a train already run (a batched run, run_trains_batched): its
+// columns, or SolverFailure for a non-finite value, as evaluate_point.
+PointResult evaluate_result(const TrainResult& r, const OutputSpec& outputs);
+
 }  // namespace rxtrain::sweep

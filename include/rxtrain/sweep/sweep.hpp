@@ -11,6 +11,16 @@
 // cold, a failed run passes nothing on, and a shard that begins inside a
 // chain first recomputes that chain's earlier runs (without writing them).
 // The rows are then the same for any number of jobs and any sharding.
+//
+// Batches: when every reactor of the case is a tubular stage of given
+// volume that run_trains_batched can take (train_batchable) and the study
+// has chains (study.chain > 1, set from batched_study() by the caller),
+// each chain's runs are solved together, one CVODE system for all of
+// them, which shares CVODE's per-step work (docs/performance.md). The
+// chain fixes which runs share a batch, so the rows are again the same for
+// any --jobs and --shard. A batch that fails as a whole (one run's solver
+// failure, an infeasible exchanger) is rerun one run at a time, so each
+// failed row keeps its own reason.
 #pragma once
 
 #include <chrono>
@@ -40,6 +50,17 @@ struct SweepOptions {
   std::function<void(std::size_t done, std::size_t total)> progress;
   std::chrono::milliseconds progress_period{200};
 };
+
+// Runs per batch, the chain length of a batched study: long enough that
+// CVODE's per-step work is small per run, short enough that a sweep of a
+// few hundred runs still spreads over the threads.
+inline constexpr std::size_t kBatchRuns = 16;
+
+// True when the runs of a study of `base` with these outputs can be solved
+// in batches (see above); the caller then sets the study's chain to
+// kBatchRuns before writing its definition.
+bool batched_study(const Case& base, const CasePathTable& table, const OutputSpec& outputs,
+                   const SweepOptions& options);
 
 std::vector<RunRow> run_sweep(const Case& base, const CasePathTable& table, const Study& study,
                               const OutputSpec& outputs, const SweepOptions& options);

@@ -1,0 +1,148 @@
+#include "rxtrain/stages/pfr_batch.hpp"
+
+#include <fmt/format.h>
+
+#include <algorithm>
+#include <optional>
+#include <stdexcept>
+#include <vector>
+
+#include "pfr_system.hpp"
+#include "rxtrain/error.hpp"
+
+namespace rxtrain {
+
+struct PfrBatchWorkspace::State {
+  std::vector<detail::PfrSystem> sys;  // one per item
+  std::vector<double> length;          // V_b of each item, m3
+  std::optional<CvodeIntegrator> ode;
+  CvodeOptions ode_options;
+  int N = 0;  // states per item
+  std::vector<double> y, y0, scale, block;
+
+  // Right-hand side and Jacobian blocks on s = V / V_b. A recoverable
+  // failure of one block (a trial state out of range) is the batch's:
+  // CVODE shortens the common step.
+  int rhs(const double* yy, double* ydot) {
+    for (std::size_t b = 0; b < sys.size(); ++b) {
+      const std::size_t o = b * N;
+      if (const int rc = sys[b].rhs(yy + o, ydot + o); rc != 0) return rc;
+      for (int i = 0; i < N; ++i) ydot[o + i] *= length[b];
+    }
+    return 0;
+  }
+  int jac(const double* yy, double* blocks) {
+    const std::size_t NN = static_cast<std::size_t>(N) * N;
+    for (std::size_t b = 0; b < sys.size(); ++b) {
+      double* J = blocks + b * NN;
+      if (const int rc = sys[b].jac(yy + b * N, J); rc != 0) return rc;
+      for (std::size_t k = 0; k < NN; ++k) J[k] *= length[b];
+    }
+    return 0;
+  }
+};
+
+PfrBatchWorkspace::PfrBatchWorkspace(const SunContext& ctx)
+    : ctx_(&ctx), state_(std::make_unique<State>()) {}
+PfrBatchWorkspace::~PfrBatchWorkspace() = default;
+PfrBatchWorkspace::PfrBatchWorkspace(PfrBatchWorkspace&&) noexcept = default;
+PfrBatchWorkspace& PfrBatchWorkspace::operator=(PfrBatchWorkspace&&) noexcept = default;
+
+bool pfr_batchable(const Mechanism& mech, const ReactorSpec& spec, const PfrOptions& options) {
+  return spec.type == ReactorType::Pfr && !spec.target_conversion && spec.volume &&
+         *spec.volume > 0 && (spec.heat != HeatMode::Adiabatic || mech.n_reactions() == 1) &&
+         !options.full_profile && !options.stop_temperature &&
+         !uses_sparse_jacobian(options, mech.n_species()) &&
+         mech.n_species() + 2 <= kMaxBlockSize;
+}
+
+std::vector<StageResult> run_pfr_batch(std::span<const PfrBatchItem> items, PfrBatchWorkspace& ws,
+                                       const PfrOptions& options) {
+  if (items.empty()) return {};
+  PfrBatchWorkspace::State& st = ws.state();
+  const int m = static_cast<int>(items.size());
+  const int n = items[0].mech->n_species();
+  const int N = n + 2;
+  for (const auto& it : items)
+    if (it.mech->n_species() != n || !pfr_batchable(*it.mech, *it.spec, options))
+      throw std::invalid_argument("run_pfr_batch: an item that cannot be batched");
+
+  st.sys.resize(m);
+  st.length.resize(m);
+  st.y0.clear();
+  st.scale.clear();
+  for (int b = 0; b < m; ++b) {
+    const PfrBatchItem& it = items[b];
+    st.sys[b].reset(*it.mech, rate_multipliers(*it.mech, *it.spec), it.spec->heat, it.inlet.P);
+    st.length[b] = *it.spec->volume;
+    detail::initial_state(it.inlet, st.block);
+    st.y0.insert(st.y0.end(), st.block.begin(), st.block.end());
+    detail::state_scale(*it.mech, it.inlet, st.block);
+    st.scale.insert(st.scale.end(), st.block.begin(), st.block.end());
+  }
+  const CvodeOptions& co = options.cvode;
+  const bool reuse = st.ode && st.ode->blocks() == m && st.N == N && co.rtol == st.ode_options.rtol &&
+                     co.atol == st.ode_options.atol && co.max_steps == st.ode_options.max_steps &&
+                     co.max_order == st.ode_options.max_order;
+  if (!reuse) {
+    st.ode.reset();
+    st.ode.emplace(
+        ws.context(), m, N, [s = &st](double, const double* y, double* yd) { return s->rhs(y, yd); },
+        [s = &st](double, const double* y, double* J) { return s->jac(y, J); }, co, st.scale);
+    st.N = N;
+    st.ode_options = co;
+  } else {
+    st.ode->set_scale(st.scale);
+  }
+  CvodeIntegrator& ode = *st.ode;
+  ode.init(0.0, st.y0);
+  ode.set_roots(0, nullptr, {});
+  ode.set_stop_time(1.0);
+  double s = 0;
+  try {
+    while (ode.advance(1.0, s, st.y) != CvodeIntegrator::Event::Stop) {
+    }
+  } catch (const SolverError& e) {
+    throw SolverError(fmt::format("{} (batch of {} runs) at s = {:.6g} of 1: {}", items[0].spec->id,
+                                  m, s, e.what()));
+  }
+  const SolverStats stats = ode.stats();
+
+  std::vector<StageResult> out(m);
+  for (int b = 0; b < m; ++b) {
+    const PfrBatchItem& it = items[b];
+    const ReactorSpec& spec = *it.spec;
+    StageResult& res = out[b];
+    const double* yb = st.y.data() + static_cast<std::size_t>(b) * N;
+    res.id = spec.id;
+    res.kind = StageKind::Pfr;
+    res.heat = spec.heat;
+    res.inlet = it.inlet;
+    res.bulk_density = spec.bulk_density;
+    // The profile run_pfr keeps without full_profile: inlet and outlet.
+    const auto point = [&](double V, const double* y) {
+      ProfilePoint p;
+      p.V = V;
+      p.T = y[n];
+      p.X = it.basis.conversion(y);
+      p.F.assign(y, y + n);
+      return p;
+    };
+    res.profile.push_back(point(0.0, st.y0.data() + static_cast<std::size_t>(b) * N));
+    res.profile.push_back(point(st.length[b], yb));
+    res.volume = st.length[b];
+    res.sized = false;
+    if (spec.bulk_density) res.catalyst_mass = st.length[b] * *spec.bulk_density;
+    res.outlet = Stream{yb[n], it.inlet.P, std::vector<double>(yb, yb + n)};
+    for (auto& f : res.outlet.F) f = std::max(f, 0.0);  // solver round-off below zero
+    res.duty = yb[n + 1];
+    res.conversion = it.basis.conversion(res.outlet);
+    res.T_max = std::max(it.inlet.T, yb[n]);
+    res.T_min = std::min(it.inlet.T, yb[n]);
+    res.stats = stats;
+    add_space_velocities(*it.mech, res);
+  }
+  return out;
+}
+
+}  // namespace rxtrain
