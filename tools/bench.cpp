@@ -1,7 +1,7 @@
 // Speed benchmark (docs/performance.md): `rxtrain_bench [OPTIONS] [CASE...]`.
 //   --seconds S   time budget per measurement (default 1)
 //   --runs N      runs of the threaded sweep (default 2000)
-//   --only PART   one of startup, cases, tolerances, synthetic, threads
+//   --only PART   one of startup, cases, tolerances, synthetic, threads, sweep
 // Cases default to cases/*.yaml and tools/bench-cases/*.yaml. Each figure
 // is the median of ten batches, each calibrated to about S/10 seconds,
 // with the solver's work counts of one run. Plain timed loops; nothing
@@ -22,6 +22,9 @@
 #include <vector>
 
 #include "rxtrain/case.hpp"
+#include "rxtrain/sweep/outputs.hpp"
+#include "rxtrain/sweep/study.hpp"
+#include "rxtrain/sweep/sweep.hpp"
 #include "rxtrain/synthetic_mechanism.hpp"
 #include "rxtrain/train.hpp"
 #include "rxtrain/units.hpp"
@@ -274,6 +277,40 @@ void bench_threads(const std::string& file, int runs) {
   fmt::print("speed-up 1 -> 2 threads: {:.2f}x\n", t1.wall / t2.wall);
 }
 
+// The sweep library as `rxtrain sweep` runs it (case editing, output
+// columns; no start-up, no CSV): a feed.T grid, each run alone (chains of
+// one) and in batches of kBatchRuns, on 1 and 2 threads.
+void bench_sweep(const std::string& file, int runs) {
+  using namespace rxtrain::sweep;
+  fmt::print("\n== sweep library: feed.T = 400..440 degC, {} runs of {} (best of 3)\n", runs,
+             std::filesystem::path(file).filename().string());
+  const UnitParser units;
+  const Case c = load_case(file, units);
+  const CasePathTable table(c);
+  Study s = parse_study({fmt::format("feed.T=400degC:440degC:{}", runs)}, {}, 0, 1, table, units);
+  const OutputSpec o = OutputSpec::defaults(c);
+  fmt::print("{:>10} {:>7} {:>10} {:>10} {:>14}\n", "solved", "threads", "wall s", "runs/s",
+             "CPU us/run");
+  for (const std::size_t chain : {std::size_t{1}, kBatchRuns}) {
+    s.chain = chain;
+    for (const std::size_t jobs : {1, 2}) {
+      Timing best{1e300, 1e300};
+      for (int rep = 0; rep < 3; ++rep) {
+        SweepOptions opt;
+        opt.jobs = jobs;
+        const auto t0 = Clock::now();
+        const double c0 = cpu_seconds();
+        (void)run_sweep(c, table, s, o, opt);
+        const Timing t{seconds_since(t0), cpu_seconds() - c0};
+        if (t.wall < best.wall) best = t;
+      }
+      fmt::print("{:>10} {:>7} {:>10.3f} {:>10.0f} {:>14.1f}\n",
+                 chain == 1 ? "alone" : fmt::format("batch {}", chain), jobs, best.wall,
+                 runs / best.wall, best.cpu / runs * 1e6);
+    }
+  }
+}
+
 }  // namespace
 
 int main(int argc, char** argv) {
@@ -311,6 +348,7 @@ int main(int argc, char** argv) {
   if (only.empty() || only == "tolerances") bench_tolerances(reference, budget);
   if (only.empty() || only == "synthetic") bench_synthetic(budget);
   if (only.empty() || only == "threads") bench_threads(reference, runs);
+  if (only.empty() || only == "sweep") bench_sweep(reference, runs);
   fmt::print("\nload average {} at end\n", load_average());
   return 0;
 }

@@ -154,9 +154,12 @@ std::string sweep_report_html(const std::string& title, const std::string& case_
     h += fmt::format("<tr><td><code>{}</code></td></tr>\n", xml_escape(d));
   h += fmt::format("<tr><td>shard {}</td></tr>\n</table>\n", shard.to_string());
   h += "<p>Values are SI. <code>chain</code>: runs are solved in fixed chains of this many "
-       "consecutive grid points; inside a chain each stirred tank first tries the previous "
-       "point's steady states as Newton starts (1: every run starts cold). The output does not "
-       "depend on <code>--jobs</code> or <code>--shard</code>.</p>\n";
+       "consecutive runs. With stirred tanks, each tank first tries the previous run's steady "
+       "states as Newton starts; with tubular stages only, the chain's runs are integrated "
+       "together as one system, each held to the tolerance on its own, so a value agrees with "
+       "a lone <code>rxtrain run</code> of that point within the tolerance, not to the last "
+       "digit (1: every run alone, cold). The output does not depend on <code>--jobs</code> "
+       "or <code>--shard</code>.</p>\n";
   std::string counts;
   for (const auto& [status, n] : summary.statuses)
     counts += fmt::format("{}{} {}", counts.empty() ? "" : ", ", n, status);

@@ -14,10 +14,11 @@
 // Chains: the runs are cut into fixed chains of `chain` consecutive runs,
 // [0, L), [L, 2L), ... In a chain every run's stirred tanks are
 // warm-started from the previous run's steady states; a chain's first run
-// (and any run after a failed one) starts cold. The chains depend only on
-// the study and its case, never on --jobs or --shard, so every run sees
-// the same predecessor however the study is split, and its row is the
-// same.
+// (and any run after a failed one) starts cold. Where the train has
+// tubular stages only, a chain is instead a batch of runs integrated
+// together (sweep.hpp). The chains depend only on the study and its case,
+// never on --jobs or --shard, so every run is computed the same way
+// however the study is split, and its row is the same.
 #pragma once
 
 #include <algorithm>
@@ -65,11 +66,12 @@ struct Study {
   std::vector<SampledInput> samples;  // or a Monte Carlo study
   std::size_t runs = 0;               // Monte Carlo: number of runs
   std::uint64_t seed = 0;             // Monte Carlo: the generator's seed
-  // Runs per warm-start chain: kGridChainLength for a grid over a case
-  // with a stirred tank; 1 (every run cold, each handed out alone) for a
-  // case without one, which has nothing to warm-start, and for Monte
-  // Carlo, whose consecutive runs are independent draws, so a neighbour's
-  // state is no better a start than a cold one.
+  // Runs per chain: kGridChainLength for a grid over a case with a
+  // stirred tank; 1 (every run cold, each handed out alone) for a case
+  // without one, which has nothing to warm-start, and for Monte Carlo,
+  // whose consecutive runs are independent draws, so a neighbour's state
+  // is no better a start than a cold one. The sweep command then sets
+  // kBatchRuns where the runs can be batched (batched_study, sweep.hpp).
   std::size_t chain = 1;
 
   bool monte_carlo() const { return !samples.empty(); }
