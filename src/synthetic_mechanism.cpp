@@ -37,9 +37,10 @@ constexpr double kFormationSpan = 1.0e4;  // J/mol, h_f(S0) - h_f(S(n-1))
 
 }  // namespace
 
-Case synthetic_case(int n_species, int n_reactions, std::uint32_t seed) {
-  if (n_species < 2 || n_reactions < 1)
-    throw std::invalid_argument("synthetic_case: needs >= 2 species and >= 1 reaction");
+Case synthetic_case(int n_species, int n_reactions, std::uint32_t seed, int window) {
+  if (n_species < 2 || n_reactions < 1 || window < 0)
+    throw std::invalid_argument(
+        "synthetic_case: needs >= 2 species, >= 1 reaction and a window >= 0");
   const int n = n_species;
   Random rnd(seed);
 
@@ -55,7 +56,7 @@ Case synthetic_case(int n_species, int n_reactions, std::uint32_t seed) {
   }
 
   // Products lie within `reach` indices above the reactants.
-  const int reach = std::max(2, n / 5);
+  const int reach = window > 0 ? std::max(2, window) : std::max(2, n / 5);
   auto above = [&](int i) { return std::min(n - 1, i + 1 + rnd.below(reach)); };
   std::vector<Reaction> reactions;
   for (int j = 0; j < n_reactions; ++j) {

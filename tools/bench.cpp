@@ -235,6 +235,33 @@ void bench_synthetic(double budget) {
     previous = t_s.cpu;
     previous_nr = sz[1];
   }
+
+  // The same sizes with each species' partners and products at most 10
+  // indices above it (bounded coupling, as in a real network), sparse only,
+  // on to 800 reactions. The steps differ from mechanism to mechanism, so
+  // the cost per step shows the scaling of the linear algebra best.
+  fmt::print("\n   fixed window of 10 indices, sparse\n");
+  fmt::print("{:>7} {:>9} {:>11} {:>11} {:>7} {:>12} {:>22}\n", "species", "reactions", "sparse",
+             "sparse CPU", "steps", "CPU/step", "x per reactions x2");
+  const int fixed[][2] = {{25, 50}, {50, 100}, {100, 200}, {200, 400}, {400, 800}};
+  double previous_step = 0, previous_run = 0;
+  for (const auto& sz : fixed) {
+    const Case c = synthetic_case(sz[0], sz[1], 1, 10);
+    TrainOptions sparse = core_options();
+    sparse.pfr.jacobian = JacobianForm::Sparse;
+    TrainWorkspace ws;
+    const Work w = work_of(run_train(c, sparse, ws));
+    const Timing t = median_seconds([&] { (void)run_train(c, sparse, ws); }, budget);
+    const double per_step = t.cpu / static_cast<double>(w.steps);
+    const std::string growth =
+        previous_step > 0 ? fmt::format("run x{:.2f}, step x{:.2f}", t.cpu / previous_run,
+                                        per_step / previous_step)
+                          : std::string();
+    fmt::print("{:>7} {:>9} {:>8.3f} ms {:>8.3f} ms {:>7} {:>9.2f} us {:>22}\n", sz[0], sz[1],
+               t.wall * 1e3, t.cpu * 1e3, w.steps, per_step * 1e6, growth);
+    previous_step = per_step;
+    previous_run = t.cpu;
+  }
 }
 
 // `runs` runs of the case split over `threads` threads, one workspace each.

@@ -12,7 +12,9 @@
 // the Jacobian is sparse. That window widens with n, so the coupling is
 // closer to a random graph than to a real network's local one, and LU
 // fill-in (the sparse solver's cost) grows faster than n at the top of the
-// series: with a fixed window of 10 it grows linearly (docs/performance.md).
+// series; a fixed window (`reach`, e.g. 10) keeps each species' partners
+// bounded, as in a real network, and the cost grows linearly
+// (docs/performance.md).
 //
 // Example:
 //   const Case c = synthetic_case(200, 400);  // one adiabatic tubular stage
@@ -28,7 +30,9 @@ namespace rxtrain {
 // A case with one adiabatic tubular stage (about 3 s of space time at the
 // inlet) fed at 600 K and 10 bar, 100 mol/s, mostly of the first tenth of
 // the species; the key species is S0. Deterministic for a given seed.
-// Throws std::invalid_argument unless n_species >= 2 and n_reactions >= 1.
-Case synthetic_case(int n_species, int n_reactions, std::uint32_t seed = 1);
+// `reach`: how many indices above a reactant its partners and products may
+// lie; 0 (the default) for max(2, n/5). Throws std::invalid_argument
+// unless n_species >= 2, n_reactions >= 1 and reach >= 0.
+Case synthetic_case(int n_species, int n_reactions, std::uint32_t seed = 1, int reach = 0);
 
 }  // namespace rxtrain
