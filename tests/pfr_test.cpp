@@ -2,6 +2,7 @@
 // the steady-flow energy balance and an independent integrator (GSL odeiv2).
 // All kinetic and physical data here are invented for the tests.
 #include "rxtrain/stages/pfr.hpp"
+#include "rxtrain/stages/pfr_batch.hpp"
 
 #include <gsl/gsl_errno.h>
 #include <gsl/gsl_odeiv2.h>
@@ -390,6 +391,33 @@ TEST_CASE("T_max inside an exothermic-then-endothermic bed matches GSL", "[pfr]"
     if (p.T == res.T_max) peak_in_profile = std::abs(p.V - V_peak) < 1e-3 * V_end;
   CHECK(peak_in_profile);
   CHECK(res.T_min == inlet.T);
+
+  // The same bed in a batch with two other inlet temperatures (a sweep's
+  // batched path): each run finds its own peak between steps.
+  const ReactorSpec spec = volume_spec(V_end, HeatMode::Adiabatic);
+  std::vector<PfrBatchItem> items;
+  for (double T_in : {Tr - 5, Tr, Tr + 5}) {
+    Stream in = inlet;
+    in.T = T_in;
+    items.push_back({&mech, &spec, in, basis});
+  }
+  PfrOptions outlet_only;
+  outlet_only.full_profile = false;
+  REQUIRE(pfr_batchable(mech, spec, outlet_only));
+  PfrBatchWorkspace bws(ctx);
+  const auto batch = run_pfr_batch(items, bws, outlet_only);
+  CHECK(batch[1].T_max == Approx(T_peak).epsilon(1e-6));
+  CHECK(batch[1].T_min == inlet.T);
+  CHECK(batch[1].outlet.T == Approx(res.outlet.T).epsilon(1e-7));
+  for (int b : {0, 2}) {
+    Stream in = inlet;
+    in.T = items[b].inlet.T;
+    const StageResult lone = run_pfr(mech, spec, in, basis, ctx, outlet_only);
+    INFO("inlet " << in.T << " K");
+    CHECK(batch[b].T_max == Approx(lone.T_max).epsilon(1e-7));
+    CHECK(batch[b].T_max > batch[b].outlet.T + 1);
+    CHECK(batch[b].outlet.T == Approx(lone.outlet.T).epsilon(1e-7));
+  }
 }
 
 TEST_CASE("sizing to a target conversion round-trips", "[pfr]") {

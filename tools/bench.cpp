@@ -306,15 +306,17 @@ void bench_threads(const std::string& file, int runs) {
 
 // The sweep library as `rxtrain sweep` runs it (case editing, output
 // columns; no start-up, no CSV): a feed.T grid, each run alone (chains of
-// one) and in batches of kBatchRuns, on 1 and 2 threads.
-void bench_sweep(const std::string& file, int runs) {
+// one) and in batches of kBatchRuns, on 1 and 2 threads. For the reference
+// case and for the two-reaction bench case, whose beds are watched for a
+// temperature turning inside them.
+void bench_sweep(const std::string& file, const std::string& range, int runs) {
   using namespace rxtrain::sweep;
-  fmt::print("\n== sweep library: feed.T = 400..440 degC, {} runs of {} (best of 3)\n", runs,
+  fmt::print("\n== sweep library: feed.T = {}, {} runs of {} (best of 3)\n", range, runs,
              std::filesystem::path(file).filename().string());
   const UnitParser units;
   const Case c = load_case(file, units);
   const CasePathTable table(c);
-  Study s = parse_study({fmt::format("feed.T=400degC:440degC:{}", runs)}, {}, 0, 1, table, units);
+  Study s = parse_study({fmt::format("feed.T={}:{}", range, runs)}, {}, 0, 1, table, units);
   const OutputSpec o = OutputSpec::defaults(c);
   fmt::print("{:>10} {:>7} {:>10} {:>10} {:>14}\n", "solved", "threads", "wall s", "runs/s",
              "CPU us/run");
@@ -375,7 +377,11 @@ int main(int argc, char** argv) {
   if (only.empty() || only == "tolerances") bench_tolerances(reference, budget);
   if (only.empty() || only == "synthetic") bench_synthetic(budget);
   if (only.empty() || only == "threads") bench_threads(reference, runs);
-  if (only.empty() || only == "sweep") bench_sweep(reference, runs);
+  if (only.empty() || only == "sweep") {
+    bench_sweep(reference, "400degC:440degC", runs);
+    bench_sweep((root / "tools/bench-cases/five-species-two-step.yaml").string(), "40degC:60degC",
+                runs);
+  }
   fmt::print("\nload average {} at end\n", load_average());
   return 0;
 }

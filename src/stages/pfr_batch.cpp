@@ -3,6 +3,7 @@
 #include <fmt/format.h>
 
 #include <algorithm>
+#include <cmath>
 #include <optional>
 #include <stdexcept>
 #include <vector>
@@ -18,7 +19,9 @@ struct PfrBatchWorkspace::State {
   std::optional<CvodeIntegrator> ode;
   CvodeOptions ode_options;
   int N = 0;  // states per item
-  std::vector<double> y, y0, scale, block;
+  std::vector<double> y, y0, scale, block, dky;
+  std::vector<double> T_max, T_min, slope;  // per item; slope: last nonzero dT/ds
+  std::vector<char> watch;                  // items whose T may turn inside a bed
 
   // Right-hand side and Jacobian blocks on s = V / V_b. A recoverable
   // failure of one block (a trial state out of range) is the batch's:
@@ -50,8 +53,7 @@ PfrBatchWorkspace& PfrBatchWorkspace::operator=(PfrBatchWorkspace&&) noexcept = 
 
 bool pfr_batchable(const Mechanism& mech, const ReactorSpec& spec, const PfrOptions& options) {
   return spec.type == ReactorType::Pfr && !spec.target_conversion && spec.volume &&
-         *spec.volume > 0 && (spec.heat != HeatMode::Adiabatic || mech.n_reactions() == 1) &&
-         !options.full_profile && !options.stop_temperature &&
+         *spec.volume > 0 && !options.full_profile && !options.stop_temperature &&
          !uses_sparse_jacobian(options, mech.n_species()) &&
          mech.n_species() + 2 <= kMaxBlockSize;
 }
@@ -98,9 +100,72 @@ std::vector<StageResult> run_pfr_batch(std::span<const PfrBatchItem> items, PfrB
   ode.init(0.0, st.y0);
   ode.set_roots(0, nullptr, {});
   ode.set_stop_time(1.0);
+  // T_max and T_min: the ends, where T is monotonic (one reaction, or
+  // isothermal); with several reactions in an adiabatic bed also every
+  // step and every extreme inside one, as run_pfr finds them (a sign change
+  // of dT/ds on CVODE's interpolating polynomial, bisected).
+  st.T_max.resize(m);
+  st.T_min.resize(m);
+  st.slope.assign(m, 0.0);
+  st.watch.assign(m, 0);
+  bool any_watch = false;
+  for (int b = 0; b < m; ++b) {
+    const PfrBatchItem& it = items[b];
+    st.T_max[b] = st.T_min[b] = it.inlet.T;
+    if (it.spec->heat != HeatMode::Adiabatic || it.mech->n_reactions() == 1) continue;
+    st.watch[b] = 1;
+    any_watch = true;
+    st.block.resize(N);
+    if (st.sys[b].rhs(st.y0.data() + static_cast<std::size_t>(b) * N, st.block.data()) == 0)
+      st.slope[b] = st.block[n];
+  }
+  st.dky.resize(st.y0.size());
+  const auto dT_ds = [&](double at, int b) {
+    ode.interpolate(at, 1, st.dky.data());
+    return st.dky[static_cast<std::size_t>(b) * N + n];
+  };
+  const auto extreme = [&](int b, double lo, double hi) {
+    double s_lo = st.slope[b];
+    for (int it = 0; it < 60 && hi - lo > 1e-14 * std::max(std::abs(hi), 1e-300); ++it) {
+      const double mid = 0.5 * (lo + hi);
+      const double s_mid = dT_ds(mid, b);
+      if (s_mid == 0) {
+        lo = hi = mid;
+        break;
+      }
+      if ((s_mid > 0) == (s_lo > 0)) {
+        lo = mid;
+        s_lo = s_mid;
+      } else {
+        hi = mid;
+      }
+    }
+    ode.interpolate(0.5 * (lo + hi), 0, st.dky.data());
+    const double T = st.dky[static_cast<std::size_t>(b) * N + n];
+    st.T_max[b] = std::max(st.T_max[b], T);
+    st.T_min[b] = std::min(st.T_min[b], T);
+  };
   double s = 0;
   try {
-    while (ode.advance(1.0, s, st.y) != CvodeIntegrator::Event::Stop) {
+    if (!any_watch) {
+      while (ode.advance(1.0, s, st.y) != CvodeIntegrator::Event::Stop) {
+      }
+    } else {
+      double s_prev = 0;
+      CvodeIntegrator::Event ev = CvodeIntegrator::Event::Step;
+      while (ev != CvodeIntegrator::Event::Stop) {
+        ev = ode.step(1.0, s, st.y);
+        for (int b = 0; b < m; ++b) {
+          if (!st.watch[b]) continue;
+          const double now = dT_ds(s, b);
+          if ((st.slope[b] > 0 && now < 0) || (st.slope[b] < 0 && now > 0)) extreme(b, s_prev, s);
+          if (now != 0) st.slope[b] = now;
+          const double T = st.y[static_cast<std::size_t>(b) * N + n];
+          st.T_max[b] = std::max(st.T_max[b], T);
+          st.T_min[b] = std::min(st.T_min[b], T);
+        }
+        s_prev = s;
+      }
     }
   } catch (const SolverError& e) {
     throw SolverError(fmt::format("{} (batch of {} runs) at s = {:.6g} of 1: {}", items[0].spec->id,
@@ -137,8 +202,8 @@ std::vector<StageResult> run_pfr_batch(std::span<const PfrBatchItem> items, PfrB
     for (auto& f : res.outlet.F) f = std::max(f, 0.0);  // solver round-off below zero
     res.duty = yb[n + 1];
     res.conversion = it.basis.conversion(res.outlet);
-    res.T_max = std::max(it.inlet.T, yb[n]);
-    res.T_min = std::min(it.inlet.T, yb[n]);
+    res.T_max = std::max(st.T_max[b], yb[n]);
+    res.T_min = std::min(st.T_min[b], yb[n]);
     res.stats = stats;
     add_space_velocities(*it.mech, res);
   }

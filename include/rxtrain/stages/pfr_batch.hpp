@@ -28,10 +28,8 @@ struct PfrBatchItem {
 };
 
 // True when run_pfr_batch can take this stage: a tubular stage of given
-// volume (not sized to a target), whose temperature is monotonic along
-// the bed (one reaction, or isothermal: its extremes are its ends), run
-// for its outlet only (no full profile), without a stop temperature, on
-// the dense Jacobian.
+// volume (not sized to a target), run for its outlet only (no full
+// profile), without a stop temperature, on the dense Jacobian.
 bool pfr_batchable(const Mechanism& mech, const ReactorSpec& spec, const PfrOptions& options);
 
 // The batch integrator and buffers, kept between batches (re-created only
@@ -57,7 +55,9 @@ class PfrBatchWorkspace {
 
 // Runs every item's stage; results in item order, each as run_pfr with
 // PfrOptions::full_profile = false gives it (profile: inlet and outlet;
-// T_max and T_min at the ends; stats: the whole batch's). Every item must
+// T_max and T_min: the ends, and where T can turn inside the bed (several
+// reactions, adiabatic) also every step and every extreme between steps,
+// as run_pfr finds them; stats: the whole batch's). Every item must
 // pass pfr_batchable and have the same number of species. Throws
 // SolverError when the joint integration fails (a caller that needs the
 // failing run's own message reruns the items one by one), InputError for a
