@@ -202,8 +202,60 @@ TEST_CASE("studies whose runs cannot be batched keep their own chains", "[sweep]
   // A stirred tank (warm-start chains) or a bed sized to a target.
   const Fixture tank(demo("liquid-tank-then-tube.yaml"));
   CHECK_FALSE(batched_study(tank.c, tank.table, OutputSpec::defaults(tank.c), {}));
-  const Fixture benzene(demo("benzene-hydrogenation-bed.yaml"));
-  const bool sized = std::holds_alternative<ReactorSpec>(benzene.c.train[0]) &&
-                     std::get<ReactorSpec>(benzene.c.train[0]).target_conversion.has_value();
-  CHECK(batched_study(benzene.c, benzene.table, OutputSpec::defaults(benzene.c), {}) == !sized);
+}
+
+// Reversible first order A <=> B in a tube sized to a target conversion
+// (invented data): K = 1, X_eq = 0.5.
+constexpr const char* kSized = R"(title: reversible sized tube (invented data)
+phase: liquid
+species:
+  - {id: A, mw: 0.1 kg/mol, density: 1000 kg/m3}
+  - {id: B, mw: 0.1 kg/mol, density: 1000 kg/m3}
+reactions:
+  - id: r1
+    equation: A <=> B
+    rate: {A: 1e-3, Ea: 0, orders: {A: 1}}
+    dH: 0
+    equilibrium: {K: 1, T: 300 K, dH: 0}
+feed: {T: 300 K, P: 1 bar, flows: {A: 1 mol/s}}
+key: A
+train:
+  - {type: pfr, id: R1, target: {conversion: 0.3}, heat: isothermal}
+)";
+
+TEST_CASE("batched beds sized to a target follow the analytic volume", "[sweep][batch]") {
+  // X = X_eq (1 - exp(-k (1 + 1/K) tau)), X_eq = K / (1 + K) (Levenspiel,
+  // Chemical Reaction Engineering, 3rd ed., ch. 3), so the volume to reach
+  // X is V = -v0 ln(1 - X / X_eq) / (k (1 + 1/K)), v0 = 1e-4 m3/s.
+  const Fixture f(kSized);
+  const OutputSpec o = OutputSpec::defaults(f.c);
+  const auto V_needed = [](double k, double X) { return -1e-4 * std::log(1 - X / 0.5) / (2 * k); };
+  SECTION("Monte Carlo over k: each run stops at its own target") {
+    const Study s = f.study({}, {"reactions.r1.rate.A=uniform(5e-4,2e-3)"}, 40);
+    REQUIRE(s.chain_length() == kBatchRuns);
+    const auto rows = run(f, s, o, 2);
+    const auto col = o.names();
+    const auto v = std::find(col.begin(), col.end(), "R1.volume") - col.begin();
+    for (const auto& r : rows) {
+      REQUIRE(r.result.status == RunStatus::Ok);
+      CHECK(*r.result.outputs[v] == Approx(V_needed(r.inputs[0], 0.3)).epsilon(1e-6));
+      CHECK(*r.result.outputs[0] == Approx(0.3).epsilon(1e-9));  // X at the outlet
+    }
+  }
+  SECTION("targets beyond equilibrium: infeasible rows with a lone run's reason") {
+    const std::vector<std::string> vary{"train.R1.target.conversion=0.2:0.7:6"};
+    const Study s = f.study(vary);
+    REQUIRE(s.chain_length() == kBatchRuns);
+    const auto rows = run(f, s, o, 1);
+    const auto lone = run(f, parse_study(vary, {}, 0, 1, f.table, f.units), o, 1);
+    for (int i : {4, 5}) {
+      CHECK(rows[i].result.status == RunStatus::Infeasible);
+      CHECK(rows[i].result.message == lone[i].result.message);
+      CHECK_FALSE(rows[i].result.message.empty());
+    }
+    // The batch failed as a whole, so its feasible runs were run alone too.
+    const auto col = o.names();
+    const auto v = std::find(col.begin(), col.end(), "R1.volume") - col.begin();
+    CHECK(*rows[2].result.outputs[v] == *lone[2].result.outputs[v]);
+  }
 }

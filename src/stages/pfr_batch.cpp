@@ -22,6 +22,10 @@ struct PfrBatchWorkspace::State {
   std::vector<double> y, y0, scale, block, dky;
   std::vector<double> T_max, T_min, slope;  // per item; slope: last nonzero dT/ds
   std::vector<char> watch;                  // items whose T may turn inside a bed
+  std::vector<double> target;               // sizing: each item's target conversion
+  std::vector<char> done;                   // item has reached its end
+  std::vector<double> end;                  // where (V when sizing, else s = 1)
+  std::vector<double> out;                  // the items' states there
 
   // Right-hand side and Jacobian blocks on s = V / V_b. A recoverable
   // failure of one block (a trial state out of range) is the batch's:
@@ -52,8 +56,9 @@ PfrBatchWorkspace::PfrBatchWorkspace(PfrBatchWorkspace&&) noexcept = default;
 PfrBatchWorkspace& PfrBatchWorkspace::operator=(PfrBatchWorkspace&&) noexcept = default;
 
 bool pfr_batchable(const Mechanism& mech, const ReactorSpec& spec, const PfrOptions& options) {
-  return spec.type == ReactorType::Pfr && !spec.target_conversion && spec.volume &&
-         *spec.volume > 0 && !options.full_profile && !options.stop_temperature &&
+  return spec.type == ReactorType::Pfr &&
+         (spec.target_conversion || (spec.volume && *spec.volume > 0)) &&
+         !options.full_profile && !options.stop_temperature &&
          !uses_sparse_jacobian(options, mech.n_species()) &&
          mech.n_species() + 2 <= kMaxBlockSize;
 }
@@ -65,8 +70,10 @@ std::vector<StageResult> run_pfr_batch(std::span<const PfrBatchItem> items, PfrB
   const int m = static_cast<int>(items.size());
   const int n = items[0].mech->n_species();
   const int N = n + 2;
+  const bool sizing = items[0].spec->target_conversion.has_value();
   for (const auto& it : items)
-    if (it.mech->n_species() != n || !pfr_batchable(*it.mech, *it.spec, options))
+    if (it.mech->n_species() != n || !pfr_batchable(*it.mech, *it.spec, options) ||
+        it.spec->target_conversion.has_value() != sizing)
       throw std::invalid_argument("run_pfr_batch: an item that cannot be batched");
 
   st.sys.resize(m);
@@ -76,7 +83,9 @@ std::vector<StageResult> run_pfr_batch(std::span<const PfrBatchItem> items, PfrB
   for (int b = 0; b < m; ++b) {
     const PfrBatchItem& it = items[b];
     st.sys[b].reset(*it.mech, rate_multipliers(*it.mech, *it.spec), it.spec->heat, it.inlet.P);
-    st.length[b] = *it.spec->volume;
+    // Sized beds share V itself (each stops at its own root), beds of given
+    // volume run on s = V / V_b.
+    st.length[b] = sizing ? 1.0 : *it.spec->volume;
     detail::initial_state(it.inlet, st.block);
     st.y0.insert(st.y0.end(), st.block.begin(), st.block.end());
     detail::state_scale(*it.mech, it.inlet, st.block);
@@ -98,8 +107,37 @@ std::vector<StageResult> run_pfr_batch(std::span<const PfrBatchItem> items, PfrB
   }
   CvodeIntegrator& ode = *st.ode;
   ode.init(0.0, st.y0);
-  ode.set_roots(0, nullptr, {});
-  ode.set_stop_time(1.0);
+  // Sizing: each run's target conversion is a root of its own, and the
+  // integration goes on until every run has met it, at most to the
+  // longest of the runs' space-time limits (as run_pfr).
+  double s_end = 1.0;
+  st.target.assign(m, 0.0);
+  if (sizing) {
+    s_end = 0;
+    for (int b = 0; b < m; ++b) {
+      const PfrBatchItem& it = items[b];
+      st.target[b] = *it.spec->target_conversion;
+      // run_pfr's input error; the caller reruns the run alone for it.
+      if (st.target[b] <= it.basis.conversion(it.inlet))
+        throw SolverError("batch: a target conversion not above its inlet's");
+      s_end = std::max(s_end, options.max_space_time * it.mech->volumetric_flow(
+                                                           it.inlet.T, it.inlet.P, it.inlet.F.data()));
+    }
+    ode.set_roots(
+        m,
+        [&st, &items, N](double, const double* y, double* g) {
+          for (std::size_t b = 0; b < items.size(); ++b)
+            g[b] = items[b].basis.conversion(y + b * N) - st.target[b];
+          return 0;
+        },
+        std::vector<int>(m, 1));
+  } else {
+    ode.set_roots(0, nullptr, {});
+  }
+  ode.set_stop_time(s_end);
+  st.done.assign(m, 0);
+  st.end.assign(m, 1.0);
+  st.out.resize(st.y0.size());
   // T_max and T_min: the ends, where T is monotonic (one reaction, or
   // isothermal); with several reactions in an adiabatic bed also every
   // step and every extreme inside one, as run_pfr finds them (a sign change
@@ -145,32 +183,49 @@ std::vector<StageResult> run_pfr_batch(std::span<const PfrBatchItem> items, PfrB
     st.T_max[b] = std::max(st.T_max[b], T);
     st.T_min[b] = std::min(st.T_min[b], T);
   };
+  // A run's end: its state there is its outlet.
+  int ended = 0;
+  const auto finish = [&](int b, double at) {
+    st.done[b] = 1;
+    st.end[b] = at;
+    const std::size_t o = static_cast<std::size_t>(b) * N;
+    std::copy(st.y.begin() + o, st.y.begin() + o + N, st.out.begin() + o);
+    ++ended;
+  };
   double s = 0;
   try {
-    if (!any_watch) {
-      while (ode.advance(1.0, s, st.y) != CvodeIntegrator::Event::Stop) {
+    double s_prev = 0;
+    for (;;) {
+      // Step by step only where a temperature may turn inside a bed.
+      const CvodeIntegrator::Event ev =
+          any_watch ? ode.step(s_end, s, st.y) : ode.advance(s_end, s, st.y);
+      for (int b = 0; b < m && any_watch; ++b) {
+        if (!st.watch[b] || st.done[b]) continue;
+        const double now = dT_ds(s, b);
+        if ((st.slope[b] > 0 && now < 0) || (st.slope[b] < 0 && now > 0)) extreme(b, s_prev, s);
+        if (now != 0) st.slope[b] = now;
+        const double T = st.y[static_cast<std::size_t>(b) * N + n];
+        st.T_max[b] = std::max(st.T_max[b], T);
+        st.T_min[b] = std::min(st.T_min[b], T);
       }
-    } else {
-      double s_prev = 0;
-      CvodeIntegrator::Event ev = CvodeIntegrator::Event::Step;
-      while (ev != CvodeIntegrator::Event::Stop) {
-        ev = ode.step(1.0, s, st.y);
-        for (int b = 0; b < m; ++b) {
-          if (!st.watch[b]) continue;
-          const double now = dT_ds(s, b);
-          if ((st.slope[b] > 0 && now < 0) || (st.slope[b] < 0 && now > 0)) extreme(b, s_prev, s);
-          if (now != 0) st.slope[b] = now;
-          const double T = st.y[static_cast<std::size_t>(b) * N + n];
-          st.T_max[b] = std::max(st.T_max[b], T);
-          st.T_min[b] = std::min(st.T_min[b], T);
-        }
-        s_prev = s;
+      s_prev = s;
+      if (ev == CvodeIntegrator::Event::Root) {
+        const std::vector<int> found = ode.roots_found();
+        for (int b = 0; b < m; ++b)
+          if (found[b] != 0 && !st.done[b]) finish(b, s);
+        if (ended == m) break;
+      } else if (ev == CvodeIntegrator::Event::Stop) {
+        break;
       }
     }
   } catch (const SolverError& e) {
-    throw SolverError(fmt::format("{} (batch of {} runs) at s = {:.6g} of 1: {}", items[0].spec->id,
-                                  m, s, e.what()));
+    throw SolverError(fmt::format("{} (batch of {} runs) at {:.6g} of {:.6g}: {}",
+                                  items[0].spec->id, m, s, s_end, e.what()));
   }
+  // The caller reruns each run alone for its own message.
+  if (sizing && ended < m) throw SolverError("batch: a target conversion out of reach");
+  for (int b = 0; b < m; ++b)
+    if (!st.done[b]) finish(b, 1.0);
   const SolverStats stats = ode.stats();
 
   std::vector<StageResult> out(m);
@@ -178,7 +233,8 @@ std::vector<StageResult> run_pfr_batch(std::span<const PfrBatchItem> items, PfrB
     const PfrBatchItem& it = items[b];
     const ReactorSpec& spec = *it.spec;
     StageResult& res = out[b];
-    const double* yb = st.y.data() + static_cast<std::size_t>(b) * N;
+    const double* yb = st.out.data() + static_cast<std::size_t>(b) * N;
+    const double V_out = sizing ? st.end[b] : st.length[b];
     res.id = spec.id;
     res.kind = StageKind::Pfr;
     res.heat = spec.heat;
@@ -194,10 +250,10 @@ std::vector<StageResult> run_pfr_batch(std::span<const PfrBatchItem> items, PfrB
       return p;
     };
     res.profile.push_back(point(0.0, st.y0.data() + static_cast<std::size_t>(b) * N));
-    res.profile.push_back(point(st.length[b], yb));
-    res.volume = st.length[b];
-    res.sized = false;
-    if (spec.bulk_density) res.catalyst_mass = st.length[b] * *spec.bulk_density;
+    res.profile.push_back(point(V_out, yb));
+    res.volume = V_out;
+    res.sized = sizing;
+    if (spec.bulk_density) res.catalyst_mass = V_out * *spec.bulk_density;
     res.outlet = Stream{yb[n], it.inlet.P, std::vector<double>(yb, yb + n)};
     for (auto& f : res.outlet.F) f = std::max(f, 0.0);  // solver round-off below zero
     res.duty = yb[n + 1];

@@ -7,8 +7,12 @@
 // sizes are shared, so the numbers differ from a lone run's within the
 // tolerance, and depend only on which runs share the batch.
 //
-// Each block integrates its own bed on the normalized position s = V / V_b
-// in [0, 1] (dy/ds = V_b f(y)), so beds of different volumes end together.
+// Beds of given volume: each block integrates its own bed on the
+// normalized position s = V / V_b in [0, 1] (dy/ds = V_b f(y)), so beds of
+// different volumes end together. Beds sized to a target conversion: the
+// blocks share V, each run's target is a root function of its own, and a
+// run's outlet is its state at its root; the integration goes on until
+// every run has met its target.
 #pragma once
 
 #include <memory>
@@ -28,7 +32,7 @@ struct PfrBatchItem {
 };
 
 // True when run_pfr_batch can take this stage: a tubular stage of given
-// volume (not sized to a target), run for its outlet only (no full
+// volume or sized to a target conversion, run for its outlet only (no full
 // profile), without a stop temperature, on the dense Jacobian.
 bool pfr_batchable(const Mechanism& mech, const ReactorSpec& spec, const PfrOptions& options);
 
@@ -58,10 +62,12 @@ class PfrBatchWorkspace {
 // T_max and T_min: the ends, and where T can turn inside the bed (several
 // reactions, adiabatic) also every step and every extreme between steps,
 // as run_pfr finds them; stats: the whole batch's). Every item must
-// pass pfr_batchable and have the same number of species. Throws
+// pass pfr_batchable and have the same number of species, and either all
+// be sized or none. Throws
 // SolverError when the joint integration fails (a caller that needs the
-// failing run's own message reruns the items one by one), InputError for a
-// stage without a bulk density for a per-catalyst rate.
+// failing run's own message reruns the items one by one; also for a
+// target out of reach or not above the inlet's conversion), InputError for
+// a stage without a bulk density for a per-catalyst rate.
 std::vector<StageResult> run_pfr_batch(std::span<const PfrBatchItem> items, PfrBatchWorkspace& ws,
                                        const PfrOptions& options);
 

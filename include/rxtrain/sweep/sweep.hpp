@@ -12,8 +12,8 @@
 // chain first recomputes that chain's earlier runs (without writing them).
 // The rows are then the same for any number of jobs and any sharding.
 //
-// Batches: when every reactor of the case is a tubular stage of given
-// volume that run_trains_batched can take (train_batchable) and the study
+// Batches: when every reactor of the case is a tubular stage that
+// run_trains_batched can take (train_batchable) and the study
 // has chains (study.chain > 1, set from batched_study() by the caller),
 // each chain's runs are solved together, one CVODE system for all of
 // them, which shares CVODE's per-step work (docs/performance.md). The
