@@ -123,9 +123,11 @@ std::vector<StageResult> run_pfr_batch(std::span<const PfrBatchItem> items, PfrB
       s_end = std::max(s_end, options.max_space_time * it.mech->volumetric_flow(
                                                            it.inlet.T, it.inlet.P, it.inlet.F.data()));
     }
+    // The integrator keeps this function until the next batch replaces it;
+    // it holds the span by value, called only inside this function.
     ode.set_roots(
         m,
-        [&st, &items, N](double, const double* y, double* g) {
+        [&st, items, N](double, const double* y, double* g) {
           for (std::size_t b = 0; b < items.size(); ++b)
             g[b] = items[b].basis.conversion(y + b * N) - st.target[b];
           return 0;
