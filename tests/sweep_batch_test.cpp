@@ -19,6 +19,7 @@
 #include "rxtrain/sweep/sweep_csv.hpp"
 #include "rxtrain/train.hpp"
 #include "rxtrain/units.hpp"
+#include "sized_tube.hpp"
 
 using namespace rxtrain;
 using namespace rxtrain::sweep;
@@ -204,30 +205,11 @@ TEST_CASE("studies whose runs cannot be batched keep their own chains", "[sweep]
   CHECK_FALSE(batched_study(tank.c, tank.table, OutputSpec::defaults(tank.c), {}));
 }
 
-// Reversible first order A <=> B in a tube sized to a target conversion
-// (invented data): K = 1, X_eq = 0.5.
-constexpr const char* kSized = R"(title: reversible sized tube (invented data)
-phase: liquid
-species:
-  - {id: A, mw: 0.1 kg/mol, density: 1000 kg/m3}
-  - {id: B, mw: 0.1 kg/mol, density: 1000 kg/m3}
-reactions:
-  - id: r1
-    equation: A <=> B
-    rate: {A: 1e-3, Ea: 0, orders: {A: 1}}
-    dH: 0
-    equilibrium: {K: 1, T: 300 K, dH: 0}
-feed: {T: 300 K, P: 1 bar, flows: {A: 1 mol/s}}
-key: A
-train:
-  - {type: pfr, id: R1, target: {conversion: 0.3}, heat: isothermal}
-)";
-
 TEST_CASE("batched beds sized to a target follow the analytic volume", "[sweep][batch]") {
   // X = X_eq (1 - exp(-k (1 + 1/K) tau)), X_eq = K / (1 + K) (Levenspiel,
   // Chemical Reaction Engineering, 3rd ed., ch. 3), so the volume to reach
   // X is V = -v0 ln(1 - X / X_eq) / (k (1 + 1/K)), v0 = 1e-4 m3/s.
-  const Fixture f(kSized);
+  const Fixture f(test::kSizedTube);
   const OutputSpec o = OutputSpec::defaults(f.c);
   const auto V_needed = [](double k, double X) { return -1e-4 * std::log(1 - X / 0.5) / (2 * k); };
   SECTION("Monte Carlo over k: each run stops at its own target") {

@@ -26,6 +26,7 @@
 #include "rxtrain/train.hpp"
 #include "rxtrain/units.hpp"
 #include "s_curve_tank.hpp"
+#include "sized_tube.hpp"
 
 using namespace rxtrain;
 using namespace rxtrain::sweep;
@@ -51,24 +52,6 @@ train:
 )";
 constexpr double kV0 = 1e-4;  // m3/s
 
-// The same reaction, reversible with K = 1 (X_eq = 0.5), in a tube sized
-// to a target conversion.
-constexpr const char* kReversibleSized = R"(title: reversible sized tube (invented data)
-phase: liquid
-species:
-  - {id: A, mw: 0.1 kg/mol, density: 1000 kg/m3}
-  - {id: B, mw: 0.1 kg/mol, density: 1000 kg/m3}
-reactions:
-  - id: r1
-    equation: A <=> B
-    rate: {A: 1e-3, Ea: 0, orders: {A: 1}}
-    dH: 0
-    equilibrium: {K: 1, T: 300 K, dH: 0}
-feed: {T: 300 K, P: 1 bar, flows: {A: 1 mol/s}}
-key: A
-train:
-  - {type: pfr, id: R1, target: {conversion: 0.3}, heat: isothermal}
-)";
 
 
 std::string demo_text() {
@@ -394,7 +377,7 @@ TEST_CASE("a run passes its tanks' steady states on; a failed run passes none", 
   CHECK(ws.train.warm_starts[0].stage == "R1");
   CHECK(ws.train.warm_starts[0].states.size() == 3);  // tau = 1 s: three states
   // Beyond equilibrium (X_eq = 0.5): infeasible, and nothing passed on.
-  const Fixture tube(kReversibleSized);
+  const Fixture tube(test::kSizedTube);
   CaseEditor editor(tube.table, tube.study({"train.R1.target.conversion=0.6:0.6:1"}).paths());
   Case beyond = tube.c;
   const std::vector<double> X{0.6};
@@ -430,7 +413,7 @@ TEST_CASE("the design margin is the P95 of the sized volume; infeasible runs are
   // Reversible first order A <=> B, K = 1: X = X_eq (1 - exp(-k (1 + 1/K) tau))
   // with X_eq = K / (1 + K) (Levenspiel, 3rd ed., ch. 3), so the volume to
   // reach X is V = -v0 ln(1 - X / X_eq) / (k (1 + 1/K)).
-  const Fixture f(kReversibleSized);
+  const Fixture f(test::kSizedTube);
   const auto V_needed = [](double k, double X) { return -kV0 * std::log(1 - X / 0.5) / (2 * k); };
   SECTION("grid over the target: beyond equilibrium is infeasible, with its reason") {
     const Study s = f.study({"train.R1.target.conversion=0.2:0.7:6"});

@@ -205,22 +205,7 @@ StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream
   // last step) is a temperature extreme: bisect the polynomial's dT/dV for
   // it and record the point, so T_max and T_min are the true extremes.
   auto record_extreme = [&](double V_prev, double V_now) {
-    double lo = V_prev, hi = V_now, s_lo = slope;
-    for (int it = 0; it < 60 && hi - lo > 1e-14 * std::max(std::abs(hi), 1e-300); ++it) {
-      const double mid = 0.5 * (lo + hi);
-      const double s_mid = slope_at(mid);
-      if (s_mid == 0) {
-        lo = hi = mid;
-        break;
-      }
-      if ((s_mid > 0) == (s_lo > 0)) {
-        lo = mid;
-        s_lo = s_mid;
-      } else {
-        hi = mid;
-      }
-    }
-    const double V_ext = 0.5 * (lo + hi);
+    const double V_ext = detail::bisect_turn(V_prev, V_now, slope, slope_at);
     std::vector<double> y_ext(y.size());
     ode.interpolate(V_ext, 0, y_ext.data());
     record(V_ext, y_ext);

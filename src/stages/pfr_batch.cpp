@@ -165,22 +165,9 @@ std::vector<StageResult> run_pfr_batch(std::span<const PfrBatchItem> items, PfrB
     return st.dky[static_cast<std::size_t>(b) * N + n];
   };
   const auto extreme = [&](int b, double lo, double hi) {
-    double s_lo = st.slope[b];
-    for (int it = 0; it < 60 && hi - lo > 1e-14 * std::max(std::abs(hi), 1e-300); ++it) {
-      const double mid = 0.5 * (lo + hi);
-      const double s_mid = dT_ds(mid, b);
-      if (s_mid == 0) {
-        lo = hi = mid;
-        break;
-      }
-      if ((s_mid > 0) == (s_lo > 0)) {
-        lo = mid;
-        s_lo = s_mid;
-      } else {
-        hi = mid;
-      }
-    }
-    ode.interpolate(0.5 * (lo + hi), 0, st.dky.data());
+    const double at =
+        detail::bisect_turn(lo, hi, st.slope[b], [&](double x) { return dT_ds(x, b); });
+    ode.interpolate(at, 0, st.dky.data());
     const double T = st.dky[static_cast<std::size_t>(b) * N + n];
     st.T_max[b] = std::max(st.T_max[b], T);
     st.T_min[b] = std::min(st.T_min[b], T);

@@ -254,6 +254,25 @@ class PfrSystem {
   int nnz_ = 0;
 };
 
+// Where dT/dV (slope(V), from CVODE's interpolating polynomial) changes
+// sign inside [lo, hi], the sign at lo being that of s_lo: bisection to
+// 1e-14 relative, the midpoint of the last bracket.
+template <class Slope>
+double bisect_turn(double lo, double hi, double s_lo, Slope&& slope) {
+  for (int it = 0; it < 60 && hi - lo > 1e-14 * std::max(std::abs(hi), 1e-300); ++it) {
+    const double mid = 0.5 * (lo + hi);
+    const double s_mid = slope(mid);
+    if (s_mid == 0) return mid;
+    if ((s_mid > 0) == (s_lo > 0)) {
+      lo = mid;
+      s_lo = s_mid;
+    } else {
+      hi = mid;
+    }
+  }
+  return 0.5 * (lo + hi);
+}
+
 inline void initial_state(const Stream& in, std::vector<double>& y) {
   y.assign(in.F.begin(), in.F.end());
   y.push_back(in.T);
