@@ -13,18 +13,10 @@
 
 namespace rxtrain {
 
-namespace {
-
 using detail::initial_state;
 using detail::PfrSystem;
+using detail::same_options;
 using detail::state_scale;
-
-bool same_options(const CvodeOptions& a, const CvodeOptions& b) {
-  return a.rtol == b.rtol && a.atol == b.atol && a.max_steps == b.max_steps &&
-         a.max_order == b.max_order;
-}
-
-}  // namespace
 
 // Everything a tubular stage needs between runs. The integrator's
 // callbacks point at `sys` and `roots`, which live as long as it does.

@@ -92,9 +92,8 @@ std::vector<StageResult> run_pfr_batch(std::span<const PfrBatchItem> items, PfrB
     st.scale.insert(st.scale.end(), st.block.begin(), st.block.end());
   }
   const CvodeOptions& co = options.cvode;
-  const bool reuse = st.ode && st.ode->blocks() == m && st.N == N && co.rtol == st.ode_options.rtol &&
-                     co.atol == st.ode_options.atol && co.max_steps == st.ode_options.max_steps &&
-                     co.max_order == st.ode_options.max_order;
+  const bool reuse =
+      st.ode && st.ode->blocks() == m && st.N == N && detail::same_options(st.ode_options, co);
   if (!reuse) {
     st.ode.reset();
     st.ode.emplace(

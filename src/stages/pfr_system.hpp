@@ -273,6 +273,12 @@ double bisect_turn(double lo, double hi, double s_lo, Slope&& slope) {
   return 0.5 * (lo + hi);
 }
 
+// True when an integrator made with options a can run with options b.
+inline bool same_options(const CvodeOptions& a, const CvodeOptions& b) {
+  return a.rtol == b.rtol && a.atol == b.atol && a.max_steps == b.max_steps &&
+         a.max_order == b.max_order;
+}
+
 inline void initial_state(const Stream& in, std::vector<double>& y) {
   y.assign(in.F.begin(), in.F.end());
   y.push_back(in.T);
