@@ -57,6 +57,45 @@ void add_equilibrium_records(const Case& c, const TrainOptions& options, TrainRe
   }
 }
 
+// What each reactor stage can reach at any size (StageReach), and what a
+// designer must be told about it: a sized bed whose conversion peaks
+// inside it, a rated bed already past its peak.
+void add_reaches(const Case& c, const TrainOptions& options, TrainResult& result) {
+  const Mechanism& mech = c.mechanism;
+  const ConversionBasis basis = c.conversion_basis();
+  TrainWorkspace ws;
+  for (auto& r : result.stages) {
+    if (r.kind == StageKind::Exchanger || !r.heat) continue;
+    ReactorSpec spec;
+    spec.id = r.id;
+    spec.type = r.kind == StageKind::Cstr ? ReactorType::Cstr : ReactorType::Pfr;
+    spec.heat = *r.heat;
+    spec.bulk_density = r.bulk_density;
+    try {
+      r.reach = r.kind == StageKind::Cstr
+                    ? cstr_reach(mech, spec, r.inlet, basis, ws.cstr(), options.cstr)
+                    : pfr_reach(mech, spec, r.inlet, basis, ws.pfr(), options.pfr);
+    } catch (const std::exception& e) {
+      result.warnings.push_back(
+          fmt::format("stage {}: what it can reach at any size not computed: {}", r.id, e.what()));
+      continue;
+    }
+    const StageReach& h = *r.reach;
+    if (!h.peak_inside() || !h.V_at_X_max || !r.volume) continue;
+    const char* what = r.kind == StageKind::Cstr ? "tank" : "bed";
+    if (r.sized && *r.volume < *h.V_at_X_max)
+      result.warnings.push_back(fmt::format(
+          "stage {}: sized at the first point where X = {:.4f}; a larger {} raises X only up to "
+          "{:.4f} at V = {:.4g} m3, and beyond that gives conversion back, towards X = {:.4f}",
+          r.id, r.conversion, what, h.X_max, *h.V_at_X_max, h.X_end));
+    else if (*r.volume > *h.V_at_X_max * (1 + 1e-6))
+      result.warnings.push_back(fmt::format(
+          "stage {}: this {} is past the most it can reach (X = {:.4f} at V = {:.4g} m3) and "
+          "gives conversion back: a smaller {} would convert more",
+          r.id, what, h.X_max, *h.V_at_X_max, what));
+  }
+}
+
 }  // namespace
 
 TrainWorkspace::TrainWorkspace()
@@ -126,6 +165,7 @@ void set_warm_starts(const TrainResult& result, std::vector<CstrWarmStart>& warm
 
 void add_equilibrium_views(const Case& c, const TrainOptions& options, TrainResult& result) {
   add_equilibrium_records(c, options, result);
+  add_reaches(c, options, result);
   result.levenspiel = levenspiel_curves(c.mechanism, c.key, c.feed.F[c.key], result.stages);
 }
 

@@ -203,6 +203,7 @@ TEST_CASE("reversible first-order CSTR matches its closed form", "[cstr]") {
       FAIL("expected an InfeasibleError");
     } catch (const rxtrain::InfeasibleError& e) {
       const std::string what = e.what();
+      INFO(what);
       CHECK(what.find("case.yaml:7:3: error:") == 0);
       CHECK(what.find("R2") != std::string::npos);
       CHECK(what.find("0.9000") != std::string::npos);
@@ -449,7 +450,6 @@ void require_same_tank(const StageResult& a, const StageResult& b) {
   }
 }
 
-
 }  // namespace
 
 TEST_CASE("a reused CstrWorkspace gives the results of fresh runs", "[cstr][workspace]") {
@@ -500,7 +500,8 @@ TEST_CASE("a reused TrainWorkspace gives the results of fresh runs with stirred 
   const rxtrain::UnitParser units;
   const rxtrain::Case demo =
       rxtrain::load_case(RXTRAIN_SOURCE_DIR "/cases/liquid-tank-then-tube.yaml", units);
-  const rxtrain::Case s_curve = rxtrain::load_case_from_string(rxtrain::test::kSCurveTank, "s.yaml", units);
+  const rxtrain::Case s_curve =
+      rxtrain::load_case_from_string(rxtrain::test::kSCurveTank, "s.yaml", units);
   rxtrain::TrainOptions o;
   o.equilibrium_views = false;
   const rxtrain::TrainResult fresh_demo = rxtrain::run_train(demo, o);

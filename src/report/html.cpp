@@ -73,10 +73,7 @@ std::string run_report_html(const Case& c, const TrainResult& r, const std::vect
                    celsius_text(r.outlet.T), fixed_text(r.outlet.T, 2),
                    fixed_text(r.outlet.P / 1e5, 3), xml_escape(r.key), fixed_text(r.conversion, 4));
   for (const auto& s : r.stages)
-    if (s.equilibrium)
-      h += fmt::format("<p>{}: the most this stage can reach at any size is X = {} at {} °C.</p>\n",
-                       xml_escape(s.id), fixed_text(s.equilibrium->X_ad_eq, 4),
-                       celsius_text(s.equilibrium->T_ad_eq));
+    if (s.reach && s.heat) h += "<p>" + xml_escape(reach_sentence(s, r.species)) + ".</p>\n";
   h += space_velocity_table(r);
   h += stream_table(r);
   h += html::figures_section(figures);

@@ -82,6 +82,19 @@ json stage(const std::vector<std::string>& ids, const StageResult& r) {
   } else {
     s["equilibrium"] = nullptr;
   }
+  if (r.reach) {
+    const auto& h = *r.reach;
+    s["reach"] = {{"X_max", number(h.X_max)},
+                  {"V_at_X_max", number(h.V_at_X_max)},
+                  {"T_at_X_max", number(h.T_at_X_max)},
+                  {"X_end", number(h.X_end)},
+                  {"T_end", number(h.T_end)},
+                  {"end", reach_end_name(h.end)},
+                  {"species", h.species >= 0 ? json(ids[h.species]) : json(nullptr)}};
+  } else {
+    s["reach"] = nullptr;
+  }
+  s["size_sensitivity"] = number(r.size_sensitivity);
   json path = json::array();
   for (const auto& p : r.profile) path.push_back({{"T", number(p.T)}, {"X", number(p.X)}});
   s["path"] = path;

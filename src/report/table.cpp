@@ -46,12 +46,9 @@ std::string format_stage_table(const TrainResult& result) {
     out +=
         "X eq-X, T eq-T: approach to equilibrium at the outlet (X_eq(T_out) - X_out; the "
         "temperature at which X_out is equilibrium, minus T_out)\n";
-    for (const auto& r : result.stages)
-      if (r.equilibrium)
-        out += fmt::format("  {}: the most this stage can reach at any size is X = {} at {} °C\n",
-                           r.id, fixed_text(r.equilibrium->X_ad_eq, 4),
-                           celsius_text(r.equilibrium->T_ad_eq));
   }
+  for (const auto& r : result.stages)
+    if (r.reach && r.heat) out += "  " + reach_sentence(r, result.species) + "\n";
 
   // Space velocities only where they apply (GHSV at 0 °C, 1 atm).
   std::vector<std::vector<std::string>> sv;

@@ -55,4 +55,21 @@ std::string render_columns(const std::vector<std::vector<std::string>>& rows, st
   return out;
 }
 
+std::string reach_sentence(const StageResult& r, const std::vector<std::string>& species) {
+  const StageReach& h = *r.reach;
+  const std::string end = reach_end_text(h, *r.heat, species);
+  const char* what = r.kind == StageKind::Cstr ? "tank" : "bed";
+  if (!h.peak_inside() || !h.V_at_X_max)
+    return fmt::format("{}: the most this stage can reach at any size is X = {} at {} °C ({})",
+                       r.id, fixed_text(h.X_max, 4), celsius_text(h.T_at_X_max), end);
+  std::string where = fmt::format("V = {:.4g} m3", *h.V_at_X_max);
+  if (r.bulk_density)
+    where += fmt::format(", {:.4g} kg of catalyst", *h.V_at_X_max * *r.bulk_density);
+  return fmt::format(
+      "{}: the most this stage can reach at any size is X = {} at {} °C ({}); a larger {} gives "
+      "conversion back, towards X = {} at {} °C ({})",
+      r.id, fixed_text(h.X_max, 4), celsius_text(h.T_at_X_max), where, what, fixed_text(h.X_end, 4),
+      celsius_text(h.T_end), end);
+}
+
 }  // namespace rxtrain

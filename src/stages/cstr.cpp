@@ -353,7 +353,8 @@ struct March {
 // solution at that volume the fallback starts reach, nearest in T. `stop`
 // (optional) ends the march early when it returns true.
 March march(CstrSolver& s, const State& from, double V_from, double V_to, int steps,
-            const std::vector<State>& fallbacks, const std::function<bool(const State&)>& stop) {
+            const std::vector<State>& fallbacks,
+            const std::function<bool(const State&, double V)>& stop) {
   March m;
   m.state = from;
   m.V = V_from;
@@ -403,7 +404,7 @@ March march(CstrSolver& s, const State& from, double V_from, double V_to, int st
       ln_V = ln_try;
       break;
     }
-    if (stop && stop(m.state)) break;
+    if (stop && stop(m.state, m.V)) break;
   }
   m.ok = true;
   return m;
@@ -412,7 +413,7 @@ March march(CstrSolver& s, const State& from, double V_from, double V_to, int st
 // The branch that starts at the feed (V -> 0), continued to V_to.
 March feed_branch(CstrSolver& s, const Stream& inlet, double V_first, double V_to, int steps,
                   const std::vector<State>& fallbacks,
-                  const std::function<bool(const State&)>& stop) {
+                  const std::function<bool(const State&, double V)>& stop) {
   const State feed{inlet.F, inlet.T};
   Outcome first;
   double V0 = V_first;
@@ -425,7 +426,7 @@ March feed_branch(CstrSolver& s, const Stream& inlet, double V_first, double V_t
     m.message = "continuation could not start near V = 0: " + first.message;
     return m;
   }
-  if ((stop && stop(first.state)) || first.V >= V_to) {
+  if ((stop && stop(first.state, first.V)) || first.V >= V_to) {
     March m;
     m.ok = true;
     m.state = first.state;
@@ -578,27 +579,6 @@ std::string temperature_list(const std::vector<State>& states) {
   return list;
 }
 
-const char* limit_name(HeatMode heat) {
-  return heat == HeatMode::Adiabatic ? "adiabatic equilibrium" : "equilibrium";
-}
-
-[[noreturn]] void throw_out_of_reach(const ReactorSpec& spec, const ConversionBasis& basis,
-                                     LimitOnce& limit, double X_target) {
-  std::string msg;
-  if (const Stream* lim = limit.get()) {
-    msg = fmt::format(
-        "stage {}: target conversion {:.4f} is out of reach; the most this stage can reach is "
-        "X = {:.4f} (at T = {:.2f} K, the {} limit)",
-        spec.id, X_target, basis.conversion(*lim), lim->T, limit_name(spec.heat));
-  } else {
-    msg = fmt::format(
-        "stage {}: target conversion {:.4f} is out of reach: the net rate there is zero or "
-        "negative (at or beyond the {} limit)",
-        spec.id, X_target, limit_name(spec.heat));
-  }
-  throw InfeasibleError(spec.where, msg);
-}
-
 }  // namespace
 
 struct CstrWorkspace::State : Buffers {
@@ -640,6 +620,19 @@ StageResult run_cstr(const Mechanism& mech, const ReactorSpec& spec, const Strea
 
   if (sizing) {
     const double X_t = *spec.target_conversion;
+    // A target out of reach: the message quotes what the tank can reach.
+    auto refuse = [&]() {
+      std::optional<StageReach> reach;
+      try {
+        reach = cstr_reach(mech, spec, inlet, basis, workspace, options);
+      } catch (const SolverError&) {
+      }
+      if (reach) throw InfeasibleError(spec.where, out_of_reach_text(spec, X_t, *reach, mech));
+      throw InfeasibleError(
+          spec.where, fmt::format("stage {}: target conversion {:.4f} is out of reach: the net "
+                                  "rate there is zero or negative",
+                                  spec.id, X_t));
+    };
     if (X_t <= X_in)
       throw InputError(spec.where,
                        fmt::format("stage {}: target conversion {:.4f} is not above the "
@@ -650,36 +643,27 @@ StageResult run_cstr(const Mechanism& mech, const ReactorSpec& spec, const Strea
       // the energy balance then fixes T and the rate there fixes V.
       const auto& nu = mech.reactions()[0].nu;
       const double nu_key = nu[basis.key];
-      if (!(nu_key < 0)) throw_out_of_reach(spec, basis, limit, X_t);
+      if (!(nu_key < 0)) refuse();
       const double extent = (X_t - X_in) * basis.F_key_feed / -nu_key;
-      out.F.resize(n);
-      for (int i = 0; i < n; ++i) {
-        out.F[i] = inlet.F[i] + nu[i] * extent;
-        // Round-off of a reactant used up exactly is not a shortage.
-        if (out.F[i] < 0 && out.F[i] > -1e-12 * inlet.total_flow()) out.F[i] = 0;
-        if (out.F[i] < 0) throw_out_of_reach(spec, basis, limit, X_t);
-      }
-      out.T = inlet.T;
-      if (spec.heat == HeatMode::Adiabatic) {
-        // sum F hs(T) = sum F_in hs(T_in) - extent dH_298 (total enthalpy kept).
-        const double H = mech.sensible_enthalpy_flow(inlet.T, inlet.F.data()) -
-                         extent * mech.reactions()[0].dH_298;
-        try {
-          out.T = temperature_for_enthalpy(mech, out.F, H, inlet.T);
-        } catch (const SolverError& e) {
-          throw SolverError(
-              fmt::format("{}: outlet temperature at X = {:.4f}: {}", spec.id, X_t, e.what()));
-        }
+      for (int i = 0; i < n; ++i)  // a reactant would run out first
+        if (inlet.F[i] + nu[i] * extent < -1e-12 * inlet.total_flow()) refuse();
+      try {
+        const Stream o = stream_after_extent(mech, inlet, spec.heat, 0, extent);
+        out.F = o.F;
+        out.T = o.T;
+      } catch (const SolverError& e) {
+        throw SolverError(
+            fmt::format("{}: outlet temperature at X = {:.4f}: {}", spec.id, X_t, e.what()));
       }
       const double R = balances.volumetric_rate(out.F.data(), out.T, 0);
-      if (!(R > 0) || !std::isfinite(R)) throw_out_of_reach(spec, basis, limit, X_t);
+      if (!(R > 0) || !std::isfinite(R)) refuse();
       V = extent / R;
     } else {
       // Several reactions: follow the feed branch in volume until the
       // target is passed, then solve F, T and ln V together.
       const double v0 = mech.volumetric_flow(inlet.T, inlet.P, inlet.F.data());
       const double V_end = options.pfr.max_space_time * v0;
-      auto reached = [&](const State& st) { return basis.conversion(st.F.data()) >= X_t; };
+      auto reached = [&](const State& st, double) { return basis.conversion(st.F.data()) >= X_t; };
       // Where the branch turns (ignition), these starts find where it lands.
       const std::vector<State> fallbacks = starts_from({}, State{inlet.F, inlet.T}, inlet, limit);
       March m = feed_branch(solver, inlet, V_end * std::pow(10.0, -kSizingDecades), V_end,
@@ -689,7 +673,7 @@ StageResult run_cstr(const Mechanism& mech, const ReactorSpec& spec, const Strea
             fmt::format("{}: sizing by continuation in volume failed ({}); try: a lower target "
                         "conversion, a different feed temperature, or give a volume to rate",
                         spec.id, m.message));
-      if (!reached(m.state)) throw_out_of_reach(spec, basis, limit, X_t);
+      if (!reached(m.state, m.V)) refuse();
       // Start from the point interpolated linearly in X inside the bracket.
       const double X0 = basis.conversion(m.previous.F.data());
       const double X1 = basis.conversion(m.state.F.data());
@@ -823,6 +807,69 @@ StageResult run_cstr(const Mechanism& mech, const ReactorSpec& spec, const Strea
   res.warnings = std::move(warnings);
   add_space_velocities(mech, res);
   return res;
+}
+
+StageReach cstr_reach(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
+                      const ConversionBasis& basis, CstrWorkspace& workspace,
+                      const CstrOptions& options) {
+  Buffers& ws = workspace.state();
+  ws.beta = rate_multipliers(mech, spec);
+  ws.balances.reset(mech, ws.beta, spec.heat, inlet);
+  ws.solver.reset(ws.balances, options.newton);
+  LimitOnce limit(mech, ws.beta, inlet, spec.heat, ws.pfr, options.pfr);
+  const double V_end =
+      options.pfr.max_space_time * mech.volumetric_flow(inlet.T, inlet.P, inlet.F.data());
+  StageReach reach;
+  reach.X_max = basis.conversion(inlet);
+  reach.V_at_X_max = 0.0;
+  reach.T_at_X_max = inlet.T;
+  // Every solution of the march, as the volume grows: the largest
+  // conversion of the branch. The march stops once the branch has gone
+  // flat (the tank's balances are ever harder to solve at volumes far
+  // past that).
+  const double X_in = reach.X_max;
+  std::optional<State> last;
+  auto track = [&](const State& st, double V) {
+    const double X = basis.conversion(st.F.data());
+    if (X > reach.X_max) {
+      reach.X_max = X;
+      reach.V_at_X_max = V;
+      reach.T_at_X_max = st.T;
+    }
+    const bool flat = last && std::abs(X - X_in) > 1e-6 &&
+                      std::abs(X - basis.conversion(last->F.data())) <= 1e-13 &&
+                      std::abs(st.T - last->T) <= 1e-9 * st.T;
+    last = st;
+    return flat;
+  };
+  const std::vector<State> fallbacks = starts_from({}, State{inlet.F, inlet.T}, inlet, limit);
+  const March m = feed_branch(ws.solver, inlet, V_end * std::pow(10.0, -kSizingDecades), V_end,
+                              options.continuation_steps, fallbacks, track);
+  // A march that fails far out along the branch still tells where it went,
+  // if it had stopped moving.
+  const double X_prev = basis.conversion(m.previous.F.data());
+  const double X_last = basis.conversion(m.state.F.data());
+  const bool still_rising = m.V_previous > 0 && m.V > m.V_previous &&
+                            (X_last - X_prev) / std::log(m.V / m.V_previous) * std::log(2.0) > 1e-6;
+  if (!m.ok && (m.V_previous <= 0 || still_rising))
+    throw SolverError(fmt::format("{}: what the tank can reach: continuation in volume failed ({})",
+                                  spec.id, m.message));
+  reach.X_end = X_last;
+  reach.T_end = m.state.T;
+  classify_reach_end(mech, inlet, m.state.F.data(), basis.key, still_rising, reach);
+  if (reach.end == ReachEnd::Equilibrium && mech.n_reactions() == 1) {
+    // One reaction: the tank's outlet runs along the same adiabatic (or
+    // isothermal) line as a tube's, to the same equilibrium point.
+    try {
+      if (const auto eq = adiabatic_equilibrium(mech, inlet, spec.heat, basis)) {
+        reach.X_end = eq->X;
+        reach.T_end = eq->stream.T;
+      }
+    } catch (const SolverError&) {
+    }
+  }
+  finish_reach(reach, m.V);
+  return reach;
 }
 
 }  // namespace rxtrain

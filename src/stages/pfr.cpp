@@ -10,6 +10,7 @@
 
 #include "pfr_system.hpp"
 #include "rxtrain/error.hpp"
+#include "rxtrain/solvers/quadrature.hpp"
 
 namespace rxtrain {
 
@@ -17,6 +18,39 @@ using detail::initial_state;
 using detail::PfrSystem;
 using detail::same_options;
 using detail::state_scale;
+
+namespace {
+
+// Relative volume change per 1e-6 of conversion above which a sized
+// stage's size is called ill-conditioned: about where a first-order bed
+// stands 1e-4 from complete conversion (common practice, no source).
+constexpr double kIllConditionedSize = 1e-3;
+// Relative accuracy of the quadrature that sizes a one-reaction bed, as a
+// share of the integrator's rtol: far below it.
+constexpr double kQuadratureShare = 1e-4;
+// Its pieces, and so the bed's profile points, are at least this many
+// (uniform in X, more where the integrand steepens).
+constexpr int kQuadraturePieces = 100;
+
+// A sized stage: how far its volume moves per 1e-6 of conversion at the
+// target (from dX/dV there), and a warning where that is ill-conditioned.
+void add_size_sensitivity(PfrSystem& sys, const ConversionBasis& basis,
+                          const std::vector<double>& y, std::vector<double>& ydot,
+                          StageResult& res) {
+  if (!res.volume || !(*res.volume > 0) || sys.rhs(y.data(), ydot.data()) != 0) return;
+  const double g = -ydot[basis.key] / basis.F_key_feed;
+  if (!(g > 0)) return;
+  const double s = 1e-6 / (g * *res.volume);
+  res.size_sensitivity = s;
+  if (s > kIllConditionedSize)
+    res.warnings.push_back(fmt::format(
+        "stage {}: the target X = {:.10g} lies so close to the most this stage can reach that "
+        "its size is ill-conditioned: each 1e-6 of conversion changes the volume by {} %",
+        res.id, res.conversion,
+        100 * s < 10 ? fmt::format("{:.2g}", 100 * s) : fmt::format("{:.0f}", 100 * s)));
+}
+
+}  // namespace
 
 // Everything a tubular stage needs between runs. The integrator's
 // callbacks point at `sys` and `roots`, which live as long as it does.
@@ -30,17 +64,16 @@ struct PfrWorkspace::State {
   struct Roots {
     ConversionBasis basis{0, 0};
     int n = 0;
-    bool sizing = false, stop_at_T = false;
     int i_target = -1, i_stop = -1;
     double X_target = 0, T_stop = 0;
+    int count() const { return (i_target >= 0) + (i_stop >= 0); }
     int eval(const double* y, double* g) const {
-      if (sizing) g[i_target] = basis.conversion(y) - X_target;
-      if (stop_at_T) g[i_stop] = y[n] - T_stop;
+      if (i_target >= 0) g[i_target] = basis.conversion(y) - X_target;
+      if (i_stop >= 0) g[i_stop] = y[n] - T_stop;
       return 0;
     }
   } roots;
-  std::vector<double> dky;  // interpolated dT/dV search (see run_pfr)
-
+  std::vector<double> dky, y_turn;  // interpolated dT/dV (dX/dV) search (see run_pfr)
   // Binds the system to a stage and (re)starts the integrator at its inlet,
   // re-creating the integrator only when it cannot be reused.
   CvodeIntegrator& start(const SunContext& ctx, const Mechanism& mech,
@@ -78,6 +111,8 @@ struct PfrWorkspace::State {
     if (reuse) ode->set_scale(scale);
     initial_state(inlet, y);
     ydot.resize(y.size());
+    dky.resize(y.size() + 1);
+    y_turn.resize(y.size() + 1);
     ode->init(0.0, y);
     return *ode;
   }
@@ -106,6 +141,124 @@ StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream
   PfrWorkspace ws(ctx);
   return run_pfr(mech, spec, inlet, basis, ws, options);
 }
+
+namespace {
+
+// Records the path of one stage: profile points, and the temperature
+// extremes inside a step (several reactions), bisected on the
+// interpolating polynomial's dT/dt so that T_max and T_min are the true
+// extremes. t is the volume, or the conversion in the sizing tail (then
+// the volume is the state at v_index); dT/dt has the sign of dT/dV either
+// way, since X rises with V there.
+class PathRecorder {
+ public:
+  PathRecorder(StageResult& res, const ConversionBasis& basis, int n, bool turns,
+               std::vector<double>& dky, std::vector<double>& y_turn)
+      : res_(res), basis_(basis), n_(n), turns_(turns), dky_(dky), y_turn_(y_turn) {}
+
+  void record(double V, const std::vector<double>& y) { record(V, y.data()); }
+  void record(double V, const double* y) {
+    ProfilePoint p;
+    p.V = V;
+    p.T = y[n_];
+    p.X = basis_.conversion(y);
+    p.F.assign(y, y + n_);
+    res_.profile.push_back(std::move(p));
+  }
+
+  // After a step of `o` from t_prev to t ending at y; v_index < 0: V is t.
+  void stepped(const CvodeIntegrator& o, double t_prev, double t, const std::vector<double>& y,
+               int v_index) {
+    if (turns_) {
+      auto slope_at = [&](double at) {
+        o.interpolate(at, 1, dky_.data());
+        return dky_[n_];
+      };
+      const double s_now = slope_at(t);
+      if ((slope_ > 0 && s_now < 0) || (slope_ < 0 && s_now > 0)) {
+        const double t_ext = detail::bisect_turn(t_prev, t, slope_, slope_at);
+        o.interpolate(t_ext, 0, y_turn_.data());
+        record(v_index < 0 ? t_ext : y_turn_[v_index], y_turn_.data());
+      }
+      if (s_now != 0) slope_ = s_now;
+    }
+    record(v_index < 0 ? t : y[v_index], y);
+  }
+
+  double slope() const { return slope_; }
+  void set_slope(double s) { slope_ = s; }
+
+ private:
+  StageResult& res_;
+  const ConversionBasis& basis_;
+  int n_;
+  bool turns_;
+  double slope_ = 0;  // dT/dt at the last point; 0 where unknown or flat
+  std::vector<double>& dky_;
+  std::vector<double>& y_turn_;
+};
+
+// A one-reaction bed sized to X_target: V = integral of dV/dX =
+// F_key,feed / (-nu_key R) over X from the inlet, with the flows from the
+// stoichiometry and T from the energy balance (the inlet's T when
+// isothermal), exact at every X. Integrating over V instead, the crossing
+// of X_target moves by the state's error times dV/dX: large where the bed
+// lights off, and without bound near what the stage can reach (where
+// dV/dX does). Appends the profile from the quadrature's pieces and
+// returns the volume; y = [F, T, Q] at the end.
+double size_by_quadrature(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
+                          const ConversionBasis& basis, double X_target, double rtol,
+                          bool full_profile, StageResult& res, std::vector<double>& y) {
+  const auto& nu = mech.reactions()[0].nu;
+  const double beta = rate_multipliers(mech, spec)[0];
+  const double X_in = basis.conversion(inlet);
+  const double per_X = basis.F_key_feed / -nu[basis.key];  // extent per unit of X
+  double T_last = inlet.T;  // Newton's start for the next temperature
+  auto state_at = [&](double X) {
+    Stream s = stream_after_extent(mech, inlet, spec.heat, 0, (X - X_in) * per_X, T_last);
+    T_last = s.T;
+    return s;
+  };
+  double r = 0;
+  auto dV_dX = [&](double X) {
+    const Stream s = state_at(X);
+    mech.rates(s.T, s.P, s.F.data(), &r);
+    const double R = beta * r;
+    if (!(R > 0))
+      throw SolverError(
+          fmt::format("{}: the rate is not positive at X = {:.8f} below the target", spec.id, X));
+    return basis.F_key_feed / (-nu[basis.key] * R);
+  };
+  QuadratureOptions qo;
+  qo.rel_tolerance = std::max(kQuadratureShare * rtol, 1e-14);
+  qo.max_width = (X_target - X_in) / kQuadraturePieces;
+  const QuadratureResult q = integrate(dV_dX, X_in, X_target, qo);
+  // Within a hair of equilibrium the integrand's round-off (1 - Q/K as a
+  // difference of nearly equal numbers) can stop the quadrature short of
+  // its own tolerance; it still counts while far inside the integrator's.
+  if (!q.converged && !(q.error <= rtol * q.value))
+    throw SolverError(
+        fmt::format("{}: the volume to X = {:.8f} did not converge (quadrature "
+                    "error {:.3g} of {:.6g} m3)",
+                    spec.id, X_target, q.error, q.value));
+  // Heat taken out when isothermal: dH(T_in) per unit extent.
+  const double dH = spec.heat == HeatMode::Isothermal ? mech.dH(0, inlet.T) : 0.0;
+  double V = 0;
+  for (const auto& piece : q.pieces) {
+    V += piece.value;
+    // Every piece's state, kept or not, so that the end's Newton starts
+    // from the same guess with or without the profile.
+    const Stream s = state_at(piece.b);
+    if (!full_profile && &piece != &q.pieces.back()) continue;
+    y.assign(s.F.begin(), s.F.end());
+    y.push_back(s.T);
+    y.push_back(dH * (piece.b - X_in) * per_X);
+    res.profile.push_back(ProfilePoint{V, s.T, piece.b, s.F});
+  }
+  return V;
+}
+
+}  // namespace
 
 StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
                     const ConversionBasis& basis, PfrWorkspace& ws, const PfrOptions& options) {
@@ -137,79 +290,58 @@ StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream
   }
   ode.set_stop_time(V_end);
 
-  // Roots: the target conversion when sizing, and the stop temperature.
-  // Temperature extremes (dT/dV = 0) are found after each step from the
-  // integrator's interpolating polynomial instead (below): as a root
-  // function dT/dV would cost one more right-hand side per step.
+  // Roots: the target conversion when sizing, and the stop temperature. Temperature extremes
+  // (dT/dV = 0) are found after each step from the integrator's
+  // interpolating polynomial instead (PathRecorder): as a root function
+  // dT/dV would cost one more right-hand side per step.
   auto& rt = st.roots;
+  rt = {};
   rt.basis = basis;
   rt.n = n;
-  rt.X_target = sizing ? *spec.target_conversion : 0.0;
-  rt.sizing = sizing;
-  rt.i_target = sizing ? 0 : -1;
-  // The stop temperature only matters where T moves.
   const bool adiabatic = spec.heat == HeatMode::Adiabatic;
+  // The stop temperature only matters where T moves.
   const bool stop_at_T = adiabatic && options.stop_temperature.has_value();
-  rt.stop_at_T = stop_at_T;
+  const double X_target = sizing ? *spec.target_conversion : 0.0;
   const double T_stop = stop_at_T ? *options.stop_temperature : 0.0;
-  rt.T_stop = T_stop;
-  rt.i_stop = stop_at_T ? (sizing ? 1 : 0) : -1;
-  const int n_roots = (sizing ? 1 : 0) + (stop_at_T ? 1 : 0);
-  const double X_target = rt.X_target;
-  const int i_target = rt.i_target, i_stop = rt.i_stop;
-  std::vector<double>& ydot = st.ydot;
   std::vector<int> directions;
-  if (sizing) directions.push_back(1);
-  if (stop_at_T) directions.push_back(0);
+  if (sizing) {
+    rt.X_target = X_target;
+    rt.i_target = 0;
+    directions = {1};
+  }
+  if (stop_at_T) {
+    rt.T_stop = T_stop;
+    rt.i_stop = rt.count();
+    directions.push_back(0);
+  }
   // Always set, so that a reused integrator drops the last stage's roots.
   ode.set_roots(
-      n_roots, [r = &rt](double, const double* y, double* g) { return r->eval(y, g); }, directions);
+      rt.count(), [r = &rt](double, const double* y, double* g) { return r->eval(y, g); },
+      directions);
 
-  auto record = [&](double V, const std::vector<double>& y) {
-    ProfilePoint p;
-    p.V = V;
-    p.T = y[n];
-    p.X = basis.conversion(y.data());
-    p.F.assign(y.begin(), y.begin() + n);
-    res.profile.push_back(std::move(p));
-  };
-  std::vector<double>& y = st.y;
-  record(0.0, y);
-  double V = 0;
-  bool reached = false;
-  bool stopped = false;
-  // dT/dV at the last recorded point; 0 where it is unknown or flat.
-  double slope = 0;
-  if (adiabatic && sys.rhs(y.data(), ydot.data()) == 0) slope = ydot[n];
-  if (stop_at_T) {
-    // A root at the inlet itself is not reported by CVODE: an inlet at or
-    // past the stop temperature, on the side T moves to, ends the stage here.
-    if ((slope > 0 && inlet.T >= T_stop) || (slope < 0 && inlet.T <= T_stop)) stopped = true;
-  }
-  std::vector<double>& dky = st.dky;
-  dky.resize(y.size());
-  // dT/dV of the interpolating polynomial of the last step at V.
-  auto slope_at = [&](double at) {
-    ode.interpolate(at, 1, dky.data());
-    return dky[n];
-  };
-  // A sign change of dT/dV between the last point and V (both inside the
-  // last step) is a temperature extreme: bisect the polynomial's dT/dV for
-  // it and record the point, so T_max and T_min are the true extremes.
-  auto record_extreme = [&](double V_prev, double V_now) {
-    const double V_ext = detail::bisect_turn(V_prev, V_now, slope, slope_at);
-    std::vector<double> y_ext(y.size());
-    ode.interpolate(V_ext, 0, y_ext.data());
-    record(V_ext, y_ext);
-  };
   // With one reaction dT/dV = -dH r / sum F cp: r keeps its sign along a
   // bed (the reaction approaches its equilibrium without crossing it) and
   // so does dH over the few hundred kelvin of one bed, so T is monotonic
   // and its extremes are the end points (isothermal: T is constant).
   const bool monotonic = !adiabatic || mech.n_reactions() == 1;
   const bool every_step = options.full_profile || !monotonic;
+  PathRecorder path(res, basis, n, !monotonic, st.dky, st.y_turn);
+  std::vector<double>& y = st.y;
+  std::vector<double>& ydot = st.ydot;
+  path.record(0.0, y);
+  double V = 0;
+  bool reached = false;
+  bool stopped = false;
+  if (adiabatic && sys.rhs(y.data(), ydot.data()) == 0) path.set_slope(ydot[n]);
+  if (stop_at_T) {
+    // A root at the inlet itself is not reported by CVODE: an inlet at or
+    // past the stop temperature, on the side T moves to, ends the stage here.
+    const double s = path.slope();
+    if ((s > 0 && inlet.T >= T_stop) || (s < 0 && inlet.T <= T_stop)) stopped = true;
+  }
   while (!stopped) {
     CvodeIntegrator::Event ev;
+    const double V_prev = V;
     try {
       ev = every_step ? ode.step(V_end, V, y) : ode.advance(V_end, V, y);
     } catch (const SolverError& e) {
@@ -218,36 +350,31 @@ StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream
           "(a rate far too fast or too slow), split the stage at that volume, or loosen --rtol",
           spec.id, V, V_end, e.what()));
     }
-    // A temperature extreme inside the last step (several reactions only).
-    if (!monotonic) {
-      const double V_prev = res.profile.back().V;
-      const double s_now = slope_at(V);
-      if ((slope > 0 && s_now < 0) || (slope < 0 && s_now > 0))
-        record_extreme(V_prev, V);
-      if (s_now != 0) slope = s_now;
-    }
-    record(V, y);
+    path.stepped(ode, V_prev, V, y, -1);
     if (ev == CvodeIntegrator::Event::Stop) break;
-    if (ev == CvodeIntegrator::Event::Root && (sizing || stop_at_T)) {
-      const auto found = ode.roots_found();
-      if (sizing && found[i_target] != 0) {
-        reached = true;
-        break;
-      }
-      if (stop_at_T && found[i_stop] != 0) {
-        stopped = true;
-        break;
-      }
+    if (ev != CvodeIntegrator::Event::Root) continue;
+    const auto found = ode.roots_found();
+    if (rt.i_target >= 0 && found[rt.i_target] != 0) {
+      reached = true;
+      break;
+    }
+    if (rt.i_stop >= 0 && found[rt.i_stop] != 0) {
+      stopped = true;
+      break;
     }
   }
   if (sizing && !reached && !stopped) {
-    const auto& last = res.profile.back();
-    throw InfeasibleError(
-        spec.where,
-        fmt::format("stage {}: target conversion {:.4f} is out of reach; the most this stage "
-                    "can reach is X = {:.4f} (at T = {:.2f} K, the {} limit)",
-                    spec.id, X_target, last.X, last.T,
-                    spec.heat == HeatMode::Adiabatic ? "adiabatic equilibrium" : "equilibrium"));
+    const StageReach reach = pfr_reach(mech, spec, inlet, basis, ws, options);
+    throw InfeasibleError(spec.where, out_of_reach_text(spec, X_target, reach, mech));
+  }
+
+  if (reached && mech.n_reactions() == 1) {
+    // One reaction: the volume by quadrature along the exact path (see
+    // size_by_quadrature); the volume integration above told that the target is
+    // met before the stop temperature.
+    res.profile.resize(1);
+    V = size_by_quadrature(mech, spec, inlet, basis, X_target, options.cvode.rtol,
+                           options.full_profile, res, y);
   }
 
   res.volume = V;
@@ -266,8 +393,109 @@ StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream
   if (stopped)
     res.stats.message =
         fmt::format("stopped at the stop temperature {:.2f} K at V = {:.6g} m3", T_stop, V);
+  if (reached) add_size_sensitivity(sys, basis, y, st.ydot, res);
   add_space_velocities(mech, res);
   return res;
+}
+
+StageReach pfr_reach(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
+                     const ConversionBasis& basis, PfrWorkspace& ws, const PfrOptions& options) {
+  const int n = mech.n_species();
+  PfrWorkspace::State& st = ws.state();
+  CvodeIntegrator& ode =
+      st.start(ws.context(), mech, rate_multipliers(mech, spec), spec.heat, inlet, options);
+  PfrSystem& sys = st.sys;
+  const double V_end =
+      options.max_space_time * mech.volumetric_flow(inlet.T, inlet.P, inlet.F.data());
+  ode.set_stop_time(V_end);
+  auto& rt = st.roots;
+  rt = {};
+  rt.basis = basis;
+  rt.n = n;
+  const bool stop_at_T = spec.heat == HeatMode::Adiabatic && options.stop_temperature.has_value();
+  if (stop_at_T) {
+    rt.T_stop = *options.stop_temperature;
+    rt.i_stop = 0;
+  }
+  ode.set_roots(
+      rt.count(), [r = &rt](double, const double* y, double* g) { return r->eval(y, g); },
+      std::vector<int>(rt.count(), 0));
+
+  std::vector<double>& y = st.y;
+  std::vector<double>& ydot = st.ydot;
+  std::vector<double>& dky = st.dky;
+  const double X_in = basis.conversion(inlet);
+  // dX/dV of the interpolating polynomial of the last step at V.
+  auto rise_at = [&](double at) {
+    ode.interpolate(at, 1, dky.data());
+    return -dky[basis.key] / basis.F_key_feed;
+  };
+  StageReach reach;
+  reach.X_max = X_in;
+  reach.V_at_X_max = 0.0;
+  reach.T_at_X_max = inlet.T;
+  auto consider = [&](double V, const double* state) {
+    const double X = basis.conversion(state);
+    if (X > reach.X_max) {
+      reach.X_max = X;
+      reach.V_at_X_max = V;
+      reach.T_at_X_max = state[n];
+    }
+  };
+  double rise = 0;
+  if (sys.rhs(y.data(), ydot.data()) == 0) rise = -ydot[basis.key] / basis.F_key_feed;
+  bool stopped = false;
+  if (stop_at_T && sys.rhs(y.data(), ydot.data()) == 0) {
+    const double s = ydot[n];
+    stopped = (s > 0 && inlet.T >= rt.T_stop) || (s < 0 && inlet.T <= rt.T_stop);
+  }
+  // One reaction: X is monotonic along the path, its most is the end.
+  const bool several = mech.n_reactions() > 1;
+  double V = 0;
+  while (!stopped) {
+    const double V_prev = V;
+    CvodeIntegrator::Event ev;
+    try {
+      ev = several ? ode.step(V_end, V, y) : ode.advance(V_end, V, y);
+    } catch (const SolverError& e) {
+      throw SolverError(
+          fmt::format("{}: what the stage can reach, at V = {:.6g} m3: {}", spec.id, V, e.what()));
+    }
+    if (several) {
+      const double r_now = rise_at(V);
+      if (rise > 0 && r_now < 0) {
+        const double V_peak = detail::bisect_turn(V_prev, V, rise, rise_at);
+        ode.interpolate(V_peak, 0, st.y_turn.data());
+        consider(V_peak, st.y_turn.data());
+      }
+      if (r_now != 0) rise = r_now;
+    }
+    consider(V, y.data());
+    if (ev == CvodeIntegrator::Event::Stop) break;
+    if (ev == CvodeIntegrator::Event::Root) stopped = true;
+  }
+  reach.X_end = basis.conversion(y.data());
+  reach.T_end = y[n];
+  if (stopped) {
+    reach.end = ReachEnd::TemperatureStop;
+  } else {
+    // Still moving: as far again at the end's rate would add over 1e-6.
+    double g_end = 0;
+    if (sys.rhs(y.data(), ydot.data()) == 0) g_end = -ydot[basis.key] / basis.F_key_feed;
+    classify_reach_end(mech, inlet, y.data(), basis.key, g_end * V > 1e-6, reach);
+  }
+  if (reach.end == ReachEnd::Equilibrium && mech.n_reactions() == 1) {
+    // The exact end point the integration only approaches.
+    try {
+      if (const auto eq = adiabatic_equilibrium(mech, inlet, spec.heat, basis)) {
+        reach.X_end = eq->X;
+        reach.T_end = eq->stream.T;
+      }
+    } catch (const SolverError&) {
+    }
+  }
+  finish_reach(reach, V);
+  return reach;
 }
 
 Stream adiabatic_limit(const Mechanism& mech, const std::vector<double>& multipliers,

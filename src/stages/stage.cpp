@@ -2,6 +2,11 @@
 
 #include <fmt/format.h>
 
+#include <algorithm>
+#include <cmath>
+
+#include "rxtrain/stages/exchanger.hpp"
+
 namespace rxtrain {
 
 namespace {
@@ -52,6 +57,120 @@ void add_space_velocities(const Mechanism& mech, StageResult& r) {
       vl += F[i] * *mech.species()[i].mw / *mech.species()[i].density;
     r.lhsv = vl * kSecondsPerHour / V;
   }
+}
+
+const char* reach_end_name(ReachEnd end) {
+  switch (end) {
+    case ReachEnd::Equilibrium:
+      return "equilibrium";
+    case ReachEnd::ReactantUsedUp:
+      return "reactant_used_up";
+    case ReachEnd::TemperatureStop:
+      return "temperature_limit";
+    case ReachEnd::RateVanishes:
+      return "rates_die_away";
+    case ReachEnd::SpaceTimeBound:
+      return "space_time_bound";
+  }
+  return "?";
+}
+
+std::string reach_end_text(const StageReach& reach, HeatMode heat,
+                           const std::vector<std::string>& species) {
+  switch (reach.end) {
+    case ReachEnd::Equilibrium:
+      return heat == HeatMode::Adiabatic ? "the adiabatic equilibrium limit"
+                                         : "the equilibrium limit";
+    case ReachEnd::ReactantUsedUp:
+      return reach.species >= 0 && reach.species < static_cast<int>(species.size())
+                 ? species[reach.species] + " used up"
+                 : "a reactant used up";
+    case ReachEnd::TemperatureStop:
+      return "the temperature limit";
+    case ReachEnd::RateVanishes:
+      return "the rates dying away";
+    case ReachEnd::SpaceTimeBound:
+      return "still rising at the longest space time searched";
+  }
+  return "?";
+}
+
+void classify_reach_end(const Mechanism& mech, const Stream& inlet, const double* F_end, int key,
+                        bool still_rising, StageReach& reach) {
+  // Reactants of the reactions that consume the key: the first to run out
+  // (smallest share of its inlet flow left) ends the path.
+  constexpr double kUsedUp = 1e-6;
+  int used_up = -1;
+  double least = kUsedUp;
+  for (const auto& rx : mech.reactions()) {
+    if (!(rx.nu[key] < 0)) continue;
+    for (int i = 0; i < mech.n_species(); ++i) {
+      if (!(rx.nu[i] < 0) || !(inlet.F[i] > 0)) continue;
+      const double left = std::max(F_end[i], 0.0) / inlet.F[i];
+      if (left <= least) {
+        least = left;
+        used_up = i;
+      }
+    }
+  }
+  reach.species = -1;
+  if (used_up >= 0) {
+    reach.end = ReachEnd::ReactantUsedUp;
+    reach.species = used_up;
+    return;
+  }
+  bool reversible = false;
+  for (const auto& rx : mech.reactions()) reversible = reversible || rx.reversible;
+  if (still_rising)
+    reach.end = ReachEnd::SpaceTimeBound;
+  else
+    reach.end = reversible ? ReachEnd::Equilibrium : ReachEnd::RateVanishes;
+}
+
+Stream stream_after_extent(const Mechanism& mech, const Stream& inlet, HeatMode heat, int j,
+                           double xi, double T_guess) {
+  const auto& nu = mech.reactions()[j].nu;
+  Stream out{inlet.T, inlet.P, inlet.F};
+  const double floor = 1e-12 * inlet.total_flow();
+  for (int i = 0; i < mech.n_species(); ++i) {
+    out.F[i] += nu[i] * xi;
+    if (out.F[i] < 0 && out.F[i] > -floor) out.F[i] = 0;  // a reactant used up exactly
+  }
+  if (heat == HeatMode::Adiabatic) {
+    // sum F hs(T) = sum F_in hs(T_in) - xi dH_298: the total enthalpy kept.
+    const double H =
+        mech.sensible_enthalpy_flow(inlet.T, inlet.F.data()) - xi * mech.reactions()[j].dH_298;
+    out.T = temperature_for_enthalpy(mech, out.F, H, std::isnan(T_guess) ? inlet.T : T_guess);
+  }
+  return out;
+}
+
+void finish_reach(StageReach& reach, double V_last) {
+  if (reach.peak_inside()) return;
+  reach.X_max = reach.X_end;
+  reach.T_at_X_max = reach.T_end;
+  const bool cut = reach.end == ReachEnd::TemperatureStop || reach.end == ReachEnd::SpaceTimeBound;
+  reach.V_at_X_max = cut ? std::optional<double>(V_last) : std::nullopt;
+}
+
+std::string out_of_reach_text(const ReactorSpec& spec, double X_target, const StageReach& reach,
+                              const Mechanism& mech) {
+  const std::string head = fmt::format(
+      "stage {}: target conversion {:.4f} is out of reach; the most this stage can reach is "
+      "X = {:.4f}",
+      spec.id, X_target, reach.X_max);
+  std::vector<std::string> ids;
+  for (const auto& sp : mech.species()) ids.push_back(sp.id);
+  const std::string end = reach_end_text(reach, spec.heat, ids);
+  if (!reach.peak_inside() || !reach.V_at_X_max)
+    return head + fmt::format(" (at T = {:.2f} K, {})", reach.T_at_X_max, end);
+  std::string where = fmt::format("V = {:.4g} m3", *reach.V_at_X_max);
+  if (spec.bulk_density)
+    where += fmt::format(", {:.4g} kg of catalyst", *reach.V_at_X_max * *spec.bulk_density);
+  return head + fmt::format(
+                    " (at {}, T = {:.2f} K); a larger stage gives conversion back, to X = {:.4f} "
+                    "at T = {:.2f} K ({})",
+                    where, reach.T_at_X_max, reach.X_end, reach.T_end, end);
 }
 
 std::vector<double> rate_multipliers(const Mechanism& mech, const ReactorSpec& spec) {

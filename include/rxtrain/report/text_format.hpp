@@ -11,7 +11,15 @@
 #include <string>
 #include <vector>
 
+#include "rxtrain/stages/stage.hpp"
+
 namespace rxtrain {
+
+// "R1: the most this stage can reach at any size is X = 0.9280 at 650.12 °C
+// (the adiabatic equilibrium limit)", or, where the conversion peaks inside
+// the stage, the peak with its volume and the end point a larger stage
+// falls back to. r.reach and r.heat must be set.
+std::string reach_sentence(const StageResult& r, const std::vector<std::string>& species);
 
 // `v` with `digits` decimals; "-" when not finite or empty.
 std::string fixed_text(double v, int digits);

@@ -62,4 +62,15 @@ StageResult run_cstr(const Mechanism& mech, const ReactorSpec& spec, const Strea
                      const ConversionBasis& basis, CstrWorkspace& ws,
                      const CstrOptions& options = {});
 
+// What a stirred tank with `spec`'s heat mode and catalyst can reach at
+// any size from `inlet` (see StageReach): its steady states on the branch
+// from the feed, followed by continuation as the volume grows to
+// options.pfr.max_space_time; the largest conversion met, and where the
+// branch ends. In a tank the extents keep the ratio of the rates at the
+// outlet, so with several reactions this is not the plug-flow path's
+// reach. Throws SolverError when the continuation fails.
+StageReach cstr_reach(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
+                      const ConversionBasis& basis, CstrWorkspace& workspace,
+                      const CstrOptions& options = {});
+
 }  // namespace rxtrain

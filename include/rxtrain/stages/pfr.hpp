@@ -86,12 +86,31 @@ class PfrWorkspace {
 // True when `options` selects the sparse solver for a mechanism of n species.
 bool uses_sparse_jacobian(const PfrOptions& options, int n_species);
 
+// Rates (spec.volume or catalyst) or sizes (spec.target_conversion) one
+// tubular stage. Sizing integrates over the volume to the conversion
+// halfway from the inlet to the target, then over the conversion itself
+// (states [F, T, Q, V], dV/dX = 1/(dX/dV)) to the target: near what the
+// stage can reach dV/dX grows without bound, and only with X as the
+// independent variable is the volume held to the tolerance. Where the
+// conversion does not rise all the way (several reactions), the volume
+// integration's first crossing stands. A target out of reach throws
+// InfeasibleError quoting pfr_reach().
 StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
                     const ConversionBasis& basis, const SunContext& ctx,
                     const PfrOptions& options = {});
 // Same, reusing `ws` (the results are the same).
 StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
                     const ConversionBasis& basis, PfrWorkspace& ws, const PfrOptions& options = {});
+
+// What a tubular stage with `spec`'s heat mode and catalyst can reach at
+// any size from `inlet` (see StageReach): the path is integrated to
+// options.max_space_time (or options.stop_temperature), the key's
+// conversion followed step by step and its peaks (dX/dV = 0) refined on
+// the integrator's interpolating polynomial. With one reversible reaction
+// the end point is the exact adiabatic (isothermal) equilibrium.
+StageReach pfr_reach(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
+                     const ConversionBasis& basis, PfrWorkspace& ws,
+                     const PfrOptions& options = {});
 
 // Outlet of an adiabatic tubular bed of practically unlimited size fed
 // with `inlet`: the adiabatic equilibrium point (or complete conversion of

@@ -3,6 +3,7 @@
 // a profile point is V * bulk_density where a bulk density is given.
 #pragma once
 
+#include <limits>
 #include <optional>
 #include <string>
 #include <vector>
@@ -22,10 +23,10 @@ const char* stage_kind_name(StageKind kind);
 const char* heat_mode_name(HeatMode heat);
 
 struct ProfilePoint {
-  double V = 0;            // m3 from the stage inlet
-  double T = 0;            // K
-  double X = 0;            // overall key conversion
-  std::vector<double> F;   // mol/s
+  double V = 0;           // m3 from the stage inlet
+  double T = 0;           // K
+  double X = 0;           // overall key conversion
+  std::vector<double> F;  // mol/s
 };
 
 // One solution of a stirred tank's balances.
@@ -35,11 +36,83 @@ struct SteadyState {
   std::vector<double> F;
 };
 
+// Why a reactor's path (or a tank's branch) ends where it does as the
+// stage grows without bound.
+enum class ReachEnd {
+  Equilibrium,      // every reaction that could still move the key is at equilibrium
+  ReactantUsedUp,   // a reactant ran out (StageReach::species)
+  TemperatureStop,  // the path reached PfrOptions::stop_temperature
+  RateVanishes,     // irreversible reactions that slow to nothing short of either
+  SpaceTimeBound,   // still moving at PfrOptions::max_space_time
+};
+
+// What a reactor stage can reach at any size, from its inlet and heat mode:
+// the largest key conversion along its path (tubular: the adiabatic or
+// isothermal plug-flow path; stirred tank: its steady states as the volume
+// grows, on the branch from the feed), and the end point the path tends
+// to. With one reaction the two coincide; with several, the key's
+// conversion can peak inside the bed and fall back towards the end point.
+struct StageReach {
+  double X_max = 0;  // largest key conversion at any size
+  // m3, where it occurs; empty when X_max is the end point itself, which
+  // the path only approaches as the stage grows without bound.
+  std::optional<double> V_at_X_max;
+  double T_at_X_max = 0;  // K
+  double X_end = 0;       // key conversion at the end point
+  double T_end = 0;       // K
+  ReachEnd end = ReachEnd::Equilibrium;
+  int species = -1;  // the reactant used up (ReachEnd::ReactantUsedUp)
+  // X_max lies inside the path: a larger stage gives conversion back.
+  bool peak_inside() const { return X_max > X_end + kReachPeakTolerance; }
+  // Conversions closer than this are one point (well above the ~1e-8
+  // accuracy of an integrated path).
+  static constexpr double kReachPeakTolerance = 1e-6;
+};
+
+// Why the end point is where it is, as a noun phrase for messages: "the
+// adiabatic equilibrium limit", "the equilibrium limit", "B used up", ...
+// `species` names the species in mechanism order.
+std::string reach_end_text(const StageReach& reach, HeatMode heat,
+                           const std::vector<std::string>& species);
+// Machine name of the end: "equilibrium", "reactant_used_up",
+// "temperature_limit", "rates_die_away", "space_time_bound".
+const char* reach_end_name(ReachEnd end);
+
+// Sets reach.end (and reach.species) from the end state's flows F_end:
+// a reactant of a reaction that consumes the key run out (to 1e-6 of its
+// inlet flow) comes first, then a path still moving (`still_rising`: the
+// key's conversion would still grow by over 1e-6 if the path went on as
+// far again), then equilibrium when a reversible reaction exists; else
+// the rates have died away. The caller sets TemperatureStop itself.
+void classify_reach_end(const Mechanism& mech, const Stream& inlet, const double* F_end, int key,
+                        bool still_rising, StageReach& reach);
+
+// The stream after extent xi (mol/s) of reaction j alone from `inlet`:
+// flows by the stoichiometry (round-off below zero cleared), temperature
+// the inlet's (isothermal) or the one that keeps the total enthalpy
+// (adiabatic; Newton from T_guess, or the inlet's T when NaN). Throws
+// SolverError when no temperature closes the balance.
+Stream stream_after_extent(const Mechanism& mech, const Stream& inlet, HeatMode heat, int j,
+                           double xi, double T_guess = std::numeric_limits<double>::quiet_NaN());
+
+// Settles a reach from its path: the most is the end point unless a peak
+// stands above it (peak_inside), and the end point is only approached as
+// the stage grows without bound (V_at_X_max empty), except where the path
+// was cut at the temperature limit or the space-time bound, at V_last.
+void finish_reach(StageReach& reach, double V_last);
+
+// "stage R1: target conversion 0.9700 is out of reach; the most this stage
+// can reach is X = ... (at T = ... K, the adiabatic equilibrium limit)",
+// with where the peak lies and what a larger stage falls back to when the
+// most lies inside the path.
+std::string out_of_reach_text(const ReactorSpec& spec, double X_target, const StageReach& reach,
+                              const Mechanism& mech);
+
 struct StageResult {
   std::string id;
   StageKind kind = StageKind::Pfr;
-  std::optional<HeatMode> heat;            // reactors only
-  bool sized = false;                      // volume found from a target
+  std::optional<HeatMode> heat;  // reactors only
+  bool sized = false;            // volume found from a target
   Stream inlet;
   Stream outlet;
   std::optional<double> volume;            // m3
@@ -61,6 +134,13 @@ struct StageResult {
   // Reactor stages of a mechanism with a reversible reaction: where the
   // stage stands against equilibrium (filled by run_train).
   std::optional<EquilibriumRecord> equilibrium;
+  // Reactor stages: the most the stage can reach at any size (filled with
+  // the equilibrium views).
+  std::optional<StageReach> reach;
+  // Sized stages: relative change of the volume per 1e-6 of conversion at
+  // the target (dV/dX * 1e-6 / V); large when the target lies close to
+  // what the stage can reach and the size is ill-conditioned.
+  std::optional<double> size_sensitivity;
 };
 
 // Fills space time, space velocity, GHSV, WHSV and LHSV from the stage's
