@@ -32,24 +32,6 @@ constexpr double kQuadratureShare = 1e-4;
 // (uniform in X, more where the integrand steepens).
 constexpr int kQuadraturePieces = 100;
 
-// A sized stage: how far its volume moves per 1e-6 of conversion at the
-// target (from dX/dV there), and a warning where that is ill-conditioned.
-void add_size_sensitivity(PfrSystem& sys, const ConversionBasis& basis,
-                          const std::vector<double>& y, std::vector<double>& ydot,
-                          StageResult& res) {
-  if (!res.volume || !(*res.volume > 0) || sys.rhs(y.data(), ydot.data()) != 0) return;
-  const double g = -ydot[basis.key] / basis.F_key_feed;
-  if (!(g > 0)) return;
-  const double s = 1e-6 / (g * *res.volume);
-  res.size_sensitivity = s;
-  if (s > kIllConditionedSize)
-    res.warnings.push_back(fmt::format(
-        "stage {}: the target X = {:.10g} lies so close to the most this stage can reach that "
-        "its size is ill-conditioned: each 1e-6 of conversion changes the volume by {} %",
-        res.id, res.conversion,
-        100 * s < 10 ? fmt::format("{:.2g}", 100 * s) : fmt::format("{:.0f}", 100 * s)));
-}
-
 }  // namespace
 
 // Everything a tubular stage needs between runs. The integrator's
@@ -198,66 +180,6 @@ class PathRecorder {
   std::vector<double>& y_turn_;
 };
 
-// A one-reaction bed sized to X_target: V = integral of dV/dX =
-// F_key,feed / (-nu_key R) over X from the inlet, with the flows from the
-// stoichiometry and T from the energy balance (the inlet's T when
-// isothermal), exact at every X. Integrating over V instead, the crossing
-// of X_target moves by the state's error times dV/dX: large where the bed
-// lights off, and without bound near what the stage can reach (where
-// dV/dX does). Appends the profile from the quadrature's pieces and
-// returns the volume; y = [F, T, Q] at the end.
-double size_by_quadrature(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
-                          const ConversionBasis& basis, double X_target, double rtol,
-                          bool full_profile, StageResult& res, std::vector<double>& y) {
-  const auto& nu = mech.reactions()[0].nu;
-  const double beta = rate_multipliers(mech, spec)[0];
-  const double X_in = basis.conversion(inlet);
-  const double per_X = basis.F_key_feed / -nu[basis.key];  // extent per unit of X
-  double T_last = inlet.T;  // Newton's start for the next temperature
-  auto state_at = [&](double X) {
-    Stream s = stream_after_extent(mech, inlet, spec.heat, 0, (X - X_in) * per_X, T_last);
-    T_last = s.T;
-    return s;
-  };
-  double r = 0;
-  auto dV_dX = [&](double X) {
-    const Stream s = state_at(X);
-    mech.rates(s.T, s.P, s.F.data(), &r);
-    const double R = beta * r;
-    if (!(R > 0))
-      throw SolverError(
-          fmt::format("{}: the rate is not positive at X = {:.8f} below the target", spec.id, X));
-    return basis.F_key_feed / (-nu[basis.key] * R);
-  };
-  QuadratureOptions qo;
-  qo.rel_tolerance = std::max(kQuadratureShare * rtol, 1e-14);
-  qo.max_width = (X_target - X_in) / kQuadraturePieces;
-  const QuadratureResult q = integrate(dV_dX, X_in, X_target, qo);
-  // Within a hair of equilibrium the integrand's round-off (1 - Q/K as a
-  // difference of nearly equal numbers) can stop the quadrature short of
-  // its own tolerance; it still counts while far inside the integrator's.
-  if (!q.converged && !(q.error <= rtol * q.value))
-    throw SolverError(
-        fmt::format("{}: the volume to X = {:.8f} did not converge (quadrature "
-                    "error {:.3g} of {:.6g} m3)",
-                    spec.id, X_target, q.error, q.value));
-  // Heat taken out when isothermal: dH(T_in) per unit extent.
-  const double dH = spec.heat == HeatMode::Isothermal ? mech.dH(0, inlet.T) : 0.0;
-  double V = 0;
-  for (const auto& piece : q.pieces) {
-    V += piece.value;
-    // Every piece's state, kept or not, so that the end's Newton starts
-    // from the same guess with or without the profile.
-    const Stream s = state_at(piece.b);
-    if (!full_profile && &piece != &q.pieces.back()) continue;
-    y.assign(s.F.begin(), s.F.end());
-    y.push_back(s.T);
-    y.push_back(dH * (piece.b - X_in) * per_X);
-    res.profile.push_back(ProfilePoint{V, s.T, piece.b, s.F});
-  }
-  return V;
-}
-
 }  // namespace
 
 StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
@@ -373,8 +295,8 @@ StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream
     // size_by_quadrature); the volume integration above told that the target is
     // met before the stop temperature.
     res.profile.resize(1);
-    V = size_by_quadrature(mech, spec, inlet, basis, X_target, options.cvode.rtol,
-                           options.full_profile, res, y);
+    V = detail::size_by_quadrature(mech, spec, inlet, basis, X_target, options.cvode.rtol,
+                                   options.full_profile, res, y);
   }
 
   res.volume = V;
@@ -393,7 +315,7 @@ StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream
   if (stopped)
     res.stats.message =
         fmt::format("stopped at the stop temperature {:.2f} K at V = {:.6g} m3", T_stop, V);
-  if (reached) add_size_sensitivity(sys, basis, y, st.ydot, res);
+  if (reached) detail::add_size_sensitivity(mech, rate_multipliers(mech, spec), basis, res);
   add_space_velocities(mech, res);
   return res;
 }
@@ -525,6 +447,85 @@ Stream adiabatic_limit(const Mechanism& mech, const std::vector<double>& multipl
 }
 
 namespace detail {
+
+// A one-reaction bed sized to X_target: V = integral of dV/dX =
+// F_key,feed / (-nu_key R) over X from the inlet, with the flows from the
+// stoichiometry and T from the energy balance (the inlet's T when
+// isothermal), exact at every X. Integrating over V instead, the crossing
+// of X_target moves by the state's error times dV/dX: large where the bed
+// lights off, and without bound near what the stage can reach (where
+// dV/dX does). Appends the profile from the quadrature's pieces and
+// returns the volume; y = [F, T, Q] at the end.
+double size_by_quadrature(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
+                          const ConversionBasis& basis, double X_target, double rtol,
+                          bool full_profile, StageResult& res, std::vector<double>& y) {
+  const auto& nu = mech.reactions()[0].nu;
+  const double beta = rate_multipliers(mech, spec)[0];
+  const double X_in = basis.conversion(inlet);
+  const double per_X = basis.F_key_feed / -nu[basis.key];  // extent per unit of X
+  double T_last = inlet.T;  // Newton's start for the next temperature
+  auto state_at = [&](double X) {
+    Stream s = stream_after_extent(mech, inlet, spec.heat, 0, (X - X_in) * per_X, T_last);
+    T_last = s.T;
+    return s;
+  };
+  double r = 0;
+  auto dV_dX = [&](double X) {
+    const Stream s = state_at(X);
+    mech.rates(s.T, s.P, s.F.data(), &r);
+    const double R = beta * r;
+    if (!(R > 0))
+      throw SolverError(
+          fmt::format("{}: the rate is not positive at X = {:.8f} below the target", spec.id, X));
+    return basis.F_key_feed / (-nu[basis.key] * R);
+  };
+  QuadratureOptions qo;
+  qo.rel_tolerance = std::max(kQuadratureShare * rtol, 1e-14);
+  qo.max_width = (X_target - X_in) / kQuadraturePieces;
+  const QuadratureResult q = integrate(dV_dX, X_in, X_target, qo);
+  // Within a hair of equilibrium the integrand's round-off (1 - Q/K as a
+  // difference of nearly equal numbers) can stop the quadrature short of
+  // its own tolerance; it still counts while far inside the integrator's.
+  if (!q.converged && !(q.error <= rtol * q.value))
+    throw SolverError(
+        fmt::format("{}: the volume to X = {:.8f} did not converge (quadrature "
+                    "error {:.3g} of {:.6g} m3)",
+                    spec.id, X_target, q.error, q.value));
+  // Heat taken out when isothermal: dH(T_in) per unit extent.
+  const double dH = spec.heat == HeatMode::Isothermal ? mech.dH(0, inlet.T) : 0.0;
+  double V = 0;
+  for (const auto& piece : q.pieces) {
+    V += piece.value;
+    // Every piece's state, kept or not, so that the end's Newton starts
+    // from the same guess with or without the profile.
+    const Stream s = state_at(piece.b);
+    if (!full_profile && &piece != &q.pieces.back()) continue;
+    y.assign(s.F.begin(), s.F.end());
+    y.push_back(s.T);
+    y.push_back(dH * (piece.b - X_in) * per_X);
+    res.profile.push_back(ProfilePoint{V, s.T, piece.b, s.F});
+  }
+  return V;
+}
+
+void add_size_sensitivity(const Mechanism& mech, const std::vector<double>& multipliers,
+                          const ConversionBasis& basis, StageResult& res) {
+  if (!res.volume || !(*res.volume > 0)) return;
+  std::vector<double> r(mech.n_reactions());
+  mech.rates(res.outlet.T, res.outlet.P, res.outlet.F.data(), r.data());
+  double g = 0;  // dX/dV
+  for (int j = 0; j < mech.n_reactions(); ++j)
+    g -= mech.reactions()[j].nu[basis.key] * multipliers[j] * r[j] / basis.F_key_feed;
+  if (!(g > 0) || !std::isfinite(g)) return;
+  const double s = 1e-6 / (g * *res.volume);
+  res.size_sensitivity = s;
+  if (s > kIllConditionedSize)
+    res.warnings.push_back(fmt::format(
+        "stage {}: the target X = {:.10g} lies so close to the most this stage can reach that "
+        "its size is ill-conditioned: each 1e-6 of conversion changes the volume by {} %",
+        res.id, res.conversion,
+        100 * s < 10 ? fmt::format("{:.2g}", 100 * s) : fmt::format("{:.0f}", 100 * s)));
+}
 
 void pfr_jacobians(const Mechanism& mech, const std::vector<double>& multipliers, HeatMode heat,
                    double P, const std::vector<double>& y, std::vector<double>& f,

@@ -57,9 +57,8 @@ PfrBatchWorkspace& PfrBatchWorkspace::operator=(PfrBatchWorkspace&&) noexcept = 
 
 bool pfr_batchable(const Mechanism& mech, const ReactorSpec& spec, const PfrOptions& options) {
   return spec.type == ReactorType::Pfr &&
-         (spec.target_conversion || (spec.volume && *spec.volume > 0)) &&
-         !options.full_profile && !options.stop_temperature &&
-         !uses_sparse_jacobian(options, mech.n_species()) &&
+         (spec.target_conversion || (spec.volume && *spec.volume > 0)) && !options.full_profile &&
+         !options.stop_temperature && !uses_sparse_jacobian(options, mech.n_species()) &&
          mech.n_species() + 2 <= kMaxBlockSize;
 }
 
@@ -97,7 +96,8 @@ std::vector<StageResult> run_pfr_batch(std::span<const PfrBatchItem> items, PfrB
   if (!reuse) {
     st.ode.reset();
     st.ode.emplace(
-        ws.context(), m, N, [s = &st](double, const double* y, double* yd) { return s->rhs(y, yd); },
+        ws.context(), m, N,
+        [s = &st](double, const double* y, double* yd) { return s->rhs(y, yd); },
         [s = &st](double, const double* y, double* J) { return s->jac(y, J); }, co, st.scale);
     st.N = N;
     st.ode_options = co;
@@ -119,8 +119,9 @@ std::vector<StageResult> run_pfr_batch(std::span<const PfrBatchItem> items, PfrB
       // run_pfr's input error; the caller reruns the run alone for it.
       if (st.target[b] <= it.basis.conversion(it.inlet))
         throw SolverError("batch: a target conversion not above its inlet's");
-      s_end = std::max(s_end, options.max_space_time * it.mech->volumetric_flow(
-                                                           it.inlet.T, it.inlet.P, it.inlet.F.data()));
+      s_end =
+          std::max(s_end, options.max_space_time *
+                              it.mech->volumetric_flow(it.inlet.T, it.inlet.P, it.inlet.F.data()));
     }
     // The integrator keeps this function until the next batch replaces it;
     // it holds the span by value, called only inside this function.
@@ -248,6 +249,24 @@ std::vector<StageResult> run_pfr_batch(std::span<const PfrBatchItem> items, PfrB
     res.conversion = it.basis.conversion(res.outlet);
     res.T_max = std::max(st.T_max[b], yb[n]);
     res.T_min = std::min(st.T_min[b], yb[n]);
+    if (sizing && it.mech->n_reactions() == 1) {
+      // As run_pfr: the volume by quadrature along the exact path.
+      std::vector<double> y_end;
+      res.profile.resize(1);
+      const double V =
+          detail::size_by_quadrature(*it.mech, spec, it.inlet, it.basis, *spec.target_conversion,
+                                     options.cvode.rtol, false, res, y_end);
+      res.volume = V;
+      if (spec.bulk_density) res.catalyst_mass = V * *spec.bulk_density;
+      res.outlet =
+          Stream{y_end[n], it.inlet.P, std::vector<double>(y_end.begin(), y_end.begin() + n)};
+      res.duty = y_end[n + 1];
+      res.conversion = it.basis.conversion(res.outlet);
+      res.T_max = std::max(it.inlet.T, res.outlet.T);
+      res.T_min = std::min(it.inlet.T, res.outlet.T);
+    }
+    if (sizing)
+      detail::add_size_sensitivity(*it.mech, rate_multipliers(*it.mech, spec), it.basis, res);
     res.stats = stats;
     add_space_velocities(*it.mech, res);
   }

@@ -292,4 +292,18 @@ inline void state_scale(const Mechanism& mech, const Stream& in, std::vector<dou
   s.push_back(std::max(1.0, mech.heat_capacity_flow(in.T, in.F.data()) * in.T));
 }
 
+// A one-reaction tubular bed sized to X_target by quadrature of dV/dX along
+// its exact path (pfr.cpp): returns the volume, appends profile points to
+// res (every quadrature piece, or only the end without full_profile) and
+// leaves y = [F, T, Q] at the end.
+double size_by_quadrature(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
+                          const ConversionBasis& basis, double X_target, double rtol,
+                          bool full_profile, StageResult& res, std::vector<double>& y);
+
+// A sized stage: res.size_sensitivity, the relative change of its volume
+// per 1e-6 of conversion at the outlet, and a warning where the size is
+// ill-conditioned.
+void add_size_sensitivity(const Mechanism& mech, const std::vector<double>& multipliers,
+                          const ConversionBasis& basis, StageResult& res);
+
 }  // namespace rxtrain::detail
