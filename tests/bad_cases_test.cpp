@@ -13,8 +13,8 @@
 #include <vector>
 
 #include "run_command.hpp"
-#include "rxtrain/case.hpp"
-#include "rxtrain/units.hpp"
+#include "rxtrain/case/case.hpp"
+#include "rxtrain/base/units.hpp"
 
 using namespace rxtrain;
 

@@ -1,7 +1,7 @@
 // Case loader: good cases load into the right SI values and defaults; the
 // location and wording of errors that the bad-case catalogue
 // (bad_cases_test.cpp) does not pin down to the column.
-#include "rxtrain/case.hpp"
+#include "rxtrain/case/case.hpp"
 
 #include <catch2/catch.hpp>
 #include <cmath>
@@ -11,7 +11,7 @@
 #include <string>
 #include <variant>
 
-#include "rxtrain/units.hpp"
+#include "rxtrain/base/units.hpp"
 
 using namespace rxtrain;
 

@@ -8,7 +8,7 @@
 // volume, the order of a tubular and a stirred stage does not matter for
 // n = 1; the tubular stage first gives more conversion for n > 1, the
 // stirred tank first for n < 1. Every case here is invented.
-#include "rxtrain/compare.hpp"
+#include "rxtrain/studies/compare.hpp"
 
 #include <fmt/format.h>
 
@@ -18,8 +18,8 @@
 #include <string>
 
 #include "run_command.hpp"
-#include "rxtrain/error.hpp"
-#include "rxtrain/units.hpp"
+#include "rxtrain/base/error.hpp"
+#include "rxtrain/base/units.hpp"
 
 namespace {
 

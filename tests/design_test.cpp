@@ -21,7 +21,7 @@
 // The tests evaluate both with GSL and the rate law written here, not with
 // the optimizer's internals. Every kinetic and thermal value is invented
 // test data.
-#include "rxtrain/design.hpp"
+#include "rxtrain/studies/optimize.hpp"
 
 #include <fmt/format.h>
 #include <gsl/gsl_errno.h>
@@ -33,9 +33,9 @@
 #include <memory>
 #include <string>
 
-#include "rxtrain/design_case.hpp"
-#include "rxtrain/train.hpp"
-#include "rxtrain/units.hpp"
+#include "rxtrain/case/write_case.hpp"
+#include "rxtrain/flowsheet/train.hpp"
+#include "rxtrain/base/units.hpp"
 
 using namespace rxtrain;
 

@@ -1,5 +1,5 @@
 // Reaction equation parser: the grammar in include/rxtrain/equation.hpp.
-#include "rxtrain/equation.hpp"
+#include "rxtrain/chem/equation.hpp"
 
 #include <catch2/catch.hpp>
 #include <string>

@@ -4,7 +4,7 @@
 // comments, published thermochemical data and correlations
 // (/work/shared/reference-data.md) and GSL's multiroot solver.
 // Every mechanism here is invented test data unless a source is named.
-#include "rxtrain/equilibrium.hpp"
+#include "rxtrain/models/equilibrium.hpp"
 
 #include <gsl/gsl_errno.h>
 #include <gsl/gsl_multiroots.h>

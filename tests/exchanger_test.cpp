@@ -7,7 +7,7 @@
 #include <optional>
 #include <string>
 
-#include "rxtrain/error.hpp"
+#include "rxtrain/base/error.hpp"
 
 namespace {
 

@@ -2,7 +2,7 @@
 // Atomic weights: IUPAC/CIAAW conventional values as copied in
 // /work/shared/reference-data.md §6: H 1.008, C 12.011, N 14.007, O 15.999,
 // S 32.06, Cl 35.45 (g/mol).
-#include "rxtrain/formula.hpp"
+#include "rxtrain/chem/formula.hpp"
 
 #include <catch2/catch.hpp>
 #include <string>

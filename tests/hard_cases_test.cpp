@@ -20,10 +20,10 @@
 #include <string>
 #include <vector>
 
-#include "rxtrain/case.hpp"
-#include "rxtrain/result_guard.hpp"
-#include "rxtrain/train.hpp"
-#include "rxtrain/units.hpp"
+#include "rxtrain/case/case.hpp"
+#include "rxtrain/analysis/result_guard.hpp"
+#include "rxtrain/flowsheet/train.hpp"
+#include "rxtrain/base/units.hpp"
 
 using namespace rxtrain;
 

@@ -16,12 +16,12 @@
 #include <unistd.h>
 
 #include "run_command.hpp"
-#include "rxtrain/case.hpp"
-#include "rxtrain/input_limits.hpp"
+#include "rxtrain/case/case.hpp"
+#include "rxtrain/base/input_limits.hpp"
 #include "rxtrain/report/atomic_file.hpp"
-#include "rxtrain/result_guard.hpp"
-#include "rxtrain/train.hpp"
-#include "rxtrain/units.hpp"
+#include "rxtrain/analysis/result_guard.hpp"
+#include "rxtrain/flowsheet/train.hpp"
+#include "rxtrain/base/units.hpp"
 
 using namespace rxtrain;
 

@@ -4,7 +4,7 @@
 // V = F_key,feed dX / (-r_key,out) for a stirred tank (the design
 // equations of ideal reactors; Levenspiel, Chemical Reaction Engineering,
 // the chapters on single ideal reactors). Every case here is invented.
-#include "rxtrain/levenspiel.hpp"
+#include "rxtrain/stages/levenspiel.hpp"
 
 #include <catch2/catch.hpp>
 #include <cmath>
@@ -13,11 +13,11 @@
 #include <string>
 
 #include "run_command.hpp"
-#include "rxtrain/case.hpp"
+#include "rxtrain/case/case.hpp"
 #include "rxtrain/report/csv.hpp"
 #include "rxtrain/report/json.hpp"
-#include "rxtrain/train.hpp"
-#include "rxtrain/units.hpp"
+#include "rxtrain/flowsheet/train.hpp"
+#include "rxtrain/base/units.hpp"
 
 namespace {
 

@@ -2,7 +2,7 @@
 // finite differences, the definition of the rate law, published thermo data
 // and a published correlation.
 #include "test_species.hpp"
-#include "rxtrain/mechanism.hpp"
+#include "rxtrain/kinetics/mechanism.hpp"
 
 #include <catch2/catch.hpp>
 #include <cmath>

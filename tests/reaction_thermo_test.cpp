@@ -1,9 +1,9 @@
 // ReactionThermo (one polynomial per temperature stretch for dH, dCp,
 // ln K) against GSL quadrature and differentiation of the species' cp, and
 // against the thermo-derived K of SO2 oxidation in reference-data.md.
-#include "rxtrain/reaction_thermo.hpp"
+#include "rxtrain/chem/reaction_thermo.hpp"
 
-#include "rxtrain/mechanism.hpp"
+#include "rxtrain/kinetics/mechanism.hpp"
 
 #include <gsl/gsl_deriv.h>
 #include <gsl/gsl_errno.h>

@@ -9,14 +9,14 @@
 #include <sstream>
 
 #include "run_command.hpp"
-#include "rxtrain/case.hpp"
+#include "rxtrain/case/case.hpp"
 #include "rxtrain/report/figures.hpp"
 #include "rxtrain/report/compare_report.hpp"
 #include "rxtrain/report/html.hpp"
 #include "rxtrain/report/staging_html.hpp"
 #include "rxtrain/report/sha256.hpp"
 #include "rxtrain/report/text_format.hpp"
-#include "rxtrain/units.hpp"
+#include "rxtrain/base/units.hpp"
 
 using namespace rxtrain;
 namespace fs = std::filesystem;

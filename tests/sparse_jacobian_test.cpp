@@ -10,11 +10,11 @@
 #include <vector>
 
 #include "test_species.hpp"
-#include "rxtrain/case.hpp"
+#include "rxtrain/case/case.hpp"
 #include "rxtrain/stages/pfr.hpp"
-#include "rxtrain/synthetic_mechanism.hpp"
-#include "rxtrain/train.hpp"
-#include "rxtrain/units.hpp"
+#include "rxtrain/kinetics/synthetic_mechanism.hpp"
+#include "rxtrain/flowsheet/train.hpp"
+#include "rxtrain/base/units.hpp"
 
 using namespace rxtrain;
 

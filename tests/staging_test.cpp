@@ -12,7 +12,7 @@
 // volumes by quadrature (GSL QAGS) of the PFR design equation
 //   V = F_A0 integral dX / r(X, T(X)),  r = k(T) C_A (1 - Q/K), Q = X / (1 - X).
 // Every kinetic and thermal value is invented test data.
-#include "rxtrain/staging.hpp"
+#include "rxtrain/studies/staging.hpp"
 
 #include <fmt/format.h>
 #include <gsl/gsl_errno.h>
@@ -28,9 +28,9 @@
 #include <vector>
 
 #include "run_command.hpp"
-#include "rxtrain/design_checks.hpp"
+#include "rxtrain/analysis/train_warnings.hpp"
 #include "rxtrain/report/staging_report.hpp"
-#include "rxtrain/units.hpp"
+#include "rxtrain/base/units.hpp"
 
 using namespace rxtrain;
 

@@ -11,14 +11,14 @@
 #include <sstream>
 #include <string>
 
-#include "rxtrain/case.hpp"
+#include "rxtrain/case/case.hpp"
 #include "rxtrain/sweep/case_path.hpp"
 #include "rxtrain/sweep/outputs.hpp"
 #include "rxtrain/sweep/study.hpp"
 #include "rxtrain/sweep/sweep.hpp"
 #include "rxtrain/sweep/sweep_csv.hpp"
-#include "rxtrain/train.hpp"
-#include "rxtrain/units.hpp"
+#include "rxtrain/flowsheet/train.hpp"
+#include "rxtrain/base/units.hpp"
 #include "sized_tube.hpp"
 
 using namespace rxtrain;

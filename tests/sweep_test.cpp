@@ -15,7 +15,7 @@
 #include <string>
 #include <variant>
 
-#include "rxtrain/case.hpp"
+#include "rxtrain/case/case.hpp"
 #include "rxtrain/sweep/case_path.hpp"
 #include "rxtrain/sweep/outputs.hpp"
 #include "rxtrain/sweep/percentiles.hpp"
@@ -23,8 +23,8 @@
 #include "rxtrain/sweep/study.hpp"
 #include "rxtrain/sweep/summary.hpp"
 #include "rxtrain/sweep/sweep_csv.hpp"
-#include "rxtrain/train.hpp"
-#include "rxtrain/units.hpp"
+#include "rxtrain/flowsheet/train.hpp"
+#include "rxtrain/base/units.hpp"
 #include "s_curve_tank.hpp"
 #include "sized_tube.hpp"
 

@@ -4,8 +4,8 @@
 
 #include <string>
 
-#include "rxtrain/species.hpp"
-#include "rxtrain/thermo.hpp"
+#include "rxtrain/chem/species.hpp"
+#include "rxtrain/chem/thermo.hpp"
 
 namespace rxtrain::test {
 

@@ -1,6 +1,6 @@
 // Checks of the heat-capacity models against published tables (NIST-JANAF,
 // GRI-Mech 3.0) and against numerical integration with GSL.
-#include "rxtrain/thermo.hpp"
+#include "rxtrain/chem/thermo.hpp"
 
 #include <gsl/gsl_errno.h>
 #include <gsl/gsl_integration.h>

@@ -1,7 +1,7 @@
 // Unit conversion against published conversion factors.
 // Factors: NIST SP 811 (Guide for the Use of the SI), App. B, as copied in
 // /work/shared/reference-data.md §7.
-#include "rxtrain/units.hpp"
+#include "rxtrain/base/units.hpp"
 
 #include <catch2/catch.hpp>
 #include <cmath>

@@ -21,13 +21,13 @@
 #include <thread>
 #include <vector>
 
-#include "rxtrain/case.hpp"
+#include "rxtrain/case/case.hpp"
 #include "rxtrain/sweep/outputs.hpp"
 #include "rxtrain/sweep/study.hpp"
 #include "rxtrain/sweep/sweep.hpp"
-#include "rxtrain/synthetic_mechanism.hpp"
-#include "rxtrain/train.hpp"
-#include "rxtrain/units.hpp"
+#include "rxtrain/kinetics/synthetic_mechanism.hpp"
+#include "rxtrain/flowsheet/train.hpp"
+#include "rxtrain/base/units.hpp"
 
 // Counts the heap allocations of each thread, to report allocations per
 // run. A benchmark-only global; the library itself keeps no global state.

@@ -6,9 +6,9 @@
 #include <string>
 
 #include "commands.hpp"
-#include "rxtrain/case.hpp"
-#include "rxtrain/error.hpp"
-#include "rxtrain/units.hpp"
+#include "rxtrain/case/case.hpp"
+#include "rxtrain/base/error.hpp"
+#include "rxtrain/base/units.hpp"
 
 namespace rxtrain::cli {
 

@@ -8,11 +8,11 @@
 #include <vector>
 
 #include "commands.hpp"
-#include "rxtrain/case.hpp"
-#include "rxtrain/compare.hpp"
+#include "rxtrain/case/case.hpp"
+#include "rxtrain/studies/compare.hpp"
 #include "rxtrain/report/atomic_file.hpp"
 #include "rxtrain/report/compare_report.hpp"
-#include "rxtrain/units.hpp"
+#include "rxtrain/base/units.hpp"
 
 namespace rxtrain::cli {
 

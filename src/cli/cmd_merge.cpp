@@ -9,7 +9,7 @@
 #include <vector>
 
 #include "commands.hpp"
-#include "rxtrain/error.hpp"
+#include "rxtrain/base/error.hpp"
 #include "rxtrain/report/atomic_file.hpp"
 #include "rxtrain/sweep/summary.hpp"
 #include "rxtrain/sweep/sweep_csv.hpp"

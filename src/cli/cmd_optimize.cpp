@@ -14,14 +14,14 @@
 #include <string>
 
 #include "commands.hpp"
-#include "rxtrain/case.hpp"
-#include "rxtrain/design.hpp"
-#include "rxtrain/design_case.hpp"
+#include "rxtrain/case/case.hpp"
+#include "rxtrain/studies/optimize.hpp"
+#include "rxtrain/case/write_case.hpp"
 #include "rxtrain/report/atomic_file.hpp"
-#include "rxtrain/report/caution.hpp"
+#include "rxtrain/base/caution.hpp"
 #include "rxtrain/report/optimize_html.hpp"
 #include "rxtrain/report/text_format.hpp"
-#include "rxtrain/units.hpp"
+#include "rxtrain/base/units.hpp"
 
 namespace rxtrain::cli {
 

@@ -5,18 +5,18 @@
 #include <string>
 
 #include "commands.hpp"
-#include "rxtrain/case.hpp"
-#include "rxtrain/design_checks.hpp"
-#include "rxtrain/levenspiel.hpp"
-#include "rxtrain/result_guard.hpp"
+#include "rxtrain/case/case.hpp"
+#include "rxtrain/analysis/train_warnings.hpp"
+#include "rxtrain/stages/levenspiel.hpp"
+#include "rxtrain/analysis/result_guard.hpp"
 #include "rxtrain/report/atomic_file.hpp"
 #include "rxtrain/report/csv.hpp"
 #include "rxtrain/report/figures.hpp"
 #include "rxtrain/report/html.hpp"
 #include "rxtrain/report/json.hpp"
 #include "rxtrain/report/table.hpp"
-#include "rxtrain/train.hpp"
-#include "rxtrain/units.hpp"
+#include "rxtrain/flowsheet/train.hpp"
+#include "rxtrain/base/units.hpp"
 
 namespace rxtrain::cli {
 

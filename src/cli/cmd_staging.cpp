@@ -7,12 +7,12 @@
 #include <string>
 
 #include "commands.hpp"
-#include "rxtrain/case.hpp"
+#include "rxtrain/case/case.hpp"
 #include "rxtrain/report/atomic_file.hpp"
 #include "rxtrain/report/staging_html.hpp"
 #include "rxtrain/report/staging_report.hpp"
-#include "rxtrain/staging.hpp"
-#include "rxtrain/units.hpp"
+#include "rxtrain/studies/staging.hpp"
+#include "rxtrain/base/units.hpp"
 
 namespace rxtrain::cli {
 

@@ -14,9 +14,9 @@
 #include <vector>
 
 #include "commands.hpp"
-#include "rxtrain/case.hpp"
+#include "rxtrain/case/case.hpp"
 #include "rxtrain/report/atomic_file.hpp"
-#include "rxtrain/report/caution.hpp"
+#include "rxtrain/base/caution.hpp"
 #include "rxtrain/report/html_page.hpp"
 #include "rxtrain/report/sha256.hpp"
 #include "rxtrain/sweep/case_path.hpp"
@@ -26,7 +26,7 @@
 #include "rxtrain/sweep/sweep.hpp"
 #include "rxtrain/sweep/sweep_csv.hpp"
 #include "rxtrain/sweep/sweep_report.hpp"
-#include "rxtrain/units.hpp"
+#include "rxtrain/base/units.hpp"
 
 namespace rxtrain::cli {
 

@@ -8,11 +8,11 @@
 #include <string>
 
 #include "commands.hpp"
-#include "rxtrain/case.hpp"
-#include "rxtrain/equilibrium.hpp"
-#include "rxtrain/error.hpp"
-#include "rxtrain/report/caution.hpp"
-#include "rxtrain/units.hpp"
+#include "rxtrain/case/case.hpp"
+#include "rxtrain/models/equilibrium.hpp"
+#include "rxtrain/base/error.hpp"
+#include "rxtrain/base/caution.hpp"
+#include "rxtrain/base/units.hpp"
 
 namespace rxtrain::cli {
 

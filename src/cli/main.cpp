@@ -9,10 +9,10 @@
 #include <vector>
 
 #include "commands.hpp"
-#include "rxtrain/error.hpp"
+#include "rxtrain/base/error.hpp"
 #include "rxtrain/report/atomic_file.hpp"
-#include "rxtrain/report/caution.hpp"
-#include "rxtrain/units.hpp"
+#include "rxtrain/base/caution.hpp"
+#include "rxtrain/base/units.hpp"
 
 namespace {
 

@@ -7,7 +7,7 @@
 #include <fstream>
 #include <system_error>
 
-#include "rxtrain/error.hpp"
+#include "rxtrain/base/error.hpp"
 
 namespace rxtrain {
 

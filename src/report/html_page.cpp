@@ -8,7 +8,7 @@
 #include <iterator>
 
 #include "rxtrain/report/atomic_file.hpp"
-#include "rxtrain/report/caution.hpp"
+#include "rxtrain/base/caution.hpp"
 #include "rxtrain/report/sha256.hpp"
 #include "rxtrain/report/text_format.hpp"
 

@@ -3,7 +3,7 @@
 #include <cmath>
 #include <optional>
 
-#include "rxtrain/report/caution.hpp"
+#include "rxtrain/base/caution.hpp"
 
 namespace rxtrain {
 

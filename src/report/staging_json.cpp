@@ -1,6 +1,6 @@
 #include <cmath>
 
-#include "rxtrain/report/caution.hpp"
+#include "rxtrain/base/caution.hpp"
 #include "rxtrain/report/staging_report.hpp"
 
 namespace rxtrain {

@@ -1,6 +1,6 @@
 #include <fmt/format.h>
 
-#include "rxtrain/report/caution.hpp"
+#include "rxtrain/base/caution.hpp"
 #include "rxtrain/report/staging_report.hpp"
 #include "rxtrain/report/text_format.hpp"
 

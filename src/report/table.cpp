@@ -6,7 +6,7 @@
 #include <optional>
 #include <vector>
 
-#include "rxtrain/report/caution.hpp"
+#include "rxtrain/base/caution.hpp"
 #include "rxtrain/report/text_format.hpp"
 
 namespace rxtrain {

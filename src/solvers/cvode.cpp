@@ -16,7 +16,7 @@
 #include <string>
 
 #include "fast_serial_ops.hpp"
-#include "rxtrain/error.hpp"
+#include "rxtrain/base/error.hpp"
 
 namespace rxtrain {
 

@@ -11,7 +11,7 @@
 #include <span>
 #include <stdexcept>
 
-#include "rxtrain/error.hpp"
+#include "rxtrain/base/error.hpp"
 #include "rxtrain/stages/exchanger.hpp"
 
 namespace rxtrain {

@@ -6,7 +6,7 @@
 #include <cmath>
 #include <limits>
 
-#include "rxtrain/error.hpp"
+#include "rxtrain/base/error.hpp"
 
 namespace rxtrain {
 

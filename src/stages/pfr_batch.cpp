@@ -9,7 +9,7 @@
 #include <vector>
 
 #include "pfr_system.hpp"
-#include "rxtrain/error.hpp"
+#include "rxtrain/base/error.hpp"
 
 namespace rxtrain {
 

@@ -7,7 +7,7 @@
 #include <cmath>
 #include <vector>
 
-#include "rxtrain/mechanism.hpp"
+#include "rxtrain/kinetics/mechanism.hpp"
 #include "rxtrain/solvers/cvode.hpp"
 #include "rxtrain/stages/stage.hpp"
 

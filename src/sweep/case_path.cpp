@@ -5,7 +5,7 @@
 #include <cmath>
 #include <variant>
 
-#include "rxtrain/suggest.hpp"
+#include "rxtrain/base/suggest.hpp"
 
 namespace rxtrain::sweep {
 

@@ -1,6 +1,6 @@
 #include "rxtrain/sweep/run_point.hpp"
 
-#include "rxtrain/result_guard.hpp"
+#include "rxtrain/analysis/result_guard.hpp"
 
 namespace rxtrain::sweep {
 

@@ -6,7 +6,7 @@
 #include <cmath>
 #include <set>
 
-#include "rxtrain/error.hpp"
+#include "rxtrain/base/error.hpp"
 
 namespace rxtrain::sweep {
 

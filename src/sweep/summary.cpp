@@ -7,7 +7,7 @@
 #include <limits>
 #include <nlohmann/json.hpp>
 
-#include "rxtrain/report/caution.hpp"
+#include "rxtrain/base/caution.hpp"
 
 namespace rxtrain::sweep {
 

@@ -8,7 +8,7 @@
 #include <string_view>
 #include <vector>
 
-#include "rxtrain/equation.hpp"
+#include "rxtrain/chem/equation.hpp"
 
 namespace {
 

@@ -8,7 +8,7 @@
 #include <cstdlib>
 #include <string_view>
 
-#include "rxtrain/units.hpp"
+#include "rxtrain/base/units.hpp"
 
 namespace {
 

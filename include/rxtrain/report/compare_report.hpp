@@ -17,8 +17,8 @@
 #include <string>
 #include <vector>
 
-#include "rxtrain/case.hpp"
-#include "rxtrain/compare.hpp"
+#include "rxtrain/case/case.hpp"
+#include "rxtrain/studies/compare.hpp"
 #include "rxtrain/report/figures.hpp"
 #include "rxtrain/report/html_page.hpp"
 

@@ -11,7 +11,7 @@
 
 #include <string>
 
-#include "rxtrain/train.hpp"
+#include "rxtrain/flowsheet/train.hpp"
 
 namespace rxtrain {
 

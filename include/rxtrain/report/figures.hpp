@@ -5,10 +5,10 @@
 #include <string>
 #include <vector>
 
-#include "rxtrain/case.hpp"
-#include "rxtrain/levenspiel.hpp"
+#include "rxtrain/case/case.hpp"
+#include "rxtrain/stages/levenspiel.hpp"
 #include "rxtrain/report/svg.hpp"
-#include "rxtrain/train.hpp"
+#include "rxtrain/flowsheet/train.hpp"
 
 namespace rxtrain {
 

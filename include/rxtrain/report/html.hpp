@@ -7,10 +7,10 @@
 #include <string>
 #include <vector>
 
-#include "rxtrain/case.hpp"
+#include "rxtrain/case/case.hpp"
 #include "rxtrain/report/figures.hpp"
 #include "rxtrain/report/html_page.hpp"
-#include "rxtrain/train.hpp"
+#include "rxtrain/flowsheet/train.hpp"
 
 namespace rxtrain {
 

@@ -15,7 +15,7 @@
 #include <string>
 #include <vector>
 
-#include "rxtrain/case.hpp"
+#include "rxtrain/case/case.hpp"
 #include "rxtrain/report/atomic_file.hpp"
 #include "rxtrain/report/figures.hpp"
 

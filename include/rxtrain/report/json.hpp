@@ -20,7 +20,7 @@
 
 #include <nlohmann/json.hpp>
 
-#include "rxtrain/train.hpp"
+#include "rxtrain/flowsheet/train.hpp"
 
 namespace rxtrain {
 

@@ -8,11 +8,11 @@
 #include <string>
 #include <vector>
 
-#include "rxtrain/case.hpp"
-#include "rxtrain/design.hpp"
+#include "rxtrain/case/case.hpp"
+#include "rxtrain/studies/optimize.hpp"
 #include "rxtrain/report/figures.hpp"
 #include "rxtrain/report/html_page.hpp"
-#include "rxtrain/train.hpp"
+#include "rxtrain/flowsheet/train.hpp"
 
 namespace rxtrain {
 

@@ -7,11 +7,11 @@
 #include <string>
 #include <vector>
 
-#include "rxtrain/case.hpp"
+#include "rxtrain/case/case.hpp"
 #include "rxtrain/report/figures.hpp"
 #include "rxtrain/report/html_page.hpp"
-#include "rxtrain/staging.hpp"
-#include "rxtrain/train.hpp"
+#include "rxtrain/studies/staging.hpp"
+#include "rxtrain/flowsheet/train.hpp"
 
 namespace rxtrain {
 

@@ -26,7 +26,7 @@
 #include <nlohmann/json.hpp>
 #include <string>
 
-#include "rxtrain/staging.hpp"
+#include "rxtrain/studies/staging.hpp"
 
 namespace rxtrain {
 

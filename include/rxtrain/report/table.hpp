@@ -4,7 +4,7 @@
 
 #include <string>
 
-#include "rxtrain/train.hpp"
+#include "rxtrain/flowsheet/train.hpp"
 
 namespace rxtrain {
 

@@ -8,10 +8,10 @@
 #include <string>
 #include <vector>
 
-#include "rxtrain/case.hpp"
-#include "rxtrain/equilibrium.hpp"
+#include "rxtrain/case/case.hpp"
+#include "rxtrain/models/equilibrium.hpp"
 #include "rxtrain/solvers/cvode.hpp"
-#include "rxtrain/stream.hpp"
+#include "rxtrain/chem/stream.hpp"
 
 namespace rxtrain {
 

@@ -30,8 +30,8 @@
 #include <string_view>
 #include <vector>
 
-#include "rxtrain/case.hpp"
-#include "rxtrain/units.hpp"
+#include "rxtrain/case/case.hpp"
+#include "rxtrain/base/units.hpp"
 
 namespace rxtrain::sweep {
 

@@ -15,8 +15,8 @@
 #include <string>
 #include <vector>
 
-#include "rxtrain/case.hpp"
-#include "rxtrain/train.hpp"
+#include "rxtrain/case/case.hpp"
+#include "rxtrain/flowsheet/train.hpp"
 
 namespace rxtrain::sweep {
 

@@ -8,9 +8,9 @@
 #include <string>
 #include <vector>
 
-#include "rxtrain/case.hpp"
+#include "rxtrain/case/case.hpp"
 #include "rxtrain/sweep/outputs.hpp"
-#include "rxtrain/train.hpp"
+#include "rxtrain/flowsheet/train.hpp"
 
 namespace rxtrain::sweep {
 

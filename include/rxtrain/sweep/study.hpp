@@ -31,7 +31,7 @@
 
 #include "rxtrain/sweep/case_path.hpp"
 #include "rxtrain/sweep/sampling.hpp"
-#include "rxtrain/units.hpp"
+#include "rxtrain/base/units.hpp"
 
 namespace rxtrain::sweep {
 

@@ -1,0 +1,37 @@
+// Design warnings an engineer should see beside any train result (used by
+// `rxtrain staging`, usable by `rxtrain run`): plain sentences, display
+// units (°C) in the text. They never stop a run.
+//
+//  * the adiabatic temperature rise (fall, for an endothermic key reaction)
+//    of the feed at full conversion of the key, against limits.T_max
+//    (limits.T_in_min);
+//  * reactor inlets outside [T_in_min, T_max];
+//  * tubular beds whose last 10 % of volume adds under 0.01 conversion
+//    (catalyst wasted near equilibrium or complete conversion);
+//  * space times outside the usual ranges: stirred tanks about 10 min to
+//    4 h, tubular reactors about 0.5 s to 1 h (common practice, no source).
+//
+// Example:
+//   TrainResult r = run_train(c);
+//   for (const auto& w : design_warnings(c, r)) show(w);
+#pragma once
+
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "rxtrain/case/case.hpp"
+#include "rxtrain/flowsheet/train.hpp"
+
+namespace rxtrain {
+
+// T_ad - T_feed (K) when the key reaction alone takes the feed adiabatically
+// to full conversion of the key (or of a co-reactant that runs out first):
+// positive for an exothermic key reaction, negative for an endothermic one.
+// Empty when no reaction consumes the key or the energy balance cannot be
+// closed (a species without heat capacity).
+std::optional<double> adiabatic_temperature_change(const Case& c);
+
+std::vector<std::string> design_warnings(const Case& c, const TrainResult& result);
+
+}  // namespace rxtrain

@@ -1,0 +1,80 @@
+// A validated, immutable case: everything in SI. load_case() is the only
+// user of yaml-cpp; every input error it finds is an InputError with the
+// file, line and column of the offending value.
+#pragma once
+
+#include <optional>
+#include <string>
+#include <variant>
+#include <vector>
+
+#include "rxtrain/chem/heat_mode.hpp"
+#include "rxtrain/base/error.hpp"
+#include "rxtrain/kinetics/mechanism.hpp"
+#include "rxtrain/chem/stream.hpp"
+
+namespace rxtrain {
+
+class UnitParser;
+
+enum class ReactorType { Pfr, Cstr };
+
+// A reactor stage. Exactly one of volume / catalyst_mass / target is set
+// (catalyst_mass needs bulk_density; volume = catalyst_mass / bulk_density).
+struct ReactorSpec {
+  std::string id;
+  ReactorType type = ReactorType::Pfr;
+  HeatMode heat = HeatMode::Adiabatic;
+  std::optional<double> volume;             // m3
+  std::optional<double> catalyst_mass;      // kg
+  std::optional<double> bulk_density;       // kg/m3
+  std::optional<double> target_conversion;  // overall key conversion to reach
+  SourceLocation where;
+};
+
+// An interstage cooler or heater: exactly one of T_out and duty.
+struct ExchangerSpec {
+  std::string id;
+  std::optional<double> T_out;  // K
+  std::optional<double> duty;   // W, heat added to the stream
+  SourceLocation where;
+};
+
+using StageSpec = std::variant<ReactorSpec, ExchangerSpec>;
+
+const std::string& stage_id(const StageSpec& s);
+
+// The catalyst's temperature window (top-level `limits`), both optional:
+// T_max is the highest temperature allowed anywhere in a bed, T_in_min the
+// lowest useful bed inlet temperature. When both are given, T_in_min <
+// T_max. Read by `rxtrain staging` and the design checks.
+struct TemperatureLimits {
+  std::optional<double> T_max;     // K
+  std::optional<double> T_in_min;  // K
+  SourceLocation where;            // the `limits` entry; file only when absent
+};
+
+struct Case {
+  std::string title;
+  std::string file;          // path as given
+  Mechanism mechanism;
+  Stream feed;
+  int key = 0;
+  std::vector<StageSpec> train;
+  std::vector<std::string> warnings;  // non-fatal findings of the loader
+  // Train-level target (top-level `target: {conversion: X}`), 0 < X < 1:
+  // the overall key conversion the whole train should reach.
+  std::optional<double> target_conversion;
+  SourceLocation target_where;  // the `target` entry; file only when absent
+  TemperatureLimits limits;
+
+  ConversionBasis conversion_basis() const { return {key, feed.F[key]}; }
+};
+
+// Reads and validates a case file. Throws InputError.
+Case load_case(const std::string& path, const UnitParser& units);
+// Same, from text; `name` stands in for the file name in messages.
+Case load_case_from_string(const std::string& text, const std::string& name,
+                           const UnitParser& units);
+
+}  // namespace rxtrain

@@ -1,0 +1,130 @@
+// A train of stages run in order, each fed with the outlet of the one
+// before. run_train() is the only entry point the command line needs.
+#pragma once
+
+#include <memory>
+#include <span>
+#include <string>
+#include <vector>
+
+#include "rxtrain/case/case.hpp"
+#include "rxtrain/stages/levenspiel.hpp"
+#include "rxtrain/stages/cstr.hpp"
+#include "rxtrain/stages/pfr.hpp"
+#include "rxtrain/stages/pfr_batch.hpp"
+#include "rxtrain/stages/stage.hpp"
+
+namespace rxtrain {
+
+// Warm starts for one stirred-tank stage: states to try first (see
+// CstrOptions::guesses), e.g. that stage's steady states in a neighbouring
+// run of a sweep.
+struct CstrWarmStart {
+  std::string stage;  // stage id
+  std::vector<SteadyState> states;
+};
+
+struct TrainOptions {
+  PfrOptions pfr;    // tubular stages (CVODE tolerances, sizing limit)
+  CstrOptions cstr;  // stirred tanks (Newton, starts); its guesses are not read
+  // Warm starts of stirred-tank stages by stage id, passed on as that
+  // stage's CstrOptions::guesses. They add Newton starts, so a result may
+  // differ from a cold run's in the last digits and may hold a steady
+  // state more. Empty (the default): every tank starts cold.
+  std::vector<CstrWarmStart> warm_starts;
+  // Compute each stage's equilibrium record, the equilibrium curve and the
+  // maximum-rate locus when a reversible reaction exists, and the
+  // Levenspiel curves of every reactor stage. Off for callers
+  // that run a train many times and need only its outlet.
+  bool equilibrium_views = true;
+  EquilibriumOptions equilibrium;
+  // Points of the equilibrium curve and of the maximum-rate locus.
+  int curve_points = 61;
+};
+
+struct TrainResult {
+  std::string title;
+  std::vector<std::string> species;  // ids, column order of every output
+  std::string key;                   // key species id
+  Stream feed;
+  std::vector<StageResult> stages;    // in train order
+  Stream outlet;                      // outlet of the last stage
+  double conversion = 0;              // overall key conversion at the outlet
+  std::vector<std::string> warnings;  // loader and stage warnings, in order
+  // X_eq(T) at the feed's composition and pressure over the temperatures
+  // the train spans, and T_opt(X) of the key reaction where it is
+  // reversible and exothermic; empty without a reversible reaction.
+  std::vector<EquilibriumCurvePoint> equilibrium_curve;
+  std::vector<MaxRatePoint> max_rate_locus;
+  // One Levenspiel curve per reactor stage (filled with the views above).
+  std::vector<LevenspielCurve> levenspiel;
+};
+
+// What repeated runs of trains reuse: the SUNDIALS context, the tubular
+// stages' integrator and buffers (see PfrWorkspace) and the stirred tanks'
+// buffers (see CstrWorkspace). One per thread:
+// distinct workspaces on distinct threads share nothing mutable (a Case is
+// read-only, and the unit database and YAML parser are used only while
+// loading it). Movable, not copyable.
+//
+// Example:
+//   TrainWorkspace ws;
+//   for (const Case& c : variants) outlets.push_back(run_train(c, options, ws).outlet);
+class TrainWorkspace {
+ public:
+  TrainWorkspace();
+  ~TrainWorkspace();
+  TrainWorkspace(TrainWorkspace&&) noexcept;
+  TrainWorkspace& operator=(TrainWorkspace&&) noexcept;
+  TrainWorkspace(const TrainWorkspace&) = delete;
+  TrainWorkspace& operator=(const TrainWorkspace&) = delete;
+
+  const SunContext& context() const { return *ctx_; }
+  PfrWorkspace& pfr() { return *pfr_; }
+  CstrWorkspace& cstr() { return *cstr_; }
+  PfrBatchWorkspace& pfr_batch() { return *pfr_batch_; }
+
+ private:
+  std::unique_ptr<SunContext> ctx_;  // on the heap: pfr_ and cstr_ point at it
+  std::unique_ptr<PfrWorkspace> pfr_;
+  std::unique_ptr<CstrWorkspace> cstr_;
+  std::unique_ptr<PfrBatchWorkspace> pfr_batch_;
+};
+
+// Runs every stage of the case in order. Throws SolverError (naming the
+// stage and position) or InputError (a target out of reach, located at the
+// stage's entry in the case file).
+TrainResult run_train(const Case& c, const TrainOptions& options = {});
+
+// Fills what TrainOptions::equilibrium_views adds (each stage's equilibrium
+// record, the equilibrium curve, the maximum-rate locus, the Levenspiel
+// curves) into a result built with the views off or assembled stage by
+// stage (staging, optimize), for its report. A view that cannot be
+// computed becomes a warning in the result.
+void add_equilibrium_views(const Case& c, const TrainOptions& options, TrainResult& result);
+// Same result, reusing `ws` instead of creating the solvers afresh: the
+// fast path for many runs (the per-run cost is in docs/performance.md).
+TrainResult run_train(const Case& c, const TrainOptions& options, TrainWorkspace& ws);
+
+// Sets `warm_starts` to the steady states of every stirred-tank stage of
+// `result`, the warm starts of a next run of the same case (reusing the
+// vectors' storage).
+void set_warm_starts(const TrainResult& result, std::vector<CstrWarmStart>& warm_starts);
+
+// True when run_trains_batched can run c's train under `options`: every
+// reactor a tubular stage run_pfr_batch takes (pfr_batchable), and no
+// equilibrium views (they need full profiles).
+bool train_batchable(const Case& c, const TrainOptions& options);
+
+// Runs the trains of several cases with one layout (the same stages in the
+// same order, as the points of one study have) side by side, stage by
+// stage: exchangers per case, tubular stages as one batch (run_pfr_batch,
+// which says how the numbers relate to a lone run's). Results in case
+// order, as run_train gives them with options.equilibrium_views off.
+// Every case must pass train_batchable. Throws what a stage throws, for
+// the batch as a whole: a caller that needs each run's own outcome reruns
+// the cases one by one with run_train.
+std::vector<TrainResult> run_trains_batched(std::span<const Case* const> cases,
+                                            const TrainOptions& options, TrainWorkspace& ws);
+
+}  // namespace rxtrain

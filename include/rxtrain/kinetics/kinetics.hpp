@@ -1,0 +1,55 @@
+// Reactions and their rate laws, as declared in the case (SI units).
+//
+// Rate of reaction j (mol per m3 of reactor per s, or per kg of catalyst
+// per s when basis == Catalyst):
+//   irreversible: r = k(T) * prod_i d_i^o_i
+//   reversible:   r = k(T) * prod_i d_i^o_i * (1 - Q/K)
+// with d_i the driving force of species i (concentration mol/m3 or partial
+// pressure Pa), Q the reaction quotient in activities (gas: p_i / 1 bar;
+// liquid: C_i / 1 mol/L) and K the equilibrium constant in the same basis.
+// k(T) = A exp(-Ea/(R T)), or A exp(-Ea/R (1/T - 1/T_ref)) with T_ref.
+#pragma once
+
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "rxtrain/base/error.hpp"
+
+namespace rxtrain {
+
+enum class RateBasis { Volume, Catalyst };
+enum class Driving { Concentration, Pressure };
+
+struct RateLaw {
+  RateBasis basis = RateBasis::Volume;
+  double A = 0;                   // SI: rate unit / driving unit^sum(orders)
+  double Ea = 0;                  // J/mol
+  std::optional<double> T_ref;    // K
+  Driving driving = Driving::Concentration;
+  std::vector<double> orders;     // per species (0 when absent from the law)
+};
+
+// Where K(T) of a reversible reaction comes from.
+struct EquilibriumSource {
+  enum class Kind { None, Thermo, VantHoff };
+  Kind kind = Kind::None;
+  double K_ref = 0;    // VantHoff: K at T_ref (activity basis)
+  double T_ref = 0;    // K
+  double dH = 0;       // J/mol, constant over T
+};
+
+struct Reaction {
+  std::string id;
+  std::string equation;            // as written, for reports
+  std::vector<double> nu;          // per species: products > 0, reactants < 0
+  bool reversible = false;
+  RateLaw rate;
+  // Heat of reaction at 298.15 K consistent with the species' cp:
+  // dH(T) = dH_298 + sum_i nu_i h_sensible_i(T) (Kirchhoff).
+  double dH_298 = 0;
+  EquilibriumSource equilibrium;
+  SourceLocation where;            // the reaction's entry in the case file
+};
+
+}  // namespace rxtrain

@@ -1,0 +1,206 @@
+// Optimal design of a train of adiabatic beds with intercoolers (interstage
+// heaters for an endothermic reaction): for N beds, the bed inlet
+// temperatures and the conversion each bed reaches that minimize the total
+// catalyst mass (per-catalyst rates) or bed volume (per-volume rates) for
+// the case's train-level target, with every temperature in the catalyst's
+// window [T_in_min, T_max]. SI units throughout (T in K, masses kg,
+// volumes m3, duties W, heat added to the stream positive).
+//
+// Model. One reversible reaction (the case's only reaction) consumes the
+// key, so the stream's composition is a function of the overall key
+// conversion X alone and an adiabatic bed follows the adiabatic line
+// T(X) from its inlet (steady-flow energy balance with the species' own
+// heat capacities). A bed from X_in to X_out holds
+//   W = F_key,feed / |nu_key| * integral_{X_in}^{X_out} dX / r(X, T(X))
+// (the plug-flow design equation with X as the independent variable; r
+// per kg of catalyst, or per m3 for per-volume rates). The integral is
+// taken by Gauss-Legendre quadrature in u = -ln(X_e - X), X_e the bed's
+// adiabatic equilibrium conversion, where the integrand is smooth up to
+// equilibrium; a fixed rule makes W a smooth function of the decisions, as
+// finite-difference gradients need.
+//
+// Decisions. The inlet temperature of every bed (bed 1's unless
+// fixed_feed_T) and, for beds 1..N-1, the fraction s of the way from the
+// bed's inlet conversion to X_e at which it ends (X_out,N is the target).
+// Constraints: T_in in [T_in_min, T_max] (bounds); the bed's far end within
+// the window (its outlet, since T is monotone along an adiabatic bed of one
+// reaction); the last bed able to reach the target.
+//
+// Method (NLopt). SLSQP with central finite-difference gradients from
+// several start layouts (equal and front-loaded conversion splits at the
+// maximum-rate temperature, at the feed temperature and at the window's
+// middle, and the `staging` policy's layout), COBYLA where SLSQP fails from
+// a start; the best feasible layout is kept and polished by SLSQP until the
+// inlet temperatures move less than `T_settle` between rounds.
+//
+// At the optimum the classical conditions for staged adiabatic reactors
+// with intercooling hold (Konoki 1956; Aris, "The Optimal Design of
+// Chemical Reactors", 1961): r(X_out,n, T_out,n) = r(X_out,n, T_in,n+1), and
+// integral over bed n of d(1/r)/dT_in dX = 0 where T_in,n is not at a
+// bound (tests/design_test.cpp checks both independently).
+//
+// Example:
+//   DesignOptions o;
+//   o.max_beds = 4;  // or o.beds = 3; neither: the case's reactor count
+//   DesignResult d = optimize_design(c, o);  // c has target and limits
+//   report(d.best.beds, d.best.coolers, d.best.total_catalyst, d.by_bed_count);
+#pragma once
+
+#include <functional>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "rxtrain/case/case.hpp"
+#include "rxtrain/models/equilibrium.hpp"
+#include "rxtrain/stages/pfr.hpp"
+
+namespace rxtrain {
+
+// Where the optimizer stands, for a progress line (the core never prints).
+struct DesignProgress {
+  int beds = 0;          // N of the layout being optimized
+  int start = 0;         // 1-based start index; 0 during the polish
+  int starts = 0;        // starts for this N
+  long evaluations = 0;  // objective evaluations so far for this N
+  // Best feasible total so far (kg or m3); empty until one is found.
+  std::optional<double> best;
+};
+
+struct DesignOptions {
+  // Number of beds. Empty: the case's number of reactor stages.
+  std::optional<int> beds;
+  // Optimize every N from 1 to max_beds (by_bed_count) and keep the least
+  // total; excludes `beds`.
+  std::optional<int> max_beds;
+  // Keep bed 1's inlet at the feed temperature (no feed conditioning).
+  bool fixed_feed_T = false;
+  // Gauss-Legendre panels and nodes per panel of each bed's integral (in u
+  // = -ln(X_e - X)). 4 x 16 nodes, 64 rate evaluations a bed, match GSL
+  // QAGS to 1e-8 in the tests (the integrand is smooth in u).
+  int quadrature_panels = 4;
+  int quadrature_nodes = 16;
+  // Bounds on the fraction s of the way to X_e at which a bed ends: below
+  // s_min a bed does nothing, at s_max = 1 - 1e-5 its last stretch costs
+  // ln(1e5) times its near-equilibrium rate, far past any optimum (and a
+  // finite-difference step of 1e-6 stays short of X_e).
+  double s_min = 1e-4;
+  double s_max = 1.0 - 1e-5;
+  // Polish rounds end when no inlet temperature moves more than this (K).
+  double T_settle = 1e-3;
+  // Objective evaluations allowed per local run.
+  int max_evaluations = 4000;
+  // A layout counts as feasible when no constraint is violated by more
+  // than this: temperatures in units of the window's width (1e-9 of 200 K
+  // is 0.2 uK), conversions absolute. Tight, so that no finite-difference
+  // probe just past an active limit is kept as the best layout.
+  double feasibility_tolerance = 1e-9;
+  // Compare with the case as written and with the `staging` policy (each
+  // runs the train once); off for callers that only need the optimum.
+  bool compare = true;
+  // Solvers of the checks and comparisons.
+  PfrOptions pfr;
+  EquilibriumOptions equilibrium;
+  // Called now and then while optimizing (from the calling thread).
+  std::function<void(const DesignProgress&)> progress;
+
+  // Empty when valid, else a message naming the bad field.
+  std::string validate() const;
+};
+
+struct DesignBed {
+  std::string id;              // B1, B2, ...
+  double T_in = 0, T_out = 0;  // K; T is monotone along the bed
+  double X_in = 0, X_out = 0;
+  double X_ad_eq = 0;                   // where the bed's adiabatic line meets equilibrium
+  double volume = 0;                    // m3
+  std::optional<double> catalyst_mass;  // kg (per-catalyst rates)
+  // Rate of the key reaction at the inlet and outlet, in its own basis
+  // (mol/(kg s) or mol/(m3 s)).
+  double rate_in = 0, rate_out = 0;
+};
+
+struct DesignExchanger {
+  std::string id;              // C1, ... (H1, ... heating); F0 feed conditioning
+  double T_in = 0, T_out = 0;  // K
+  double duty = 0;             // W, heat added (< 0 for a cooler)
+};
+
+// One optimized layout of N beds.
+struct DesignLayout {
+  int beds = 0;
+  bool feasible = false;
+  std::string why;  // infeasible: plain words on what cannot be met
+  std::vector<DesignBed> bed;
+  std::vector<DesignExchanger> coolers;  // between beds: N - 1
+  DesignExchanger feed_conditioning;     // feed T -> bed 1's inlet
+  double total_volume = 0;               // m3
+  std::optional<double> total_catalyst;  // kg (per-catalyst rates)
+  double total_duty = 0;                 // W, sum of the interstage exchangers
+  // "B2.T_in = T_in_min", "B1.T_max = T_max", "B3.T_in = T_max",
+  // "B2.T_min = T_in_min" (endothermic), "B1.T_in = T_feed (fixed)".
+  std::vector<std::string> active_constraints;
+  // run_train of the layout (beds as catalyst masses or volumes): the
+  // conversion it reaches and its total, as an independent check.
+  double checked_conversion = 0;
+  long evaluations = 0;  // objective evaluations, all starts and polish
+  int starts = 0;        // starts tried
+  int polish_rounds = 0;
+};
+
+// The case as written, against the same target and window.
+struct AsWrittenDesign {
+  bool ran = false;
+  std::string note;  // why it did not run, or what it misses; empty when it meets everything
+  double conversion = 0;
+  bool reaches_target = false;
+  bool within_limits = false;
+  int reactors = 0;
+  double total_volume = 0;               // m3
+  std::optional<double> total_catalyst;  // kg, when every reactor has one
+  double total_duty = 0;                 // W, its exchangers
+};
+
+// The `staging` policy's answer (default options: --approach 0.9,
+// --return-to inlet).
+struct StagingDesign {
+  bool reached = false;
+  std::string note;
+  int beds = 0;
+  double total_volume = 0;
+  std::optional<double> total_catalyst;
+};
+
+struct DesignResult {
+  std::string title;
+  std::string key;
+  double target = 0;
+  TemperatureLimits limits;
+  bool exothermic = true;
+  bool catalyst_objective = true;      // per-catalyst rates: minimize kg, else m3
+  double feed_T = 0;                   // K
+  std::optional<double> bulk_density;  // kg/m3, of the first reactor
+  bool fixed_feed_T = false;
+  DesignLayout best;                          // the least total found (fewest beds on a tie)
+  std::vector<DesignLayout> by_bed_count;     // N = 1..max_beds; empty without max_beds
+  std::optional<AsWrittenDesign> as_written;  // with options.compare
+  std::optional<StagingDesign> staging;       // with options.compare
+  std::vector<std::string> warnings;
+};
+
+// Throws InputError when the case lacks a train-level target or the limits
+// T_max and T_in_min, has more than one reaction or an irreversible one,
+// or (fixed_feed_T) a feed outside the window; InfeasibleError when no
+// layout with the allowed number of beds meets the target within the
+// window (naming the best reached); SolverError on a numerical failure.
+DesignResult optimize_design(const Case& c, const DesignOptions& options = {});
+
+// The stages of a layout as a train the case format holds: an exchanger
+// from the feed to bed 1's inlet temperature (when they differ), then bed,
+// exchanger, bed, ...; beds are adiabatic PFRs given by catalyst mass
+// (per-catalyst rates) or volume, with the result's bulk density. Stage
+// ids avoid the case's species and reaction ids.
+std::vector<StageSpec> design_train(const Case& c, const DesignResult& d,
+                                    const DesignLayout& layout);
+
+}  // namespace rxtrain

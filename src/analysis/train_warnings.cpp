@@ -1,0 +1,170 @@
+#include "rxtrain/analysis/train_warnings.hpp"
+
+#include <fmt/format.h>
+
+#include <algorithm>
+#include <cmath>
+#include <limits>
+
+#include "rxtrain/models/equilibrium.hpp"
+#include "rxtrain/base/error.hpp"
+#include "rxtrain/stages/exchanger.hpp"
+#include "rxtrain/stages/pfr.hpp"
+
+namespace rxtrain {
+
+namespace {
+
+constexpr double kZeroCelsius = 273.15;  // K
+
+// The last tenth of a bed and the conversion it should at least add
+// (common practice, no source). A bed whose last tenth adds less than half
+// its even share of the bed's conversion has a falling rate there; only
+// then is the warning about catalyst wasted near the end rather than
+// about a bed that is small overall.
+constexpr double kTailFraction = 0.1;
+constexpr double kTailMinConversion = 0.01;
+constexpr double kTailShare = 0.5;
+
+// Usual space times (common practice, no source).
+constexpr double kTankTauLow = 600.0;     // s, 10 min
+constexpr double kTankTauHigh = 14400.0;  // s, 4 h
+constexpr double kTubeTauLow = 0.5;       // s
+constexpr double kTubeTauHigh = 3600.0;   // s, 1 h
+
+std::string celsius(double T) { return fmt::format("{:.2f} °C", T - kZeroCelsius); }
+
+// Space time in words: seconds, minutes or hours, whichever reads best.
+std::string duration(double s) {
+  if (s < 120) return fmt::format("{:.3g} s", s);
+  if (s < 7200) return fmt::format("{:.3g} min", s / 60);
+  return fmt::format("{:.3g} h", s / 3600);
+}
+
+// Conversion at 90 % of a tubular bed's volume: the bed re-run to that
+// volume from its inlet (exact); the profile, interpolated, if that fails.
+double conversion_at(const Case& c, const StageResult& r, double V, const SunContext& ctx) {
+  ReactorSpec spec;
+  spec.id = r.id;
+  spec.type = ReactorType::Pfr;
+  spec.heat = r.heat.value_or(HeatMode::Adiabatic);
+  spec.volume = V;
+  spec.bulk_density = r.bulk_density;
+  try {
+    return run_pfr(c.mechanism, spec, r.inlet, c.conversion_basis(), ctx).conversion;
+  } catch (const SolverError&) {
+    const auto& p = r.profile;
+    for (std::size_t k = 1; k < p.size(); ++k)
+      if (p[k].V >= V) {
+        const double w = p[k].V > p[k - 1].V ? (V - p[k - 1].V) / (p[k].V - p[k - 1].V) : 1.0;
+        return p[k - 1].X + w * (p[k].X - p[k - 1].X);
+      }
+    return p.back().X;
+  }
+}
+
+}  // namespace
+
+std::optional<double> adiabatic_temperature_change(const Case& c) {
+  const Mechanism& mech = c.mechanism;
+  const int j = key_reaction(mech, c.key);
+  if (j < 0) return std::nullopt;
+  const auto& nu = mech.reactions()[j].nu;
+  const std::vector<double>& F_in = c.feed.F;
+  // Extent at full conversion of the key, or where a co-reactant runs out.
+  double xi = std::numeric_limits<double>::infinity();
+  for (int i = 0; i < mech.n_species(); ++i)
+    if (nu[i] < 0) xi = std::min(xi, F_in[i] / -nu[i]);
+  if (!std::isfinite(xi) || !(xi > 0)) return std::nullopt;
+  std::vector<double> F_out(F_in.size());
+  for (std::size_t i = 0; i < F_in.size(); ++i) F_out[i] = std::max(0.0, F_in[i] + nu[i] * xi);
+  // Total enthalpy sum F_i hs_i(T) + sum_j xi_j dH_298,j is conserved
+  // (Kirchhoff form of dH(T), kinetics.hpp).
+  const double H_out =
+      mech.sensible_enthalpy_flow(c.feed.T, F_in.data()) - xi * mech.reactions()[j].dH_298;
+  try {
+    return temperature_for_enthalpy(mech, F_out, H_out, c.feed.T) - c.feed.T;
+  } catch (const SolverError&) {
+    return std::nullopt;
+  }
+}
+
+std::vector<std::string> design_warnings(const Case& c, const TrainResult& result) {
+  std::vector<std::string> out;
+  const auto& lim = c.limits;
+  const std::string key = c.mechanism.species()[c.key].id;
+
+  if (const auto dT = adiabatic_temperature_change(c)) {
+    const double T_full = c.feed.T + *dT;
+    if (*dT > 0 && lim.T_max && T_full > *lim.T_max && c.feed.T >= *lim.T_max) {
+      out.push_back(fmt::format("the feed, at {}, is already above T_max = {}", celsius(c.feed.T),
+                                celsius(*lim.T_max)));
+    } else if (*dT > 0 && lim.T_max && T_full > *lim.T_max) {
+      out.push_back(fmt::format(
+          "adiabatic temperature rise of the feed at full conversion of {} is {:.1f} K (from {} "
+          "to {}), above T_max = {}: an adiabatic bed passes T_max near X = {:.2f} (linear in "
+          "conversion) unless equilibrium stops it first; split the conversion between beds "
+          "with intercooling",
+          key, *dT, celsius(c.feed.T), celsius(T_full), celsius(*lim.T_max),
+          std::clamp((*lim.T_max - c.feed.T) / *dT, 0.0, 1.0)));
+    }
+    if (*dT < 0 && lim.T_in_min && T_full < *lim.T_in_min && c.feed.T <= *lim.T_in_min) {
+      out.push_back(fmt::format("the feed, at {}, is already below T_in_min = {}",
+                                celsius(c.feed.T), celsius(*lim.T_in_min)));
+    } else if (*dT < 0 && lim.T_in_min && T_full < *lim.T_in_min) {
+      out.push_back(fmt::format(
+          "adiabatic temperature fall of the feed at full conversion of {} is {:.1f} K (from {} "
+          "to {}), below T_in_min = {}: an adiabatic bed cools below the useful range near X = "
+          "{:.2f} (linear in conversion) unless equilibrium stops it first; split the "
+          "conversion between beds with interstage reheating",
+          key, -*dT, celsius(c.feed.T), celsius(T_full), celsius(*lim.T_in_min),
+          std::clamp((c.feed.T - *lim.T_in_min) / -*dT, 0.0, 1.0)));
+    }
+  }
+
+  SunContext ctx;
+  for (const auto& r : result.stages) {
+    if (r.kind == StageKind::Exchanger) continue;
+    if (lim.T_max && r.inlet.T > *lim.T_max)
+      out.push_back(fmt::format("stage {} is fed at {}, above T_max = {}", r.id, celsius(r.inlet.T),
+                                celsius(*lim.T_max)));
+    if (lim.T_in_min && r.inlet.T < *lim.T_in_min)
+      out.push_back(fmt::format(
+          "stage {} is fed at {}, below the lowest useful inlet temperature T_in_min = {}", r.id,
+          celsius(r.inlet.T), celsius(*lim.T_in_min)));
+
+    if (r.kind == StageKind::Pfr && r.volume && *r.volume > 0 && !r.profile.empty()) {
+      const double V = *r.volume;
+      const double X_in = c.conversion_basis().conversion(r.inlet);
+      const double gain = r.conversion - X_in;
+      const double tail = r.conversion - conversion_at(c, r, (1 - kTailFraction) * V, ctx);
+      if (gain > 0 && tail < kTailMinConversion && tail < kTailShare * kTailFraction * gain) {
+        std::string amount = fmt::format("{:.3f} m3", kTailFraction * V);
+        if (r.catalyst_mass)
+          amount += fmt::format(", {:.0f} kg of catalyst", kTailFraction * *r.catalyst_mass);
+        out.push_back(fmt::format(
+            "stage {}: its last 10 % of volume ({}) adds only {:.4f} conversion (under {:.2f}; "
+            "common practice, no source): the rate there has nearly died out, close to "
+            "equilibrium or complete conversion, so that catalyst is largely wasted",
+            r.id, amount, std::max(tail, 0.0), kTailMinConversion));
+      }
+    }
+
+    if (r.space_time) {
+      const bool tank = r.kind == StageKind::Cstr;
+      const double lo = tank ? kTankTauLow : kTubeTauLow;
+      const double hi = tank ? kTankTauHigh : kTubeTauHigh;
+      const double tau = *r.space_time;
+      if (tau < lo || tau > hi)
+        out.push_back(fmt::format(
+            "stage {}: space time {} is {} the usual range for a {} ({}; common practice, no "
+            "source)",
+            r.id, duration(tau), tau < lo ? "below" : "above",
+            tank ? "stirred tank" : "tubular reactor",
+            tank ? "about 10 min to 4 h" : "about 0.5 s to 1 h"));
+    }
+  }
+  return out;
+}
+
+}  // namespace rxtrain

@@ -1,0 +1,1181 @@
+// Case loader: YAML text -> validated, immutable Case in SI. The only user of
+// yaml-cpp. The format and every rule checked here are documented in
+// docs/case-format.md; keep the two in step.
+#include "rxtrain/case/case.hpp"
+
+#include <fmt/format.h>
+#include <yaml-cpp/yaml.h>
+
+#include <algorithm>
+#include <array>
+#include <cctype>
+#include <cerrno>
+#include <charconv>
+#include <cmath>
+#include <cstring>
+#include <filesystem>
+#include <fstream>
+#include <initializer_list>
+#include <map>
+#include <sstream>
+#include <string>
+#include <string_view>
+#include <utility>
+#include <vector>
+
+#include "rxtrain/chem/equation.hpp"
+#include "rxtrain/chem/formula.hpp"
+#include "rxtrain/base/input_limits.hpp"
+#include "rxtrain/base/suggest.hpp"
+#include "rxtrain/base/units.hpp"
+
+namespace rxtrain {
+
+const std::string& stage_id(const StageSpec& s) {
+  return std::visit([](const auto& x) -> const std::string& { return x.id; }, s);
+}
+
+namespace {
+
+// Limits that keep a malformed or hostile file from exhausting memory; far
+// above any reactor train a person writes by hand.
+constexpr std::uintmax_t kMaxFileBytes = 10u * 1024u * 1024u;  // 10 MiB
+constexpr std::size_t kMaxSpecies = 1000;
+constexpr std::size_t kMaxReactions = 5000;
+constexpr std::size_t kMaxStages = 1000;
+// A given mw and the one from the formula must agree this closely
+// (relative): enough for rounded table values, tight enough to catch a typo.
+constexpr double kMwTolerance = 0.005;
+// Mole fractions must sum to 1 within this (absolute).
+constexpr double kCompositionTolerance = 1e-6;
+
+// ---- small text helpers --------------------------------------------------
+
+// "; did you mean "x"?" for a near candidate, else the list of candidates.
+std::string suggest(std::string_view word, const std::vector<std::string>& candidates,
+                    std::string_view what = "valid keys") {
+  return suggest_nearest(word, candidates, what);
+}
+
+std::vector<std::string> to_strings(std::initializer_list<std::string_view> keys) {
+  return {keys.begin(), keys.end()};
+}
+
+std::string describe(const YAML::Node& n) {
+  switch (n.Type()) {
+    case YAML::NodeType::Sequence:
+      return n.size() == 0 ? "an empty list" : "a list";
+    case YAML::NodeType::Map:
+      return "a mapping";
+    case YAML::NodeType::Scalar:
+      return fmt::format("\"{}\"", n.Scalar());
+    default:
+      return "nothing";
+  }
+}
+
+// Parses a dimensionless number ("0.95", "-1.5e3", "+2"); nullopt if the
+// whole text is not one finite number.
+std::optional<double> parse_number(std::string_view s) {
+  while (!s.empty() && std::isspace(static_cast<unsigned char>(s.front()))) s.remove_prefix(1);
+  while (!s.empty() && std::isspace(static_cast<unsigned char>(s.back()))) s.remove_suffix(1);
+  if (!s.empty() && s.front() == '+') s.remove_prefix(1);
+  if (s.empty()) return std::nullopt;
+  double v = 0;
+  const auto [end, ec] = std::from_chars(s.data(), s.data() + s.size(), v);
+  if (ec != std::errc{} || end != s.data() + s.size() || !std::isfinite(v)) return std::nullopt;
+  return v;
+}
+
+// Ids appear in equations, so they follow the equation grammar's id rule.
+bool valid_id(std::string_view id) {
+  if (id.empty()) return false;
+  bool letter = false;
+  for (char c : id) {
+    const auto u = static_cast<unsigned char>(c);
+    if (std::isalpha(u)) letter = true;
+    if (!std::isalnum(u) && c != '_' && c != '-') return false;
+  }
+  return letter;
+}
+
+std::string join_and(const std::vector<std::string>& items) {
+  std::string out;
+  for (std::size_t i = 0; i < items.size(); ++i) {
+    if (i) out += i + 1 == items.size() ? " and " : ", ";
+    out += items[i];
+  }
+  return out;
+}
+
+// ---- units the fields expect ---------------------------------------------
+
+SiUnit temperature_unit() { return SiUnit::of("K", "a temperature"); }
+SiUnit pressure_unit() { return SiUnit::of("Pa", "a pressure"); }
+SiUnit volume_unit() { return SiUnit::of("m3", "a volume"); }
+SiUnit molar_flow_unit() { return SiUnit::of("mol/s", "a molar flow"); }
+SiUnit mass_unit() { return SiUnit::of("kg", "a mass"); }
+SiUnit density_unit() { return SiUnit::of("kg/m3", "a density"); }
+SiUnit molar_mass_unit() { return SiUnit::of("kg/mol", "a molar mass"); }
+SiUnit molar_energy_unit() { return SiUnit::of("J/mol", "an energy per mole"); }
+SiUnit molar_cp_unit() { return SiUnit::of("J/(mol*K)", "a molar heat capacity"); }
+SiUnit molar_entropy_unit() { return SiUnit::of("J/(mol*K)", "a molar entropy"); }
+SiUnit power_unit() { return SiUnit::of("W", "a power"); }
+
+// Chemistry tables quote kcal/mol and cal/(mol K) in thermochemical calories.
+UnitOptions chemistry_units() {
+  UnitOptions o;
+  o.plain_cal_is_thermochemical = true;
+  return o;
+}
+
+// ---- the loader ----------------------------------------------------------
+
+class Loader;
+
+// One YAML mapping: checked to be a mapping with unique scalar keys; lookups
+// by key; unknown keys refused with a suggestion.
+class Fields {
+ public:
+  struct Entry {
+    std::string name;
+    YAML::Node key;
+    YAML::Node value;
+  };
+
+  Fields(const Loader& loader, const YAML::Node& node, std::string context);
+
+  // Refuses any key not in `allowed`, naming the nearest valid one.
+  void check(std::initializer_list<std::string_view> allowed) const;
+  const YAML::Node* find(std::string_view key) const;
+  const YAML::Node* key_of(std::string_view key) const;
+  // The value of a required key; a missing key is reported at the mapping.
+  const YAML::Node& need(std::string_view key, std::string_view expected) const;
+  void set_context(std::string context) { context_ = std::move(context); }
+  const std::string& context() const { return context_; }
+  const YAML::Node& node() const { return node_; }
+  const std::vector<Entry>& entries() const { return entries_; }
+
+ private:
+  const Loader& loader_;
+  YAML::Node node_;
+  std::string context_;
+  std::vector<Entry> entries_;
+};
+
+// Which stage needs the heat capacity of every species, if any.
+struct EnergyNeed {
+  std::string stage;
+  std::string why;
+};
+
+// Per-species facts the loader keeps beside the Species it builds.
+struct SpeciesInfo {
+  YAML::Node node;
+  std::optional<YAML::Node> thermo;  // the thermo mapping, when given
+};
+
+class Loader {
+ public:
+  Loader(std::string file, const UnitParser& units) : file_(std::move(file)), units_(units) {}
+
+  Case load(const YAML::Node& root);
+
+  SourceLocation at(const YAML::Node& n, std::size_t column_offset = 0) const {
+    if (n.IsNull())
+      for (const auto& [value, key] : null_values_)
+        if (value.is(n)) return at(key);
+    const YAML::Mark m = n.Mark();
+    if (m.is_null()) return {file_, 0, 0};
+    return {file_, m.line + 1, m.column + 1 + static_cast<int>(column_offset)};
+  }
+  int line_of(const YAML::Node& n) const { return at(n).line; }
+  [[noreturn]] void fail(const YAML::Node& n, const std::string& message) const {
+    throw InputError(at(n), message);
+  }
+  // An empty value ("key:") carries the mark of the token after it, often on
+  // the next line; errors about it point at its key instead.
+  void remember_null(const YAML::Node& value, const YAML::Node& key) const {
+    null_values_.emplace_back(value, key);
+  }
+
+ private:
+  // Values.
+  std::string text(const YAML::Node& n, std::string_view field, std::string_view expected) const;
+  double quantity(const YAML::Node& n, std::string_view field, const SiUnit& unit,
+                  const UnitOptions& options = {}) const;
+  double positive_quantity(const YAML::Node& n, std::string_view field, const SiUnit& unit) const;
+  double temperature(const YAML::Node& n, std::string_view field) const;
+  double number(const YAML::Node& n, std::string_view field) const;
+  std::vector<double> numbers(const YAML::Node& n, std::string_view field, std::size_t min_count,
+                              std::size_t max_count) const;
+  std::array<double, 2> temperature_range(const YAML::Node& n, std::string_view field) const;
+  std::string choice(const YAML::Node& n, std::string_view field,
+                     std::initializer_list<std::string_view> options) const;
+  std::string id(const YAML::Node& n, std::string_view kind);
+  int species_index(const YAML::Node& n, std::string_view where) const;
+
+  // Sections.
+  void read_species(const YAML::Node& list);
+  Species read_one_species(const YAML::Node& node, std::size_t index);
+  ThermoModel read_thermo(const YAML::Node& node, const std::string& owner) const;
+  CpModel read_cp(const YAML::Node& node, const std::string& owner) const;
+  ShomateSet read_shomate_set(const YAML::Node& node, const std::string& owner) const;
+  Nasa7 read_nasa7(const YAML::Node& node, const std::string& owner) const;
+  void read_reactions(const YAML::Node& list);
+  Reaction read_one_reaction(const YAML::Node& node, std::size_t index);
+  RateLaw read_rate(const YAML::Node& node, const std::string& rx_id,
+                    const ParsedEquation& eq) const;
+  double read_dH(const Fields& f, const Reaction& rx) const;
+  EquilibriumSource read_equilibrium(const Fields& f, const Reaction& rx) const;
+  void read_feed(const YAML::Node& node);
+  void read_key(const YAML::Node& node);
+  void read_train(const YAML::Node& list);
+  double read_train_target(const YAML::Node& node) const;
+  TemperatureLimits read_limits(const YAML::Node& node) const;
+  StageSpec read_stage(const YAML::Node& node, std::size_t index);
+  void check_energy_needs() const;
+  void check_catalyst_basis() const;
+  void add_range_warnings();
+
+  double sensible_sum(const std::vector<double>& nu, double T) const;
+
+  std::string file_;
+  const UnitParser& units_;
+  Phase phase_ = Phase::Gas;
+  std::vector<Species> species_;
+  std::vector<SpeciesInfo> species_info_;
+  std::vector<Reaction> reactions_;
+  Stream feed_;
+  int key_ = 0;
+  std::vector<StageSpec> train_;
+  std::vector<YAML::Node> stage_nodes_;
+  std::vector<std::string> warnings_;
+  // Every id so far (species, reactions, stages share one namespace).
+  std::map<std::string, std::pair<std::string, int>> ids_;
+  // Empty values and their keys (see remember_null); filled while reading,
+  // from const readers too, and used only for error locations.
+  mutable std::vector<std::pair<YAML::Node, YAML::Node>> null_values_;
+};
+
+// ---- Fields --------------------------------------------------------------
+
+Fields::Fields(const Loader& loader, const YAML::Node& node, std::string context)
+    : loader_(loader), node_(node), context_(std::move(context)) {
+  if (!node.IsMap())
+    loader.fail(node, fmt::format("{} needs a mapping (key: value lines), got {}", context_,
+                                  describe(node)));
+  for (auto it = node.begin(); it != node.end(); ++it) {
+    const YAML::Node k = it->first;
+    if (!k.IsScalar())
+      loader.fail(k, fmt::format("{}: a key must be a plain name, got {}", context_, describe(k)));
+    std::string name = k.Scalar();
+    for (const auto& e : entries_)
+      if (e.name == name)
+        loader.fail(k, fmt::format("duplicate key \"{}\" in {} (first given at line {})", name,
+                                   context_, loader.line_of(e.key)));
+    if (it->second.IsNull()) loader.remember_null(it->second, k);
+    entries_.push_back({std::move(name), k, it->second});
+  }
+}
+
+void Fields::check(std::initializer_list<std::string_view> allowed) const {
+  for (const auto& e : entries_) {
+    if (std::find(allowed.begin(), allowed.end(), e.name) != allowed.end()) continue;
+    loader_.fail(e.key, fmt::format("unknown key \"{}\" in {}{}", e.name, context_,
+                                    suggest(e.name, to_strings(allowed))));
+  }
+}
+
+const YAML::Node* Fields::find(std::string_view key) const {
+  for (const auto& e : entries_)
+    if (e.name == key) return &e.value;
+  return nullptr;
+}
+
+const YAML::Node* Fields::key_of(std::string_view key) const {
+  for (const auto& e : entries_)
+    if (e.name == key) return &e.key;
+  return nullptr;
+}
+
+const YAML::Node& Fields::need(std::string_view key, std::string_view expected) const {
+  if (const YAML::Node* v = find(key)) return *v;
+  loader_.fail(node_, fmt::format("{} is missing \"{}\" ({})", context_, key, expected));
+}
+
+// ---- values --------------------------------------------------------------
+
+std::string Loader::text(const YAML::Node& n, std::string_view field,
+                         std::string_view expected) const {
+  if (!n.IsScalar() || n.Scalar().empty())
+    fail(n, fmt::format("{} needs {}, got {}", field, expected, describe(n)));
+  return n.Scalar();
+}
+
+double Loader::quantity(const YAML::Node& n, std::string_view field, const SiUnit& unit,
+                        const UnitOptions& options) const {
+  const std::string expected = fmt::format("{} ({})", unit.description, unit.to_string());
+  if (!n.IsScalar() || n.Scalar().empty())
+    fail(n, fmt::format("{} needs {}, got {}", field, expected, describe(n)));
+  try {
+    const double v = units_.to_si(n.Scalar(), unit, options);
+    if (!std::isfinite(v))
+      fail(n, fmt::format("{} needs a finite value, got \"{}\"", field, n.Scalar()));
+    return v;
+  } catch (const UnitError& e) {
+    // The parser's message repeats the expectation; keep only its reason.
+    std::string reason = e.what();
+    const std::string tail = "\": ";
+    if (const auto pos = reason.find(tail); pos != std::string::npos)
+      reason = reason.substr(pos + tail.size());
+    fail(n, fmt::format("{} needs {}, got \"{}\": {}", field, expected, n.Scalar(), reason));
+  }
+}
+
+double Loader::positive_quantity(const YAML::Node& n, std::string_view field,
+                                 const SiUnit& unit) const {
+  const double v = quantity(n, field, unit);
+  if (v <= 0) fail(n, fmt::format("{} must be positive, got \"{}\"", field, n.Scalar()));
+  return v;
+}
+
+double Loader::temperature(const YAML::Node& n, std::string_view field) const {
+  const double v = quantity(n, field, temperature_unit());
+  if (v <= 0)
+    fail(n,
+         fmt::format("{} must be above absolute zero, got \"{}\" ({:g} K)", field, n.Scalar(), v));
+  return v;
+}
+
+double Loader::number(const YAML::Node& n, std::string_view field) const {
+  if (n.IsScalar())
+    if (const auto v = parse_number(n.Scalar())) return *v;
+  fail(n, fmt::format("{} needs a plain number, got {}", field, describe(n)));
+}
+
+std::vector<double> Loader::numbers(const YAML::Node& n, std::string_view field,
+                                    std::size_t min_count, std::size_t max_count) const {
+  const std::string count = min_count == max_count ? std::to_string(min_count)
+                                                   : fmt::format("{} to {}", min_count, max_count);
+  if (!n.IsSequence() || n.size() < min_count || n.size() > max_count)
+    fail(n, fmt::format("{} needs a list of {} numbers, got {}{}", field, count, describe(n),
+                        n.IsSequence() ? fmt::format(" of {}", n.size()) : ""));
+  std::vector<double> out;
+  for (const auto& item : n) out.push_back(number(item, field));
+  return out;
+}
+
+std::array<double, 2> Loader::temperature_range(const YAML::Node& n, std::string_view field) const {
+  if (!n.IsSequence() || n.size() != 2)
+    fail(n, fmt::format("{} needs a list of two temperatures [low, high], got {}", field,
+                        describe(n)));
+  const double lo = temperature(n[0], field);
+  const double hi = temperature(n[1], field);
+  if (lo >= hi) fail(n, fmt::format("{} needs low < high, got [{:g} K, {:g} K]", field, lo, hi));
+  return {lo, hi};
+}
+
+std::string Loader::choice(const YAML::Node& n, std::string_view field,
+                           std::initializer_list<std::string_view> options) const {
+  const std::vector<std::string> all = to_strings(options);
+  std::string listed;
+  for (const auto& o : all) listed += (listed.empty() ? "" : " | ") + o;
+  if (!n.IsScalar() || n.Scalar().empty())
+    fail(n, fmt::format("{} needs one of {}, got {}", field, listed, describe(n)));
+  const std::string& v = n.Scalar();
+  if (std::find(all.begin(), all.end(), v) != all.end()) return v;
+  fail(n, fmt::format("{} needs one of {}, got \"{}\"{}", field, listed, v,
+                      suggest(v, all, "valid values")));
+}
+
+std::string Loader::id(const YAML::Node& n, std::string_view kind) {
+  const std::string s = text(n, fmt::format("id of {}", kind), "a name");
+  if (!valid_id(s))
+    fail(n, fmt::format("id \"{}\" of {} may hold only letters, digits, _ and -, and needs at "
+                        "least one letter",
+                        s, kind));
+  const auto [it, inserted] = ids_.try_emplace(s, std::string(kind), line_of(n));
+  if (!inserted)
+    fail(n, fmt::format("duplicate id \"{}\": already used by a {} at line {} (ids are unique "
+                        "across species, reactions and stages)",
+                        s, it->second.first, it->second.second));
+  return s;
+}
+
+int Loader::species_index(const YAML::Node& n, std::string_view where) const {
+  const std::string s = text(n, where, "a species id");
+  for (std::size_t i = 0; i < species_.size(); ++i)
+    if (species_[i].id == s) return static_cast<int>(i);
+  std::vector<std::string> known;
+  for (const auto& sp : species_) known.push_back(sp.id);
+  fail(n, fmt::format("unknown species \"{}\" in {}{}", s, where,
+                      suggest(s, known, "declared species")));
+}
+
+// ---- species -------------------------------------------------------------
+
+void Loader::read_species(const YAML::Node& list) {
+  if (!list.IsSequence() || list.size() == 0)
+    fail(list, fmt::format("species needs a list of species (- id: ...), got {}", describe(list)));
+  if (list.size() > kMaxSpecies)
+    fail(list, fmt::format("too many species: {} (the limit is {})", list.size(), kMaxSpecies));
+  for (std::size_t i = 0; i < list.size(); ++i) {
+    species_.push_back(read_one_species(list[i], i));
+  }
+}
+
+Species Loader::read_one_species(const YAML::Node& node, std::size_t index) {
+  Fields f(*this, node, fmt::format("species entry {}", index + 1));
+  Species sp;
+  sp.id = id(f.need("id", "a species id, e.g. id: NC5"), "species");
+  f.set_context("species " + sp.id);
+  f.check({"id", "name", "formula", "mw", "thermo", "density"});
+  const std::string& ctx = f.context();
+
+  sp.name = sp.id;
+  if (const auto* n = f.find("name")) sp.name = text(*n, "name of " + ctx, "a display name");
+
+  if (const auto* n = f.find("formula")) {
+    const std::string formula = text(*n, "formula of " + ctx, "a chemical formula, e.g. C5H12");
+    try {
+      sp.formula = parse_formula(formula);
+    } catch (const FormulaError& e) {
+      fail(*n, fmt::format("formula of {}: {}", ctx, e.what()));
+    }
+  }
+  if (const auto* n = f.find("mw")) {
+    sp.mw = positive_quantity(*n, "mw of " + ctx, molar_mass_unit());
+    if (sp.formula) {
+      const double from_formula = molar_mass(*sp.formula);
+      if (std::abs(*sp.mw - from_formula) > kMwTolerance * from_formula)
+        fail(*n, fmt::format("mw of {} is {:g} g/mol, but its formula gives {:.3f} g/mol (they "
+                             "must agree within 0.5 %)",
+                             ctx, *sp.mw * 1000, from_formula * 1000));
+    }
+  } else if (sp.formula) {
+    sp.mw = molar_mass(*sp.formula);
+  }
+  SpeciesInfo info{node, std::nullopt};
+  if (const auto* n = f.find("thermo")) {
+    sp.thermo = read_thermo(*n, sp.id);
+    info.thermo = *n;
+  }
+  if (const auto* n = f.find("density"))
+    sp.density = positive_quantity(*n, "density of " + ctx, density_unit());
+
+  if (phase_ == Phase::Liquid) {
+    // Liquid volumes come from mw / density of every species (ideal mixing).
+    if (!sp.density)
+      fail(node, fmt::format("{} is missing \"density\" (a liquid density, e.g. density: 620 "
+                             "kg/m3), needed for every species in phase: liquid",
+                             ctx));
+    if (!sp.mw)
+      fail(node, fmt::format("{} needs mw or formula: phase: liquid computes volumes from the "
+                             "molar mass and density of every species",
+                             ctx));
+  }
+  species_info_.push_back(std::move(info));
+  return sp;
+}
+
+ThermoModel Loader::read_thermo(const YAML::Node& node, const std::string& owner) const {
+  Fields f(*this, node, "thermo of species " + owner);
+  f.check({"h_f", "s", "cp", "nasa7"});
+  const std::string& ctx = f.context();
+  try {
+    if (const auto* n = f.find("nasa7")) {
+      for (const char* k : {"h_f", "s", "cp"})
+        if (const auto* extra = f.key_of(k))
+          fail(*extra,
+               fmt::format("{}: nasa7 carries its own {}; remove \"{}\"", ctx,
+                           std::string_view(k) == "cp" ? "heat capacity" : "reference h and s", k));
+      return ThermoModel(read_nasa7(*n, owner), std::nullopt, std::nullopt);
+    }
+    const YAML::Node& cp_node =
+        f.need("cp",
+               "a heat capacity: e.g. cp: 120 J/mol/K, {poly: [...]}, {shomate: [...], T_range: "
+               "[...]}; or give nasa7 instead");
+    CpModel cp = read_cp(cp_node, owner);
+    std::optional<double> h_f, s;
+    if (const auto* n = f.find("h_f"))
+      h_f = quantity(*n, "h_f of species " + owner, molar_energy_unit(), chemistry_units());
+    if (const auto* n = f.find("s"))
+      s = quantity(*n, "s of species " + owner, molar_entropy_unit(), chemistry_units());
+    return ThermoModel(std::move(cp), h_f, s);
+  } catch (const std::invalid_argument& e) {
+    // The model's own checks; the loader's come first, so this is a backstop.
+    fail(node, fmt::format("{}: {}", ctx, e.what()));
+  }
+}
+
+CpModel Loader::read_cp(const YAML::Node& node, const std::string& owner) const {
+  const std::string field = "cp of species " + owner;
+  if (node.IsScalar()) {
+    const double cp = quantity(node, field, molar_cp_unit(), chemistry_units());
+    if (cp <= 0) fail(node, fmt::format("{} must be positive, got \"{}\"", field, node.Scalar()));
+    return CpConstant{cp};
+  }
+  if (node.IsSequence()) {
+    if (node.size() == 0) fail(node, field + " needs at least one Shomate set");
+    CpShomate m;
+    for (const auto& item : node) {
+      ShomateSet set = read_shomate_set(item, owner);
+      if (!m.sets.empty() && set.T_low < m.sets.back().T_high)
+        fail(item, fmt::format("{}: Shomate sets must be listed by rising temperature without "
+                               "overlap; this one starts at {:g} K, below the {:g} K where the "
+                               "one before ends",
+                               field, set.T_low, m.sets.back().T_high));
+      m.sets.push_back(set);
+    }
+    return m;
+  }
+  if (node.IsMap()) {
+    Fields f(*this, node, field);
+    if (f.find("poly") && f.find("shomate"))
+      fail(*f.key_of("shomate"), field + " gives both poly and shomate; give one");
+    if (f.find("poly")) {
+      f.check({"poly", "T_range"});
+      const auto a = numbers(*f.find("poly"), field + " poly", 1, 4);
+      CpPolynomial p;
+      std::copy(a.begin(), a.end(), p.a.begin());
+      if (const auto* r = f.find("T_range")) p.T_range = temperature_range(*r, field + " T_range");
+      return p;
+    }
+    if (f.find("shomate")) return CpShomate{{read_shomate_set(node, owner)}};
+  }
+  fail(node, fmt::format("{} needs a constant (e.g. 120 J/mol/K), {{poly: [a, b, c, d]}}, "
+                         "{{shomate: [A, B, C, D, E], T_range: [low, high]}} or a list of "
+                         "Shomate sets, got {}",
+                         field, describe(node)));
+}
+
+ShomateSet Loader::read_shomate_set(const YAML::Node& node, const std::string& owner) const {
+  const std::string field = "cp of species " + owner;
+  Fields f(*this, node, field + " (Shomate set)");
+  f.check({"shomate", "T_range"});
+  const auto c =
+      numbers(f.need("shomate", "five coefficients [A, B, C, D, E]"), field + " shomate", 5, 5);
+  const auto range = temperature_range(
+      f.need("T_range", "the set's validity range, e.g. T_range: [298, 1200]"), field + " T_range");
+  ShomateSet set;
+  std::copy(c.begin(), c.end(), set.c.begin());
+  set.T_low = range[0];
+  set.T_high = range[1];
+  return set;
+}
+
+Nasa7 Loader::read_nasa7(const YAML::Node& node, const std::string& owner) const {
+  const std::string field = "nasa7 of species " + owner;
+  Fields f(*this, node, field);
+  f.check({"T_mid", "low", "high", "T_low", "T_high"});
+  Nasa7 m;
+  m.T_mid = temperature(f.need("T_mid", "the temperature between the two ranges, e.g. 1000"),
+                        field + " T_mid");
+  const auto lo =
+      numbers(f.need("low", "seven coefficients a1..a7 below T_mid"), field + " low", 7, 7);
+  const auto hi =
+      numbers(f.need("high", "seven coefficients a1..a7 above T_mid"), field + " high", 7, 7);
+  std::copy(lo.begin(), lo.end(), m.low.begin());
+  std::copy(hi.begin(), hi.end(), m.high.begin());
+  if (const auto* n = f.find("T_low")) {
+    m.T_low = temperature(*n, field + " T_low");
+    if (m.T_low >= m.T_mid)
+      fail(*n,
+           fmt::format("{} T_low ({:g} K) must be below T_mid ({:g} K)", field, m.T_low, m.T_mid));
+  }
+  if (const auto* n = f.find("T_high")) {
+    m.T_high = temperature(*n, field + " T_high");
+    if (m.T_high <= m.T_mid)
+      fail(*n, fmt::format("{} T_high ({:g} K) must be above T_mid ({:g} K)", field, m.T_high,
+                           m.T_mid));
+  }
+  return m;
+}
+
+// ---- reactions -----------------------------------------------------------
+
+void Loader::read_reactions(const YAML::Node& list) {
+  if (!list.IsSequence() || list.size() == 0)
+    fail(list,
+         fmt::format("reactions needs a list of reactions (- id: ...), got {}", describe(list)));
+  if (list.size() > kMaxReactions)
+    fail(list, fmt::format("too many reactions: {} (the limit is {})", list.size(), kMaxReactions));
+  for (std::size_t i = 0; i < list.size(); ++i) reactions_.push_back(read_one_reaction(list[i], i));
+}
+
+double Loader::sensible_sum(const std::vector<double>& nu, double T) const {
+  double s = 0;
+  for (std::size_t i = 0; i < nu.size(); ++i)
+    if (nu[i] != 0) s += nu[i] * species_[i].thermo.h_sensible(T);
+  return s;
+}
+
+Reaction Loader::read_one_reaction(const YAML::Node& node, std::size_t index) {
+  Fields f(*this, node, fmt::format("reaction entry {}", index + 1));
+  Reaction rx;
+  rx.id = id(f.need("id", "a reaction id, e.g. id: isom"), "reaction");
+  f.set_context("reaction " + rx.id);
+  f.check({"id", "equation", "rate", "dH", "equilibrium"});
+  rx.where = at(node);
+  const std::size_t n = species_.size();
+
+  // Equation. Error columns point into the text; a quoted scalar starts one
+  // column after its mark.
+  const YAML::Node& eq_node = f.need("equation", "e.g. equation: NC5 <=> IC5");
+  rx.equation = text(eq_node, "equation of reaction " + rx.id, "an equation like A + 2 B => C");
+  const std::size_t quote =
+      eq_node.Tag() == "!" && rx.equation.find('\n') == std::string::npos ? 1 : 0;
+  ParsedEquation eq;
+  try {
+    eq = parse_equation(rx.equation);
+  } catch (const EquationError& e) {
+    throw InputError(at(eq_node, quote + e.column()),
+                     fmt::format("equation of reaction {}: {}", rx.id, e.what()));
+  }
+  rx.reversible = eq.reversible;
+  rx.nu.assign(n, 0.0);
+  auto index_of = [&](const EquationTerm& t) {
+    for (std::size_t i = 0; i < n; ++i)
+      if (species_[i].id == t.species) return i;
+    std::vector<std::string> known;
+    for (const auto& sp : species_) known.push_back(sp.id);
+    throw InputError(at(eq_node, quote + t.column),
+                     fmt::format("unknown species \"{}\" in the equation of reaction {}{}",
+                                 t.species, rx.id, suggest(t.species, known, "declared species")));
+  };
+  for (const auto& t : eq.reactants) rx.nu[index_of(t)] -= t.coefficient;
+  for (const auto& t : eq.products) rx.nu[index_of(t)] += t.coefficient;
+  if (std::all_of(rx.nu.begin(), rx.nu.end(), [](double v) { return v == 0; }))
+    fail(eq_node, fmt::format("equation of reaction {} has no net change (every species "
+                              "appears equally on both sides)",
+                              rx.id));
+
+  // Element balance, when every species has a formula.
+  if (std::all_of(species_.begin(), species_.end(), [](const Species& s) { return s.formula; })) {
+    std::map<std::string, std::pair<double, double>> sides;  // element -> (left, right)
+    for (const auto& t : eq.reactants)
+      for (const auto& [el, count] : *species_[index_of(t)].formula)
+        sides[el].first += t.coefficient * count;
+    for (const auto& t : eq.products)
+      for (const auto& [el, count] : *species_[index_of(t)].formula)
+        sides[el].second += t.coefficient * count;
+    std::vector<std::string> off;
+    for (const auto& [el, lr] : sides) {
+      const double scale = std::max({1.0, std::abs(lr.first), std::abs(lr.second)});
+      if (std::abs(lr.first - lr.second) > 1e-9 * scale)
+        off.push_back(
+            fmt::format("{} ({:g} on the left, {:g} on the right)", el, lr.first, lr.second));
+    }
+    if (!off.empty())
+      fail(eq_node,
+           fmt::format("equation of reaction {} is not balanced in {}", rx.id, join_and(off)));
+  }
+
+  rx.rate = read_rate(f.need("rate", "a rate law: {A: ..., Ea: ...}"), rx.id, eq);
+
+  // Warn where the reverse term of a reversible law is singular at zero.
+  if (rx.reversible)
+    for (std::size_t i = 0; i < n; ++i)
+      if (rx.rate.orders[i] + rx.nu[i] < 0)
+        warnings_.push_back(fmt::format(
+            "reaction {}: species {} has order {:g} and coefficient {:g}, so the reverse term "
+            "of the rate law has a negative exponent and is unbounded where {} is absent",
+            rx.id, species_[i].id, rx.rate.orders[i], rx.nu[i], species_[i].id));
+
+  rx.dH_298 = read_dH(f, rx);
+  rx.equilibrium = read_equilibrium(f, rx);
+  return rx;
+}
+
+RateLaw Loader::read_rate(const YAML::Node& node, const std::string& rx_id,
+                          const ParsedEquation& eq) const {
+  Fields f(*this, node, "rate of reaction " + rx_id);
+  f.check({"per", "A", "Ea", "T_ref", "driving", "orders"});
+  const std::string& ctx = f.context();
+  RateLaw law;
+  law.orders.assign(species_.size(), 0.0);
+  if (const auto* n = f.find("per"))
+    law.basis = choice(*n, "per of " + ctx, {"volume", "catalyst"}) == "catalyst"
+                    ? RateBasis::Catalyst
+                    : RateBasis::Volume;
+  if (const auto* n = f.find("driving")) {
+    law.driving = choice(*n, "driving of " + ctx, {"concentration", "pressure"}) == "pressure"
+                      ? Driving::Pressure
+                      : Driving::Concentration;
+    if (law.driving == Driving::Pressure && phase_ == Phase::Liquid)
+      fail(*n, fmt::format("driving: pressure in {} needs phase: gas; a liquid-phase rate is "
+                           "driven by concentrations",
+                           ctx));
+  }
+  if (const auto* n = f.find("orders")) {
+    Fields orders(*this, *n, "orders of " + ctx);
+    for (const auto& e : orders.entries()) {
+      const int i = species_index(e.key, "orders of " + ctx);
+      const double o = number(e.value, fmt::format("order of {} in {}", e.name, ctx));
+      if (o < 0)
+        fail(e.value, fmt::format("order of {} in {} must not be negative (the rate would be "
+                                  "infinite where {} is absent), got {:g}",
+                                  e.name, ctx, e.name, o));
+      law.orders[i] = o;
+    }
+  } else {
+    // Default: elementary in the reactants.
+    for (const auto& t : eq.reactants)
+      for (std::size_t i = 0; i < species_.size(); ++i)
+        if (species_[i].id == t.species) law.orders[i] += t.coefficient;
+  }
+  double total_order = 0;
+  for (double o : law.orders) total_order += o;
+
+  const bool per_cat = law.basis == RateBasis::Catalyst;
+  const bool pressure = law.driving == Driving::Pressure;
+  SiUnit unit = SiUnit::per_power(
+      per_cat ? "mol/(kg*s)" : "mol/(m3*s)", pressure ? "Pa" : "mol/m3", total_order,
+      fmt::format("a rate constant for a rate per {} with {} driving force and orders summing "
+                  "to {:g}",
+                  per_cat ? "kg of catalyst" : "m3 of reactor",
+                  pressure ? "a partial-pressure" : "a concentration", total_order));
+  const YAML::Node& a = f.need("A", "the pre-exponential factor, e.g. A: 3.0e-2 mol/(kg*s*bar)");
+  law.A = quantity(a, "A of reaction " + rx_id, unit);
+  if (law.A <= 0)
+    fail(a, fmt::format("A of reaction {} must be positive, got \"{}\"", rx_id, a.Scalar()));
+  law.Ea = quantity(f.need("Ea", "the activation energy, e.g. Ea: 65 kJ/mol (0 for none)"),
+                    "Ea of reaction " + rx_id, molar_energy_unit(), chemistry_units());
+  if (const auto* n = f.find("T_ref")) law.T_ref = temperature(*n, "T_ref of reaction " + rx_id);
+  return law;
+}
+
+double Loader::read_dH(const Fields& f, const Reaction& rx) const {
+  const std::string field = "dH of reaction " + rx.id;
+  if (const auto* n = f.find("dH")) {
+    if (!n->IsMap()) return quantity(*n, field, molar_energy_unit(), chemistry_units());
+    Fields d(*this, *n, field);
+    d.check({"value", "T"});
+    const double value = quantity(d.need("value", "the heat of reaction, e.g. value: -7.9 kJ/mol"),
+                                  field, molar_energy_unit(), chemistry_units());
+    const double T =
+        temperature(d.need("T", "the temperature the value holds at, e.g. T: 450 K"), field + " T");
+    // Kirchhoff: dH(T) = dH_298 + sum nu_i hs_i(T), inverted.
+    return value - sensible_sum(rx.nu, T);
+  }
+  double dH = 0;
+  for (std::size_t i = 0; i < species_.size(); ++i) {
+    if (rx.nu[i] == 0) continue;
+    if (!species_[i].thermo.has_h_f())
+      fail(f.node(), fmt::format("reaction {} is missing \"dH\" and species {} has no h_f to "
+                                 "compute it from; give dH (e.g. dH: -7.9 kJ/mol) or h_f for "
+                                 "every species in the reaction",
+                                 rx.id, species_[i].id));
+    dH += rx.nu[i] * *species_[i].thermo.h_f();
+  }
+  return dH;
+}
+
+EquilibriumSource Loader::read_equilibrium(const Fields& f, const Reaction& rx) const {
+  const YAML::Node* n = f.find("equilibrium");
+  EquilibriumSource eq;
+  if (!rx.reversible) {
+    if (n)
+      fail(*f.key_of("equilibrium"),
+           fmt::format("reaction {} is irreversible (=>), so it takes no equilibrium; write <=> "
+                       "for a reversible reaction or remove \"equilibrium\"",
+                       rx.id));
+    return eq;
+  }
+  if (!n)
+    fail(f.node(), fmt::format("reversible reaction {} (<=>) is missing \"equilibrium\" "
+                               "(equilibrium: thermo, or equilibrium: {{K: 2.9, T: 450 K}}); "
+                               "write => for an irreversible reaction",
+                               rx.id));
+  const std::string field = "equilibrium of reaction " + rx.id;
+  if (n->IsScalar()) {
+    choice(*n, field, {"thermo"});
+    for (std::size_t i = 0; i < species_.size(); ++i) {
+      if (rx.nu[i] == 0) continue;
+      const auto& t = species_[i].thermo;
+      if (!t.has_h_f() || !t.has_s())
+        fail(*n, fmt::format("{}: thermo needs h_f and s of every species in the reaction; "
+                             "species {} has no {}",
+                             field, species_[i].id, t.has_h_f() ? "s" : "h_f"));
+    }
+    eq.kind = EquilibriumSource::Kind::Thermo;
+    return eq;
+  }
+  Fields e(*this, *n, field);
+  e.check({"K", "T", "dH"});
+  const YAML::Node& k = e.need("K", "the equilibrium constant at T (activity basis), e.g. K: 2.9");
+  eq.K_ref = number(k, "K of " + field);
+  if (eq.K_ref <= 0) fail(k, fmt::format("K of {} must be positive, got {:g}", field, eq.K_ref));
+  eq.T_ref = temperature(e.need("T", "the temperature of K, e.g. T: 450 K"), "T of " + field);
+  if (const auto* d = e.find("dH"))
+    eq.dH = quantity(*d, "dH of " + field, molar_energy_unit(), chemistry_units());
+  else
+    eq.dH = rx.dH_298 + sensible_sum(rx.nu, eq.T_ref);
+  eq.kind = EquilibriumSource::Kind::VantHoff;
+  return eq;
+}
+
+// ---- feed, key -----------------------------------------------------------
+
+void Loader::read_feed(const YAML::Node& node) {
+  Fields f(*this, node, "feed");
+  f.check({"T", "P", "flow", "composition", "flows"});
+  feed_.T = temperature(f.need("T", "the feed temperature, e.g. T: 130 degC"), "feed T");
+  feed_.P = positive_quantity(f.need("P", "the feed pressure, e.g. P: 25 bar"), "feed P",
+                              pressure_unit());
+  feed_.F.assign(species_.size(), 0.0);
+  const YAML::Node* flow = f.find("flow");
+  const YAML::Node* comp = f.find("composition");
+  const YAML::Node* flows = f.find("flows");
+  if (flows && (flow || comp))
+    fail(*f.key_of("flows"), "feed gives both flows and flow/composition; give one of them");
+  if (!flows && !flow && !comp)
+    fail(node,
+         "feed is missing its flow: give flow (total, e.g. 50 kmol/h) with composition "
+         "(mole fractions), or flows (one per species)");
+  if (flows) {
+    Fields fl(*this, *flows, "feed flows");
+    double total = 0;
+    for (const auto& e : fl.entries()) {
+      const int i = species_index(e.key, "feed flows");
+      const double F = quantity(e.value, "feed flow of " + e.name, molar_flow_unit());
+      if (F < 0)
+        fail(e.value, fmt::format("feed flow of {} must not be negative, got \"{}\"", e.name,
+                                  e.value.Scalar()));
+      feed_.F[i] = F;
+      total += F;
+    }
+    if (total <= 0) fail(*flows, "feed flows are all zero; the feed needs a positive total flow");
+    return;
+  }
+  if (!comp)
+    fail(node,
+         "feed gives flow but is missing \"composition\" (mole fractions, e.g. "
+         "composition: {NC5: 0.95, IC5: 0.05})");
+  if (!flow)
+    fail(node,
+         "feed gives composition but is missing \"flow\" (the total molar flow, e.g. "
+         "flow: 50 kmol/h)");
+  const double total = positive_quantity(*flow, "feed flow", molar_flow_unit());
+  Fields c(*this, *comp, "feed composition");
+  double sum = 0;
+  for (const auto& e : c.entries()) {
+    const int i = species_index(e.key, "feed composition");
+    const double x = number(e.value, "mole fraction of " + e.name);
+    if (x < 0 || x > 1)
+      fail(e.value, fmt::format("mole fraction of {} must lie in [0, 1], got {:g}", e.name, x));
+    feed_.F[i] = x * total;
+    sum += x;
+  }
+  if (std::abs(sum - 1.0) > kCompositionTolerance)
+    fail(*comp, fmt::format("feed composition sums to {:.9g}; mole fractions must sum to 1 "
+                            "(within {:g})",
+                            sum, kCompositionTolerance));
+}
+
+void Loader::read_key(const YAML::Node& node) {
+  key_ = species_index(node, "key");
+  const std::string& k = species_[key_].id;
+  if (feed_.F[key_] <= 0)
+    fail(node, fmt::format("key species {} has no flow in the feed; conversion is measured "
+                           "against its feed flow",
+                           k));
+  const bool consumed = std::any_of(reactions_.begin(), reactions_.end(),
+                                    [&](const Reaction& rx) { return rx.nu[key_] < 0; });
+  if (!consumed)
+    fail(node, fmt::format("key species {} is consumed by no reaction; the key is the reactant "
+                           "whose conversion the train reports",
+                           k));
+}
+
+// ---- train ---------------------------------------------------------------
+
+void Loader::read_train(const YAML::Node& list) {
+  if (!list.IsSequence() || list.size() == 0)
+    fail(list, fmt::format("train needs a list of at least one stage (- {{type: pfr, id: R1, "
+                           "volume: 2.5 m3}}), got {}",
+                           describe(list)));
+  if (list.size() > kMaxStages)
+    fail(list, fmt::format("too many stages: {} (the limit is {})", list.size(), kMaxStages));
+  for (std::size_t i = 0; i < list.size(); ++i) {
+    train_.push_back(read_stage(list[i], i));
+    stage_nodes_.push_back(list[i]);
+  }
+}
+
+StageSpec Loader::read_stage(const YAML::Node& node, std::size_t index) {
+  Fields f(*this, node, fmt::format("stage entry {}", index + 1));
+  const std::string type =
+      choice(f.need("type", "pfr | cstr | exchanger"),
+             fmt::format("type of stage entry {}", index + 1), {"pfr", "cstr", "exchanger"});
+  const std::string sid = id(f.need("id", "a stage id, e.g. id: R1"), "stage");
+  f.set_context("stage " + sid);
+  const std::string& ctx = f.context();
+
+  if (type == "exchanger") {
+    f.check({"type", "id", "T_out", "duty"});
+    ExchangerSpec x;
+    x.id = sid;
+    x.where = at(node);
+    const auto* t_out = f.find("T_out");
+    const auto* duty = f.find("duty");
+    if (t_out && duty)
+      fail(*f.key_of("duty"), fmt::format("{} gives both T_out and duty; give exactly one", ctx));
+    if (!t_out && !duty)
+      fail(node, fmt::format("{} needs exactly one of T_out (outlet temperature, e.g. T_out: 125 "
+                             "degC) or duty (heat added, e.g. duty: -1.2 MW)",
+                             ctx));
+    if (t_out) x.T_out = temperature(*t_out, "T_out of " + ctx);
+    if (duty) x.duty = quantity(*duty, "duty of " + ctx, power_unit());
+    return x;
+  }
+
+  f.check({"type", "id", "volume", "catalyst", "bulk_density", "target", "heat"});
+  ReactorSpec r;
+  r.id = sid;
+  r.type = type == "cstr" ? ReactorType::Cstr : ReactorType::Pfr;
+  r.where = at(node);
+  const char* size_keys[] = {"volume", "catalyst", "target"};
+  const char* first = nullptr;
+  for (const char* k : size_keys) {
+    if (!f.find(k)) continue;
+    if (first)
+      fail(*f.key_of(k), fmt::format("{} gives both {} and {}; give exactly one of volume, "
+                                     "catalyst or target",
+                                     ctx, first, k));
+    first = k;
+  }
+  if (!first)
+    fail(node, fmt::format("{} needs one of volume (e.g. volume: 2.5 m3), catalyst (a mass, with "
+                           "bulk_density) or target (e.g. target: {{conversion: 0.65}})",
+                           ctx));
+  if (const auto* n = f.find("bulk_density"))
+    r.bulk_density = positive_quantity(*n, "bulk_density of " + ctx, density_unit());
+  if (const auto* n = f.find("volume"))
+    r.volume = positive_quantity(*n, "volume of " + ctx, volume_unit());
+  if (const auto* n = f.find("catalyst")) {
+    r.catalyst_mass = positive_quantity(*n, "catalyst of " + ctx, mass_unit());
+    if (!r.bulk_density)
+      fail(node, fmt::format("{} gives catalyst but is missing \"bulk_density\", which turns the "
+                             "catalyst mass into a bed volume (e.g. bulk_density: 750 kg/m3)",
+                             ctx));
+    r.volume = *r.catalyst_mass / *r.bulk_density;
+  }
+  if (const auto* n = f.find("target")) {
+    Fields t(*this, *n, "target of " + ctx);
+    t.check({"conversion"});
+    const YAML::Node& x = t.need("conversion", "the overall key conversion to reach, e.g. 0.65");
+    const double X = number(x, "target conversion of " + ctx);
+    if (!(X > 0 && X < 1))
+      fail(x, fmt::format("target conversion of {} must lie strictly between 0 and 1, got {:g}",
+                          ctx, X));
+    r.target_conversion = X;
+  }
+  if (const auto* n = f.find("heat"))
+    r.heat = choice(*n, "heat of " + ctx, {"adiabatic", "isothermal"}) == "isothermal"
+                 ? HeatMode::Isothermal
+                 : HeatMode::Adiabatic;
+  return r;
+}
+
+// ---- train-level target and temperature limits --------------------------
+
+double Loader::read_train_target(const YAML::Node& node) const {
+  Fields t(*this, node, "target");
+  t.check({"conversion"});
+  const YAML::Node& x =
+      t.need("conversion", "the overall key conversion the train should reach, e.g. 0.92");
+  const double X = number(x, "target conversion");
+  if (!(X > 0 && X < 1))
+    fail(x, fmt::format("target conversion must lie strictly between 0 and 1, got {:g}", X));
+  return X;
+}
+
+TemperatureLimits Loader::read_limits(const YAML::Node& node) const {
+  Fields f(*this, node, "limits");
+  f.check({"T_max", "T_in_min"});
+  TemperatureLimits lim;
+  lim.where = at(node);
+  if (const auto* n = f.find("T_max")) lim.T_max = temperature(*n, "T_max of limits");
+  if (const auto* n = f.find("T_in_min")) lim.T_in_min = temperature(*n, "T_in_min of limits");
+  if (lim.T_max && lim.T_in_min && !(*lim.T_in_min < *lim.T_max))
+    fail(*f.find("T_in_min"),
+         fmt::format("T_in_min of limits ({:.2f} K) must be below T_max ({:.2f} K): T_in_min is "
+                     "the lowest useful bed inlet temperature, T_max the highest allowed in a bed",
+                     *lim.T_in_min, *lim.T_max));
+  return lim;
+}
+
+// Adiabatic reactors and exchangers close an energy balance, which needs
+// cp of every species; an all-isothermal train does not.
+void Loader::check_energy_needs() const {
+  std::optional<EnergyNeed> need;
+  for (const auto& s : train_) {
+    if (const auto* r = std::get_if<ReactorSpec>(&s)) {
+      if (r->heat == HeatMode::Adiabatic) {
+        need = EnergyNeed{r->id,
+                          r->type == ReactorType::Pfr ? "an adiabatic pfr" : "an adiabatic cstr"};
+        break;
+      }
+    } else {
+      need = EnergyNeed{stage_id(s), "an exchanger"};
+      break;
+    }
+  }
+  for (std::size_t i = 0; i < species_.size(); ++i) {
+    if (species_info_[i].thermo) continue;
+    if (need)
+      fail(species_info_[i].node,
+           fmt::format("species {} is missing \"thermo\": stage {} is {} and needs the heat "
+                       "capacity of every species (e.g. thermo: {{cp: 120 J/mol/K, h_f: -146.8 "
+                       "kJ/mol}})",
+                       species_[i].id, need->stage, need->why));
+  }
+}
+
+void Loader::check_catalyst_basis() const {
+  for (std::size_t k = 0; k < train_.size(); ++k) {
+    const auto* r = std::get_if<ReactorSpec>(&train_[k]);
+    if (!r || r->bulk_density) continue;
+    for (const auto& rx : reactions_)
+      if (rx.rate.basis == RateBasis::Catalyst)
+        fail(stage_nodes_[k],
+             fmt::format("stage {} has no bulk_density, but reaction {} has a per-catalyst rate "
+                         "(per: catalyst); give the stage a bulk_density (e.g. bulk_density: "
+                         "750 kg/m3)",
+                         r->id, rx.id));
+  }
+}
+
+void Loader::add_range_warnings() {
+  auto check_at = [&](double T, const std::string& where) {
+    for (std::size_t i = 0; i < species_.size(); ++i) {
+      if (!species_info_[i].thermo) continue;
+      const auto& t = species_[i].thermo;
+      if (t.in_range(T)) continue;
+      const auto range = t.declared_range();
+      std::string declared = "its declared range";
+      if (range)
+        declared = std::isfinite((*range)[1])
+                       ? fmt::format("its declared range {:g}-{:g} K", (*range)[0], (*range)[1])
+                       : fmt::format("its declared range (from {:g} K)", (*range)[0]);
+      warnings_.push_back(
+          fmt::format("species {}: {} {:g} K is outside {} of the heat-capacity "
+                      "data; cp is extrapolated",
+                      species_[i].id, where, T, declared));
+    }
+  };
+  check_at(feed_.T, "feed temperature");
+  for (const auto& s : train_)
+    if (const auto* x = std::get_if<ExchangerSpec>(&s); x && x->T_out)
+      check_at(*x->T_out, "T_out of stage " + x->id + ",");
+  for (std::size_t i = 0; i < species_.size(); ++i)
+    if (!species_info_[i].thermo)
+      warnings_.push_back(fmt::format(
+          "species {} has no thermo: heats of reaction involving it are taken as independent "
+          "of temperature",
+          species_[i].id));
+}
+
+// ---- whole case ----------------------------------------------------------
+
+Case Loader::load(const YAML::Node& root) {
+  if (root.IsNull())
+    throw InputError({file_, 0, 0},
+                     "empty case file; expected a mapping with title, species, "
+                     "reactions, feed, key and train");
+  Fields top(*this, root, "the case");
+  top.check({"title", "phase", "species", "reactions", "feed", "key", "train", "target", "limits"});
+  Case c;
+  c.file = file_;
+  c.title = file_;
+  if (const auto* n = top.find("title")) c.title = text(*n, "title", "a line of text");
+  if (const auto* n = top.find("phase"))
+    phase_ = choice(*n, "phase", {"gas", "liquid"}) == "liquid" ? Phase::Liquid : Phase::Gas;
+
+  read_species(top.need("species", "the list of species"));
+  read_reactions(top.need("reactions", "the list of reactions"));
+  read_feed(top.need("feed", "the feed: T, P and flow with composition, or flows"));
+  read_key(top.need("key", "the key reactant, e.g. key: NC5"));
+  read_train(top.need("train", "the list of stages"));
+  c.target_where = {file_, 0, 0};
+  if (const auto* n = top.find("target")) {
+    c.target_conversion = read_train_target(*n);
+    c.target_where = at(*n);
+  }
+  c.limits.where = {file_, 0, 0};
+  if (const auto* n = top.find("limits")) c.limits = read_limits(*n);
+  check_energy_needs();
+  check_catalyst_basis();
+
+  // A heat capacity must be positive where the train starts.
+  for (std::size_t i = 0; i < species_.size(); ++i) {
+    if (!species_info_[i].thermo) continue;
+    const double cp = species_[i].thermo.cp(feed_.T);
+    if (!(cp > 0))
+      fail(*species_info_[i].thermo,
+           fmt::format("thermo of species {} gives cp = {:g} J/(mol K) at the feed temperature "
+                       "{:g} K; a heat capacity must be positive",
+                       species_[i].id, cp, feed_.T));
+  }
+  add_range_warnings();
+
+  c.mechanism = Mechanism(phase_, std::move(species_), std::move(reactions_));
+  c.feed = std::move(feed_);
+  c.key = key_;
+  c.train = std::move(train_);
+  c.warnings = std::move(warnings_);
+  return c;
+}
+
+}  // namespace
+
+Case load_case_from_string(const std::string& text, const std::string& name,
+                           const UnitParser& units) {
+  check_text_limits(text, name, {kMaxFileBytes});  // size, UTF-8, depth: before yaml-cpp
+  check_parser_finishes(text, name);
+  std::vector<YAML::Node> docs;
+  try {
+    docs = YAML::LoadAll(text);
+  } catch (const YAML::Exception& e) {
+    throw InputError({name, e.mark.line + 1, e.mark.column + 1}, "YAML syntax error: " + e.msg);
+  }
+  // A trailing "---" adds an empty document; anything more is refused.
+  while (docs.size() > 1 && docs.back().IsNull()) docs.pop_back();
+  if (docs.size() > 1)
+    throw InputError({name, docs[1].Mark().line + 1, docs[1].Mark().column + 1},
+                     "a case file holds one YAML document; found a second one");
+  if (!docs.empty()) check_node_count(docs[0], name);  // aliases: before any walk of the tree
+  Loader loader(name, units);
+  try {
+    return loader.load(docs.empty() ? YAML::Node() : docs[0]);
+  } catch (const YAML::Exception& e) {
+    // A yaml-cpp access error is a loader bug, but still report where.
+    throw InputError({name, e.mark.line + 1, e.mark.column + 1}, e.msg);
+  }
+}
+
+Case load_case(const std::string& path, const UnitParser& units) {
+  namespace fs = std::filesystem;
+  std::error_code ec;
+  const fs::file_status st = fs::status(path, ec);
+  if (ec || !fs::exists(st)) throw InputError({path, 0, 0}, "cannot open case file: no such file");
+  if (fs::is_directory(st))
+    throw InputError({path, 0, 0},
+                     "cannot read case file: it is a directory, expected a YAML file");
+  const std::uintmax_t size = fs::file_size(path, ec);
+  if (!ec && size > kMaxFileBytes)
+    throw InputError(
+        {path, 0, 0},
+        fmt::format("case file is {} bytes; the limit is {} bytes (10 MiB)", size, kMaxFileBytes));
+  std::ifstream in(path, std::ios::binary);
+  if (!in)
+    throw InputError({path, 0, 0}, std::string("cannot open case file: ") + std::strerror(errno));
+  std::ostringstream text;
+  text << in.rdbuf();
+  if (in.bad()) throw InputError({path, 0, 0}, "cannot read case file");
+  return load_case_from_string(text.str(), path, units);
+}
+
+}  // namespace rxtrain

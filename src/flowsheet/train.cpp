@@ -1,0 +1,172 @@
+#include "rxtrain/flowsheet/train.hpp"
+
+#include <fmt/format.h>
+
+#include <algorithm>
+#include <type_traits>
+
+#include "rxtrain/stages/exchanger.hpp"
+
+namespace rxtrain {
+
+namespace {
+
+// Equilibrium views are a reading aid: a failure to compute one is a
+// warning in the result, never a failed run.
+void add_equilibrium_records(const Case& c, const TrainOptions& options, TrainResult& result) {
+  const Mechanism& mech = c.mechanism;
+  if (!has_reversible_reaction(mech)) return;
+  const ConversionBasis basis = c.conversion_basis();
+  double T_lo = c.feed.T, T_hi = c.feed.T;
+  for (auto& r : result.stages) {
+    T_lo = std::min({T_lo, r.T_min, r.inlet.T, r.outlet.T});
+    T_hi = std::max({T_hi, r.T_max, r.inlet.T, r.outlet.T});
+    if (r.kind == StageKind::Exchanger || !r.heat) continue;
+    try {
+      r.equilibrium =
+          equilibrium_record(mech, r.inlet, r.outlet, *r.heat, basis, options.equilibrium);
+      if (r.equilibrium) {
+        T_lo = std::min(T_lo, r.equilibrium->T_ad_eq);
+        T_hi = std::max(T_hi, r.equilibrium->T_ad_eq);
+      }
+    } catch (const std::exception& e) {
+      result.warnings.push_back(
+          fmt::format("stage {}: equilibrium record not computed: {}", r.id, e.what()));
+    }
+  }
+  // A margin around what the train spans, so the curve frames the paths.
+  const double margin = std::max(20.0, 0.1 * (T_hi - T_lo));
+  T_lo = std::max(options.equilibrium.T_min, T_lo - margin);
+  T_hi = std::min(options.equilibrium.T_max, T_hi + margin);
+  const int n = std::max(2, options.curve_points);
+  try {
+    result.equilibrium_curve = equilibrium_curve(
+        mech, c.feed, basis, {T_lo, T_hi, (T_hi - T_lo) / (n - 1)}, {}, options.equilibrium);
+    double X_hi = basis.conversion(c.feed);
+    for (const auto& p : result.equilibrium_curve) X_hi = std::max(X_hi, p.X_eq);
+    const double X_lo = basis.conversion(c.feed);
+    if (X_hi > X_lo) {
+      // Stop short of the curve's top, where T_opt runs off the window.
+      const double span = X_hi - X_lo;
+      for (auto& p : max_rate_locus(mech, c.feed, basis, X_lo + 0.01 * span, X_hi - 0.01 * span, n,
+                                    T_lo, T_hi, options.equilibrium))
+        if (p.interior) result.max_rate_locus.push_back(p);
+    }
+  } catch (const std::exception& e) {
+    result.warnings.push_back(fmt::format("equilibrium curve not computed: {}", e.what()));
+  }
+}
+
+// What each reactor stage can reach at any size (StageReach), and what a
+// designer must be told about it: a sized bed whose conversion peaks
+// inside it, a rated bed already past its peak.
+void add_reaches(const Case& c, const TrainOptions& options, TrainResult& result) {
+  const Mechanism& mech = c.mechanism;
+  const ConversionBasis basis = c.conversion_basis();
+  TrainWorkspace ws;
+  for (auto& r : result.stages) {
+    if (r.kind == StageKind::Exchanger || !r.heat) continue;
+    ReactorSpec spec;
+    spec.id = r.id;
+    spec.type = r.kind == StageKind::Cstr ? ReactorType::Cstr : ReactorType::Pfr;
+    spec.heat = *r.heat;
+    spec.bulk_density = r.bulk_density;
+    try {
+      r.reach = r.kind == StageKind::Cstr
+                    ? cstr_reach(mech, spec, r.inlet, basis, ws.cstr(), options.cstr)
+                    : pfr_reach(mech, spec, r.inlet, basis, ws.pfr(), options.pfr);
+    } catch (const std::exception& e) {
+      result.warnings.push_back(
+          fmt::format("stage {}: what it can reach at any size not computed: {}", r.id, e.what()));
+      continue;
+    }
+    const StageReach& h = *r.reach;
+    if (!h.peak_inside() || !h.V_at_X_max || !r.volume) continue;
+    const char* what = r.kind == StageKind::Cstr ? "tank" : "bed";
+    if (r.sized && *r.volume < *h.V_at_X_max)
+      result.warnings.push_back(fmt::format(
+          "stage {}: sized at the first point where X = {:.4f}; a larger {} raises X only up to "
+          "{:.4f} at V = {:.4g} m3, and beyond that gives conversion back, towards X = {:.4f}",
+          r.id, r.conversion, what, h.X_max, *h.V_at_X_max, h.X_end));
+    else if (*r.volume > *h.V_at_X_max * (1 + 1e-6))
+      result.warnings.push_back(fmt::format(
+          "stage {}: this {} is past the most it can reach (X = {:.4f} at V = {:.4g} m3) and "
+          "gives conversion back: a smaller {} would convert more",
+          r.id, what, h.X_max, *h.V_at_X_max, what));
+  }
+}
+
+}  // namespace
+
+TrainWorkspace::TrainWorkspace()
+    : ctx_(std::make_unique<SunContext>()),
+      pfr_(std::make_unique<PfrWorkspace>(*ctx_)),
+      cstr_(std::make_unique<CstrWorkspace>(*ctx_)),
+      pfr_batch_(std::make_unique<PfrBatchWorkspace>(*ctx_)) {}
+TrainWorkspace::~TrainWorkspace() = default;
+TrainWorkspace::TrainWorkspace(TrainWorkspace&&) noexcept = default;
+TrainWorkspace& TrainWorkspace::operator=(TrainWorkspace&&) noexcept = default;
+
+TrainResult run_train(const Case& c, const TrainOptions& options) {
+  TrainWorkspace ws;  // one per run, shared by every tubular stage
+  return run_train(c, options, ws);
+}
+
+TrainResult run_train(const Case& c, const TrainOptions& options, TrainWorkspace& ws) {
+  const Mechanism& mech = c.mechanism;
+  const ConversionBasis basis = c.conversion_basis();
+
+  TrainResult result;
+  result.title = c.title;
+  for (const auto& s : mech.species()) result.species.push_back(s.id);
+  result.key = mech.species()[c.key].id;
+  result.feed = c.feed;
+  result.warnings = c.warnings;
+
+  Stream stream = c.feed;
+  for (const auto& spec : c.train) {
+    StageResult r = std::visit(
+        [&](const auto& s) -> StageResult {
+          using T = std::decay_t<decltype(s)>;
+          if constexpr (std::is_same_v<T, ExchangerSpec>) {
+            return run_exchanger(mech, s, stream, basis);
+          } else if (s.type == ReactorType::Pfr) {
+            return run_pfr(mech, s, stream, basis, ws.pfr(), options.pfr);
+          } else {
+            CstrOptions o = options.cstr;
+            o.guesses = {};
+            for (const auto& w : options.warm_starts)
+              if (w.stage == s.id) o.guesses = w.states;
+            return run_cstr(mech, s, stream, basis, ws.cstr(), o);
+          }
+        },
+        spec);
+    for (const auto& w : r.warnings) result.warnings.push_back(w);
+    stream = r.outlet;
+    result.stages.push_back(std::move(r));
+  }
+  result.outlet = stream;
+  result.conversion = basis.conversion(stream);
+  if (options.equilibrium_views) add_equilibrium_views(c, options, result);
+  return result;
+}
+
+void set_warm_starts(const TrainResult& result, std::vector<CstrWarmStart>& warm_starts) {
+  std::size_t k = 0;
+  for (const auto& r : result.stages) {
+    if (r.kind != StageKind::Cstr) continue;
+    if (k == warm_starts.size()) warm_starts.emplace_back();
+    warm_starts[k].stage = r.id;
+    warm_starts[k].states = r.steady_states;
+    ++k;
+  }
+  warm_starts.resize(k);
+}
+
+void add_equilibrium_views(const Case& c, const TrainOptions& options, TrainResult& result) {
+  add_equilibrium_records(c, options, result);
+  add_reaches(c, options, result);
+  result.levenspiel = levenspiel_curves(c.mechanism, c.key, c.feed.F[c.key], result.stages);
+}
+
+}  // namespace rxtrain

@@ -1,0 +1,504 @@
+#include "rxtrain/studies/optimize.hpp"
+
+#include <fmt/format.h>
+
+#include <algorithm>
+#include <cmath>
+#include <set>
+#include <stdexcept>
+
+#include "optimize/adiabatic_bed.hpp"
+#include "optimize/layout_optimizer.hpp"
+#include "rxtrain/analysis/train_warnings.hpp"
+#include "rxtrain/base/error.hpp"
+#include "rxtrain/studies/staging.hpp"
+#include "rxtrain/flowsheet/train.hpp"
+
+namespace rxtrain {
+
+namespace {
+
+constexpr double kZeroCelsius = 273.15;  // K
+// A limit counts as active within this (K): the optimizer settles inlet
+// temperatures to better than 1 mK, so 0.01 K tells a bound from a near miss.
+constexpr double kActiveTolerance = 0.01;
+// A train "reaches" the target within this conversion.
+constexpr double kConversionTolerance = 1e-6;
+
+std::string celsius(double T) { return fmt::format("{:.2f} °C", T - kZeroCelsius); }
+
+// The stage ids of the layouts: B1.., C1.. (H1.. heating), E0; each moved
+// off any species or reaction id of the case by a suffix.
+struct Ids {
+  std::set<std::string> taken;
+  std::string operator()(const std::string& base) const {
+    std::string id = base;
+    while (taken.count(id)) id += "_opt";
+    return id;
+  }
+};
+
+struct Setup {
+  const Case& c;
+  const Mechanism& mech;
+  ConversionBasis basis;
+  int j = 0;
+  double target = 0;
+  double T_lo = 0, T_hi = 0;
+  bool exothermic = true;
+  bool catalyst = true;
+  std::optional<double> bulk_density;
+  Ids ids;
+};
+
+double T_opt_or(const Setup& s, const DesignOptions& o, double X, double fallback) {
+  try {
+    const auto p =
+        max_rate_temperature(s.mech, s.c.feed, s.basis, X, s.T_lo, s.T_hi, o.equilibrium);
+    if (p) return std::clamp(p->T, s.T_lo, s.T_hi);
+  } catch (const std::exception&) {
+    // A start is only a start: the fallback does.
+  }
+  return fallback;
+}
+
+std::vector<detail::StartLayout> starts_for(const Setup& s, const DesignOptions& o, int N,
+                                            const std::vector<const StagingResult*>& staged) {
+  const double X0 = s.basis.conversion(s.c.feed);
+  std::vector<detail::StartLayout> out;
+  auto split = [&](bool front) {
+    std::vector<double> X;
+    for (int n = 1; n <= N; ++n) {
+      const double f = static_cast<double>(n) / N;
+      X.push_back(X0 + (s.target - X0) * (front ? 1 - (1 - f) * (1 - f) : f));
+    }
+    return X;
+  };
+  auto at_T_opt = [&](const std::vector<double>& X_out) {
+    detail::StartLayout l;
+    l.X_out = X_out;
+    double X = X0;
+    for (int n = 0; n < N; ++n) {
+      l.T_in.push_back(T_opt_or(s, o, X, 0.5 * (s.T_lo + s.T_hi)));
+      X = X_out[n];
+    }
+    return l;
+  };
+  const auto equal = split(false), front = split(true);
+  out.push_back(at_T_opt(equal));
+  if (N > 1) out.push_back(at_T_opt(front));
+  out.push_back({std::vector<double>(N, std::clamp(s.c.feed.T, s.T_lo, s.T_hi)), equal});
+  out.push_back({std::vector<double>(N, 0.5 * (s.T_lo + s.T_hi)), equal});
+  for (const StagingResult* r : staged) {
+    if (!r || !r->target_reached || static_cast<int>(r->beds.size()) != N) continue;
+    detail::StartLayout l;
+    for (const auto& b : r->beds) {
+      l.T_in.push_back(b.T_in);
+      l.X_out.push_back(b.X_out);
+    }
+    out.push_back(std::move(l));
+  }
+  return out;
+}
+
+std::string infeasible_text(const Setup& s, const detail::LayoutProblem& p,
+                            const detail::LayoutState& st) {
+  if (!st.evaluable)
+    return "no layout could be evaluated (the energy balance or the equilibrium of a bed has no "
+           "solution)";
+  int worst = 0;
+  for (int k = 1; k < p.n_constraints(); ++k)
+    if (st.constraints[k] > st.constraints[worst]) worst = k;
+  if (worst == 2 * p.beds) {
+    const int n = p.beds - 1;
+    return fmt::format(
+        "the best layout found still falls short: bed {} can reach at most X = {:.4f} (its "
+        "adiabatic equilibrium, fed at {} and X = {:.4f}) while the target is {:.4f}",
+        p.beds, st.X_in[n] + p.s_max * (st.X_e[n] - st.X_in[n]), celsius(st.T_in[n]), st.X_in[n],
+        s.target);
+  }
+  const int n = worst / 2;
+  if (worst % 2 == 0)
+    return fmt::format("the best layout found still {} {} = {}: bed {} ends at {}",
+                       s.exothermic ? "passes" : "falls below", s.exothermic ? "T_max" : "T_in_min",
+                       celsius(s.exothermic ? s.T_hi : s.T_lo), n + 1, celsius(st.T_out[n]));
+  return fmt::format("the best layout found feeds bed {} beyond equilibrium ({} at X = {:.4f})",
+                     n + 1, celsius(st.T_in[n]), st.X_in[n]);
+}
+
+DesignLayout make_layout(const Setup& s, const detail::AdiabaticBedModel& model,
+                         const detail::LayoutProblem& p, const detail::LayoutSolution& sol,
+                         const DesignOptions& o) {
+  DesignLayout l;
+  l.beds = p.beds;
+  l.evaluations = sol.evaluations;
+  l.starts = sol.starts;
+  l.polish_rounds = sol.polish_rounds;
+  l.feasible = sol.feasible;
+  const auto& st = sol.state;
+  if (!l.feasible || !st.evaluable) {
+    l.feasible = false;
+    l.why = infeasible_text(s, p, st);
+    return l;
+  }
+  const char* exchanger = s.exothermic ? "C" : "H";
+  for (int n = 0; n < p.beds; ++n) {
+    DesignBed b;
+    b.id = s.ids(fmt::format("B{}", n + 1));
+    b.T_in = st.T_in[n];
+    b.T_out = st.T_out[n];
+    b.X_in = st.X_in[n];
+    b.X_out = st.X_out[n];
+    b.X_ad_eq = st.X_e[n];
+    if (s.catalyst) {
+      b.catalyst_mass = st.size[n];
+      b.volume = st.size[n] / *s.bulk_density;
+    } else {
+      b.volume = st.size[n];
+    }
+    b.rate_in = model.rate(b.X_in, b.T_in);
+    b.rate_out = model.rate(b.X_out, b.T_out);
+    l.bed.push_back(b);
+    l.total_volume += b.volume;
+    if (b.catalyst_mass) l.total_catalyst = l.total_catalyst.value_or(0.0) + *b.catalyst_mass;
+    if (n > 0) {
+      const DesignBed& a = l.bed[n - 1];
+      DesignExchanger x;
+      x.id = s.ids(fmt::format("{}{}", exchanger, n));
+      x.T_in = a.T_out;
+      x.T_out = b.T_in;
+      x.duty = model.enthalpy_flow(a.X_out, b.T_in) - model.enthalpy_flow(a.X_out, a.T_out);
+      l.total_duty += x.duty;
+      l.coolers.push_back(x);
+    }
+  }
+  const double X0 = s.basis.conversion(s.c.feed);
+  l.feed_conditioning.id = s.ids("E0");
+  l.feed_conditioning.T_in = s.c.feed.T;
+  l.feed_conditioning.T_out = l.bed.front().T_in;
+  l.feed_conditioning.duty =
+      model.enthalpy_flow(X0, l.bed.front().T_in) - model.enthalpy_flow(X0, s.c.feed.T);
+
+  // Active constraints (within kActiveTolerance).
+  for (int n = 0; n < p.beds; ++n) {
+    const DesignBed& b = l.bed[n];
+    const std::string bed = fmt::format("B{}", n + 1);
+    if (n == 0 && p.fixed_first) {
+      l.active_constraints.push_back("B1.T_in = T_feed (fixed)");
+    } else {
+      if (b.T_in <= s.T_lo + kActiveTolerance)
+        l.active_constraints.push_back(bed + ".T_in = T_in_min");
+      if (b.T_in >= s.T_hi - kActiveTolerance)
+        l.active_constraints.push_back(bed + ".T_in = T_max");
+    }
+    if (s.exothermic && b.T_out >= s.T_hi - kActiveTolerance)
+      l.active_constraints.push_back(bed + ".T_max = T_max");
+    if (!s.exothermic && b.T_out <= s.T_lo + kActiveTolerance)
+      l.active_constraints.push_back(bed + ".T_min = T_in_min");
+    if (n < p.beds - 1 && b.X_out >= b.X_in + o.s_max * (b.X_ad_eq - b.X_in) - 1e-9)
+      l.active_constraints.push_back(bed + ".X_out = X_ad_eq");
+  }
+  return l;
+}
+
+Case with_train(const Case& c, std::vector<StageSpec> train) {
+  Case t = c;
+  t.train = std::move(train);
+  return t;
+}
+
+AsWrittenDesign as_written(const Setup& s, const DesignOptions& o) {
+  AsWrittenDesign a;
+  TrainOptions to;
+  to.pfr = o.pfr;
+  to.equilibrium_views = false;
+  TrainResult r;
+  try {
+    r = run_train(s.c, to);
+  } catch (const InputError& e) {
+    a.note = fmt::format("does not run: {}", e.message());
+    return a;
+  } catch (const InfeasibleError& e) {
+    a.note = fmt::format("does not run: {}", e.message());
+    return a;
+  } catch (const SolverError& e) {
+    a.note = fmt::format("does not run: {}", e.what());
+    return a;
+  }
+  a.ran = true;
+  a.conversion = r.conversion;
+  a.reaches_target = r.conversion >= s.target - kConversionTolerance;
+  a.within_limits = true;
+  bool all_mass = true;
+  std::vector<std::string> notes;
+  for (const auto& st : r.stages) {
+    if (st.kind == StageKind::Exchanger) {
+      a.total_duty += st.duty;
+      continue;
+    }
+    ++a.reactors;
+    a.total_volume += st.volume.value_or(0.0);
+    if (st.catalyst_mass)
+      a.total_catalyst = a.total_catalyst.value_or(0.0) + *st.catalyst_mass;
+    else
+      all_mass = false;
+    if (st.T_max > s.T_hi + kActiveTolerance) {
+      a.within_limits = false;
+      notes.push_back(fmt::format("{} reaches {}, above T_max", st.id, celsius(st.T_max)));
+    }
+    if (st.T_min < s.T_lo - kActiveTolerance) {
+      a.within_limits = false;
+      notes.push_back(fmt::format("{} runs down to {}, below T_in_min", st.id, celsius(st.T_min)));
+    }
+  }
+  if (!all_mass) a.total_catalyst.reset();
+  if (!a.reaches_target)
+    notes.insert(notes.begin(), fmt::format("reaches X = {:.4f}, short of the target {:.4f}",
+                                            a.conversion, s.target));
+  for (const auto& n : notes) a.note += (a.note.empty() ? "" : "; ") + n;
+  return a;
+}
+
+StagingDesign staging_of(const StagingResult& r) {
+  StagingDesign d;
+  d.reached = r.target_reached;
+  d.note = r.staged_note;
+  d.beds = r.target_reached ? r.beds_needed : static_cast<int>(r.beds.size());
+  bool all_mass = true;
+  for (const auto& b : r.beds) {
+    d.total_volume += b.volume;
+    if (b.catalyst_mass)
+      d.total_catalyst = d.total_catalyst.value_or(0.0) + *b.catalyst_mass;
+    else
+      all_mass = false;
+  }
+  if (!all_mass) d.total_catalyst.reset();
+  return d;
+}
+
+}  // namespace
+
+std::string DesignOptions::validate() const {
+  if (beds && max_beds) return "beds and max_beds exclude each other";
+  if (beds && (*beds < 1 || *beds > 20))
+    return fmt::format("beds must lie between 1 and 20, got {}", *beds);
+  if (max_beds && (*max_beds < 1 || *max_beds > 20))
+    return fmt::format("max_beds must lie between 1 and 20, got {}", *max_beds);
+  if (quadrature_panels < 1 || quadrature_nodes < 2 || quadrature_nodes > 64)
+    return "quadrature_panels must be >= 1 and quadrature_nodes between 2 and 64";
+  if (!(s_min > 0 && s_min < s_max && s_max < 1)) return "need 0 < s_min < s_max < 1";
+  if (!(T_settle > 0)) return "T_settle must be positive";
+  if (max_evaluations < 10) return "max_evaluations must be at least 10";
+  if (!(feasibility_tolerance > 0)) return "feasibility_tolerance must be positive";
+  if (auto e = pfr.cvode.validate(); !e.empty()) return "pfr.cvode: " + e;
+  if (auto e = equilibrium.validate(); !e.empty()) return "equilibrium: " + e;
+  return {};
+}
+
+std::vector<StageSpec> design_train(const Case& c, const DesignResult& d,
+                                    const DesignLayout& layout) {
+  std::vector<StageSpec> train;
+  const SourceLocation where{c.file, 0, 0};
+  if (!d.fixed_feed_T && layout.feed_conditioning.T_out != c.feed.T) {
+    ExchangerSpec x;
+    x.id = layout.feed_conditioning.id;
+    x.T_out = layout.feed_conditioning.T_out;
+    x.where = where;
+    train.push_back(x);
+  }
+  for (std::size_t n = 0; n < layout.bed.size(); ++n) {
+    if (n > 0) {
+      ExchangerSpec x;
+      x.id = layout.coolers[n - 1].id;
+      x.T_out = layout.coolers[n - 1].T_out;
+      x.where = where;
+      train.push_back(x);
+    }
+    ReactorSpec r;
+    r.id = layout.bed[n].id;
+    r.type = ReactorType::Pfr;
+    r.heat = HeatMode::Adiabatic;
+    r.bulk_density = d.bulk_density;
+    // As the loader holds a bed given by its catalyst: both the mass and
+    // the volume it fills.
+    if (d.catalyst_objective) r.catalyst_mass = layout.bed[n].catalyst_mass;
+    r.volume = layout.bed[n].volume;
+    r.where = where;
+    train.push_back(r);
+  }
+  return train;
+}
+
+DesignResult optimize_design(const Case& c, const DesignOptions& options) {
+  if (const auto e = options.validate(); !e.empty())
+    throw std::invalid_argument("DesignOptions: " + e);
+  const Mechanism& mech = c.mechanism;
+  if (!c.target_conversion)
+    throw InputError(c.target_where,
+                     "the case has no train-level target; optimize sizes the beds to one: add "
+                     "\"target: {conversion: 0.92}\" at the top level of the case");
+  if (!c.limits.T_max || !c.limits.T_in_min)
+    throw InputError(c.limits.where,
+                     "optimize needs the catalyst's temperature window: add \"limits: {T_max: "
+                     "..., T_in_min: ...}\" at the top level of the case (the bounds of every "
+                     "bed inlet and of every temperature in a bed)");
+  const int j = key_reaction(mech, c.key);
+  const std::string key = mech.species()[c.key].id;
+  if (mech.n_reactions() != 1 || j < 0 || !mech.reactions()[j].reversible) {
+    const Reaction& rx = mech.reactions()[mech.n_reactions() > 1 ? 1 : std::max(j, 0)];
+    throw InputError(
+        rx.where,
+        mech.n_reactions() != 1
+            ? fmt::format("optimize handles one reversible reaction that consumes the key {}; "
+                          "the case has {} reactions (this is the second): with one reaction "
+                          "the conversion alone fixes the composition along the beds",
+                          key, mech.n_reactions())
+            : fmt::format("optimize needs a reversible reaction that consumes the key {}: "
+                          "reaction {} ({}) is irreversible, so a single bed at T_max would "
+                          "do; write it with <=> and give its equilibrium",
+                          key, rx.id, rx.equation));
+  }
+  const ReactorSpec* first = nullptr;
+  for (const auto& sp : c.train)
+    if ((first = std::get_if<ReactorSpec>(&sp))) break;
+  const bool catalyst = mech.reactions()[j].rate.basis == RateBasis::Catalyst;
+  if (catalyst && (!first || !first->bulk_density))
+    throw InputError(first ? first->where : SourceLocation{c.file, 0, 0},
+                     fmt::format("reaction {} has a per-catalyst rate: optimize gives the beds "
+                                 "the first reactor's bulk_density; give it one (e.g. "
+                                 "bulk_density: 750 kg/m3)",
+                                 mech.reactions()[j].id));
+  if (options.fixed_feed_T && (c.feed.T < *c.limits.T_in_min || c.feed.T > *c.limits.T_max))
+    throw InputError(
+        c.limits.where,
+        fmt::format("--fixed-feed-T: the feed at {} lies outside the window "
+                    "[T_in_min, T_max] = [{}, {}] that bed 1's inlet must keep",
+                    celsius(c.feed.T), celsius(*c.limits.T_in_min), celsius(*c.limits.T_max)));
+
+  Setup s{c,
+          mech,
+          c.conversion_basis(),
+          j,
+          *c.target_conversion,
+          *c.limits.T_in_min,
+          *c.limits.T_max,
+          mech.dH(j, c.feed.T) < 0,
+          catalyst,
+          first ? first->bulk_density : std::nullopt,
+          Ids{}};
+  for (const auto& sp : mech.species()) s.ids.taken.insert(sp.id);
+  for (const auto& rx : mech.reactions()) s.ids.taken.insert(rx.id);
+
+  DesignResult res;
+  res.title = c.title;
+  res.key = key;
+  res.target = s.target;
+  res.limits = c.limits;
+  res.exothermic = s.exothermic;
+  res.catalyst_objective = catalyst;
+  res.feed_T = c.feed.T;
+  res.bulk_density = s.bulk_density;
+  res.fixed_feed_T = options.fixed_feed_T;
+  res.warnings = c.warnings;
+
+  const double X0 = s.basis.conversion(c.feed);
+  if (!(s.target > X0))
+    throw InputError(c.target_where, "the target conversion is not above the feed's");
+
+  // The staging policy's answers: a comparison and starts. A failure
+  // there (e.g. a target it cannot reach) takes nothing from the optimum.
+  std::optional<StagingResult> staged_inlet, staged_optimal;
+  if (first) {
+    try {
+      StagingOptions so;
+      so.pfr = options.pfr;
+      so.equilibrium = options.equilibrium;
+      staged_inlet = run_staging(c, so);
+      so.return_to = ReturnTo::Optimal;
+      staged_optimal = run_staging(c, so);
+    } catch (const std::exception& e) {
+      res.warnings.push_back(fmt::format("the staging policy was not run: {}", e.what()));
+    }
+  }
+
+  const detail::AdiabaticBedModel model(mech, c.feed, s.basis, j, options.quadrature_panels,
+                                        options.quadrature_nodes, options.equilibrium);
+  int reactors = 0;
+  for (const auto& sp : c.train) reactors += std::holds_alternative<ReactorSpec>(sp) ? 1 : 0;
+  std::vector<int> counts;
+  if (options.max_beds)
+    for (int n = 1; n <= *options.max_beds; ++n) counts.push_back(n);
+  else
+    counts.push_back(options.beds.value_or(std::max(reactors, 1)));
+
+  std::vector<DesignLayout> layouts;
+  std::string last_why;
+  for (int N : counts) {
+    detail::LayoutProblem p;
+    p.model = &model;
+    p.beds = N;
+    p.fixed_first = options.fixed_feed_T;
+    p.T_feed = c.feed.T;
+    p.X0 = X0;
+    p.target = s.target;
+    p.T_lo = s.T_lo;
+    p.T_hi = s.T_hi;
+    p.exothermic = s.exothermic;
+    p.s_min = options.s_min;
+    p.s_max = options.s_max;
+    const auto starts = starts_for(
+        s, options, N,
+        {staged_inlet ? &*staged_inlet : nullptr, staged_optimal ? &*staged_optimal : nullptr});
+    const auto sol = detail::solve_layout(p, starts, options, options.progress);
+    layouts.push_back(make_layout(s, model, p, sol, options));
+    if (!layouts.back().feasible) last_why = layouts.back().why;
+  }
+  const DesignLayout* best = nullptr;
+  for (const auto& l : layouts) {
+    if (!l.feasible) continue;
+    const double total = catalyst ? *l.total_catalyst : l.total_volume;
+    const double best_total = best ? (catalyst ? *best->total_catalyst : best->total_volume) : 0.0;
+    if (!best || total < best_total * (1 - 1e-9)) best = &l;
+  }
+  if (!best)
+    throw InfeasibleError(
+        c.target_where,
+        fmt::format("no layout of {} reaches the target X = {:.4f} within [T_in_min, T_max] = "
+                    "[{}, {}]: {}",
+                    counts.size() == 1 ? fmt::format("{} adiabatic beds", counts.front())
+                                       : fmt::format("1 to {} adiabatic beds", counts.back()),
+                    s.target, celsius(s.T_lo), celsius(s.T_hi), last_why));
+  res.best = *best;
+  if (options.max_beds) res.by_bed_count = layouts;
+
+  // The independent check: the layout as a train, run by run_train.
+  TrainOptions to;
+  to.pfr = options.pfr;
+  to.equilibrium_views = false;
+  const Case trial = with_train(c, design_train(c, res, res.best));
+  const TrainResult check = run_train(trial, to);
+  res.best.checked_conversion = check.conversion;
+  if (std::abs(check.conversion - s.target) > 1e-5)
+    res.warnings.push_back(fmt::format(
+        "the optimum's beds run by the train solver reach X = {:.6f}, not the target {:.6f}: "
+        "the optimizer's quadrature and the ODE solver disagree; treat the sizes with care",
+        check.conversion, s.target));
+  // The adiabatic temperature rise against T_max is worth seeing beside
+  // the optimum; the train's other design warnings (rules of thumb on bed
+  // length and space time) are not: the optimum sizes the beds itself.
+  if (const auto dT = adiabatic_temperature_change(c))
+    if (s.exothermic && c.feed.T + *dT > s.T_hi)
+      res.warnings.push_back(fmt::format(
+          "the adiabatic temperature rise of the feed at full conversion of {} is {:.1f} K "
+          "(from {} to {}), above T_max = {}: the beds are cut short by T_max or equilibrium "
+          "and the stream is cooled between them",
+          key, *dT, celsius(c.feed.T), celsius(c.feed.T + *dT), celsius(s.T_hi)));
+
+  if (options.compare) {
+    res.as_written = as_written(s, options);
+    if (staged_inlet) res.staging = staging_of(*staged_inlet);
+  }
+  return res;
+}
+
+}  // namespace rxtrain

@@ -1,0 +1,156 @@
+#include "adiabatic_bed.hpp"
+
+#include <fmt/format.h>
+
+#include <algorithm>
+#include <cmath>
+#include <limits>
+#include <numbers>
+
+#include "rxtrain/base/error.hpp"
+
+namespace rxtrain::detail {
+
+void gauss_legendre(int n, std::vector<double>& nodes, std::vector<double>& weights) {
+  nodes.assign(n, 0.0);
+  weights.assign(n, 0.0);
+  for (int i = 0; i < (n + 1) / 2; ++i) {
+    // Tricomi's first guess for the i-th root, then Newton on P_n.
+    double x = std::cos(std::numbers::pi * (i + 0.75) / (n + 0.5));
+    double dp = 1;
+    for (int it = 0; it < 100; ++it) {
+      double p0 = 1, p1 = x;
+      for (int k = 2; k <= n; ++k) {
+        const double p2 = ((2 * k - 1) * x * p1 - (k - 1) * p0) / k;
+        p0 = p1;
+        p1 = p2;
+      }
+      if (n == 1) p0 = 1;
+      dp = n * (x * p1 - p0) / (x * x - 1);
+      const double dx = p1 / dp;
+      x -= dx;
+      if (std::abs(dx) < 1e-16) break;
+    }
+    nodes[i] = -x;
+    nodes[n - 1 - i] = x;
+    weights[i] = weights[n - 1 - i] = 2 / ((1 - x * x) * dp * dp);
+  }
+}
+
+AdiabaticBedModel::AdiabaticBedModel(const Mechanism& mech, const Stream& feed,
+                                     const ConversionBasis& basis, int j, int panels, int nodes,
+                                     const EquilibriumOptions& equilibrium)
+    : mech_(mech), feed_(feed), basis_(basis), j_(j), panels_(panels), equilibrium_(equilibrium) {
+  const auto& nu = mech.reactions()[j].nu;
+  xi_per_X_ = basis.F_key_feed / std::abs(nu[basis.key]);
+  // X at which the first reactant runs out.
+  X_cap_ = std::numeric_limits<double>::infinity();
+  for (int i = 0; i < mech.n_species(); ++i)
+    if (nu[i] < 0) X_cap_ = std::min(X_cap_, feed.F[i] / (-nu[i] * xi_per_X_));
+  gauss_legendre(nodes, nodes_, weights_);
+}
+
+std::vector<double> AdiabaticBedModel::flows(double X) const {
+  std::vector<double> F = feed_.F;
+  const auto& nu = mech_.reactions()[j_].nu;
+  const double xi = xi_per_X_ * X;
+  for (std::size_t i = 0; i < F.size(); ++i) F[i] = std::max(F[i] + nu[i] * xi, 0.0);
+  return F;
+}
+
+double AdiabaticBedModel::enthalpy_flow(double X, double T) const {
+  const auto F = flows(X);
+  return mech_.sensible_enthalpy_flow(T, F.data());
+}
+
+double AdiabaticBedModel::temperature(double X_in, double T_in, double X) const {
+  if (X == X_in) return T_in;
+  const double dH298 = mech_.reactions()[j_].dH_298;
+  const auto F_in = flows(X_in);
+  const auto F = flows(X);
+  const double H = mech_.sensible_enthalpy_flow(T_in, F_in.data()) + xi_per_X_ * (X_in - X) * dH298;
+  // First guess: the heat of reaction at the inlet over the inlet's heat
+  // capacity flow; Newton on the sensible enthalpy (monotone in T).
+  double T = T_in - xi_per_X_ * (X - X_in) * mech_.dH(j_, T_in) /
+                        mech_.heat_capacity_flow(T_in, F_in.data());
+  if (!(T > 0)) T = 0.5 * T_in;
+  for (int it = 0; it < 60; ++it) {
+    const double f = mech_.sensible_enthalpy_flow(T, F.data()) - H;
+    const double dT = f / mech_.heat_capacity_flow(T, F.data());
+    double T_next = T - dT;
+    if (!(T_next > 0)) T_next = 0.5 * T;
+    if (std::abs(T_next - T) <= 1e-14 * T) return T_next;
+    T = T_next;
+  }
+  throw SolverError(fmt::format(
+      "optimize: the energy balance of an adiabatic bed from X = {:.6f}, T = {:.2f} K has no "
+      "temperature at X = {:.6f}",
+      X_in, T_in, X));
+}
+
+double AdiabaticBedModel::rate(double X, double T) const {
+  const auto F = flows(X);
+  std::vector<double> r(mech_.n_reactions());
+  mech_.rates(T, feed_.P, F.data(), r.data());
+  return r[j_];
+}
+
+double AdiabaticBedModel::equilibrium_end(double X_in, double T_in) const {
+  const Stream inlet{T_in, feed_.P, flows(X_in)};
+  const auto eq =
+      adiabatic_equilibrium(mech_, inlet, HeatMode::Adiabatic, basis_, {}, equilibrium_);
+  if (!eq) throw SolverError("optimize: the key reaction has no equilibrium");
+  double X_e = eq->X;
+  // Refine on this line: r > 0 short of equilibrium, < 0 beyond it, for
+  // either sign of dH (the adiabatic line crosses the equilibrium curve
+  // once). Regula falsi (Illinois) inside a bracket around the estimate.
+  auto g = [&](double X) { return rate(X, temperature(X_in, T_in, X)); };
+  const double X_top = std::min(X_cap_, 1.0);
+  for (double d = 1e-10; d < 1e-3; d *= 10) {
+    double lo = std::max(X_e - d, std::min(X_in, X_e)), hi = std::min(X_e + d, X_top);
+    if (!(hi > lo)) break;
+    double g_lo = g(lo), g_hi = g(hi);
+    if (!(g_lo > 0 && g_hi < 0)) continue;
+    int side = 0;
+    for (int it = 0; it < 100 && hi - lo > 2 * std::numeric_limits<double>::epsilon() * hi; ++it) {
+      const double m = (lo * g_hi - hi * g_lo) / (g_hi - g_lo);
+      const double g_m = g(m);
+      if (g_m == 0) return m;
+      if (g_m > 0) {
+        lo = m;
+        g_lo = g_m;
+        if (side == 1) g_hi /= 2;
+        side = 1;
+      } else {
+        hi = m;
+        g_hi = g_m;
+        if (side == -1) g_lo /= 2;
+        side = -1;
+      }
+    }
+    return 0.5 * (lo + hi);
+  }
+  return X_e;
+}
+
+double AdiabaticBedModel::size(double X_in, double T_in, double X_out, double X_e) const {
+  if (!(X_out > X_in)) return 0.0;
+  const double u_a = -std::log(X_e - X_in);
+  const double u_b = -std::log(X_e - X_out);
+  const double h = (u_b - u_a) / panels_;
+  double sum = 0;
+  for (int p = 0; p < panels_; ++p) {
+    const double mid = u_a + (p + 0.5) * h;
+    for (std::size_t k = 0; k < nodes_.size(); ++k) {
+      const double u = mid + 0.5 * h * nodes_[k];
+      const double gap = std::exp(-u);  // X_e - X = dX/du
+      const double X = X_e - gap;
+      const double r = rate(X, temperature(X_in, T_in, X));
+      if (!(r > 0)) return std::numeric_limits<double>::infinity();
+      sum += weights_[k] * 0.5 * h * gap / r;
+    }
+  }
+  return xi_per_X_ * sum;
+}
+
+}  // namespace rxtrain::detail

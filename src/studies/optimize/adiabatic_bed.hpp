@@ -1,0 +1,66 @@
+// Internal to the design optimizer (design.hpp): one adiabatic bed of a
+// single reaction, with the overall key conversion X as the independent
+// variable. SI units.
+//
+// Composition: F(X) = F_feed + nu xi(X), xi = F_key,feed X / |nu_key|.
+// Adiabatic line through (X_in, T_in), from the steady-flow energy balance
+// (the same one the PFR integrates, written for the whole bed):
+//   sum_i F_i(X) hs_i(T) + xi(X) dH_298 = sum_i F_i(X_in) hs_i(T_in) + xi(X_in) dH_298
+// (hs: sensible enthalpy; dH(T) = dH_298 + sum nu_i hs_i(T), Kirchhoff).
+// Bed size: W = F_key,feed / |nu_key| * integral dX / r(X, T(X)).
+#pragma once
+
+#include <optional>
+#include <vector>
+
+#include "rxtrain/models/equilibrium.hpp"
+#include "rxtrain/kinetics/mechanism.hpp"
+#include "rxtrain/chem/stream.hpp"
+
+namespace rxtrain::detail {
+
+class AdiabaticBedModel {
+ public:
+  // j: the reaction that carries the key (the mechanism's only one).
+  // panels x nodes: the Gauss-Legendre rule of size().
+  AdiabaticBedModel(const Mechanism& mech, const Stream& feed, const ConversionBasis& basis, int j,
+                    int panels, int nodes, const EquilibriumOptions& equilibrium);
+
+  std::vector<double> flows(double X) const;
+  // Highest X at which no flow is negative.
+  double X_cap() const { return X_cap_; }
+  // T at X on the adiabatic line through (X_in, T_in). Throws SolverError
+  // when the energy balance has no positive root.
+  double temperature(double X_in, double T_in, double X) const;
+  // Rate of the key reaction at (X, T), in its own basis.
+  double rate(double X, double T) const;
+  // Sensible enthalpy flow (W) of the stream at conversion X and T.
+  double enthalpy_flow(double X, double T) const;
+  // Where the adiabatic line from (X_in, T_in) meets equilibrium: the
+  // equilibrium module's adiabatic equilibrium point, refined on this line
+  // to the root of r (so X_e is this line's own, to round-off). Below X_in
+  // when the inlet lies beyond equilibrium. Throws SolverError when no
+  // equilibrium lies in the module's temperature window.
+  double equilibrium_end(double X_in, double T_in) const;
+  // Catalyst mass (kg, per-catalyst rates) or volume (m3) of the bed from
+  // X_in to X_out < X_e, by Gauss-Legendre quadrature in u = -ln(X_e - X).
+  // Infinity when the rate is not positive at a node.
+  double size(double X_in, double T_in, double X_out, double X_e) const;
+
+ private:
+  const Mechanism& mech_;
+  Stream feed_;
+  ConversionBasis basis_;
+  int j_;
+  double xi_per_X_;  // mol/s of reaction per unit conversion
+  double X_cap_ = 1;
+  std::vector<double> nodes_, weights_;  // on [-1, 1]
+  int panels_;
+  EquilibriumOptions equilibrium_;
+};
+
+// Gauss-Legendre nodes and weights on [-1, 1] (n >= 1), by Newton's method
+// on the Legendre polynomial P_n (Golub-Welsch would do as well).
+void gauss_legendre(int n, std::vector<double>& nodes, std::vector<double>& weights);
+
+}  // namespace rxtrain::detail

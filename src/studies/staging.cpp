@@ -1,0 +1,513 @@
+#include "rxtrain/studies/staging.hpp"
+
+#include <fmt/format.h>
+
+#include <algorithm>
+#include <cmath>
+#include <stdexcept>
+#include <type_traits>
+
+#include "rxtrain/analysis/train_warnings.hpp"
+#include "rxtrain/base/error.hpp"
+#include "rxtrain/stages/exchanger.hpp"
+
+namespace rxtrain {
+
+namespace {
+
+constexpr double kZeroCelsius = 273.15;  // K
+// A conversion counts as reached within this (absolute): CVODE's root on
+// the conversion lands within ~1e-10 of it.
+constexpr double kConversionTolerance = 1e-8;
+// A bed whose X_ad_eq lies no further than this above its inlet conversion
+// cannot progress.
+constexpr double kNoProgress = 1e-9;
+
+std::string celsius(double T) { return fmt::format("{:.2f} °C", T - kZeroCelsius); }
+
+// Where the train's conversion and temperature limit stand, shared by the
+// two halves of the check.
+struct Setup {
+  const Case& c;
+  const Mechanism& mech;
+  ConversionBasis basis;
+  double target = 0;
+  bool exothermic = true;
+  // The limit a bed's temperature moves towards: T_max (exothermic) or
+  // T_in_min (endothermic); empty when the case gives none.
+  std::optional<double> T_limit;
+  StagingLimit limit_kind = StagingLimit::TMax;
+  const char* limit_label = "T_max";
+};
+
+TrainResult empty_result(const Case& c) {
+  TrainResult r;
+  r.title = c.title;
+  for (const auto& s : c.mechanism.species()) r.species.push_back(s.id);
+  r.key = c.mechanism.species()[c.key].id;
+  r.feed = c.feed;
+  r.outlet = c.feed;
+  r.conversion = c.conversion_basis().conversion(c.feed);
+  return r;
+}
+
+void append(TrainResult& t, StageResult r, const ConversionBasis& basis) {
+  for (const auto& w : r.warnings) t.warnings.push_back(w);
+  t.outlet = r.outlet;
+  t.conversion = basis.conversion(r.outlet);
+  t.stages.push_back(std::move(r));
+}
+
+// Past the limit, in the direction the bed's temperature moves.
+bool beyond(const Setup& s, const StageResult& r) {
+  if (!s.T_limit) return false;
+  return s.exothermic ? r.T_max > *s.T_limit : r.T_min < *s.T_limit;
+}
+
+// The point where a tubular stage first meets the temperature limit: the
+// stage re-run with the limit as its stop temperature. `spec` sets the
+// volume or target of the re-run.
+std::optional<LimitPoint> limit_crossing(const Setup& s, const ReactorSpec& spec,
+                                         const Stream& inlet, const SunContext& ctx,
+                                         const PfrOptions& pfr) {
+  PfrOptions o = pfr;
+  o.stop_temperature = s.T_limit;
+  const StageResult r = run_pfr(s.mech, spec, inlet, s.basis, ctx, o);
+  if (std::abs(r.outlet.T - *s.T_limit) > 1e-6 * *s.T_limit &&
+      !(s.exothermic ? inlet.T >= *s.T_limit : inlet.T <= *s.T_limit))
+    return std::nullopt;
+  return LimitPoint{r.conversion, r.volume.value_or(0.0), r.outlet.T, false};
+}
+
+// " within T_max = 480.00 °C" / " without falling below T_in_min = ...".
+std::string within_limit(const Setup& s) {
+  return fmt::format(" {} {} = {}", s.exothermic ? "within" : "without falling below",
+                     s.limit_label, celsius(*s.T_limit));
+}
+
+// ---- the train as given ---------------------------------------------------
+
+void check_as_given(const Setup& s, const StagingOptions& o, const SunContext& ctx,
+                    StagingResult& res) {
+  const Mechanism& mech = s.mech;
+  res.as_given_run = empty_result(s.c);
+  res.as_given_run.warnings = s.c.warnings;
+  Stream stream = s.c.feed;
+  // A sized stage whose own target lies beyond its X_ad_eq: the walk stops.
+  std::string infeasible_stage;
+  // The last reactor that ran, with its spec and inlet.
+  const ReactorSpec* last_spec = nullptr;
+  Stream last_inlet;
+  std::optional<double> last_X_ad_eq;
+
+  for (const auto& spec : s.c.train) {
+    AsGivenStage a;
+    a.id = stage_id(spec);
+    a.T_in = stream.T;
+    a.X_in = s.basis.conversion(stream);
+    if (!infeasible_stage.empty()) {
+      a.kind = std::holds_alternative<ExchangerSpec>(spec)             ? StageKind::Exchanger
+               : std::get<ReactorSpec>(spec).type == ReactorType::Cstr ? StageKind::Cstr
+                                                                       : StageKind::Pfr;
+      a.note =
+          fmt::format("not run: stage {} before it cannot reach its own target", infeasible_stage);
+      res.as_given.push_back(std::move(a));
+      continue;
+    }
+    StageResult r;
+    if (const auto* x = std::get_if<ExchangerSpec>(&spec)) {
+      r = run_exchanger(mech, *x, stream, s.basis);
+    } else {
+      const auto& rs = std::get<ReactorSpec>(spec);
+      if (const auto eq =
+              adiabatic_equilibrium(mech, stream, rs.heat, s.basis, {}, o.equilibrium)) {
+        a.X_ad_eq = eq->X;
+        a.T_ad_eq = eq->stream.T;
+      }
+      if (rs.target_conversion && a.X_ad_eq && *rs.target_conversion >= *a.X_ad_eq) {
+        a.kind = rs.type == ReactorType::Cstr ? StageKind::Cstr : StageKind::Pfr;
+        a.note = fmt::format(
+            "its own target X = {:.4f} lies beyond what it can reach at any size: it meets "
+            "equilibrium at X_ad_eq = {:.4f} ({})",
+            *rs.target_conversion, *a.X_ad_eq, celsius(*a.T_ad_eq));
+        infeasible_stage = a.id;
+        res.as_given.push_back(std::move(a));
+        if (res.limiting_stage.empty()) {
+          res.limited_by = StagingLimit::Equilibrium;
+          res.limiting_stage = rs.id;
+          res.why = fmt::format("stage {}: {}", rs.id, res.as_given.back().note);
+        }
+        continue;
+      }
+      r = rs.type == ReactorType::Pfr ? run_pfr(mech, rs, stream, s.basis, ctx, o.pfr)
+                                      : run_cstr(mech, rs, stream, s.basis, ctx, o.cstr);
+      last_spec = &rs;
+      last_inlet = stream;
+      last_X_ad_eq = a.X_ad_eq;
+    }
+    a.kind = r.kind;
+    a.ran = true;
+    a.T_out = r.outlet.T;
+    a.T_max = r.T_max;
+    a.T_min = r.T_min;
+    a.X_out = r.conversion;
+    a.volume = r.volume;
+    stream = r.outlet;
+    res.as_given.push_back(std::move(a));
+    append(res.as_given_run, std::move(r), s.basis);
+  }
+  res.as_given_conversion = s.basis.conversion(stream);
+  auto note_of = [&](const std::string& id) -> std::string& {
+    return std::find_if(res.as_given.begin(), res.as_given.end(),
+                        [&](const AsGivenStage& a) { return a.id == id; })
+        ->note;
+  };
+
+  // The first stage that meets the temperature limit, and where: told in
+  // its note whatever limits the train first.
+  std::optional<LimitPoint> crossing;
+  std::string crossing_stage;
+  for (const StageResult& r : res.as_given_run.stages) {
+    if (r.kind == StageKind::Exchanger || !beyond(s, r)) continue;
+    LimitPoint p{r.conversion, r.volume.value_or(0.0), r.outlet.T, false};
+    if (r.kind == StageKind::Pfr) {
+      const auto& rs = std::get<ReactorSpec>(
+          *std::find_if(s.c.train.begin(), s.c.train.end(),
+                        [&](const StageSpec& sp) { return stage_id(sp) == r.id; }));
+      if (auto q = limit_crossing(s, rs, r.inlet, ctx, o.pfr)) p = *q;
+    }
+    p.T = *s.T_limit;
+    const bool before = p.X < s.target - kConversionTolerance;
+    if (p.V == 0 && (s.exothermic ? r.inlet.T >= *s.T_limit : r.inlet.T <= *s.T_limit))
+      note_of(r.id) =
+          fmt::format("is fed at {}, already {} {} = {}", celsius(r.inlet.T),
+                      s.exothermic ? "above" : "below", s.limit_label, celsius(*s.T_limit));
+    else
+      note_of(r.id) = fmt::format(
+          "{} {} = {} at X = {:.4f}, V = {:.4g} m3 from its inlet{}",
+          s.exothermic ? "passes" : "falls below", s.limit_label, celsius(*s.T_limit), p.X, p.V,
+          before ? ", before the target"
+                 : fmt::format(", after the target (a bed ending where X reaches {:.4f} would "
+                               "stay within it)",
+                               s.target));
+    crossing = p;
+    crossing_stage = r.id;
+    break;
+  }
+  if (res.limited_by == StagingLimit::Equilibrium) return;
+
+  const bool short_of_target = res.as_given_conversion < s.target - kConversionTolerance;
+  if (!last_spec) {
+    res.limited_by = StagingLimit::Size;
+    res.why = "the train has no reactor";
+    return;
+  }
+
+  // 1. Equilibrium: the target lies beyond the last reactor's X_ad_eq.
+  if (short_of_target && last_X_ad_eq && s.target > *last_X_ad_eq) {
+    const auto it = std::find_if(res.as_given.begin(), res.as_given.end(),
+                                 [&](const AsGivenStage& a) { return a.id == last_spec->id; });
+    const std::string also = it->note.empty() ? "" : fmt::format("; also, it {}", it->note);
+    it->note = fmt::format(
+        "the target X = {:.4f} lies beyond what it can reach at any size: it meets equilibrium "
+        "at X_ad_eq = {:.4f} ({}){}",
+        s.target, *it->X_ad_eq, celsius(*it->T_ad_eq), also);
+    res.limited_by = StagingLimit::Equilibrium;
+    res.limiting_stage = last_spec->id;
+    res.why = fmt::format("stage {}: {}", last_spec->id, it->note);
+    return;
+  }
+
+  // 2. The temperature limit, at the first stage that meets it.
+  if (crossing) {
+    res.limited_by = s.limit_kind;
+    res.limiting_stage = crossing_stage;
+    res.limit_point = crossing;
+    res.why = fmt::format("stage {} {}", crossing_stage, note_of(crossing_stage));
+    return;
+  }
+
+  // 3. Size: more catalyst in the last reactor would do, unless the larger
+  // bed would meet the temperature limit first.
+  if (short_of_target) {
+    auto it = std::find_if(res.as_given.begin(), res.as_given.end(),
+                           [&](const AsGivenStage& a) { return a.id == last_spec->id; });
+    if (last_spec->type == ReactorType::Pfr && s.target > s.basis.conversion(last_inlet)) {
+      ReactorSpec bigger = *last_spec;
+      bigger.volume.reset();
+      bigger.catalyst_mass.reset();
+      bigger.target_conversion = s.target;
+      PfrOptions po = o.pfr;
+      po.stop_temperature = s.T_limit;
+      const StageResult r = run_pfr(mech, bigger, last_inlet, s.basis, ctx, po);
+      if (r.conversion < s.target - kConversionTolerance) {
+        LimitPoint p{r.conversion, r.volume.value_or(0.0), *s.T_limit, true};
+        it->note = fmt::format(
+            "reaches X = {:.4f}; enlarged, it would {} {} {} at X = {:.4f}, V = {:.4g} m3 from "
+            "its inlet, before the target",
+            it->X_out, s.exothermic ? "pass" : "fall below", s.limit_label, celsius(*s.T_limit),
+            p.X, p.V);
+        res.limited_by = s.limit_kind;
+        res.limit_point = p;
+      } else {
+        res.volume_needed = r.volume;
+        it->note = fmt::format(
+            "reaches X = {:.4f}; only more catalyst is needed: {:.4g} m3{} would reach the "
+            "target (it holds {:.4g} m3)",
+            it->X_out, *r.volume,
+            r.catalyst_mass ? fmt::format(" ({:.4g} kg)", *r.catalyst_mass) : "",
+            it->volume.value_or(0.0));
+        res.limited_by = StagingLimit::Size;
+      }
+    } else {
+      it->note = fmt::format("reaches X = {:.4f}; only more volume is needed", it->X_out);
+      res.limited_by = StagingLimit::Size;
+    }
+    res.limiting_stage = last_spec->id;
+    res.why = fmt::format("stage {} {}", last_spec->id, it->note);
+    return;
+  }
+  res.limited_by = StagingLimit::None;
+  res.why = fmt::format("the train as given reaches X = {:.4f} (target {:.4f}){}",
+                        res.as_given_conversion, s.target,
+                        s.T_limit ? within_limit(s) : std::string(" (no temperature limit given)"));
+}
+
+// ---- the staged answer ------------------------------------------------------
+
+// Temperature an exchanger returns the stream to before the next bed.
+double return_temperature(const Setup& s, const StagingOptions& o, double X) {
+  if (o.return_to == ReturnTo::Inlet) return s.c.feed.T;
+  const auto& lim = s.c.limits;
+  const double lo = lim.T_in_min.value_or(o.equilibrium.T_min);
+  const double hi = lim.T_max.value_or(o.equilibrium.T_max);
+  const auto p = max_rate_temperature(s.mech, s.c.feed, s.basis, X, lo, hi, o.equilibrium);
+  // Empty: the reaction runs backwards at every allowed temperature; the
+  // next bed then cannot progress and the loop says so.
+  return p ? std::clamp(p->T, lo, hi) : s.c.feed.T;
+}
+
+void build_staged(const Setup& s, const StagingOptions& o, const ReactorSpec& first,
+                  const SunContext& ctx, StagingResult& res) {
+  const Mechanism& mech = s.mech;
+  res.staged_run = empty_result(s.c);
+  ReactorSpec bed;
+  bed.type = ReactorType::Pfr;
+  bed.heat = HeatMode::Adiabatic;
+  bed.bulk_density = first.bulk_density;
+  bed.where = first.where;
+  PfrOptions po = o.pfr;
+  po.stop_temperature = s.T_limit;
+  const char* exchanger_prefix = s.exothermic ? "C" : "H";
+
+  Stream stream = s.c.feed;
+  double X = s.basis.conversion(stream);
+  for (int k = 1; k <= o.max_beds; ++k) {
+    if (k > 1) {
+      ExchangerSpec x;
+      x.id = fmt::format("{}{}", exchanger_prefix, k - 1);
+      x.T_out = return_temperature(s, o, X);
+      x.where = first.where;
+      StageResult r = run_exchanger(mech, x, stream, s.basis);
+      res.coolers.push_back({x.id, r.inlet.T, r.outlet.T, r.duty});
+      stream = r.outlet;
+      append(res.staged_run, std::move(r), s.basis);
+    }
+    if (s.T_limit && (s.exothermic ? stream.T >= *s.T_limit : stream.T <= *s.T_limit)) {
+      res.staged_note = fmt::format("bed {} would be fed at {}, already {} {} = {}", k,
+                                    celsius(stream.T), s.exothermic ? "at or above" : "at or below",
+                                    s.limit_label, celsius(*s.T_limit));
+      break;
+    }
+    const auto eq =
+        adiabatic_equilibrium(mech, stream, HeatMode::Adiabatic, s.basis, {}, o.equilibrium);
+    if (!eq || eq->X - X <= kNoProgress) {
+      res.staged_note = fmt::format(
+          "bed {} cannot progress: fed at {} and X = {:.4f}, the stream is already at "
+          "equilibrium",
+          k, celsius(stream.T), X);
+      break;
+    }
+    const double X_stop = X + o.approach * (eq->X - X);
+    const double X_bed = std::min(X_stop, s.target);
+    bed.id = fmt::format("B{}", k);
+    bed.target_conversion = X_bed;
+    StageResult r = run_pfr(mech, bed, stream, s.basis, ctx, po);
+    StagedBed b;
+    b.id = bed.id;
+    b.T_in = stream.T;
+    b.T_out = r.outlet.T;
+    b.T_max = r.T_max;
+    b.T_min = r.T_min;
+    b.X_in = X;
+    b.X_out = r.conversion;
+    b.X_ad_eq = eq->X;
+    b.T_ad_eq = eq->stream.T;
+    b.volume = r.volume.value_or(0.0);
+    b.catalyst_mass = r.catalyst_mass;
+    if (r.conversion < X_bed - kConversionTolerance)
+      b.ended_by = s.limit_label;
+    else
+      b.ended_by = X_bed == s.target ? "target" : "approach";
+    res.beds.push_back(b);
+    stream = r.outlet;
+    X = r.conversion;
+    append(res.staged_run, std::move(r), s.basis);
+    if (X >= s.target - kConversionTolerance) {
+      res.target_reached = true;
+      res.beds_needed = k;
+      break;
+    }
+    if (b.volume <= 0) {
+      res.staged_note =
+          fmt::format("bed {} ends at its inlet ({} {})", k, s.limit_label, celsius(*s.T_limit));
+      break;
+    }
+  }
+  // A trailing exchanger with no bed after it is no part of the answer.
+  if (res.coolers.size() >= res.beds.size() && !res.coolers.empty()) {
+    res.coolers.pop_back();
+    res.staged_run.stages.pop_back();
+    if (!res.staged_run.stages.empty()) res.staged_run.outlet = res.staged_run.stages.back().outlet;
+  }
+  res.staged_conversion = res.beds.empty() ? s.basis.conversion(s.c.feed) : res.beds.back().X_out;
+  res.staged_run.conversion = res.staged_conversion;
+
+  if (o.return_to == ReturnTo::Inlet)
+    res.conversion_limit =
+        equilibrium_conversion(mech, s.c.feed, s.c.feed.T, s.basis, {}, o.equilibrium);
+
+  if (res.target_reached) {
+    if (res.beds_needed == 1)
+      res.staged_note = fmt::format(
+          "no interstage {} is needed: one adiabatic bed reaches X = {:.4f}{}",
+          s.exothermic ? "cooling" : "heating", s.target, s.T_limit ? within_limit(s) : "");
+    else
+      res.staged_note = fmt::format(
+          "interstage {} is needed: {} adiabatic beds with {} {} reach X = {:.4f}{}",
+          s.exothermic ? "cooling" : "heating", res.beds_needed, res.beds_needed - 1,
+          s.exothermic ? (res.beds_needed == 2 ? "intercooler" : "intercoolers")
+                       : (res.beds_needed == 2 ? "interstage heater" : "interstage heaters"),
+          s.target, s.T_limit ? within_limit(s) : "");
+    return;
+  }
+  std::string why =
+      fmt::format("{} beds reach only X = {:.4f}", res.beds.size(), res.staged_conversion);
+  if (!res.staged_note.empty())
+    why = res.beds.empty() ? res.staged_note
+                           : fmt::format("{}; the beds before reach X = {:.4f}", res.staged_note,
+                                         res.staged_conversion);
+  if (res.conversion_limit && s.target >= *res.conversion_limit)
+    why += fmt::format(
+        "; with every bed fed at {}, no number of beds passes X_eq({}) = {:.4f}, and the "
+        "target X = {:.4f} lies beyond it (try --return-to optimal, or a {} inlet temperature)",
+        celsius(s.c.feed.T), celsius(s.c.feed.T), *res.conversion_limit, s.target,
+        s.exothermic ? "lower" : "higher");
+  res.staged_note = fmt::format("the target X = {:.4f} is out of reach with up to {} beds: {}",
+                                s.target, o.max_beds, why);
+}
+
+}  // namespace
+
+const char* limit_name(StagingLimit l) {
+  switch (l) {
+    case StagingLimit::Equilibrium:
+      return "equilibrium";
+    case StagingLimit::TMax:
+      return "T_max";
+    case StagingLimit::TInMin:
+      return "T_in_min";
+    case StagingLimit::Size:
+      return "size";
+    case StagingLimit::None:
+      break;
+  }
+  return "";
+}
+
+const char* return_to_name(ReturnTo r) { return r == ReturnTo::Inlet ? "inlet" : "optimal"; }
+
+std::string StagingOptions::validate() const {
+  if (!(approach > 0 && approach < 1))
+    return fmt::format("approach must lie strictly between 0 and 1, got {:g}", approach);
+  if (max_beds < 1 || max_beds > 100)
+    return fmt::format("max_beds must lie between 1 and 100, got {}", max_beds);
+  if (auto e = pfr.cvode.validate(); !e.empty()) return "pfr.cvode: " + e;
+  if (auto e = equilibrium.validate(); !e.empty()) return "equilibrium: " + e;
+  return {};
+}
+
+StagingResult run_staging(const Case& c, const StagingOptions& options) {
+  if (const auto e = options.validate(); !e.empty())
+    throw std::invalid_argument("StagingOptions: " + e);
+  const Mechanism& mech = c.mechanism;
+  if (!c.target_conversion)
+    throw InputError(c.target_where,
+                     "the case has no train-level target; staging sizes the beds to one: add "
+                     "\"target: {conversion: 0.92}\" at the top level of the case (the overall "
+                     "conversion of the key the whole train should reach)");
+  const int j = key_reaction(mech, c.key);
+  const std::string key = mech.species()[c.key].id;
+  if (j < 0 || !mech.reactions()[j].reversible) {
+    const Reaction& rx = mech.reactions()[std::max(j, 0)];
+    throw InputError(
+        j < 0 ? SourceLocation{c.file, 0, 0} : rx.where,
+        fmt::format("staging needs a reversible reaction that consumes the key {}: equilibrium "
+                    "is what limits an adiabatic bed and sets the interstage cooling; reaction "
+                    "{} ({}) is irreversible; write it with <=> and give its equilibrium",
+                    key, rx.id, rx.equation));
+  }
+  const ReactorSpec* first = nullptr;
+  for (const auto& sp : c.train)
+    if ((first = std::get_if<ReactorSpec>(&sp))) break;
+  if (!first)
+    throw InputError({c.file, 0, 0},
+                     "the train has no reactor; staging needs at least one (its bulk density "
+                     "is given to the staged beds)");
+
+  const bool exo = mech.dH(j, c.feed.T) < 0;
+  const Setup s{c,
+                mech,
+                c.conversion_basis(),
+                *c.target_conversion,
+                exo,
+                exo ? c.limits.T_max : c.limits.T_in_min,
+                exo ? StagingLimit::TMax : StagingLimit::TInMin,
+                exo ? "T_max" : "T_in_min"};
+  if (options.return_to == ReturnTo::Optimal && !s.exothermic && !c.limits.T_max)
+    throw InputError(
+        c.limits.where,
+        fmt::format("--return-to optimal with the endothermic reaction {} needs limits: "
+                    "{{T_max: ...}}: its rate rises with temperature without a maximum, so the "
+                    "best reheat temperature is the highest the catalyst allows",
+                    mech.reactions()[j].id));
+
+  StagingResult res;
+  res.title = c.title;
+  res.key = key;
+  res.target = s.target;
+  res.limits = c.limits;
+  res.exothermic = s.exothermic;
+  res.feed_T = c.feed.T;
+  res.dT_ad = adiabatic_temperature_change(c);
+  res.approach = options.approach;
+  res.return_to = options.return_to;
+  res.max_beds = options.max_beds;
+
+  SunContext ctx;
+  check_as_given(s, options, ctx, res);
+  res.reachable = res.limited_by == StagingLimit::None;
+  build_staged(s, options, *first, ctx, res);
+
+  res.warnings = res.as_given_run.warnings;
+  auto add_unique = [&](const std::string& w) {
+    if (std::find(res.warnings.begin(), res.warnings.end(), w) == res.warnings.end())
+      res.warnings.push_back(w);
+  };
+  for (const auto& w : design_warnings(c, res.as_given_run)) add_unique(w);
+  for (const auto& w : res.staged_run.warnings) add_unique(w);
+  for (const auto& w : design_warnings(c, res.staged_run)) add_unique(w);
+  return res;
+}
+
+}  // namespace rxtrain
