@@ -33,7 +33,7 @@
 #include <memory>
 #include <string>
 
-#include "rxtrain/case/write_case.hpp"
+#include "rxtrain/studies/write_case.hpp"
 #include "rxtrain/flowsheet/train.hpp"
 #include "rxtrain/base/units.hpp"
 

@@ -12,7 +12,7 @@
 #include "test_species.hpp"
 #include "rxtrain/case/case.hpp"
 #include "rxtrain/stages/pfr.hpp"
-#include "rxtrain/kinetics/synthetic_mechanism.hpp"
+#include "rxtrain/case/synthetic_case.hpp"
 #include "rxtrain/flowsheet/train.hpp"
 #include "rxtrain/base/units.hpp"
 

@@ -25,7 +25,7 @@
 #include "rxtrain/sweep/outputs.hpp"
 #include "rxtrain/sweep/study.hpp"
 #include "rxtrain/sweep/sweep.hpp"
-#include "rxtrain/kinetics/synthetic_mechanism.hpp"
+#include "rxtrain/case/synthetic_case.hpp"
 #include "rxtrain/flowsheet/train.hpp"
 #include "rxtrain/base/units.hpp"
 

@@ -16,7 +16,7 @@
 #include "commands.hpp"
 #include "rxtrain/case/case.hpp"
 #include "rxtrain/studies/optimize.hpp"
-#include "rxtrain/case/write_case.hpp"
+#include "rxtrain/studies/write_case.hpp"
 #include "rxtrain/report/atomic_file.hpp"
 #include "rxtrain/base/caution.hpp"
 #include "rxtrain/report/optimize_html.hpp"

@@ -25,7 +25,7 @@
 #include "rxtrain/sweep/summary.hpp"
 #include "rxtrain/sweep/sweep.hpp"
 #include "rxtrain/sweep/sweep_csv.hpp"
-#include "rxtrain/sweep/sweep_report.hpp"
+#include "rxtrain/report/sweep_report.hpp"
 #include "rxtrain/base/units.hpp"
 
 namespace rxtrain::cli {

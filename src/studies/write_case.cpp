@@ -3,7 +3,7 @@
 #include <sstream>
 #include <vector>
 
-#include "rxtrain/case/write_case.hpp"
+#include "rxtrain/studies/write_case.hpp"
 #include "rxtrain/base/error.hpp"
 #include "rxtrain/base/caution.hpp"
 

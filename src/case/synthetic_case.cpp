@@ -1,4 +1,4 @@
-#include "rxtrain/kinetics/synthetic_mechanism.hpp"
+#include "rxtrain/case/synthetic_case.hpp"
 
 #include <algorithm>
 #include <cmath>

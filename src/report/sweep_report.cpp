@@ -1,4 +1,4 @@
-#include "rxtrain/sweep/sweep_report.hpp"
+#include "rxtrain/report/sweep_report.hpp"
 
 #include <fmt/format.h>
 
