@@ -8,6 +8,7 @@
 #include <string>
 
 #include "rxtrain/base/error.hpp"
+#include "rxtrain/models/energy_balance.hpp"
 
 namespace {
 

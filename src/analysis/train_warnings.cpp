@@ -6,8 +6,9 @@
 #include <cmath>
 #include <limits>
 
-#include "rxtrain/models/equilibrium.hpp"
 #include "rxtrain/base/error.hpp"
+#include "rxtrain/models/energy_balance.hpp"
+#include "rxtrain/models/equilibrium.hpp"
 #include "rxtrain/stages/exchanger.hpp"
 #include "rxtrain/stages/pfr.hpp"
 

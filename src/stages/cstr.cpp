@@ -12,6 +12,7 @@
 #include <stdexcept>
 
 #include "rxtrain/base/error.hpp"
+#include "rxtrain/models/energy_balance.hpp"
 #include "rxtrain/stages/exchanger.hpp"
 
 namespace rxtrain {

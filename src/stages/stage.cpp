@@ -5,7 +5,6 @@
 #include <algorithm>
 #include <cmath>
 
-#include "rxtrain/stages/exchanger.hpp"
 
 namespace rxtrain {
 
@@ -125,24 +124,6 @@ void classify_reach_end(const Mechanism& mech, const Stream& inlet, const double
     reach.end = ReachEnd::SpaceTimeBound;
   else
     reach.end = reversible ? ReachEnd::Equilibrium : ReachEnd::RateVanishes;
-}
-
-Stream stream_after_extent(const Mechanism& mech, const Stream& inlet, HeatMode heat, int j,
-                           double xi, double T_guess) {
-  const auto& nu = mech.reactions()[j].nu;
-  Stream out{inlet.T, inlet.P, inlet.F};
-  const double floor = 1e-12 * inlet.total_flow();
-  for (int i = 0; i < mech.n_species(); ++i) {
-    out.F[i] += nu[i] * xi;
-    if (out.F[i] < 0 && out.F[i] > -floor) out.F[i] = 0;  // a reactant used up exactly
-  }
-  if (heat == HeatMode::Adiabatic) {
-    // sum F hs(T) = sum F_in hs(T_in) - xi dH_298: the total enthalpy kept.
-    const double H =
-        mech.sensible_enthalpy_flow(inlet.T, inlet.F.data()) - xi * mech.reactions()[j].dH_298;
-    out.T = temperature_for_enthalpy(mech, out.F, H, std::isnan(T_guess) ? inlet.T : T_guess);
-  }
-  return out;
 }
 
 void finish_reach(StageReach& reach, double V_last) {

@@ -9,9 +9,4 @@ namespace rxtrain {
 StageResult run_exchanger(const Mechanism& mech, const ExchangerSpec& spec, const Stream& inlet,
                           const ConversionBasis& basis);
 
-// Temperature at which sum_i F_i hs_i(T) equals `enthalpy_flow` (W),
-// starting near T_guess. Throws SolverError when no such T exists.
-double temperature_for_enthalpy(const Mechanism& mech, const std::vector<double>& F,
-                                double enthalpy_flow, double T_guess);
-
 }  // namespace rxtrain

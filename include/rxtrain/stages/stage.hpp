@@ -9,6 +9,7 @@
 #include <vector>
 
 #include "rxtrain/case/case.hpp"
+#include "rxtrain/models/energy_balance.hpp"
 #include "rxtrain/models/equilibrium.hpp"
 #include "rxtrain/solvers/cvode.hpp"
 #include "rxtrain/chem/stream.hpp"
@@ -86,14 +87,6 @@ const char* reach_end_name(ReachEnd end);
 // the rates have died away. The caller sets TemperatureStop itself.
 void classify_reach_end(const Mechanism& mech, const Stream& inlet, const double* F_end, int key,
                         bool still_rising, StageReach& reach);
-
-// The stream after extent xi (mol/s) of reaction j alone from `inlet`:
-// flows by the stoichiometry (round-off below zero cleared), temperature
-// the inlet's (isothermal) or the one that keeps the total enthalpy
-// (adiabatic; Newton from T_guess, or the inlet's T when NaN). Throws
-// SolverError when no temperature closes the balance.
-Stream stream_after_extent(const Mechanism& mech, const Stream& inlet, HeatMode heat, int j,
-                           double xi, double T_guess = std::numeric_limits<double>::quiet_NaN());
 
 // Settles a reach from its path: the most is the end point unless a peak
 // stands above it (peak_inside), and the end point is only approached as
