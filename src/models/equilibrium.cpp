@@ -8,6 +8,7 @@
 #include <stdexcept>
 
 #include "rxtrain/base/error.hpp"
+#include "rxtrain/solvers/scalar_root.hpp"
 
 namespace rxtrain {
 
@@ -22,126 +23,6 @@ constexpr double kMaxLnForExp = 700.0;
 constexpr int kMaxTableRows = 100000;
 
 bool opposite_signs(double a, double b) { return (a < 0 && b > 0) || (a > 0 && b < 0); }
-
-// ---- 1-D root finding and minimization -------------------------------------
-
-struct Root {
-  double x = 0;
-  bool converged = false;
-};
-
-// Brent's method (R. P. Brent, Algorithms for Minimization without
-// Derivatives, 1973, ch. 4: bisection, secant and inverse quadratic
-// interpolation) on [a, b] with f(a), f(b) of opposite signs or one zero.
-template <class Fn>
-Root brent_root(Fn&& f, double a, double b, double fa, double fb, double rel_tol, int max_iter) {
-  if (fa == 0) return {a, true};
-  if (fb == 0) return {b, true};
-  double c = b, fc = fb, d = b - a, e = d;
-  for (int it = 0; it < max_iter; ++it) {
-    if ((fb > 0 && fc > 0) || (fb < 0 && fc < 0)) {
-      c = a;
-      fc = fa;
-      d = e = b - a;
-    }
-    if (std::abs(fc) < std::abs(fb)) {
-      a = b;
-      b = c;
-      c = a;
-      fa = fb;
-      fb = fc;
-      fc = fa;
-    }
-    const double tol1 = 2 * kEps * std::abs(b) + 0.5 * rel_tol * std::abs(b);
-    const double xm = 0.5 * (c - b);
-    if (std::abs(xm) <= tol1 || fb == 0) return {b, true};
-    if (std::abs(e) >= tol1 && std::abs(fa) > std::abs(fb)) {
-      const double s = fb / fa;
-      double p, q;
-      if (a == c) {
-        p = 2 * xm * s;
-        q = 1 - s;
-      } else {
-        const double qq = fa / fc;
-        const double r = fb / fc;
-        p = s * (2 * xm * qq * (qq - r) - (b - a) * (r - 1));
-        q = (qq - 1) * (r - 1) * (s - 1);
-      }
-      if (p > 0) q = -q;
-      p = std::abs(p);
-      if (2 * p < std::min(3 * xm * q - std::abs(tol1 * q), std::abs(e * q))) {
-        e = d;
-        d = p / q;
-      } else {
-        d = xm;
-        e = d;
-      }
-    } else {
-      d = xm;
-      e = d;
-    }
-    a = b;
-    fa = fb;
-    b += std::abs(d) > tol1 ? d : (xm > 0 ? tol1 : -tol1);
-    fb = f(b);
-  }
-  return {b, false};
-}
-
-// Brent's minimization (same book, ch. 5: golden section with parabolic
-// interpolation) of f on [a, b]; returns the abscissa of the minimum.
-template <class Fn>
-double brent_minimize(Fn&& f, double a, double b, double abs_tol, int max_iter) {
-  const double golden = 0.5 * (3.0 - std::sqrt(5.0));
-  const double sqrt_eps = std::sqrt(kEps);
-  double x = a + golden * (b - a), w = x, v = x;
-  double fx = f(x), fw = fx, fv = fx;
-  double d = 0, e = 0;
-  for (int it = 0; it < max_iter; ++it) {
-    const double xm = 0.5 * (a + b);
-    const double tol1 = sqrt_eps * std::abs(x) + abs_tol / 3;
-    const double tol2 = 2 * tol1;
-    if (std::abs(x - xm) <= tol2 - 0.5 * (b - a)) break;
-    bool use_golden = true;
-    if (std::abs(e) > tol1) {
-      double r = (x - w) * (fx - fv);
-      double q = (x - v) * (fx - fw);
-      double p = (x - v) * q - (x - w) * r;
-      q = 2 * (q - r);
-      if (q > 0) p = -p;
-      q = std::abs(q);
-      r = e;
-      e = d;
-      if (std::abs(p) < std::abs(0.5 * q * r) && p > q * (a - x) && p < q * (b - x)) {
-        d = p / q;
-        const double u = x + d;
-        if (u - a < tol2 || b - u < tol2) d = x < xm ? tol1 : -tol1;
-        use_golden = false;
-      }
-    }
-    if (use_golden) {
-      e = x < xm ? b - x : a - x;
-      d = golden * e;
-    }
-    const double u = std::abs(d) >= tol1 ? x + d : x + (d > 0 ? tol1 : -tol1);
-    const double fu = f(u);
-    if (fu <= fx) {
-      (u < x ? b : a) = x;
-      v = w, fv = fw;
-      w = x, fw = fx;
-      x = u, fx = fu;
-    } else {
-      (u < x ? a : b) = u;
-      if (fu <= fw || w == x) {
-        v = w, fv = fw;
-        w = u, fw = fu;
-      } else if (fu <= fv || v == x || v == w) {
-        v = u, fv = fu;
-      }
-    }
-  }
-  return x;
-}
 
 struct Bracket {
   double a = 0, b = 0, fa = 0, fb = 0;
@@ -182,7 +63,7 @@ std::optional<double> root_outward(Fn&& f, double T0, const EquilibriumOptions& 
   const auto br = bracket_outward(f, T0, o);
   if (!br) return std::nullopt;
   if (br->a == br->b) return br->a;
-  const Root r = brent_root(f, br->a, br->b, br->fa, br->fb, o.T_tolerance, o.max_iterations);
+  const ScalarRoot r = brent_root(f, br->a, br->b, br->fa, br->fb, o.T_tolerance, o.max_iterations);
   if (!r.converged)
     throw SolverError(
         fmt::format("{}: no convergence in {} iterations between {:.6g} K and "
@@ -887,7 +768,7 @@ AdiabaticLine adiabatic_line(const Mechanism& mech, const Stream& inlet,
                              options.T_min, options.T_max, X);
       break;
     }
-    const Root r = brent_root(E, options.T_min, options.T_max, E_lo, E_hi, options.T_tolerance,
+    const ScalarRoot r = brent_root(E, options.T_min, options.T_max, E_lo, E_hi, options.T_tolerance,
                               options.max_iterations);
     if (!r.converged)
       throw SolverError(fmt::format("adiabatic line at X = {:.6g}: no convergence", X));
@@ -962,7 +843,7 @@ std::optional<MaxRatePoint> max_rate_temperature(const Mechanism& mech, const St
   const double d_lo = drive(T_lo), d_hi = drive(T_hi);
   if (!(d_lo > 0) && !(d_hi > 0)) return std::nullopt;
   if (!(d_lo > 0) || !(d_hi > 0)) {
-    const Root r =
+    const ScalarRoot r =
         brent_root(drive, T_lo, T_hi, d_lo, d_hi, options.T_tolerance, options.max_iterations);
     if (!r.converged) throw SolverError("maximum-rate temperature: T_eq(X) not found");
     (d_lo > 0 ? b : a) = r.x;
@@ -1001,7 +882,7 @@ std::optional<MaxRatePoint> max_rate_temperature(const Mechanism& mech, const St
   const double lo = std::max(a, T_best - h), hi = std::min(b, T_best + h);
   const double s_lo = slope(lo), s_hi = slope(hi);
   if (s_lo > 0 && s_hi < 0) {
-    const Root r =
+    const ScalarRoot r =
         brent_root(slope, lo, hi, s_lo, s_hi, options.T_tolerance, options.max_iterations);
     if (r.converged) {
       pt.T = r.x;

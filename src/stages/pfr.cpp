@@ -158,7 +158,7 @@ class PathRecorder {
       };
       const double s_now = slope_at(t);
       if ((slope_ > 0 && s_now < 0) || (slope_ < 0 && s_now > 0)) {
-        const double t_ext = detail::bisect_turn(t_prev, t, slope_, slope_at);
+        const double t_ext = bisect_sign_change(t_prev, t, slope_, slope_at);
         o.interpolate(t_ext, 0, y_turn_.data());
         record(v_index < 0 ? t_ext : y_turn_[v_index], y_turn_.data());
       }
@@ -386,7 +386,7 @@ StageReach pfr_reach(const Mechanism& mech, const ReactorSpec& spec, const Strea
     if (several) {
       const double r_now = rise_at(V);
       if (rise > 0 && r_now < 0) {
-        const double V_peak = detail::bisect_turn(V_prev, V, rise, rise_at);
+        const double V_peak = bisect_sign_change(V_prev, V, rise, rise_at);
         ode.interpolate(V_peak, 0, st.y_turn.data());
         consider(V_peak, st.y_turn.data());
       }

@@ -166,7 +166,7 @@ std::vector<StageResult> run_pfr_batch(std::span<const PfrBatchItem> items, PfrB
   };
   const auto extreme = [&](int b, double lo, double hi) {
     const double at =
-        detail::bisect_turn(lo, hi, st.slope[b], [&](double x) { return dT_ds(x, b); });
+        bisect_sign_change(lo, hi, st.slope[b], [&](double x) { return dT_ds(x, b); });
     ode.interpolate(at, 0, st.dky.data());
     const double T = st.dky[static_cast<std::size_t>(b) * N + n];
     st.T_max[b] = std::max(st.T_max[b], T);

@@ -9,6 +9,7 @@
 
 #include "rxtrain/kinetics/mechanism.hpp"
 #include "rxtrain/solvers/cvode.hpp"
+#include "rxtrain/solvers/scalar_root.hpp"
 #include "rxtrain/stages/stage.hpp"
 
 namespace rxtrain::detail {
@@ -253,25 +254,6 @@ class PfrSystem {
   std::vector<int> dep_start_, dep_p_;
   int nnz_ = 0;
 };
-
-// Where dT/dV (slope(V), from CVODE's interpolating polynomial) changes
-// sign inside [lo, hi], the sign at lo being that of s_lo: bisection to
-// 1e-14 relative, the midpoint of the last bracket.
-template <class Slope>
-double bisect_turn(double lo, double hi, double s_lo, Slope&& slope) {
-  for (int it = 0; it < 60 && hi - lo > 1e-14 * std::max(std::abs(hi), 1e-300); ++it) {
-    const double mid = 0.5 * (lo + hi);
-    const double s_mid = slope(mid);
-    if (s_mid == 0) return mid;
-    if ((s_mid > 0) == (s_lo > 0)) {
-      lo = mid;
-      s_lo = s_mid;
-    } else {
-      hi = mid;
-    }
-  }
-  return 0.5 * (lo + hi);
-}
 
 // True when an integrator made with options a can run with options b.
 inline bool same_options(const CvodeOptions& a, const CvodeOptions& b) {
