@@ -715,7 +715,7 @@ StageResult run_cstr(const Mechanism& mech, const ReactorSpec& spec, const Strea
     states.push_back(out);
     // The target fixes the state; the tank of that volume may still have
     // other steady states, and start-up from the feed may settle in one of
-    // them. Rating it tells the designer (a failure here only skips that).
+    // them. Rating it tells the designer (a failure here is told, not fatal).
     try {
       Rating r = rate_tank(mech, spec.heat, inlet, V, options, ws, limit, extra);
       for (const auto& st : r.states) add_distinct(states, st, options.distinct_T, solver);
@@ -729,7 +729,11 @@ StageResult run_cstr(const Mechanism& mech, const ReactorSpec& spec, const Strea
             spec.id, states.size(), temperature_list(states), out.T,
             reached ? "reaches" : "does not reach"));
       }
-    } catch (const SolverError&) {
+    } catch (const SolverError& e) {
+      warnings.push_back(fmt::format(
+          "stage {}: other steady states of the tank at its sized volume were not searched "
+          "(rating it failed: {}); start-up from the feed may settle elsewhere",
+          spec.id, e.what()));
     }
   } else {
     V = spec.volume

@@ -30,8 +30,9 @@ PointResult guarded(std::size_t columns, Run&& run) {
     p.status = RunStatus::Infeasible;
     p.message = e.message();
   } catch (const InputError& e) {
-    // run_train reports a target beyond reach as an InputError at the
-    // stage's entry: for a sweep point that is an infeasible design.
+    // A target not above its stage's inlet conversion is an InputError at
+    // the stage's entry (a target beyond reach is an InfeasibleError,
+    // above): for a sweep point either is an infeasible design.
     p.status = RunStatus::Infeasible;
     p.message = e.message();
   } catch (const SolverError& e) {

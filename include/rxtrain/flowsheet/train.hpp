@@ -92,8 +92,10 @@ class TrainWorkspace {
 };
 
 // Runs every stage of the case in order. Throws SolverError (naming the
-// stage and position) or InputError (a target out of reach, located at the
-// stage's entry in the case file).
+// stage and position), InfeasibleError (a SolverError: a target out of
+// reach, located at the stage's entry in the case file, quoting what the
+// stage can reach) or InputError (a target not above the stage's inlet
+// conversion, also located there).
 TrainResult run_train(const Case& c, const TrainOptions& options = {});
 
 // Fills what TrainOptions::equilibrium_views adds (each stage's equilibrium
