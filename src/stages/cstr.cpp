@@ -814,6 +814,39 @@ StageResult run_cstr(const Mechanism& mech, const ReactorSpec& spec, const Strea
   return res;
 }
 
+namespace {
+
+// A reactant of a reaction that consumes the key that a tank runs out of
+// only as its volume grows without bound: in a tank the outlet is the
+// contents, so such a reactant's flow falls like a power of 1/V (1/V when
+// the rate is first order in it) and at the largest volume searched is
+// small but far above the 1e-6 of its inlet flow a tubular path reaches.
+// Taken as vanishing when under 1e-2 of its inlet flow and falling at
+// least like V^-0.4 over the last step of the march (an equilibrium-bound
+// reactant levels off instead); the one with least left, or -1.
+int reactant_vanishing_in_tank(const Mechanism& mech, const Stream& inlet, const March& m,
+                               int key) {
+  if (!(m.V_previous > 0 && m.V > m.V_previous)) return -1;
+  const double ln_V = std::log(m.V / m.V_previous);
+  int found = -1;
+  double least = 1e-2;
+  for (const auto& rx : mech.reactions()) {
+    if (!(rx.nu[key] < 0)) continue;
+    for (int i = 0; i < mech.n_species(); ++i) {
+      if (!(rx.nu[i] < 0) || !(inlet.F[i] > 0)) continue;
+      const double left = m.state.F[i] / inlet.F[i];
+      const double left_before = m.previous.F[i] / inlet.F[i];
+      if (!(left > 0 && left < least && left_before > left)) continue;
+      if (std::log(left_before / left) / ln_V < 0.4) continue;
+      least = left;
+      found = i;
+    }
+  }
+  return found;
+}
+
+}  // namespace
+
 StageReach cstr_reach(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
                       const ConversionBasis& basis, CstrWorkspace& workspace,
                       const CstrOptions& options) {
@@ -862,6 +895,12 @@ StageReach cstr_reach(const Mechanism& mech, const ReactorSpec& spec, const Stre
   reach.X_end = X_last;
   reach.T_end = m.state.T;
   classify_reach_end(mech, inlet, m.state.F.data(), basis.key, still_rising, reach);
+  if (reach.end == ReachEnd::SpaceTimeBound || reach.end == ReachEnd::RateVanishes) {
+    if (const int i = reactant_vanishing_in_tank(mech, inlet, m, basis.key); i >= 0) {
+      reach.end = ReachEnd::ReactantUsedUp;
+      reach.species = i;
+    }
+  }
   if (reach.end == ReachEnd::Equilibrium && mech.n_reactions() == 1) {
     // One reaction: the tank's outlet runs along the same adiabatic (or
     // isothermal) line as a tube's, to the same equilibrium point.
