@@ -22,14 +22,14 @@
 #include <variant>
 #include <vector>
 
-#include "rxtrain/case.hpp"
-#include "rxtrain/equilibrium.hpp"
-#include "rxtrain/error.hpp"
+#include "rxtrain/case/case.hpp"
+#include "rxtrain/models/equilibrium.hpp"
+#include "rxtrain/base/error.hpp"
 #include "rxtrain/stages/cstr.hpp"
 #include "rxtrain/stages/pfr.hpp"
-#include "rxtrain/thermo.hpp"
-#include "rxtrain/train.hpp"
-#include "rxtrain/units.hpp"
+#include "rxtrain/chem/thermo.hpp"
+#include "rxtrain/flowsheet/train.hpp"
+#include "rxtrain/base/units.hpp"
 
 using namespace rxtrain;
 
