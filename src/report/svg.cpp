@@ -607,47 +607,83 @@ ChartLayout Chart::layout() const {
   return L;
 }
 
-std::string Chart::render() const {
-  return "<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n" + render_svg() + "\n";
-}
+namespace {
 
-std::string Chart::render_inline() const { return render_svg(); }
+// The drawing of one chart (Chart::render_svg), step by step: the plot's
+// layers accumulated series by series (fills, bars, reference lines, lines;
+// then, unclipped, reference-line labels and text labels), then the frame
+// around them: grid, axes, tick and axis labels, title, legend.
+class Drawing {
+ public:
+  Drawing(const ChartOptions& o, const ChartLayout& L, std::size_t n_bar_series, bool categorical)
+      : o(o),
+        L(L),
+        fs(o.font_size),
+        plot{L.plot_left, L.plot_top, L.plot_right, L.plot_bottom},
+        n_bar_series(n_bar_series),
+        categorical(categorical) {}
 
-std::string Chart::render_svg() const {
-  const auto& o = options_;
-  const ChartLayout L = layout();
-  const double fs = o.font_size;
-  const Box plot{L.plot_left, L.plot_top, L.plot_right, L.plot_bottom};
-  auto in_x = [&](double v) {
+  void add(std::size_t si, const detail::Series& s) {
+    if (const auto* l = std::get_if<detail::LineSeries>(&s))
+      line(si, l);
+    else if (const auto* a = std::get_if<detail::AreaSeries>(&s))
+      area(si, a);
+    else if (const auto* bs = std::get_if<detail::BarSeries>(&s))
+      bar(si, bs);
+    else if (const auto* r = std::get_if<detail::RefLine>(&s))
+      reference(si, r);
+    else if (const auto* t = std::get_if<detail::TextLabel>(&s); t && in_x(t->x) && in_y(t->y))
+      pending_texts.push_back({si, t});
+  }
+
+  std::string svg() {
+    place_texts();
+    const std::string plot_body = fills + bars + refs + lines;
+    texts = ref_labels + texts;  // above the data, unclipped, with a white halo to stay legible
+    std::string out = head(plot_body);
+    const std::size_t head_size = svg_head(o.height).size();  // the svg element's opening tag
+    out += grid();
+    out +=
+        fmt::format("<g class=\"plot\" clip-path=\"url(#{}-clip)\">\n", id) + plot_body + "</g>\n";
+    out += texts;
+    double widest_y = 0.0;
+    out += axes(widest_y);
+    out += axis_labels(widest_y);
+    const std::string legend_markup = legend_box(out, head_size);
+    out += legend_markup;
+    out += "</svg>";
+    return out;
+  }
+
+ private:
+  struct PendingText {
+    std::size_t series;
+    const detail::TextLabel* t;
+  };
+
+  bool in_x(double v) const {
     const double tol = 1e-9 * std::abs(L.x.d1 - L.x.d0);
     return std::isfinite(v) && v >= std::min(L.x.d0, L.x.d1) - tol &&
            v <= std::max(L.x.d0, L.x.d1) + tol;
-  };
-  auto in_y = [&](double v) {
+  }
+  bool in_y(double v) const {
     const double tol = 1e-9 * std::abs(L.y.d1 - L.y.d0);
     return std::isfinite(v) && v >= std::min(L.y.d0, L.y.d1) - tol &&
            v <= std::max(L.y.d0, L.y.d1) + tol;
-  };
-  auto finite_px = [](double px, double py) { return std::isfinite(px) && std::isfinite(py); };
-
-  // Plot contents (clipped), in layers: fills, bars, reference lines, lines;
-  // then, unclipped, reference-line labels and text labels.
-  std::string fills, bars, refs, lines, ref_labels, texts;
-  std::vector<LegendEntry> legend;
-  std::vector<std::pair<double, double>> occupied;  // px samples of drawn data, for the legend
-  auto sample_segment = [&](double ax, double ay, double bx, double by) {
+  }
+  static bool finite_px(double px, double py) { return std::isfinite(px) && std::isfinite(py); }
+  // Pixel samples of drawn data, for the legend's placement.
+  void sample_segment(double ax, double ay, double bx, double by) {
     const int n = std::max(1, static_cast<int>(std::hypot(bx - ax, by - ay) / 8.0));
     for (int k = 0; k <= n; ++k) {
       const double f = static_cast<double>(k) / n;
       occupied.emplace_back(ax + f * (bx - ax), ay + f * (by - ay));
     }
-  };
-  std::vector<Box> bar_boxes;
-  std::vector<Box> label_boxes;  // reference-line labels placed so far
+  }
   // A label's baseline moved down, a line at a time, until its box meets no
   // reference-line label already placed (the T-X diagram's limit labels
   // share the plot's top edge with the stage labels).
-  const auto free_baseline = [&](double x, double y, double width, double size, TextAnchor a) {
+  double free_baseline(double x, double y, double width, double size, TextAnchor a) const {
     for (int tries = 0; tries < 4; ++tries) {
       const Box b = text_box(x, y, width, size, a);
       if (std::none_of(label_boxes.begin(), label_boxes.end(),
@@ -656,364 +692,411 @@ std::string Chart::render_svg() const {
       y += size + 3.0;
     }
     return y;
-  };
-  struct PendingText {
-    std::size_t series;
-    const detail::TextLabel* t;
-  };
-  std::vector<PendingText> pending_texts;  // drawn after every reference label is placed
-  const std::size_t n_bar_series = bar_series_;
+  }
 
-  for (std::size_t si = 0; si < series_.size(); ++si) {
-    const auto& s = series_[si];
-    if (const auto* l = std::get_if<detail::LineSeries>(&s)) {
-      const std::string colour = colour_of(l->opt.colour, l->style);
-      const std::string dash = dash_of(l->opt.dash, l->style);
-      std::vector<std::pair<double, double>> px(l->x.size());
-      for (std::size_t i = 0; i < px.size(); ++i) px[i] = {L.x.map(l->x[i]), L.y.map(l->y[i])};
-      auto ok = [&](std::size_t i) {
-        return std::isfinite(l->x[i]) && std::isfinite(l->y[i]) &&
-               finite_px(px[i].first, px[i].second);
-      };
-      std::string g = fmt::format(
-          "<g class=\"line\" data-series=\"{}\" fill=\"none\" stroke=\"{}\" stroke-width=\"{}\"{} "
-          "stroke-linejoin=\"round\" stroke-linecap=\"{}\">\n",
-          si, xml_escape(colour), num(l->opt.width), dash_attr(dash),
-          dash.empty() ? "round" : "butt");
-      std::string markers;
-      for (const auto& [b, e] : runs(px.size(), ok)) {
-        g += "<polyline points=\"";
-        for (std::size_t i = b; i < e; ++i) {
-          g += fmt::format("{}{},{}", i == b ? "" : " ", num(px[i].first), num(px[i].second));
-          if (i > b) sample_segment(px[i - 1].first, px[i - 1].second, px[i].first, px[i].second);
-          markers +=
-              marker_svg(l->opt.marker, px[i].first, px[i].second, l->opt.marker_size, colour);
-        }
-        if (e - b == 1) occupied.push_back(px[b]);
-        g += "\"/>\n";
+  void line(std::size_t si, const detail::LineSeries* l) {
+    const std::string colour = colour_of(l->opt.colour, l->style);
+    const std::string dash = dash_of(l->opt.dash, l->style);
+    std::vector<std::pair<double, double>> px(l->x.size());
+    for (std::size_t i = 0; i < px.size(); ++i) px[i] = {L.x.map(l->x[i]), L.y.map(l->y[i])};
+    auto ok = [&](std::size_t i) {
+      return std::isfinite(l->x[i]) && std::isfinite(l->y[i]) &&
+             finite_px(px[i].first, px[i].second);
+    };
+    std::string g = fmt::format(
+        "<g class=\"line\" data-series=\"{}\" fill=\"none\" stroke=\"{}\" stroke-width=\"{}\"{} "
+        "stroke-linejoin=\"round\" stroke-linecap=\"{}\">\n",
+        si, xml_escape(colour), num(l->opt.width), dash_attr(dash),
+        dash.empty() ? "round" : "butt");
+    std::string markers;
+    for (const auto& [b, e] : runs(px.size(), ok)) {
+      g += "<polyline points=\"";
+      for (std::size_t i = b; i < e; ++i) {
+        g += fmt::format("{}{},{}", i == b ? "" : " ", num(px[i].first), num(px[i].second));
+        if (i > b) sample_segment(px[i - 1].first, px[i - 1].second, px[i].first, px[i].second);
+        markers += marker_svg(l->opt.marker, px[i].first, px[i].second, l->opt.marker_size, colour);
       }
-      g += "</g>\n";
-      if (!markers.empty())
-        g += fmt::format("<g class=\"markers\" data-series=\"{}\">{}</g>\n", si, markers);
-      lines += g;
-      if (!l->opt.label.empty())
-        legend.push_back({LegendEntry::Line, l->opt.label, colour, dash, l->opt.width, 1.0,
-                          l->opt.marker, l->opt.marker_size});
-    } else if (const auto* a = std::get_if<detail::AreaSeries>(&s)) {
-      const std::string colour = colour_of(a->opt.colour, a->style);
-      const bool to_zero = a->y_low.empty();
-      const double zero_px = L.y.map(0.0);
-      auto low = [&](std::size_t i) { return to_zero ? 0.0 : a->y_low[i]; };
-      auto ok = [&](std::size_t i) {
-        return std::isfinite(a->x[i]) && std::isfinite(a->y_high[i]) && std::isfinite(low(i)) &&
-               finite_px(L.x.map(a->x[i]), L.y.map(a->y_high[i])) && std::isfinite(L.y.map(low(i)));
-      };
-      std::string g = fmt::format(
-          "<g class=\"area\" data-series=\"{}\" fill=\"{}\" fill-opacity=\"{}\" stroke=\"none\">\n",
-          si, xml_escape(colour), fmt::format("{:.2f}", a->opt.opacity));
-      for (const auto& [b, e] : runs(a->x.size(), ok)) {
-        g += "<polygon points=\"";
-        for (std::size_t i = b; i < e; ++i) {
-          const double px = L.x.map(a->x[i]), py = L.y.map(a->y_high[i]);
-          g += fmt::format("{}{},{}", i == b ? "" : " ", num(px), num(py));
-          if (i > b) sample_segment(L.x.map(a->x[i - 1]), L.y.map(a->y_high[i - 1]), px, py);
-        }
-        if (to_zero) {
-          g += fmt::format(" {},{} {},{}", num(L.x.map(a->x[e - 1])), num(zero_px),
-                           num(L.x.map(a->x[b])), num(zero_px));
-        } else {
-          for (std::size_t i = e; i-- > b;)
-            g += fmt::format(" {},{}", num(L.x.map(a->x[i])), num(L.y.map(a->y_low[i])));
-        }
-        g += "\"/>\n";
+      if (e - b == 1) occupied.push_back(px[b]);
+      g += "\"/>\n";
+    }
+    g += "</g>\n";
+    if (!markers.empty())
+      g += fmt::format("<g class=\"markers\" data-series=\"{}\">{}</g>\n", si, markers);
+    lines += g;
+    if (!l->opt.label.empty())
+      legend.push_back({LegendEntry::Line, l->opt.label, colour, dash, l->opt.width, 1.0,
+                        l->opt.marker, l->opt.marker_size});
+  }
+
+  void area(std::size_t si, const detail::AreaSeries* a) {
+    const std::string colour = colour_of(a->opt.colour, a->style);
+    const bool to_zero = a->y_low.empty();
+    const double zero_px = L.y.map(0.0);
+    auto low = [&](std::size_t i) { return to_zero ? 0.0 : a->y_low[i]; };
+    auto ok = [&](std::size_t i) {
+      return std::isfinite(a->x[i]) && std::isfinite(a->y_high[i]) && std::isfinite(low(i)) &&
+             finite_px(L.x.map(a->x[i]), L.y.map(a->y_high[i])) && std::isfinite(L.y.map(low(i)));
+    };
+    std::string g = fmt::format(
+        "<g class=\"area\" data-series=\"{}\" fill=\"{}\" fill-opacity=\"{}\" stroke=\"none\">\n",
+        si, xml_escape(colour), fmt::format("{:.2f}", a->opt.opacity));
+    for (const auto& [b, e] : runs(a->x.size(), ok)) {
+      g += "<polygon points=\"";
+      for (std::size_t i = b; i < e; ++i) {
+        const double px = L.x.map(a->x[i]), py = L.y.map(a->y_high[i]);
+        g += fmt::format("{}{},{}", i == b ? "" : " ", num(px), num(py));
+        if (i > b) sample_segment(L.x.map(a->x[i - 1]), L.y.map(a->y_high[i - 1]), px, py);
       }
-      g += "</g>\n";
-      fills += g;
-      if (!a->opt.label.empty())
-        legend.push_back(
-            {LegendEntry::Fill, a->opt.label, colour, "", 0.0, a->opt.opacity, Marker::None, 0.0});
-    } else if (const auto* bs = std::get_if<detail::BarSeries>(&s)) {
-      const std::string colour = colour_of(bs->opt.colour, bs->style);
-      const double group = 0.8;  // of each category slot; the rest separates categories
-      const double bw = group / static_cast<double>(n_bar_series);
-      std::string g =
-          fmt::format("<g class=\"bar\" data-series=\"{}\" fill=\"{}\">\n", si, xml_escape(colour));
-      for (std::size_t i = 0; i < bs->values.size(); ++i) {
-        const double v = bs->values[i];
-        if (!std::isfinite(v)) continue;
-        const double xa =
-            static_cast<double>(i) - 0.5 * group + static_cast<double>(bs->group) * bw;
-        double x0 = L.x.map(xa), x1 = L.x.map(xa + bw);
-        if (x1 < x0) std::swap(x0, x1);
-        if (x1 - x0 > 4.0) x0 += 0.5, x1 -= 0.5;  // a hairline between neighbours
-        const double y0 = L.y.map(std::max(v, 0.0)), y1 = L.y.map(std::min(v, 0.0));
-        const double ytop = std::min(y0, y1), ybot = std::max(y0, y1);
-        if (!finite_px(x0, ytop) || !finite_px(x1, ybot)) continue;
-        g += fmt::format("<rect x=\"{}\" y=\"{}\" width=\"{}\" height=\"{}\"/>\n", num(x0),
-                         num(ytop), num(x1 - x0), num(ybot - ytop));
-        bar_boxes.push_back({x0, ytop, x1, ybot});
-      }
-      g += "</g>\n";
-      bars += g;
-      if (!bs->opt.label.empty())
-        legend.push_back(
-            {LegendEntry::Fill, bs->opt.label, colour, "", 0.0, 1.0, Marker::None, 0.0});
-    } else if (const auto* r = std::get_if<detail::RefLine>(&s)) {
-      if (!(r->vertical ? in_x(r->value) : in_y(r->value))) continue;
-      const double tw = text_width(r->opt.label, fs);
-      std::string g = fmt::format(
-          "<g class=\"refline\" data-series=\"{}\" stroke=\"{}\" stroke-width=\"{}\"{}>\n", si,
-          xml_escape(r->opt.colour), num(r->opt.width), dash_attr(r->opt.dash));
-      std::string label;
-      if (r->vertical) {
-        const double px = L.x.map(r->value);
-        g += fmt::format("<line x1=\"{0}\" y1=\"{1}\" x2=\"{0}\" y2=\"{2}\"/>\n", num(px),
-                         num(L.plot_top), num(L.plot_bottom));
-        const bool left_side = px + 4.0 + tw > L.plot_right;
-        const double lx = left_side ? px - 4.0 : px + 4.0;
-        const TextAnchor anchor = left_side ? TextAnchor::End : TextAnchor::Start;
-        const double ly = free_baseline(lx, L.plot_top + fs + 2.0, tw, fs, anchor);
-        if (!r->opt.label.empty()) label_boxes.push_back(text_box(lx, ly, tw, fs, anchor));
-        label = fmt::format("<text x=\"{}\" y=\"{}\" text-anchor=\"{}\"", num(lx), num(ly),
-                            left_side ? "end" : "start");
+      if (to_zero) {
+        g += fmt::format(" {},{} {},{}", num(L.x.map(a->x[e - 1])), num(zero_px),
+                         num(L.x.map(a->x[b])), num(zero_px));
       } else {
-        const double py = L.y.map(r->value);
-        g += fmt::format("<line x1=\"{0}\" y1=\"{1}\" x2=\"{2}\" y2=\"{1}\"/>\n", num(L.plot_left),
-                         num(py), num(L.plot_right));
-        const bool below = py - 4.0 - fs < L.plot_top;
-        const double ly = free_baseline(L.plot_right - 4.0, below ? py + fs + 2.0 : py - 4.0, tw,
-                                        fs, TextAnchor::End);
-        if (!r->opt.label.empty())
-          label_boxes.push_back(text_box(L.plot_right - 4.0, ly, tw, fs, TextAnchor::End));
-        label = fmt::format("<text x=\"{}\" y=\"{}\" text-anchor=\"end\"", num(L.plot_right - 4.0),
-                            num(ly));
+        for (std::size_t i = e; i-- > b;)
+          g += fmt::format(" {},{}", num(L.x.map(a->x[i])), num(L.y.map(a->y_low[i])));
       }
-      g += "</g>\n";
+      g += "\"/>\n";
+    }
+    g += "</g>\n";
+    fills += g;
+    if (!a->opt.label.empty())
+      legend.push_back(
+          {LegendEntry::Fill, a->opt.label, colour, "", 0.0, a->opt.opacity, Marker::None, 0.0});
+  }
+
+  void bar(std::size_t si, const detail::BarSeries* bs) {
+    const std::string colour = colour_of(bs->opt.colour, bs->style);
+    const double group = 0.8;  // of each category slot; the rest separates categories
+    const double bw = group / static_cast<double>(n_bar_series);
+    std::string g =
+        fmt::format("<g class=\"bar\" data-series=\"{}\" fill=\"{}\">\n", si, xml_escape(colour));
+    for (std::size_t i = 0; i < bs->values.size(); ++i) {
+      const double v = bs->values[i];
+      if (!std::isfinite(v)) continue;
+      const double xa = static_cast<double>(i) - 0.5 * group + static_cast<double>(bs->group) * bw;
+      double x0 = L.x.map(xa), x1 = L.x.map(xa + bw);
+      if (x1 < x0) std::swap(x0, x1);
+      if (x1 - x0 > 4.0) x0 += 0.5, x1 -= 0.5;  // a hairline between neighbours
+      const double y0 = L.y.map(std::max(v, 0.0)), y1 = L.y.map(std::min(v, 0.0));
+      const double ytop = std::min(y0, y1), ybot = std::max(y0, y1);
+      if (!finite_px(x0, ytop) || !finite_px(x1, ybot)) continue;
+      g += fmt::format("<rect x=\"{}\" y=\"{}\" width=\"{}\" height=\"{}\"/>\n", num(x0), num(ytop),
+                       num(x1 - x0), num(ybot - ytop));
+      bar_boxes.push_back({x0, ytop, x1, ybot});
+    }
+    g += "</g>\n";
+    bars += g;
+    if (!bs->opt.label.empty())
+      legend.push_back({LegendEntry::Fill, bs->opt.label, colour, "", 0.0, 1.0, Marker::None, 0.0});
+  }
+
+  void reference(std::size_t si, const detail::RefLine* r) {
+    if (!(r->vertical ? in_x(r->value) : in_y(r->value))) return;
+    const double tw = text_width(r->opt.label, fs);
+    std::string g = fmt::format(
+        "<g class=\"refline\" data-series=\"{}\" stroke=\"{}\" stroke-width=\"{}\"{}>\n", si,
+        xml_escape(r->opt.colour), num(r->opt.width), dash_attr(r->opt.dash));
+    std::string label;
+    if (r->vertical) {
+      const double px = L.x.map(r->value);
+      g += fmt::format("<line x1=\"{0}\" y1=\"{1}\" x2=\"{0}\" y2=\"{2}\"/>\n", num(px),
+                       num(L.plot_top), num(L.plot_bottom));
+      const bool left_side = px + 4.0 + tw > L.plot_right;
+      const double lx = left_side ? px - 4.0 : px + 4.0;
+      const TextAnchor anchor = left_side ? TextAnchor::End : TextAnchor::Start;
+      const double ly = free_baseline(lx, L.plot_top + fs + 2.0, tw, fs, anchor);
+      if (!r->opt.label.empty()) label_boxes.push_back(text_box(lx, ly, tw, fs, anchor));
+      label = fmt::format("<text x=\"{}\" y=\"{}\" text-anchor=\"{}\"", num(lx), num(ly),
+                          left_side ? "end" : "start");
+    } else {
+      const double py = L.y.map(r->value);
+      g += fmt::format("<line x1=\"{0}\" y1=\"{1}\" x2=\"{2}\" y2=\"{1}\"/>\n", num(L.plot_left),
+                       num(py), num(L.plot_right));
+      const bool below = py - 4.0 - fs < L.plot_top;
+      const double ly = free_baseline(L.plot_right - 4.0, below ? py + fs + 2.0 : py - 4.0, tw, fs,
+                                      TextAnchor::End);
       if (!r->opt.label.empty())
-        ref_labels +=
-            label + fmt::format(
-                        " class=\"refline-label\" data-series=\"{}\" fill=\"{}\" font-size=\"{}\" "
-                        "stroke=\"#ffffff\" stroke-width=\"3\" paint-order=\"stroke\">{}</text>\n",
-                        si, xml_escape(r->opt.colour), num(fs), xml_escape(r->opt.label));
-      refs += g;
-    } else if (const auto* t = std::get_if<detail::TextLabel>(&s)) {
-      if (!in_x(t->x) || !in_y(t->y)) continue;
-      pending_texts.push_back({si, t});
+        label_boxes.push_back(text_box(L.plot_right - 4.0, ly, tw, fs, TextAnchor::End));
+      label = fmt::format("<text x=\"{}\" y=\"{}\" text-anchor=\"end\"", num(L.plot_right - 4.0),
+                          num(ly));
+    }
+    g += "</g>\n";
+    if (!r->opt.label.empty())
+      ref_labels +=
+          label + fmt::format(
+                      " class=\"refline-label\" data-series=\"{}\" fill=\"{}\" font-size=\"{}\" "
+                      "stroke=\"#ffffff\" stroke-width=\"3\" paint-order=\"stroke\">{}</text>\n",
+                      si, xml_escape(r->opt.colour), num(fs), xml_escape(r->opt.label));
+    refs += g;
+  }
+
+  // Text labels, after every reference label is placed.
+  void place_texts() {
+    for (const auto& [si, t] : pending_texts) {
+      const double x = L.x.map(t->x) + t->opt.dx;
+      const double y =
+          free_baseline(x, L.y.map(t->y) + t->opt.dy, text_width(t->text, t->opt.font_size),
+                        t->opt.font_size, t->opt.anchor);
+      texts += fmt::format(
+          "<text class=\"label\" data-series=\"{}\" x=\"{}\" y=\"{}\" text-anchor=\"{}\" "
+          "fill=\"{}\" font-size=\"{}\" stroke=\"#ffffff\" stroke-width=\"3\" "
+          "paint-order=\"stroke\">{}</text>\n",
+          si, num(x), num(y), anchor_name(t->opt.anchor), xml_escape(t->opt.colour),
+          num(t->opt.font_size), xml_escape(t->text));
     }
   }
-  for (const auto& [si, t] : pending_texts) {
-    const double x = L.x.map(t->x) + t->opt.dx;
-    const double y = free_baseline(x, L.y.map(t->y) + t->opt.dy,
-                                   text_width(t->text, t->opt.font_size), t->opt.font_size,
-                                   t->opt.anchor);
-    texts += fmt::format(
-        "<text class=\"label\" data-series=\"{}\" x=\"{}\" y=\"{}\" text-anchor=\"{}\" "
-        "fill=\"{}\" font-size=\"{}\" stroke=\"#ffffff\" stroke-width=\"3\" "
-        "paint-order=\"stroke\">{}</text>\n",
-        si, num(x), num(y), anchor_name(t->opt.anchor), xml_escape(t->opt.colour),
-        num(t->opt.font_size), xml_escape(t->text));
+
+  // The svg element with its title, description, clip path and background;
+  // sets `id` from the plot's contents.
+  std::string head(const std::string& plot_body) {
+    // Ids that stay apart when several charts share one HTML page.
+    id = fmt::format("rxsvg-{:016x}", fnv1a(plot_body + texts + o.title + o.x_label + o.y_label +
+                                            fmt::format("{}x{}", num(o.width), num(o.height))));
+
+    std::string out = svg_head(o.height);
+    std::string accessible_title = o.title;
+    if (accessible_title.empty())
+      accessible_title = !o.y_label.empty() && !o.x_label.empty()
+                             ? o.y_label + " versus " + o.x_label
+                             : std::string("Chart");
+    out += fmt::format("<title id=\"{}-title\">{}</title>\n", id, xml_escape(accessible_title));
+    if (!o.description.empty())
+      out += fmt::format("<desc id=\"{}-desc\">{}</desc>\n", id, xml_escape(o.description));
+    out += fmt::format(
+        "<defs><clipPath id=\"{}-clip\"><rect x=\"{}\" y=\"{}\" width=\"{}\" height=\"{}\"/>"
+        "</clipPath></defs>\n",
+        id, num(L.plot_left - kClipPad), num(L.plot_top - kClipPad),
+        num(L.plot_right - L.plot_left + 2 * kClipPad),
+        num(L.plot_bottom - L.plot_top + 2 * kClipPad));
+    out += fmt::format("<rect class=\"background\" width=\"{}\" height=\"{}\" fill=\"#ffffff\"/>\n",
+                       dim(o.width), dim(o.height));
+
+    return out;
   }
-  const std::string plot_body = fills + bars + refs + lines;
-  texts = ref_labels + texts;  // above the data, unclipped, with a white halo to stay legible
 
-  // Ids that stay apart when several charts share one HTML page.
-  const std::string id =
-      fmt::format("rxsvg-{:016x}", fnv1a(plot_body + texts + o.title + o.x_label + o.y_label +
-                                         fmt::format("{}x{}", num(o.width), num(o.height))));
-
-  const auto svg_head = [&](double height) {
+  std::string svg_head(double height) const {
     return fmt::format(
         "<svg xmlns=\"http://www.w3.org/2000/svg\" width=\"{0}\" height=\"{1}\" viewBox=\"0 0 {0} "
         "{1}\" role=\"img\" aria-labelledby=\"{2}-title{3}\" font-family=\"sans-serif\" "
         "font-size=\"{4}\">\n",
         dim(o.width), dim(height), id, o.description.empty() ? "" : fmt::format(" {}-desc", id),
         num(fs));
-  };
-  const std::string head = svg_head(o.height);
-  std::string out = head;
-  std::string accessible_title = o.title;
-  if (accessible_title.empty())
-    accessible_title = !o.y_label.empty() && !o.x_label.empty() ? o.y_label + " versus " + o.x_label
-                                                                : std::string("Chart");
-  out += fmt::format("<title id=\"{}-title\">{}</title>\n", id, xml_escape(accessible_title));
-  if (!o.description.empty())
-    out += fmt::format("<desc id=\"{}-desc\">{}</desc>\n", id, xml_escape(o.description));
-  out += fmt::format(
-      "<defs><clipPath id=\"{}-clip\"><rect x=\"{}\" y=\"{}\" width=\"{}\" height=\"{}\"/>"
-      "</clipPath></defs>\n",
-      id, num(L.plot_left - kClipPad), num(L.plot_top - kClipPad),
-      num(L.plot_right - L.plot_left + 2 * kClipPad),
-      num(L.plot_bottom - L.plot_top + 2 * kClipPad));
-  out += fmt::format("<rect class=\"background\" width=\"{}\" height=\"{}\" fill=\"#ffffff\"/>\n",
-                     dim(o.width), dim(o.height));
+  }
 
-  // Gridlines, and a darker line at zero when zero lies inside the y range.
-  const bool categorical = !categories_.empty();
-  out += fmt::format("<g class=\"grid\" stroke=\"{}\" stroke-width=\"1\">\n", kGridColour);
-  if (o.grid_x && !categorical)
+  std::string grid() const {
+    std::string out;
+    // Gridlines, and a darker line at zero when zero lies inside the y range.
+    out += fmt::format("<g class=\"grid\" stroke=\"{}\" stroke-width=\"1\">\n", kGridColour);
+    if (o.grid_x && !categorical)
+      for (double t : L.x_ticks)
+        if (in_x(t))
+          out += fmt::format("<line x1=\"{0}\" y1=\"{1}\" x2=\"{0}\" y2=\"{2}\"/>\n",
+                             num(L.x.map(t)), num(L.plot_top), num(L.plot_bottom));
+    if (o.grid_y)
+      for (double t : L.y_ticks)
+        if (in_y(t))
+          out += fmt::format("<line x1=\"{0}\" y1=\"{1}\" x2=\"{2}\" y2=\"{1}\"/>\n",
+                             num(L.plot_left), num(L.y.map(t)), num(L.plot_right));
+    out += "</g>\n";
+    if (std::min(L.y.d0, L.y.d1) < 0.0 && std::max(L.y.d0, L.y.d1) > 0.0)
+      out += fmt::format(
+          "<line class=\"zero\" x1=\"{0}\" y1=\"{1}\" x2=\"{2}\" y2=\"{1}\" stroke=\"{3}\" "
+          "stroke-width=\"1\"/>\n",
+          num(L.plot_left), num(L.y.map(0.0)), num(L.plot_right), kZeroColour);
+
+    return out;
+  }
+
+  // Axes, ticks and tick labels; widest_y: the widest y tick label.
+  std::string axes(double& widest_y) const {
+    std::string out;
+    // Axes: left and bottom lines, outward ticks, tick labels.
+    out += fmt::format("<g class=\"axes\" stroke=\"{}\" stroke-width=\"1\" fill=\"none\">\n",
+                       kAxisColour);
+    out += fmt::format("<line x1=\"{0}\" y1=\"{1}\" x2=\"{0}\" y2=\"{2}\"/>\n", num(L.plot_left),
+                       num(L.plot_top), num(L.plot_bottom));
+    out += fmt::format("<line x1=\"{0}\" y1=\"{1}\" x2=\"{2}\" y2=\"{1}\"/>\n", num(L.plot_left),
+                       num(L.plot_bottom), num(L.plot_right));
     for (double t : L.x_ticks)
       if (in_x(t))
         out += fmt::format("<line x1=\"{0}\" y1=\"{1}\" x2=\"{0}\" y2=\"{2}\"/>\n", num(L.x.map(t)),
-                           num(L.plot_top), num(L.plot_bottom));
-  if (o.grid_y)
+                           num(L.plot_bottom), num(L.plot_bottom + kTickLength));
     for (double t : L.y_ticks)
       if (in_y(t))
         out += fmt::format("<line x1=\"{0}\" y1=\"{1}\" x2=\"{2}\" y2=\"{1}\"/>\n",
-                           num(L.plot_left), num(L.y.map(t)), num(L.plot_right));
-  out += "</g>\n";
-  if (std::min(L.y.d0, L.y.d1) < 0.0 && std::max(L.y.d0, L.y.d1) > 0.0)
-    out += fmt::format(
-        "<line class=\"zero\" x1=\"{0}\" y1=\"{1}\" x2=\"{2}\" y2=\"{1}\" stroke=\"{3}\" "
-        "stroke-width=\"1\"/>\n",
-        num(L.plot_left), num(L.y.map(0.0)), num(L.plot_right), kZeroColour);
+                           num(L.plot_left - kTickLength), num(L.y.map(t)), num(L.plot_left));
+    out += "</g>\n";
 
-  out += fmt::format("<g class=\"plot\" clip-path=\"url(#{}-clip)\">\n", id) + plot_body + "</g>\n";
-  out += texts;
-
-  // Axes: left and bottom lines, outward ticks, tick labels.
-  out += fmt::format("<g class=\"axes\" stroke=\"{}\" stroke-width=\"1\" fill=\"none\">\n",
-                     kAxisColour);
-  out += fmt::format("<line x1=\"{0}\" y1=\"{1}\" x2=\"{0}\" y2=\"{2}\"/>\n", num(L.plot_left),
-                     num(L.plot_top), num(L.plot_bottom));
-  out += fmt::format("<line x1=\"{0}\" y1=\"{1}\" x2=\"{2}\" y2=\"{1}\"/>\n", num(L.plot_left),
-                     num(L.plot_bottom), num(L.plot_right));
-  for (double t : L.x_ticks)
-    if (in_x(t))
-      out += fmt::format("<line x1=\"{0}\" y1=\"{1}\" x2=\"{0}\" y2=\"{2}\"/>\n", num(L.x.map(t)),
-                         num(L.plot_bottom), num(L.plot_bottom + kTickLength));
-  for (double t : L.y_ticks)
-    if (in_y(t))
-      out += fmt::format("<line x1=\"{0}\" y1=\"{1}\" x2=\"{2}\" y2=\"{1}\"/>\n",
-                         num(L.plot_left - kTickLength), num(L.y.map(t)), num(L.plot_left));
-  out += "</g>\n";
-
-  out +=
-      fmt::format("<g class=\"tick-labels\" fill=\"{}\" font-size=\"{}\">\n", kAxisColour, num(fs));
-  const double xl_y = L.plot_bottom + kTickLength + kTickGap;
-  for (std::size_t i = 0; i < L.x_ticks.size(); ++i) {
-    if (!in_x(L.x_ticks[i])) continue;
-    const double px = L.x.map(L.x_ticks[i]);
-    if (L.rotate_x_labels)
-      out += fmt::format(
-          "<text x=\"{0}\" y=\"{1}\" text-anchor=\"end\" dy=\"0.7em\" "
-          "transform=\"rotate(-{2} {0} {1})\">{3}</text>\n",
-          num(px), num(xl_y), dim(kSlant), xml_escape(L.x_tick_labels[i]));
-    else
-      out += fmt::format("<text x=\"{}\" y=\"{}\" text-anchor=\"middle\" dy=\"0.8em\">{}</text>\n",
-                         num(px), num(xl_y), xml_escape(L.x_tick_labels[i]));
-  }
-  double widest_y = 0.0;
-  for (std::size_t i = 0; i < L.y_ticks.size(); ++i) {
-    if (!in_y(L.y_ticks[i])) continue;
-    widest_y = std::max(widest_y, text_width(L.y_tick_labels[i], fs));
-    out += fmt::format("<text x=\"{}\" y=\"{}\" text-anchor=\"end\" dy=\"0.35em\">{}</text>\n",
-                       num(L.plot_left - kTickLength - kTickGap), num(L.y.map(L.y_ticks[i])),
-                       xml_escape(L.y_tick_labels[i]));
-  }
-  out += "</g>\n";
-
-  // Axis labels and title.
-  const double label_size = fs + 1.0;
-  if (!o.x_label.empty()) {
-    double tick_block = fs;
-    if (L.rotate_x_labels) {
-      double w = 0.0;
-      for (const auto& l : L.x_tick_labels) w = std::max(w, text_width(l, fs));
-      tick_block = w * std::sin(kSlant * std::numbers::pi / 180.0) +
-                   fs * std::cos(kSlant * std::numbers::pi / 180.0);
-    }
-    out += fmt::format(
-        "<text class=\"x-label\" x=\"{}\" y=\"{}\" text-anchor=\"middle\" fill=\"#222222\" "
-        "font-size=\"{}\">{}</text>\n",
-        num(0.5 * (L.plot_left + L.plot_right)), num(xl_y + tick_block + 8.0 + 0.8 * label_size),
-        num(label_size), xml_escape(o.x_label));
-  }
-  if (!o.y_label.empty()) {
-    const double x = L.plot_left - kTickLength - kTickGap - widest_y - 8.0;
-    const double y = 0.5 * (L.plot_top + L.plot_bottom);
-    out += fmt::format(
-        "<text class=\"y-label\" x=\"{0}\" y=\"{1}\" text-anchor=\"middle\" fill=\"#222222\" "
-        "font-size=\"{2}\" transform=\"rotate(-90 {0} {1})\">{3}</text>\n",
-        num(x), num(y), num(label_size), xml_escape(o.y_label));
-  }
-  if (!o.title.empty()) {
-    const double w = text_width(o.title, kTitleSize);
-    const double cx =
-        std::clamp(0.5 * (L.plot_left + L.plot_right), std::min(0.5 * w + 4.0, 0.5 * o.width),
-                   std::max(o.width - 0.5 * w - 4.0, 0.5 * o.width));
-    out += fmt::format(
-        "<text class=\"title\" x=\"{}\" y=\"{}\" text-anchor=\"middle\" fill=\"#111111\" "
-        "font-size=\"{}\" font-weight=\"bold\">{}</text>\n",
-        num(cx), num(std::max(kTitleSize + 3.0, L.plot_top - 14.0)), dim(kTitleSize),
-        xml_escape(o.title));
-  }
-
-  // Legend: a box in the plot corner chosen by the options, or (Auto) the
-  // corner over the fewest drawn points.
-  if (!legend.empty() && o.legend != LegendPosition::None) {
-    const double row = 1.5 * fs;
-    double text_w = 0.0;
-    for (const auto& e : legend) text_w = std::max(text_w, text_width(e.label, fs));
-    const double bw = 2 * kLegendPad + kLegendSwatch + 6.0 + text_w;
-    const double bh = 2 * kLegendPad + row * static_cast<double>(legend.size()) - (row - fs);
-    auto corner = [&](LegendPosition p) {
-      const bool right_side = p == LegendPosition::TopRight || p == LegendPosition::BottomRight;
-      const bool top_side = p == LegendPosition::TopRight || p == LegendPosition::TopLeft;
-      const double x0 = right_side ? plot.x1 - kLegendInset - bw : plot.x0 + kLegendInset;
-      const double y0 = top_side ? plot.y0 + kLegendInset : plot.y1 - kLegendInset - bh;
-      return Box{x0, y0, x0 + bw, y0 + bh};
-    };
-    LegendPosition where = o.legend;
-    bool below = false;  // under the chart, which grows to hold it
-    if (where == LegendPosition::Auto) {
-      std::size_t best = std::numeric_limits<std::size_t>::max();
-      for (auto p : {LegendPosition::TopRight, LegendPosition::TopLeft, LegendPosition::BottomRight,
-                     LegendPosition::BottomLeft}) {
-        const Box b = corner(p);
-        std::size_t hits = 0;
-        for (const auto& [x, y] : occupied) hits += b.contains(x, y);
-        for (const auto& bar : bar_boxes)
-          hits += 20 * (bar.x0 < b.x1 && bar.x1 > b.x0 && bar.y0 < b.y1 && bar.y1 > b.y0);
-        if (hits < best) best = hits, where = p;
-      }
-      // A legend never hides data: when every corner holds some, it goes
-      // under the chart.
-      below = best > 0;
-    }
-    Box b = corner(where);
-    if (below) {
-      b = Box{plot.x0, o.height, plot.x0 + bw, o.height + bh};
-      out.replace(0, head.size(), svg_head(o.height + bh + kLegendInset));
-    }
-    out += fmt::format(
-        "<g class=\"legend\" font-size=\"{}\">\n<rect x=\"{}\" y=\"{}\" width=\"{}\" height=\"{}\" "
-        "rx=\"3\" fill=\"#ffffff\" fill-opacity=\"0.9\" stroke=\"#bbbbbb\" stroke-width=\"1\"/>\n",
-        num(fs), num(b.x0), num(b.y0), num(bw), num(bh));
-    for (std::size_t i = 0; i < legend.size(); ++i) {
-      const auto& e = legend[i];
-      const double cy = b.y0 + kLegendPad + 0.5 * fs + row * static_cast<double>(i);
-      const double sx = b.x0 + kLegendPad;
-      if (e.kind == LegendEntry::Line) {
+    out += fmt::format("<g class=\"tick-labels\" fill=\"{}\" font-size=\"{}\">\n", kAxisColour,
+                       num(fs));
+    const double xl_y = L.plot_bottom + kTickLength + kTickGap;
+    for (std::size_t i = 0; i < L.x_ticks.size(); ++i) {
+      if (!in_x(L.x_ticks[i])) continue;
+      const double px = L.x.map(L.x_ticks[i]);
+      if (L.rotate_x_labels)
         out += fmt::format(
-            "<line x1=\"{0}\" y1=\"{1}\" x2=\"{2}\" y2=\"{1}\" stroke=\"{3}\" "
-            "stroke-width=\"{4}\"{5}/>\n",
-            num(sx), num(cy), num(sx + kLegendSwatch), xml_escape(e.colour), num(e.width),
-            dash_attr(e.dash));
-        out += marker_svg(e.marker, sx + 0.5 * kLegendSwatch, cy, e.marker_size, e.colour);
-      } else {
-        out += fmt::format(
-            "<rect x=\"{}\" y=\"{}\" width=\"{}\" height=\"{}\" fill=\"{}\" fill-opacity=\"{}\" "
-            "stroke=\"{}\" stroke-width=\"1\"/>\n",
-            num(sx), num(cy - 0.4 * fs), num(kLegendSwatch), num(0.8 * fs), xml_escape(e.colour),
-            fmt::format("{:.2f}", e.opacity), xml_escape(e.colour));
-      }
-      out += fmt::format("<text x=\"{}\" y=\"{}\" dy=\"0.35em\" fill=\"#222222\">{}</text>\n",
-                         num(sx + kLegendSwatch + 6.0), num(cy), xml_escape(e.label));
+            "<text x=\"{0}\" y=\"{1}\" text-anchor=\"end\" dy=\"0.7em\" "
+            "transform=\"rotate(-{2} {0} {1})\">{3}</text>\n",
+            num(px), num(xl_y), dim(kSlant), xml_escape(L.x_tick_labels[i]));
+      else
+        out +=
+            fmt::format("<text x=\"{}\" y=\"{}\" text-anchor=\"middle\" dy=\"0.8em\">{}</text>\n",
+                        num(px), num(xl_y), xml_escape(L.x_tick_labels[i]));
+    }
+    for (std::size_t i = 0; i < L.y_ticks.size(); ++i) {
+      if (!in_y(L.y_ticks[i])) continue;
+      widest_y = std::max(widest_y, text_width(L.y_tick_labels[i], fs));
+      out += fmt::format("<text x=\"{}\" y=\"{}\" text-anchor=\"end\" dy=\"0.35em\">{}</text>\n",
+                         num(L.plot_left - kTickLength - kTickGap), num(L.y.map(L.y_ticks[i])),
+                         xml_escape(L.y_tick_labels[i]));
     }
     out += "</g>\n";
+
+    return out;
   }
-  out += "</svg>";
-  return out;
+
+  std::string axis_labels(double widest_y) const {
+    std::string out;
+    const double xl_y = L.plot_bottom + kTickLength + kTickGap;
+    // Axis labels and title.
+    const double label_size = fs + 1.0;
+    if (!o.x_label.empty()) {
+      double tick_block = fs;
+      if (L.rotate_x_labels) {
+        double w = 0.0;
+        for (const auto& l : L.x_tick_labels) w = std::max(w, text_width(l, fs));
+        tick_block = w * std::sin(kSlant * std::numbers::pi / 180.0) +
+                     fs * std::cos(kSlant * std::numbers::pi / 180.0);
+      }
+      out += fmt::format(
+          "<text class=\"x-label\" x=\"{}\" y=\"{}\" text-anchor=\"middle\" fill=\"#222222\" "
+          "font-size=\"{}\">{}</text>\n",
+          num(0.5 * (L.plot_left + L.plot_right)), num(xl_y + tick_block + 8.0 + 0.8 * label_size),
+          num(label_size), xml_escape(o.x_label));
+    }
+    if (!o.y_label.empty()) {
+      const double x = L.plot_left - kTickLength - kTickGap - widest_y - 8.0;
+      const double y = 0.5 * (L.plot_top + L.plot_bottom);
+      out += fmt::format(
+          "<text class=\"y-label\" x=\"{0}\" y=\"{1}\" text-anchor=\"middle\" fill=\"#222222\" "
+          "font-size=\"{2}\" transform=\"rotate(-90 {0} {1})\">{3}</text>\n",
+          num(x), num(y), num(label_size), xml_escape(o.y_label));
+    }
+    if (!o.title.empty()) {
+      const double w = text_width(o.title, kTitleSize);
+      const double cx =
+          std::clamp(0.5 * (L.plot_left + L.plot_right), std::min(0.5 * w + 4.0, 0.5 * o.width),
+                     std::max(o.width - 0.5 * w - 4.0, 0.5 * o.width));
+      out += fmt::format(
+          "<text class=\"title\" x=\"{}\" y=\"{}\" text-anchor=\"middle\" fill=\"#111111\" "
+          "font-size=\"{}\" font-weight=\"bold\">{}</text>\n",
+          num(cx), num(std::max(kTitleSize + 3.0, L.plot_top - 14.0)), dim(kTitleSize),
+          xml_escape(o.title));
+    }
+
+    return out;
+  }
+
+  // The legend's markup; a legend that goes under the chart makes `out`'s
+  // head (its first head_size characters) taller.
+  std::string legend_box(std::string& out, std::size_t head_size) const {
+    std::string g;
+    // Legend: a box in the plot corner chosen by the options, or (Auto) the
+    // corner over the fewest drawn points.
+    if (!legend.empty() && o.legend != LegendPosition::None) {
+      const double row = 1.5 * fs;
+      double text_w = 0.0;
+      for (const auto& e : legend) text_w = std::max(text_w, text_width(e.label, fs));
+      const double bw = 2 * kLegendPad + kLegendSwatch + 6.0 + text_w;
+      const double bh = 2 * kLegendPad + row * static_cast<double>(legend.size()) - (row - fs);
+      auto corner = [&](LegendPosition p) {
+        const bool right_side = p == LegendPosition::TopRight || p == LegendPosition::BottomRight;
+        const bool top_side = p == LegendPosition::TopRight || p == LegendPosition::TopLeft;
+        const double x0 = right_side ? plot.x1 - kLegendInset - bw : plot.x0 + kLegendInset;
+        const double y0 = top_side ? plot.y0 + kLegendInset : plot.y1 - kLegendInset - bh;
+        return Box{x0, y0, x0 + bw, y0 + bh};
+      };
+      LegendPosition where = o.legend;
+      bool below = false;  // under the chart, which grows to hold it
+      if (where == LegendPosition::Auto) {
+        std::size_t best = std::numeric_limits<std::size_t>::max();
+        for (auto p : {LegendPosition::TopRight, LegendPosition::TopLeft,
+                       LegendPosition::BottomRight, LegendPosition::BottomLeft}) {
+          const Box b = corner(p);
+          std::size_t hits = 0;
+          for (const auto& [x, y] : occupied) hits += b.contains(x, y);
+          for (const auto& bar : bar_boxes)
+            hits += 20 * (bar.x0 < b.x1 && bar.x1 > b.x0 && bar.y0 < b.y1 && bar.y1 > b.y0);
+          if (hits < best) best = hits, where = p;
+        }
+        // A legend never hides data: when every corner holds some, it goes
+        // under the chart.
+        below = best > 0;
+      }
+      Box b = corner(where);
+      if (below) {
+        b = Box{plot.x0, o.height, plot.x0 + bw, o.height + bh};
+        out.replace(0, head_size, svg_head(o.height + bh + kLegendInset));
+      }
+      g += fmt::format(
+          "<g class=\"legend\" font-size=\"{}\">\n<rect x=\"{}\" y=\"{}\" width=\"{}\" "
+          "height=\"{}\" "
+          "rx=\"3\" fill=\"#ffffff\" fill-opacity=\"0.9\" stroke=\"#bbbbbb\" "
+          "stroke-width=\"1\"/>\n",
+          num(fs), num(b.x0), num(b.y0), num(bw), num(bh));
+      for (std::size_t i = 0; i < legend.size(); ++i) {
+        const auto& e = legend[i];
+        const double cy = b.y0 + kLegendPad + 0.5 * fs + row * static_cast<double>(i);
+        const double sx = b.x0 + kLegendPad;
+        if (e.kind == LegendEntry::Line) {
+          g += fmt::format(
+              "<line x1=\"{0}\" y1=\"{1}\" x2=\"{2}\" y2=\"{1}\" stroke=\"{3}\" "
+              "stroke-width=\"{4}\"{5}/>\n",
+              num(sx), num(cy), num(sx + kLegendSwatch), xml_escape(e.colour), num(e.width),
+              dash_attr(e.dash));
+          g += marker_svg(e.marker, sx + 0.5 * kLegendSwatch, cy, e.marker_size, e.colour);
+        } else {
+          g += fmt::format(
+              "<rect x=\"{}\" y=\"{}\" width=\"{}\" height=\"{}\" fill=\"{}\" fill-opacity=\"{}\" "
+              "stroke=\"{}\" stroke-width=\"1\"/>\n",
+              num(sx), num(cy - 0.4 * fs), num(kLegendSwatch), num(0.8 * fs), xml_escape(e.colour),
+              fmt::format("{:.2f}", e.opacity), xml_escape(e.colour));
+        }
+        g += fmt::format("<text x=\"{}\" y=\"{}\" dy=\"0.35em\" fill=\"#222222\">{}</text>\n",
+                         num(sx + kLegendSwatch + 6.0), num(cy), xml_escape(e.label));
+      }
+      g += "</g>\n";
+    }
+    return g;
+  }
+
+  const ChartOptions& o;
+  const ChartLayout& L;
+  const double fs;
+  const Box plot;
+  const std::size_t n_bar_series;
+  const bool categorical;
+  std::string fills, bars, refs, lines, ref_labels, texts;
+  std::vector<LegendEntry> legend;
+  std::vector<std::pair<double, double>> occupied;
+  std::vector<Box> bar_boxes;
+  std::vector<Box> label_boxes;  // reference-line labels placed so far
+  std::vector<PendingText> pending_texts;
+  std::string id;  // of the svg element, from its contents
+};
+
+}  // namespace
+
+std::string Chart::render() const {
+  return "<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n" + render_svg() + "\n";
+}
+
+std::string Chart::render_inline() const { return render_svg(); }
+
+std::string Chart::render_svg() const {
+  const ChartLayout L = layout();
+  Drawing d(options_, L, bar_series_, !categories_.empty());
+  for (std::size_t si = 0; si < series_.size(); ++si) d.add(si, series_[si]);
+  return d.svg();
 }
 
 }  // namespace rxtrain::svg
