@@ -598,121 +598,152 @@ StageResult run_cstr(const Mechanism& mech, const ReactorSpec& spec, const Strea
   return run_cstr(mech, spec, inlet, basis, ws, options);
 }
 
-StageResult run_cstr(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
-                     const ConversionBasis& basis, CstrWorkspace& workspace,
-                     const CstrOptions& options) {
-  const int n = mech.n_species();
-  Buffers& ws = workspace.state();
-  ws.beta = rate_multipliers(mech, spec);
-  const std::vector<double>& beta = ws.beta;
-  CstrBalances& balances = ws.balances;
-  balances.reset(mech, beta, spec.heat, inlet);
-  CstrSolver& solver = ws.solver;
-  solver.reset(balances, options.newton);
-  LimitOnce limit(mech, beta, inlet, spec.heat, ws.pfr, options.pfr);
-  Counts extra;  // the isothermal pre-solve
+namespace {
 
-  const double X_in = basis.conversion(inlet);
-  const bool sizing = spec.target_conversion.has_value();
+// One tank's run: what its steps share. The workspace's balances and
+// solver are bound to this tank.
+struct Tank {
+  const Mechanism& mech;
+  const ReactorSpec& spec;
+  const Stream& inlet;
+  const ConversionBasis& basis;
+  CstrWorkspace& workspace;
+  const CstrOptions& options;
+  Buffers& ws;
+  CstrBalances& balances;
+  CstrSolver& solver;
+  LimitOnce limit;
+  Counts extra;  // the isothermal pre-solve
+  // The outcome: the reported state, the volume, every steady state found.
   State out;
   double V = 0;
   std::vector<State> states;
   std::vector<std::string> warnings;
 
-  if (sizing) {
-    const double X_t = *spec.target_conversion;
-    // A target out of reach: the message quotes what the tank can reach.
-    auto refuse = [&]() {
-      std::optional<StageReach> reach;
-      try {
-        reach = cstr_reach(mech, spec, inlet, basis, workspace, options);
-      } catch (const SolverError&) {
-      }
-      if (reach) throw InfeasibleError(spec.where, out_of_reach_text(spec, X_t, *reach, mech));
-      throw InfeasibleError(
-          spec.where, fmt::format("stage {}: target conversion {:.4f} is out of reach: the net "
-                                  "rate there is zero or negative",
-                                  spec.id, X_t));
-    };
+  Tank(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
+       const ConversionBasis& basis, CstrWorkspace& workspace, const CstrOptions& options)
+      : mech(mech),
+        spec(spec),
+        inlet(inlet),
+        basis(basis),
+        workspace(workspace),
+        options(options),
+        ws(workspace.state()),
+        balances(ws.balances),
+        solver(ws.solver),
+        limit(mech, (ws.beta = rate_multipliers(mech, spec)), inlet, spec.heat, ws.pfr,
+              options.pfr) {
+    balances.reset(mech, ws.beta, spec.heat, inlet);
+    solver.reset(balances, options.newton);
+  }
+
+  // A target out of reach: the message quotes what the tank can reach.
+  [[noreturn]] void refuse(double X_t) {
+    std::optional<StageReach> reach;
+    try {
+      reach = cstr_reach(mech, spec, inlet, basis, workspace, options);
+    } catch (const SolverError&) {
+    }
+    if (reach) throw InfeasibleError(spec.where, out_of_reach_text(spec, X_t, *reach, mech));
+    throw InfeasibleError(spec.where,
+                          fmt::format("stage {}: target conversion {:.4f} is out of reach: the "
+                                      "net rate there is zero or negative",
+                                      spec.id, X_t));
+  }
+
+  void size(double X_t) {
+    const double X_in = basis.conversion(inlet);
     if (X_t <= X_in)
       throw InputError(spec.where,
                        fmt::format("stage {}: target conversion {:.4f} is not above the "
                                    "conversion at its inlet ({:.4f})",
                                    spec.id, X_t, X_in));
-    if (mech.n_reactions() == 1) {
-      // One reaction: the target fixes the extent, hence the outlet flows;
-      // the energy balance then fixes T and the rate there fixes V.
-      const auto& nu = mech.reactions()[0].nu;
-      const double nu_key = nu[basis.key];
-      if (!(nu_key < 0)) refuse();
-      const double extent = (X_t - X_in) * basis.F_key_feed / -nu_key;
-      for (int i = 0; i < n; ++i)  // a reactant would run out first
-        if (inlet.F[i] + nu[i] * extent < -1e-12 * inlet.total_flow()) refuse();
-      try {
-        const Stream o = stream_after_extent(mech, inlet, spec.heat, 0, extent);
-        out.F = o.F;
-        out.T = o.T;
-      } catch (const SolverError& e) {
-        throw SolverError(
-            fmt::format("{}: outlet temperature at X = {:.4f}: {}", spec.id, X_t, e.what()));
-      }
-      const double R = balances.volumetric_rate(out.F.data(), out.T, 0);
-      if (!(R > 0) || !std::isfinite(R)) refuse();
-      V = extent / R;
-    } else {
-      // Several reactions: follow the feed branch in volume until the
-      // target is passed, then solve F, T and ln V together.
-      const double v0 = mech.volumetric_flow(inlet.T, inlet.P, inlet.F.data());
-      const double V_end = options.pfr.max_space_time * v0;
-      auto reached = [&](const State& st, double) { return basis.conversion(st.F.data()) >= X_t; };
-      // Where the branch turns (ignition), these starts find where it lands.
-      const std::vector<State> fallbacks = starts_from({}, State{inlet.F, inlet.T}, inlet, limit);
-      March m = feed_branch(solver, inlet, V_end * std::pow(10.0, -kSizingDecades), V_end,
-                            options.continuation_steps, fallbacks, reached);
-      if (!m.ok)
-        throw SolverError(
-            fmt::format("{}: sizing by continuation in volume failed ({}); try: a lower target "
-                        "conversion, a different feed temperature, or give a volume to rate",
-                        spec.id, m.message));
-      if (!reached(m.state, m.V)) refuse();
-      // Start from the point interpolated linearly in X inside the bracket.
-      const double X0 = basis.conversion(m.previous.F.data());
-      const double X1 = basis.conversion(m.state.F.data());
-      const double f = X1 > X0 ? (X_t - X0) / (X1 - X0) : 1.0;
-      const double V_lo = m.V_previous > 0 ? m.V_previous : m.V * 1e-3;
-      const double ln_V0 = (1 - f) * std::log(V_lo) + f * std::log(m.V);
-      Outcome o = solver.size(between(m.previous, m.state, f), std::exp(ln_V0), basis, X_t);
-      if (!o.converged) o = solver.size(m.state, m.V, basis, X_t);
-      if (!o.converged) {
-        // Bisection on ln V with rated tanks, each started from the lower end.
-        double lo = std::log(V_lo), hi = std::log(m.V);
-        State lo_state = m.previous;
-        o = Outcome{};
-        for (int k = 0; k < kMaxBisections; ++k) {
-          const double mid = 0.5 * (lo + hi);
-          Outcome t = solver.rate(lo_state, std::exp(mid));
-          if (!t.converged) break;
-          o = t;
-          const double X = basis.conversion(t.state.F.data());
-          if (std::abs(X - X_t) <= 1e-12) break;
-          if (X < X_t) {
-            lo = mid;
-            lo_state = t.state;
-          } else {
-            hi = mid;
-          }
-        }
-        if (!o.converged)
-          throw SolverError(fmt::format(
-              "{}: Newton did not converge when sizing for X = {:.4f} (between V = {:.6g} and "
-              "{:.6g} m3); try: a slightly different target conversion, or rate a given volume "
-              "instead",
-              spec.id, X_t, V_lo, m.V));
-      }
-      out = o.state;
-      V = o.V;
-    }
+    if (mech.n_reactions() == 1)
+      size_one_reaction(X_t, X_in);
+    else
+      size_by_continuation(X_t);
     states.push_back(out);
+    search_other_states();
+  }
+
+  void size_one_reaction(double X_t, double X_in) {
+    const int n = mech.n_species();
+    // One reaction: the target fixes the extent, hence the outlet flows;
+    // the energy balance then fixes T and the rate there fixes V.
+    const auto& nu = mech.reactions()[0].nu;
+    const double nu_key = nu[basis.key];
+    if (!(nu_key < 0)) refuse(X_t);
+    const double extent = (X_t - X_in) * basis.F_key_feed / -nu_key;
+    for (int i = 0; i < n; ++i)  // a reactant would run out first
+      if (inlet.F[i] + nu[i] * extent < -1e-12 * inlet.total_flow()) refuse(X_t);
+    try {
+      const Stream o = stream_after_extent(mech, inlet, spec.heat, 0, extent);
+      out.F = o.F;
+      out.T = o.T;
+    } catch (const SolverError& e) {
+      throw SolverError(
+          fmt::format("{}: outlet temperature at X = {:.4f}: {}", spec.id, X_t, e.what()));
+    }
+    const double R = balances.volumetric_rate(out.F.data(), out.T, 0);
+    if (!(R > 0) || !std::isfinite(R)) refuse(X_t);
+    V = extent / R;
+  }
+
+  void size_by_continuation(double X_t) {
+    // Several reactions: follow the feed branch in volume until the
+    // target is passed, then solve F, T and ln V together.
+    const double v0 = mech.volumetric_flow(inlet.T, inlet.P, inlet.F.data());
+    const double V_end = options.pfr.max_space_time * v0;
+    auto reached = [&](const State& st, double) { return basis.conversion(st.F.data()) >= X_t; };
+    // Where the branch turns (ignition), these starts find where it lands.
+    const std::vector<State> fallbacks = starts_from({}, State{inlet.F, inlet.T}, inlet, limit);
+    March m = feed_branch(solver, inlet, V_end * std::pow(10.0, -kSizingDecades), V_end,
+                          options.continuation_steps, fallbacks, reached);
+    if (!m.ok)
+      throw SolverError(
+          fmt::format("{}: sizing by continuation in volume failed ({}); try: a lower target "
+                      "conversion, a different feed temperature, or give a volume to rate",
+                      spec.id, m.message));
+    if (!reached(m.state, m.V)) refuse(X_t);
+    // Start from the point interpolated linearly in X inside the bracket.
+    const double X0 = basis.conversion(m.previous.F.data());
+    const double X1 = basis.conversion(m.state.F.data());
+    const double f = X1 > X0 ? (X_t - X0) / (X1 - X0) : 1.0;
+    const double V_lo = m.V_previous > 0 ? m.V_previous : m.V * 1e-3;
+    const double ln_V0 = (1 - f) * std::log(V_lo) + f * std::log(m.V);
+    Outcome o = solver.size(between(m.previous, m.state, f), std::exp(ln_V0), basis, X_t);
+    if (!o.converged) o = solver.size(m.state, m.V, basis, X_t);
+    if (!o.converged) {
+      // Bisection on ln V with rated tanks, each started from the lower end.
+      double lo = std::log(V_lo), hi = std::log(m.V);
+      State lo_state = m.previous;
+      o = Outcome{};
+      for (int k = 0; k < kMaxBisections; ++k) {
+        const double mid = 0.5 * (lo + hi);
+        Outcome t = solver.rate(lo_state, std::exp(mid));
+        if (!t.converged) break;
+        o = t;
+        const double X = basis.conversion(t.state.F.data());
+        if (std::abs(X - X_t) <= 1e-12) break;
+        if (X < X_t) {
+          lo = mid;
+          lo_state = t.state;
+        } else {
+          hi = mid;
+        }
+      }
+      if (!o.converged)
+        throw SolverError(fmt::format(
+            "{}: Newton did not converge when sizing for X = {:.4f} (between V = {:.6g} and "
+            "{:.6g} m3); try: a slightly different target conversion, or rate a given volume "
+            "instead",
+            spec.id, X_t, V_lo, m.V));
+    }
+    out = o.state;
+    V = o.V;
+  }
+
+  void search_other_states() {
     // The target fixes the state; the tank of that volume may still have
     // other steady states, and start-up from the feed may settle in one of
     // them. Rating it tells the designer (a failure here is told, not fatal).
@@ -735,7 +766,9 @@ StageResult run_cstr(const Mechanism& mech, const ReactorSpec& spec, const Strea
           "(rating it failed: {}); start-up from the feed may settle elsewhere",
           spec.id, e.what()));
     }
-  } else {
+  }
+
+  void rate() {
     V = spec.volume
             ? *spec.volume
             : (spec.catalyst_mass && spec.bulk_density ? *spec.catalyst_mass / *spec.bulk_density
@@ -779,39 +812,56 @@ StageResult run_cstr(const Mechanism& mech, const ReactorSpec& spec, const Strea
     }
   }
 
-  StageResult res;
-  res.id = spec.id;
-  res.kind = StageKind::Cstr;
-  res.heat = spec.heat;
-  res.sized = sizing;
-  res.inlet = inlet;
-  res.bulk_density = spec.bulk_density;
-  res.volume = V;
-  if (spec.bulk_density) res.catalyst_mass = V * *spec.bulk_density;
-  res.outlet = Stream{out.T, inlet.P, out.F};
-  for (auto& f : res.outlet.F) f = std::max(f, 0.0);  // solver round-off below zero
-  res.duty = spec.heat == HeatMode::Isothermal ? balances.duty(out.F.data(), out.T, V) : 0.0;
-  res.conversion = basis.conversion(res.outlet);
-  res.T_max = std::max(inlet.T, out.T);
-  res.T_min = std::min(inlet.T, out.T);
-  res.profile.push_back(ProfilePoint{0.0, inlet.T, X_in, inlet.F});
-  res.profile.push_back(ProfilePoint{V, res.outlet.T, res.conversion, res.outlet.F});
-  for (const auto& st : states) {
-    SteadyState ss;
-    ss.T = st.T;
-    ss.F = st.F;
-    for (auto& f : ss.F) f = std::max(f, 0.0);
-    ss.X = basis.conversion(ss.F.data());
-    res.steady_states.push_back(std::move(ss));
+  StageResult result() const {
+    const bool sizing = spec.target_conversion.has_value();
+    const double X_in = basis.conversion(inlet);
+    StageResult res;
+    res.id = spec.id;
+    res.kind = StageKind::Cstr;
+    res.heat = spec.heat;
+    res.sized = sizing;
+    res.inlet = inlet;
+    res.bulk_density = spec.bulk_density;
+    res.volume = V;
+    if (spec.bulk_density) res.catalyst_mass = V * *spec.bulk_density;
+    res.outlet = Stream{out.T, inlet.P, out.F};
+    for (auto& f : res.outlet.F) f = std::max(f, 0.0);  // solver round-off below zero
+    res.duty = spec.heat == HeatMode::Isothermal ? balances.duty(out.F.data(), out.T, V) : 0.0;
+    res.conversion = basis.conversion(res.outlet);
+    res.T_max = std::max(inlet.T, out.T);
+    res.T_min = std::min(inlet.T, out.T);
+    res.profile.push_back(ProfilePoint{0.0, inlet.T, X_in, inlet.F});
+    res.profile.push_back(ProfilePoint{V, res.outlet.T, res.conversion, res.outlet.F});
+    for (const auto& st : states) {
+      SteadyState ss;
+      ss.T = st.T;
+      ss.F = st.F;
+      for (auto& f : ss.F) f = std::max(f, 0.0);
+      ss.X = basis.conversion(ss.F.data());
+      res.steady_states.push_back(std::move(ss));
+    }
+    res.stats.newton_iters = solver.iterations() + extra.iterations;
+    res.stats.message = fmt::format(
+        "{}Newton: {} solves, {} iterations; {} steady state(s)",
+        sizing && mech.n_reactions() == 1 ? "sized in closed form from the stoichiometry; " : "",
+        solver.solves() + extra.solves, res.stats.newton_iters, states.size());
+    res.warnings = warnings;
+    add_space_velocities(mech, res);
+    return res;
   }
-  res.stats.newton_iters = solver.iterations() + extra.iterations;
-  res.stats.message = fmt::format(
-      "{}Newton: {} solves, {} iterations; {} steady state(s)",
-      sizing && mech.n_reactions() == 1 ? "sized in closed form from the stoichiometry; " : "",
-      solver.solves() + extra.solves, res.stats.newton_iters, states.size());
-  res.warnings = std::move(warnings);
-  add_space_velocities(mech, res);
-  return res;
+};
+
+}  // namespace
+
+StageResult run_cstr(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
+                     const ConversionBasis& basis, CstrWorkspace& workspace,
+                     const CstrOptions& options) {
+  Tank t(mech, spec, inlet, basis, workspace, options);
+  if (spec.target_conversion)
+    t.size(*spec.target_conversion);
+  else
+    t.rate();
+  return t.result();
 }
 
 namespace {
