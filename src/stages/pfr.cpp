@@ -140,12 +140,7 @@ class PathRecorder {
 
   void record(double V, const std::vector<double>& y) { record(V, y.data()); }
   void record(double V, const double* y) {
-    ProfilePoint p;
-    p.V = V;
-    p.T = y[n_];
-    p.X = basis_.conversion(y);
-    p.F.assign(y, y + n_);
-    res_.profile.push_back(std::move(p));
+    res_.profile.push_back(detail::profile_point(V, y, n_, basis_));
   }
 
   // After a step of `o` from t_prev to t ending at y; v_index < 0: V is t.
@@ -190,13 +185,7 @@ StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream
       st.start(ws.context(), mech, rate_multipliers(mech, spec), spec.heat, inlet, options);
   PfrSystem& sys = st.sys;
 
-  StageResult res;
-  res.id = spec.id;
-  res.kind = StageKind::Pfr;
-  res.heat = spec.heat;
-  res.inlet = inlet;
-  res.bulk_density = spec.bulk_density;
-
+  StageResult res;  // its profile, while the stage runs (see the end)
   const double X_in = basis.conversion(inlet);
   const bool sizing = spec.target_conversion.has_value();
   double V_end = 0;
@@ -299,13 +288,9 @@ StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream
                                    options.full_profile, res, y);
   }
 
-  res.volume = V;
-  res.sized = sizing;
-  if (spec.bulk_density) res.catalyst_mass = V * *spec.bulk_density;
-  res.outlet = Stream{y[n], inlet.P, std::vector<double>(y.begin(), y.begin() + n)};
-  for (auto& f : res.outlet.F) f = std::max(f, 0.0);  // solver round-off below zero
-  res.duty = y[n + 1];
-  res.conversion = basis.conversion(res.outlet);
+  std::vector<ProfilePoint> profile = std::move(res.profile);
+  res = detail::pfr_result(mech, spec, inlet, basis, sizing, V, y.data());
+  res.profile = std::move(profile);
   res.T_max = res.T_min = inlet.T;
   for (const auto& p : res.profile) {
     res.T_max = std::max(res.T_max, p.T);
@@ -316,7 +301,6 @@ StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream
     res.stats.message =
         fmt::format("stopped at the stop temperature {:.2f} K at V = {:.6g} m3", T_stop, V);
   if (reached) detail::add_size_sensitivity(mech, rate_multipliers(mech, spec), basis, res);
-  add_space_velocities(mech, res);
   return res;
 }
 
@@ -447,6 +431,30 @@ Stream adiabatic_limit(const Mechanism& mech, const std::vector<double>& multipl
 }
 
 namespace detail {
+
+ProfilePoint profile_point(double V, const double* y, int n, const ConversionBasis& basis) {
+  return ProfilePoint{V, y[n], basis.conversion(y), std::vector<double>(y, y + n)};
+}
+
+StageResult pfr_result(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
+                       const ConversionBasis& basis, bool sized, double V, const double* y) {
+  const int n = mech.n_species();
+  StageResult res;
+  res.id = spec.id;
+  res.kind = StageKind::Pfr;
+  res.heat = spec.heat;
+  res.inlet = inlet;
+  res.bulk_density = spec.bulk_density;
+  res.volume = V;
+  res.sized = sized;
+  if (spec.bulk_density) res.catalyst_mass = V * *spec.bulk_density;
+  res.outlet = Stream{y[n], inlet.P, std::vector<double>(y, y + n)};
+  for (auto& f : res.outlet.F) f = std::max(f, 0.0);  // solver round-off below zero
+  res.duty = y[n + 1];
+  res.conversion = basis.conversion(res.outlet);
+  add_space_velocities(mech, res);
+  return res;
+}
 
 // A one-reaction bed sized to X_target: V = integral of dV/dX =
 // F_key,feed / (-nu_key R) over X from the inlet, with the flows from the

@@ -221,54 +221,33 @@ std::vector<StageResult> run_pfr_batch(std::span<const PfrBatchItem> items, PfrB
   for (int b = 0; b < m; ++b) {
     const PfrBatchItem& it = items[b];
     const ReactorSpec& spec = *it.spec;
-    StageResult& res = out[b];
     const double* yb = st.out.data() + static_cast<std::size_t>(b) * N;
-    const double V_out = sizing ? st.end[b] : st.length[b];
-    res.id = spec.id;
-    res.kind = StageKind::Pfr;
-    res.heat = spec.heat;
-    res.inlet = it.inlet;
-    res.bulk_density = spec.bulk_density;
-    // The profile run_pfr keeps without full_profile: inlet and outlet.
-    const auto point = [&](double V, const double* y) {
-      ProfilePoint p;
-      p.V = V;
-      p.T = y[n];
-      p.X = it.basis.conversion(y);
-      p.F.assign(y, y + n);
-      return p;
-    };
-    res.profile.push_back(point(0.0, st.y0.data() + static_cast<std::size_t>(b) * N));
-    res.profile.push_back(point(V_out, yb));
-    res.volume = V_out;
-    res.sized = sizing;
-    if (spec.bulk_density) res.catalyst_mass = V_out * *spec.bulk_density;
-    res.outlet = Stream{yb[n], it.inlet.P, std::vector<double>(yb, yb + n)};
-    for (auto& f : res.outlet.F) f = std::max(f, 0.0);  // solver round-off below zero
-    res.duty = yb[n + 1];
-    res.conversion = it.basis.conversion(res.outlet);
-    res.T_max = std::max(st.T_max[b], yb[n]);
-    res.T_min = std::min(st.T_min[b], yb[n]);
+    const double* y0 = st.y0.data() + static_cast<std::size_t>(b) * N;
+    StageResult& res = out[b];
     if (sizing && it.mech->n_reactions() == 1) {
       // As run_pfr: the volume by quadrature along the exact path.
+      StageResult path;
+      path.profile.push_back(detail::profile_point(0.0, y0, n, it.basis));
       std::vector<double> y_end;
-      res.profile.resize(1);
       const double V =
           detail::size_by_quadrature(*it.mech, spec, it.inlet, it.basis, *spec.target_conversion,
-                                     options.cvode.rtol, false, res, y_end);
-      res.volume = V;
-      if (spec.bulk_density) res.catalyst_mass = V * *spec.bulk_density;
-      res.outlet =
-          Stream{y_end[n], it.inlet.P, std::vector<double>(y_end.begin(), y_end.begin() + n)};
-      res.duty = y_end[n + 1];
-      res.conversion = it.basis.conversion(res.outlet);
+                                     options.cvode.rtol, false, path, y_end);
+      res = detail::pfr_result(*it.mech, spec, it.inlet, it.basis, true, V, y_end.data());
+      res.profile = std::move(path.profile);
       res.T_max = std::max(it.inlet.T, res.outlet.T);
       res.T_min = std::min(it.inlet.T, res.outlet.T);
+    } else {
+      const double V_out = sizing ? st.end[b] : st.length[b];
+      res = detail::pfr_result(*it.mech, spec, it.inlet, it.basis, sizing, V_out, yb);
+      // The profile run_pfr keeps without full_profile: inlet and outlet.
+      res.profile.push_back(detail::profile_point(0.0, y0, n, it.basis));
+      res.profile.push_back(detail::profile_point(V_out, yb, n, it.basis));
+      res.T_max = std::max(st.T_max[b], yb[n]);
+      res.T_min = std::min(st.T_min[b], yb[n]);
     }
     if (sizing)
       detail::add_size_sensitivity(*it.mech, rate_multipliers(*it.mech, spec), it.basis, res);
     res.stats = stats;
-    add_space_velocities(*it.mech, res);
   }
   return out;
 }

@@ -288,4 +288,15 @@ double size_by_quadrature(const Mechanism& mech, const ReactorSpec& spec, const 
 void add_size_sensitivity(const Mechanism& mech, const std::vector<double>& multipliers,
                           const ConversionBasis& basis, StageResult& res);
 
+// A profile point at volume V from the state y = [F, T, ...].
+ProfilePoint profile_point(double V, const double* y, int n, const ConversionBasis& basis);
+
+// What a tubular stage's result holds whether it ran alone or batched:
+// identity, volume, catalyst, outlet (flows' round-off below zero cleared),
+// duty, conversion and space velocities, from its end state y = [F, T, Q]
+// at volume V. Profile, T_max, T_min and solver statistics are the
+// caller's.
+StageResult pfr_result(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
+                       const ConversionBasis& basis, bool sized, double V, const double* y);
+
 }  // namespace rxtrain::detail
