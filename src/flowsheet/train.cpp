@@ -6,6 +6,7 @@
 #include <type_traits>
 
 #include "rxtrain/stages/exchanger.hpp"
+#include "rxtrain/stages/run_stage.hpp"
 
 namespace rxtrain {
 
@@ -107,6 +108,16 @@ TrainWorkspace::~TrainWorkspace() = default;
 TrainWorkspace::TrainWorkspace(TrainWorkspace&&) noexcept = default;
 TrainWorkspace& TrainWorkspace::operator=(TrainWorkspace&&) noexcept = default;
 
+TrainResult TrainResult::for_case(const Case& c) {
+  TrainResult result;
+  result.title = c.title;
+  for (const auto& s : c.mechanism.species()) result.species.push_back(s.id);
+  result.key = c.mechanism.species()[c.key].id;
+  result.feed = c.feed;
+  result.warnings = c.warnings;
+  return result;
+}
+
 TrainResult run_train(const Case& c, const TrainOptions& options) {
   TrainWorkspace ws;  // one per run, shared by every tubular stage
   return run_train(c, options, ws);
@@ -116,31 +127,17 @@ TrainResult run_train(const Case& c, const TrainOptions& options, TrainWorkspace
   const Mechanism& mech = c.mechanism;
   const ConversionBasis basis = c.conversion_basis();
 
-  TrainResult result;
-  result.title = c.title;
-  for (const auto& s : mech.species()) result.species.push_back(s.id);
-  result.key = mech.species()[c.key].id;
-  result.feed = c.feed;
-  result.warnings = c.warnings;
+  TrainResult result = TrainResult::for_case(c);
 
   Stream stream = c.feed;
+  CstrOptions tank = options.cstr;
+  const StageContext ctx{mech, basis, ws.pfr(), ws.cstr(), options.pfr, tank};
   for (const auto& spec : c.train) {
-    StageResult r = std::visit(
-        [&](const auto& s) -> StageResult {
-          using T = std::decay_t<decltype(s)>;
-          if constexpr (std::is_same_v<T, ExchangerSpec>) {
-            return run_exchanger(mech, s, stream, basis);
-          } else if (s.type == ReactorType::Pfr) {
-            return run_pfr(mech, s, stream, basis, ws.pfr(), options.pfr);
-          } else {
-            CstrOptions o = options.cstr;
-            o.guesses = {};
-            for (const auto& w : options.warm_starts)
-              if (w.stage == s.id) o.guesses = w.states;
-            return run_cstr(mech, s, stream, basis, ws.cstr(), o);
-          }
-        },
-        spec);
+    // A stirred tank starts from its warm starts, if any.
+    tank.guesses = {};
+    for (const auto& w : options.warm_starts)
+      if (w.stage == stage_id(spec)) tank.guesses = w.states;
+    StageResult r = run_stage(spec, stream, ctx);
     for (const auto& w : r.warnings) result.warnings.push_back(w);
     stream = r.outlet;
     result.stages.push_back(std::move(r));

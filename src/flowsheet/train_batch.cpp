@@ -3,8 +3,8 @@
 #include <type_traits>
 #include <variant>
 
-#include "rxtrain/stages/exchanger.hpp"
 #include "rxtrain/flowsheet/train.hpp"
+#include "rxtrain/stages/exchanger.hpp"
 
 namespace rxtrain {
 
@@ -27,12 +27,7 @@ std::vector<TrainResult> run_trains_batched(std::span<const Case* const> cases,
     const Case& c = *cases[i];
     if (c.train.size() != stages || !train_batchable(c, options))
       throw std::invalid_argument("run_trains_batched: cases of different layouts");
-    TrainResult& r = results[i];
-    r.title = c.title;
-    for (const auto& s : c.mechanism.species()) r.species.push_back(s.id);
-    r.key = c.mechanism.species()[c.key].id;
-    r.feed = c.feed;
-    r.warnings = c.warnings;
+    results[i] = TrainResult::for_case(c);
     streams.push_back(c.feed);
   }
   std::vector<PfrBatchItem> items(cases.size());
@@ -53,7 +48,8 @@ std::vector<TrainResult> run_trains_batched(std::span<const Case* const> cases,
         items[i] = PfrBatchItem{&c.mechanism, r, streams[i], c.conversion_basis()};
       }
       std::vector<StageResult> done = run_pfr_batch(items, ws.pfr_batch(), options.pfr);
-      for (std::size_t i = 0; i < cases.size(); ++i) results[i].stages.push_back(std::move(done[i]));
+      for (std::size_t i = 0; i < cases.size(); ++i)
+        results[i].stages.push_back(std::move(done[i]));
     }
     for (std::size_t i = 0; i < cases.size(); ++i) {
       StageResult& s = results[i].stages.back();

@@ -58,6 +58,10 @@ struct TrainResult {
   std::vector<MaxRatePoint> max_rate_locus;
   // One Levenspiel curve per reactor stage (filled with the views above).
   std::vector<LevenspielCurve> levenspiel;
+
+  // An empty result for c: its title, species, key, feed and loader
+  // warnings, ready for its stages.
+  static TrainResult for_case(const Case& c);
 };
 
 // What repeated runs of trains reuse: the SUNDIALS context, the tubular

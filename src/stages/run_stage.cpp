@@ -1,0 +1,22 @@
+#include "rxtrain/stages/run_stage.hpp"
+
+#include <type_traits>
+#include <variant>
+
+namespace rxtrain {
+
+StageResult run_stage(const StageSpec& spec, const Stream& inlet, const StageContext& ctx) {
+  return std::visit(
+      [&](const auto& s) -> StageResult {
+        using T = std::decay_t<decltype(s)>;
+        if constexpr (std::is_same_v<T, ExchangerSpec>)
+          return run_exchanger(ctx.mech, s, inlet, ctx.basis);
+        else if (s.type == ReactorType::Pfr)
+          return run_pfr(ctx.mech, s, inlet, ctx.basis, ctx.pfr, ctx.pfr_options);
+        else
+          return run_cstr(ctx.mech, s, inlet, ctx.basis, ctx.cstr, ctx.cstr_options);
+      },
+      spec);
+}
+
+}  // namespace rxtrain
