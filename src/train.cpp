@@ -102,6 +102,7 @@ TrainResult run_train(const Case& c, const TrainOptions& options, TrainWorkspace
           }
         },
         spec);
+    if (!c.space_velocity_basis.empty()) add_space_velocities(mech, r, c.space_velocity_basis);
     for (const auto& w : r.warnings) result.warnings.push_back(w);
     stream = r.outlet;
     result.stages.push_back(std::move(r));

@@ -55,4 +55,12 @@ std::string render_columns(const std::vector<std::vector<std::string>>& rows, st
   return out;
 }
 
+std::string space_velocity_basis_text(const std::vector<std::string>& basis,
+                                      const std::vector<std::string>& species) {
+  if (basis.size() == species.size()) return "the whole stream";
+  std::string out;
+  for (const auto& id : basis) out += (out.empty() ? "" : " + ") + id;
+  return out;
+}
+
 }  // namespace rxtrain
