@@ -314,7 +314,7 @@ TEST_CASE("compare --report: the layouts shown equal the JSON, one bar per feasi
     CHECK(rows[i].cells[2] == order);
     CHECK(rows[i].cells[3] == l["heat"].get<std::string>());
     if (l["conversion"].is_number())
-      CHECK(rows[i].cells[6] == fmt::format("{:.5f}", l["conversion"].get<double>()));
+      CHECK(rows[i].cells[7] == fmt::format("{:.4f}", l["conversion"].get<double>()));
     if (l["feasible"].get<bool>()) ++feasible;
   }
   tinyxml2::XMLDocument bars;
@@ -340,7 +340,7 @@ TEST_CASE("staging and compare pages escape a title with XML special characters"
   l.case_layout = true;
   l.feasible = true;
   l.conversion = 0.4;
-  l.T_max = 600;
+  l.T_peak = 600;
   cr.layouts = {l};
   StagingResult sr;
   sr.title = c.title;

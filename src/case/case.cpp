@@ -233,6 +233,7 @@ class Loader {
   void read_train(const YAML::Node& list);
   double read_train_target(const YAML::Node& node) const;
   TemperatureLimits read_limits(const YAML::Node& node) const;
+  std::vector<int> read_space_velocity_basis(const YAML::Node& node) const;
   StageSpec read_stage(const YAML::Node& node, std::size_t index);
   void check_energy_needs() const;
   void check_catalyst_basis() const;
@@ -1007,6 +1008,27 @@ TemperatureLimits Loader::read_limits(const YAML::Node& node) const {
   return lim;
 }
 
+// The species WHSV and LHSV are quoted on (the trade's "hydrocarbon feed"):
+// a non-empty list of distinct declared species, each with a molar mass.
+std::vector<int> Loader::read_space_velocity_basis(const YAML::Node& node) const {
+  const char* example = "e.g. space_velocity_basis: [BZ, CH]";
+  if (!node.IsSequence() || node.size() == 0)
+    fail(node, fmt::format("space_velocity_basis needs a list of species ids ({}), got {}", example,
+                           describe(node)));
+  std::vector<int> basis;
+  for (const auto& item : node) {
+    const int i = species_index(item, "space_velocity_basis");
+    if (std::find(basis.begin(), basis.end(), i) != basis.end())
+      fail(item, fmt::format("species {} is named twice in space_velocity_basis", species_[i].id));
+    if (!species_[i].mw)
+      fail(item, fmt::format("species {} in space_velocity_basis has no molar mass; WHSV and "
+                             "LHSV on it need one (give mw or formula)",
+                             species_[i].id));
+    basis.push_back(i);
+  }
+  return basis;
+}
+
 // Adiabatic reactors and exchangers close an energy balance, which needs
 // cp of every species; an all-isothermal train does not.
 void Loader::check_energy_needs() const {
@@ -1086,7 +1108,8 @@ Case Loader::load(const YAML::Node& root) {
                      "empty case file; expected a mapping with title, species, "
                      "reactions, feed, key and train");
   Fields top(*this, root, "the case");
-  top.check({"title", "phase", "species", "reactions", "feed", "key", "train", "target", "limits"});
+  top.check({"title", "phase", "species", "reactions", "feed", "key", "train", "target", "limits",
+             "space_velocity_basis"});
   Case c;
   c.file = file_;
   c.title = file_;
@@ -1106,6 +1129,8 @@ Case Loader::load(const YAML::Node& root) {
   }
   c.limits.where = {file_, 0, 0};
   if (const auto* n = top.find("limits")) c.limits = read_limits(*n);
+  if (const auto* n = top.find("space_velocity_basis"))
+    c.space_velocity_basis = read_space_velocity_basis(*n);
   check_energy_needs();
   check_catalyst_basis();
 

@@ -138,6 +138,7 @@ TrainResult run_train(const Case& c, const TrainOptions& options, TrainWorkspace
     for (const auto& w : options.warm_starts)
       if (w.stage == stage_id(spec)) tank.guesses = w.states;
     StageResult r = run_stage(spec, stream, ctx);
+    if (!c.space_velocity_basis.empty()) add_space_velocities(mech, r, c.space_velocity_basis);
     for (const auto& w : r.warnings) result.warnings.push_back(w);
     stream = r.outlet;
     result.stages.push_back(std::move(r));

@@ -53,6 +53,8 @@ std::vector<TrainResult> run_trains_batched(std::span<const Case* const> cases,
     }
     for (std::size_t i = 0; i < cases.size(); ++i) {
       StageResult& s = results[i].stages.back();
+      const auto& basis = cases[i]->space_velocity_basis;
+      if (!basis.empty()) add_space_velocities(cases[i]->mechanism, s, basis);
       for (const auto& w : s.warnings) results[i].warnings.push_back(w);
       streams[i] = s.outlet;
     }

@@ -2,6 +2,7 @@
 
 #include <fmt/format.h>
 
+#include <algorithm>
 #include <cmath>
 #include <limits>
 #include <nlohmann/json.hpp>
@@ -12,6 +13,8 @@ namespace rxtrain {
 
 namespace {
 
+constexpr double kZeroCelsius = 273.15;  // K
+
 nlohmann::json number(const std::optional<double>& v) {
   return v && std::isfinite(*v) ? nlohmann::json(*v) : nlohmann::json(nullptr);
 }
@@ -20,23 +23,158 @@ std::string text(const std::optional<double>& v, const char* f) {
   return v && std::isfinite(*v) ? fmt::format(fmt::runtime(f), *v) : std::string("-");
 }
 
+// Four decimals; six within 1e-4 of complete conversion, where four would
+// print 1.0000 for what is not.
+std::string conversion_text(const std::optional<double>& X) {
+  if (!X || !std::isfinite(*X)) return "-";
+  return fixed_text(*X, 1 - *X < 1e-4 ? 6 : 4);
+}
+
 std::string ranking_text(const CompareResult& r) {
   return r.sized ? fmt::format("smallest total {}", r.catalyst_objective ? "catalyst" : "volume")
                  : std::string("highest final conversion");
 }
 
+std::string ordinal(int n) {
+  const char* suffix = n % 100 / 10 == 1 ? "th"
+                       : n % 10 == 1     ? "st"
+                       : n % 10 == 2     ? "nd"
+                       : n % 10 == 3     ? "rd"
+                                         : "th";
+  return fmt::format("{}{}", n, suffix);
+}
+
+std::string join(const std::vector<std::string>& parts, const char* sep) {
+  std::string out;
+  for (const auto& p : parts) out += (out.empty() ? "" : sep) + p;
+  return out;
+}
+
+// Where the heat-capacity data end, and on whose word.
+std::string ceiling_text(const ThermoCeiling& t) {
+  if (!t.species.empty())
+    return fmt::format("the heat-capacity data reach {:.2f} °C (the top of species {}'s range)",
+                       t.T - kZeroCelsius, t.species);
+  return fmt::format(
+      "no species states a heat-capacity range; the data are taken to hold up to {:.2f} °C "
+      "({:g} K, a default window: common practice, no source)",
+      t.T - kZeroCelsius, t.T);
+}
+
+// The other orders that give the same train, at most four named, and which
+// stages are identical: those that trade places between the orders.
+std::string same_train_text(const Layout& l, const std::vector<std::string>& case_order) {
+  if (l.orders.size() < 2) return "";
+  const auto& ids = l.order;
+  std::vector<std::size_t> parent(ids.size());
+  for (std::size_t i = 0; i < parent.size(); ++i) parent[i] = i;
+  auto root = [&](std::size_t i) {
+    while (parent[i] != i) i = parent[i];
+    return i;
+  };
+  auto slot_of = [&](const std::string& id) {
+    return static_cast<std::size_t>(std::find(ids.begin(), ids.end(), id) - ids.begin());
+  };
+  std::vector<std::string> others;
+  for (std::size_t i = 1; i < l.orders.size(); ++i) {
+    if (i < 5) others.push_back(join(l.orders[i], " > "));
+    for (std::size_t k = 0; k < ids.size(); ++k) parent[root(slot_of(l.orders[i][k]))] = root(k);
+  }
+  std::vector<std::string> classes;
+  for (std::size_t k = 0; k < ids.size(); ++k) {
+    if (root(k) != k) continue;
+    std::vector<std::string> members;
+    for (const auto& id : case_order)
+      if (root(slot_of(id)) == k) members.push_back(id);
+    if (members.size() > 1) classes.push_back(join(members, " = "));
+  }
+  std::string more;
+  if (l.orders.size() > 5) more = fmt::format(" and {} more", l.orders.size() - 5);
+  return fmt::format("also stands for {}{} (identical stages: {})", join(others, ", "), more,
+                     join(classes, "; "));
+}
+
+std::string thermo_note(const ThermoCeiling& t) {
+  return fmt::format("peak above {:.2f} °C, beyond the heat-capacity data: cp extrapolated",
+                     t.T - kZeroCelsius);
+}
+
+// Everything said about a layout beside its numbers, most serious first.
+std::vector<std::string> notes_of(const Layout& l, const CompareResult& r) {
+  std::vector<std::string> notes;
+  if (!l.feasible) notes.push_back("infeasible: " + l.reason);
+  if (l.beyond_thermo) notes.push_back(thermo_note(r.thermo_ceiling));
+  if (const std::string same = same_train_text(l, r.case_order); !same.empty())
+    notes.push_back(same);
+  return notes;
+}
+
+std::string peak_text(const Layout& l) {
+  if (!l.T_peak || !std::isfinite(*l.T_peak)) return "-";
+  return celsius_text(*l.T_peak) + (l.beyond_thermo ? "!" : "");
+}
+
+// Ranks of the feasible layouts that run beyond the heat-capacity data.
+std::vector<int> ranks_beyond_thermo(const CompareResult& r) {
+  std::vector<int> ranks;
+  int rank = 0;
+  for (const auto& l : r.layouts) {
+    if (l.feasible) ++rank;
+    if (l.feasible && l.beyond_thermo) ranks.push_back(rank);
+  }
+  return ranks;
+}
+
+std::string beyond_thermo_summary(const CompareResult& r) {
+  const auto ranks = ranks_beyond_thermo(r);
+  if (ranks.empty()) return "";
+  std::vector<std::string> names;
+  for (int k : ranks) names.push_back(std::to_string(k));
+  return fmt::format(
+      "{} ranked layout{} ({} {}) run{} above {:.2f} °C, beyond the heat-capacity data: "
+      "{} conversion and size rest on extrapolated heat capacities; confirm them with data that "
+      "cover that temperature before trusting the ranking",
+      ranks.size(), ranks.size() == 1 ? "" : "s", ranks.size() == 1 ? "rank" : "ranks",
+      join(names, ", "), ranks.size() == 1 ? "s" : "", r.thermo_ceiling.T - kZeroCelsius,
+      ranks.size() == 1 ? "its" : "their");
+}
+
 }  // namespace
 
-std::string layout_order_text(const Layout& l) {
-  std::string order;
-  for (const auto& id : l.order) order += (order.empty() ? "" : " > ") + id;
-  return order;
+std::string layout_order_text(const Layout& l) { return join(l.order, " > "); }
+
+std::string layout_moves_text(const Layout& l, const std::vector<std::string>& case_order) {
+  if (l.moves.empty()) return "none";
+  if (l.moves.size() == 2) {
+    const auto& [a, b] = std::minmax(l.moves[0], l.moves[1],
+                                     [](const auto& x, const auto& y) { return x.from < y.from; });
+    return fmt::format("{} and {} swapped", a.stage, b.stage);
+  }
+  // One stage taken out and put back elsewhere, the others in their order.
+  for (const auto& m : l.moves) {
+    std::vector<std::string> a = case_order, b = l.order;
+    std::erase(a, m.stage);
+    std::erase(b, m.stage);
+    if (a != b) continue;
+    const std::size_t to = static_cast<std::size_t>(m.to);
+    if (to == 1) return m.stage + " moved to the front";
+    if (to == l.order.size()) return m.stage + " moved to the end";
+    return fmt::format("{} moved between {} and {}", m.stage, l.order[to - 2], l.order[to]);
+  }
+  std::vector<std::string> parts;
+  for (const auto& m : l.moves) parts.push_back(fmt::format("{} to {}", m.stage, ordinal(m.to)));
+  return join(parts, ", ");
 }
 
 std::string compare_json_text(const CompareResult& r) {
   nlohmann::json layouts = nlohmann::json::array();
-  for (const auto& l : r.layouts)
+  for (const auto& l : r.layouts) {
+    nlohmann::json moved = nlohmann::json::array();
+    for (const auto& m : l.moves)
+      moved.push_back({{"stage", m.stage}, {"from", m.from}, {"to", m.to}});
     layouts.push_back({{"order", l.order},
+                       {"orders", l.orders},
+                       {"moved", moved},
                        {"heat", layout_heat_name(l.heat)},
                        {"case_layout", l.case_layout},
                        {"feasible", l.feasible},
@@ -44,23 +182,53 @@ std::string compare_json_text(const CompareResult& r) {
                        {"total_volume", number(l.total_volume)},
                        {"total_catalyst", number(l.total_catalyst)},
                        {"conversion", number(l.conversion)},
-                       {"T_max", number(l.T_max)}});
-  return nlohmann::json{{"layouts", layouts}}.dump(2) + "\n";
+                       {"T_peak", number(l.T_peak)},
+                       {"beyond_thermo_data", l.beyond_thermo}});
+  }
+  const auto& t = r.thermo_ceiling;
+  return nlohmann::json{
+             {"case_order", r.case_order},
+             {"ranked_by", ranking_text(r)},
+             {"thermo_ceiling",
+              {{"T", t.T},
+               {"species", t.species.empty() ? nlohmann::json(nullptr) : nlohmann::json(t.species)},
+               {"default", t.species.empty()}}},
+             {"layouts", layouts}}
+             .dump(2) +
+         "\n";
 }
 
 std::string format_compare_table(const CompareResult& r) {
   std::string out =
       fmt::format("Layouts, best first ({}); * = the case as written\n", ranking_text(r));
-  out += fmt::format("{:>1} {:>4}  {:<28} {:<11} {:>12} {:>13} {:>10} {:>9}  {}\n", "", "rank",
-                     "order", "heat", "volume_m3", "catalyst_kg", "conversion", "T_max_K",
-                     "infeasible because");
+  out +=
+      "Each reactor stage moves with its whole spec (size or target, type, heat, bulk "
+      "density); exchangers keep their places.\n";
+  out += "Peak temperatures: " + ceiling_text(r.thermo_ceiling) + "; ! marks a peak above it.\n\n";
+  std::vector<std::vector<std::string>> rows{
+      {"", "rank", "order", "heat", "moved", "V m3", "catalyst kg", "X out", "T peak °C"}};
   int rank = 0;
   for (const auto& l : r.layouts)
-    out += fmt::format("{:>1} {:>4}  {:<28} {:<11} {:>12} {:>13} {:>10} {:>9}  {}\n",
-                       l.case_layout ? "*" : "", l.feasible ? std::to_string(++rank) : "-",
-                       layout_order_text(l), layout_heat_name(l.heat), text(l.total_volume, "{:.4g}"),
-                       text(l.total_catalyst, "{:.5g}"), text(l.conversion, "{:.5f}"),
-                       text(l.T_max, "{:.1f}"), l.feasible ? "" : l.reason);
+    rows.push_back({l.case_layout ? "*" : "", l.feasible ? std::to_string(++rank) : "-",
+                    layout_order_text(l), layout_heat_name(l.heat),
+                    layout_moves_text(l, r.case_order), text(l.total_volume, "{:.4g}"),
+                    text(l.total_catalyst, "{:.5g}"), conversion_text(l.conversion), peak_text(l)});
+  const std::string table = render_columns(rows, 5);
+  // The notes go after the aligned columns, one layout per line.
+  std::size_t begin = 0;
+  for (std::size_t i = 0; i < rows.size(); ++i) {
+    const std::size_t end = table.find('\n', begin);
+    std::string line = table.substr(begin, end - begin);
+    if (i > 0) {
+      const auto notes = notes_of(r.layouts[i - 1], r);
+      if (!notes.empty()) line += "  " + join(notes, "; ");
+    } else {
+      line += "  notes";
+    }
+    out += line + "\n";
+    begin = end + 1;
+  }
+  if (const std::string s = beyond_thermo_summary(r); !s.empty()) out += "\n! " + s + "\n";
   return out;
 }
 
@@ -72,10 +240,12 @@ Figure compare_figure(const CompareResult& r) {
   std::vector<std::string> categories;
   std::vector<double> values;
   for (const auto& l : r.layouts) {
-    categories.push_back(fmt::format("{}{} ({}){}", l.case_layout ? "* " : "",
-                                     layout_order_text(l), layout_heat_name(l.heat),
-                                     l.feasible ? "" : " – infeasible"));
-    std::optional<double> v = !r.sized                ? l.conversion
+    categories.push_back(fmt::format("{}{} ({}){}", l.case_layout ? "* " : "", layout_order_text(l),
+                                     layout_heat_name(l.heat),
+                                     !l.feasible       ? " – infeasible"
+                                     : l.beyond_thermo ? " – ! beyond cp data"
+                                                       : ""));
+    std::optional<double> v = !r.sized               ? l.conversion
                               : r.catalyst_objective ? l.total_catalyst
                                                      : l.total_volume;
     values.push_back(l.feasible && v ? *v : std::numeric_limits<double>::quiet_NaN());
@@ -95,7 +265,8 @@ Figure compare_figure(const CompareResult& r) {
   chart.add_bars(categories, values, {.label = "", .colour = std::string(svg::series_colour(0))});
   return {"compare-layouts",
           fmt::format("Layouts best first ({}); * marks the case as written. Infeasible layouts "
-                      "have no bar; the table gives their reason.",
+                      "have no bar; the table gives their reason. \"! beyond cp data\" marks a "
+                      "layout whose peak is above the heat-capacity data.",
                       ranking_text(r)),
           std::move(chart)};
 }
@@ -107,22 +278,33 @@ std::string compare_report_html(const Case& c, const CompareResult& r,
   h += "<h2 id=\"summary\">Layouts</h2>\n";
   h += fmt::format(
       "<p>Every order of the reactor stages, each as written, all adiabatic and all isothermal "
-      "at the feed temperature; exchangers keep their positions. Best first ({}); * marks the "
-      "case as written.</p>\n",
+      "at the feed temperature. Each reactor stage moves with its whole spec (size or target, "
+      "type, heat, bulk density); exchangers keep their places. Orders that give the same train "
+      "(identical stages exchanged) are one row. Best first ({}); * marks the case as "
+      "written.</p>\n",
       ranking_text(r));
+  h += "<p>Peak temperatures: " + svg::xml_escape(ceiling_text(r.thermo_ceiling)) +
+       "; ! marks a peak above it.</p>\n";
+  if (const std::string s = beyond_thermo_summary(r); !s.empty())
+    h += "<p class=\"caution\"><strong>! " + svg::xml_escape(s) + ".</strong></p>\n";
   h += "<table class=\"stages\">\n";
-  h += html::header_row({"", "rank", "order", "heat", "V total (m³)", "catalyst (kg)",
-                         "conversion", "T max (°C / K)", "infeasible because"});
+  h += html::header_row({"", "rank", "order", "heat", "moved", "V total (m³)", "catalyst (kg)",
+                         "conversion", "T peak (°C / K)", "notes"});
   int rank = 0;
   for (const auto& l : r.layouts) {
+    std::string peak = cell("-", true);
+    if (l.T_peak && std::isfinite(*l.T_peak)) {
+      peak = html::temperature_cell(*l.T_peak);
+      if (l.beyond_thermo) peak.insert(peak.find("<br/>"), "<strong> !</strong>");
+    }
     h += "<tr>" + cell(l.case_layout ? "*" : "", false) +
          cell(l.feasible ? std::to_string(++rank) : "-", true) +
-         cell(layout_order_text(l), false) + cell(layout_heat_name(l.heat), false) +
+         // An order reads as one unit; wrapped at each ">" it reads as a list.
+         "<td style=\"white-space: nowrap\">" + svg::xml_escape(layout_order_text(l)) + "</td>" +
+         cell(layout_heat_name(l.heat), false) + cell(layout_moves_text(l, r.case_order), false) +
          cell(text(l.total_volume, "{:.4g}"), true) + cell(text(l.total_catalyst, "{:.5g}"), true) +
-         cell(text(l.conversion, "{:.5f}"), true) +
-         (l.T_max && std::isfinite(*l.T_max) ? html::temperature_cell(*l.T_max)
-                                             : cell("-", true)) +
-         cell(l.feasible ? "" : l.reason, false) + "</tr>\n";
+         cell(conversion_text(l.conversion), true) + peak +
+         cell(join(notes_of(l, r), "; "), false) + "</tr>\n";
   }
   h += "</table>\n";
   h += html::figures_section(figures);

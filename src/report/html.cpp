@@ -47,10 +47,12 @@ std::string space_velocity_table(const TrainResult& r) {
   for (const auto& s : r.stages)
     if (s.ghsv || s.whsv || s.lhsv)
       rows += "<tr>" + cell(s.id, false) + cell(sig_text(s.ghsv), true) +
-              cell(sig_text(s.whsv), true) + cell(sig_text(s.lhsv), true) + "</tr>\n";
+              cell(sig_text(s.whsv), true) + cell(sig_text(s.lhsv), true) +
+              cell(space_velocity_basis_text(s.space_velocity_basis, r.species), false) + "</tr>\n";
   if (rows.empty()) return {};
-  return "<table>\n<tr><th>stage</th><th>GHSV (1/h, gas at 0 °C and 1 atm)</th>"
-         "<th>WHSV (1/h)</th><th>LHSV (1/h)</th></tr>\n" +
+  return "<table>\n<tr><th>stage</th><th>GHSV (1/h, the whole gas at 0 °C and 1 atm)</th>"
+         "<th>WHSV (1/h)</th><th>LHSV (1/h)</th><th>WHSV and LHSV on the inlet flow "
+         "of</th></tr>\n" +
          rows + "</table>\n";
 }
 

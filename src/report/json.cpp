@@ -53,6 +53,7 @@ json stage(const std::vector<std::string>& ids, const StageResult& r) {
   s["ghsv"] = number(r.ghsv);
   s["whsv"] = number(r.whsv);
   s["lhsv"] = number(r.lhsv);
+  s["space_velocity_basis"] = r.space_velocity_basis;
   s["duty"] = number(r.duty);
   s["T_max"] = number(r.T_max);
   s["T_min"] = number(r.T_min);

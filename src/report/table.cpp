@@ -2,6 +2,7 @@
 
 #include <fmt/format.h>
 
+#include <algorithm>
 #include <cmath>
 #include <optional>
 #include <vector>
@@ -51,15 +52,27 @@ std::string format_stage_table(const TrainResult& result) {
     if (r.reach && r.heat) out += "  " + reach_sentence(r, result.species) + "\n";
 
   // Space velocities only where they apply (GHSV at 0 °C, 1 atm).
+  // WHSV and LHSV on the case's space_velocity_basis, named once when every
+  // stage has the same (as a case gives them), else per stage.
   std::vector<std::vector<std::string>> sv;
+  std::vector<std::string> bases;
   for (const auto& r : result.stages)
-    if (r.ghsv || r.whsv || r.lhsv)
+    if (r.ghsv || r.whsv || r.lhsv) {
       sv.push_back({r.id, sig_text(r.ghsv), sig_text(r.whsv), sig_text(r.lhsv)});
+      bases.push_back(space_velocity_basis_text(r.space_velocity_basis, result.species));
+    }
   if (!sv.empty()) {
+    const bool one_basis = std::all_of(bases.begin(), bases.end(),
+                                       [&](const std::string& b) { return b == bases.front(); });
     sv.insert(sv.begin(), {"stage", "GHSV 1/h", "WHSV 1/h", "LHSV 1/h"});
-    out +=
-        "\nspace velocities (GHSV: gas at 0 °C and 1 atm; LHSV: liquid at the species' "
-        "densities)\n";
+    if (!one_basis) {
+      sv.front().push_back("WHSV, LHSV on");
+      for (std::size_t i = 1; i < sv.size(); ++i) sv[i].push_back(bases[i - 1]);
+    }
+    out += fmt::format(
+        "\nspace velocities (GHSV: the whole gas at 0 °C and 1 atm; WHSV and LHSV: {} at the "
+        "stage inlet, LHSV as liquid at the species' densities)\n",
+        one_basis ? "on " + bases.front() : std::string("on the flows named per stage"));
     out += render_columns(sv, 1);
   }
 

@@ -72,4 +72,12 @@ std::string reach_sentence(const StageResult& r, const std::vector<std::string>&
       celsius_text(h.T_end), end);
 }
 
+std::string space_velocity_basis_text(const std::vector<std::string>& basis,
+                                      const std::vector<std::string>& species) {
+  if (basis.size() == species.size()) return "the whole stream";
+  std::string out;
+  for (const auto& id : basis) out += (out.empty() ? "" : " + ") + id;
+  return out;
+}
+
 }  // namespace rxtrain

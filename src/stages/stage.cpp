@@ -32,7 +32,7 @@ const char* heat_mode_name(HeatMode heat) {
   return heat == HeatMode::Adiabatic ? "adiabatic" : "isothermal";
 }
 
-void add_space_velocities(const Mechanism& mech, StageResult& r) {
+void add_space_velocities(const Mechanism& mech, StageResult& r, std::span<const int> basis) {
   if (!r.volume || *r.volume <= 0) return;
   const double V = *r.volume;
   const double* F = r.inlet.F.data();
@@ -43,19 +43,30 @@ void add_space_velocities(const Mechanism& mech, StageResult& r) {
     const double Ft = r.inlet.total_flow();
     r.ghsv = Ft * kGasConstant * kNormalT / kNormalP * kSecondsPerHour / V;
   }
+  // WHSV and LHSV on the basis species' flows at the stage inlet; each
+  // needs every basis species' molar mass (and density, for LHSV).
+  std::vector<int> all;
+  if (basis.empty()) {
+    all.resize(static_cast<std::size_t>(mech.n_species()));
+    for (int i = 0; i < mech.n_species(); ++i) all[static_cast<std::size_t>(i)] = i;
+    basis = all;
+  }
+  r.space_velocity_basis.clear();
+  double mass = 0, liquid = 0;
   bool all_mw = true, all_density = true;
-  for (const auto& s : mech.species()) {
+  for (int i : basis) {
+    const Species& s = mech.species()[static_cast<std::size_t>(i)];
+    r.space_velocity_basis.push_back(s.id);
     all_mw = all_mw && s.mw.has_value();
     all_density = all_density && s.density.has_value();
+    if (s.mw) mass += F[i] * *s.mw;
+    if (s.mw && s.density) liquid += F[i] * *s.mw / *s.density;
   }
+  r.whsv.reset();
+  r.lhsv.reset();
   if (all_mw && r.catalyst_mass && *r.catalyst_mass > 0)
-    r.whsv = mech.mass_flow(F) * kSecondsPerHour / *r.catalyst_mass;
-  if (all_mw && all_density) {
-    double vl = 0;
-    for (int i = 0; i < mech.n_species(); ++i)
-      vl += F[i] * *mech.species()[i].mw / *mech.species()[i].density;
-    r.lhsv = vl * kSecondsPerHour / V;
-  }
+    r.whsv = mass * kSecondsPerHour / *r.catalyst_mass;
+  if (all_mw && all_density) r.lhsv = liquid * kSecondsPerHour / V;
 }
 
 const char* reach_end_name(ReachEnd end) {

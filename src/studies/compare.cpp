@@ -3,6 +3,8 @@
 #include <fmt/format.h>
 
 #include <algorithm>
+#include <cmath>
+#include <map>
 #include <numeric>
 
 #include "rxtrain/base/error.hpp"
@@ -21,10 +23,46 @@ const char* layout_heat_name(LayoutHeat heat) {
   return "?";
 }
 
+ThermoCeiling thermo_ceiling(const Mechanism& mech, double default_ceiling) {
+  ThermoCeiling out{default_ceiling, ""};
+  bool stated = false;
+  for (const auto& s : mech.species()) {
+    const auto range = s.thermo.declared_range();
+    // An open upper end states nothing about how far up the data hold.
+    if (!range || !std::isfinite((*range)[1])) continue;
+    if (!stated || (*range)[1] > out.T) out = {(*range)[1], s.id};
+    stated = true;
+  }
+  return out;
+}
+
 namespace {
 
+// Below this a sized layout's final conversion is short of its highest
+// stage target (the sizing root finder lands far closer than this).
+constexpr double kTargetTolerance = 1e-6;
+constexpr double kZeroCelsius = 273.15;  // K
+
+std::string celsius(double T) { return fmt::format("{:.2f} °C", T - kZeroCelsius); }
+
+// A reactor stage's spec under a layout's heat mode.
+ReactorSpec with_heat(ReactorSpec r, LayoutHeat heat) {
+  if (heat == LayoutHeat::Adiabatic) r.heat = HeatMode::Adiabatic;
+  if (heat == LayoutHeat::Isothermal) r.heat = HeatMode::Isothermal;
+  return r;
+}
+
+// Two stages are interchangeable when everything that shapes the run is
+// equal; the id and the place in the file are only names.
+bool same_spec(const ReactorSpec& a, const ReactorSpec& b) {
+  return a.type == b.type && a.heat == b.heat && a.volume == b.volume &&
+         a.catalyst_mass == b.catalyst_mass && a.bulk_density == b.bulk_density &&
+         a.target_conversion == b.target_conversion;
+}
+
 // The case with its reactors in `order` (indices into `reactors`) placed
-// into the reactor slots of the train, heat modes set for `heat`.
+// into the reactor slots of the train, each with its whole spec, heat modes
+// set for `heat`.
 Case layout_case(const Case& c, const std::vector<ReactorSpec>& reactors,
                  const std::vector<int>& order, LayoutHeat heat) {
   Case out = c;
@@ -37,31 +75,16 @@ Case layout_case(const Case& c, const std::vector<ReactorSpec>& reactors,
       if (heat != LayoutHeat::Isothermal) out.train.emplace_back(*ex);
       continue;
     }
-    const ReactorSpec& here = std::get<ReactorSpec>(spec);
-    ReactorSpec moved = reactors[order[slot]];
-    if (here.target_conversion) {
-      // The position keeps its target; the reactor brings type and heat.
-      moved.volume.reset();
-      moved.catalyst_mass.reset();
-      moved.target_conversion = here.target_conversion;
-    } else if (moved.target_conversion) {
-      moved.target_conversion.reset();
-      moved.volume = here.volume;
-      moved.catalyst_mass = here.catalyst_mass;
-      if (here.catalyst_mass) moved.bulk_density = here.bulk_density;
-    }
-    if (heat == LayoutHeat::Adiabatic) moved.heat = HeatMode::Adiabatic;
-    if (heat == LayoutHeat::Isothermal) moved.heat = HeatMode::Isothermal;
-    out.train.emplace_back(std::move(moved));
-    ++slot;
+    out.train.emplace_back(with_heat(reactors[order[slot++]], heat));
   }
   return out;
 }
 
-Layout evaluate(const Case& lc, const TrainOptions& options, const std::optional<double>& T_limit) {
+// Runs one layout. `X_sized`: the highest stage target of a sized train,
+// which every layout of it must still reach at its outlet.
+Layout evaluate(const Case& lc, const TrainOptions& options, const std::optional<double>& T_limit,
+                const std::optional<double>& X_sized) {
   Layout l;
-  for (const auto& spec : lc.train)
-    if (const auto* r = std::get_if<ReactorSpec>(&spec)) l.order.push_back(r->id);
   try {
     const TrainResult res = run_train(lc, options);
     double V = 0, W = 0, T_hi = res.feed.T;
@@ -78,12 +101,18 @@ Layout evaluate(const Case& lc, const TrainOptions& options, const std::optional
     l.total_volume = V;
     if (all_catalyst) l.total_catalyst = W;
     l.conversion = res.conversion;
-    l.T_max = T_hi;
+    l.T_peak = T_hi;
     l.feasible = true;
     if (T_limit && T_hi > *T_limit) {
       l.feasible = false;
-      l.reason = fmt::format("T_max: the hottest point, {:.1f} K, is above the limit of {:.1f} K",
-                             T_hi, *T_limit);
+      l.reason = fmt::format("its hottest point, {}, is above T_max = {}", celsius(T_hi),
+                             celsius(*T_limit));
+    } else if (X_sized && res.conversion < *X_sized - kTargetTolerance) {
+      l.feasible = false;
+      l.reason = fmt::format(
+          "ends at X = {:.4f}, short of the {:.4f} a stage is sized to: a later stage gives "
+          "conversion back",
+          res.conversion, *X_sized);
     }
   } catch (const InfeasibleError& e) {
     l.reason = "equilibrium: " + e.message();
@@ -93,6 +122,64 @@ Layout evaluate(const Case& lc, const TrainOptions& options, const std::optional
     l.reason = std::string("solver: ") + e.what();
   }
   return l;
+}
+
+// Orders of the reactor stages that give one train under one heat mode.
+struct OrderGroup {
+  std::vector<std::vector<int>> orders;  // enumeration order
+};
+
+// Every order of `reactors`, grouped by the train it gives under `heat`:
+// orders whose stages have equal specs position by position fall together.
+std::vector<OrderGroup> group_orders(const std::vector<ReactorSpec>& reactors, LayoutHeat heat) {
+  // Each stage's class: the first stage with an equal spec under `heat`.
+  std::vector<int> cls(reactors.size());
+  for (std::size_t i = 0; i < reactors.size(); ++i) {
+    cls[i] = static_cast<int>(i);
+    for (std::size_t j = 0; j < i; ++j)
+      if (same_spec(with_heat(reactors[i], heat), with_heat(reactors[j], heat))) {
+        cls[i] = cls[j];
+        break;
+      }
+  }
+  std::vector<OrderGroup> groups;
+  std::map<std::vector<int>, std::size_t> index;
+  std::vector<int> order(reactors.size());
+  std::iota(order.begin(), order.end(), 0);
+  do {
+    std::vector<int> key;
+    for (int k : order) key.push_back(cls[k]);
+    const auto [it, fresh] = index.emplace(key, groups.size());
+    if (fresh) groups.emplace_back();
+    groups[it->second].orders.push_back(order);
+  } while (std::next_permutation(order.begin(), order.end()));
+  return groups;
+}
+
+int displaced(const std::vector<int>& order) {
+  int n = 0;
+  for (std::size_t k = 0; k < order.size(); ++k) n += order[k] != static_cast<int>(k);
+  return n;
+}
+
+// Names the group's orders, the one that moves the fewest stages first
+// (ties: enumeration order), and that order's moves against the case.
+// Returns that order, the one to run (its ids name the stages in messages).
+std::vector<int> name_orders(Layout& l, std::vector<std::vector<int>> orders,
+                             const std::vector<ReactorSpec>& reactors) {
+  std::stable_sort(orders.begin(), orders.end(),
+                   [](const auto& a, const auto& b) { return displaced(a) < displaced(b); });
+  for (const auto& o : orders) {
+    std::vector<std::string> ids;
+    for (int k : o) ids.push_back(reactors[k].id);
+    l.orders.push_back(std::move(ids));
+  }
+  l.order = l.orders.front();
+  const auto& best = orders.front();
+  for (std::size_t slot = 0; slot < best.size(); ++slot)
+    if (best[slot] != static_cast<int>(slot))
+      l.moves.push_back({reactors[best[slot]].id, best[slot] + 1, static_cast<int>(slot) + 1});
+  return best;
 }
 
 }  // namespace
@@ -115,12 +202,16 @@ CompareResult compare_layouts(const Case& c, const CompareOptions& options) {
                                  reactors.size(), options.max_reactor_stages));
 
   CompareResult out;
+  out.thermo_ceiling = thermo_ceiling(c.mechanism, options.default_thermo_ceiling);
   bool all_adiabatic = true, all_isothermal = true, all_catalyst_rates = true;
+  std::optional<double> X_sized;
   for (const auto& r : reactors) {
-    out.sized = out.sized || r.target_conversion.has_value();
+    out.case_order.push_back(r.id);
+    if (r.target_conversion) X_sized = std::max(X_sized.value_or(0.0), *r.target_conversion);
     all_adiabatic = all_adiabatic && r.heat == HeatMode::Adiabatic;
     all_isothermal = all_isothermal && r.heat == HeatMode::Isothermal;
   }
+  out.sized = X_sized.has_value();
   for (const auto& rx : c.mechanism.reactions())
     all_catalyst_rates = all_catalyst_rates && rx.rate.basis == RateBasis::Catalyst;
   out.catalyst_objective = all_catalyst_rates;
@@ -132,18 +223,20 @@ CompareResult compare_layouts(const Case& c, const CompareOptions& options) {
 
   TrainOptions train = options.train;
   train.equilibrium_views = false;  // only totals are compared
-  std::vector<int> order(reactors.size());
-  std::iota(order.begin(), order.end(), 0);
-  bool first = true;
-  do {
-    for (LayoutHeat heat : modes) {
-      Layout l = evaluate(layout_case(c, reactors, order, heat), train, c.limits.T_max);
+  for (LayoutHeat heat : modes) {
+    for (const auto& g : group_orders(reactors, heat)) {
+      Layout named;
+      const std::vector<int> order = name_orders(named, g.orders, reactors);
+      Layout l = evaluate(layout_case(c, reactors, order, heat), train, c.limits.T_max, X_sized);
+      l.order = std::move(named.order);
+      l.orders = std::move(named.orders);
+      l.moves = std::move(named.moves);
       l.heat = heat;
-      l.case_layout = first && heat == LayoutHeat::AsWritten;
+      l.case_layout = heat == LayoutHeat::AsWritten && l.moves.empty();
+      l.beyond_thermo = l.T_peak && *l.T_peak > out.thermo_ceiling.T;
       out.layouts.push_back(std::move(l));
     }
-    first = false;
-  } while (std::next_permutation(order.begin(), order.end()));
+  }
 
   // Best first; ties keep the enumeration order (stable sort).
   auto size_of = [&](const Layout& l) {

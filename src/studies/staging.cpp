@@ -51,10 +51,11 @@ TrainResult empty_result(const Case& c) {
   return r;
 }
 
-void append(TrainResult& t, StageResult r, const ConversionBasis& basis) {
+void append(TrainResult& t, StageResult r, const Case& c) {
+  if (!c.space_velocity_basis.empty()) add_space_velocities(c.mechanism, r, c.space_velocity_basis);
   for (const auto& w : r.warnings) t.warnings.push_back(w);
   t.outlet = r.outlet;
-  t.conversion = basis.conversion(r.outlet);
+  t.conversion = c.conversion_basis().conversion(r.outlet);
   t.stages.push_back(std::move(r));
 }
 
@@ -154,7 +155,7 @@ void check_as_given(const Setup& s, const StagingOptions& o, const SunContext& c
     a.volume = r.volume;
     stream = r.outlet;
     res.as_given.push_back(std::move(a));
-    append(res.as_given_run, std::move(r), s.basis);
+    append(res.as_given_run, std::move(r), s.c);
   }
   res.as_given_conversion = s.basis.conversion(stream);
   auto note_of = [&](const std::string& id) -> std::string& {
@@ -311,7 +312,7 @@ void build_staged(const Setup& s, const StagingOptions& o, const ReactorSpec& fi
       StageResult r = run_exchanger(mech, x, stream, s.basis);
       res.coolers.push_back({x.id, r.inlet.T, r.outlet.T, r.duty});
       stream = r.outlet;
-      append(res.staged_run, std::move(r), s.basis);
+      append(res.staged_run, std::move(r), s.c);
     }
     if (s.T_limit && (s.exothermic ? stream.T >= *s.T_limit : stream.T <= *s.T_limit)) {
       res.staged_note = fmt::format("bed {} would be fed at {}, already {} {} = {}", k,
@@ -352,7 +353,7 @@ void build_staged(const Setup& s, const StagingOptions& o, const ReactorSpec& fi
     res.beds.push_back(b);
     stream = r.outlet;
     X = r.conversion;
-    append(res.staged_run, std::move(r), s.basis);
+    append(res.staged_run, std::move(r), s.c);
     if (X >= s.target - kConversionTolerance) {
       res.target_reached = true;
       res.beds_needed = k;

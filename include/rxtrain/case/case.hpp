@@ -67,6 +67,10 @@ struct Case {
   std::optional<double> target_conversion;
   SourceLocation target_where;  // the `target` entry; file only when absent
   TemperatureLimits limits;
+  // Species WHSV and LHSV are quoted on (top-level `space_velocity_basis`),
+  // as indices into the mechanism's species, each with a molar mass; empty
+  // (the default): the whole stream. GHSV is always on the whole gas.
+  std::vector<int> space_velocity_basis;
 
   ConversionBasis conversion_basis() const { return {key, feed.F[key]}; }
 };

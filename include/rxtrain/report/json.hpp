@@ -2,7 +2,8 @@
 //   {"title", "species": [ids], "key", "feed": STREAM, "conversion",
 //    "stages": [{"id", "type", "heat", "sized", "volume", "catalyst_mass",
 //                "bulk_density", "space_time", "space_velocity", "ghsv", "whsv",
-//                "lhsv", "duty", "T_max", "T_min", "conversion", "inlet": STREAM,
+//                "lhsv", "space_velocity_basis": [ids], "duty", "T_max", "T_min",
+//                "conversion", "inlet": STREAM,
 //                "outlet": STREAM, "steady_states": [...], "profile": {...},
 //                "solver": {...}, "warnings": [...],
 //                "equilibrium": {"X_ad_eq", "T_ad_eq", "X_eq_out", "approach_X",
@@ -15,7 +16,9 @@
 //                    "inverse_rate"}, ...]}], "warnings": [...], "caution"}
 // STREAM = {"T", "P", "flows": {id: mol/s}}. Fields that do not apply are
 // null. GHSV, WHSV and LHSV are in 1/h as the trade quotes them; every
-// other value is SI.
+// other value is SI. "space_velocity_basis" names the species whose inlet
+// flows WHSV and LHSV are on (every species: the whole stream; empty where
+// the stage has none, e.g. an exchanger).
 #pragma once
 
 #include <nlohmann/json.hpp>

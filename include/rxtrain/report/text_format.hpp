@@ -33,5 +33,10 @@ std::size_t display_width(const std::string& s);
 // Rows of cells: the first `n_left` columns left-aligned (names), the rest
 // right-aligned (numbers), two spaces between; one line per row.
 std::string render_columns(const std::vector<std::vector<std::string>>& rows, std::size_t n_left);
+// What WHSV and LHSV of a stage are on, from the species it names
+// (StageResult::space_velocity_basis) against all `species` of the case:
+// "the whole stream" or "BZ + CH".
+std::string space_velocity_basis_text(const std::vector<std::string>& basis,
+                                      const std::vector<std::string>& species);
 
 }  // namespace rxtrain

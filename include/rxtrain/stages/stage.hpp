@@ -5,6 +5,7 @@
 
 #include <limits>
 #include <optional>
+#include <span>
 #include <string>
 #include <vector>
 
@@ -116,6 +117,9 @@ struct StageResult {
   std::optional<double> ghsv;              // 1/h, inlet gas at 0 degC, 1 atm
   std::optional<double> whsv;              // 1/h, inlet mass flow / catalyst
   std::optional<double> lhsv;              // 1/h, inlet as liquid / volume
+  // Species whose inlet flows WHSV and LHSV are on (every species: the
+  // whole stream); empty where they were not computed.
+  std::vector<std::string> space_velocity_basis;
   double duty = 0;                         // W, heat added to the stream
   double T_max = 0;                        // K, highest T inside the stage
   double T_min = 0;                        // K, lowest T inside the stage
@@ -137,8 +141,11 @@ struct StageResult {
 };
 
 // Fills space time, space velocity, GHSV, WHSV and LHSV from the stage's
-// volume and inlet (each only where it applies).
-void add_space_velocities(const Mechanism& mech, StageResult& r);
+// volume and inlet (each only where it applies). GHSV is on the whole gas;
+// WHSV and LHSV on the inlet flows of the `basis` species (indices; empty:
+// every species), as Case::space_velocity_basis names them. The stages
+// fill them on the whole stream; the train applies the case's basis.
+void add_space_velocities(const Mechanism& mech, StageResult& r, std::span<const int> basis = {});
 
 // Volumetric rate multiplier of each reaction in a stage: 1 for per-volume
 // rates, the bulk density for per-catalyst rates. Throws InputError when a

@@ -1,10 +1,20 @@
 // Layouts of a train compared: every order of its reactor stages, each
 // with the heat modes as written, all adiabatic, and all isothermal at the
 // feed temperature. Exchangers keep their positions between reactor
-// stages. A stage with a volume (or catalyst mass) carries it to its new
-// position; conversion targets stay with their positions, so a sized train
-// keeps its sequence of intermediate conversions and the reactors (type,
-// heat, bulk density) move between them.
+// stages. A reactor stage moves with its whole spec: its type, heat mode,
+// volume or catalyst mass, bulk density, or its conversion target. Orders
+// that give the same train (identical specs at identical positions, e.g.
+// two identical beds exchanged) are run once and listed as one layout with
+// every order it stands for.
+//
+// A moved stage keeps its target: where a target is not above the
+// conversion at the stage's new inlet, that layout is infeasible and its
+// reason says so; the command as a whole still runs.
+//
+// Example:
+//   const CompareResult r = compare_layouts(load_case("three-bed.yaml", units));
+//   for (const Layout& l : r.layouts)
+//     if (l.feasible) ...  // best first
 #pragma once
 
 #include <optional>
@@ -25,10 +35,38 @@ struct CompareOptions {
   TrainOptions train;  // equilibrium views are switched off inside
   // Orders grow as n!; 6 reactor stages give 720 orders (x3 heat modes).
   int max_reactor_stages = 6;
+  // The upper end of the temperatures the heat-capacity data are taken to
+  // cover when no species of the case declares a range (constant cp, or a
+  // polynomial without T_range): 1000 K, where low-temperature fits commonly
+  // end (common practice, no source).
+  double default_thermo_ceiling = 1000.0;  // K
+};
+
+// The highest temperature the case's heat-capacity data cover: the top of
+// the highest finite range any species declares, or, when none does,
+// CompareOptions::default_thermo_ceiling. Above it every cp is
+// extrapolated, and so is every figure of a layout that gets there.
+struct ThermoCeiling {
+  double T = 0;         // K
+  std::string species;  // whose declared range ends at T; empty: the default
+};
+ThermoCeiling thermo_ceiling(const Mechanism& mech, double default_ceiling);
+
+// A reactor stage that sits elsewhere than in the case: positions count
+// reactor stages only, from 1.
+struct StageMove {
+  std::string stage;
+  int from = 0;
+  int to = 0;
 };
 
 struct Layout {
-  std::vector<std::string> order;  // reactor-stage ids in train order
+  // Reactor-stage ids in train order: of the orders below, the one that
+  // moves the fewest stages from the case.
+  std::vector<std::string> order;
+  // Every order that gives this same train, `order` first.
+  std::vector<std::vector<std::string>> orders;
+  std::vector<StageMove> moves;  // of `order` against the case; empty: as written
   LayoutHeat heat = LayoutHeat::AsWritten;
   bool case_layout = false;  // the case exactly as written
   bool feasible = false;
@@ -36,7 +74,11 @@ struct Layout {
   std::optional<double> total_volume;    // m3
   std::optional<double> total_catalyst;  // kg, when every reactor has one
   std::optional<double> conversion;      // overall key conversion at the outlet
-  std::optional<double> T_max;           // K, hottest point of the train
+  std::optional<double> T_peak;          // K, hottest point of the train
+  // T_peak above CompareResult::thermo_ceiling: the layout's figures rest
+  // on extrapolated heat capacities. Said beside the layout, never folded
+  // into its rank.
+  bool beyond_thermo = false;
 };
 
 struct CompareResult {
@@ -44,8 +86,10 @@ struct CompareResult {
   // smallest total catalyst (or volume, for per-volume rates); otherwise
   // by the highest final conversion.
   bool sized = false;
-  bool catalyst_objective = false;  // ranked by catalyst mass, not volume
-  std::vector<Layout> layouts;      // best first, infeasible last
+  bool catalyst_objective = false;      // ranked by catalyst mass, not volume
+  std::vector<std::string> case_order;  // reactor-stage ids as written
+  ThermoCeiling thermo_ceiling;
+  std::vector<Layout> layouts;  // best first, infeasible last
 };
 
 // Throws InputError when the train has more reactor stages than
