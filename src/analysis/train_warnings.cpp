@@ -7,6 +7,7 @@
 #include <limits>
 
 #include "rxtrain/base/error.hpp"
+#include "rxtrain/base/units.hpp"
 #include "rxtrain/models/energy_balance.hpp"
 #include "rxtrain/models/equilibrium.hpp"
 #include "rxtrain/stages/exchanger.hpp"
@@ -15,8 +16,6 @@
 namespace rxtrain {
 
 namespace {
-
-constexpr double kZeroCelsius = 273.15;  // K
 
 // The last tenth of a bed and the conversion it should at least add
 // (common practice, no source). A bed whose last tenth adds less than half

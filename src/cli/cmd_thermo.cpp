@@ -8,11 +8,11 @@
 #include <string>
 
 #include "commands.hpp"
+#include "rxtrain/base/caution.hpp"
+#include "rxtrain/base/error.hpp"
+#include "rxtrain/base/units.hpp"
 #include "rxtrain/case/case.hpp"
 #include "rxtrain/models/equilibrium.hpp"
-#include "rxtrain/base/error.hpp"
-#include "rxtrain/base/caution.hpp"
-#include "rxtrain/base/units.hpp"
 
 namespace rxtrain::cli {
 
@@ -69,9 +69,10 @@ int run(const ThermoOptions& o) {
     out += fmt::format("{:>9} {:>9} {:>13} {:>11} {:>13} {:>13}\n", "T K", "T °C", "K", "ln K",
                        "dH_r kJ/mol", "dG0 kJ/mol");
     for (const auto& r : rows)
-      out += fmt::format("{:>9.2f} {:>9.2f} {:>13} {:>11} {:>13.4f} {:>13}\n", r.T, r.T - 273.15,
-                         sci(r.K), r.ln_K ? fmt::format("{:.5f}", *r.ln_K) : "-", r.dH / 1e3,
-                         r.dG ? fmt::format("{:.4f}", *r.dG / 1e3) : "-");
+      out +=
+          fmt::format("{:>9.2f} {:>9.2f} {:>13} {:>11} {:>13.4f} {:>13}\n", r.T, r.T - kZeroCelsius,
+                      sci(r.K), r.ln_K ? fmt::format("{:.5f}", *r.ln_K) : "-", r.dH / 1e3,
+                      r.dG ? fmt::format("{:.4f}", *r.dG / 1e3) : "-");
   }
   for (const auto& w : c.warnings) out += "warning: " + w + "\n";
   out += fmt::format("\n{}\n", kCaution);

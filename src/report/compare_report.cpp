@@ -7,13 +7,12 @@
 #include <limits>
 #include <nlohmann/json.hpp>
 
+#include "rxtrain/base/units.hpp"
 #include "rxtrain/report/text_format.hpp"
 
 namespace rxtrain {
 
 namespace {
-
-constexpr double kZeroCelsius = 273.15;  // K
 
 nlohmann::json number(const std::optional<double>& v) {
   return v && std::isfinite(*v) ? nlohmann::json(*v) : nlohmann::json(nullptr);

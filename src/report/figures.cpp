@@ -7,11 +7,11 @@
 #include <string>
 #include <vector>
 
+#include "rxtrain/base/units.hpp"
+
 namespace rxtrain {
 
 namespace {
-
-constexpr double kZeroCelsius = 273.15;
 
 const char* stage_word(StageKind k) {
   return k == StageKind::Pfr ? "tubular" : k == StageKind::Cstr ? "stirred tank" : "exchanger";

@@ -5,11 +5,11 @@
 #include <algorithm>
 #include <cmath>
 
+#include "rxtrain/base/units.hpp"
+
 namespace rxtrain {
 
-namespace {
-constexpr double kZeroCelsius = 273.15;  // K
-}  // namespace
+namespace {}  // namespace
 
 std::string fixed_text(double v, int digits) {
   if (!std::isfinite(v)) return "-";

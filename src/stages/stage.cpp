@@ -5,14 +5,15 @@
 #include <algorithm>
 #include <cmath>
 
+#include "rxtrain/base/units.hpp"
 
 namespace rxtrain {
 
 namespace {
 // Normal conditions for GHSV: 0 degC and 1 atm (common practice; the basis
 // is stated in every report).
-constexpr double kNormalT = 273.15;    // K
-constexpr double kNormalP = 101325.0;  // Pa (1 atm, NIST SP 811)
+constexpr double kNormalT = kZeroCelsius;  // K
+constexpr double kNormalP = 101325.0;      // Pa (1 atm, NIST SP 811)
 constexpr double kSecondsPerHour = 3600.0;
 }  // namespace
 

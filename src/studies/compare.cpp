@@ -8,6 +8,7 @@
 #include <numeric>
 
 #include "rxtrain/base/error.hpp"
+#include "rxtrain/base/units.hpp"
 
 namespace rxtrain {
 
@@ -41,7 +42,6 @@ namespace {
 // Below this a sized layout's final conversion is short of its highest
 // stage target (the sizing root finder lands far closer than this).
 constexpr double kTargetTolerance = 1e-6;
-constexpr double kZeroCelsius = 273.15;  // K
 
 std::string celsius(double T) { return fmt::format("{:.2f} °C", T - kZeroCelsius); }
 

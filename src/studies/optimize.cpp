@@ -11,14 +11,14 @@
 #include "optimize/layout_optimizer.hpp"
 #include "rxtrain/analysis/train_warnings.hpp"
 #include "rxtrain/base/error.hpp"
-#include "rxtrain/studies/staging.hpp"
+#include "rxtrain/base/units.hpp"
 #include "rxtrain/flowsheet/train.hpp"
+#include "rxtrain/studies/staging.hpp"
 
 namespace rxtrain {
 
 namespace {
 
-constexpr double kZeroCelsius = 273.15;  // K
 // A limit counts as active within this (K): the optimizer settles inlet
 // temperatures to better than 1 mK, so 0.01 K tells a bound from a near miss.
 constexpr double kActiveTolerance = 0.01;

@@ -9,13 +9,13 @@
 
 #include "rxtrain/analysis/train_warnings.hpp"
 #include "rxtrain/base/error.hpp"
+#include "rxtrain/base/units.hpp"
 #include "rxtrain/stages/exchanger.hpp"
 
 namespace rxtrain {
 
 namespace {
 
-constexpr double kZeroCelsius = 273.15;  // K
 // A conversion counts as reached within this (absolute): CVODE's root on
 // the conversion lands within ~1e-10 of it.
 constexpr double kConversionTolerance = 1e-8;

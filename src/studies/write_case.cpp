@@ -1,17 +1,17 @@
+#include "rxtrain/studies/write_case.hpp"
+
 #include <fmt/format.h>
 
 #include <sstream>
 #include <vector>
 
-#include "rxtrain/studies/write_case.hpp"
-#include "rxtrain/base/error.hpp"
 #include "rxtrain/base/caution.hpp"
+#include "rxtrain/base/error.hpp"
+#include "rxtrain/base/units.hpp"
 
 namespace rxtrain {
 
 namespace {
-
-constexpr double kZeroCelsius = 273.15;  // K
 
 std::vector<std::string> lines_of(const std::string& text) {
   std::vector<std::string> lines;

@@ -18,6 +18,10 @@
 
 namespace rxtrain {
 
+// 0 °C in kelvin (exact, by the definition of the Celsius scale): the one
+// offset every display of °C and the GHSV's normal conditions use.
+inline constexpr double kZeroCelsius = 273.15;  // K
+
 // A unit string the parser does not accept, or one of the wrong dimension.
 // The message says what was expected and what was given; the case loader adds
 // the file location and the field name.
@@ -31,10 +35,10 @@ class UnitError : public std::runtime_error {
 // base form: a rate in "mol/(m3*s)" divided by a driving force "mol/m3" or
 // "Pa" raised to the (possibly fractional) sum of the reaction orders.
 struct SiUnit {
-  std::string numerator;   // udunits-parsable SI unit, e.g. "mol/(kg*s)"
-  std::string base;        // "" or a udunits-parsable SI unit, e.g. "Pa"
-  double base_power = 0;   // any real power; rational powers p/q with q <= 64
-  std::string description; // shown in messages, e.g. "a temperature"
+  std::string numerator;    // udunits-parsable SI unit, e.g. "mol/(kg*s)"
+  std::string base;         // "" or a udunits-parsable SI unit, e.g. "Pa"
+  double base_power = 0;    // any real power; rational powers p/q with q <= 64
+  std::string description;  // shown in messages, e.g. "a temperature"
 
   static SiUnit of(std::string si, std::string description = "");
   static SiUnit per_power(std::string numerator, std::string base, double power,
