@@ -14,14 +14,15 @@
 #include <string>
 
 #include "commands.hpp"
-#include "rxtrain/case/case.hpp"
-#include "rxtrain/studies/optimize.hpp"
-#include "rxtrain/studies/write_case.hpp"
-#include "rxtrain/report/atomic_file.hpp"
 #include "rxtrain/base/caution.hpp"
+#include "rxtrain/base/json_number.hpp"
+#include "rxtrain/base/units.hpp"
+#include "rxtrain/case/case.hpp"
+#include "rxtrain/report/atomic_file.hpp"
 #include "rxtrain/report/optimize_html.hpp"
 #include "rxtrain/report/text_format.hpp"
-#include "rxtrain/base/units.hpp"
+#include "rxtrain/studies/optimize.hpp"
+#include "rxtrain/studies/write_case.hpp"
 
 namespace rxtrain::cli {
 
@@ -40,8 +41,6 @@ struct OptimizeCommandOptions {
 };
 
 // Never a NaN or inf in the output: null instead.
-json num(double v) { return std::isfinite(v) ? json(v) : json(nullptr); }
-json num(const std::optional<double>& v) { return v ? num(*v) : json(nullptr); }
 
 // The objective's total of a layout: kg of catalyst, or m3.
 double objective_total(const DesignResult& d, const DesignLayout& l) {
@@ -60,15 +59,19 @@ std::optional<double> saving(const DesignResult& d, const std::optional<double>&
 }
 
 json exchanger_json(const DesignExchanger& x) {
-  return {{"id", x.id}, {"T_in", num(x.T_in)}, {"T_out", num(x.T_out)}, {"duty", num(x.duty)}};
+  return {{"id", x.id},
+          {"T_in", json_number(x.T_in)},
+          {"T_out", json_number(x.T_out)},
+          {"duty", json_number(x.duty)}};
 }
 
 std::string optimize_json_text(const DesignResult& d) {
   json j;
   j["title"] = d.title;
   j["key"] = d.key;
-  j["target"] = num(d.target);
-  j["limits"] = {{"T_max", num(d.limits.T_max)}, {"T_in_min", num(d.limits.T_in_min)}};
+  j["target"] = json_number(d.target);
+  j["limits"] = {{"T_max", json_number(d.limits.T_max)},
+                 {"T_in_min", json_number(d.limits.T_in_min)}};
   j["reaction"] = d.exothermic ? "exothermic" : "endothermic";
   j["objective"] = d.catalyst_objective ? "catalyst" : "volume";
   j["fixed_feed_T"] = d.fixed_feed_T;
@@ -76,25 +79,25 @@ std::string optimize_json_text(const DesignResult& d) {
   json beds = json::array();
   for (const auto& b : l.bed)
     beds.push_back({{"id", b.id},
-                    {"T_in", num(b.T_in)},
-                    {"T_out", num(b.T_out)},
-                    {"X_in", num(b.X_in)},
-                    {"X_out", num(b.X_out)},
-                    {"X_ad_eq", num(b.X_ad_eq)},
-                    {"volume", num(b.volume)},
-                    {"catalyst_mass", num(b.catalyst_mass)},
-                    {"rate_in", num(b.rate_in)},
-                    {"rate_out", num(b.rate_out)}});
+                    {"T_in", json_number(b.T_in)},
+                    {"T_out", json_number(b.T_out)},
+                    {"X_in", json_number(b.X_in)},
+                    {"X_out", json_number(b.X_out)},
+                    {"X_ad_eq", json_number(b.X_ad_eq)},
+                    {"volume", json_number(b.volume)},
+                    {"catalyst_mass", json_number(b.catalyst_mass)},
+                    {"rate_in", json_number(b.rate_in)},
+                    {"rate_out", json_number(b.rate_out)}});
   j["beds"] = beds;
   json coolers = json::array();
   for (const auto& x : l.coolers) coolers.push_back(exchanger_json(x));
   j["coolers"] = coolers;
   j["feed_conditioning"] = exchanger_json(l.feed_conditioning);
-  j["total_volume"] = num(l.total_volume);
-  j["total_catalyst"] = num(l.total_catalyst);
-  j["total_duty"] = num(l.total_duty);
+  j["total_volume"] = json_number(l.total_volume);
+  j["total_catalyst"] = json_number(l.total_catalyst);
+  j["total_duty"] = json_number(l.total_duty);
   j["active_constraints"] = l.active_constraints;
-  j["checked_conversion"] = num(l.checked_conversion);
+  j["checked_conversion"] = json_number(l.checked_conversion);
   j["optimizer"] = {
       {"evaluations", l.evaluations}, {"starts", l.starts}, {"polish_rounds", l.polish_rounds}};
   if (d.as_written) {
@@ -102,14 +105,14 @@ std::string optimize_json_text(const DesignResult& d) {
     const bool comparable = a.ran && a.reaches_target && a.within_limits;
     const auto other = objective_total(d, a.total_catalyst, a.total_volume);
     j["as_written"] = {{"ran", a.ran},
-                       {"conversion", a.ran ? num(a.conversion) : json(nullptr)},
+                       {"conversion", a.ran ? json_number(a.conversion) : json(nullptr)},
                        {"reaches_target", a.reaches_target},
                        {"within_limits", a.within_limits},
                        {"reactors", a.reactors},
-                       {"total_volume", a.ran ? num(a.total_volume) : json(nullptr)},
-                       {"total_catalyst", num(a.total_catalyst)},
-                       {"total_duty", a.ran ? num(a.total_duty) : json(nullptr)},
-                       {"saving", comparable ? num(saving(d, other)) : json(nullptr)},
+                       {"total_volume", a.ran ? json_number(a.total_volume) : json(nullptr)},
+                       {"total_catalyst", json_number(a.total_catalyst)},
+                       {"total_duty", a.ran ? json_number(a.total_duty) : json(nullptr)},
+                       {"saving", comparable ? json_number(saving(d, other)) : json(nullptr)},
                        {"note", a.note.empty() ? json(nullptr) : json(a.note)}};
   } else {
     j["as_written"] = nullptr;
@@ -119,10 +122,11 @@ std::string optimize_json_text(const DesignResult& d) {
     j["staging"] = {
         {"reached", s.reached},
         {"beds", s.beds},
-        {"total_volume", num(s.total_volume)},
-        {"total_catalyst", num(s.total_catalyst)},
-        {"saving", s.reached ? num(saving(d, objective_total(d, s.total_catalyst, s.total_volume)))
-                             : json(nullptr)},
+        {"total_volume", json_number(s.total_volume)},
+        {"total_catalyst", json_number(s.total_catalyst)},
+        {"saving",
+         s.reached ? json_number(saving(d, objective_total(d, s.total_catalyst, s.total_volume)))
+                   : json(nullptr)},
         {"note", s.note}};
   } else {
     j["staging"] = nullptr;
@@ -130,12 +134,13 @@ std::string optimize_json_text(const DesignResult& d) {
   json counts = json::array();
   const std::vector<DesignLayout> one{d.best};
   for (const auto& c : d.by_bed_count.empty() ? one : d.by_bed_count)
-    counts.push_back({{"beds", c.beds},
-                      {"feasible", c.feasible},
-                      {"total_catalyst", c.feasible ? num(c.total_catalyst) : json(nullptr)},
-                      {"total_volume", c.feasible ? num(c.total_volume) : json(nullptr)},
-                      {"total_duty", c.feasible ? num(c.total_duty) : json(nullptr)},
-                      {"why", c.feasible ? json(nullptr) : json(c.why)}});
+    counts.push_back(
+        {{"beds", c.beds},
+         {"feasible", c.feasible},
+         {"total_catalyst", c.feasible ? json_number(c.total_catalyst) : json(nullptr)},
+         {"total_volume", c.feasible ? json_number(c.total_volume) : json(nullptr)},
+         {"total_duty", c.feasible ? json_number(c.total_duty) : json(nullptr)},
+         {"why", c.feasible ? json(nullptr) : json(c.why)}});
   j["by_bed_count"] = counts;
   j["warnings"] = d.warnings;
   j["caution"] = kCaution;

@@ -7,16 +7,13 @@
 #include <limits>
 #include <nlohmann/json.hpp>
 
+#include "rxtrain/base/json_number.hpp"
 #include "rxtrain/base/units.hpp"
 #include "rxtrain/report/text_format.hpp"
 
 namespace rxtrain {
 
 namespace {
-
-nlohmann::json number(const std::optional<double>& v) {
-  return v && std::isfinite(*v) ? nlohmann::json(*v) : nlohmann::json(nullptr);
-}
 
 std::string text(const std::optional<double>& v, const char* f) {
   return v && std::isfinite(*v) ? fmt::format(fmt::runtime(f), *v) : std::string("-");
@@ -178,10 +175,10 @@ std::string compare_json_text(const CompareResult& r) {
                        {"case_layout", l.case_layout},
                        {"feasible", l.feasible},
                        {"reason", l.feasible ? nlohmann::json(nullptr) : nlohmann::json(l.reason)},
-                       {"total_volume", number(l.total_volume)},
-                       {"total_catalyst", number(l.total_catalyst)},
-                       {"conversion", number(l.conversion)},
-                       {"T_peak", number(l.T_peak)},
+                       {"total_volume", json_number(l.total_volume)},
+                       {"total_catalyst", json_number(l.total_catalyst)},
+                       {"conversion", json_number(l.conversion)},
+                       {"T_peak", json_number(l.T_peak)},
                        {"beyond_thermo_data", l.beyond_thermo}});
   }
   const auto& t = r.thermo_ceiling;

@@ -4,6 +4,7 @@
 #include <optional>
 
 #include "rxtrain/base/caution.hpp"
+#include "rxtrain/base/json_number.hpp"
 
 namespace rxtrain {
 
@@ -12,27 +13,26 @@ namespace {
 using nlohmann::json;
 
 // A non-finite number never reaches the output: it becomes null.
-json number(double v) { return std::isfinite(v) ? json(v) : json(nullptr); }
-json number(const std::optional<double>& v) { return v ? number(*v) : json(nullptr); }
 
 json flows(const std::vector<std::string>& ids, const std::vector<double>& F) {
   json o = json::object();
-  for (std::size_t i = 0; i < ids.size() && i < F.size(); ++i) o[ids[i]] = number(F[i]);
+  for (std::size_t i = 0; i < ids.size() && i < F.size(); ++i) o[ids[i]] = json_number(F[i]);
   return o;
 }
 
 json stream(const std::vector<std::string>& ids, const Stream& s) {
-  return {{"T", number(s.T)}, {"P", number(s.P)}, {"flows", flows(ids, s.F)}};
+  return {{"T", json_number(s.T)}, {"P", json_number(s.P)}, {"flows", flows(ids, s.F)}};
 }
 
 json profile(const std::vector<std::string>& ids, const StageResult& r) {
   json V = json::array(), T = json::array(), X = json::array();
   std::vector<json> F(ids.size(), json::array());
   for (const auto& p : r.profile) {
-    V.push_back(number(p.V));
-    T.push_back(number(p.T));
-    X.push_back(number(p.X));
-    for (std::size_t i = 0; i < ids.size() && i < p.F.size(); ++i) F[i].push_back(number(p.F[i]));
+    V.push_back(json_number(p.V));
+    T.push_back(json_number(p.T));
+    X.push_back(json_number(p.X));
+    for (std::size_t i = 0; i < ids.size() && i < p.F.size(); ++i)
+      F[i].push_back(json_number(p.F[i]));
   }
   json flows_by_id = json::object();
   for (std::size_t i = 0; i < ids.size(); ++i) flows_by_id[ids[i]] = F[i];
@@ -45,25 +45,25 @@ json stage(const std::vector<std::string>& ids, const StageResult& r) {
   s["type"] = stage_kind_name(r.kind);
   s["heat"] = r.heat ? json(heat_mode_name(*r.heat)) : json(nullptr);
   s["sized"] = r.sized;
-  s["volume"] = number(r.volume);
-  s["catalyst_mass"] = number(r.catalyst_mass);
-  s["bulk_density"] = number(r.bulk_density);
-  s["space_time"] = number(r.space_time);
-  s["space_velocity"] = number(r.space_velocity);
-  s["ghsv"] = number(r.ghsv);
-  s["whsv"] = number(r.whsv);
-  s["lhsv"] = number(r.lhsv);
+  s["volume"] = json_number(r.volume);
+  s["catalyst_mass"] = json_number(r.catalyst_mass);
+  s["bulk_density"] = json_number(r.bulk_density);
+  s["space_time"] = json_number(r.space_time);
+  s["space_velocity"] = json_number(r.space_velocity);
+  s["ghsv"] = json_number(r.ghsv);
+  s["whsv"] = json_number(r.whsv);
+  s["lhsv"] = json_number(r.lhsv);
   s["space_velocity_basis"] = r.space_velocity_basis;
-  s["duty"] = number(r.duty);
-  s["T_max"] = number(r.T_max);
-  s["T_min"] = number(r.T_min);
-  s["conversion"] = number(r.conversion);
+  s["duty"] = json_number(r.duty);
+  s["T_max"] = json_number(r.T_max);
+  s["T_min"] = json_number(r.T_min);
+  s["conversion"] = json_number(r.conversion);
   s["inlet"] = stream(ids, r.inlet);
   s["outlet"] = stream(ids, r.outlet);
   json states = json::array();
   for (const auto& ss : r.steady_states)
     states.push_back(
-        {{"T", number(ss.T)}, {"conversion", number(ss.X)}, {"flows", flows(ids, ss.F)}});
+        {{"T", json_number(ss.T)}, {"conversion", json_number(ss.X)}, {"flows", flows(ids, ss.F)}});
   s["steady_states"] = r.kind == StageKind::Cstr ? states : json(nullptr);
   s["profile"] = profile(ids, r);
   s["solver"] = {{"steps", r.stats.steps},
@@ -75,29 +75,30 @@ json stage(const std::vector<std::string>& ids, const StageResult& r) {
   s["warnings"] = r.warnings;
   if (r.equilibrium) {
     const auto& e = *r.equilibrium;
-    s["equilibrium"] = {{"X_ad_eq", number(e.X_ad_eq)},
-                        {"T_ad_eq", number(e.T_ad_eq)},
-                        {"X_eq_out", number(e.X_eq_out)},
-                        {"approach_X", number(e.approach_X)},
-                        {"approach_T", number(e.approach_T)}};
+    s["equilibrium"] = {{"X_ad_eq", json_number(e.X_ad_eq)},
+                        {"T_ad_eq", json_number(e.T_ad_eq)},
+                        {"X_eq_out", json_number(e.X_eq_out)},
+                        {"approach_X", json_number(e.approach_X)},
+                        {"approach_T", json_number(e.approach_T)}};
   } else {
     s["equilibrium"] = nullptr;
   }
   if (r.reach) {
     const auto& h = *r.reach;
-    s["reach"] = {{"X_max", number(h.X_max)},
-                  {"V_at_X_max", number(h.V_at_X_max)},
-                  {"T_at_X_max", number(h.T_at_X_max)},
-                  {"X_end", number(h.X_end)},
-                  {"T_end", number(h.T_end)},
+    s["reach"] = {{"X_max", json_number(h.X_max)},
+                  {"V_at_X_max", json_number(h.V_at_X_max)},
+                  {"T_at_X_max", json_number(h.T_at_X_max)},
+                  {"X_end", json_number(h.X_end)},
+                  {"T_end", json_number(h.T_end)},
                   {"end", reach_end_name(h.end)},
                   {"species", h.species >= 0 ? json(ids[h.species]) : json(nullptr)}};
   } else {
     s["reach"] = nullptr;
   }
-  s["size_sensitivity"] = number(r.size_sensitivity);
+  s["size_sensitivity"] = json_number(r.size_sensitivity);
   json path = json::array();
-  for (const auto& p : r.profile) path.push_back({{"T", number(p.T)}, {"X", number(p.X)}});
+  for (const auto& p : r.profile)
+    path.push_back({{"T", json_number(p.T)}, {"X", json_number(p.X)}});
   s["path"] = path;
   return s;
 }
@@ -110,30 +111,30 @@ nlohmann::json to_json(const TrainResult& result) {
   j["species"] = result.species;
   j["key"] = result.key;
   j["feed"] = stream(result.species, result.feed);
-  j["conversion"] = number(result.conversion);
+  j["conversion"] = json_number(result.conversion);
   json stages = json::array();
   for (const auto& r : result.stages) stages.push_back(stage(result.species, r));
   j["stages"] = stages;
   j["outlet"] = stream(result.species, result.outlet);
   json curve = json::array();
   for (const auto& p : result.equilibrium_curve)
-    curve.push_back({{"T", number(p.T)}, {"X_eq", number(p.X_eq)}});
+    curve.push_back({{"T", json_number(p.T)}, {"X_eq", json_number(p.X_eq)}});
   j["equilibrium_curve"] = curve;
   json locus = json::array();
   for (const auto& p : result.max_rate_locus)
-    locus.push_back({{"X", number(p.X)}, {"T_opt", number(p.T)}});
+    locus.push_back({{"X", json_number(p.X)}, {"T_opt", json_number(p.T)}});
   j["max_rate_locus"] = locus;
   json lev = json::array();
   for (const auto& c : result.levenspiel) {
     json points = json::array();
     for (const auto& p : c.points)
-      points.push_back({{"X", number(p.X)}, {"inverse_rate", number(p.inverse_rate)}});
+      points.push_back({{"X", json_number(p.X)}, {"inverse_rate", json_number(p.inverse_rate)}});
     lev.push_back({{"stage", c.stage},
                    {"basis", c.catalyst_basis ? "catalyst" : "volume"},
                    {"rectangle", c.rectangle},
-                   {"X_in", number(c.X_in)},
-                   {"X_out", number(c.X_out)},
-                   {"area", number(c.area)},
+                   {"X_in", json_number(c.X_in)},
+                   {"X_out", json_number(c.X_out)},
+                   {"area", json_number(c.area)},
                    {"points", points}});
   }
   j["levenspiel"] = lev;

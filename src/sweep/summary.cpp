@@ -8,16 +8,13 @@
 #include <nlohmann/json.hpp>
 
 #include "rxtrain/base/caution.hpp"
+#include "rxtrain/base/json_number.hpp"
 
 namespace rxtrain::sweep {
 
 namespace {
 
 using nlohmann::json;
-
-json number(const std::optional<double>& v) {
-  return v && std::isfinite(*v) ? json(*v) : json(nullptr);
-}
 
 std::string cell(const std::optional<double>& v) {
   return v ? fmt::format("{:.6g}", *v) : std::string("unbounded");
@@ -74,9 +71,10 @@ std::string sweep_json_text(const StudyHeader& header, const Shard& shard,
   json runs = json::array();
   for (const auto& r : rows) {
     json in = json::object(), out = json::object();
-    for (std::size_t i = 0; i < input_names.size(); ++i) in[input_names[i]] = number(r.inputs[i]);
+    for (std::size_t i = 0; i < input_names.size(); ++i)
+      in[input_names[i]] = json_number(r.inputs[i]);
     for (std::size_t i = 0; i < header.outputs.size(); ++i)
-      out[header.outputs[i]] = number(r.result.outputs[i]);
+      out[header.outputs[i]] = json_number(r.result.outputs[i]);
     runs.push_back({{"run", r.run},
                     {"inputs", in},
                     {"outputs", out},
@@ -92,8 +90,8 @@ std::string sweep_json_text(const StudyHeader& header, const Shard& shard,
     margins.push_back({{"column", m.column},
                        {"runs_with_value", m.ok},
                        {"runs_infeasible", m.infeasible},
-                       {"P50", number(m.p50)},
-                       {"P95", number(m.p95)},
+                       {"P50", json_number(m.p50)},
+                       {"P95", json_number(m.p95)},
                        {"unbounded", !m.p95.has_value()}});
   json j = {
       {"study", study},
@@ -122,8 +120,8 @@ std::string summary_text(const StudySummary& s, bool monte_carlo) {
     w = std::max(w, p.name.size());
     wu = std::max(wu, p.unit.size());
   }
-  out += fmt::format("\n{:<{}}  {:<{}}  {:>6}  {:>14}  {:>14}  {:>14}\n", "output", w, "unit",
-                     wu, "n", "P5", "P50", "P95");
+  out += fmt::format("\n{:<{}}  {:<{}}  {:>6}  {:>14}  {:>14}  {:>14}\n", "output", w, "unit", wu,
+                     "n", "P5", "P50", "P95");
   for (const auto& p : s.percentiles) {
     if (!p.p) {
       out += fmt::format("{:<{}}  {:<{}}  {:>6}  {:>14}  {:>14}  {:>14}\n", p.name, w, p.unit, wu,
