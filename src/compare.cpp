@@ -58,7 +58,7 @@ Case layout_case(const Case& c, const std::vector<ReactorSpec>& reactors,
   return out;
 }
 
-Layout evaluate(const Case& lc, const TrainOptions& options, const std::optional<double>& T_limit) {
+Layout evaluate(const Case& lc, const TrainOptions& options) {
   Layout l;
   for (const auto& spec : lc.train)
     if (const auto* r = std::get_if<ReactorSpec>(&spec)) l.order.push_back(r->id);
@@ -79,11 +79,13 @@ Layout evaluate(const Case& lc, const TrainOptions& options, const std::optional
     if (all_catalyst) l.total_catalyst = W;
     l.conversion = res.conversion;
     l.T_max = T_hi;
-    l.feasible = true;
-    if (T_limit && T_hi > *T_limit) {
-      l.feasible = false;
-      l.reason = fmt::format("T_max: the hottest point, {:.1f} K, is above the limit of {:.1f} K",
-                             T_hi, *T_limit);
+    l.feasible = !res.limit_check.passed();
+    for (const auto& f : res.limit_check.findings) {
+      const std::string s = limit_finding_text(f, res.limit_check.margin);
+      if (f.kind == LimitFindingKind::Near)
+        l.notes.push_back(s);
+      else
+        l.reason += (l.reason.empty() ? "" : "; ") + s;
     }
   } catch (const InfeasibleError& e) {
     l.reason = "equilibrium: " + e.message();
@@ -137,7 +139,7 @@ CompareResult compare_layouts(const Case& c, const CompareOptions& options) {
   bool first = true;
   do {
     for (LayoutHeat heat : modes) {
-      Layout l = evaluate(layout_case(c, reactors, order, heat), train, c.limits.T_max);
+      Layout l = evaluate(layout_case(c, reactors, order, heat), train);
       l.heat = heat;
       l.case_layout = first && heat == LayoutHeat::AsWritten;
       out.layouts.push_back(std::move(l));

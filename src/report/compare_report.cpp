@@ -20,6 +20,13 @@ std::string text(const std::optional<double>& v, const char* f) {
   return v && std::isfinite(*v) ? fmt::format(fmt::runtime(f), *v) : std::string("-");
 }
 
+// A feasible layout's notes near a limit, for its table cell.
+std::string notes_text(const Layout& l) {
+  std::string s;
+  for (const auto& n : l.notes) s += (s.empty() ? "" : "; ") + n;
+  return s;
+}
+
 std::string ranking_text(const CompareResult& r) {
   return r.sized ? fmt::format("smallest total {}", r.catalyst_objective ? "catalyst" : "volume")
                  : std::string("highest final conversion");
@@ -44,7 +51,8 @@ std::string compare_json_text(const CompareResult& r) {
                        {"total_volume", number(l.total_volume)},
                        {"total_catalyst", number(l.total_catalyst)},
                        {"conversion", number(l.conversion)},
-                       {"T_max", number(l.T_max)}});
+                       {"T_max", number(l.T_max)},
+                       {"notes", l.notes}});
   return nlohmann::json{{"layouts", layouts}}.dump(2) + "\n";
 }
 
@@ -61,6 +69,18 @@ std::string format_compare_table(const CompareResult& r) {
                        layout_order_text(l), layout_heat_name(l.heat), text(l.total_volume, "{:.4g}"),
                        text(l.total_catalyst, "{:.5g}"), text(l.conversion, "{:.5f}"),
                        text(l.T_max, "{:.1f}"), l.feasible ? "" : l.reason);
+  // Layouts that pass no limit but come near one.
+  bool any_note = false;
+  rank = 0;
+  for (const auto& l : r.layouts) {
+    if (l.feasible) ++rank;
+    if (!l.feasible || l.notes.empty()) continue;
+    if (!any_note) out += "\nnear a temperature limit:\n";
+    any_note = true;
+    for (const auto& n : l.notes)
+      out += fmt::format("  rank {} ({}, {}): {}\n", rank, layout_order_text(l),
+                         layout_heat_name(l.heat), n);
+  }
   return out;
 }
 
@@ -112,7 +132,7 @@ std::string compare_report_html(const Case& c, const CompareResult& r,
       ranking_text(r));
   h += "<table class=\"stages\">\n";
   h += html::header_row({"", "rank", "order", "heat", "V total (m³)", "catalyst (kg)",
-                         "conversion", "T max (°C / K)", "infeasible because"});
+                         "conversion", "T max (°C / K)", "infeasible because, or a note"});
   int rank = 0;
   for (const auto& l : r.layouts) {
     h += "<tr>" + cell(l.case_layout ? "*" : "", false) +
@@ -122,7 +142,7 @@ std::string compare_report_html(const Case& c, const CompareResult& r,
          cell(text(l.conversion, "{:.5f}"), true) +
          (l.T_max && std::isfinite(*l.T_max) ? html::temperature_cell(*l.T_max)
                                              : cell("-", true)) +
-         cell(l.feasible ? "" : l.reason, false) + "</tr>\n";
+         cell(l.feasible ? notes_text(l) : l.reason, false) + "</tr>\n";
   }
   h += "</table>\n";
   h += html::figures_section(figures);
