@@ -523,6 +523,13 @@ TEST_CASE("staging command: answer, exit code and JSON layout", "[staging][cli]"
           Approx(j["beds"][k - 1]["X_out"].get<double>()).margin(1e-12));
   CHECK(j["beds"].back()["X_out"].get<double>() >= j["target"].get<double>() - 1e-8);
   CHECK(j["warnings"].is_array());
+  // The bed as given passes T_max (624.28 °C against 620 °C): said per stage.
+  const auto& lim = j["as_given"][0]["limit"];
+  REQUIRE(lim["findings"].size() == 1);
+  CHECK(lim["findings"][0]["kind"] == "over");
+  CHECK(lim["over_limit"].get<double>() == Approx(4.28).margin(0.005));
+  CHECK_THAT(r.out, Catch::Contains("stage R1 passes T_max: its peak, 624.28 °C"));
+  for (const auto& b : j["beds"]) CHECK(b["limit"]["over_limit"].get<double>() == 0.0);
   std::filesystem::remove_all(dir);
 
   const auto opt = test::run_rxtrain("staging '" + demo + "' --approach 0.8 --return-to optimal");
