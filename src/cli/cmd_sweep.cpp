@@ -163,6 +163,10 @@ int run_sweep_command(const SweepCommandOptions& o) {
   StudyHeader header{RXTRAIN_VERSION, sha256_hex(bytes), study.definition(), outputs.names()};
   // The integrator's tolerance changes the numbers, so it is part of the study.
   header.definition.push_back(fmt::format("rtol: {}", o.rtol));
+  // So does the margin the rows' notes near a limit are taken at.
+  if (c.limits.T_max || c.limits.T_in_min)
+    header.definition.push_back(
+        fmt::format("limit-margin: {} K", options.train.limit_check.margin));
   for (const auto& m : design_margin_columns(c)) {
     const auto names = outputs.names();
     if (std::find(names.begin(), names.end(), m) != names.end()) header.margin.push_back(m);
