@@ -203,6 +203,15 @@ TEST_CASE("optimize writes the optimum as JSON and a case that run reproduces", 
   CHECK(W == Approx(total).epsilon(1e-12));
   // The optimum needs less catalyst than the layout as written.
   CHECK(j["as_written"]["saving"].get<double>() > 0);
+  // B1 runs up to T_max (its active constraint): at the limit, not past it.
+  const auto& lc = j["limit_check"];
+  CHECK(lc["margin"].get<double>() == 5.0);
+  REQUIRE(lc["findings"].size() == 1);
+  CHECK(lc["findings"][0]["stage"] == "B1");
+  CHECK(lc["findings"][0]["kind"] == "near");
+  CHECK(lc["findings"][0]["by"].get<double>() < 0.005);
+  CHECK(r.out.find("the optimum: stage B1 peaks at T_max = 470.00 °C (no margin left)") !=
+        std::string::npos);
 
   // The written case, run as any case, holds the same catalyst and reaches the target.
   const auto run = run_rxtrain("run '" + (dir / "opt.yaml").string() + "' --json '" +

@@ -429,10 +429,20 @@ TEST_CASE("design warnings: a bed whose last 10 % adds under 1 % conversion", "[
   const Case big = s.load("", kOneBed);
   const TrainResult rb = run_train(big);
   REQUIRE(rb.conversion == Approx(s.X_ad(0, s.T_feed)).epsilon(1e-4));
-  bool found = false;
+  // A tube without catalyst (no bulk density, a per-volume rate) wastes
+  // volume, not catalyst; with a bulk density the same bed wastes catalyst.
+  std::string tail;
   for (const auto& w : design_warnings(big, rb))
-    found = found || w.find("stage R1: its last 10 % of volume") != std::string::npos;
-  CHECK(found);
+    if (w.find("stage R1: its last 10 % of volume") != std::string::npos) tail = w;
+  CHECK_THAT(tail, Catch::EndsWith("so that volume is largely wasted"));
+  CHECK_THAT(tail, !Catch::Contains("catalyst"));
+  const Case packed = s.load("", "  - {type: pfr, id: R1, volume: 20 m3, bulk_density: 800 kg/m3}");
+  const TrainResult rp = run_train(packed);
+  tail.clear();
+  for (const auto& w : design_warnings(packed, rp))
+    if (w.find("stage R1: its last 10 % of volume") != std::string::npos) tail = w;
+  CHECK_THAT(tail, Catch::Contains("1600 kg of catalyst"));
+  CHECK_THAT(tail, Catch::EndsWith("so that catalyst is largely wasted"));
 
   // A bed sized by quadrature to X = 0.3, where the last 10 % of its
   // volume adds more than 0.01: X(0.9 V) < 0.29, i.e. V(0.29) > 0.9 V(0.3)
@@ -513,6 +523,13 @@ TEST_CASE("staging command: answer, exit code and JSON layout", "[staging][cli]"
           Approx(j["beds"][k - 1]["X_out"].get<double>()).margin(1e-12));
   CHECK(j["beds"].back()["X_out"].get<double>() >= j["target"].get<double>() - 1e-8);
   CHECK(j["warnings"].is_array());
+  // The bed as given passes T_max (624.28 °C against 620 °C): said per stage.
+  const auto& lim = j["as_given"][0]["limit"];
+  REQUIRE(lim["findings"].size() == 1);
+  CHECK(lim["findings"][0]["kind"] == "over");
+  CHECK(lim["over_limit"].get<double>() == Approx(4.28).margin(0.005));
+  CHECK_THAT(r.out, Catch::Contains("stage R1 passes T_max: its peak, 624.28 °C"));
+  for (const auto& b : j["beds"]) CHECK(b["limit"]["over_limit"].get<double>() == 0.0);
   std::filesystem::remove_all(dir);
 
   const auto opt = test::run_rxtrain("staging '" + demo + "' --approach 0.8 --return-to optimal");

@@ -121,9 +121,13 @@ TEST_CASE("batched rows are as accurate as lone runs", "[sweep][batch]") {
   const auto alone = run(f, lone, o, 2);
   double worst_batched = 0, worst_alone = 0;
   for (std::size_t i = 0; i < ref.size(); ++i) {
-    REQUIRE(batched[i].result.status == RunStatus::Ok);
-    REQUIRE(alone[i].result.status == RunStatus::Ok);
+    // The hotter feeds take B1 past T_max: over_limit rows, with outputs.
+    REQUIRE(has_outputs(batched[i].result.status));
+    REQUIRE(alone[i].result.status == batched[i].result.status);
     for (std::size_t c = 0; c < o.columns().size(); ++c) {
+      // STAGE.over_limit is STAGE.T_max less the limit (0 within it): its
+      // error is T_max's, checked in that column.
+      if (o.columns()[c].field == "over_limit") continue;
       const double r = *ref[i].result.outputs[c];
       const auto err = [&](const RunRow& row) { return std::abs(*row.result.outputs[c] - r) / r; };
       worst_batched = std::max(worst_batched, err(batched[i]));

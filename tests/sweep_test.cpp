@@ -367,6 +367,27 @@ TEST_CASE("warm-started stirred tanks give the same rows for any jobs and shards
   CHECK(several > 10);  // the chains do cross the region of three states
 }
 
+TEST_CASE("an ok row carries a tank's several steady states in its message", "[sweep]") {
+  // tests/s_curve_tank.hpp: at tau = 1 s the tank has three steady states
+  // (checked against GSL in tests/cstr_test.cpp); `run` warns of them, and
+  // so must the sweep's row.
+  const Fixture tank(test::kSCurveTank);
+  PointWorkspace ws;
+  ws.train.equilibrium_views = false;
+  const PointResult p = evaluate_point(tank.c, OutputSpec::defaults(tank.c), ws);
+  REQUIRE(p.status == RunStatus::Ok);
+  CHECK_THAT(p.message, Catch::Contains("stage R1: 3 steady states found"));
+  // The same words as the run's own warning.
+  const TrainResult r = run_train(tank.c);
+  REQUIRE(r.stages[0].warnings.size() == 1);
+  CHECK(p.message == r.stages[0].warnings[0]);
+  // A run with nothing to tell (the isothermal first-order tube) leaves
+  // the message empty.
+  const Fixture tube(kFirstOrder);
+  PointWorkspace wt;
+  CHECK(evaluate_point(tube.c, OutputSpec::defaults(tube.c), wt).message.empty());
+}
+
 TEST_CASE("a run passes its tanks' steady states on; a failed run passes none", "[sweep]") {
   const Fixture tank(test::kSCurveTank);
   PointWorkspace ws;

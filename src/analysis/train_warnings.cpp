@@ -10,6 +10,7 @@
 #include "rxtrain/base/units.hpp"
 #include "rxtrain/models/energy_balance.hpp"
 #include "rxtrain/models/equilibrium.hpp"
+#include "rxtrain/stages/limit_check.hpp"
 #include "rxtrain/stages/exchanger.hpp"
 #include "rxtrain/stages/pfr.hpp"
 
@@ -94,6 +95,10 @@ std::vector<std::string> design_warnings(const Case& c, const TrainResult& resul
   const auto& lim = c.limits;
   const std::string key = c.mechanism.species()[c.key].id;
 
+  // First what the train did against the limits, stage by stage.
+  for (const auto& f : result.limit_check.findings)
+    out.push_back(limit_finding_text(f, result.limit_check.margin));
+
   if (const auto dT = adiabatic_temperature_change(c)) {
     const double T_full = c.feed.T + *dT;
     if (*dT > 0 && lim.T_max && T_full > *lim.T_max && c.feed.T >= *lim.T_max) {
@@ -125,13 +130,6 @@ std::vector<std::string> design_warnings(const Case& c, const TrainResult& resul
   SunContext ctx;
   for (const auto& r : result.stages) {
     if (r.kind == StageKind::Exchanger) continue;
-    if (lim.T_max && r.inlet.T > *lim.T_max)
-      out.push_back(fmt::format("stage {} is fed at {}, above T_max = {}", r.id, celsius(r.inlet.T),
-                                celsius(*lim.T_max)));
-    if (lim.T_in_min && r.inlet.T < *lim.T_in_min)
-      out.push_back(fmt::format(
-          "stage {} is fed at {}, below the lowest useful inlet temperature T_in_min = {}", r.id,
-          celsius(r.inlet.T), celsius(*lim.T_in_min)));
 
     if (r.kind == StageKind::Pfr && r.volume && *r.volume > 0 && !r.profile.empty()) {
       const double V = *r.volume;
@@ -139,14 +137,16 @@ std::vector<std::string> design_warnings(const Case& c, const TrainResult& resul
       const double gain = r.conversion - X_in;
       const double tail = r.conversion - conversion_at(c, r, (1 - kTailFraction) * V, ctx);
       if (gain > 0 && tail < kTailMinConversion && tail < kTailShare * kTailFraction * gain) {
+        // A tube without catalyst (no bulk density) wastes volume, not catalyst.
         std::string amount = fmt::format("{:.3f} m3", kTailFraction * V);
         if (r.catalyst_mass)
           amount += fmt::format(", {:.0f} kg of catalyst", kTailFraction * *r.catalyst_mass);
         out.push_back(fmt::format(
             "stage {}: its last 10 % of volume ({}) adds only {:.4f} conversion (under {:.2f}; "
             "common practice, no source): the rate there has nearly died out, close to "
-            "equilibrium or complete conversion, so that catalyst is largely wasted",
-            r.id, amount, std::max(tail, 0.0), kTailMinConversion));
+            "equilibrium or complete conversion, so that {} is largely wasted",
+            r.id, amount, std::max(tail, 0.0), kTailMinConversion,
+            r.catalyst_mass ? "catalyst" : "volume"));
       }
     }
 

@@ -1,4 +1,4 @@
-// rxtrain compare CASE [--json PATH] [--report DIR]
+// rxtrain compare CASE [--json PATH] [--report DIR] [--rtol R] [--limit-margin DT]
 #include <fmt/format.h>
 
 #include <cstdio>
@@ -10,6 +10,7 @@
 #include "commands.hpp"
 #include "rxtrain/case/case.hpp"
 #include "rxtrain/studies/compare.hpp"
+#include "limit_margin.hpp"
 #include "rxtrain/report/atomic_file.hpp"
 #include "rxtrain/report/compare_report.hpp"
 #include "rxtrain/base/units.hpp"
@@ -23,6 +24,7 @@ struct CompareCommandOptions {
   std::string json_path;
   std::string report_dir;
   double rtol = CvodeOptions{}.rtol;
+  std::string limit_margin;
 };
 
 int run_compare_command(const CompareCommandOptions& o) {
@@ -31,6 +33,7 @@ int run_compare_command(const CompareCommandOptions& o) {
   CompareOptions options;
   options.train.pfr.cvode.rtol = o.rtol;
   options.train.cstr.pfr.cvode.rtol = o.rtol;
+  options.train.limit_check.margin = parse_limit_margin(o.limit_margin, units);
   const CompareResult result = compare_layouts(c, options);
   // Rendered before anything is written; a failure leaves no file behind.
   OutputSet out;
@@ -60,6 +63,7 @@ Action setup_compare(CLI::App& app) {
   app.add_option("--rtol", o->rtol, "Relative tolerance of the ODE integrator")
       ->check(CLI::Range(1e-14, 1e-3))
       ->capture_default_str();
+  add_limit_margin_option(app, o->limit_margin);
   return [o] { return run_compare_command(*o); };
 }
 

@@ -1,5 +1,5 @@
 // rxtrain optimize CASE [--beds N | --max-beds N] [--fixed-feed-T]
-//                       [--json PATH] [--write-case PATH] [--report DIR]
+//                       [--limit-margin DT] [--json PATH] [--write-case PATH] [--report DIR]
 #include <fmt/format.h>
 #include <unistd.h>
 
@@ -19,6 +19,10 @@
 #include "rxtrain/base/units.hpp"
 #include "rxtrain/case/case.hpp"
 #include "rxtrain/report/atomic_file.hpp"
+#include "limit_margin.hpp"
+#include "rxtrain/studies/optimize.hpp"
+#include "rxtrain/studies/write_case.hpp"
+#include "rxtrain/report/json.hpp"
 #include "rxtrain/report/optimize_html.hpp"
 #include "rxtrain/report/text_format.hpp"
 #include "rxtrain/studies/optimize.hpp"
@@ -38,6 +42,7 @@ struct OptimizeCommandOptions {
   int beds = 0;      // 0: not given
   int max_beds = 0;  // 0: not given
   bool fixed_feed_T = false;
+  std::string limit_margin;
 };
 
 // Never a NaN or inf in the output: null instead.
@@ -142,6 +147,7 @@ std::string optimize_json_text(const DesignResult& d) {
          {"total_duty", c.feasible ? json_number(c.total_duty) : json(nullptr)},
          {"why", c.feasible ? json(nullptr) : json(c.why)}});
   j["by_bed_count"] = counts;
+  j["limit_check"] = limit_check_json(d.limit_check);
   j["warnings"] = d.warnings;
   j["caution"] = kCaution;
   return j.dump(2) + "\n";
@@ -315,6 +321,7 @@ int run_optimize_command(const OptimizeCommandOptions& o) {
   if (o.beds > 0) options.beds = o.beds;
   if (o.max_beds > 0) options.max_beds = o.max_beds;
   options.fixed_feed_T = o.fixed_feed_T;
+  options.limit_check.margin = parse_limit_margin(o.limit_margin, units);
   // The objective's unit: kg for per-catalyst rates, else m3.
   bool per_catalyst = false;
   for (const auto& rx : c.mechanism.reactions())
@@ -372,6 +379,7 @@ Action setup_optimize(CLI::App& app) {
       ->excludes(beds);
   app.add_flag("--fixed-feed-T", o->fixed_feed_T,
                "Keep bed 1's inlet at the feed temperature (no feed conditioning)");
+  add_limit_margin_option(app, o->limit_margin);
   app.add_option("--json", o->json_path, "Write the optimum as JSON (SI units) to PATH");
   app.add_option("--report", o->report_dir,
                  "Write report.html (self-contained: the optimum over the equilibrium curve, "

@@ -1,4 +1,4 @@
-// rxtrain run CASE [--json PATH] [--csv DIR]
+// rxtrain run CASE [--json PATH] [--csv DIR] [--report DIR] [--rtol R] [--limit-margin DT]
 #include <cstdio>
 #include <filesystem>
 #include <memory>
@@ -9,6 +9,7 @@
 #include "rxtrain/analysis/train_warnings.hpp"
 #include "rxtrain/stages/levenspiel.hpp"
 #include "rxtrain/analysis/result_guard.hpp"
+#include "limit_margin.hpp"
 #include "rxtrain/report/atomic_file.hpp"
 #include "rxtrain/report/csv.hpp"
 #include "rxtrain/report/figures.hpp"
@@ -28,6 +29,7 @@ struct RunOptions {
   std::string csv_dir;
   std::string report_dir;
   double rtol = CvodeOptions{}.rtol;
+  std::string limit_margin;
 };
 
 int run(const RunOptions& o) {
@@ -36,6 +38,7 @@ int run(const RunOptions& o) {
   TrainOptions options;
   options.pfr.cvode.rtol = o.rtol;
   options.cstr.pfr.cvode.rtol = o.rtol;
+  options.limit_check.margin = parse_limit_margin(o.limit_margin, units);
   TrainResult result = run_train(c, options);
   for (auto& w : design_warnings(c, result)) result.warnings.push_back(std::move(w));
   check_finite(result);  // no NaN or Inf may reach an output
@@ -76,6 +79,7 @@ Action setup_run(CLI::App& app) {
   app.add_option("--rtol", o->rtol, "Relative tolerance of the ODE integrator")
       ->check(CLI::Range(1e-14, 1e-3))
       ->capture_default_str();
+  add_limit_margin_option(app, o->limit_margin);
   return [o] { return run(*o); };
 }
 

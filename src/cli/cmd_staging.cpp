@@ -1,5 +1,5 @@
 // rxtrain staging CASE [--approach F] [--return-to inlet|optimal]
-//                      [--max-beds N] [--json PATH] [--report DIR]
+//                      [--max-beds N] [--limit-margin DT] [--json PATH] [--report DIR]
 #include <cstdio>
 #include <filesystem>
 #include <map>
@@ -8,6 +8,7 @@
 
 #include "commands.hpp"
 #include "rxtrain/case/case.hpp"
+#include "limit_margin.hpp"
 #include "rxtrain/report/atomic_file.hpp"
 #include "rxtrain/report/staging_html.hpp"
 #include "rxtrain/report/staging_report.hpp"
@@ -23,12 +24,15 @@ struct StagingCommandOptions {
   std::string json_path;
   std::string report_dir;
   StagingOptions staging;
+  std::string limit_margin;
 };
 
 int run_staging_command(const StagingCommandOptions& o) {
   const UnitParser units;
   const Case c = load_case(o.case_file, units);
-  const StagingResult result = run_staging(c, o.staging);
+  StagingOptions so = o.staging;
+  so.limit_check.margin = parse_limit_margin(o.limit_margin, units);
+  const StagingResult result = run_staging(c, so);
   // Rendered before anything is written; a failure leaves no file behind.
   OutputSet out;
   out.protect(o.case_file);  // the case file is never an output
@@ -78,6 +82,7 @@ Action setup_staging(CLI::App& app) {
                  "Most beds tried before the target is called out of reach")
       ->check(CLI::Range(1, 100))
       ->capture_default_str();
+  add_limit_margin_option(app, o->limit_margin);
   app.add_option("--json", o->json_path, "Write the answer as JSON (SI units) to PATH");
   app.add_option("--report", o->report_dir,
                  "Write report.html (self-contained, with the staged beds on the "

@@ -15,6 +15,7 @@
 
 #include "commands.hpp"
 #include "rxtrain/case/case.hpp"
+#include "limit_margin.hpp"
 #include "rxtrain/report/atomic_file.hpp"
 #include "rxtrain/base/caution.hpp"
 #include "rxtrain/report/html_page.hpp"
@@ -48,6 +49,7 @@ struct SweepCommandOptions {
   std::size_t jobs = 0;
   std::string shard = "1/1";
   double rtol = CvodeOptions{}.rtol;
+  std::string limit_margin;
 };
 
 // "42 s", "3 min 20 s", "2 h 05 min".
@@ -151,6 +153,7 @@ int run_sweep_command(const SweepCommandOptions& o) {
   options.shard = shard;
   options.train.pfr.cvode.rtol = o.rtol;
   options.train.cstr.pfr.cvode.rtol = o.rtol;
+  options.train.limit_check.margin = parse_limit_margin(o.limit_margin, units);
   options.progress = Progress();
   // Runs solved in batches share their steps: the batches are part of the study.
   if (batched_study(c, table, outputs, options)) study.chain = kBatchRuns;
@@ -160,6 +163,10 @@ int run_sweep_command(const SweepCommandOptions& o) {
   StudyHeader header{RXTRAIN_VERSION, sha256_hex(bytes), study.definition(), outputs.names()};
   // The integrator's tolerance changes the numbers, so it is part of the study.
   header.definition.push_back(fmt::format("rtol: {}", o.rtol));
+  // So does the margin the rows' notes near a limit are taken at.
+  if (c.limits.T_max || c.limits.T_in_min)
+    header.definition.push_back(
+        fmt::format("limit-margin: {} K", options.train.limit_check.margin));
   for (const auto& m : design_margin_columns(c)) {
     const auto names = outputs.names();
     if (std::find(names.begin(), names.end(), m) != names.end()) header.margin.push_back(m);
@@ -201,8 +208,23 @@ int run_sweep_command(const SweepCommandOptions& o) {
                 : fmt::format("({} rows; write them with --csv PATH)\n", rows.size());
   }
   text += summary_text(summary, study.monte_carlo());
+  const auto noted = std::count_if(rows.begin(), rows.end(), [](const RunRow& r) {
+    return r.result.status == RunStatus::Ok && !r.result.message.empty();
+  });
   for (const auto& r : rows)
-    if (r.result.status != RunStatus::Ok) {
+    if (r.result.status == RunStatus::Ok && !r.result.message.empty()) {
+      text += fmt::format(
+          "{} ok {} a note (the message column of --csv or --json); the first, run {}: {}\n", noted,
+          noted == 1 ? "run carries" : "runs carry", r.run, r.result.message);
+      break;
+    }
+  for (const auto& r : rows)
+    if (r.result.status == RunStatus::OverLimit) {
+      text += fmt::format("first run past a temperature limit: {}: {}\n", r.run, r.result.message);
+      break;
+    }
+  for (const auto& r : rows)
+    if (!has_outputs(r.result.status)) {
       text += fmt::format("first failed run: {} ({}): {}\n", r.run,
                           run_status_name(r.result.status), r.result.message);
       break;
@@ -210,9 +232,8 @@ int run_sweep_command(const SweepCommandOptions& o) {
   text += fmt::format("\nCAUTION: {}\n", kCaution);
   std::fputs(text.c_str(), stdout);
   const bool all_failed =
-      !rows.empty() && std::none_of(rows.begin(), rows.end(), [](const RunRow& r) {
-        return r.result.status == RunStatus::Ok;
-      });
+      !rows.empty() && std::none_of(rows.begin(), rows.end(),
+                                    [](const RunRow& r) { return has_outputs(r.result.status); });
   if (all_failed) {
     std::fprintf(stderr,
                  "rxtrain: error: every run of the study failed (see the rows' messages)\n");
@@ -256,6 +277,7 @@ Action setup_sweep(CLI::App& app) {
   app.add_option("--rtol", o->rtol, "Relative tolerance of the ODE integrator")
       ->check(CLI::Range(1e-14, 1e-3))
       ->capture_default_str();
+  add_limit_margin_option(app, o->limit_margin);
   return [o, seed] {
     o->seed_given = seed->count() > 0;
     return run_sweep_command(*o);

@@ -145,8 +145,16 @@ TrainResult run_train(const Case& c, const TrainOptions& options, TrainWorkspace
   }
   result.outlet = stream;
   result.conversion = basis.conversion(stream);
+  result.limit_check = check_limits(c, options, result.stages);
   if (options.equilibrium_views) add_equilibrium_views(c, options, result);
   return result;
+}
+
+LimitCheck check_limits(const Case& c, const TrainOptions& options,
+                        std::span<const StageResult> stages) {
+  LimitCheckOptions o = options.limit_check;
+  o.locate = o.locate && options.pfr.full_profile;
+  return check_temperature_limits(c.limits, stages, o);
 }
 
 void set_warm_starts(const TrainResult& result, std::vector<CstrWarmStart>& warm_starts) {

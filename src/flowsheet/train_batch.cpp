@@ -62,6 +62,7 @@ std::vector<TrainResult> run_trains_batched(std::span<const Case* const> cases,
   for (std::size_t i = 0; i < cases.size(); ++i) {
     results[i].outlet = streams[i];
     results[i].conversion = cases[i]->conversion_basis().conversion(streams[i]);
+    results[i].limit_check = check_limits(*cases[i], options, results[i].stages);
   }
   return results;
 }

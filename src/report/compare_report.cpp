@@ -99,6 +99,8 @@ std::string thermo_note(const ThermoCeiling& t) {
 std::vector<std::string> notes_of(const Layout& l, const CompareResult& r) {
   std::vector<std::string> notes;
   if (!l.feasible) notes.push_back("infeasible: " + l.reason);
+  // A feasible layout near a temperature limit (within the margin).
+  for (const auto& n : l.notes) notes.push_back(n);
   if (l.beyond_thermo) notes.push_back(thermo_note(r.thermo_ceiling));
   if (const std::string same = same_train_text(l, r.case_order); !same.empty())
     notes.push_back(same);
@@ -179,7 +181,8 @@ std::string compare_json_text(const CompareResult& r) {
                        {"total_catalyst", json_number(l.total_catalyst)},
                        {"conversion", json_number(l.conversion)},
                        {"T_peak", json_number(l.T_peak)},
-                       {"beyond_thermo_data", l.beyond_thermo}});
+                       {"beyond_thermo_data", l.beyond_thermo},
+                       {"notes", l.notes}});
   }
   const auto& t = r.thermo_ceiling;
   return nlohmann::json{

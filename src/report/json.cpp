@@ -105,6 +105,44 @@ json stage(const std::vector<std::string>& ids, const StageResult& r) {
 
 }  // namespace
 
+namespace {
+
+json finding_json(const LimitFinding& f, double margin) {
+  return {{"stage", f.stage},
+          {"kind", limit_finding_kind_name(f.kind)},
+          {"bound", limit_bound_name(f.bound)},
+          {"limit", json_number(f.limit)},
+          {"T", json_number(f.T)},
+          {"by", json_number(f.by)},
+          {"at_inlet", f.at_inlet},
+          {"V", json_number(f.V)},
+          {"catalyst_mass", json_number(f.catalyst_mass)},
+          {"message", limit_finding_text(f, margin)}};
+}
+
+}  // namespace
+
+nlohmann::json limit_check_json(const LimitCheck& lc) {
+  json findings = json::array();
+  for (const auto& f : lc.findings) findings.push_back(finding_json(f, lc.margin));
+  return {{"T_max", json_number(lc.T_max)},
+          {"T_in_min", json_number(lc.T_in_min)},
+          {"margin", json_number(lc.margin)},
+          {"findings", findings}};
+}
+
+nlohmann::json limit_json(const LimitCheck& lc, const StageResult& r) {
+  if (!lc.applies() || r.kind == StageKind::Exchanger) return nullptr;
+  json findings = json::array();
+  for (const auto& f : lc.findings)
+    if (f.stage == r.id) findings.push_back(finding_json(f, lc.margin));
+  return {{"T_max", json_number(lc.T_max)},
+          {"T_in_min", json_number(lc.T_in_min)},
+          {"margin", json_number(lc.margin)},
+          {"over_limit", json_number(lc.past(r.id))},
+          {"findings", findings}};
+}
+
 nlohmann::json to_json(const TrainResult& result) {
   json j;
   j["title"] = result.title;
@@ -113,7 +151,10 @@ nlohmann::json to_json(const TrainResult& result) {
   j["feed"] = stream(result.species, result.feed);
   j["conversion"] = json_number(result.conversion);
   json stages = json::array();
-  for (const auto& r : result.stages) stages.push_back(stage(result.species, r));
+  for (const auto& r : result.stages) {
+    stages.push_back(stage(result.species, r));
+    stages.back()["limit"] = limit_json(result.limit_check, r);
+  }
   j["stages"] = stages;
   j["outlet"] = stream(result.species, result.outlet);
   json curve = json::array();

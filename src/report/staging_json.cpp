@@ -2,6 +2,7 @@
 
 #include "rxtrain/base/caution.hpp"
 #include "rxtrain/base/json_number.hpp"
+#include "rxtrain/report/json.hpp"
 #include "rxtrain/report/staging_report.hpp"
 
 namespace rxtrain {
@@ -12,6 +13,13 @@ using nlohmann::json;
 
 // Never a NaN or inf in the output: null instead.
 json text_or_null(const std::string& s) { return s.empty() ? json(nullptr) : json(s); }
+
+// LIMIT (report/json.hpp) of stage `id` of `run`, or null.
+json limit_of(const TrainResult& run, const std::string& id) {
+  for (const auto& st : run.stages)
+    if (st.id == id) return limit_json(run.limit_check, st);
+  return nullptr;
+}
 
 json path_of(const StagingResult& r, const std::string& id) {
   json path = json::array();
@@ -58,7 +66,8 @@ json staging_json(const StagingResult& r) {
                      {"volume", json_number(a.volume)},
                      {"X_ad_eq", json_number(a.X_ad_eq)},
                      {"T_ad_eq", json_number(a.T_ad_eq)},
-                     {"note", text_or_null(a.note)}});
+                     {"note", text_or_null(a.note)},
+                     {"limit", limit_of(r.as_given_run, a.id)}});
   j["as_given"] = given;
   j["target_reached"] = r.target_reached;
   j["beds_needed"] = r.target_reached ? json(r.beds_needed) : json(nullptr);
@@ -82,7 +91,8 @@ json staging_json(const StagingResult& r) {
                     {"X_ad_eq", json_number(b.X_ad_eq)},
                     {"T_ad_eq", json_number(b.T_ad_eq)},
                     {"ended_by", b.ended_by},
-                    {"path", path_of(r, b.id)}});
+                    {"path", path_of(r, b.id)},
+                    {"limit", limit_of(r.staged_run, b.id)}});
   j["beds"] = beds;
   json coolers = json::array();
   for (const auto& x : r.coolers)

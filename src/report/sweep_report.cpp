@@ -78,8 +78,7 @@ std::optional<Figure> histogram(const std::string& output, const std::string& un
                                 const std::optional<PercentileSummary>& p) {
   std::vector<double> v;
   for (const auto& r : rows)
-    if (r.result.status == RunStatus::Ok && r.result.outputs[col])
-      v.push_back(*r.result.outputs[col]);
+    if (has_outputs(r.result.status) && r.result.outputs[col]) v.push_back(*r.result.outputs[col]);
   if (!v.empty()) {
     const auto [lo_it, hi_it] = std::minmax_element(v.begin(), v.end());
     if (*hi_it - *lo_it <= kConstant * std::max(std::abs(*lo_it), std::abs(*hi_it)))
@@ -91,7 +90,7 @@ std::optional<Figure> histogram(const std::string& output, const std::string& un
   o.y_label = "runs";
   o.legend = svg::LegendPosition::None;
   svg::Chart chart(o);
-  std::string caption = fmt::format("{} over the {} runs that succeeded", output, v.size());
+  std::string caption = fmt::format("{} over the {} runs that finished", output, v.size());
   if (!v.empty()) {
     const auto [lo_it, hi_it] = std::minmax_element(v.begin(), v.end());
     const double lo = *lo_it, hi = *hi_it;
@@ -181,7 +180,7 @@ std::string sweep_report_html(const std::string& title, const std::string& case_
           xml_escape(p.name), xml_escape(p.unit), p.p->n, p.p->p5, p.p->p50, p.p->p95);
     }
     h += "</table>\n<p>Percentiles: Hyndman &amp; Fan (1996) definition 7, over the runs that "
-         "succeeded.</p>\n";
+         "finished (status ok or over_limit).</p>\n";
     if (!summary.margins.empty()) {
       h += "<h2 id=\"margin\">Design margin</h2>\n<p>The amount each sized stage needs to meet its target in "
            "95 % of the runs (a run whose target is out of reach counts as unbounded).</p>\n<ul>\n";

@@ -81,9 +81,10 @@ Case layout_case(const Case& c, const std::vector<ReactorSpec>& reactors,
 }
 
 // Runs one layout. `X_sized`: the highest stage target of a sized train,
-// which every layout of it must still reach at its outlet.
-Layout evaluate(const Case& lc, const TrainOptions& options, const std::optional<double>& T_limit,
-                const std::optional<double>& X_sized) {
+// which every layout of it must still reach at its outlet. A layout whose
+// stage passes the case's temperature limits is infeasible, with every
+// such stage's finding as its reason (limit_check.hpp).
+Layout evaluate(const Case& lc, const TrainOptions& options, const std::optional<double>& X_sized) {
   Layout l;
   try {
     const TrainResult res = run_train(lc, options);
@@ -102,12 +103,15 @@ Layout evaluate(const Case& lc, const TrainOptions& options, const std::optional
     if (all_catalyst) l.total_catalyst = W;
     l.conversion = res.conversion;
     l.T_peak = T_hi;
-    l.feasible = true;
-    if (T_limit && T_hi > *T_limit) {
-      l.feasible = false;
-      l.reason = fmt::format("its hottest point, {}, is above T_max = {}", celsius(T_hi),
-                             celsius(*T_limit));
-    } else if (X_sized && res.conversion < *X_sized - kTargetTolerance) {
+    l.feasible = !res.limit_check.passed();
+    for (const auto& f : res.limit_check.findings) {
+      const std::string s = limit_finding_text(f, res.limit_check.margin);
+      if (f.kind == LimitFindingKind::Near)
+        l.notes.push_back(s);
+      else
+        l.reason += (l.reason.empty() ? "" : "; ") + s;
+    }
+    if (l.feasible && X_sized && res.conversion < *X_sized - kTargetTolerance) {
       l.feasible = false;
       l.reason = fmt::format(
           "ends at X = {:.4f}, short of the {:.4f} a stage is sized to: a later stage gives "
@@ -227,7 +231,7 @@ CompareResult compare_layouts(const Case& c, const CompareOptions& options) {
     for (const auto& g : group_orders(reactors, heat)) {
       Layout named;
       const std::vector<int> order = name_orders(named, g.orders, reactors);
-      Layout l = evaluate(layout_case(c, reactors, order, heat), train, c.limits.T_max, X_sized);
+      Layout l = evaluate(layout_case(c, reactors, order, heat), train, X_sized);
       l.order = std::move(named.order);
       l.orders = std::move(named.orders);
       l.moves = std::move(named.moves);

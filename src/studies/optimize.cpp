@@ -212,6 +212,7 @@ AsWrittenDesign as_written(const Setup& s, const DesignOptions& o) {
   TrainOptions to;
   to.pfr = o.pfr;
   to.equilibrium_views = false;
+  to.limit_check = o.limit_check;
   TrainResult r;
   try {
     r = run_train(s.c, to);
@@ -242,15 +243,12 @@ AsWrittenDesign as_written(const Setup& s, const DesignOptions& o) {
       a.total_catalyst = a.total_catalyst.value_or(0.0) + *st.catalyst_mass;
     else
       all_mass = false;
-    if (st.T_max > s.T_hi + kActiveTolerance) {
-      a.within_limits = false;
-      notes.push_back(fmt::format("{} reaches {}, above T_max", st.id, celsius(st.T_max)));
-    }
-    if (st.T_min < s.T_lo - kActiveTolerance) {
-      a.within_limits = false;
-      notes.push_back(fmt::format("{} runs down to {}, below T_in_min", st.id, celsius(st.T_min)));
-    }
   }
+  for (const auto& f : r.limit_check.findings)
+    if (f.kind != LimitFindingKind::Near) {
+      a.within_limits = false;
+      notes.push_back(limit_finding_text(f, r.limit_check.margin));
+    }
   if (!all_mass) a.total_catalyst.reset();
   if (!a.reaches_target)
     notes.insert(notes.begin(), fmt::format("reaches X = {:.4f}, short of the target {:.4f}",
@@ -290,6 +288,7 @@ std::string DesignOptions::validate() const {
   if (!(T_settle > 0)) return "T_settle must be positive";
   if (max_evaluations < 10) return "max_evaluations must be at least 10";
   if (!(feasibility_tolerance > 0)) return "feasibility_tolerance must be positive";
+  if (auto e = limit_check.validate(); !e.empty()) return "limit_check: " + e;
   if (auto e = pfr.cvode.validate(); !e.empty()) return "pfr.cvode: " + e;
   if (auto e = equilibrium.validate(); !e.empty()) return "equilibrium: " + e;
   return {};
@@ -475,6 +474,7 @@ DesignResult optimize_design(const Case& c, const DesignOptions& options) {
   TrainOptions to;
   to.pfr = options.pfr;
   to.equilibrium_views = false;
+  to.limit_check = options.limit_check;
   const Case trial = with_train(c, design_train(c, res, res.best));
   const TrainResult check = run_train(trial, to);
   res.best.checked_conversion = check.conversion;
@@ -483,6 +483,9 @@ DesignResult optimize_design(const Case& c, const DesignOptions& options) {
         "the optimum's beds run by the train solver reach X = {:.6f}, not the target {:.6f}: "
         "the optimizer's quadrature and the ODE solver disagree; treat the sizes with care",
         check.conversion, s.target));
+  res.limit_check = check.limit_check;
+  for (const auto& f : check.limit_check.findings)
+    res.warnings.push_back("the optimum: " + limit_finding_text(f, check.limit_check.margin));
   // The adiabatic temperature rise against T_max is worth seeing beside
   // the optimum; the train's other design warnings (rules of thumb on bed
   // length and space time) are not: the optimum sizes the beds itself.

@@ -431,6 +431,7 @@ const char* return_to_name(ReturnTo r) { return r == ReturnTo::Inlet ? "inlet" :
 std::string StagingOptions::validate() const {
   if (!(approach > 0 && approach < 1))
     return fmt::format("approach must lie strictly between 0 and 1, got {:g}", approach);
+  if (auto e = limit_check.validate(); !e.empty()) return "limit_check: " + e;
   if (max_beds < 1 || max_beds > 100)
     return fmt::format("max_beds must lie between 1 and 100, got {}", max_beds);
   if (auto e = pfr.cvode.validate(); !e.empty()) return "pfr.cvode: " + e;
@@ -499,6 +500,11 @@ StagingResult run_staging(const Case& c, const StagingOptions& options) {
   check_as_given(s, options, ctx, res);
   res.reachable = res.limited_by == StagingLimit::None;
   build_staged(s, options, *first, ctx, res);
+
+  LimitCheckOptions lo = options.limit_check;
+  lo.locate = lo.locate && options.pfr.full_profile;
+  res.as_given_run.limit_check = check_temperature_limits(c.limits, res.as_given_run.stages, lo);
+  res.staged_run.limit_check = check_temperature_limits(c.limits, res.staged_run.stages, lo);
 
   res.warnings = res.as_given_run.warnings;
   auto add_unique = [&](const std::string& w) {

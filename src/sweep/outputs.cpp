@@ -15,7 +15,7 @@ namespace {
 constexpr const char* kScalarFields[] = {
     "volume",  "catalyst_mass", "bulk_density", "space_time", "space_velocity", "ghsv",
     "whsv",    "lhsv",          "duty",         "T_max",      "T_min",          "conversion",
-    "inlet.T", "inlet.P",       "outlet.T",     "outlet.P"};
+    "inlet.T", "inlet.P",       "outlet.T",     "outlet.P",   "over_limit"};
 constexpr const char* kEquilibriumFields[] = {"X_ad_eq", "T_ad_eq", "X_eq_out", "approach_X",
                                               "approach_T"};
 
@@ -69,8 +69,8 @@ const char* unit_of(const OutputColumn& col) {
   const std::string& f = col.field;
   const auto ends = [&](std::string_view tail) { return f.ends_with(tail); };
   if (col.species >= 0) return "mol/s";
-  if (f == "T_out" || f == "T_max" || f == "T_min" || ends(".T") || ends("T_ad_eq") ||
-      ends("approach_T"))
+  if (f == "T_out" || f == "T_max" || f == "T_min" || f == "over_limit" || ends(".T") ||
+      ends("T_ad_eq") || ends("approach_T"))
     return "K";
   if (ends(".P")) return "Pa";
   if (f == "volume") return "m3";
@@ -92,7 +92,10 @@ OutputSpec OutputSpec::defaults(const Case& c) {
   for (const auto& s : c.train) {
     const std::string& id = stage_id(s);
     // An exchanger's T_max is only the hotter of its ends; its outlet says it.
-    if (!std::holds_alternative<ExchangerSpec>(s)) o.columns_.push_back(column(id + ".T_max", c));
+    if (!std::holds_alternative<ExchangerSpec>(s)) {
+      o.columns_.push_back(column(id + ".T_max", c));
+      if (c.limits.T_max || c.limits.T_in_min) o.columns_.push_back(column(id + ".over_limit", c));
+    }
     o.columns_.push_back(column(id + ".outlet.T", c));
     if (const auto* r = std::get_if<ReactorSpec>(&s); r && r->target_conversion) {
       o.columns_.push_back(column(id + ".volume", c));
@@ -163,6 +166,10 @@ std::optional<double> OutputSpec::extract(std::size_t i, const TrainResult& r) c
   if (f == "duty") return finite(s.duty);
   if (f == "T_max") return finite(s.T_max);
   if (f == "T_min") return finite(s.T_min);
+  if (f == "over_limit") {
+    if (!r.limit_check.applies() || s.kind == StageKind::Exchanger) return std::nullopt;
+    return finite(r.limit_check.past(s.id));
+  }
   if (f == "conversion") return finite(s.conversion);
   if (f == "inlet.T") return finite(s.inlet.T);
   if (f == "inlet.P") return finite(s.inlet.P);

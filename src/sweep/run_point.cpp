@@ -8,6 +8,8 @@ const char* run_status_name(RunStatus s) {
   switch (s) {
     case RunStatus::Ok:
       return "ok";
+    case RunStatus::OverLimit:
+      return "over_limit";
     case RunStatus::Infeasible:
       return "infeasible";
     case RunStatus::SolverFailure:
@@ -17,6 +19,8 @@ const char* run_status_name(RunStatus s) {
   }
   return "?";
 }
+
+bool has_outputs(RunStatus s) { return s == RunStatus::Ok || s == RunStatus::OverLimit; }
 
 namespace {
 
@@ -49,6 +53,16 @@ PointResult read_outputs(const TrainResult& r, const OutputSpec& outputs) {
   const std::size_t n = outputs.columns().size();
   p.outputs.reserve(n);
   for (std::size_t i = 0; i < n; ++i) p.outputs.push_back(outputs.extract(i, r));
+  // What a lone run would print beside its table, in one cell.
+  const auto add = [&](const std::string& s) { p.message += (p.message.empty() ? "" : "; ") + s; };
+  const LimitCheck& lc = r.limit_check;
+  for (const auto& f : lc.findings)
+    if (f.kind != LimitFindingKind::Near) add(limit_finding_text(f, lc.margin));
+  for (const auto& s : r.stages)
+    for (const auto& w : s.warnings) add(w);
+  for (const auto& f : lc.findings)
+    if (f.kind == LimitFindingKind::Near) add(limit_finding_text(f, lc.margin));
+  if (lc.passed()) p.status = RunStatus::OverLimit;
   return p;
 }
 

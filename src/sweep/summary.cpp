@@ -31,8 +31,7 @@ StudySummary summarize_study(const std::vector<std::string>& output_names,
   for (std::size_t c = 0; c < output_names.size(); ++c) {
     std::vector<double> v;
     for (const auto& r : rows)
-      if (r.result.status == RunStatus::Ok && r.result.outputs[c])
-        v.push_back(*r.result.outputs[c]);
+      if (has_outputs(r.result.status) && r.result.outputs[c]) v.push_back(*r.result.outputs[c]);
     s.percentiles.push_back({output_names[c], summarize(std::move(v)), ""});
   }
   for (const auto& m : margin_columns) {
@@ -43,7 +42,7 @@ StudySummary summarize_study(const std::vector<std::string>& output_names,
     d.column = m;
     std::vector<double> v;
     for (const auto& r : rows) {
-      if (r.result.status == RunStatus::Ok && r.result.outputs[c]) {
+      if (has_outputs(r.result.status) && r.result.outputs[c]) {
         v.push_back(*r.result.outputs[c]);
         ++d.ok;
       } else if (r.result.status == RunStatus::Infeasible) {
@@ -93,14 +92,14 @@ std::string sweep_json_text(const StudyHeader& header, const Shard& shard,
                        {"P50", json_number(m.p50)},
                        {"P95", json_number(m.p95)},
                        {"unbounded", !m.p95.has_value()}});
-  json j = {
-      {"study", study},
-      {"summary", {{"runs", summary.runs}, {"statuses", summary.statuses}}},
-      {"percentiles", pct},
-      {"percentile_definition", "Hyndman & Fan (1996) definition 7, over the runs with status ok"},
-      {"design_margin", margins},
-      {"runs", runs},
-      {"caution", kCaution}};
+  json j = {{"study", study},
+            {"summary", {{"runs", summary.runs}, {"statuses", summary.statuses}}},
+            {"percentiles", pct},
+            {"percentile_definition",
+             "Hyndman & Fan (1996) definition 7, over the runs with status ok or over_limit"},
+            {"design_margin", margins},
+            {"runs", runs},
+            {"caution", kCaution}};
   return j.dump(2) + "\n";
 }
 

@@ -140,8 +140,8 @@ StudyHeader read_header(const std::vector<std::string>& identity) {
 }
 
 RunStatus status_of(const std::string& name, const std::string& file) {
-  for (RunStatus s :
-       {RunStatus::Ok, RunStatus::Infeasible, RunStatus::SolverFailure, RunStatus::InvalidInput})
+  for (RunStatus s : {RunStatus::Ok, RunStatus::OverLimit, RunStatus::Infeasible,
+                      RunStatus::SolverFailure, RunStatus::InvalidInput})
     if (name == run_status_name(s)) return s;
   throw InputError({file, 0, 0}, fmt::format("unknown run status \"{}\"", name));
 }

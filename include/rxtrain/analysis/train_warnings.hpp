@@ -1,13 +1,16 @@
 // Design warnings an engineer should see beside any train result (used by
-// `rxtrain staging`, usable by `rxtrain run`): plain sentences, display
-// units (°C) in the text. They never stop a run.
+// `rxtrain run` and `rxtrain staging`): plain sentences, display units (°C)
+// in the text. They never stop a run.
 //
+//  * every finding of the result's limit check (limit_check.hpp: a peak
+//    past T_max, a lowest point below T_in_min, an inlet beyond either, a
+//    peak within the margin of T_max), first;
 //  * the adiabatic temperature rise (fall, for an endothermic key reaction)
 //    of the feed at full conversion of the key, against limits.T_max
 //    (limits.T_in_min);
-//  * reactor inlets outside [T_in_min, T_max];
 //  * tubular beds whose last 10 % of volume adds under 0.01 conversion
-//    (catalyst wasted near equilibrium or complete conversion);
+//    (catalyst, or volume in a tube without catalyst, wasted near
+//    equilibrium or complete conversion);
 //  * space times outside the usual ranges: stirred tanks about 10 min to
 //    4 h, tubular reactors about 0.5 s to 1 h (common practice, no source).
 //

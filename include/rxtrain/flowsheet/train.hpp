@@ -9,6 +9,7 @@
 
 #include "rxtrain/case/case.hpp"
 #include "rxtrain/stages/levenspiel.hpp"
+#include "rxtrain/stages/limit_check.hpp"
 #include "rxtrain/stages/cstr.hpp"
 #include "rxtrain/stages/pfr.hpp"
 #include "rxtrain/stages/pfr_batch.hpp"
@@ -40,6 +41,9 @@ struct TrainOptions {
   EquilibriumOptions equilibrium;
   // Points of the equilibrium curve and of the maximum-rate locus.
   int curve_points = 61;
+  // The check of every reactor stage against the case's limits (its
+  // margin); crossings are located only where pfr.full_profile is on.
+  LimitCheckOptions limit_check;
 };
 
 struct TrainResult {
@@ -51,6 +55,8 @@ struct TrainResult {
   Stream outlet;                      // outlet of the last stage
   double conversion = 0;              // overall key conversion at the outlet
   std::vector<std::string> warnings;  // loader and stage warnings, in order
+  // Every reactor stage against the case's limits (filled by run_train).
+  LimitCheck limit_check;
   // X_eq(T) at the feed's composition and pressure over the temperatures
   // the train spans, and T_opt(X) of the key reaction where it is
   // reversible and exothermic; empty without a reversible reaction.
@@ -111,6 +117,13 @@ void add_equilibrium_views(const Case& c, const TrainOptions& options, TrainResu
 // Same result, reusing `ws` instead of creating the solvers afresh: the
 // fast path for many runs (the per-run cost is in docs/performance.md).
 TrainResult run_train(const Case& c, const TrainOptions& options, TrainWorkspace& ws);
+
+// The case's limits against `stages` under options.limit_check, locating
+// crossings only where the tubular stages kept full profiles: what
+// run_train stores in TrainResult::limit_check, for a train assembled
+// stage by stage (staging, optimize).
+LimitCheck check_limits(const Case& c, const TrainOptions& options,
+                        std::span<const StageResult> stages);
 
 // Sets `warm_starts` to the steady states of every stirred-tank stage of
 // `result`, the warm starts of a next run of the same case (reusing the

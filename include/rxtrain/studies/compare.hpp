@@ -32,7 +32,9 @@ enum class LayoutHeat { AsWritten, Adiabatic, Isothermal };
 const char* layout_heat_name(LayoutHeat heat);
 
 struct CompareOptions {
-  TrainOptions train;  // equilibrium views are switched off inside
+  // Equilibrium views are switched off inside; limit_check sets the margin
+  // of the notes.
+  TrainOptions train;
   // Orders grow as n!; 6 reactor stages give 720 orders (x3 heat modes).
   int max_reactor_stages = 6;
   // The upper end of the temperatures the heat-capacity data are taken to
@@ -70,7 +72,13 @@ struct Layout {
   LayoutHeat heat = LayoutHeat::AsWritten;
   bool case_layout = false;  // the case exactly as written
   bool feasible = false;
-  std::string reason;                    // why not, when infeasible
+  // Why not, when infeasible; a layout whose stage passes the case's
+  // limits (limit_check.hpp) is infeasible, with every such stage's
+  // finding here.
+  std::string reason;
+  // Stages of a feasible layout within the margin of a limit (Near
+  // findings), phrased.
+  std::vector<std::string> notes;
   std::optional<double> total_volume;    // m3
   std::optional<double> total_catalyst;  // kg, when every reactor has one
   std::optional<double> conversion;      // overall key conversion at the outlet

@@ -53,6 +53,7 @@
 
 #include "rxtrain/case/case.hpp"
 #include "rxtrain/models/equilibrium.hpp"
+#include "rxtrain/stages/limit_check.hpp"
 #include "rxtrain/stages/pfr.hpp"
 
 namespace rxtrain {
@@ -98,6 +99,9 @@ struct DesignOptions {
   // Compare with the case as written and with the `staging` policy (each
   // runs the train once); off for callers that only need the optimum.
   bool compare = true;
+  // The check of the optimum's train (and of the case as written) against
+  // the limits (limit_check.hpp): its findings become warnings.
+  LimitCheckOptions limit_check;
   // Solvers of the checks and comparisons.
   PfrOptions pfr;
   EquilibriumOptions equilibrium;
@@ -185,6 +189,9 @@ struct DesignResult {
   std::vector<DesignLayout> by_bed_count;     // N = 1..max_beds; empty without max_beds
   std::optional<AsWrittenDesign> as_written;  // with options.compare
   std::optional<StagingDesign> staging;       // with options.compare
+  // The optimum's train (design_train, run by run_train) against the
+  // limits: a bed at T_max is a Near finding with no margin left.
+  LimitCheck limit_check;
   std::vector<std::string> warnings;
 };
 

@@ -59,6 +59,9 @@ struct StagingOptions {
   // Most beds tried before the target is called out of reach; ten is more
   // than any adiabatic train built.
   int max_beds = 10;
+  // The check of every stage (as given and staged) against the limits:
+  // its findings are the first design warnings (limit_check.hpp).
+  LimitCheckOptions limit_check;
   // Solvers of the stages (as given and staged).
   PfrOptions pfr;
   CstrOptions cstr;

@@ -6,6 +6,9 @@
 //                           whsv, lhsv, duty, T_max, T_min, conversion,
 //                           inlet.T, inlet.P, outlet.T, outlet.P,
 //                           inlet.flows.SP, outlet.flows.SP,
+//                           over_limit (K by which the stage passes the
+//                           case's limits, 0 within; empty for an
+//                           exchanger or a case without limits),
 //                           equilibrium.X_ad_eq | T_ad_eq | X_eq_out |
 //                           approach_X | approach_T
 // Values are SI (GHSV, WHSV, LHSV in 1/h, as in the JSON).
@@ -29,9 +32,9 @@ struct OutputColumn {
 
 class OutputSpec {
  public:
-  // The default columns: X, T_out, every stage's T_max and outlet.T, and
-  // every sized reactor's volume (and catalyst_mass where it has a bulk
-  // density).
+  // The default columns: X, T_out, every reactor's T_max (and over_limit
+  // when the case gives limits), every stage's outlet.T, and every sized
+  // reactor's volume (and catalyst_mass where it has a bulk density).
   static OutputSpec defaults(const Case& c);
   // A comma-separated list. Throws InputError located at "--output" for an
   // unknown stage or field, with the nearest valid name.

@@ -17,18 +17,30 @@ namespace rxtrain::sweep {
 // How a run ended. A failed run is a row with its reason, never dropped.
 enum class RunStatus {
   Ok,
+  // The run finished (its outputs are its own) but a reactor stage passes
+  // the case's limits: a peak above T_max or a lowest point below T_in_min
+  // (limit_check.hpp); the message says which, by how much and where.
+  OverLimit,
   Infeasible,     // a target out of reach (equilibrium, complete conversion)
   SolverFailure,  // the integrator or Newton failed, or a non-finite result
   InvalidInput,   // a sampled value outside its field's range
 };
 
-// "ok", "infeasible", "solver-failure", "invalid-input".
+// "ok", "over_limit", "infeasible", "solver-failure", "invalid-input".
 const char* run_status_name(RunStatus s);
 
+// True for the statuses of a run that finished, whose outputs are numbers
+// (Ok, OverLimit): the runs percentiles and design margins are taken over.
+bool has_outputs(RunStatus s);
+
 struct PointResult {
-  std::vector<std::optional<double>> outputs;  // SI; all empty unless Ok
+  std::vector<std::optional<double>> outputs;  // SI; all empty unless has_outputs(status)
   RunStatus status = RunStatus::Ok;
-  std::string message;  // why the run failed; empty when Ok
+  // A failed run: why. A finished one: what the engineer should know of
+  // it, "; "-separated: the stages past a limit, the stages' own warnings
+  // (several steady states of a tank), the stages within the margin of a
+  // limit; empty when there is nothing to tell.
+  std::string message;
 };
 
 // What one thread keeps between its runs: the train options and the

@@ -1,5 +1,7 @@
 // What a study's rows add up to: runs per status, the P5/P50/P95 of every
-// output over the runs that succeeded, and the design margin.
+// output over the runs that finished (status ok or over_limit: a run past a
+// temperature limit still has its numbers, and leaving it out would hide
+// the hot tail), and the design margin.
 //
 // Design margin: for each stage sized to a target (its catalyst mass, or
 // its volume without a bulk density), the P95 over the runs of the amount
