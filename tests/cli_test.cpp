@@ -91,9 +91,7 @@ TEST_CASE("the README's example case runs", "[cli]") {
   REQUIRE(start != std::string::npos);
   const auto end = readme.find("```", start + 8);
   const auto dir = scratch("readme");
-  {
-    std::ofstream(dir / "readme.yaml") << readme.substr(start + 8, end - start - 8);
-  }
+  { std::ofstream(dir / "readme.yaml") << readme.substr(start + 8, end - start - 8); }
   const auto r = run_rxtrain("run '" + (dir / "readme.yaml").string() + "'");
   INFO(r.err);
   CHECK(r.exit_code == 0);
@@ -102,9 +100,11 @@ TEST_CASE("the README's example case runs", "[cli]") {
 
 TEST_CASE("sweep: four shards merged equal one unsharded run, byte for byte", "[cli][sweep]") {
   const auto dir = scratch("sweep_shards");
-  const std::string c = (fs::path(RXTRAIN_SOURCE_DIR) / "cases" / "isomerization-two-bed.yaml").string();
+  const std::string c =
+      (fs::path(RXTRAIN_SOURCE_DIR) / "cases" / "isomerization-two-bed.yaml").string();
   const std::string study =
-      "sweep '" + c + "' --sample 'feed.T=normal(150degC,3degC)' --sample "
+      "sweep '" + c +
+      "' --sample 'feed.T=normal(150degC,3degC)' --sample "
       "'reactions.isom.rate.Ea=uniform(68kJ/mol,72kJ/mol)' --runs 23 --seed 5 ";
   auto r = run_rxtrain(study + "--jobs 2 --csv '" + (dir / "all.csv").string() + "' --json '" +
                        (dir / "all.json").string() + "'");
@@ -144,7 +144,8 @@ TEST_CASE("sweep: four shards merged equal one unsharded run, byte for byte", "[
 
 TEST_CASE("sweep: a bad path or unit is an input error and writes nothing", "[cli][sweep]") {
   const auto dir = scratch("sweep_bad");
-  const std::string c = (fs::path(RXTRAIN_SOURCE_DIR) / "cases" / "isomerization-two-bed.yaml").string();
+  const std::string c =
+      (fs::path(RXTRAIN_SOURCE_DIR) / "cases" / "isomerization-two-bed.yaml").string();
   const std::string csv = " --csv '" + (dir / "x.csv").string() + "'";
   auto r = run_rxtrain("sweep '" + c + "' --vary feed.temperature=120degC:200degC:5" + csv);
   CHECK(r.exit_code == 2);
@@ -159,14 +160,13 @@ TEST_CASE("sweep: a bad path or unit is an input error and writes nothing", "[cl
   fs::remove_all(dir);
 }
 
-TEST_CASE("sweep: a grid writes one row per point and a report",
-          "[cli][sweep]") {
+TEST_CASE("sweep: a grid writes one row per point and a report", "[cli][sweep]") {
   const auto dir = scratch("sweep_grid");
   const std::string c =
       (fs::path(RXTRAIN_SOURCE_DIR) / "cases" / "liquid-tank-then-tube.yaml").string();
-  const auto r = run_rxtrain("sweep '" + c +
-                             "' --vary train.T2.target.conversion=0.9:0.98:3 --jobs 2 --csv '" +
-                             (dir / "g.csv").string() + "' --report '" + (dir / "rep").string() + "'");
+  const auto r = run_rxtrain(
+      "sweep '" + c + "' --vary train.T2.target.conversion=0.9:0.98:3 --jobs 2 --csv '" +
+      (dir / "g.csv").string() + "' --report '" + (dir / "rep").string() + "'");
   INFO(r.err);
   REQUIRE(r.exit_code == 0);
   const std::string csv = slurp(dir / "g.csv");
@@ -250,4 +250,39 @@ TEST_CASE("optimize: bad options and unwritable outputs", "[cli][design]") {
     CHECK_FALSE(fs::exists(dir / "o.json"));
   }
   fs::remove_all(dir);
+}
+
+TEST_CASE("help shows plain words, an unknown command is named", "[cli]") {
+  const auto unknown = rxtrain::test::run_rxtrain("foo");
+  CHECK(unknown.exit_code == 2);
+  CHECK_THAT(unknown.err, Catch::Contains("unknown command 'foo'"));
+  CHECK_THAT(unknown.err, Catch::Contains("run, check, thermo, staging, compare, optimize, sweep"));
+  for (const char* command :
+       {"run", "check", "thermo", "staging", "compare", "optimize", "sweep", "merge"}) {
+    const auto help = rxtrain::test::run_rxtrain(std::string(command) + " --help");
+    INFO(command << "\n" << help.out);
+    CHECK(help.exit_code == 0);
+    // No option-library internals: type tags, validator arrows, "[a - b]".
+    for (const char* internal : {"ENUM", "FLOAT", "UINT", "INT:", "->", " - ", " TEXT REQUIRED"})
+      CHECK(help.out.find(internal) == std::string::npos);
+  }
+  const auto run = rxtrain::test::run_rxtrain("run --help");
+  CHECK_THAT(run.out, Catch::Contains("case FILE REQUIRED"));
+  CHECK_THAT(run.out, Catch::Contains("--json FILE"));
+  CHECK_THAT(run.out, Catch::Contains("--csv DIR"));
+  CHECK_THAT(run.out, Catch::Contains("--rtol NUMBER in [1e-14, 0.001]"));
+  // A range whose ends are refused is shown open.
+  CHECK_THAT(rxtrain::test::run_rxtrain("staging --help").out,
+             Catch::Contains("--approach NUMBER in (0, 1)"));
+  // thermo: lower-case option names; the old --T works, hidden.
+  const auto thermo = rxtrain::test::run_rxtrain("thermo --help");
+  CHECK_THAT(thermo.out, Catch::Contains("--temperatures"));
+  CHECK(thermo.out.find("--T ") == std::string::npos);
+  const std::string demo = std::string(RXTRAIN_SOURCE_DIR) + "/cases/so2-three-bed-converter.yaml";
+  const auto by_old = rxtrain::test::run_rxtrain("thermo '" + demo + "' --T 600:700:50");
+  const auto by_new = rxtrain::test::run_rxtrain("thermo '" + demo + "' --temperatures 600:700:50");
+  CHECK(by_old.exit_code == 0);
+  CHECK(by_old.out == by_new.out);
+  // thermo designs nothing: no caution.
+  CHECK(by_new.out.find("Results are for screening") == std::string::npos);
 }

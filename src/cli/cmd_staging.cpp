@@ -68,7 +68,7 @@ Action setup_staging(CLI::App& app) {
                                                                  : "must lie strictly "
                                                                    "between 0 and 1";
                                          },
-                                         "", "open interval"))
+                                         "open interval", ""))
       ->capture_default_str();
   const std::map<std::string, ReturnTo> returns{{"inlet", ReturnTo::Inlet},
                                                 {"optimal", ReturnTo::Optimal}};

@@ -1,4 +1,4 @@
-// rxtrain thermo CASE --T FIRST:LAST:STEP
+// rxtrain thermo CASE --temperatures FIRST:LAST:STEP
 // Per reaction: K(T), ln K, dH_r(T) and dG0(T) over a temperature grid.
 #include <fmt/format.h>
 
@@ -8,7 +8,6 @@
 #include <string>
 
 #include "commands.hpp"
-#include "rxtrain/base/caution.hpp"
 #include "rxtrain/base/error.hpp"
 #include "rxtrain/base/units.hpp"
 #include "rxtrain/case/case.hpp"
@@ -30,7 +29,7 @@ TemperatureRange parse_range(const std::string& text, const UnitParser& units) {
   const auto c1 = text.find(':');
   const auto c2 = c1 == std::string::npos ? c1 : text.find(':', c1 + 1);
   if (c2 == std::string::npos || text.find(':', c2 + 1) != std::string::npos)
-    throw InputError({}, fmt::format("--T expects FIRST:LAST:STEP (e.g. 300:900:25 or "
+    throw InputError({}, fmt::format("--temperatures expects FIRST:LAST:STEP (e.g. 300:900:25 or "
                                      "\"150 degC:450 degC:10\"), got \"{}\"",
                                      text));
   const SiUnit kelvin = SiUnit::of("K", "a temperature");
@@ -40,13 +39,14 @@ TemperatureRange parse_range(const std::string& text, const UnitParser& units) {
     r.last = units.to_si(text.substr(c1 + 1, c2 - c1 - 1), kelvin);
     std::string step = text.substr(c2 + 1);
     if (step.find("deg") != std::string::npos)
-      throw InputError({}, fmt::format("--T: give the step in K (a temperature difference), got "
-                                       "\"{}\"",
-                                       step));
+      throw InputError(
+          {}, fmt::format("--temperatures: give the step in K (a temperature difference), got "
+                          "\"{}\"",
+                          step));
     r.step = units.to_si(step, kelvin);
     return r;
   } catch (const UnitError& e) {
-    throw InputError({}, fmt::format("--T \"{}\": {}", text, e.what()));
+    throw InputError({}, fmt::format("--temperatures \"{}\": {}", text, e.what()));
   }
 }
 
@@ -74,8 +74,9 @@ int run(const ThermoOptions& o) {
                       sci(r.K), r.ln_K ? fmt::format("{:.5f}", *r.ln_K) : "-", r.dH / 1e3,
                       r.dG ? fmt::format("{:.4f}", *r.dG / 1e3) : "-");
   }
+  // No caution here: a table of K(T) designs nothing (the commands that
+  // produce a design print it).
   for (const auto& w : c.warnings) out += "warning: " + w + "\n";
-  out += fmt::format("\n{}\n", kCaution);
   std::fputs(out.c_str(), stdout);
   return 0;
 }
@@ -85,10 +86,13 @@ int run(const ThermoOptions& o) {
 Action setup_thermo(CLI::App& app) {
   auto o = std::make_shared<ThermoOptions>();
   app.add_option("case", o->case_file, "Case file (YAML)")->required();
-  app.add_option("--T", o->range,
+  app.add_option("--temperatures", o->range,
                  "Temperatures FIRST:LAST:STEP; FIRST and LAST may carry a unit (\"150 degC\"), "
                  "STEP is in K")
+      ->type_name("RANGE")
       ->capture_default_str();
+  // The option's old name, kept for one release; not shown in --help.
+  app.add_option("--T", o->range)->group("");
   return [o] { return run(*o); };
 }
 

@@ -5,14 +5,15 @@
 #include <CLI/CLI.hpp>
 #include <cstdio>
 #include <exception>
+#include <memory>
 #include <string>
 #include <vector>
 
 #include "commands.hpp"
-#include "rxtrain/base/error.hpp"
-#include "rxtrain/report/atomic_file.hpp"
 #include "rxtrain/base/caution.hpp"
+#include "rxtrain/base/error.hpp"
 #include "rxtrain/base/units.hpp"
+#include "rxtrain/report/atomic_file.hpp"
 
 namespace {
 
@@ -50,6 +51,106 @@ constexpr CommandEntry kCommands[] = {
      rxtrain::cli::setup_merge},
 };
 
+// Options shown with a word of their own in --help instead of the library's
+// TEXT: paths (FILE, DIR) and temperature differences. An entry whose
+// option a command does not have is skipped.
+struct PathOption {
+  const char* option;
+  const char* kind;
+};
+constexpr PathOption kPathOptions[] = {
+    {"--limit-margin", "KELVIN"},
+    {"--margin", "KELVIN"},
+    {"case", "FILE"},
+    {"out", "FILE"},
+    {"shards", "FILE"},
+    {"--json", "FILE"},
+    {"--write-case", "FILE"},
+    {"--report", "DIR"},
+};
+
+// --help without the option library's internals: a plain type word
+// (NUMBER, INTEGER, TEXT, FILE, DIR), the choices of an enumeration
+// ("inlet|max-rate") and a validated range ("in [1e-14, 0.001]").
+class HelpFormatter : public CLI::Formatter {
+ public:
+  std::string make_option_opts(const CLI::Option* opt) const override {
+    if (!opt->get_option_text().empty()) return " " + opt->get_option_text();
+    std::string out;
+    if (opt->get_type_size() != 0) {
+      out += " " + type_text(opt->get_type_name());
+      if (!opt->get_default_str().empty()) out += "=" + opt->get_default_str();
+      if (opt->get_expected_max() == CLI::detail::expected_max_vector_size) out += " ...";
+      if (opt->get_required()) out += " REQUIRED";
+    }
+    if (!opt->get_excludes().empty()) {
+      out += " (not with";
+      for (const CLI::Option* o : opt->get_excludes()) out += " " + o->get_name();
+      out += ")";
+    }
+    return out;
+  }
+
+ private:
+  // "FLOAT:FLOAT in [1e-14 - 0.001]" -> "NUMBER in [1e-14, 0.001]";
+  // "ENUM:value in {inlet->0,max-rate->1} OR {0,1}" -> "inlet|max-rate".
+  static std::string type_text(const std::string& raw) {
+    const auto colon = raw.find(':');
+    const std::string base = raw.substr(0, colon);
+    const std::string rest = colon == std::string::npos ? "" : raw.substr(colon + 1);
+    if (base == "ENUM") {
+      const auto a = rest.find('{'), b = rest.find('}');
+      if (a == std::string::npos || b == std::string::npos) return "CHOICE";
+      std::string names, item;
+      for (char ch : rest.substr(a + 1, b - a - 1) + ",") {
+        if (ch != ',') {
+          item += ch;
+          continue;
+        }
+        const std::string name = item.substr(0, item.find("->"));
+        if (!name.empty()) names += (names.empty() ? "" : "|") + name;
+        item.clear();
+      }
+      return names;
+    }
+    std::string word = base == "FLOAT"                     ? "NUMBER"
+                       : (base == "INT" || base == "UINT") ? "INTEGER"
+                                                           : base;
+    const auto in = rest.find(" in [");
+    if (in != std::string::npos) {
+      std::string range = rest.substr(in + 4);  // "[a - b]..." (validators may follow)
+      range = range.substr(0, range.find(']') + 1);
+      const auto dash = range.find(" - ");
+      if (dash != std::string::npos) range.replace(dash, 3, ", ");
+      // A range whose ends are refused too (a check named "open
+      // interval") is shown open.
+      if (rest.find("open interval") != std::string::npos) {
+        range.front() = '(';
+        range.back() = ')';
+      }
+      word += " in " + range;
+    }
+    return word;
+  }
+};
+
+// The first word that names no command: "unknown command 'foo'", and the
+// commands there are.
+bool unknown_command(int argc, char** argv) {
+  if (argc < 2 || argv[1][0] == '-') return false;
+  const std::string word = argv[1];
+  std::string names;
+  for (const auto& c : kCommands) {
+    if (word == c.name) return false;
+    names += (names.empty() ? "" : ", ") + std::string(c.name);
+  }
+  std::fprintf(stderr,
+               "rxtrain: error: unknown command '%s'; the commands are %s (rxtrain --help says "
+               "what each does)\n",
+               word.c_str(), names.c_str());
+  return true;
+}
+
 }  // namespace
 
 int main(int argc, char** argv) {
@@ -61,12 +162,19 @@ int main(int argc, char** argv) {
       "4 output not written.",
       RXTRAIN_VERSION, rxtrain::kCaution)};
   app.set_version_flag("--version", std::string("rxtrain ") + RXTRAIN_VERSION);
+  app.formatter(std::make_shared<HelpFormatter>());
   app.require_subcommand(1);
   std::vector<std::pair<CLI::App*, cli::Action>> actions;
   for (const auto& c : kCommands) {
     CLI::App* sub = app.add_subcommand(c.name, c.help);
     actions.emplace_back(sub, c.setup(*sub));
+    for (const auto& p : kPathOptions)
+      if (CLI::Option* o = sub->get_option_no_throw(p.option)) o->type_name(p.kind);
+    // run --csv writes a folder, sweep --csv a file.
+    if (CLI::Option* o = sub->get_option_no_throw("--csv"))
+      o->type_name(o->get_description().find("folder") != std::string::npos ? "DIR" : "FILE");
   }
+  if (unknown_command(argc, argv)) return cli::kExitInput;
   try {
     app.parse(argc, argv);
   } catch (const CLI::CallForHelp& e) {
