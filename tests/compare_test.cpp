@@ -86,7 +86,6 @@ CompareResult two_stage_orders(double n, double Da) {
   const double k = Da / (std::pow(kC0, n - 1) * tau);
   rxtrain::CompareOptions options;
   options.train.pfr.cvode.rtol = 1e-12;
-  options.train.cstr.pfr.cvode.rtol = 1e-12;
   return rxtrain::compare_layouts(
       load(nth_order_case(n, k, 0, R"(  - {type: pfr, id: P, volume: 0.5 m3, heat: isothermal}
   - {type: cstr, id: T, volume: 0.5 m3, heat: isothermal})")),
@@ -234,7 +233,6 @@ TEST_CASE("identical beds exchanged are one layout naming both orders", "[compar
   const double k = 2e-4, Da = k * 0.5 / kV0;
   rxtrain::CompareOptions options;
   options.train.pfr.cvode.rtol = 1e-12;
-  options.train.cstr.pfr.cvode.rtol = 1e-12;
   const CompareResult r = rxtrain::compare_layouts(
       load(nth_order_case(1, k, 0, R"(  - {type: pfr, id: P1, volume: 0.5 m3, heat: isothermal}
   - {type: pfr, id: P2, volume: 0.5 m3, heat: isothermal}

@@ -32,7 +32,6 @@ int run_compare_command(const CompareCommandOptions& o) {
   const Case c = load_case(o.case_file, units);
   CompareOptions options;
   options.train.pfr.cvode.rtol = o.rtol;
-  options.train.cstr.pfr.cvode.rtol = o.rtol;
   options.train.limit_check.margin = parse_limit_margin(o.limit_margin, units);
   const CompareResult result = compare_layouts(c, options);
   // Rendered before anything is written; a failure leaves no file behind.

@@ -37,7 +37,6 @@ int run(const RunOptions& o) {
   const Case c = load_case(o.case_file, units);
   TrainOptions options;
   options.pfr.cvode.rtol = o.rtol;
-  options.cstr.pfr.cvode.rtol = o.rtol;
   options.limit_check.margin = parse_limit_margin(o.limit_margin, units);
   TrainResult result = run_train(c, options);
   for (auto& w : design_warnings(c, result)) result.warnings.push_back(std::move(w));

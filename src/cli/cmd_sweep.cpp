@@ -152,7 +152,6 @@ int run_sweep_command(const SweepCommandOptions& o) {
   options.jobs = o.jobs;
   options.shard = shard;
   options.train.pfr.cvode.rtol = o.rtol;
-  options.train.cstr.pfr.cvode.rtol = o.rtol;
   options.train.limit_check.margin = parse_limit_margin(o.limit_margin, units);
   options.progress = Progress();
   // Runs solved in batches share their steps: the batches are part of the study.

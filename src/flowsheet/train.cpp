@@ -58,6 +58,14 @@ void add_equilibrium_records(const Case& c, const TrainOptions& options, TrainRe
   }
 }
 
+// The train's stirred-tank options with the train's one ODE setting.
+CstrOptions tank_options(const TrainOptions& options) {
+  CstrOptions o = options.cstr;
+  o.pfr = options.pfr;
+  o.guesses = {};
+  return o;
+}
+
 // What each reactor stage can reach at any size (StageReach), and what a
 // designer must be told about it: a sized bed whose conversion peaks
 // inside it, a rated bed already past its peak.
@@ -74,7 +82,7 @@ void add_reaches(const Case& c, const TrainOptions& options, TrainResult& result
     spec.bulk_density = r.bulk_density;
     try {
       r.reach = r.kind == StageKind::Cstr
-                    ? cstr_reach(mech, spec, r.inlet, basis, ws.cstr(), options.cstr)
+                    ? cstr_reach(mech, spec, r.inlet, basis, ws.cstr(), tank_options(options))
                     : pfr_reach(mech, spec, r.inlet, basis, ws.pfr(), options.pfr);
     } catch (const std::exception& e) {
       result.warnings.push_back(
@@ -130,7 +138,7 @@ TrainResult run_train(const Case& c, const TrainOptions& options, TrainWorkspace
   TrainResult result = TrainResult::for_case(c);
 
   Stream stream = c.feed;
-  CstrOptions tank = options.cstr;
+  CstrOptions tank = tank_options(options);
   const StageContext ctx{mech, basis, ws.pfr(), ws.cstr(), options.pfr, tank};
   for (const auto& spec : c.train) {
     // A stirred tank starts from its warm starts, if any.

@@ -26,8 +26,11 @@ struct CstrWarmStart {
 };
 
 struct TrainOptions {
-  PfrOptions pfr;    // tubular stages (CVODE tolerances, sizing limit)
-  CstrOptions cstr;  // stirred tanks (Newton, starts); its guesses are not read
+  // Every tubular integration of the train (CVODE tolerances, sizing
+  // limit), those inside stirred tanks (their adiabatic-limit start and
+  // reach) included: cstr.pfr is not read, so one setting holds throughout.
+  PfrOptions pfr;
+  CstrOptions cstr;  // stirred tanks (Newton, starts); its guesses and pfr are not read
   // Warm starts of stirred-tank stages by stage id, passed on as that
   // stage's CstrOptions::guesses. They add Newton starts, so a result may
   // differ from a cold run's in the last digits and may hold a steady
