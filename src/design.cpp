@@ -414,7 +414,7 @@ DesignResult optimize_design(const Case& c, const DesignOptions& options) {
       so.pfr = options.pfr;
       so.equilibrium = options.equilibrium;
       staged_inlet = run_staging(c, so);
-      so.return_to = ReturnTo::Optimal;
+      so.return_to = ReturnTo::MaxRate;
       staged_optimal = run_staging(c, so);
     } catch (const std::exception& e) {
       res.warnings.push_back(fmt::format("the staging policy was not run: {}", e.what()));
