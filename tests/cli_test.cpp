@@ -218,6 +218,56 @@ TEST_CASE("optimize writes the optimum as JSON and a case that run reproduces", 
   fs::remove_all(dir);
 }
 
+TEST_CASE("optimize --margin 15K: the written case runs every peak 15 K inside T_max",
+          "[cli][design]") {
+  // Without a margin the demo's bed 1 ends exactly at T_max = 470 °C.
+  const auto dir = scratch("optimize_margin");
+  const std::string demo = std::string(RXTRAIN_SOURCE_DIR) + "/cases/three-bed-optimize.yaml";
+  const auto r = run_rxtrain("optimize '" + demo + "' --margin 15K --json '" +
+                             (dir / "o.json").string() + "' --write-case '" +
+                             (dir / "opt.yaml").string() + "' --report '" + (dir / "rep").string() +
+                             "'");
+  INFO(r.err);
+  REQUIRE(r.exit_code == 0);
+  CHECK(r.out.find("kept 15 K inside the limits") != std::string::npos);
+  CHECK(r.out.find("B1.T_max = T_max - 15 K") != std::string::npos);
+  const auto j = nlohmann::json::parse(slurp(dir / "o.json"));
+  CHECK(j["margin"] == 15.0);
+  const double T_max = j["limits"]["T_max"].get<double>();
+  const double T_in_min = j["limits"]["T_in_min"].get<double>();
+  CHECK(j["window"]["T_high"].get<double>() == Approx(T_max - 15).epsilon(1e-12));
+  CHECK(j["window"]["T_low"].get<double>() == Approx(T_in_min + 15).epsilon(1e-12));
+  const std::string html = slurp(dir / "rep" / "report.html");
+  CHECK(html.find("kept 15 K inside the limits") != std::string::npos);
+
+  // The written case, run by the train solver (CVODE, not the optimizer's
+  // quadrature): every bed's hottest and coldest point lie at least 15 K
+  // inside the limits (1e-3 K for the two integrations' difference;
+  // measured 1e-5 K).
+  const auto run = run_rxtrain("run '" + (dir / "opt.yaml").string() + "' --json '" +
+                               (dir / "r.json").string() + "'");
+  INFO(run.err);
+  REQUIRE(run.exit_code == 0);
+  const auto rj = nlohmann::json::parse(slurp(dir / "r.json"));
+  int beds = 0;
+  for (const auto& s : rj["stages"]) {
+    if (s["type"] != "pfr") continue;
+    ++beds;
+    INFO(s["id"].get<std::string>());
+    CHECK(s["T_max"].get<double>() <= T_max - 15 + 1e-3);
+    CHECK(s["T_min"].get<double>() >= T_in_min + 15 - 1e-3);
+  }
+  CHECK(beds == 3);
+  CHECK(rj["conversion"].get<double>() == Approx(0.9).margin(1e-6));
+
+  // A negative margin, a margin that is no temperature difference, and one
+  // that leaves no window are input errors.
+  CHECK(run_rxtrain("optimize '" + demo + "' --margin -5K").exit_code == 2);
+  CHECK(run_rxtrain("optimize '" + demo + "' --margin 15bar").exit_code == 2);
+  CHECK(run_rxtrain("optimize '" + demo + "' --margin 100K").exit_code == 2);
+  fs::remove_all(dir);
+}
+
 TEST_CASE("optimize: bad options and unwritable outputs", "[cli][design]") {
   const auto dir = scratch("optimize_errors");
   const std::string demo = std::string(RXTRAIN_SOURCE_DIR) + "/cases/three-bed-optimize.yaml";

@@ -1,4 +1,4 @@
-// rxtrain optimize CASE [--beds N | --max-beds N] [--fixed-feed-T]
+// rxtrain optimize CASE [--beds N | --max-beds N] [--fixed-feed-T] [--margin 15K]
 //                       [--json PATH] [--write-case PATH] [--report DIR]
 #include <fmt/format.h>
 #include <unistd.h>
@@ -20,6 +20,7 @@
 #include "rxtrain/report/atomic_file.hpp"
 #include "rxtrain/report/caution.hpp"
 #include "rxtrain/report/optimize_html.hpp"
+#include "rxtrain/report/optimize_text.hpp"
 #include "rxtrain/report/text_format.hpp"
 #include "rxtrain/units.hpp"
 
@@ -37,6 +38,7 @@ struct OptimizeCommandOptions {
   int beds = 0;      // 0: not given
   int max_beds = 0;  // 0: not given
   bool fixed_feed_T = false;
+  std::string margin;  // a temperature difference, e.g. "15K"; empty: none
 };
 
 // Never a NaN or inf in the output: null instead.
@@ -72,6 +74,8 @@ std::string optimize_json_text(const DesignResult& d) {
   j["reaction"] = d.exothermic ? "exothermic" : "endothermic";
   j["objective"] = d.catalyst_objective ? "catalyst" : "volume";
   j["fixed_feed_T"] = d.fixed_feed_T;
+  j["margin"] = num(d.margin);
+  j["window"] = {{"T_low", num(d.window_low)}, {"T_high", num(d.window_high)}};
   const DesignLayout& l = d.best;
   json beds = json::array();
   for (const auto& b : l.bed)
@@ -93,7 +97,32 @@ std::string optimize_json_text(const DesignResult& d) {
   j["total_volume"] = num(l.total_volume);
   j["total_catalyst"] = num(l.total_catalyst);
   j["total_duty"] = num(l.total_duty);
-  j["active_constraints"] = l.active_constraints;
+  json active = json::array();
+  for (const auto& a : l.active_constraints) active.push_back(active_limit_text(d, l, a));
+  j["active_constraints"] = active;
+  auto exempt = [&](const std::vector<ActiveLimit>& v) {
+    json e = json::array();
+    for (const auto& a : v) e.push_back(active_limit_text(d, l, a));
+    return e;
+  };
+  json interstage = json::array();
+  for (const auto& c : l.interstage)
+    interstage.push_back({{"exchanger", l.coolers[c.after].id},
+                          {"after", l.bed[c.after].id},
+                          {"X", num(c.X)},
+                          {"rate_before", num(c.rate_before)},
+                          {"rate_after", num(c.rate_after)},
+                          {"residual", num(c.residual)},
+                          {"state", condition_state_name(c.state)},
+                          {"exempt_by", exempt(c.exempt_by)}});
+  json inlets = json::array();
+  for (const auto& c : l.inlets)
+    inlets.push_back({{"bed", l.bed[c.bed].id},
+                      {"dsize_dT", num(c.dsize_dT)},
+                      {"shift", num(c.shift)},
+                      {"state", condition_state_name(c.state)},
+                      {"exempt_by", exempt(c.exempt_by)}});
+  j["conditions"] = {{"interstage", interstage}, {"inlets", inlets}};
   j["checked_conversion"] = num(l.checked_conversion);
   j["optimizer"] = {
       {"evaluations", l.evaluations}, {"starts", l.starts}, {"polish_rounds", l.polish_rounds}};
@@ -157,11 +186,11 @@ std::string gain_line(const DesignResult& d, const std::string& what, double oth
 std::string optimize_table(const DesignResult& d, const DesignOptions& o) {
   std::string out = d.title + "\n";
   out += fmt::format(
-      "optimize: least total {} for an overall conversion of {} X = {} within T_in_min {} °C "
-      "and T_max {} °C; feed at {} °C{}\n",
+      "optimize: least total {} for an overall conversion of {} X = {} with every bed "
+      "temperature {}; feed at {} °C{}\n",
       d.catalyst_objective ? "catalyst" : "bed volume (per-volume rate)", d.key,
-      fixed_text(d.target, 4), celsius_text(*d.limits.T_in_min), celsius_text(*d.limits.T_max),
-      celsius_text(d.feed_T), d.fixed_feed_T ? " (bed 1 kept at the feed temperature)" : "");
+      fixed_text(d.target, 4), window_text(d), celsius_text(d.feed_T),
+      d.fixed_feed_T ? " (bed 1 kept at the feed temperature)" : "");
   out += fmt::format(
       "key reaction: {}; method: SLSQP (finite-difference gradients) from {} "
       "starts, polished until the inlet temperatures settle\n\n",
@@ -208,9 +237,15 @@ std::string optimize_table(const DesignResult& d, const DesignOptions& o) {
                         "window)")
           : [&] {
               std::string s;
-              for (const auto& a : l.active_constraints) s += (s.empty() ? "" : ", ") + a;
+              for (const auto& a : l.active_constraints)
+                s += (s.empty() ? "" : ", ") + active_limit_text(d, l, a);
               return s;
             }());
+  if (l.bed.size() > 1) {
+    out += "  optimality conditions (Konoki 1956; Aris 1961), from the computed residuals:\n";
+    for (const auto& c : l.interstage) out += "    " + interstage_text(d, l, c) + "\n";
+    for (const auto& c : l.inlets) out += "    " + inlet_text(d, l, c) + "\n";
+  }
   out += fmt::format("  check: run with these beds, the train reaches X = {} (target {})\n\n",
                      fixed_text(l.checked_conversion, 6), fixed_text(d.target, 4));
 
@@ -310,6 +345,19 @@ int run_optimize_command(const OptimizeCommandOptions& o) {
   if (o.beds > 0) options.beds = o.beds;
   if (o.max_beds > 0) options.max_beds = o.max_beds;
   options.fixed_feed_T = o.fixed_feed_T;
+  if (!o.margin.empty()) {
+    try {
+      options.margin =
+          units.difference_to_si(o.margin, SiUnit::of("K", "a temperature difference"));
+    } catch (const UnitError& e) {
+      throw UnitError(fmt::format("--margin: {}", e.what()));
+    }
+    if (!(options.margin >= 0))
+      throw UnitError(
+          fmt::format("--margin: a margin inside the limits cannot be negative, got "
+                      "\"{}\"",
+                      o.margin));
+  }
   // The objective's unit: kg for per-catalyst rates, else m3.
   bool per_catalyst = false;
   for (const auto& rx : c.mechanism.reactions())
@@ -367,6 +415,10 @@ Action setup_optimize(CLI::App& app) {
       ->excludes(beds);
   app.add_flag("--fixed-feed-T", o->fixed_feed_T,
                "Keep bed 1's inlet at the feed temperature (no feed conditioning)");
+  app.add_option("--margin", o->margin,
+                 "Keep every bed temperature this far inside the catalyst's limits: within "
+                 "[T_in_min + margin, T_max - margin] (a temperature difference, e.g. 15K; "
+                 "default 0)");
   app.add_option("--json", o->json_path, "Write the optimum as JSON (SI units) to PATH");
   app.add_option("--report", o->report_dir,
                  "Write report.html (self-contained: the optimum over the equilibrium curve, "
