@@ -218,6 +218,40 @@ TEST_CASE("optimize writes the optimum as JSON and a case that run reproduces", 
   fs::remove_all(dir);
 }
 
+TEST_CASE("run: an approach temperature beyond the window is left out, and the table says why",
+          "[cli]") {
+  // The isomerization demo's R1 ends where K(T) is nearly flat: the
+  // temperature at which its X_out is equilibrium lies 186.79 K above its
+  // outlet (R2's, 52.84 K, lies within the default 100 K window).
+  const auto dir = scratch("approach_window");
+  const std::string demo = std::string(RXTRAIN_SOURCE_DIR) + "/cases/isomerization-two-bed.yaml";
+  const auto r = run_rxtrain("run '" + demo + "' --json '" + (dir / "r.json").string() +
+                             "' --report '" + (dir / "rep").string() + "'");
+  INFO(r.err);
+  REQUIRE(r.exit_code == 0);
+  CHECK(r.out.find("186.79") == std::string::npos);
+  CHECK(r.out.find("52.84") != std::string::npos);
+  CHECK(r.out.find("(a) R1: the temperature at which X_out would be equilibrium lies more than "
+                   "100 K from T_out") != std::string::npos);
+  const std::string html = slurp(dir / "rep" / "report.html");
+  CHECK(html.find("186.79") == std::string::npos);
+  CHECK(html.find("(a) R1: the temperature") != std::string::npos);
+  // JSON keeps the number (SI), flagged.
+  const auto j = nlohmann::json::parse(slurp(dir / "r.json"));
+  const auto& e1 = j["stages"][0]["equilibrium"];
+  CHECK(e1["approach_T"].get<double>() == Approx(186.79).margin(0.01));
+  CHECK(e1["approach_T_beyond_window"] == true);
+  CHECK(e1["approach_T_window"] == 100.0);
+  CHECK(j["stages"][2]["equilibrium"]["approach_T_beyond_window"] == false);
+  // A wider window shows it.
+  const auto wide = run_rxtrain("run '" + demo + "' --approach-window 200K");
+  REQUIRE(wide.exit_code == 0);
+  CHECK(wide.out.find("186.79") != std::string::npos);
+  CHECK(wide.out.find("(a)") == std::string::npos);
+  CHECK(run_rxtrain("run '" + demo + "' --approach-window 0K").exit_code == 2);
+  fs::remove_all(dir);
+}
+
 TEST_CASE("optimize --margin 15K: the written case runs every peak 15 K inside T_max",
           "[cli][design]") {
   // Without a margin the demo's bed 1 ends exactly at T_max = 470 °C.

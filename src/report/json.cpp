@@ -78,7 +78,9 @@ json stage(const std::vector<std::string>& ids, const StageResult& r) {
                         {"T_ad_eq", number(e.T_ad_eq)},
                         {"X_eq_out", number(e.X_eq_out)},
                         {"approach_X", number(e.approach_X)},
-                        {"approach_T", number(e.approach_T)}};
+                        {"approach_T", number(e.approach_T)},
+                        {"approach_T_beyond_window", e.approach_T_beyond_window},
+                        {"approach_T_window", number(e.approach_T_window)}};
   } else {
     s["equilibrium"] = nullptr;
   }

@@ -6,6 +6,7 @@
 #include <optional>
 #include <vector>
 
+#include "rxtrain/report/approach_text.hpp"
 #include "rxtrain/report/caution.hpp"
 #include "rxtrain/report/text_format.hpp"
 
@@ -35,8 +36,7 @@ std::string format_stage_table(const TrainResult& result) {
                     sig_text(r.space_time), celsius_text(r.inlet.T), celsius_text(r.outlet.T),
                     celsius_text(r.T_max), fixed_text(r.conversion, 4),
                     r.equilibrium ? fixed_text(r.equilibrium->approach_X, 4) : "-",
-                    r.equilibrium ? fixed_text(r.equilibrium->approach_T, 2) : "-",
-                    fixed_text(r.duty / 1e3, 2)});
+                    approach_T_cell(r), fixed_text(r.duty / 1e3, 2)});
   }
   out += render_columns(rows, 3);
   if (any_sized) out += "* volume found from the stage's target conversion\n";
@@ -51,6 +51,7 @@ std::string format_stage_table(const TrainResult& result) {
         out += fmt::format("  {}: the most this stage can reach at any size is X = {} at {} °C\n",
                            r.id, fixed_text(r.equilibrium->X_ad_eq, 4),
                            celsius_text(r.equilibrium->T_ad_eq));
+    if (const auto note = approach_T_footnote(result); !note.empty()) out += note + "\n";
   }
 
   // Space velocities only where they apply (GHSV at 0 °C, 1 atm).
