@@ -337,6 +337,32 @@ AsWrittenDesign as_written(const Setup& s, const DesignOptions& o) {
   return a;
 }
 
+// The limits narrowed by the margin, and their names in messages.
+struct Window {
+  double T_lo = 0, T_hi = 0;
+  std::string lo_label, hi_label;
+};
+
+Window window_of(const Case& c, const DesignOptions& o) {
+  const double m = o.margin;
+  Window w{*c.limits.T_in_min + m, *c.limits.T_max - m,
+           m > 0 ? fmt::format("T_in_min + {:g} K", m) : "T_in_min",
+           m > 0 ? fmt::format("T_max - {:g} K", m) : "T_max"};
+  if (!(w.T_lo < w.T_hi))
+    throw InputError(c.limits.where,
+                     fmt::format("--margin {:g} K leaves no window: {} = {} is not below {} = {} "
+                                 "(the limits are {:g} K apart; the margin is kept on both sides)",
+                                 m, w.lo_label, celsius(w.T_lo), w.hi_label, celsius(w.T_hi),
+                                 *c.limits.T_max - *c.limits.T_in_min));
+  if (o.fixed_feed_T && (c.feed.T < w.T_lo || c.feed.T > w.T_hi))
+    throw InputError(c.limits.where,
+                     fmt::format("--fixed-feed-T: the feed at {} lies outside the window "
+                                 "[{}, {}] = [{}, {}] that bed 1's inlet must keep",
+                                 celsius(c.feed.T), w.lo_label, w.hi_label, celsius(w.T_lo),
+                                 celsius(w.T_hi)));
+  return w;
+}
+
 StagingDesign staging_of(const StagingResult& r) {
   StagingDesign d;
   d.reached = r.target_reached;
@@ -447,23 +473,8 @@ DesignResult optimize_design(const Case& c, const DesignOptions& options) {
                                  "the first reactor's bulk_density; give it one (e.g. "
                                  "bulk_density: 750 kg/m3)",
                                  mech.reactions()[j].id));
-  const double m = options.margin;
-  const std::string lo_label = m > 0 ? fmt::format("T_in_min + {:g} K", m) : "T_in_min";
-  const std::string hi_label = m > 0 ? fmt::format("T_max - {:g} K", m) : "T_max";
-  const double T_lo = *c.limits.T_in_min + m, T_hi = *c.limits.T_max - m;
-  if (!(T_lo < T_hi))
-    throw InputError(c.limits.where,
-                     fmt::format("--margin {:g} K leaves no window: {} = {} is not below {} = {} "
-                                 "(the limits are {:g} K apart; the margin is kept on both sides)",
-                                 m, lo_label, celsius(T_lo), hi_label, celsius(T_hi),
-                                 *c.limits.T_max - *c.limits.T_in_min));
-  if (options.fixed_feed_T && (c.feed.T < T_lo || c.feed.T > T_hi))
-    throw InputError(
-        c.limits.where,
-        fmt::format("--fixed-feed-T: the feed at {} lies outside the window "
-                    "[{}, {}] = [{}, {}] that bed 1's inlet must keep",
-                    celsius(c.feed.T), lo_label, hi_label, celsius(T_lo), celsius(T_hi)));
-
+  const Window w = window_of(c, options);
+  const double T_lo = w.T_lo, T_hi = w.T_hi;
   Setup s{c,
           mech,
           c.conversion_basis(),
@@ -475,9 +486,9 @@ DesignResult optimize_design(const Case& c, const DesignOptions& options) {
           catalyst,
           first ? first->bulk_density : std::nullopt,
           Ids{},
-          m,
-          hi_label,
-          lo_label};
+          options.margin,
+          w.hi_label,
+          w.lo_label};
   for (const auto& sp : mech.species()) s.ids.taken.insert(sp.id);
   for (const auto& rx : mech.reactions()) s.ids.taken.insert(rx.id);
 
@@ -491,7 +502,7 @@ DesignResult optimize_design(const Case& c, const DesignOptions& options) {
   res.feed_T = c.feed.T;
   res.bulk_density = s.bulk_density;
   res.fixed_feed_T = options.fixed_feed_T;
-  res.margin = m;
+  res.margin = options.margin;
   res.window_low = T_lo;
   res.window_high = T_hi;
   res.warnings = c.warnings;
@@ -566,7 +577,8 @@ DesignResult optimize_design(const Case& c, const DesignOptions& options) {
                     "[{}, {}]: {}",
                     counts.size() == 1 ? fmt::format("{} adiabatic beds", counts.front())
                                        : fmt::format("1 to {} adiabatic beds", counts.back()),
-                    s.target, lo_label, hi_label, celsius(s.T_lo), celsius(s.T_hi), last_why));
+                    s.target, s.lo_label, s.hi_label, celsius(s.T_lo), celsius(s.T_hi),
+                    last_why));
   res.best = *best;
   if (options.max_beds) res.by_bed_count = layouts;
 
