@@ -345,7 +345,7 @@ TEST_CASE("a bed held at T_max: the conditions reported are the ones the residua
   CHECK_THAT(interstage_text(d, l, l.interstage[1]), Catch::Contains("equal rates"));
 }
 
-TEST_CASE("--margin keeps every bed temperature that far inside the limits", "[design]") {
+TEST_CASE("a margin keeps every bed temperature that far inside the limits", "[design]") {
   const AbSystem s;
   // T_max binds without a margin (the free optimum's bed 1 ends near
   // 690 K, measured); with it, T_in_min + 15 K holds up the last inlet
