@@ -585,6 +585,41 @@ TEST_CASE("approach to equilibrium at hand-made outlets", "[equilibrium]") {
 
 // ---- 7. maximum-rate locus --------------------------------------------------
 
+TEST_CASE("an approach temperature beyond the window is flagged", "[equilibrium]") {
+  // A nearly flat K (invented: dH = -8 kJ/mol, K = 2 at 500 K): at X_out =
+  // 0.4 equilibrium lies at T_eq = 1165 K by the inverse of the integrated
+  // van 't Hoff equation, 665 K above the 500 K outlet; the steep system
+  // above (dH = -40 kJ/mol) is used for one within the window.
+  const double dH = -8e3, K_ref = 2.0, T_ref = 500.0;
+  std::vector<Species> sp{constant_cp_species("A", 50), constant_cp_species("B", 50),
+                          constant_cp_species("I", 30)};
+  const Mechanism flat(Phase::Gas, sp, {vant_hoff("R1", {-1, 1, 0}, K_ref, T_ref, dH)});
+  const ConversionBasis basis{0, 1.0};
+  const Stream in{480.0, 2e5, {1.0, 0.0, 2.0}};
+  const Stream out{500.0, 2e5, {0.6, 0.4, 2.0}};  // X = 0.4
+  const double T_eq = vant_hoff_T(K_ref, T_ref, dH, 0.4 / 0.6);
+  const auto rec = equilibrium_record(flat, in, out, HeatMode::Adiabatic, basis);
+  REQUIRE(rec.has_value());
+  REQUIRE(rec->approach_T.has_value());
+  CHECK(*rec->approach_T == Approx(T_eq - 500.0).epsilon(1e-8));
+  CHECK(*rec->approach_T > 100.0);
+  CHECK(rec->approach_T_beyond_window);  // default window 100 K
+  CHECK(rec->approach_T_window == 100.0);
+  EquilibriumOptions wide;
+  wide.approach_T_window = 1000.0;
+  const auto rec_wide = equilibrium_record(flat, in, out, HeatMode::Adiabatic, basis, wide);
+  CHECK_FALSE(rec_wide->approach_T_beyond_window);
+
+  // The steep system near equilibrium: X_out = 0.9 at 10 K below T_eq(0.9).
+  const double T_near = vant_hoff_T(kKref, kTref, kDH, 0.9 / 0.1) - 10.0;
+  const Stream in2{T_near - 50.0, 2e5, {1.0, 0.0, 2.0}};
+  const Stream out2{T_near, 2e5, {0.1, 0.9, 2.0}};
+  const auto near = equilibrium_record(ab_mechanism(), in2, out2, HeatMode::Adiabatic, basis);
+  REQUIRE(near->approach_T.has_value());
+  CHECK(*near->approach_T == Approx(10.0).epsilon(1e-6));
+  CHECK_FALSE(near->approach_T_beyond_window);
+}
+
 TEST_CASE("maximum-rate temperature of first-order A <=> B matches the closed form",
           "[equilibrium]") {
   // Invented: k1 = A exp(-Ea/(R T)) per Pa (partial-pressure driving, so

@@ -577,6 +577,19 @@ double UnitParser::to_si(std::string_view text, const SiUnit& expected,
   return std::get<double>(result);
 }
 
+double UnitParser::difference_to_si(std::string_view text, const SiUnit& expected,
+                                    const UnitOptions& options) const {
+  const double v = to_si(text, expected, options);
+  // The unit alone, as to_si split it off: its offset cancels in v - zero.
+  std::string_view rest = trim(text);
+  if (!rest.empty() && rest.front() == '+') rest.remove_prefix(1);
+  double number = 0;
+  const auto res = std::from_chars(rest.data(), rest.data() + rest.size(), number);
+  const auto unit_text = trim(rest.substr(static_cast<std::size_t>(res.ptr - rest.data())));
+  if (unit_text.empty()) return v;
+  return v - to_si("0 " + std::string(unit_text), expected, options);
+}
+
 bool UnitParser::is_convertible(std::string_view unit, const SiUnit& expected) const {
   const std::string_view u = trim(unit);
   if (u.empty()) return false;

@@ -1,4 +1,4 @@
-// rxtrain optimize CASE [--beds N | --max-beds N] [--fixed-feed-T]
+// rxtrain optimize CASE [--beds N | --max-beds N] [--fixed-feed-T] [--margin 15K]
 //                       [--limit-margin DT] [--json PATH] [--write-case PATH] [--report DIR]
 #include <fmt/format.h>
 #include <unistd.h>
@@ -24,6 +24,7 @@
 #include "rxtrain/studies/write_case.hpp"
 #include "rxtrain/report/json.hpp"
 #include "rxtrain/report/optimize_html.hpp"
+#include "rxtrain/report/optimize_text.hpp"
 #include "rxtrain/report/text_format.hpp"
 #include "rxtrain/studies/optimize.hpp"
 #include "rxtrain/studies/write_case.hpp"
@@ -43,6 +44,7 @@ struct OptimizeCommandOptions {
   int max_beds = 0;  // 0: not given
   bool fixed_feed_T = false;
   std::string limit_margin;
+  std::string margin;  // a temperature difference, e.g. "15K"; empty: none
 };
 
 // Never a NaN or inf in the output: null instead.
@@ -80,6 +82,8 @@ std::string optimize_json_text(const DesignResult& d) {
   j["reaction"] = d.exothermic ? "exothermic" : "endothermic";
   j["objective"] = d.catalyst_objective ? "catalyst" : "volume";
   j["fixed_feed_T"] = d.fixed_feed_T;
+  j["margin"] = json_number(d.margin);
+  j["window"] = {{"T_low", json_number(d.window_low)}, {"T_high", json_number(d.window_high)}};
   const DesignLayout& l = d.best;
   json beds = json::array();
   for (const auto& b : l.bed)
@@ -101,7 +105,32 @@ std::string optimize_json_text(const DesignResult& d) {
   j["total_volume"] = json_number(l.total_volume);
   j["total_catalyst"] = json_number(l.total_catalyst);
   j["total_duty"] = json_number(l.total_duty);
-  j["active_constraints"] = l.active_constraints;
+  json active = json::array();
+  for (const auto& a : l.active_constraints) active.push_back(active_limit_text(d, l, a));
+  j["active_constraints"] = active;
+  auto exempt = [&](const std::vector<ActiveLimit>& v) {
+    json e = json::array();
+    for (const auto& a : v) e.push_back(active_limit_text(d, l, a));
+    return e;
+  };
+  json interstage = json::array();
+  for (const auto& c : l.interstage)
+    interstage.push_back({{"exchanger", l.coolers[c.after].id},
+                          {"after", l.bed[c.after].id},
+                          {"X", json_number(c.X)},
+                          {"rate_before", json_number(c.rate_before)},
+                          {"rate_after", json_number(c.rate_after)},
+                          {"residual", json_number(c.residual)},
+                          {"state", condition_state_name(c.state)},
+                          {"exempt_by", exempt(c.exempt_by)}});
+  json inlets = json::array();
+  for (const auto& c : l.inlets)
+    inlets.push_back({{"bed", l.bed[c.bed].id},
+                      {"dsize_dT", json_number(c.dsize_dT)},
+                      {"shift", json_number(c.shift)},
+                      {"state", condition_state_name(c.state)},
+                      {"exempt_by", exempt(c.exempt_by)}});
+  j["conditions"] = {{"interstage", interstage}, {"inlets", inlets}};
   j["checked_conversion"] = json_number(l.checked_conversion);
   j["optimizer"] = {
       {"evaluations", l.evaluations}, {"starts", l.starts}, {"polish_rounds", l.polish_rounds}};
@@ -168,11 +197,11 @@ std::string gain_line(const DesignResult& d, const std::string& what, double oth
 std::string optimize_table(const DesignResult& d, const DesignOptions& o) {
   std::string out = d.title + "\n";
   out += fmt::format(
-      "optimize: least total {} for an overall conversion of {} X = {} within T_in_min {} °C "
-      "and T_max {} °C; feed at {} °C{}\n",
+      "optimize: least total {} for an overall conversion of {} X = {} with every bed "
+      "temperature {}; feed at {} °C{}\n",
       d.catalyst_objective ? "catalyst" : "bed volume (per-volume rate)", d.key,
-      fixed_text(d.target, 4), celsius_text(*d.limits.T_in_min), celsius_text(*d.limits.T_max),
-      celsius_text(d.feed_T), d.fixed_feed_T ? " (bed 1 kept at the feed temperature)" : "");
+      fixed_text(d.target, 4), window_text(d), celsius_text(d.feed_T),
+      d.fixed_feed_T ? " (bed 1 kept at the feed temperature)" : "");
   out += fmt::format(
       "key reaction: {}; method: SLSQP (finite-difference gradients) from {} "
       "starts, polished until the inlet temperatures settle\n\n",
@@ -219,9 +248,15 @@ std::string optimize_table(const DesignResult& d, const DesignOptions& o) {
                         "window)")
           : [&] {
               std::string s;
-              for (const auto& a : l.active_constraints) s += (s.empty() ? "" : ", ") + a;
+              for (const auto& a : l.active_constraints)
+                s += (s.empty() ? "" : ", ") + active_limit_text(d, l, a);
               return s;
             }());
+  if (l.bed.size() > 1) {
+    out += "  optimality conditions (Konoki 1956; Aris 1961), from the computed residuals:\n";
+    for (const auto& c : l.interstage) out += "    " + interstage_text(d, l, c) + "\n";
+    for (const auto& c : l.inlets) out += "    " + inlet_text(d, l, c) + "\n";
+  }
   out += fmt::format("  check: run with these beds, the train reaches X = {} (target {})\n\n",
                      fixed_text(l.checked_conversion, 6), fixed_text(d.target, 4));
 
@@ -322,6 +357,19 @@ int run_optimize_command(const OptimizeCommandOptions& o) {
   if (o.max_beds > 0) options.max_beds = o.max_beds;
   options.fixed_feed_T = o.fixed_feed_T;
   options.limit_check.margin = parse_limit_margin(o.limit_margin, units);
+  if (!o.margin.empty()) {
+    try {
+      options.margin =
+          units.difference_to_si(o.margin, SiUnit::of("K", "a temperature difference"));
+    } catch (const UnitError& e) {
+      throw UnitError(fmt::format("--margin: {}", e.what()));
+    }
+    if (!(options.margin >= 0))
+      throw UnitError(
+          fmt::format("--margin: a margin inside the limits cannot be negative, got "
+                      "\"{}\"",
+                      o.margin));
+  }
   // The objective's unit: kg for per-catalyst rates, else m3.
   bool per_catalyst = false;
   for (const auto& rx : c.mechanism.reactions())
@@ -380,6 +428,10 @@ Action setup_optimize(CLI::App& app) {
   app.add_flag("--fixed-feed-T", o->fixed_feed_T,
                "Keep bed 1's inlet at the feed temperature (no feed conditioning)");
   add_limit_margin_option(app, o->limit_margin);
+  app.add_option("--margin", o->margin,
+                 "Keep every bed temperature this far inside the catalyst's limits: within "
+                 "[T_in_min + margin, T_max - margin] (a temperature difference, e.g. 15K; "
+                 "default 0)");
   app.add_option("--json", o->json_path, "Write the optimum as JSON (SI units) to PATH");
   app.add_option("--report", o->report_dir,
                  "Write report.html (self-contained: the optimum over the equilibrium curve, "

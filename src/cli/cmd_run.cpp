@@ -1,4 +1,5 @@
 // rxtrain run CASE [--json PATH] [--csv DIR] [--report DIR] [--rtol R] [--limit-margin DT]
+//                 [--approach-window 100K]
 #include <cstdio>
 #include <filesystem>
 #include <memory>
@@ -30,6 +31,7 @@ struct RunOptions {
   std::string report_dir;
   double rtol = CvodeOptions{}.rtol;
   std::string limit_margin;
+  std::string approach_window;  // a temperature difference; empty: the default
 };
 
 int run(const RunOptions& o) {
@@ -38,6 +40,18 @@ int run(const RunOptions& o) {
   TrainOptions options;
   options.pfr.cvode.rtol = o.rtol;
   options.limit_check.margin = parse_limit_margin(o.limit_margin, units);
+  if (!o.approach_window.empty()) {
+    double w = 0;
+    try {
+      w = units.difference_to_si(o.approach_window, SiUnit::of("K", "a temperature difference"));
+    } catch (const UnitError& e) {
+      throw UnitError("--approach-window: " + std::string(e.what()));
+    }
+    if (!(w > 0))
+      throw UnitError("--approach-window: the window must be above zero, got \"" +
+                      o.approach_window + "\"");
+    options.equilibrium.approach_T_window = w;
+  }
   TrainResult result = run_train(c, options);
   for (auto& w : design_warnings(c, result)) result.warnings.push_back(std::move(w));
   check_finite(result);  // no NaN or Inf may reach an output
@@ -75,6 +89,10 @@ Action setup_run(CLI::App& app) {
   app.add_option("--report", o->report_dir,
                  "Write report.html (self-contained, with figures) and the figures as SVG into "
                  "folder DIR");
+  app.add_option("--approach-window", o->approach_window,
+                 "Show the approach temperature T_eq - T only within this window (a temperature "
+                 "difference, default 100K): beyond it K(T) is too flat for the figure to mean "
+                 "much, and the cell says why it is empty");
   app.add_option("--rtol", o->rtol, "Relative tolerance of the ODE integrator")
       ->check(CLI::Range(1e-14, 1e-3))
       ->capture_default_str();

@@ -1,8 +1,9 @@
-// rxtrain staging CASE [--approach F] [--return-to inlet|optimal]
-//                      [--max-beds N] [--limit-margin DT] [--json PATH] [--report DIR]
+// rxtrain staging CASE [--approach F] [--return-to inlet|max-rate]
+//                      [--min-return F] [--max-beds N] [--limit-margin DT] [--json PATH]
+//                      [--report DIR]
+#include <cctype>
 #include <cstdio>
 #include <filesystem>
-#include <map>
 #include <memory>
 #include <string>
 
@@ -70,14 +71,46 @@ Action setup_staging(CLI::App& app) {
                                          },
                                          "open interval", ""))
       ->capture_default_str();
-  const std::map<std::string, ReturnTo> returns{{"inlet", ReturnTo::Inlet},
-                                                {"optimal", ReturnTo::Optimal}};
-  app.add_option("--return-to", o->staging.return_to,
-                 "Temperature the exchangers between beds return the stream to: inlet (bed 1's "
-                 "inlet temperature) or optimal (the maximum-rate temperature at that "
-                 "conversion, within the case's limits)")
-      ->transform(CLI::CheckedTransformer(returns, CLI::ignore_case))
+  // "optimal" is the value's old name, kept for a release: it read as
+  // `optimize`'s optimum, which this greedy policy is not.
+  app.add_option_function<std::string>(
+         "--return-to",
+         [o](const std::string& v) {
+           std::string s = v;
+           for (auto& ch : s) ch = static_cast<char>(std::tolower(static_cast<unsigned char>(ch)));
+           if (s == "optimal") {
+             std::fputs(
+                 "note: --return-to optimal was renamed --return-to max-rate (the greedy "
+                 "maximum-rate policy; `rxtrain optimize` finds the least-catalyst layout)\n",
+                 stderr);
+             s = "max-rate";
+           }
+           o->staging.return_to = s == "inlet" ? ReturnTo::Inlet : ReturnTo::MaxRate;
+         },
+         "Temperature the exchangers between beds return the stream to: inlet (bed 1's "
+         "inlet temperature) or max-rate (the maximum-rate temperature at that conversion, "
+         "within the case's limits, with the --min-return floor)")
+      ->check(CLI::Validator(
+          [](const std::string& v) -> std::string {
+            std::string s = v;
+            for (auto& ch : s) ch = static_cast<char>(std::tolower(static_cast<unsigned char>(ch)));
+            return s == "inlet" || s == "max-rate" || s == "optimal"
+                       ? ""
+                       : "must be inlet or max-rate, got '" + v + "'";
+          },
+          "inlet|max-rate", ""))
       ->default_str("inlet");
+  app.add_option("--min-return", o->staging.min_return,
+                 "With --return-to max-rate: the least fraction of a bed's temperature rise "
+                 "(fall, endothermic) the exchanger after it takes back; where the return to "
+                 "the maximum-rate temperature would take less, the bed runs on (common "
+                 "practice, no source)")
+      ->check(CLI::Range(0.0, 1.0) & CLI::Validator(
+                                         [](const std::string& s) -> std::string {
+                                           return std::stod(s) < 1 ? "" : "must be below 1";
+                                         },
+                                         "", "below one"))
+      ->capture_default_str();
   app.add_option("--max-beds", o->staging.max_beds,
                  "Most beds tried before the target is called out of reach")
       ->check(CLI::Range(1, 100))

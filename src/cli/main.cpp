@@ -54,13 +54,15 @@ constexpr CommandEntry kCommands[] = {
 // Options shown with a word of their own in --help instead of the library's
 // TEXT: paths (FILE, DIR) and temperature differences. An entry whose
 // option a command does not have is skipped.
-struct PathOption {
+struct TypeWord {
   const char* option;
   const char* kind;
 };
-constexpr PathOption kPathOptions[] = {
+constexpr TypeWord kTypeWords[] = {
     {"--limit-margin", "KELVIN"},
     {"--margin", "KELVIN"},
+    {"--approach-window", "KELVIN"},
+    {"--return-to", "inlet|max-rate"},
     {"case", "FILE"},
     {"out", "FILE"},
     {"shards", "FILE"},
@@ -168,7 +170,7 @@ int main(int argc, char** argv) {
   for (const auto& c : kCommands) {
     CLI::App* sub = app.add_subcommand(c.name, c.help);
     actions.emplace_back(sub, c.setup(*sub));
-    for (const auto& p : kPathOptions)
+    for (const auto& p : kTypeWords)
       if (CLI::Option* o = sub->get_option_no_throw(p.option)) o->type_name(p.kind);
     // run --csv writes a folder, sweep --csv a file.
     if (CLI::Option* o = sub->get_option_no_throw("--csv"))

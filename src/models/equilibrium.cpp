@@ -558,6 +558,7 @@ std::string EquilibriumOptions::validate() const {
   if (!(T_max > T_min) || !std::isfinite(T_max)) return "T_max must be finite and > T_min";
   if (!(T_tolerance > 0) || !(T_tolerance < 1)) return "T_tolerance must lie in (0, 1)";
   if (!(bracket_step > 0) || !std::isfinite(bracket_step)) return "bracket_step must be > 0 K";
+  if (!(approach_T_window > 0)) return "approach_T_window must be > 0 K";
   if (newton.max_iterations < 1) return "newton.max_iterations must be >= 1";
   if (!(newton.residual_tolerance > 0)) return "newton.residual_tolerance must be > 0";
   return {};
@@ -818,6 +819,9 @@ std::optional<EquilibriumRecord> equilibrium_record(const Mechanism& mech, const
   rec.approach_X = rec.X_eq_out - X_out;
   const auto T_eq = equilibrium_temperature(mech, inlet, X_out, basis, fixed, outlet.T, options);
   if (T_eq) rec.approach_T = *T_eq - outlet.T;
+  rec.approach_T_window = options.approach_T_window;
+  rec.approach_T_beyond_window =
+      rec.approach_T && std::abs(*rec.approach_T) > options.approach_T_window;
   return rec;
 }
 

@@ -5,6 +5,7 @@
 #include <algorithm>
 #include <cmath>
 
+#include "rxtrain/report/approach_text.hpp"
 #include "rxtrain/report/html_page.hpp"
 #include "rxtrain/report/text_format.hpp"
 
@@ -32,13 +33,14 @@ std::string stage_table(const TrainResult& r) {
          temperature_cell(s.inlet.T) + temperature_cell(s.outlet.T) + temperature_cell(s.T_max) +
          cell(fixed_text(s.conversion, 4), true) +
          cell(s.equilibrium ? fixed_text(s.equilibrium->approach_X, 4) : "-", true) +
-         cell(s.equilibrium ? fixed_text(s.equilibrium->approach_T, 2) : "-", true) +
-         cell(fixed_text(s.duty / 1e3, 2), true) + "</tr>\n";
+         cell(approach_T_cell(s), true) + cell(fixed_text(s.duty / 1e3, 2), true) + "</tr>\n";
   }
   h += "</table>\n";
   bool sized = false;
   for (const auto& s : r.stages) sized = sized || s.sized;
   if (sized) h += "<p>* volume found from the stage's target conversion.</p>\n";
+  if (const auto note = approach_T_footnote(r); !note.empty())
+    h += "<p>" + xml_escape(note) + ".</p>\n";
   return h;
 }
 

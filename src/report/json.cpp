@@ -79,7 +79,9 @@ json stage(const std::vector<std::string>& ids, const StageResult& r) {
                         {"T_ad_eq", json_number(e.T_ad_eq)},
                         {"X_eq_out", json_number(e.X_eq_out)},
                         {"approach_X", json_number(e.approach_X)},
-                        {"approach_T", json_number(e.approach_T)}};
+                        {"approach_T", json_number(e.approach_T)},
+                        {"approach_T_beyond_window", e.approach_T_beyond_window},
+                        {"approach_T_window", json_number(e.approach_T_window)}};
   } else {
     s["equilibrium"] = nullptr;
   }

@@ -5,6 +5,7 @@
 #include <cmath>
 #include <limits>
 
+#include "rxtrain/report/optimize_text.hpp"
 #include "rxtrain/report/text_format.hpp"
 
 namespace rxtrain {
@@ -125,11 +126,12 @@ std::vector<Figure> optimize_figures(const Case& c, const DesignResult& d,
   const TrainResult r = run_train(optimum, o);
   Figure tx = tx_diagram(optimum, r, "The optimum on the temperature–conversion diagram");
   tx.name = "tx-optimum";
+  // Which conditions hold is read from the computed residuals: a bed held
+  // by a limit breaks the equal-rate rule at the exchanger after it.
   tx.caption = fmt::format(
       "The optimal {} beds and the exchangers between them (constant-conversion steps), over "
-      "the equilibrium curve and the maximum-rate locus. At the optimum each exchanger ends "
-      "where the rate equals the rate at the end of the bed before it.",
-      d.best.beds);
+      "the equilibrium curve and the maximum-rate locus. {}",
+      d.best.beds, interstage_summary(d, d.best));
   out.push_back(std::move(tx));
   for (auto& f : profile_figures(r)) {
     f.name += "-optimum";
@@ -181,12 +183,12 @@ std::string optimize_report_html(const Case& c, const DesignResult& d,
   std::string h = html::page_begin(d.title + " — optimal beds", p);
   h += "<h2 id=\"summary\">Optimum</h2>\n";
   h += fmt::format(
-      "<p>Least total {} for an overall conversion of {} X = {} with every temperature within "
-      "T_in_min {} °C and T_max {} °C; feed at {} °C{}. Key reaction {}. Method: SLSQP with "
+      "<p>Least total {} for an overall conversion of {} X = {} with every bed temperature "
+      "{}; feed at {} °C{}. Key reaction {}. Method: SLSQP with "
       "finite-difference gradients from {} starts, polished until the inlet temperatures "
       "settle.</p>\n",
       d.catalyst_objective ? "catalyst" : "bed volume", xml_escape(d.key), fixed_text(d.target, 4),
-      celsius_text(*d.limits.T_in_min), celsius_text(*d.limits.T_max), celsius_text(d.feed_T),
+      xml_escape(window_text(d)), celsius_text(d.feed_T),
       d.fixed_feed_T ? " (bed 1 kept at the feed temperature)" : "",
       d.exothermic ? "exothermic" : "endothermic", l.starts);
   h += fmt::format("<p><strong>{} adiabatic beds, total {}{}.</strong></p>\n", l.beds,
@@ -201,7 +203,16 @@ std::string optimize_report_html(const Case& c, const DesignResult& d,
   } else {
     h += "<ul>\n";
     for (const auto& a : l.active_constraints)
-      h += fmt::format("<li><code>{}</code></li>\n", xml_escape(a));
+      h += fmt::format("<li><code>{}</code></li>\n", xml_escape(active_limit_text(d, l, a)));
+    h += "</ul>\n";
+  }
+  if (l.bed.size() > 1) {
+    h += "<p>Optimality conditions of staged adiabatic beds (Konoki 1956; Aris 1961), read "
+         "from the computed residuals:</p>\n<ul>\n";
+    for (const auto& k : l.interstage)
+      h += fmt::format("<li>{}</li>\n", xml_escape(interstage_text(d, l, k)));
+    for (const auto& k : l.inlets)
+      h += fmt::format("<li>{}</li>\n", xml_escape(inlet_text(d, l, k)));
     h += "</ul>\n";
   }
   h += fmt::format(

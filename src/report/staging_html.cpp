@@ -140,8 +140,12 @@ std::string staging_report_html(const Case& c, const StagingResult& r,
       "return the stream to {} (at most {} beds).</p>\n",
       fixed_text(100 * r.approach, 0), r.exothermic ? "T_max" : "T_in_min",
       r.exothermic ? "coolers" : "heaters",
-      r.return_to == ReturnTo::Inlet ? "bed 1's inlet temperature"
-                                     : "the maximum-rate temperature at their conversion",
+      r.return_to == ReturnTo::Inlet
+          ? std::string("bed 1's inlet temperature")
+          : fmt::format("the maximum-rate temperature at their conversion, taking back at least "
+                        "{} % of the bed's temperature change (else the bed runs on; common "
+                        "practice, no source)",
+                        fixed_text(100 * r.min_return, 0)),
       r.max_beds);
 
   h += "<h2 id=\"as-given\">The train as given</h2>\n" + as_given_table(r);

@@ -74,9 +74,11 @@ json staging_json(const StagingResult& r) {
   j["staged_conversion"] = json_number(r.staged_conversion);
   j["conversion_limit"] = json_number(r.conversion_limit);
   j["staged_note"] = r.staged_note;
-  j["policy"] = {{"approach", json_number(r.approach)},
-                 {"return_to", return_to_name(r.return_to)},
-                 {"max_beds", r.max_beds}};
+  j["policy"] = {
+      {"approach", json_number(r.approach)},
+      {"return_to", return_to_name(r.return_to)},
+      {"min_return", r.return_to == ReturnTo::MaxRate ? json_number(r.min_return) : json(nullptr)},
+      {"max_beds", r.max_beds}};
   json beds = json::array();
   for (const auto& b : r.beds)
     beds.push_back({{"id", b.id},

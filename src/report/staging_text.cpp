@@ -20,15 +20,18 @@ std::string policy_text(const StagingResult& r) {
                                        exchangers, celsius_text(r.feed_T))
                          : fmt::format(
                                "{} return the stream to the maximum-rate temperature T_opt at its "
-                               "conversion, kept within [T_in_min, T_max]",
-                               exchangers);
+                               "conversion, kept within [T_in_min, T_max], taking back at least "
+                               "{:.0f} % of the bed's temperature change (else the bed runs on: "
+                               "ends at \"floor\"; common practice, no source)",
+                               exchangers, 100 * r.min_return);
   return fmt::format(
       "policy: each bed runs until it is {:.0f} % of the way from its inlet conversion to its "
       "adiabatic equilibrium conversion X_ad_eq, or until {}{}, or until the target; {} "
-      "(--approach {:g}, --return-to {})",
+      "(--approach {:g}, --return-to {}{})",
       100 * r.approach, limit,
       (r.exothermic ? r.limits.T_max : r.limits.T_in_min) ? "" : " (not given)", back, r.approach,
-      return_to_name(r.return_to));
+      return_to_name(r.return_to),
+      r.return_to == ReturnTo::MaxRate ? fmt::format(", --min-return {:g}", r.min_return) : "");
 }
 
 }  // namespace

@@ -8,6 +8,7 @@
 #include <vector>
 
 #include "rxtrain/base/caution.hpp"
+#include "rxtrain/report/approach_text.hpp"
 #include "rxtrain/report/text_format.hpp"
 
 namespace rxtrain {
@@ -36,8 +37,7 @@ std::string format_stage_table(const TrainResult& result) {
                     sig_text(r.space_time), celsius_text(r.inlet.T), celsius_text(r.outlet.T),
                     celsius_text(r.T_max), fixed_text(r.conversion, 4),
                     r.equilibrium ? fixed_text(r.equilibrium->approach_X, 4) : "-",
-                    r.equilibrium ? fixed_text(r.equilibrium->approach_T, 2) : "-",
-                    fixed_text(r.duty / 1e3, 2)});
+                    approach_T_cell(r), fixed_text(r.duty / 1e3, 2)});
   }
   out += render_columns(rows, 3);
   if (any_sized) out += "* volume found from the stage's target conversion\n";
@@ -47,6 +47,7 @@ std::string format_stage_table(const TrainResult& result) {
     out +=
         "X eq-X, T eq-T: approach to equilibrium at the outlet (X_eq(T_out) - X_out; the "
         "temperature at which X_out is equilibrium, minus T_out)\n";
+    if (const auto note = approach_T_footnote(result); !note.empty()) out += note + "\n";
   }
   for (const auto& r : result.stages)
     if (r.reach && r.heat) out += "  " + reach_sentence(r, result.species) + "\n";

@@ -24,6 +24,13 @@ namespace {
 constexpr double kActiveTolerance = 0.01;
 // A train "reaches" the target within this conversion.
 constexpr double kConversionTolerance = 1e-6;
+// Condition (1) holds within this relative rate difference: at free
+// optimums the residual measures below 1e-6 (tests/design_test.cpp).
+constexpr double kRateTolerance = 1e-4;
+// Step (K) of the central differences of a bed's size in its inlet
+// temperature: the quadrature is smooth to round-off, so W'' is good to
+// ~1e-9 relative.
+constexpr double kInletStep = 0.05;
 
 std::string celsius(double T) { return fmt::format("{:.2f} °C", T - kZeroCelsius); }
 
@@ -49,6 +56,9 @@ struct Setup {
   bool catalyst = true;
   std::optional<double> bulk_density;
   Ids ids;
+  double margin = 0;
+  // "T_max" or "T_max - 15 K": the window's ends as the messages name them.
+  std::string hi_label, lo_label;
 };
 
 double T_opt_or(const Setup& s, const DesignOptions& o, double X, double fallback) {
@@ -120,10 +130,93 @@ std::string infeasible_text(const Setup& s, const detail::LayoutProblem& p,
   const int n = worst / 2;
   if (worst % 2 == 0)
     return fmt::format("the best layout found still {} {} = {}: bed {} ends at {}",
-                       s.exothermic ? "passes" : "falls below", s.exothermic ? "T_max" : "T_in_min",
+                       s.exothermic ? "passes" : "falls below",
+                       s.exothermic ? s.hi_label : s.lo_label,
                        celsius(s.exothermic ? s.T_hi : s.T_lo), n + 1, celsius(st.T_out[n]));
   return fmt::format("the best layout found feeds bed {} beyond equilibrium ({} at X = {:.4f})",
                      n + 1, celsius(st.T_in[n]), st.X_in[n]);
+}
+
+// The limits that hold the beds of a layout (within kActiveTolerance).
+std::vector<ActiveLimit> active_limits(const Setup& s, const detail::LayoutProblem& p,
+                                       const DesignLayout& l, const DesignOptions& o) {
+  std::vector<ActiveLimit> a;
+  for (int n = 0; n < p.beds; ++n) {
+    const DesignBed& b = l.bed[n];
+    if (n == 0 && p.fixed_first) {
+      a.push_back({n, BedLimit::InletFixed});
+    } else {
+      if (b.T_in <= s.T_lo + kActiveTolerance) a.push_back({n, BedLimit::InletAtLow});
+      if (b.T_in >= s.T_hi - kActiveTolerance) a.push_back({n, BedLimit::InletAtHigh});
+    }
+    if (s.exothermic && b.T_out >= s.T_hi - kActiveTolerance)
+      a.push_back({n, BedLimit::FarEndAtHigh});
+    if (!s.exothermic && b.T_out <= s.T_lo + kActiveTolerance)
+      a.push_back({n, BedLimit::FarEndAtLow});
+    if (n < p.beds - 1 && b.X_out >= b.X_in + o.s_max * (b.X_ad_eq - b.X_in) - 1e-9)
+      a.push_back({n, BedLimit::AtEquilibriumEnd});
+  }
+  return a;
+}
+
+bool on_inlet(BedLimit k) {
+  return k == BedLimit::InletAtLow || k == BedLimit::InletAtHigh || k == BedLimit::InletFixed;
+}
+
+ConditionState state_of(bool holds, const std::vector<ActiveLimit>& exempt_by) {
+  if (holds) return ConditionState::Holds;
+  return exempt_by.empty() ? ConditionState::Missed : ConditionState::Limited;
+}
+
+// The residuals of the optimality conditions (design.hpp) at a layout,
+// and the active limits that exempt each: (1) across the exchanger after
+// bed n, a limit at bed n's far end or equilibrium end, or at bed n+1's
+// inlet; (2) of bed n, a limit at its inlet, far end or equilibrium end.
+void conditions(const detail::AdiabaticBedModel& model, DesignLayout& l) {
+  const int N = static_cast<int>(l.bed.size());
+  for (int n = 0; n + 1 < N; ++n) {
+    InterstageCondition c;
+    c.after = n;
+    c.X = l.bed[n].X_out;
+    c.rate_before = l.bed[n].rate_out;
+    c.rate_after = l.bed[n + 1].rate_in;
+    c.residual = (c.rate_after - c.rate_before) / c.rate_before;
+    for (const auto& a : l.active_constraints)
+      if ((a.bed == n && !on_inlet(a.limit)) || (a.bed == n + 1 && on_inlet(a.limit)))
+        c.exempt_by.push_back(a);
+    c.state =
+        state_of(std::isfinite(c.residual) && std::abs(c.residual) <= kRateTolerance, c.exempt_by);
+    if (!std::isfinite(c.residual)) {
+      c.residual = 0;
+      c.state = ConditionState::NotComputed;
+    }
+    l.interstage.push_back(c);
+  }
+  for (int n = 0; n < N; ++n) {
+    const DesignBed& b = l.bed[n];
+    InletCondition c;
+    c.bed = n;
+    for (const auto& a : l.active_constraints)
+      if (a.bed == n) c.exempt_by.push_back(a);
+    // The bed's size at its conversions, fed at T: the cooler before it
+    // takes up the change, so only this bed's size moves.
+    auto size_at = [&](double T) {
+      return model.size(b.X_in, T, b.X_out, model.equilibrium_end(b.X_in, T));
+    };
+    try {
+      const double Wp = size_at(b.T_in + kInletStep), Wm = size_at(b.T_in - kInletStep);
+      const double W0 = size_at(b.T_in);
+      const double d1 = (Wp - Wm) / (2 * kInletStep);
+      const double d2 = (Wp - 2 * W0 + Wm) / (kInletStep * kInletStep);
+      if (!std::isfinite(d1) || !std::isfinite(d2)) throw SolverError("size not finite");
+      c.dsize_dT = d1;
+      if (d2 > 0) c.shift = -d1 / d2;
+      c.state = state_of(c.shift && std::abs(*c.shift) <= kActiveTolerance, c.exempt_by);
+    } catch (const SolverError&) {
+      c.state = ConditionState::NotComputed;
+    }
+    l.inlets.push_back(c);
+  }
 }
 
 DesignLayout make_layout(const Setup& s, const detail::AdiabaticBedModel& model,
@@ -179,25 +272,8 @@ DesignLayout make_layout(const Setup& s, const detail::AdiabaticBedModel& model,
   l.feed_conditioning.duty =
       model.enthalpy_flow(X0, l.bed.front().T_in) - model.enthalpy_flow(X0, s.c.feed.T);
 
-  // Active constraints (within kActiveTolerance).
-  for (int n = 0; n < p.beds; ++n) {
-    const DesignBed& b = l.bed[n];
-    const std::string bed = fmt::format("B{}", n + 1);
-    if (n == 0 && p.fixed_first) {
-      l.active_constraints.push_back("B1.T_in = T_feed (fixed)");
-    } else {
-      if (b.T_in <= s.T_lo + kActiveTolerance)
-        l.active_constraints.push_back(bed + ".T_in = T_in_min");
-      if (b.T_in >= s.T_hi - kActiveTolerance)
-        l.active_constraints.push_back(bed + ".T_in = T_max");
-    }
-    if (s.exothermic && b.T_out >= s.T_hi - kActiveTolerance)
-      l.active_constraints.push_back(bed + ".T_max = T_max");
-    if (!s.exothermic && b.T_out <= s.T_lo + kActiveTolerance)
-      l.active_constraints.push_back(bed + ".T_min = T_in_min");
-    if (n < p.beds - 1 && b.X_out >= b.X_in + o.s_max * (b.X_ad_eq - b.X_in) - 1e-9)
-      l.active_constraints.push_back(bed + ".X_out = X_ad_eq");
-  }
+  l.active_constraints = active_limits(s, p, l, o);
+  conditions(model, l);
   return l;
 }
 
@@ -243,6 +319,20 @@ AsWrittenDesign as_written(const Setup& s, const DesignOptions& o) {
       a.total_catalyst = a.total_catalyst.value_or(0.0) + *st.catalyst_mass;
     else
       all_mass = false;
+    // Inside the window narrowed by a margin: the limits themselves are
+    // the limit check's (below), so only a margin adds these.
+    if (s.T_hi < *s.c.limits.T_max || s.T_lo > *s.c.limits.T_in_min) {
+      if (st.T_max > s.T_hi + kActiveTolerance) {
+        a.within_limits = false;
+        notes.push_back(fmt::format("{} reaches {}, above {} ({})", st.id, celsius(st.T_max),
+                                    s.hi_label, celsius(s.T_hi)));
+      }
+      if (st.T_min < s.T_lo - kActiveTolerance) {
+        a.within_limits = false;
+        notes.push_back(fmt::format("{} runs down to {}, below {} ({})", st.id, celsius(st.T_min),
+                                    s.lo_label, celsius(s.T_lo)));
+      }
+    }
   }
   for (const auto& f : r.limit_check.findings)
     if (f.kind != LimitFindingKind::Near) {
@@ -255,6 +345,32 @@ AsWrittenDesign as_written(const Setup& s, const DesignOptions& o) {
                                             a.conversion, s.target));
   for (const auto& n : notes) a.note += (a.note.empty() ? "" : "; ") + n;
   return a;
+}
+
+// The limits narrowed by the margin, and their names in messages.
+struct Window {
+  double T_lo = 0, T_hi = 0;
+  std::string lo_label, hi_label;
+};
+
+Window window_of(const Case& c, const DesignOptions& o) {
+  const double m = o.margin;
+  Window w{*c.limits.T_in_min + m, *c.limits.T_max - m,
+           m > 0 ? fmt::format("T_in_min + {:g} K", m) : "T_in_min",
+           m > 0 ? fmt::format("T_max - {:g} K", m) : "T_max"};
+  if (!(w.T_lo < w.T_hi))
+    throw InputError(c.limits.where,
+                     fmt::format("--margin {:g} K leaves no window: {} = {} is not below {} = {} "
+                                 "(the limits are {:g} K apart; the margin is kept on both sides)",
+                                 m, w.lo_label, celsius(w.T_lo), w.hi_label, celsius(w.T_hi),
+                                 *c.limits.T_max - *c.limits.T_in_min));
+  if (o.fixed_feed_T && (c.feed.T < w.T_lo || c.feed.T > w.T_hi))
+    throw InputError(c.limits.where,
+                     fmt::format("--fixed-feed-T: the feed at {} lies outside the window "
+                                 "[{}, {}] = [{}, {}] that bed 1's inlet must keep",
+                                 celsius(c.feed.T), w.lo_label, w.hi_label, celsius(w.T_lo),
+                                 celsius(w.T_hi)));
+  return w;
 }
 
 StagingDesign staging_of(const StagingResult& r) {
@@ -289,6 +405,7 @@ std::string DesignOptions::validate() const {
   if (max_evaluations < 10) return "max_evaluations must be at least 10";
   if (!(feasibility_tolerance > 0)) return "feasibility_tolerance must be positive";
   if (auto e = limit_check.validate(); !e.empty()) return "limit_check: " + e;
+  if (!(margin >= 0 && std::isfinite(margin))) return "margin must be finite and not negative";
   if (auto e = pfr.cvode.validate(); !e.empty()) return "pfr.cvode: " + e;
   if (auto e = equilibrium.validate(); !e.empty()) return "equilibrium: " + e;
   return {};
@@ -367,24 +484,22 @@ DesignResult optimize_design(const Case& c, const DesignOptions& options) {
                                  "the first reactor's bulk_density; give it one (e.g. "
                                  "bulk_density: 750 kg/m3)",
                                  mech.reactions()[j].id));
-  if (options.fixed_feed_T && (c.feed.T < *c.limits.T_in_min || c.feed.T > *c.limits.T_max))
-    throw InputError(
-        c.limits.where,
-        fmt::format("--fixed-feed-T: the feed at {} lies outside the window "
-                    "[T_in_min, T_max] = [{}, {}] that bed 1's inlet must keep",
-                    celsius(c.feed.T), celsius(*c.limits.T_in_min), celsius(*c.limits.T_max)));
-
+  const Window w = window_of(c, options);
+  const double T_lo = w.T_lo, T_hi = w.T_hi;
   Setup s{c,
           mech,
           c.conversion_basis(),
           j,
           *c.target_conversion,
-          *c.limits.T_in_min,
-          *c.limits.T_max,
+          T_lo,
+          T_hi,
           mech.dH(j, c.feed.T) < 0,
           catalyst,
           first ? first->bulk_density : std::nullopt,
-          Ids{}};
+          Ids{},
+          options.margin,
+          w.hi_label,
+          w.lo_label};
   for (const auto& sp : mech.species()) s.ids.taken.insert(sp.id);
   for (const auto& rx : mech.reactions()) s.ids.taken.insert(rx.id);
 
@@ -398,6 +513,9 @@ DesignResult optimize_design(const Case& c, const DesignOptions& options) {
   res.feed_T = c.feed.T;
   res.bulk_density = s.bulk_density;
   res.fixed_feed_T = options.fixed_feed_T;
+  res.margin = options.margin;
+  res.window_low = T_lo;
+  res.window_high = T_hi;
   res.warnings = c.warnings;
 
   const double X0 = s.basis.conversion(c.feed);
@@ -412,9 +530,13 @@ DesignResult optimize_design(const Case& c, const DesignOptions& options) {
       StagingOptions so;
       so.pfr = options.pfr;
       so.equilibrium = options.equilibrium;
-      staged_inlet = run_staging(c, so);
-      so.return_to = ReturnTo::Optimal;
-      staged_optimal = run_staging(c, so);
+      // The staging policy keeps the same window as the optimum.
+      Case narrowed = c;
+      narrowed.limits.T_in_min = T_lo;
+      narrowed.limits.T_max = T_hi;
+      staged_inlet = run_staging(narrowed, so);
+      so.return_to = ReturnTo::MaxRate;
+      staged_optimal = run_staging(narrowed, so);
     } catch (const std::exception& e) {
       res.warnings.push_back(fmt::format("the staging policy was not run: {}", e.what()));
     }
@@ -462,11 +584,12 @@ DesignResult optimize_design(const Case& c, const DesignOptions& options) {
   if (!best)
     throw InfeasibleError(
         c.target_where,
-        fmt::format("no layout of {} reaches the target X = {:.4f} within [T_in_min, T_max] = "
+        fmt::format("no layout of {} reaches the target X = {:.4f} within [{}, {}] = "
                     "[{}, {}]: {}",
                     counts.size() == 1 ? fmt::format("{} adiabatic beds", counts.front())
                                        : fmt::format("1 to {} adiabatic beds", counts.back()),
-                    s.target, celsius(s.T_lo), celsius(s.T_hi), last_why));
+                    s.target, s.lo_label, s.hi_label, celsius(s.T_lo), celsius(s.T_hi),
+                    last_why));
   res.best = *best;
   if (options.max_beds) res.by_bed_count = layouts;
 
@@ -490,12 +613,12 @@ DesignResult optimize_design(const Case& c, const DesignOptions& options) {
   // the optimum; the train's other design warnings (rules of thumb on bed
   // length and space time) are not: the optimum sizes the beds itself.
   if (const auto dT = adiabatic_temperature_change(c))
-    if (s.exothermic && c.feed.T + *dT > s.T_hi)
+    if (s.exothermic && c.feed.T + *dT > *c.limits.T_max)
       res.warnings.push_back(fmt::format(
           "the adiabatic temperature rise of the feed at full conversion of {} is {:.1f} K "
           "(from {} to {}), above T_max = {}: the beds are cut short by T_max or equilibrium "
           "and the stream is cooled between them",
-          key, *dT, celsius(c.feed.T), celsius(c.feed.T + *dT), celsius(s.T_hi)));
+          key, *dT, celsius(c.feed.T), celsius(c.feed.T + *dT), celsius(*c.limits.T_max)));
 
   if (options.compare) {
     res.as_written = as_written(s, options);

@@ -276,9 +276,8 @@ void check_as_given(const Setup& s, const StagingOptions& o, const SunContext& c
 
 // ---- the staged answer ------------------------------------------------------
 
-// Temperature an exchanger returns the stream to before the next bed.
-double return_temperature(const Setup& s, const StagingOptions& o, double X) {
-  if (o.return_to == ReturnTo::Inlet) return s.c.feed.T;
+// The maximum-rate temperature at conversion X, clipped to the window.
+double max_rate_return(const Setup& s, const StagingOptions& o, double X) {
   const auto& lim = s.c.limits;
   const double lo = lim.T_in_min.value_or(o.equilibrium.T_min);
   const double hi = lim.T_max.value_or(o.equilibrium.T_max);
@@ -286,6 +285,54 @@ double return_temperature(const Setup& s, const StagingOptions& o, double X) {
   // Empty: the reaction runs backwards at every allowed temperature; the
   // next bed then cannot progress and the loop says so.
   return p ? std::clamp(p->T, lo, hi) : s.c.feed.T;
+}
+
+// Temperature an exchanger returns the stream to before the next bed, at
+// conversion X after a bed from T_in to T_out. Max-rate: T_opt, or further
+// where T_opt would take back less than min_return of the bed's change.
+double return_temperature(const Setup& s, const StagingOptions& o, double X, double T_in,
+                          double T_out) {
+  if (o.return_to == ReturnTo::Inlet) return s.c.feed.T;
+  const double T_opt = max_rate_return(s, o, X);
+  const double floor = T_out - o.min_return * (T_out - T_in);
+  const double T = s.exothermic ? std::min(T_opt, floor) : std::max(T_opt, floor);
+  const double lo = s.c.limits.T_in_min.value_or(o.equilibrium.T_min);
+  const double hi = s.c.limits.T_max.value_or(o.equilibrium.T_max);
+  return std::clamp(T, lo, hi);
+}
+
+// Max-rate floor: how far short of min_return of the bed's temperature
+// change the return to T_opt falls at conversion X on the adiabatic line
+// from `inlet` (> 0: short; <= 0: the floor is met). Rises with X: the bed
+// moves away from T_opt, which falls with X. Empty where the line ends.
+std::optional<double> floor_shortfall(const Setup& s, const StagingOptions& o, const Stream& inlet,
+                                      double X_in, double X) {
+  const auto line = adiabatic_line(s.mech, inlet, s.basis, X_in, X, 2, o.equilibrium);
+  if (line.truncated || line.points.size() < 2) return std::nullopt;
+  const double T = line.points.back().T;
+  const double back = s.exothermic ? T - max_rate_return(s, o, X) : max_rate_return(s, o, X) - T;
+  return o.min_return * std::abs(T - inlet.T) - back;
+}
+
+// Where a bed that ended at X_stop on its approach runs on to under the
+// max-rate floor: X_stop when the floor is met there, else the first X
+// where it is (bisection), at most 1 - (1 - approach)^2 of the way to X_eq.
+double run_on_end(const Setup& s, const StagingOptions& o, const Stream& inlet, double X_in,
+                  double X_eq, double X_stop) {
+  if (o.return_to != ReturnTo::MaxRate || o.min_return <= 0) return X_stop;
+  const auto at_stop = floor_shortfall(s, o, inlet, X_in, X_stop);
+  if (!at_stop || *at_stop <= 0) return X_stop;
+  const double X_cap = X_in + (1 - (1 - o.approach) * (1 - o.approach)) * (X_eq - X_in);
+  const auto at_cap = floor_shortfall(s, o, inlet, X_in, X_cap);
+  if (!at_cap || *at_cap > 0) return X_cap;
+  double a = X_stop, b = X_cap;
+  // 60 halvings: far below any conversion the tables show.
+  for (int i = 0; i < 60 && b - a > 1e-12; ++i) {
+    const double m = 0.5 * (a + b);
+    const auto g = floor_shortfall(s, o, inlet, X_in, m);
+    (g && *g <= 0 ? b : a) = m;
+  }
+  return b;
 }
 
 void build_staged(const Setup& s, const StagingOptions& o, const ReactorSpec& first,
@@ -307,7 +354,7 @@ void build_staged(const Setup& s, const StagingOptions& o, const ReactorSpec& fi
     if (k > 1) {
       ExchangerSpec x;
       x.id = fmt::format("{}{}", exchanger_prefix, k - 1);
-      x.T_out = return_temperature(s, o, X);
+      x.T_out = return_temperature(s, o, X, res.beds.back().T_in, res.beds.back().T_out);
       x.where = first.where;
       StageResult r = run_exchanger(mech, x, stream, s.basis);
       res.coolers.push_back({x.id, r.inlet.T, r.outlet.T, r.duty});
@@ -330,7 +377,8 @@ void build_staged(const Setup& s, const StagingOptions& o, const ReactorSpec& fi
       break;
     }
     const double X_stop = X + o.approach * (eq->X - X);
-    const double X_bed = std::min(X_stop, s.target);
+    const double X_run = X_stop < s.target ? run_on_end(s, o, stream, X, eq->X, X_stop) : X_stop;
+    const double X_bed = std::min(X_run, s.target);
     bed.id = fmt::format("B{}", k);
     bed.target_conversion = X_bed;
     StageResult r = run_pfr(mech, bed, stream, s.basis, ctx, po);
@@ -349,7 +397,7 @@ void build_staged(const Setup& s, const StagingOptions& o, const ReactorSpec& fi
     if (r.conversion < X_bed - kConversionTolerance)
       b.ended_by = s.limit_label;
     else
-      b.ended_by = X_bed == s.target ? "target" : "approach";
+      b.ended_by = X_bed == s.target ? "target" : X_bed > X_stop ? "floor" : "approach";
     res.beds.push_back(b);
     stream = r.outlet;
     X = r.conversion;
@@ -401,7 +449,7 @@ void build_staged(const Setup& s, const StagingOptions& o, const ReactorSpec& fi
   if (res.conversion_limit && s.target >= *res.conversion_limit)
     why += fmt::format(
         "; with every bed fed at {}, no number of beds passes X_eq({}) = {:.4f}, and the "
-        "target X = {:.4f} lies beyond it (try --return-to optimal, or a {} inlet temperature)",
+        "target X = {:.4f} lies beyond it (try --return-to max-rate, or a {} inlet temperature)",
         celsius(s.c.feed.T), celsius(s.c.feed.T), *res.conversion_limit, s.target,
         s.exothermic ? "lower" : "higher");
   res.staged_note = fmt::format("the target X = {:.4f} is out of reach with up to {} beds: {}",
@@ -426,12 +474,14 @@ const char* limit_name(StagingLimit l) {
   return "";
 }
 
-const char* return_to_name(ReturnTo r) { return r == ReturnTo::Inlet ? "inlet" : "optimal"; }
+const char* return_to_name(ReturnTo r) { return r == ReturnTo::Inlet ? "inlet" : "max-rate"; }
 
 std::string StagingOptions::validate() const {
   if (!(approach > 0 && approach < 1))
     return fmt::format("approach must lie strictly between 0 and 1, got {:g}", approach);
   if (auto e = limit_check.validate(); !e.empty()) return "limit_check: " + e;
+  if (!(min_return >= 0 && min_return < 1))
+    return fmt::format("min_return must lie in [0, 1), got {:g}", min_return);
   if (max_beds < 1 || max_beds > 100)
     return fmt::format("max_beds must lie between 1 and 100, got {}", max_beds);
   if (auto e = pfr.cvode.validate(); !e.empty()) return "pfr.cvode: " + e;
@@ -476,10 +526,10 @@ StagingResult run_staging(const Case& c, const StagingOptions& options) {
                 exo ? c.limits.T_max : c.limits.T_in_min,
                 exo ? StagingLimit::TMax : StagingLimit::TInMin,
                 exo ? "T_max" : "T_in_min"};
-  if (options.return_to == ReturnTo::Optimal && !s.exothermic && !c.limits.T_max)
+  if (options.return_to == ReturnTo::MaxRate && !s.exothermic && !c.limits.T_max)
     throw InputError(
         c.limits.where,
-        fmt::format("--return-to optimal with the endothermic reaction {} needs limits: "
+        fmt::format("--return-to max-rate with the endothermic reaction {} needs limits: "
                     "{{T_max: ...}}: its rate rises with temperature without a maximum, so the "
                     "best reheat temperature is the highest the catalyst allows",
                     mech.reactions()[j].id));
@@ -494,6 +544,7 @@ StagingResult run_staging(const Case& c, const StagingOptions& options) {
   res.dT_ad = adiabatic_temperature_change(c);
   res.approach = options.approach;
   res.return_to = options.return_to;
+  res.min_return = options.min_return;
   res.max_beds = options.max_beds;
 
   SunContext ctx;

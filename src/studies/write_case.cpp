@@ -58,10 +58,14 @@ std::string design_case_text(const Case& c, const std::string& case_text, const 
   const double total =
       d.catalyst_objective ? layout.total_catalyst.value_or(0.0) : layout.total_volume;
   block += fmt::format(
-      "# The optimum layout written by `rxtrain optimize` ({} adiabatic beds, total {} {} {}).\n"
+      "# The optimum layout written by `rxtrain optimize` ({} adiabatic beds, total {} {} {}{}).\n"
       "# {}\n",
       layout.beds, d.catalyst_objective ? "catalyst" : "volume", number(total),
-      d.catalyst_objective ? "kg" : "m3", kCaution);
+      d.catalyst_objective ? "kg" : "m3",
+      d.margin > 0 ? fmt::format("; every bed temperature kept {:g} K inside the limits (--margin)",
+                                 d.margin)
+                   : "",
+      kCaution);
   block += "train:\n";
   const auto train = design_train(c, d, layout);
   std::size_t bed = 0;

@@ -72,6 +72,11 @@ class UnitParser {
   double to_si(std::string_view text, const SiUnit& expected,
                const UnitOptions& options = {}) const;
 
+  // A difference, e.g. a temperature margin: as to_si, but a unit's
+  // offset cancels, so "15 degC" and "15 K" are both 15 (K).
+  double difference_to_si(std::string_view text, const SiUnit& expected,
+                          const UnitOptions& options = {}) const;
+
   // True when `unit` (no number) is convertible to `expected`.
   bool is_convertible(std::string_view unit, const SiUnit& expected) const;
 

@@ -60,6 +60,12 @@ struct EquilibriumOptions {
   // temperature; the step grows by 1.5 each try. Small enough not to jump
   // over a nearby root, large enough to reach T_max in ~15 tries.
   double bracket_step = 5.0;
+  // Window (K) of a meaningful approach temperature: where K(T) is nearly
+  // flat, X_eq moves little with T and T_eq(X_out) - T_out can be hundreds
+  // of kelvin, correct by definition but saying little. A record beyond it
+  // is flagged, and the reports leave the figure out (common practice, no
+  // source).
+  double approach_T_window = 100.0;
 
   // Empty when valid, else a message naming the bad field.
   std::string validate() const;
@@ -234,6 +240,10 @@ struct EquilibriumRecord {
   // equilibrium the signs flip. Empty when no T in [T_min, T_max] makes
   // X_out the equilibrium conversion.
   std::optional<double> approach_T;
+  // |approach_T| lies beyond the window (K) it was judged against,
+  // EquilibriumOptions::approach_T_window.
+  bool approach_T_beyond_window = false;
+  double approach_T_window = 0;
 };
 
 // The extents of every reaction that take `inlet` to `outlet` (least

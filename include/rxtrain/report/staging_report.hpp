@@ -14,9 +14,11 @@
 //                  "volume", "X_ad_eq", "T_ad_eq", "note"}],
 //    "target_reached": bool, "beds_needed": N|null, "staged_conversion",
 //    "conversion_limit", "staged_note",
-//    "policy": {"approach", "return_to": "inlet"|"optimal", "max_beds"},
+//    "policy": {"approach", "return_to": "inlet"|"max-rate", "min_return" (max-rate;
+//               else null), "max_beds"},
 //    "beds": [{"id", "T_in", "T_out", "X_in", "X_out", "volume", "catalyst_mass", "T_max",
-//              "T_min", "X_ad_eq", "T_ad_eq", "ended_by", "path": [{"T", "X"}]}],
+//              "T_min", "X_ad_eq", "T_ad_eq", "ended_by" ("approach"|"floor"|"T_max"|
+//              "T_in_min"|"target"), "path": [{"T", "X"}]}],
 //    "coolers": [{"id", "T_in", "T_out", "duty"}],
 //    "warnings": [...], "caution"}
 // A value that does not apply (or is not finite) is null; "T_in_min" in

@@ -37,7 +37,15 @@
 // with intercooling hold (Konoki 1956; Aris, "The Optimal Design of
 // Chemical Reactors", 1961): r(X_out,n, T_out,n) = r(X_out,n, T_in,n+1), and
 // integral over bed n of d(1/r)/dT_in dX = 0 where T_in,n is not at a
-// bound (tests/design_test.cpp checks both independently).
+// bound (tests/design_test.cpp checks both independently). Where a limit
+// holds a bed they need not hold: a bed cut short at T_max leaves the rate
+// after the exchanger behind it below the rate before (the stream is
+// cooled further than to the equal-rate point). The result carries both
+// conditions' residuals per exchanger and per bed, and which limit exempts
+// each, so that no report claims a rule the layout breaks.
+//
+// Margin. options.margin narrows the window on both sides: every bed
+// temperature within [T_in_min + margin, T_max - margin].
 //
 // Example:
 //   DesignOptions o;
@@ -76,6 +84,10 @@ struct DesignOptions {
   std::optional<int> max_beds;
   // Keep bed 1's inlet at the feed temperature (no feed conditioning).
   bool fixed_feed_T = false;
+  // K kept inside the catalyst's limits: every temperature in a bed within
+  // [T_in_min + margin, T_max - margin]. The case as written and the
+  // staging policy are judged against the same narrowed window.
+  double margin = 0;
   // Gauss-Legendre panels and nodes per panel of each bed's integral (in u
   // = -ln(X_e - X)). 4 x 16 nodes, 64 rate evaluations a bed, match GSL
   // QAGS to 1e-8 in the tests (the integrand is smooth in u).
@@ -124,6 +136,55 @@ struct DesignBed {
   double rate_in = 0, rate_out = 0;
 };
 
+// A limit that holds a bed of a layout (active within 0.01 K; the window
+// is the one narrowed by the margin).
+enum class BedLimit {
+  InletAtLow,        // T_in at T_in_min (+ margin)
+  InletAtHigh,       // T_in at T_max (- margin)
+  InletFixed,        // bed 1 fed at the feed temperature (fixed_feed_T)
+  FarEndAtHigh,      // exothermic: the outlet, the bed's hottest point, at T_max (- margin)
+  FarEndAtLow,       // endothermic: the outlet, its coldest point, at T_in_min (+ margin)
+  AtEquilibriumEnd,  // X_out at the bed's adiabatic equilibrium (a bed 1..N-1)
+};
+
+struct ActiveLimit {
+  int bed = 0;  // 0-based
+  BedLimit limit = BedLimit::InletAtLow;
+};
+
+// How an optimality condition stands at a layout.
+enum class ConditionState {
+  Holds,        // its residual is within the tolerance
+  Limited,      // an active limit next to it exempts it, and it does not hold
+  Missed,       // nothing exempts it, yet it does not hold: the optimizer stopped short
+  NotComputed,  // the residual could not be evaluated
+};
+
+// Condition (1) across the exchanger after bed `after` (0-based): the rate
+// at the bed's outlet equals the rate at the next bed's inlet, at the same
+// conversion. Holds within 1e-4 relative (measured at free optimums: below
+// 1e-6).
+struct InterstageCondition {
+  int after = 0;
+  double X = 0;
+  double rate_before = 0, rate_after = 0;  // the key reaction's, in its own basis
+  double residual = 0;                     // (rate_after - rate_before) / rate_before
+  ConditionState state = ConditionState::Holds;
+  std::vector<ActiveLimit> exempt_by;  // the active limits that exempt it
+};
+
+// Condition (2) of bed `bed`: its size is stationary in its inlet
+// temperature at fixed inlet and outlet conversions (the cooler before it
+// absorbs the change). Holds when the Newton step to stationarity, -W'/W'',
+// is within 0.01 K.
+struct InletCondition {
+  int bed = 0;
+  double dsize_dT = 0;          // kg/K or m3/K
+  std::optional<double> shift;  // K, the Newton step; empty where W'' <= 0 or not computed
+  ConditionState state = ConditionState::Holds;
+  std::vector<ActiveLimit> exempt_by;
+};
+
 struct DesignExchanger {
   std::string id;              // C1, ... (H1, ... heating); F0 feed conditioning
   double T_in = 0, T_out = 0;  // K
@@ -141,9 +202,10 @@ struct DesignLayout {
   double total_volume = 0;               // m3
   std::optional<double> total_catalyst;  // kg (per-catalyst rates)
   double total_duty = 0;                 // W, sum of the interstage exchangers
-  // "B2.T_in = T_in_min", "B1.T_max = T_max", "B3.T_in = T_max",
-  // "B2.T_min = T_in_min" (endothermic), "B1.T_in = T_feed (fixed)".
-  std::vector<std::string> active_constraints;
+  // In bed order (report/optimize_text.hpp phrases them).
+  std::vector<ActiveLimit> active_constraints;
+  std::vector<InterstageCondition> interstage;  // N - 1, one per exchanger between beds
+  std::vector<InletCondition> inlets;           // N, one per bed
   // run_train of the layout (beds as catalyst masses or volumes): the
   // conversion it reaches and its total, as an independent check.
   double checked_conversion = 0;
@@ -185,6 +247,8 @@ struct DesignResult {
   double feed_T = 0;                   // K
   std::optional<double> bulk_density;  // kg/m3, of the first reactor
   bool fixed_feed_T = false;
+  double margin = 0;                          // K, options.margin
+  double window_low = 0, window_high = 0;     // K, the limits narrowed by the margin
   DesignLayout best;                          // the least total found (fewest beds on a tie)
   std::vector<DesignLayout> by_bed_count;     // N = 1..max_beds; empty without max_beds
   std::optional<AsWrittenDesign> as_written;  // with options.compare
@@ -197,7 +261,8 @@ struct DesignResult {
 
 // Throws InputError when the case lacks a train-level target or the limits
 // T_max and T_in_min, has more than one reaction or an irreversible one,
-// or (fixed_feed_T) a feed outside the window; InfeasibleError when no
+// a margin that leaves no window, or (fixed_feed_T) a feed outside the
+// window; InfeasibleError when no
 // layout with the allowed number of beds meets the target within the
 // window (naming the best reached); SolverError on a numerical failure.
 DesignResult optimize_design(const Case& c, const DesignOptions& options = {});

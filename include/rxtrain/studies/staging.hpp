@@ -13,8 +13,18 @@
 // endothermic: T_in_min), or until the target, whichever comes first. An
 // exchanger then returns the stream to bed 1's inlet temperature
 // (ReturnTo::Inlet) or to the maximum-rate temperature T_opt at that
-// conversion clipped to [T_in_min, T_max] (ReturnTo::Optimal), and the next
+// conversion clipped to [T_in_min, T_max] (ReturnTo::MaxRate), and the next
 // bed starts. Greedy beds are the fewest this policy allows.
+//
+// Floor of the max-rate policy. Near the approach point T_opt can lie a few
+// kelvin from the bed's outlet (or above it): an exchanger taking back a
+// sliver of the bed's temperature change is one nobody builds. An exchanger
+// must take back at least `min_return` of the change of the bed before it
+// (common practice, no source); where the return to T_opt would take less,
+// the bed runs on along its adiabatic line to the first point where it
+// takes that much (at most 1 - (1 - approach)^2 of the way to X_ad_eq), or
+// to the target or the limit if they come first. Where the bed cannot run
+// on far enough, the exchanger takes back exactly the floor (past T_opt).
 //
 // Example:
 //   StagingOptions o;
@@ -34,7 +44,7 @@
 
 namespace rxtrain {
 
-enum class ReturnTo { Inlet, Optimal };
+enum class ReturnTo { Inlet, MaxRate };
 
 // The first limit the train as given meets on the way to the target.
 //   Equilibrium: the target lies beyond X_ad_eq of a bed (the last reactor,
@@ -47,7 +57,7 @@ enum class ReturnTo { Inlet, Optimal };
 enum class StagingLimit { None, Equilibrium, TMax, TInMin, Size };
 // "equilibrium", "T_max", "T_in_min", "size"; "" for None.
 const char* limit_name(StagingLimit l);
-const char* return_to_name(ReturnTo r);  // "inlet", "optimal"
+const char* return_to_name(ReturnTo r);  // "inlet", "max-rate"
 
 struct StagingOptions {
   // Fraction of the way from a bed's inlet conversion to its X_ad_eq at
@@ -56,6 +66,9 @@ struct StagingOptions {
   double approach = 0.9;
   // Temperature the exchangers return the stream to.
   ReturnTo return_to = ReturnTo::Inlet;
+  // MaxRate: the least fraction of a bed's temperature change the exchanger
+  // after it takes back, in [0, 1) (see the floor above).
+  double min_return = 0.2;
   // Most beds tried before the target is called out of reach; ten is more
   // than any adiabatic train built.
   int max_beds = 10;
@@ -104,7 +117,9 @@ struct StagedBed {
   double X_ad_eq = 0, T_ad_eq = 0;      // from the bed's inlet
   double volume = 0;                    // m3
   std::optional<double> catalyst_mass;  // kg (with a bulk density)
-  // Why the bed ends: "approach", "T_max", "T_in_min" or "target".
+  // Why the bed ends: "approach", "T_max", "T_in_min" or "target";
+  // "floor" when it ran on past its approach point to where the exchanger
+  // after it takes back min_return of its temperature change.
   std::string ended_by;
 };
 
@@ -127,6 +142,7 @@ struct StagingResult {
   // Policy actually used.
   double approach = 0.9;
   ReturnTo return_to = ReturnTo::Inlet;
+  double min_return = 0.2;
   int max_beds = 10;
 
   // ---- the train as given
@@ -146,7 +162,7 @@ struct StagingResult {
   std::vector<StagedExchanger> coolers;  // between beds: beds.size() - 1
   double staged_conversion = 0;          // outlet of the last bed: the most reachable when short
   // Inlet policy: X_eq at bed 1's inlet temperature, which any number of
-  // beds approaches but never passes. Empty for the optimal policy.
+  // beds approaches but never passes. Empty for the max-rate policy.
   std::optional<double> conversion_limit;
   std::string staged_note;  // plain words on the staged answer
 

@@ -1,0 +1,196 @@
+#include "rxtrain/report/optimize_text.hpp"
+
+#include <fmt/format.h>
+
+#include <cmath>
+#include <vector>
+
+#include "rxtrain/report/text_format.hpp"
+
+namespace rxtrain {
+
+namespace {
+
+std::string low_label(const DesignResult& d) {
+  return d.margin > 0 ? fmt::format("T_in_min + {:g} K", d.margin) : std::string("T_in_min");
+}
+std::string high_label(const DesignResult& d) {
+  return d.margin > 0 ? fmt::format("T_max - {:g} K", d.margin) : std::string("T_max");
+}
+
+const std::string& bed_id(const DesignLayout& l, int n) { return l.bed.at(n).id; }
+
+// The limit in plain words: "B1 ends at T_max".
+std::string limit_words(const DesignResult& d, const DesignLayout& l, const ActiveLimit& a) {
+  const std::string& id = bed_id(l, a.bed);
+  switch (a.limit) {
+    case BedLimit::InletAtLow:
+      return fmt::format("{} is fed at {}", id, low_label(d));
+    case BedLimit::InletAtHigh:
+      return fmt::format("{} is fed at {}", id, high_label(d));
+    case BedLimit::InletFixed:
+      return fmt::format("{} is fed at the feed temperature (--fixed-feed-T)", id);
+    case BedLimit::FarEndAtHigh:
+      return fmt::format("{} ends at {}", id, high_label(d));
+    case BedLimit::FarEndAtLow:
+      return fmt::format("{} ends at {}", id, low_label(d));
+    case BedLimit::AtEquilibriumEnd:
+      return fmt::format("{} runs to its adiabatic equilibrium", id);
+  }
+  return id;
+}
+
+std::string joined(const std::vector<std::string>& parts, const char* last = " and ") {
+  std::string s;
+  for (std::size_t i = 0; i < parts.size(); ++i)
+    s += (i == 0 ? "" : i + 1 == parts.size() ? last : ", ") + parts[i];
+  return s;
+}
+
+std::string exempt_words(const DesignResult& d, const DesignLayout& l,
+                         const std::vector<ActiveLimit>& a) {
+  std::vector<std::string> w;
+  for (const auto& x : a) w.push_back(limit_words(d, l, x));
+  return joined(w);
+}
+
+std::string exchanger_name(const DesignLayout& l, const InterstageCondition& c) {
+  return fmt::format("{} ({} to {})", l.coolers.at(c.after).id, bed_id(l, c.after),
+                     bed_id(l, c.after + 1));
+}
+
+std::string rate_change(const InterstageCondition& c) {
+  return fmt::format("the rate after it is {} % {} than before it",
+                     fixed_text(100 * std::abs(c.residual), 2),
+                     c.residual < 0 ? "lower" : "higher");
+}
+
+}  // namespace
+
+std::string active_limit_text(const DesignResult& d, const DesignLayout& l, const ActiveLimit& a) {
+  const std::string& id = bed_id(l, a.bed);
+  switch (a.limit) {
+    case BedLimit::InletAtLow:
+      return fmt::format("{}.T_in = {}", id, low_label(d));
+    case BedLimit::InletAtHigh:
+      return fmt::format("{}.T_in = {}", id, high_label(d));
+    case BedLimit::InletFixed:
+      return fmt::format("{}.T_in = T_feed (fixed)", id);
+    case BedLimit::FarEndAtHigh:
+      return fmt::format("{}.T_max = {}", id, high_label(d));
+    case BedLimit::FarEndAtLow:
+      return fmt::format("{}.T_min = {}", id, low_label(d));
+    case BedLimit::AtEquilibriumEnd:
+      return fmt::format("{}.X_out = X_ad_eq", id);
+  }
+  return id;
+}
+
+const char* condition_state_name(ConditionState s) {
+  switch (s) {
+    case ConditionState::Holds:
+      return "holds";
+    case ConditionState::Limited:
+      return "limited";
+    case ConditionState::Missed:
+      return "missed";
+    case ConditionState::NotComputed:
+      break;
+  }
+  return "not computed";
+}
+
+std::string interstage_text(const DesignResult& d, const DesignLayout& l,
+                            const InterstageCondition& c) {
+  const std::string name = exchanger_name(l, c);
+  switch (c.state) {
+    case ConditionState::Holds:
+      return fmt::format(
+          "{}: equal rates before and after it (within 0.01 %), as the optimum "
+          "of free beds requires",
+          name);
+    case ConditionState::Limited:
+      return fmt::format(
+          "{}: not at the equal-rate point: {}, because {} (where a limit "
+          "holds a bed the rule does not apply)",
+          name, rate_change(c), exempt_words(d, l, c.exempt_by));
+    case ConditionState::Missed:
+      return fmt::format(
+          "{}: {}, and no limit explains it: the optimizer stopped short of the "
+          "optimum here; treat this layout with care",
+          name, rate_change(c));
+    case ConditionState::NotComputed:
+      break;
+  }
+  return fmt::format("{}: the rates could not be evaluated", name);
+}
+
+std::string inlet_text(const DesignResult& d, const DesignLayout& l, const InletCondition& c) {
+  const std::string& id = bed_id(l, c.bed);
+  const std::string what = d.catalyst_objective ? "catalyst" : "volume";
+  const std::string away =
+      c.shift ? fmt::format(
+                    "{} K from the inlet temperature that would need least {} for its "
+                    "conversions",
+                    fixed_text(std::abs(*c.shift), 2), what)
+              : fmt::format(
+                    "away from the inlet temperature that would need least {} for its "
+                    "conversions",
+                    what);
+  switch (c.state) {
+    case ConditionState::Holds:
+      return fmt::format(
+          "{}: fed at the temperature that needs least {} for its conversions "
+          "(within 0.01 K)",
+          id, what);
+    case ConditionState::Limited:
+      return fmt::format("{}: fed {}, because {}", id, away, exempt_words(d, l, c.exempt_by));
+    case ConditionState::Missed:
+      return fmt::format(
+          "{}: fed {}, and no limit explains it: the optimizer stopped short of "
+          "the optimum here; treat this layout with care",
+          id, away);
+    case ConditionState::NotComputed:
+      break;
+  }
+  return fmt::format("{}: its size could not be evaluated near its inlet temperature", id);
+}
+
+std::string interstage_summary(const DesignResult& d, const DesignLayout& l) {
+  if (l.interstage.empty()) return {};
+  std::vector<std::string> holds;
+  std::string other;
+  for (const auto& c : l.interstage) {
+    const std::string& id = l.coolers.at(c.after).id;
+    if (c.state == ConditionState::Holds)
+      holds.push_back(id);
+    else if (c.state == ConditionState::Limited)
+      other += fmt::format(" Not at {}: {}, so the rule does not apply ({}).", id,
+                           exempt_words(d, l, c.exempt_by), rate_change(c));
+    else if (c.state == ConditionState::Missed)
+      other += fmt::format(
+          " Not at {}, and no limit explains it ({}): the optimizer stopped "
+          "short there.",
+          id, rate_change(c));
+    else
+      other += fmt::format(" At {} the rates could not be evaluated.", id);
+  }
+  const char* rule = "where the rate equals the rate at the end of the bed before it";
+  if (other.empty())
+    return fmt::format("At the optimum each exchanger ends {} (checked: within 0.01 %).", rule);
+  if (holds.empty()) return fmt::format("No exchanger here ends {}.", rule) + other;
+  return fmt::format("{} {} {} (checked: within 0.01 %).", joined(holds),
+                     holds.size() == 1 ? "ends" : "end", rule) +
+         other;
+}
+
+std::string window_text(const DesignResult& d) {
+  const std::string limits =
+      fmt::format("T_in_min {} °C and T_max {} °C", celsius_text(*d.limits.T_in_min),
+                  celsius_text(*d.limits.T_max));
+  if (d.margin <= 0) return "within " + limits;
+  return fmt::format("kept {:g} K inside the limits {}: from {} °C to {} °C", d.margin, limits,
+                     celsius_text(d.window_low), celsius_text(d.window_high));
+}
+
+}  // namespace rxtrain
