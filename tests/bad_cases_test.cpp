@@ -13,8 +13,8 @@
 #include <vector>
 
 #include "run_command.hpp"
-#include "rxtrain/case/case.hpp"
 #include "rxtrain/base/units.hpp"
+#include "rxtrain/case/case.hpp"
 
 using namespace rxtrain;
 

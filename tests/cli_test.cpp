@@ -1,7 +1,7 @@
 // The command line as users run it: every demo case, outputs, exit codes.
 #include <catch2/catch.hpp>
-#include <regex>
 #include <nlohmann/json.hpp>
+#include <regex>
 
 #include "run_command.hpp"
 
@@ -267,10 +267,10 @@ TEST_CASE("optimize --margin 15K: the written case runs every peak 15 K inside T
   // Without a margin the demo's bed 1 ends exactly at T_max = 470 °C.
   const auto dir = scratch("optimize_margin");
   const std::string demo = std::string(RXTRAIN_SOURCE_DIR) + "/cases/three-bed-optimize.yaml";
-  const auto r = run_rxtrain("optimize '" + demo + "' --margin 15K --json '" +
-                             (dir / "o.json").string() + "' --write-case '" +
-                             (dir / "opt.yaml").string() + "' --report '" + (dir / "rep").string() +
-                             "'");
+  const auto r =
+      run_rxtrain("optimize '" + demo + "' --margin 15K --json '" + (dir / "o.json").string() +
+                  "' --write-case '" + (dir / "opt.yaml").string() + "' --report '" +
+                  (dir / "rep").string() + "'");
   INFO(r.err);
   REQUIRE(r.exit_code == 0);
   CHECK(r.out.find("kept 15 K inside the limits") != std::string::npos);

@@ -25,8 +25,8 @@
 
 #include "run_command.hpp"
 #include "rxtrain/base/error.hpp"
-#include "rxtrain/report/compare_report.hpp"
 #include "rxtrain/base/units.hpp"
+#include "rxtrain/report/compare_report.hpp"
 
 namespace {
 

@@ -13,10 +13,10 @@
 #include <string>
 #include <vector>
 
-#include "rxtrain/case/case.hpp"
 #include "rxtrain/base/error.hpp"
-#include "rxtrain/flowsheet/train.hpp"
 #include "rxtrain/base/units.hpp"
+#include "rxtrain/case/case.hpp"
+#include "rxtrain/flowsheet/train.hpp"
 #include "s_curve_tank.hpp"
 
 namespace {

@@ -21,8 +21,6 @@
 // The tests evaluate both with GSL and the rate law written here, not with
 // the optimizer's internals. Every kinetic and thermal value is invented
 // test data.
-#include "rxtrain/studies/optimize.hpp"
-
 #include <fmt/format.h>
 #include <gsl/gsl_errno.h>
 #include <gsl/gsl_integration.h>
@@ -33,11 +31,12 @@
 #include <memory>
 #include <string>
 
-#include "rxtrain/studies/write_case.hpp"
-#include "rxtrain/flowsheet/train.hpp"
 #include "rxtrain/base/units.hpp"
+#include "rxtrain/flowsheet/train.hpp"
 #include "rxtrain/report/optimize_html.hpp"
 #include "rxtrain/report/optimize_text.hpp"
+#include "rxtrain/studies/optimize.hpp"
+#include "rxtrain/studies/write_case.hpp"
 
 using namespace rxtrain;
 

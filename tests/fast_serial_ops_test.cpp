@@ -39,7 +39,8 @@ void fill(const Vec& a, const Vec& b, std::mt19937& rng, double lo, double hi) {
   for (sunindextype i = 0; i < N_VGetLength(a.v); ++i) a.d()[i] = b.d()[i] = u(rng);
 }
 void same(const Vec& a, const Vec& b) {
-  for (sunindextype i = 0; i < N_VGetLength(a.v); ++i) CHECK(a.d()[i] == Approx(b.d()[i]).epsilon(1e-15).margin(1e-300));
+  for (sunindextype i = 0; i < N_VGetLength(a.v); ++i)
+    CHECK(a.d()[i] == Approx(b.d()[i]).epsilon(1e-15).margin(1e-300));
 }
 
 }  // namespace
@@ -120,7 +121,8 @@ TEST_CASE("fast dense LU solves like SUNDIALS' dense solver and GSL's LU", "[sol
     SUNMatCopy(Jf, Af);
     SUNMatScaleAddI(-0.7, Af);
     SUNMatScaleAddI(-0.7, Al);
-    for (int k = 0; k < n * n; ++k) CHECK(SM_DATA_D(Af)[k] == Approx(SM_DATA_D(Al)[k]).epsilon(1e-15));
+    for (int k = 0; k < n * n; ++k)
+      CHECK(SM_DATA_D(Af)[k] == Approx(SM_DATA_D(Al)[k]).epsilon(1e-15));
     std::vector<double> m(SM_DATA_D(Al), SM_DATA_D(Al) + n * n);  // column-major copy for GSL
 
     Vec bl(n, c.ctx, false), bf(n, c.ctx, true), xl(n, c.ctx, false), xf(n, c.ctx, true);
@@ -171,7 +173,8 @@ TEST_CASE("fast dense LU solves like SUNDIALS' dense solver and GSL's LU", "[sol
   SUNMatDestroy(S);
 }
 
-TEST_CASE("block-diagonal matrix and block LU solve each block like GSL's LU", "[solver][fastops]") {
+TEST_CASE("block-diagonal matrix and block LU solve each block like GSL's LU",
+          "[solver][fastops]") {
   Ctx c;
   std::mt19937 rng(13);
   std::uniform_real_distribution<double> u(-1, 1);
@@ -210,7 +213,8 @@ TEST_CASE("block-diagonal matrix and block LU solve each block like GSL's LU", "
     int sign = 0;
     gsl_linalg_LU_decomp(g, p, &sign);
     gsl_linalg_LU_solve(g, p, gb, gx);
-    for (int i = 0; i < N; ++i) CHECK(xv.d()[b * N + i] == Approx(gsl_vector_get(gx, i)).epsilon(1e-12));
+    for (int i = 0; i < N; ++i)
+      CHECK(xv.d()[b * N + i] == Approx(gsl_vector_get(gx, i)).epsilon(1e-12));
     gsl_vector_free(gx), gsl_vector_free(gb), gsl_permutation_free(p), gsl_matrix_free(g);
   }
   // A zero block is a recoverable failure naming its first zero pivot.

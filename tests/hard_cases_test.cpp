@@ -20,10 +20,10 @@
 #include <string>
 #include <vector>
 
-#include "rxtrain/case/case.hpp"
 #include "rxtrain/analysis/result_guard.hpp"
-#include "rxtrain/flowsheet/train.hpp"
 #include "rxtrain/base/units.hpp"
+#include "rxtrain/case/case.hpp"
+#include "rxtrain/flowsheet/train.hpp"
 
 using namespace rxtrain;
 
@@ -33,15 +33,15 @@ constexpr double kR = 8.31446261815324;  // J/(mol K), CODATA 2018 (exact)
 
 // One gas-phase A => B case (plus optional extra text), constant cp.
 struct Spec {
-  double T0 = 500;        // K
-  double P = 1e5;         // Pa
-  double Ft = 1;          // mol/s, pure A unless `composition` is set
-  double k_ref = 0.1;     // 1/s at T_ref
-  double Ea = 0;          // J/mol
-  double T_ref = 500;     // K
-  double dH = 0;          // J/mol
-  double cp = 100;        // J/(mol K), both species
-  double V = 1;           // m3
+  double T0 = 500;     // K
+  double P = 1e5;      // Pa
+  double Ft = 1;       // mol/s, pure A unless `composition` is set
+  double k_ref = 0.1;  // 1/s at T_ref
+  double Ea = 0;       // J/mol
+  double T_ref = 500;  // K
+  double dH = 0;       // J/mol
+  double cp = 100;     // J/(mol K), both species
+  double V = 1;        // m3
   std::string type = "pfr";
   std::string heat = "isothermal";
 };
@@ -75,7 +75,9 @@ TrainResult run_text(const std::string& text, const TrainOptions& options = {}) 
   return r;
 }
 
-double k_of(const Spec& s, double T) { return s.k_ref * std::exp(-s.Ea / kR * (1 / T - 1 / s.T_ref)); }
+double k_of(const Spec& s, double T) {
+  return s.k_ref * std::exp(-s.Ea / kR * (1 / T - 1 / s.T_ref));
+}
 
 // The PFR above, integrated by GSL to V; returns {F_A, T}.
 std::vector<double> gsl_pfr(const Spec& s, bool adiabatic) {
@@ -275,8 +277,8 @@ TEST_CASE("hard: adiabatic CSTR with three steady states, each a true root", "[h
     gsl_root_fsolver_set(solver, &fn, a, b);
     for (int it = 0; it < 200; ++it) {
       gsl_root_fsolver_iterate(solver);
-      if (gsl_root_test_interval(gsl_root_fsolver_x_lower(solver),
-                                 gsl_root_fsolver_x_upper(solver), 0, 1e-12) == GSL_SUCCESS)
+      if (gsl_root_test_interval(gsl_root_fsolver_x_lower(solver), gsl_root_fsolver_x_upper(solver),
+                                 0, 1e-12) == GSL_SUCCESS)
         break;
     }
     roots.push_back(gsl_root_fsolver_root(solver));
@@ -360,8 +362,7 @@ TEST_CASE("hard: a CVODE failure names the stage, the position, the reason and a
   }
 }
 
-TEST_CASE("hard: a Newton failure names the stage, the volume, the reason and a remedy",
-          "[hard]") {
+TEST_CASE("hard: a Newton failure names the stage, the volume, the reason and a remedy", "[hard]") {
   Spec s;
   s.type = "cstr";
   s.heat = "adiabatic";

@@ -3,7 +3,10 @@
 // an output) and all-or-nothing output. Large inputs are generated here at
 // run time, not committed. The committed small ones are
 // tests/bad_cases/60-* and up.
+#include "rxtrain/base/input_limits.hpp"
+
 #include <fmt/format.h>
+#include <unistd.h>
 
 #include <catch2/catch.hpp>
 #include <chrono>
@@ -13,15 +16,13 @@
 #include <iterator>
 #include <limits>
 #include <string>
-#include <unistd.h>
 
 #include "run_command.hpp"
-#include "rxtrain/case/case.hpp"
-#include "rxtrain/base/input_limits.hpp"
-#include "rxtrain/report/atomic_file.hpp"
 #include "rxtrain/analysis/result_guard.hpp"
-#include "rxtrain/flowsheet/train.hpp"
 #include "rxtrain/base/units.hpp"
+#include "rxtrain/case/case.hpp"
+#include "rxtrain/flowsheet/train.hpp"
+#include "rxtrain/report/atomic_file.hpp"
 
 using namespace rxtrain;
 
@@ -73,8 +74,7 @@ TEST_CASE("the small valid case loads (the base of every limit test)", "[limits]
   CHECK(refusal(small_case()).empty());
 }
 
-TEST_CASE("file size limit: above 10 MiB is refused, from text and through the CLI",
-          "[limits]") {
+TEST_CASE("file size limit: above 10 MiB is refused, from text and through the CLI", "[limits]") {
   // A valid case padded with a comment past 10 MiB.
   std::string text = small_case() + "# " + std::string(10u * 1024u * 1024u, 'x') + "\n";
   CHECK_THAT(refusal(text), Catch::Contains("limit is 10485760 bytes"));
@@ -90,7 +90,8 @@ TEST_CASE("species limit 1000 and reaction limit 5000", "[limits]") {
   std::string species = "[";
   for (int i = 0; i < 1001; ++i) species += fmt::format("{}{{id: S{}}}", i ? ", " : "", i);
   species += "]";
-  CHECK_THAT(refusal(small_case(species)), Catch::Contains("too many species: 1001 (the limit is 1000)"));
+  CHECK_THAT(refusal(small_case(species)),
+             Catch::Contains("too many species: 1001 (the limit is 1000)"));
   std::string reactions = "[";
   for (int i = 0; i < 5001; ++i)
     reactions += fmt::format("{}{{id: r{}, equation: A => B, rate: {{A: 1 1/s, Ea: 0}}, dH: 0}}",
@@ -103,7 +104,9 @@ TEST_CASE("species limit 1000 and reaction limit 5000", "[limits]") {
 TEST_CASE("nesting depth limit 64: refused before yaml-cpp recurses", "[limits]") {
   // 64 levels pass the scan; 65 do not. A million levels must be refused
   // quickly, without a stack overflow inside the parser.
-  auto flow = [](int n) { return "x: " + std::string(n - 1, '[') + "1" + std::string(n - 1, ']') + "\n"; };
+  auto flow = [](int n) {
+    return "x: " + std::string(n - 1, '[') + "1" + std::string(n - 1, ']') + "\n";
+  };
   CHECK_NOTHROW(check_text_limits(flow(64), "d.yaml"));
   CHECK_THROWS_WITH(check_text_limits(flow(65), "d.yaml"),
                     Catch::Contains("d.yaml:1:") && Catch::Contains("nesting depth limit"));
@@ -132,9 +135,10 @@ TEST_CASE("alias node limit: billion laughs is refused in linear time", "[limits
   // 40 levels of ten aliases each stand for 10^40 nodes.
   std::string text = "a0: &a0 [x, x, x, x, x, x, x, x, x, x]\n";
   for (int i = 1; i < 40; ++i)
-    text += fmt::format("a{0}: &a{0} [*a{1}, *a{1}, *a{1}, *a{1}, *a{1}, *a{1}, *a{1}, *a{1}, "
-                        "*a{1}, *a{1}]\n",
-                        i, i - 1);
+    text += fmt::format(
+        "a{0}: &a{0} [*a{1}, *a{1}, *a{1}, *a{1}, *a{1}, *a{1}, *a{1}, *a{1}, "
+        "*a{1}, *a{1}]\n",
+        i, i - 1);
   const auto t0 = std::chrono::steady_clock::now();
   CHECK_THAT(refusal(text), Catch::Contains("alias node limit exceeded"));
   CHECK(std::chrono::steady_clock::now() - t0 < std::chrono::seconds(20));
@@ -147,8 +151,8 @@ TEST_CASE("control characters are refused (YAML 1.2.2 section 5.1)", "[limits]")
   // A NUL before a ',' hid the token start from the comma check and hung
   // yaml-cpp 0.7 (found by fuzzing; the input is a corpus seed).
   using namespace std::string_literals;
-  const std::string bad[] = {"title: a\0b\n"s, "title: a\x01\n"s, "\0,\n"s, "title: \x1B[0m\n"s,
-                             "title: a\x7F\n"s, "title: \xC2\x9B\n"s};
+  const std::string bad[] = {"title: a\0b\n"s,    "title: a\x01\n"s, "\0,\n"s,
+                             "title: \x1B[0m\n"s, "title: a\x7F\n"s, "title: \xC2\x9B\n"s};
   for (const auto& t : bad) {
     INFO(t);
     CHECK_THROWS_WITH(check_text_limits("a: 1\n" + t, "c.yaml"),
@@ -160,15 +164,14 @@ TEST_CASE("control characters are refused (YAML 1.2.2 section 5.1)", "[limits]")
   CHECK_NOTHROW(check_text_limits("title:\tx\r\nb: \xC2\x85\n", "c.yaml"));
 }
 
-TEST_CASE("block scalars: text lines are skipped, a less indented line ends them",
-          "[limits]") {
+TEST_CASE("block scalars: text lines are skipped, a less indented line ends them", "[limits]") {
   // yaml-cpp 0.7 never returned from these (found by fuzzing): the ',' line
   // ends the block scalar and begins a token (YAML 1.2.2, 8.1.1.1).
-  for (const char* t :
-       {">\n  a\n , b\n", "|\n   a\n  ,\n", "a: |\n    x\n   ,\n", ">9\n  \n ,\n", " >\n \"\n,\n"}) {
+  for (const char* t : {">\n  a\n , b\n", "|\n   a\n  ,\n", "a: |\n    x\n   ,\n", ">9\n  \n ,\n",
+                        " >\n \"\n,\n"}) {
     INFO(t);
-    CHECK_THROWS_WITH(check_text_limits(t, "b.yaml"), Catch::Contains("b.yaml:3:") &&
-                                                          Catch::Contains("','"));
+    CHECK_THROWS_WITH(check_text_limits(t, "b.yaml"),
+                      Catch::Contains("b.yaml:3:") && Catch::Contains("','"));
   }
   // Only ':' or a comment may follow a quoted value on its line.
   for (const char* t : {"\"a\"5\n?\n", "'a' b\n", "x:\n  - \"a\"b\n"}) {
@@ -205,15 +208,14 @@ TEST_CASE("an alias that refers to its own node (a cycle) is refused", "[limits]
   CHECK_THAT(refusal("a: &m {b: *m}\n"), Catch::Contains("cycle"));
 }
 
-TEST_CASE("invalid UTF-8 is refused at the line and column of the first bad byte",
-          "[limits]") {
+TEST_CASE("invalid UTF-8 is refused at the line and column of the first bad byte", "[limits]") {
   const std::string bad[] = {
-      "title: caf\xE9\n",              // Latin-1 byte
-      "title: \xC0\xAF\n",             // overlong "/"
-      "title: \xED\xA0\x80\n",         // UTF-16 surrogate
-      "title: \xF4\x90\x80\x80\n",     // above U+10FFFF
-      "title: \xE2\x82\n",             // truncated sequence
-      "title: \x80\n",                 // stray continuation byte
+      "title: caf\xE9\n",           // Latin-1 byte
+      "title: \xC0\xAF\n",          // overlong "/"
+      "title: \xED\xA0\x80\n",      // UTF-16 surrogate
+      "title: \xF4\x90\x80\x80\n",  // above U+10FFFF
+      "title: \xE2\x82\n",          // truncated sequence
+      "title: \x80\n",              // stray continuation byte
   };
   for (const auto& t : bad) {
     INFO(t);
@@ -223,19 +225,25 @@ TEST_CASE("invalid UTF-8 is refused at the line and column of the first bad byte
   // Column counts characters: "é" (2 bytes) then the bad byte at column 10.
   CHECK_THROWS_WITH(check_text_limits("title: \xC3\xA9\xFF\n", "u.yaml"),
                     Catch::StartsWith("u.yaml:1:9:"));
-  CHECK_NOTHROW(check_text_limits("title: r\xC3\xA9" "acteur \xE2\x82\xAC \xF0\x9F\x98\x80\n", "u.yaml"));
+  CHECK_NOTHROW(
+      check_text_limits("title: r\xC3\xA9"
+                        "acteur \xE2\x82\xAC \xF0\x9F\x98\x80\n",
+                        "u.yaml"));
   CHECK_NOTHROW(check_text_limits("\xEF\xBB\xBFtitle: with BOM\n", "u.yaml"));
 }
 
 TEST_CASE("very long strings and numbers: a clear answer, never a crash", "[limits]") {
   // A 1 MB title is text and loads; a number with 100,000 digits overflows
   // to infinity and is refused as not finite.
-  CHECK(refusal("title: " + std::string(1000000, 't') + "\n" + small_case().substr(small_case().find('\n') + 1)).empty());
+  CHECK(refusal("title: " + std::string(1000000, 't') + "\n" +
+                small_case().substr(small_case().find('\n') + 1))
+            .empty());
   const std::string huge = "1" + std::string(100000, '0') + " m3";
-  CHECK_THAT(refusal(small_case("[{id: A}, {id: B}]",
-                                "[{id: r1, equation: A => B, rate: {A: 0.1 1/s, Ea: 0 J/mol}, dH: 0 J/mol}]",
-                                huge)),
-             Catch::Contains("volume of stage R1"));
+  CHECK_THAT(
+      refusal(small_case(
+          "[{id: A}, {id: B}]",
+          "[{id: r1, equation: A => B, rate: {A: 0.1 1/s, Ea: 0 J/mol}, dH: 0 J/mol}]", huge)),
+      Catch::Contains("volume of stage R1"));
   const std::string long_id(100000, 'S');
   CHECK(refusal(small_case("[{id: A}, {id: B}, {id: " + long_id + "}]")).empty());
   // Duplicate keys are refused at the second one (see also bad case 34).
@@ -252,10 +260,10 @@ TEST_CASE("a ',' where a token begins is refused before yaml-cpp loops on it", "
   CHECK_THAT(refusal("'a\n  b',\n"), Catch::Contains("x.yaml:2:5:"));
   // A second quoted value on the line is refused at its opening quote,
   // before the ',' (only ':' or a comment may follow a quoted value).
-  CHECK_THAT(refusal("\"\"\"\","), Catch::Contains("x.yaml:1:3:") &&
-                                       Catch::Contains("after a quoted value"));
-  CHECK_THAT(refusal("\"\" \"\","), Catch::Contains("x.yaml:1:4:") &&
-                                        Catch::Contains("after a quoted value"));
+  CHECK_THAT(refusal("\"\"\"\","),
+             Catch::Contains("x.yaml:1:3:") && Catch::Contains("after a quoted value"));
+  CHECK_THAT(refusal("\"\" \"\","),
+             Catch::Contains("x.yaml:1:4:") && Catch::Contains("after a quoted value"));
   CHECK_THAT(refusal("[a],"), Catch::Contains("x.yaml:1:4:"));
   CHECK_THAT(refusal("{a: 1} ,"), Catch::Contains("x.yaml:1:8:"));
   CHECK_THAT(refusal("&x 'a',"), Catch::Contains("x.yaml:1:7:"));
@@ -275,19 +283,18 @@ TEST_CASE("tags, explicit keys, directives and reserved indicators are refused",
   // A case file needs none of them; yaml-cpp 0.7 never returns on "! 5"
   // then "?" (found by fuzz_case_loader). '@' and '`' are reserved and
   // cannot start a plain scalar (YAML 1.2.2, 5.3).
-  CHECK_THAT(refusal("! 5\n?\n"), Catch::Contains("x.yaml:1:1: error:") &&
-                                      Catch::Contains("tag ('!')"));
-  CHECK_THAT(refusal("a: !!float 5\n"), Catch::Contains("x.yaml:1:4:") &&
-                                            Catch::Contains("tag"));
+  CHECK_THAT(refusal("! 5\n?\n"),
+             Catch::Contains("x.yaml:1:1: error:") && Catch::Contains("tag ('!')"));
+  CHECK_THAT(refusal("a: !!float 5\n"), Catch::Contains("x.yaml:1:4:") && Catch::Contains("tag"));
   CHECK_THAT(refusal("a: [1, !x 2]\n"), Catch::Contains("x.yaml:1:8:"));
   CHECK_THAT(refusal("a: [&q !t 1]\n"), Catch::Contains("x.yaml:1:8:"));
-  CHECK_THAT(refusal("? a\n: b\n"), Catch::Contains("x.yaml:1:1:") &&
-                                       Catch::Contains("explicit key"));
+  CHECK_THAT(refusal("? a\n: b\n"),
+             Catch::Contains("x.yaml:1:1:") && Catch::Contains("explicit key"));
   CHECK_THAT(refusal("- ? a\n"), Catch::Contains("x.yaml:1:3:"));
   CHECK_THAT(refusal("a: {? b}\n"), Catch::Contains("x.yaml:1:5:"));
   CHECK_THAT(refusal("a: ?\n"), Catch::Contains("x.yaml:1:4:"));
-  CHECK_THAT(refusal("%YAML 1.2\n---\na: 1\n"), Catch::Contains("x.yaml:1:1:") &&
-                                                     Catch::Contains("directive"));
+  CHECK_THAT(refusal("%YAML 1.2\n---\na: 1\n"),
+             Catch::Contains("x.yaml:1:1:") && Catch::Contains("directive"));
   CHECK_THAT(refusal("a: @b\n"), Catch::Contains("x.yaml:1:4:") && Catch::Contains("reserved"));
   CHECK_THAT(refusal("a: [x, `b]\n"), Catch::Contains("x.yaml:1:8:"));
   // The same characters inside text are text.
@@ -303,8 +310,8 @@ TEST_CASE("a line that continues a plain scalar is text, quotes and all", "[limi
   // yaml-cpp 0.7 reads ' "' after '&> e' as more of the plain scalar and
   // never returns on the ',' that starts the next line (found by
   // fuzz_case_loader); YAML 1.2.2, 7.3.3 reads it the same way.
-  CHECK_THAT(refusal("&> e\n \"\n,"), Catch::Contains("x.yaml:3:1: error:") &&
-                                          Catch::Contains("','"));
+  CHECK_THAT(refusal("&> e\n \"\n,"),
+             Catch::Contains("x.yaml:3:1: error:") && Catch::Contains("','"));
   CHECK_THAT(refusal("title: a\n  'b\n,\n"), Catch::Contains("x.yaml:3:1:"));
   // A line indented no further than the scalar's mapping begins a token.
   CHECK_THAT(refusal(" : p\n\"\",\n"), Catch::Contains("x.yaml:2:3:"));
@@ -378,8 +385,7 @@ TEST_CASE("check_finite names the stage and the field of a NaN or Inf", "[limits
   CHECK_THROWS_AS(check_finite(bad), SolverError);
 }
 
-TEST_CASE("output: the case file is protected, and a failure leaves nothing behind",
-          "[limits]") {
+TEST_CASE("output: the case file is protected, and a failure leaves nothing behind", "[limits]") {
   const auto dir = scratch("out");
   const auto input = dir / "case.yaml";
   write(input, small_case());

@@ -57,8 +57,8 @@ TEST_CASE("no header of a lower layer includes a higher one", "[layers]") {
       for (std::sregex_iterator m(text.begin(), text.end(), include), stop; m != stop; ++m) {
         const std::string used = (*m)[1];
         if (rank.count(used) == 0 || rank.at(used) > rank.at(layer))
-          violations.push_back(fs::relative(e.path(), RXTRAIN_SOURCE_DIR).string() +
-                               " (layer " + layer + ") includes rxtrain/" + used + "/");
+          violations.push_back(fs::relative(e.path(), RXTRAIN_SOURCE_DIR).string() + " (layer " +
+                               layer + ") includes rxtrain/" + used + "/");
       }
     }
   }

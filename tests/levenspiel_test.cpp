@@ -13,11 +13,11 @@
 #include <string>
 
 #include "run_command.hpp"
+#include "rxtrain/base/units.hpp"
 #include "rxtrain/case/case.hpp"
+#include "rxtrain/flowsheet/train.hpp"
 #include "rxtrain/report/csv.hpp"
 #include "rxtrain/report/json.hpp"
-#include "rxtrain/flowsheet/train.hpp"
-#include "rxtrain/base/units.hpp"
 
 namespace {
 

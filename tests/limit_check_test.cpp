@@ -20,11 +20,11 @@
 #include "hot_bed.hpp"
 #include "run_command.hpp"
 #include "rxtrain/analysis/train_warnings.hpp"
+#include "rxtrain/base/units.hpp"
+#include "rxtrain/flowsheet/train.hpp"
 #include "rxtrain/sweep/outputs.hpp"
 #include "rxtrain/sweep/run_point.hpp"
 #include "rxtrain/sweep/summary.hpp"
-#include "rxtrain/flowsheet/train.hpp"
-#include "rxtrain/base/units.hpp"
 
 using namespace rxtrain;
 

@@ -1,13 +1,14 @@
 // Rates, their analytic Jacobian, and equilibrium constants, checked against
 // finite differences, the definition of the rate law, published thermo data
 // and a published correlation.
-#include "test_species.hpp"
 #include "rxtrain/kinetics/mechanism.hpp"
 
 #include <catch2/catch.hpp>
 #include <cmath>
 #include <string>
 #include <vector>
+
+#include "test_species.hpp"
 
 using namespace rxtrain;
 

@@ -22,14 +22,14 @@
 #include <variant>
 #include <vector>
 
-#include "rxtrain/case/case.hpp"
-#include "rxtrain/models/equilibrium.hpp"
 #include "rxtrain/base/error.hpp"
-#include "rxtrain/stages/cstr.hpp"
-#include "rxtrain/stages/pfr.hpp"
+#include "rxtrain/base/units.hpp"
+#include "rxtrain/case/case.hpp"
 #include "rxtrain/chem/thermo.hpp"
 #include "rxtrain/flowsheet/train.hpp"
-#include "rxtrain/base/units.hpp"
+#include "rxtrain/models/equilibrium.hpp"
+#include "rxtrain/stages/cstr.hpp"
+#include "rxtrain/stages/pfr.hpp"
 
 using namespace rxtrain;
 

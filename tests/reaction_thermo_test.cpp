@@ -3,8 +3,6 @@
 // against the thermo-derived K of SO2 oxidation in reference-data.md.
 #include "rxtrain/chem/reaction_thermo.hpp"
 
-#include "rxtrain/kinetics/mechanism.hpp"
-
 #include <gsl/gsl_deriv.h>
 #include <gsl/gsl_errno.h>
 #include <gsl/gsl_integration.h>
@@ -15,6 +13,8 @@
 #include <functional>
 #include <memory>
 #include <vector>
+
+#include "rxtrain/kinetics/mechanism.hpp"
 
 using namespace rxtrain;
 
@@ -56,7 +56,9 @@ Species so3() {
 
 double gsl_integral(const std::function<double(double)>& f, double a, double b) {
   gsl_function g;
-  g.function = [](double x, void* p) { return (*static_cast<std::function<double(double)>*>(p))(x); };
+  g.function = [](double x, void* p) {
+    return (*static_cast<std::function<double(double)>*>(p))(x);
+  };
   g.params = const_cast<std::function<double(double)>*>(&f);
   std::unique_ptr<gsl_integration_workspace, decltype(&gsl_integration_workspace_free)> ws(
       gsl_integration_workspace_alloc(1000), &gsl_integration_workspace_free);

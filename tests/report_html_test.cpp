@@ -9,14 +9,14 @@
 #include <sstream>
 
 #include "run_command.hpp"
-#include "rxtrain/case/case.hpp"
-#include "rxtrain/report/figures.hpp"
-#include "rxtrain/report/compare_report.hpp"
-#include "rxtrain/report/html.hpp"
-#include "rxtrain/report/staging_html.hpp"
-#include "rxtrain/report/sha256.hpp"
-#include "rxtrain/report/text_format.hpp"
 #include "rxtrain/base/units.hpp"
+#include "rxtrain/case/case.hpp"
+#include "rxtrain/report/compare_report.hpp"
+#include "rxtrain/report/figures.hpp"
+#include "rxtrain/report/html.hpp"
+#include "rxtrain/report/sha256.hpp"
+#include "rxtrain/report/staging_html.hpp"
+#include "rxtrain/report/text_format.hpp"
 
 using namespace rxtrain;
 namespace fs = std::filesystem;
@@ -360,10 +360,9 @@ TEST_CASE("optimize --report: the optimum shown equals the JSON; the trade-off h
   const auto dir = fs::temp_directory_path() / "rxtrain_html_optimize";
   fs::remove_all(dir);
   const std::string demo = std::string(RXTRAIN_SOURCE_DIR) + "/cases/three-bed-optimize.yaml";
-  const auto res =
-      rxtrain::test::run_rxtrain("optimize '" + demo + "' --max-beds 2 --report '" +
-                                 (dir / "rep").string() + "' --json '" +
-                                 (dir / "o.json").string() + "'");
+  const auto res = rxtrain::test::run_rxtrain("optimize '" + demo + "' --max-beds 2 --report '" +
+                                              (dir / "rep").string() + "' --json '" +
+                                              (dir / "o.json").string() + "'");
   INFO(res.err);
   REQUIRE(res.exit_code == 0);
   const auto j = nlohmann::json::parse(rxtrain::test::slurp(dir / "o.json"));

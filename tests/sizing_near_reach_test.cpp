@@ -16,9 +16,9 @@
 #include <cmath>
 #include <string>
 
+#include "rxtrain/base/units.hpp"
 #include "rxtrain/case/case.hpp"
 #include "rxtrain/flowsheet/train.hpp"
-#include "rxtrain/base/units.hpp"
 
 namespace {
 

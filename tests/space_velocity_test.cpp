@@ -15,9 +15,9 @@
 #include <string>
 
 #include "run_command.hpp"
+#include "rxtrain/base/units.hpp"
 #include "rxtrain/case/case.hpp"
 #include "rxtrain/flowsheet/train.hpp"
-#include "rxtrain/base/units.hpp"
 
 namespace {
 

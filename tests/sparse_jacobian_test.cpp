@@ -9,12 +9,12 @@
 #include <thread>
 #include <vector>
 
-#include "test_species.hpp"
+#include "rxtrain/base/units.hpp"
 #include "rxtrain/case/case.hpp"
-#include "rxtrain/stages/pfr.hpp"
 #include "rxtrain/case/synthetic_case.hpp"
 #include "rxtrain/flowsheet/train.hpp"
-#include "rxtrain/base/units.hpp"
+#include "rxtrain/stages/pfr.hpp"
+#include "test_species.hpp"
 
 using namespace rxtrain;
 

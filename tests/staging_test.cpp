@@ -30,8 +30,8 @@
 
 #include "run_command.hpp"
 #include "rxtrain/analysis/train_warnings.hpp"
-#include "rxtrain/report/staging_report.hpp"
 #include "rxtrain/base/units.hpp"
+#include "rxtrain/report/staging_report.hpp"
 
 using namespace rxtrain;
 

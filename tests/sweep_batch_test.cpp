@@ -3,22 +3,22 @@
 // rows for any jobs and shards, and failed batches rerun run by run.
 #include <fmt/format.h>
 
-#include <catch2/catch.hpp>
 #include <algorithm>
+#include <catch2/catch.hpp>
 #include <cmath>
 #include <filesystem>
 #include <fstream>
 #include <sstream>
 #include <string>
 
+#include "rxtrain/base/units.hpp"
 #include "rxtrain/case/case.hpp"
+#include "rxtrain/flowsheet/train.hpp"
 #include "rxtrain/sweep/case_path.hpp"
 #include "rxtrain/sweep/outputs.hpp"
 #include "rxtrain/sweep/study.hpp"
 #include "rxtrain/sweep/sweep.hpp"
 #include "rxtrain/sweep/sweep_csv.hpp"
-#include "rxtrain/flowsheet/train.hpp"
-#include "rxtrain/base/units.hpp"
 #include "sized_tube.hpp"
 
 using namespace rxtrain;
@@ -86,9 +86,9 @@ TEST_CASE("a batched study's rows follow the analytic plug-flow solution", "[swe
   // between them changes nothing.
   const Fixture f(kTube);
   const OutputSpec o = OutputSpec::parse("X,R1.conversion", f.c);
-  const Study s = f.study({}, {"reactions.r1.rate.A=lognormal(1e-3,0.5)",
-                               "train.R2.volume=uniform(0.01m3,0.3m3)"},
-                          40, &o);
+  const Study s = f.study(
+      {}, {"reactions.r1.rate.A=lognormal(1e-3,0.5)", "train.R2.volume=uniform(0.01m3,0.3m3)"}, 40,
+      &o);
   REQUIRE(s.chain_length() == kBatchRuns);
   const auto rows = run(f, s, o, 2);
   REQUIRE(rows.size() == 40);
@@ -143,9 +143,8 @@ TEST_CASE("batched rows are as accurate as lone runs", "[sweep][batch]") {
 TEST_CASE("batched rows and CSV are identical for any jobs and shards", "[sweep][batch]") {
   const Fixture f(kTube);
   const OutputSpec o = OutputSpec::defaults(f.c);
-  const Study s =
-      f.study({}, {"reactions.r1.rate.A=lognormal(1e-3,0.3)", "train.R1.volume=normal(0.1m3,0.01m3)"},
-              37);
+  const Study s = f.study(
+      {}, {"reactions.r1.rate.A=lognormal(1e-3,0.3)", "train.R1.volume=normal(0.1m3,0.01m3)"}, 37);
   REQUIRE(s.chain_length() == kBatchRuns);
   const StudyHeader h{"test", "abc", s.definition(), o.names()};
   const auto names = s.input_names();

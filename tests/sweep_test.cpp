@@ -15,7 +15,9 @@
 #include <string>
 #include <variant>
 
+#include "rxtrain/base/units.hpp"
 #include "rxtrain/case/case.hpp"
+#include "rxtrain/flowsheet/train.hpp"
 #include "rxtrain/sweep/case_path.hpp"
 #include "rxtrain/sweep/outputs.hpp"
 #include "rxtrain/sweep/percentiles.hpp"
@@ -23,8 +25,6 @@
 #include "rxtrain/sweep/study.hpp"
 #include "rxtrain/sweep/summary.hpp"
 #include "rxtrain/sweep/sweep_csv.hpp"
-#include "rxtrain/flowsheet/train.hpp"
-#include "rxtrain/base/units.hpp"
 #include "s_curve_tank.hpp"
 #include "sized_tube.hpp"
 
@@ -51,8 +51,6 @@ train:
   - {type: pfr, id: R1, volume: 0.1 m3, heat: isothermal}
 )";
 constexpr double kV0 = 1e-4;  // m3/s
-
-
 
 std::string demo_text() {
   std::ifstream in(std::filesystem::path(RXTRAIN_SOURCE_DIR) / "cases" /

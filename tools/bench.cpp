@@ -21,13 +21,13 @@
 #include <thread>
 #include <vector>
 
+#include "rxtrain/base/units.hpp"
 #include "rxtrain/case/case.hpp"
+#include "rxtrain/case/synthetic_case.hpp"
+#include "rxtrain/flowsheet/train.hpp"
 #include "rxtrain/sweep/outputs.hpp"
 #include "rxtrain/sweep/study.hpp"
 #include "rxtrain/sweep/sweep.hpp"
-#include "rxtrain/case/synthetic_case.hpp"
-#include "rxtrain/flowsheet/train.hpp"
-#include "rxtrain/base/units.hpp"
 
 // Counts the heap allocations of each thread, to report allocations per
 // run. A benchmark-only global; the library itself keeps no global state.
@@ -253,10 +253,10 @@ void bench_synthetic(double budget) {
     const Work w = work_of(run_train(c, sparse, ws));
     const Timing t = median_seconds([&] { (void)run_train(c, sparse, ws); }, budget);
     const double per_step = t.cpu / static_cast<double>(w.steps);
-    const std::string growth =
-        previous_step > 0 ? fmt::format("run x{:.2f}, step x{:.2f}", t.cpu / previous_run,
-                                        per_step / previous_step)
-                          : std::string();
+    const std::string growth = previous_step > 0
+                                   ? fmt::format("run x{:.2f}, step x{:.2f}", t.cpu / previous_run,
+                                                 per_step / previous_step)
+                                   : std::string();
     fmt::print("{:>7} {:>9} {:>8.3f} ms {:>8.3f} ms {:>7} {:>9.2f} us {:>22}\n", sz[0], sz[1],
                t.wall * 1e3, t.cpu * 1e3, w.steps, per_step * 1e6, growth);
     previous_step = per_step;

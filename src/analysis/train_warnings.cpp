@@ -10,8 +10,8 @@
 #include "rxtrain/base/units.hpp"
 #include "rxtrain/models/energy_balance.hpp"
 #include "rxtrain/models/equilibrium.hpp"
-#include "rxtrain/stages/limit_check.hpp"
 #include "rxtrain/stages/exchanger.hpp"
+#include "rxtrain/stages/limit_check.hpp"
 #include "rxtrain/stages/pfr.hpp"
 
 namespace rxtrain {

@@ -5,11 +5,11 @@
 #include <yaml-cpp/yaml.h>
 
 #include <algorithm>
-#include <map>
-#include <utility>
 #include <cstdint>
+#include <map>
 #include <optional>
 #include <sstream>
+#include <utility>
 #include <vector>
 
 namespace rxtrain {
@@ -56,8 +56,7 @@ void check_utf8(std::string_view text, const std::string& name) {
     // token start from the pre-parse check below and hangs its parser.
     const unsigned b0 = static_cast<unsigned char>(text[i]);
     const unsigned b1 = len == 2 ? static_cast<unsigned char>(text[i + 1]) : 0u;
-    const bool c0 = len == 1 && (b0 < 0x20 || b0 == 0x7F) && b0 != '\t' && b0 != '\n' &&
-                    b0 != '\r';
+    const bool c0 = len == 1 && (b0 < 0x20 || b0 == 0x7F) && b0 != '\t' && b0 != '\n' && b0 != '\r';
     const bool c1 = len == 2 && b0 == 0xC2 && b1 >= 0x80 && b1 <= 0x9F && b1 != 0x85;
     if (c0 || c1)
       throw InputError({name, line, column},
@@ -207,8 +206,10 @@ class DepthScan {
              (i + 1 == l.size() || is_space(l[i + 1]))) {
         refuse_unsupported(l, i, line);
         continuation = false;
-        if (first) open_block(i, true);
-        else levels_.push_back({i, true});
+        if (first)
+          open_block(i, true);
+        else
+          levels_.push_back({i, true});
         first = false;
         check(line, i);
         ++i;
@@ -224,8 +225,10 @@ class DepthScan {
                          "[...] or mapping {...}");
       if (i < l.size() && l[i] != '#' && has_key(l.substr(i))) {
         continuation = false;
-        if (first) open_block(i, false);
-        else levels_.push_back({i, false});
+        if (first)
+          open_block(i, false);
+        else
+          levels_.push_back({i, false});
         check(line, i);
       } else if (first && i < l.size() && l[i] != '#') {
         // A scalar line: closes deeper levels, opens none.
@@ -243,15 +246,17 @@ class DepthScan {
   // '`', which cannot start a plain scalar (YAML 1.2.2, 5.3).
   void refuse_unsupported(std::string_view l, std::size_t i, int line) const {
     const char c = l[i];
-    const bool ends = i + 1 == l.size() || is_space(l[i + 1]) ||
-                      (flow_ > 0 && is_flow_indicator(l[i + 1]));
+    const bool ends =
+        i + 1 == l.size() || is_space(l[i + 1]) || (flow_ > 0 && is_flow_indicator(l[i + 1]));
     const char* what = nullptr;
-    if (c == '!') what = "a YAML tag ('!') is not allowed in a case file; remove it";
+    if (c == '!')
+      what = "a YAML tag ('!') is not allowed in a case file; remove it";
     else if (c == '?' && ends)
       what = "an explicit key ('? ') is not allowed in a case file; write 'key: value'";
     else if (c == '%')
-      what = "a YAML directive or a value starting with '%' is not allowed in a case file; "
-             "quote the value";
+      what =
+          "a YAML directive or a value starting with '%' is not allowed in a case file; "
+          "quote the value";
     else if (c == '@' || c == '`')
       what = "a value cannot start with '@' or '`' (reserved in YAML); quote the value";
     if (what)
@@ -364,9 +369,9 @@ class DepthScan {
         }
         last_nonspace = c;
       }
-      if ((c == '"' || c == '\'') && (block ? token_start
-                                            : is_space(last) || last == '[' || last == '{' ||
-                                                  last == ',' || last == ':')) {
+      if ((c == '"' || c == '\'') &&
+          (block ? token_start
+                 : is_space(last) || last == '[' || last == '{' || last == ',' || last == ':')) {
         in_quote_ = c;
         quote_opens_token_ = block;
       } else if ((c == '[' || c == '{') && (!block || token_start)) {
@@ -546,8 +551,7 @@ void check_parser_finishes(const std::string& text, const std::string& name) {
   }
 }
 
-void check_text_limits(std::string_view text, const std::string& name,
-                       const InputLimits& limits) {
+void check_text_limits(std::string_view text, const std::string& name, const InputLimits& limits) {
   if (text.size() > limits.max_bytes)
     throw InputError({name, 0, 0},
                      fmt::format("file size limit exceeded: the case file is {} bytes; the limit "
@@ -557,8 +561,7 @@ void check_text_limits(std::string_view text, const std::string& name,
   DepthScan(name, limits.max_depth).run(text);
 }
 
-void check_node_count(const YAML::Node& root, const std::string& name,
-                      const InputLimits& limits) {
+void check_node_count(const YAML::Node& root, const std::string& name, const InputLimits& limits) {
   NodeCounter counter(name);
   const std::uint64_t expanded = counter.count(root);
   // The limit bounds what aliases add: a file without aliases is already

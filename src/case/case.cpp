@@ -23,11 +23,11 @@
 #include <utility>
 #include <vector>
 
-#include "rxtrain/chem/equation.hpp"
-#include "rxtrain/chem/formula.hpp"
 #include "rxtrain/base/input_limits.hpp"
 #include "rxtrain/base/suggest.hpp"
 #include "rxtrain/base/units.hpp"
+#include "rxtrain/chem/equation.hpp"
+#include "rxtrain/chem/formula.hpp"
 
 namespace rxtrain {
 

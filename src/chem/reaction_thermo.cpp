@@ -99,7 +99,8 @@ double ReactionThermo::dCp(double T) const {
 }
 
 double ReactionThermo::ln_K(double T) const {
-  if (!has_gibbs_) throw std::logic_error("thermo: ln K requested without h_f and s of every species");
+  if (!has_gibbs_)
+    throw std::logic_error("thermo: ln K requested without h_f and s of every species");
   const Piece& p = piece_at(T);
   const double h = p.h_abs + H(p, T);
   const double s = p.s_abs + S(p, T);
@@ -107,7 +108,8 @@ double ReactionThermo::ln_K(double T) const {
 }
 
 double ReactionThermo::dln_K_dT(double T) const {
-  if (!has_gibbs_) throw std::logic_error("thermo: ln K requested without h_f and s of every species");
+  if (!has_gibbs_)
+    throw std::logic_error("thermo: ln K requested without h_f and s of every species");
   const Piece& p = piece_at(T);
   return (p.h_abs + H(p, T)) / (kGasConstant * T * T);
 }

@@ -6,9 +6,9 @@
 #include <string>
 
 #include "commands.hpp"
-#include "rxtrain/case/case.hpp"
 #include "rxtrain/base/error.hpp"
 #include "rxtrain/base/units.hpp"
+#include "rxtrain/case/case.hpp"
 
 namespace rxtrain::cli {
 
@@ -23,11 +23,10 @@ Action setup_check(CLI::App& app) {
     const auto count = [](std::size_t n, const char* one, const char* many) {
       return fmt::format("{} {}", n, n == 1 ? one : many);
     };
-    std::printf("%s: ok: %d species, %s, %s\n", file->c_str(), c.mechanism.n_species(),
-                count(static_cast<std::size_t>(c.mechanism.n_reactions()), "reaction",
-                      "reactions")
-                    .c_str(),
-                count(c.train.size(), "stage", "stages").c_str());
+    std::printf(
+        "%s: ok: %d species, %s, %s\n", file->c_str(), c.mechanism.n_species(),
+        count(static_cast<std::size_t>(c.mechanism.n_reactions()), "reaction", "reactions").c_str(),
+        count(c.train.size(), "stage", "stages").c_str());
     return 0;
   };
 }

@@ -8,12 +8,12 @@
 #include <vector>
 
 #include "commands.hpp"
-#include "rxtrain/case/case.hpp"
-#include "rxtrain/studies/compare.hpp"
 #include "limit_margin.hpp"
+#include "rxtrain/base/units.hpp"
+#include "rxtrain/case/case.hpp"
 #include "rxtrain/report/atomic_file.hpp"
 #include "rxtrain/report/compare_report.hpp"
-#include "rxtrain/base/units.hpp"
+#include "rxtrain/studies/compare.hpp"
 
 namespace rxtrain::cli {
 

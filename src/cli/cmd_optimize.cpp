@@ -14,14 +14,12 @@
 #include <string>
 
 #include "commands.hpp"
+#include "limit_margin.hpp"
 #include "rxtrain/base/caution.hpp"
 #include "rxtrain/base/json_number.hpp"
 #include "rxtrain/base/units.hpp"
 #include "rxtrain/case/case.hpp"
 #include "rxtrain/report/atomic_file.hpp"
-#include "limit_margin.hpp"
-#include "rxtrain/studies/optimize.hpp"
-#include "rxtrain/studies/write_case.hpp"
 #include "rxtrain/report/json.hpp"
 #include "rxtrain/report/optimize_html.hpp"
 #include "rxtrain/report/optimize_text.hpp"

@@ -6,19 +6,19 @@
 #include <string>
 
 #include "commands.hpp"
-#include "rxtrain/case/case.hpp"
-#include "rxtrain/analysis/train_warnings.hpp"
-#include "rxtrain/stages/levenspiel.hpp"
-#include "rxtrain/analysis/result_guard.hpp"
 #include "limit_margin.hpp"
+#include "rxtrain/analysis/result_guard.hpp"
+#include "rxtrain/analysis/train_warnings.hpp"
+#include "rxtrain/base/units.hpp"
+#include "rxtrain/case/case.hpp"
+#include "rxtrain/flowsheet/train.hpp"
 #include "rxtrain/report/atomic_file.hpp"
 #include "rxtrain/report/csv.hpp"
 #include "rxtrain/report/figures.hpp"
 #include "rxtrain/report/html.hpp"
 #include "rxtrain/report/json.hpp"
 #include "rxtrain/report/table.hpp"
-#include "rxtrain/flowsheet/train.hpp"
-#include "rxtrain/base/units.hpp"
+#include "rxtrain/stages/levenspiel.hpp"
 
 namespace rxtrain::cli {
 
@@ -69,9 +69,9 @@ int run(const RunOptions& o) {
   }
   if (!o.report_dir.empty()) {
     const auto figures = run_figures(c, result, result.levenspiel);
-    add_report_files(out, o.report_dir,
-                     run_report_html(c, result, figures, provenance_of(o.case_file, RXTRAIN_VERSION)),
-                     figures);
+    add_report_files(
+        out, o.report_dir,
+        run_report_html(c, result, figures, provenance_of(o.case_file, RXTRAIN_VERSION)), figures);
   }
   out.commit();
   std::fputs(format_stage_table(result).c_str(), stdout);

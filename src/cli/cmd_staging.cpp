@@ -8,13 +8,13 @@
 #include <string>
 
 #include "commands.hpp"
-#include "rxtrain/case/case.hpp"
 #include "limit_margin.hpp"
+#include "rxtrain/base/units.hpp"
+#include "rxtrain/case/case.hpp"
 #include "rxtrain/report/atomic_file.hpp"
 #include "rxtrain/report/staging_html.hpp"
 #include "rxtrain/report/staging_report.hpp"
 #include "rxtrain/studies/staging.hpp"
-#include "rxtrain/base/units.hpp"
 
 namespace rxtrain::cli {
 

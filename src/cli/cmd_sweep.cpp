@@ -14,20 +14,20 @@
 #include <vector>
 
 #include "commands.hpp"
-#include "rxtrain/case/case.hpp"
 #include "limit_margin.hpp"
-#include "rxtrain/report/atomic_file.hpp"
 #include "rxtrain/base/caution.hpp"
+#include "rxtrain/base/units.hpp"
+#include "rxtrain/case/case.hpp"
+#include "rxtrain/report/atomic_file.hpp"
 #include "rxtrain/report/html_page.hpp"
 #include "rxtrain/report/sha256.hpp"
+#include "rxtrain/report/sweep_report.hpp"
 #include "rxtrain/sweep/case_path.hpp"
 #include "rxtrain/sweep/outputs.hpp"
 #include "rxtrain/sweep/study.hpp"
 #include "rxtrain/sweep/summary.hpp"
 #include "rxtrain/sweep/sweep.hpp"
 #include "rxtrain/sweep/sweep_csv.hpp"
-#include "rxtrain/report/sweep_report.hpp"
-#include "rxtrain/base/units.hpp"
 
 namespace rxtrain::cli {
 

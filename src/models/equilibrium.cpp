@@ -769,8 +769,8 @@ AdiabaticLine adiabatic_line(const Mechanism& mech, const Stream& inlet,
                              options.T_min, options.T_max, X);
       break;
     }
-    const ScalarRoot r = brent_root(E, options.T_min, options.T_max, E_lo, E_hi, options.T_tolerance,
-                              options.max_iterations);
+    const ScalarRoot r = brent_root(E, options.T_min, options.T_max, E_lo, E_hi,
+                                    options.T_tolerance, options.max_iterations);
     if (!r.converged)
       throw SolverError(fmt::format("adiabatic line at X = {:.6g}: no convergence", X));
     line.points.push_back({X, r.x});

@@ -7,8 +7,8 @@
 #include <fstream>
 #include <iterator>
 
-#include "rxtrain/report/atomic_file.hpp"
 #include "rxtrain/base/caution.hpp"
+#include "rxtrain/report/atomic_file.hpp"
 #include "rxtrain/report/sha256.hpp"
 #include "rxtrain/report/text_format.hpp"
 
@@ -24,7 +24,8 @@ std::string utc_date_today() {
 ReportProvenance provenance_of(const std::string& case_file, const std::string& version) {
   std::ifstream in(case_file, std::ios::binary);
   const std::string bytes((std::istreambuf_iterator<char>(in)), std::istreambuf_iterator<char>());
-  if (!in && !in.eof()) throw OutputError(fmt::format("cannot read {} again to hash it", case_file));
+  if (!in && !in.eof())
+    throw OutputError(fmt::format("cannot read {} again to hash it", case_file));
   return {case_file, sha256_hex(bytes), utc_date_today(), version};
 }
 
@@ -174,7 +175,6 @@ std::string inputs_section(const Case& c) {
                    xml_escape(m.species()[c.key].id));
   return h;
 }
-
 
 }  // namespace html
 }  // namespace rxtrain

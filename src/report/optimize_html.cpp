@@ -103,15 +103,16 @@ std::string by_bed_count_table(const DesignResult& d) {
       continue;
     }
     const double total = objective_of(d, c.total_catalyst, c.total_volume);
-    h += "<tr>" + cell(mark, false) + cell(std::to_string(c.beds), true) +
-         cell(d.catalyst_objective ? fixed_text(total, 1) : fixed_text(total, 4), true) +
-         cell(previous > 0 ? fixed_text(100 * (previous - total) / previous, 2) + " %" : "-",
-              true) +
-         cell(fixed_text(c.total_duty / 1e3, 2), true) + "</tr>\n";
+    h +=
+        "<tr>" + cell(mark, false) + cell(std::to_string(c.beds), true) +
+        cell(d.catalyst_objective ? fixed_text(total, 1) : fixed_text(total, 4), true) +
+        cell(previous > 0 ? fixed_text(100 * (previous - total) / previous, 2) + " %" : "-", true) +
+        cell(fixed_text(c.total_duty / 1e3, 2), true) + "</tr>\n";
     previous = total;
   }
-  return h + "</table>\n<p>* the optimum kept. Exchanger and vessel costs are not modelled: the "
-             "table shows where another bed stops paying in catalyst.</p>\n";
+  return h +
+         "</table>\n<p>* the optimum kept. Exchanger and vessel costs are not modelled: the "
+         "table shows where another bed stops paying in catalyst.</p>\n";
 }
 
 }  // namespace
@@ -191,10 +192,10 @@ std::string optimize_report_html(const Case& c, const DesignResult& d,
       xml_escape(window_text(d)), celsius_text(d.feed_T),
       d.fixed_feed_T ? " (bed 1 kept at the feed temperature)" : "",
       d.exothermic ? "exothermic" : "endothermic", l.starts);
-  h += fmt::format("<p><strong>{} adiabatic beds, total {}{}.</strong></p>\n", l.beds,
-                   amount(d, objective_of(d, l.total_catalyst, l.total_volume)),
-                   d.catalyst_objective ? fmt::format(" ({} m³)", fixed_text(l.total_volume, 3))
-                                        : "");
+  h += fmt::format(
+      "<p><strong>{} adiabatic beds, total {}{}.</strong></p>\n", l.beds,
+      amount(d, objective_of(d, l.total_catalyst, l.total_volume)),
+      d.catalyst_objective ? fmt::format(" ({} m³)", fixed_text(l.total_volume, 3)) : "");
   h += beds_table(l);
   h += "<h2 id=\"exchangers\">Exchangers</h2>\n" + exchangers_table(d);
   h += "<h2 id=\"constraints\">Active constraints and check</h2>\n";

@@ -119,11 +119,12 @@ std::string staging_report_html(const Case& c, const StagingResult& r,
                                 const std::vector<Figure>& figures, const ReportProvenance& p) {
   std::string h = html::page_begin(r.title + " — interstage-cooling check", p);
   h += "<h2 id=\"summary\">Question and answer</h2>\n";
-  h += fmt::format("<p>Target: overall conversion of {} X = {}. Limits: T_max {}, T_in_min {}. "
-                   "Feed {} °C ({} K). Key reaction {}",
-                   xml_escape(r.key), fixed_text(r.target, 4), limit_text(r.limits.T_max),
-                   limit_text(r.limits.T_in_min), celsius_text(r.feed_T),
-                   fixed_text(r.feed_T, 2), r.exothermic ? "exothermic" : "endothermic");
+  h += fmt::format(
+      "<p>Target: overall conversion of {} X = {}. Limits: T_max {}, T_in_min {}. "
+      "Feed {} °C ({} K). Key reaction {}",
+      xml_escape(r.key), fixed_text(r.target, 4), limit_text(r.limits.T_max),
+      limit_text(r.limits.T_in_min), celsius_text(r.feed_T), fixed_text(r.feed_T, 2),
+      r.exothermic ? "exothermic" : "endothermic");
   if (r.dT_ad)
     h += fmt::format("; adiabatic temperature {} of the feed at full conversion {} K",
                      *r.dT_ad >= 0 ? "rise" : "fall", fixed_text(std::abs(*r.dT_ad), 2));

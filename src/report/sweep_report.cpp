@@ -72,8 +72,7 @@ Figure grid_figure(const Study& study, const ColumnUnits& units, const std::stri
 // The histogram of one output, or nothing when the output did not vary by
 // more than rounding noise (a sized stage's outlet X is the target in every
 // run): bins of such a spread would only draw the noise.
-std::optional<Figure> histogram(const std::string& output, const std::string& unit,
-                                std::size_t col,
+std::optional<Figure> histogram(const std::string& output, const std::string& unit, std::size_t col,
                                 const std::vector<RunRow>& rows,
                                 const std::optional<PercentileSummary>& p) {
   std::vector<double> v;
@@ -131,8 +130,8 @@ std::vector<Figure> sweep_figures(const Study& study, const std::vector<std::str
   if (study.monte_carlo()) {
     const auto s = summarize_study(outputs, {}, rows);
     for (std::size_t c = 0; c < outputs.size(); ++c)
-      if (auto f = histogram(outputs[c], c < units.outputs.size() ? units.outputs[c] : "", c,
-                             rows, s.percentiles[c].p))
+      if (auto f = histogram(outputs[c], c < units.outputs.size() ? units.outputs[c] : "", c, rows,
+                             s.percentiles[c].p))
         figures.push_back(std::move(*f));
   } else {
     for (std::size_t c = 0; c < outputs.size(); ++c)
@@ -162,7 +161,8 @@ std::string sweep_report_html(const std::string& title, const std::string& case_
   std::string counts;
   for (const auto& [status, n] : summary.statuses)
     counts += fmt::format("{}{} {}", counts.empty() ? "" : ", ", n, status);
-  h += fmt::format("<h2 id=\"runs\">Runs</h2>\n<p>{} runs: {}.</p>\n", summary.runs, xml_escape(counts));
+  h += fmt::format("<h2 id=\"runs\">Runs</h2>\n<p>{} runs: {}.</p>\n", summary.runs,
+                   xml_escape(counts));
   if (monte_carlo) {
     h += "<h2 id=\"percentiles\">Percentiles</h2>\n<table>\n<tr><th>output</th><th>unit</th>"
          "<th>n</th><th>P5</th><th>P50</th><th>P95</th></tr>\n";
@@ -182,7 +182,8 @@ std::string sweep_report_html(const std::string& title, const std::string& case_
     h += "</table>\n<p>Percentiles: Hyndman &amp; Fan (1996) definition 7, over the runs that "
          "finished (status ok or over_limit).</p>\n";
     if (!summary.margins.empty()) {
-      h += "<h2 id=\"margin\">Design margin</h2>\n<p>The amount each sized stage needs to meet its target in "
+      h += "<h2 id=\"margin\">Design margin</h2>\n<p>The amount each sized stage needs to meet its "
+           "target in "
            "95 % of the runs (a run whose target is out of reach counts as unbounded).</p>\n<ul>\n";
       for (const auto& m : summary.margins) {
         const std::string u = column_unit(summary, m.column);

@@ -43,8 +43,6 @@ namespace {
 // stage target (the sizing root finder lands far closer than this).
 constexpr double kTargetTolerance = 1e-6;
 
-std::string celsius(double T) { return fmt::format("{:.2f} °C", T - kZeroCelsius); }
-
 // A reactor stage's spec under a layout's heat mode.
 ReactorSpec with_heat(ReactorSpec r, LayoutHeat heat) {
   if (heat == LayoutHeat::Adiabatic) r.heat = HeatMode::Adiabatic;

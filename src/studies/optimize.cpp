@@ -365,11 +365,11 @@ Window window_of(const Case& c, const DesignOptions& o) {
                                  m, w.lo_label, celsius(w.T_lo), w.hi_label, celsius(w.T_hi),
                                  *c.limits.T_max - *c.limits.T_in_min));
   if (o.fixed_feed_T && (c.feed.T < w.T_lo || c.feed.T > w.T_hi))
-    throw InputError(c.limits.where,
-                     fmt::format("--fixed-feed-T: the feed at {} lies outside the window "
-                                 "[{}, {}] = [{}, {}] that bed 1's inlet must keep",
-                                 celsius(c.feed.T), w.lo_label, w.hi_label, celsius(w.T_lo),
-                                 celsius(w.T_hi)));
+    throw InputError(
+        c.limits.where,
+        fmt::format("--fixed-feed-T: the feed at {} lies outside the window "
+                    "[{}, {}] = [{}, {}] that bed 1's inlet must keep",
+                    celsius(c.feed.T), w.lo_label, w.hi_label, celsius(w.T_lo), celsius(w.T_hi)));
   return w;
 }
 
@@ -588,8 +588,7 @@ DesignResult optimize_design(const Case& c, const DesignOptions& options) {
                     "[{}, {}]: {}",
                     counts.size() == 1 ? fmt::format("{} adiabatic beds", counts.front())
                                        : fmt::format("1 to {} adiabatic beds", counts.back()),
-                    s.target, s.lo_label, s.hi_label, celsius(s.T_lo), celsius(s.T_hi),
-                    last_why));
+                    s.target, s.lo_label, s.hi_label, celsius(s.T_lo), celsius(s.T_hi), last_why));
   res.best = *best;
   if (options.max_beds) res.by_bed_count = layouts;
 

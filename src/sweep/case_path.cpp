@@ -141,8 +141,8 @@ std::vector<std::string> CasePathTable::names() const {
 std::size_t CasePathTable::find(std::string_view name, const std::string& option) const {
   for (std::size_t i = 0; i < paths_.size(); ++i)
     if (paths_[i].name == name) return i;
-  throw InputError({option, 0, 0},
-                   fmt::format("unknown case path \"{}\"{}", name, suggest_nearest(name, names(), "valid names", 40)));
+  throw InputError({option, 0, 0}, fmt::format("unknown case path \"{}\"{}", name,
+                                               suggest_nearest(name, names(), "valid names", 40)));
 }
 
 double CasePathTable::base_value(std::size_t i, const Case& base) const {

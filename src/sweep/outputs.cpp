@@ -41,7 +41,8 @@ std::vector<std::string> all_names(const Case& c) {
 OutputColumn column(const std::string& name, const Case& c) {
   const auto fail = [&]() -> OutputColumn {
     throw InputError({"--output", 0, 0},
-                     fmt::format("unknown output \"{}\"{}", name, suggest_nearest(name, all_names(c), "valid names", 40)));
+                     fmt::format("unknown output \"{}\"{}", name,
+                                 suggest_nearest(name, all_names(c), "valid names", 40)));
   };
   if (name == "X" || name == "T_out") return {name, -1, name, -1};
   const auto dot = name.find('.');

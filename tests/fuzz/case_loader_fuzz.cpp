@@ -5,8 +5,8 @@
 #include <cstdint>
 #include <string>
 
-#include "rxtrain/case/case.hpp"
 #include "rxtrain/base/units.hpp"
+#include "rxtrain/case/case.hpp"
 
 extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size) {
   // Loading the udunits database takes milliseconds; build it once. It is

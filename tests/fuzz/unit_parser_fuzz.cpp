@@ -15,16 +15,26 @@ namespace {
 rxtrain::SiUnit expected_unit(std::uint8_t selector) {
   using rxtrain::SiUnit;
   switch (selector % 10) {
-    case 0: return SiUnit::of("K", "a temperature");
-    case 1: return SiUnit::of("Pa", "a pressure");
-    case 2: return SiUnit::of("m3", "a volume");
-    case 3: return SiUnit::of("mol/s", "a molar flow");
-    case 4: return SiUnit::of("J/mol", "an energy per mole");
-    case 5: return SiUnit::of("J/(mol*K)", "a molar heat capacity");
-    case 6: return SiUnit::of("W", "a power");
-    case 7: return SiUnit::per_power("mol/(kg*s)", "Pa", 1.5, "a rate constant");
-    case 8: return SiUnit::per_power("mol/(m3*s)", "mol/m3", (selector / 10) / 8.0, "a rate constant");
-    default: return SiUnit::of("kg/m3", "a density");
+    case 0:
+      return SiUnit::of("K", "a temperature");
+    case 1:
+      return SiUnit::of("Pa", "a pressure");
+    case 2:
+      return SiUnit::of("m3", "a volume");
+    case 3:
+      return SiUnit::of("mol/s", "a molar flow");
+    case 4:
+      return SiUnit::of("J/mol", "an energy per mole");
+    case 5:
+      return SiUnit::of("J/(mol*K)", "a molar heat capacity");
+    case 6:
+      return SiUnit::of("W", "a power");
+    case 7:
+      return SiUnit::per_power("mol/(kg*s)", "Pa", 1.5, "a rate constant");
+    case 8:
+      return SiUnit::per_power("mol/(m3*s)", "mol/m3", (selector / 10) / 8.0, "a rate constant");
+    default:
+      return SiUnit::of("kg/m3", "a density");
   }
 }
 

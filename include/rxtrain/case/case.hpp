@@ -8,10 +8,10 @@
 #include <variant>
 #include <vector>
 
-#include "rxtrain/chem/heat_mode.hpp"
 #include "rxtrain/base/error.hpp"
-#include "rxtrain/kinetics/mechanism.hpp"
+#include "rxtrain/chem/heat_mode.hpp"
 #include "rxtrain/chem/stream.hpp"
+#include "rxtrain/kinetics/mechanism.hpp"
 
 namespace rxtrain {
 
@@ -56,7 +56,7 @@ struct TemperatureLimits {
 
 struct Case {
   std::string title;
-  std::string file;          // path as given
+  std::string file;  // path as given
   Mechanism mechanism;
   Stream feed;
   int key = 0;

@@ -21,9 +21,9 @@ class EquationError : public std::runtime_error {
 };
 
 struct EquationTerm {
-  std::string species;      // species id as written
-  double coefficient = 1;   // > 0
-  std::size_t column = 0;   // offset of the id in the text, for messages
+  std::string species;     // species id as written
+  double coefficient = 1;  // > 0
+  std::size_t column = 0;  // offset of the id in the text, for messages
 };
 
 struct ParsedEquation {

@@ -28,8 +28,7 @@ class ReactionThermo {
  public:
   ReactionThermo() = default;
   // nu per species; dH_298 the heat of reaction at 298.15 K (J/mol).
-  ReactionThermo(const std::vector<Species>& species, const std::vector<double>& nu,
-                 double dH_298);
+  ReactionThermo(const std::vector<Species>& species, const std::vector<double>& nu, double dH_298);
 
   // dH_298 + sum_i nu_i h_sensible_i(T), J/mol.
   double dH(double T) const;
@@ -45,7 +44,7 @@ class ReactionThermo {
 
  private:
   struct Piece {
-    double T_to = 0;  // the piece holds for T < T_to (the last: +infinity)
+    double T_to = 0;            // the piece holds for T < T_to (the last: +infinity)
     std::array<double, 6> c{};  // sum_i nu_i cp_i in the CpPiece basis
     double h_sensible = 0;      // sum nu h_sensible = h_sensible + H(T)
     double h_abs = 0;           // sum nu h = h_abs + H(T)

@@ -16,9 +16,9 @@
 
 namespace rxtrain {
 
-inline constexpr double kGasConstant = 8.31446261815324;   // J/(mol K), exact (2019 SI)
-inline constexpr double kReferenceT = 298.15;               // K
-inline constexpr double kStandardPressure = 1.0e5;          // Pa (1 bar)
+inline constexpr double kGasConstant = 8.31446261815324;  // J/(mol K), exact (2019 SI)
+inline constexpr double kReferenceT = 298.15;             // K
+inline constexpr double kStandardPressure = 1.0e5;        // Pa (1 bar)
 
 // cp = constant.
 struct CpConstant {
@@ -90,8 +90,8 @@ class ThermoModel {
 
   bool has_h_f() const;
   bool has_s() const;
-  std::optional<double> h_f() const;   // h at 298.15 K
-  std::optional<double> s_298() const; // s at 298.15 K
+  std::optional<double> h_f() const;    // h at 298.15 K
+  std::optional<double> s_298() const;  // s at 298.15 K
 
   // True when T lies inside a declared validity range (always true for a
   // constant cp and for models with no declared range).

@@ -8,9 +8,9 @@
 #include <vector>
 
 #include "rxtrain/case/case.hpp"
+#include "rxtrain/stages/cstr.hpp"
 #include "rxtrain/stages/levenspiel.hpp"
 #include "rxtrain/stages/limit_check.hpp"
-#include "rxtrain/stages/cstr.hpp"
 #include "rxtrain/stages/pfr.hpp"
 #include "rxtrain/stages/pfr_batch.hpp"
 #include "rxtrain/stages/stage.hpp"

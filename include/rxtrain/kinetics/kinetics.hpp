@@ -23,33 +23,33 @@ enum class Driving { Concentration, Pressure };
 
 struct RateLaw {
   RateBasis basis = RateBasis::Volume;
-  double A = 0;                   // SI: rate unit / driving unit^sum(orders)
-  double Ea = 0;                  // J/mol
-  std::optional<double> T_ref;    // K
+  double A = 0;                 // SI: rate unit / driving unit^sum(orders)
+  double Ea = 0;                // J/mol
+  std::optional<double> T_ref;  // K
   Driving driving = Driving::Concentration;
-  std::vector<double> orders;     // per species (0 when absent from the law)
+  std::vector<double> orders;  // per species (0 when absent from the law)
 };
 
 // Where K(T) of a reversible reaction comes from.
 struct EquilibriumSource {
   enum class Kind { None, Thermo, VantHoff };
   Kind kind = Kind::None;
-  double K_ref = 0;    // VantHoff: K at T_ref (activity basis)
-  double T_ref = 0;    // K
-  double dH = 0;       // J/mol, constant over T
+  double K_ref = 0;  // VantHoff: K at T_ref (activity basis)
+  double T_ref = 0;  // K
+  double dH = 0;     // J/mol, constant over T
 };
 
 struct Reaction {
   std::string id;
-  std::string equation;            // as written, for reports
-  std::vector<double> nu;          // per species: products > 0, reactants < 0
+  std::string equation;    // as written, for reports
+  std::vector<double> nu;  // per species: products > 0, reactants < 0
   bool reversible = false;
   RateLaw rate;
   // Heat of reaction at 298.15 K consistent with the species' cp:
   // dH(T) = dH_298 + sum_i nu_i h_sensible_i(T) (Kirchhoff).
   double dH_298 = 0;
   EquilibriumSource equilibrium;
-  SourceLocation where;            // the reaction's entry in the case file
+  SourceLocation where;  // the reaction's entry in the case file
 };
 
 }  // namespace rxtrain

@@ -6,9 +6,9 @@
 #include <Eigen/Dense>
 #include <vector>
 
-#include "rxtrain/kinetics/kinetics.hpp"
 #include "rxtrain/chem/reaction_thermo.hpp"
 #include "rxtrain/chem/species.hpp"
+#include "rxtrain/kinetics/kinetics.hpp"
 
 namespace rxtrain {
 
@@ -41,9 +41,9 @@ class Mechanism {
   // Mass flow, kg/s; requires every mw.
   double mass_flow(const double* F) const;
 
-  double dH(int j, double T) const;        // J/mol
-  double dCp(int j, double T) const;       // d(dH)/dT, J/(mol K)
-  double ln_K(int j, double T) const;      // activity basis
+  double dH(int j, double T) const;    // J/mol
+  double dCp(int j, double T) const;   // d(dH)/dT, J/(mol K)
+  double ln_K(int j, double T) const;  // activity basis
   double dln_K_dT(int j, double T) const;
   double rate_constant(int j, double T) const;
 
@@ -93,16 +93,16 @@ class Mechanism {
     std::vector<Participant> parts;
     std::vector<int> species;  // parts[p].i, for rate_species()
     int offset = 0;            // see direct_offset()
-    double dnu = 0;      // sum of nu (for the activity scale)
-    ReactionThermo thermo;  // dH, dCp, ln K from the species' cp models
-    double ln_s = 0;        // activity scale ln s where it is constant (see activity_scale)
+    double dnu = 0;            // sum of nu (for the activity scale)
+    ReactionThermo thermo;     // dH, dCp, ln K from the species' cp models
+    double ln_s = 0;           // activity scale ln s where it is constant (see activity_scale)
   };
   // Driving forces d_i = max(F_i, 0) * phi; returns phi and its derivatives.
   struct Scale {
-    double phi = 0;      // d_i = max(F_i, 0) * phi
+    double phi = 0;  // d_i = max(F_i, 0) * phi
     double dphi_dT = 0;
-    double dphi_dFt = 0; // gas: d phi / d F_k for every k
-    double dphi_dv = 0;  // liquid: d phi / d v, with dv/dF_k = MW_k/rho_k
+    double dphi_dFt = 0;  // gas: d phi / d F_k for every k
+    double dphi_dv = 0;   // liquid: d phi / d v, with dv/dF_k = MW_k/rho_k
   };
   Scale driving_scale(Driving driving, double T, double P, const double* F) const;
   // log of activity scale s (a_i = s * d_i) and its T derivative.

@@ -28,9 +28,9 @@
 #include <vector>
 
 #include "rxtrain/chem/heat_mode.hpp"
+#include "rxtrain/chem/stream.hpp"
 #include "rxtrain/kinetics/mechanism.hpp"
 #include "rxtrain/solvers/newton.hpp"
-#include "rxtrain/chem/stream.hpp"
 
 namespace rxtrain {
 

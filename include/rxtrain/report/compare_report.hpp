@@ -27,9 +27,9 @@
 #include <vector>
 
 #include "rxtrain/case/case.hpp"
-#include "rxtrain/studies/compare.hpp"
 #include "rxtrain/report/figures.hpp"
 #include "rxtrain/report/html_page.hpp"
+#include "rxtrain/studies/compare.hpp"
 
 namespace rxtrain {
 

@@ -6,9 +6,9 @@
 #include <vector>
 
 #include "rxtrain/case/case.hpp"
-#include "rxtrain/stages/levenspiel.hpp"
-#include "rxtrain/report/svg.hpp"
 #include "rxtrain/flowsheet/train.hpp"
+#include "rxtrain/report/svg.hpp"
+#include "rxtrain/stages/levenspiel.hpp"
 
 namespace rxtrain {
 

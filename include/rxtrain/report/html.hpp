@@ -8,9 +8,9 @@
 #include <vector>
 
 #include "rxtrain/case/case.hpp"
+#include "rxtrain/flowsheet/train.hpp"
 #include "rxtrain/report/figures.hpp"
 #include "rxtrain/report/html_page.hpp"
-#include "rxtrain/flowsheet/train.hpp"
 
 namespace rxtrain {
 

@@ -9,10 +9,10 @@
 #include <vector>
 
 #include "rxtrain/case/case.hpp"
-#include "rxtrain/studies/optimize.hpp"
+#include "rxtrain/flowsheet/train.hpp"
 #include "rxtrain/report/figures.hpp"
 #include "rxtrain/report/html_page.hpp"
-#include "rxtrain/flowsheet/train.hpp"
+#include "rxtrain/studies/optimize.hpp"
 
 namespace rxtrain {
 

@@ -8,10 +8,10 @@
 #include <vector>
 
 #include "rxtrain/case/case.hpp"
+#include "rxtrain/flowsheet/train.hpp"
 #include "rxtrain/report/figures.hpp"
 #include "rxtrain/report/html_page.hpp"
 #include "rxtrain/studies/staging.hpp"
-#include "rxtrain/flowsheet/train.hpp"
 
 namespace rxtrain {
 

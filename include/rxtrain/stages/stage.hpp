@@ -10,10 +10,10 @@
 #include <vector>
 
 #include "rxtrain/case/case.hpp"
+#include "rxtrain/chem/stream.hpp"
 #include "rxtrain/models/energy_balance.hpp"
 #include "rxtrain/models/equilibrium.hpp"
 #include "rxtrain/solvers/cvode.hpp"
-#include "rxtrain/chem/stream.hpp"
 
 namespace rxtrain {
 
@@ -109,14 +109,14 @@ struct StageResult {
   bool sized = false;            // volume found from a target
   Stream inlet;
   Stream outlet;
-  std::optional<double> volume;            // m3
-  std::optional<double> bulk_density;      // kg/m3
-  std::optional<double> catalyst_mass;     // kg
-  std::optional<double> space_time;        // s, V / v0 at inlet conditions
-  std::optional<double> space_velocity;    // 1/s, 1 / space_time
-  std::optional<double> ghsv;              // 1/h, inlet gas at 0 degC, 1 atm
-  std::optional<double> whsv;              // 1/h, inlet mass flow / catalyst
-  std::optional<double> lhsv;              // 1/h, inlet as liquid / volume
+  std::optional<double> volume;          // m3
+  std::optional<double> bulk_density;    // kg/m3
+  std::optional<double> catalyst_mass;   // kg
+  std::optional<double> space_time;      // s, V / v0 at inlet conditions
+  std::optional<double> space_velocity;  // 1/s, 1 / space_time
+  std::optional<double> ghsv;            // 1/h, inlet gas at 0 degC, 1 atm
+  std::optional<double> whsv;            // 1/h, inlet mass flow / catalyst
+  std::optional<double> lhsv;            // 1/h, inlet as liquid / volume
   // Species whose inlet flows WHSV and LHSV are on (every species: the
   // whole stream); empty where they were not computed.
   std::vector<std::string> space_velocity_basis;

@@ -39,8 +39,8 @@
 #include <vector>
 
 #include "rxtrain/case/case.hpp"
-#include "rxtrain/models/equilibrium.hpp"
 #include "rxtrain/flowsheet/train.hpp"
+#include "rxtrain/models/equilibrium.hpp"
 
 namespace rxtrain {
 

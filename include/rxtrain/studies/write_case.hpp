@@ -11,9 +11,9 @@
 
 #include <string>
 
+#include "rxtrain/base/units.hpp"
 #include "rxtrain/case/case.hpp"
 #include "rxtrain/studies/optimize.hpp"
-#include "rxtrain/base/units.hpp"
 
 namespace rxtrain {
 

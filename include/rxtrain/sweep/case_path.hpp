@@ -30,8 +30,8 @@
 #include <string_view>
 #include <vector>
 
-#include "rxtrain/case/case.hpp"
 #include "rxtrain/base/units.hpp"
+#include "rxtrain/case/case.hpp"
 
 namespace rxtrain::sweep {
 

@@ -9,8 +9,8 @@
 #include <vector>
 
 #include "rxtrain/case/case.hpp"
-#include "rxtrain/sweep/outputs.hpp"
 #include "rxtrain/flowsheet/train.hpp"
+#include "rxtrain/sweep/outputs.hpp"
 
 namespace rxtrain::sweep {
 

@@ -29,9 +29,9 @@
 #include <utility>
 #include <vector>
 
+#include "rxtrain/base/units.hpp"
 #include "rxtrain/sweep/case_path.hpp"
 #include "rxtrain/sweep/sampling.hpp"
-#include "rxtrain/base/units.hpp"
 
 namespace rxtrain::sweep {
 

@@ -13,9 +13,9 @@
 #include <optional>
 #include <vector>
 
-#include "rxtrain/models/equilibrium.hpp"
-#include "rxtrain/kinetics/mechanism.hpp"
 #include "rxtrain/chem/stream.hpp"
+#include "rxtrain/kinetics/mechanism.hpp"
+#include "rxtrain/models/equilibrium.hpp"
 
 namespace rxtrain::detail {
 
