@@ -951,17 +951,9 @@ StageReach cstr_reach(const Mechanism& mech, const ReactorSpec& spec, const Stre
       reach.species = i;
     }
   }
-  if (reach.end == ReachEnd::Equilibrium && mech.n_reactions() == 1) {
-    // One reaction: the tank's outlet runs along the same adiabatic (or
-    // isothermal) line as a tube's, to the same equilibrium point.
-    try {
-      if (const auto eq = adiabatic_equilibrium(mech, inlet, spec.heat, basis)) {
-        reach.X_end = eq->X;
-        reach.T_end = eq->stream.T;
-      }
-    } catch (const SolverError&) {
-    }
-  }
+  // One reaction: the tank's outlet runs along the same adiabatic (or
+  // isothermal) line as a tube's, to the same equilibrium point.
+  exact_equilibrium_end(mech, inlet, spec.heat, basis, reach);
   finish_reach(reach, m.V);
   return reach;
 }

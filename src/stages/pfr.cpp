@@ -390,16 +390,7 @@ StageReach pfr_reach(const Mechanism& mech, const ReactorSpec& spec, const Strea
     if (sys.rhs(y.data(), ydot.data()) == 0) g_end = -ydot[basis.key] / basis.F_key_feed;
     classify_reach_end(mech, inlet, y.data(), basis.key, g_end * V > 1e-6, reach);
   }
-  if (reach.end == ReachEnd::Equilibrium && mech.n_reactions() == 1) {
-    // The exact end point the integration only approaches.
-    try {
-      if (const auto eq = adiabatic_equilibrium(mech, inlet, spec.heat, basis)) {
-        reach.X_end = eq->X;
-        reach.T_end = eq->stream.T;
-      }
-    } catch (const SolverError&) {
-    }
-  }
+  exact_equilibrium_end(mech, inlet, spec.heat, basis, reach);
   finish_reach(reach, V);
   return reach;
 }

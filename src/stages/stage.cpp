@@ -5,6 +5,7 @@
 #include <algorithm>
 #include <cmath>
 
+#include "rxtrain/base/error.hpp"
 #include "rxtrain/base/units.hpp"
 
 namespace rxtrain {
@@ -136,6 +137,18 @@ void classify_reach_end(const Mechanism& mech, const Stream& inlet, const double
     reach.end = ReachEnd::SpaceTimeBound;
   else
     reach.end = reversible ? ReachEnd::Equilibrium : ReachEnd::RateVanishes;
+}
+
+void exact_equilibrium_end(const Mechanism& mech, const Stream& inlet, HeatMode heat,
+                           const ConversionBasis& basis, StageReach& reach) {
+  if (reach.end != ReachEnd::Equilibrium || mech.n_reactions() != 1) return;
+  try {
+    if (const auto eq = adiabatic_equilibrium(mech, inlet, heat, basis)) {
+      reach.X_end = eq->X;
+      reach.T_end = eq->stream.T;
+    }
+  } catch (const SolverError&) {
+  }
 }
 
 void finish_reach(StageReach& reach, double V_last) {

@@ -41,11 +41,8 @@ struct Setup {
 };
 
 TrainResult empty_result(const Case& c) {
-  TrainResult r;
-  r.title = c.title;
-  for (const auto& s : c.mechanism.species()) r.species.push_back(s.id);
-  r.key = c.mechanism.species()[c.key].id;
-  r.feed = c.feed;
+  TrainResult r = TrainResult::for_case(c);
+  r.warnings.clear();  // the caller sets them (the as-given run carries the case's)
   r.outlet = c.feed;
   r.conversion = c.conversion_basis().conversion(c.feed);
   return r;

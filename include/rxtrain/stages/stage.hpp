@@ -89,6 +89,13 @@ const char* reach_end_name(ReachEnd end);
 void classify_reach_end(const Mechanism& mech, const Stream& inlet, const double* F_end, int key,
                         bool still_rising, StageReach& reach);
 
+// With one reaction whose path ends at equilibrium (reach.end), the end
+// point is set to the exact adiabatic (isothermal) equilibrium point that
+// the integration or the tank's continuation only approaches; a failed
+// equilibrium solve leaves the approached one.
+void exact_equilibrium_end(const Mechanism& mech, const Stream& inlet, HeatMode heat,
+                           const ConversionBasis& basis, StageReach& reach);
+
 // Settles a reach from its path: the most is the end point unless a peak
 // stands above it (peak_inside), and the end point is only approached as
 // the stage grows without bound (V_at_X_max empty), except where the path
