@@ -62,19 +62,15 @@ bool pfr_batchable(const Mechanism& mech, const ReactorSpec& spec, const PfrOpti
          mech.n_species() + 2 <= kMaxBlockSize;
 }
 
-std::vector<StageResult> run_pfr_batch(std::span<const PfrBatchItem> items, PfrBatchWorkspace& ws,
-                                       const PfrOptions& options) {
-  if (items.empty()) return {};
+namespace {
+
+// Binds each item's system to the batch's state, starts the integrator at
+// every inlet (re-created only when it cannot be reused).
+CvodeIntegrator& bind_batch(std::span<const PfrBatchItem> items, PfrBatchWorkspace& ws,
+                            const PfrOptions& options, bool sizing) {
   PfrBatchWorkspace::State& st = ws.state();
   const int m = static_cast<int>(items.size());
-  const int n = items[0].mech->n_species();
-  const int N = n + 2;
-  const bool sizing = items[0].spec->target_conversion.has_value();
-  for (const auto& it : items)
-    if (it.mech->n_species() != n || !pfr_batchable(*it.mech, *it.spec, options) ||
-        it.spec->target_conversion.has_value() != sizing)
-      throw std::invalid_argument("run_pfr_batch: an item that cannot be batched");
-
+  const int N = items[0].mech->n_species() + 2;
   st.sys.resize(m);
   st.length.resize(m);
   st.y0.clear();
@@ -106,8 +102,17 @@ std::vector<StageResult> run_pfr_batch(std::span<const PfrBatchItem> items, PfrB
   }
   CvodeIntegrator& ode = *st.ode;
   ode.init(0.0, st.y0);
-  // Sizing: each run's target conversion is a root of its own, and the
-  // integration goes on until every run has met it, at most to the
+  return ode;
+}
+
+// Sizing: each run's target conversion is a root of its own; returns where
+// the integration stops (s = 1, or the longest space-time limit).
+double set_batch_roots(std::span<const PfrBatchItem> items, PfrBatchWorkspace::State& st,
+                       CvodeIntegrator& ode, const PfrOptions& options, bool sizing) {
+  const int m = static_cast<int>(items.size());
+  const int N = st.N;
+  // The integration goes on until every run has met its target,
+  // at most to the
   // longest of the runs' space-time limits (as run_pfr).
   double s_end = 1.0;
   st.target.assign(m, 0.0);
@@ -137,6 +142,16 @@ std::vector<StageResult> run_pfr_batch(std::span<const PfrBatchItem> items, PfrB
     ode.set_roots(0, nullptr, {});
   }
   ode.set_stop_time(s_end);
+  return s_end;
+}
+
+// Integrates the batch to s_end: each run's end (its root, or s = 1) and
+// its temperature extremes. Throws SolverError, for the batch as a whole.
+void integrate_batch(std::span<const PfrBatchItem> items, PfrBatchWorkspace::State& st,
+                     CvodeIntegrator& ode, double s_end, bool sizing) {
+  const int m = static_cast<int>(items.size());
+  const int N = st.N;
+  const int n = N - 2;
   st.done.assign(m, 0);
   st.end.assign(m, 1.0);
   st.out.resize(st.y0.size());
@@ -215,8 +230,15 @@ std::vector<StageResult> run_pfr_batch(std::span<const PfrBatchItem> items, PfrB
   if (sizing && ended < m) throw SolverError("batch: a target conversion out of reach");
   for (int b = 0; b < m; ++b)
     if (!st.done[b]) finish(b, 1.0);
-  const SolverStats stats = ode.stats();
+}
 
+std::vector<StageResult> batch_results(std::span<const PfrBatchItem> items,
+                                       const PfrBatchWorkspace::State& st,
+                                       const PfrOptions& options, bool sizing,
+                                       const SolverStats& stats) {
+  const int m = static_cast<int>(items.size());
+  const int N = st.N;
+  const int n = N - 2;
   std::vector<StageResult> out(m);
   for (int b = 0; b < m; ++b) {
     const PfrBatchItem& it = items[b];
@@ -250,6 +272,24 @@ std::vector<StageResult> run_pfr_batch(std::span<const PfrBatchItem> items, PfrB
     res.stats = stats;
   }
   return out;
+}
+
+}  // namespace
+
+std::vector<StageResult> run_pfr_batch(std::span<const PfrBatchItem> items, PfrBatchWorkspace& ws,
+                                       const PfrOptions& options) {
+  if (items.empty()) return {};
+  const int n = items[0].mech->n_species();
+  const bool sizing = items[0].spec->target_conversion.has_value();
+  for (const auto& it : items)
+    if (it.mech->n_species() != n || !pfr_batchable(*it.mech, *it.spec, options) ||
+        it.spec->target_conversion.has_value() != sizing)
+      throw std::invalid_argument("run_pfr_batch: an item that cannot be batched");
+  CvodeIntegrator& ode = bind_batch(items, ws, options, sizing);
+  PfrBatchWorkspace::State& st = ws.state();
+  const double s_end = set_batch_roots(items, st, ode, options, sizing);
+  integrate_batch(items, st, ode, s_end, sizing);
+  return batch_results(items, st, options, sizing, ode.stats());
 }
 
 }  // namespace rxtrain
