@@ -93,10 +93,10 @@ TEST_CASE("bad equations report the column", "[equation]") {
       {"A + + B => C", 2, "'+' must be followed by a species"},
       {"A $ B => C", 2, "unexpected character '$'"},
       {"A => B.", 6, "unexpected character '.'"},
-      {"A -> B", 2, "the arrow is '=>'"},
-      {"A->B", 1, "the arrow is '=>'"},
-      {"A = B", 2, "the arrow is '=>'"},
-      {"A <= B", 2, "the arrow is '=>'"},
+      {"A = B", 2, "the arrow is '->'"},
+      {"A <= B", 2, "the arrow is '->'"},
+      {"A <- B", 2, "the arrow is '->'"},
+      {"A -> B <-> C", 7, "second arrow"},
       {"2 => B", 0, "not followed by a species"},
       {"A => 2", 5, "not followed by a species"},
       {"A => 2 3", 7, "needs a letter"},
@@ -113,4 +113,34 @@ TEST_CASE("bad equations report the column", "[equation]") {
       CHECK_THAT(e.what(), Contains(c.message));
     }
   }
+}
+
+TEST_CASE("arrows: -> and <-> are canonical; =>, <=> and the Unicode arrows are accepted",
+          "[equation]") {
+  struct Case {
+    const char* text;
+    bool reversible;
+  };
+  const Case cases[] = {
+      {"A -> B", false},
+      {"A->B", false},
+      {"n-C5 -> i-C5", false},
+      {"A <-> B", true},
+      {"A<->B", true},
+      {"A => B", false},
+      {"A <=> B", true},
+      {"A \xE2\x86\x92 B", false},  // U+2192
+      {"A \xE2\x87\x8C B", true},   // U+21CC
+  };
+  for (const auto& c : cases) {
+    INFO("equation: \"" << c.text << "\"");
+    const auto eq = parse_equation(c.text);
+    REQUIRE(eq.reactants.size() == 1);
+    REQUIRE(eq.products.size() == 1);
+    CHECK(eq.reversible == c.reversible);
+  }
+  // A '-' inside an id stays part of it; "->" after it is the arrow.
+  const auto e = parse_equation("n-C5->i-C5");
+  CHECK(e.reactants[0].species == "n-C5");
+  CHECK(e.products[0].species == "i-C5");
 }

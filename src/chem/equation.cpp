@@ -25,7 +25,7 @@ class EquationReader {
     out.reactants = side("reactants", "before the arrow");
     const auto arrow = read_arrow();
     if (!arrow) {
-      if (at_end()) fail("missing arrow: expected '=>' or '<=>' after the reactants");
+      if (at_end()) fail("missing arrow: expected '->' or '<->' after the reactants");
       unexpected();
     }
     out.reversible = *arrow;
@@ -91,7 +91,7 @@ class EquationReader {
   }
 
   // id: [A-Za-z0-9_-]+ with at least one letter. A '-' directly before '>'
-  // is left for the "->" diagnostic.
+  // is the arrow "->", not part of the id.
   std::string id() {
     const std::size_t start = pos_;
     while (pos_ < text_.size() && is_id_char(text_[pos_])) {
@@ -143,24 +143,32 @@ class EquationReader {
     return v;
   }
 
-  // Consumes "=>" (false) or "<=>" (true).
-  std::optional<bool> read_arrow() {
-    if (text_.substr(pos_, 3) == "<=>") {
-      pos_ += 3;
-      skip_space();
-      return true;
-    }
-    if (text_.substr(pos_, 2) == "=>") {
-      pos_ += 2;
-      skip_space();
-      return false;
-    }
-    return std::nullopt;
+  // The arrows, canonical first: "->" one way, "<->" reversible; the older
+  // "=>" and "<=>" and the Unicode arrows (U+2192, U+21CC) are accepted too.
+  // A reversible arrow is tried before the one-way arrow it contains.
+  struct Arrow {
+    std::string_view text;
+    bool reversible;
+  };
+  static constexpr Arrow kArrows[] = {{"<->", true}, {"<=>", true}, {"\xE2\x87\x8C", true},
+                                      {"->", false}, {"=>", false}, {"\xE2\x86\x92", false}};
+
+  const Arrow* arrow_at(std::size_t at) const {
+    for (const Arrow& a : kArrows)
+      if (text_.substr(at, a.text.size()) == a.text) return &a;
+    return nullptr;
   }
 
-  bool at_arrow_at(std::size_t at) const {
-    return text_.substr(at, 3) == "<=>" || text_.substr(at, 2) == "=>";
+  // Consumes an arrow: true for a reversible one.
+  std::optional<bool> read_arrow() {
+    const Arrow* a = arrow_at(pos_);
+    if (!a) return std::nullopt;
+    pos_ += a->text.size();
+    skip_space();
+    return a->reversible;
   }
+
+  bool at_arrow_at(std::size_t at) const { return arrow_at(at) != nullptr; }
   bool at_arrow() const { return at_arrow_at(pos_); }
   bool at_end() const { return pos_ >= text_.size(); }
   void skip_space() {
@@ -170,10 +178,7 @@ class EquationReader {
   [[noreturn]] void unexpected() const {
     if (at_end()) fail("unexpected end of the equation");
     const char c = text_[pos_];
-    if (text_.substr(pos_, 2) == "->" || text_.substr(pos_, 1) == "=" ||
-        text_.substr(pos_, 1) == "<" || text_.substr(pos_, 1) == ">") {
-      fail("the arrow is '=>' (one way) or '<=>' (reversible)");
-    }
+    if (c == '=' || c == '<' || c == '>') fail("the arrow is '->' (one way) or '<->' (reversible)");
     const auto u = static_cast<unsigned char>(c);
     if (u < 0x20 || u >= 0x7f) {
       fail("unexpected byte " + std::to_string(static_cast<int>(u)) +

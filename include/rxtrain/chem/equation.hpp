@@ -1,4 +1,4 @@
-// Reaction equations: "2 H2 + O2 => 2 H2O", "SO2 + 0.5 O2 <=> SO3".
+// Reaction equations: "2 H2 + O2 -> 2 H2O", "SO2 + 0.5 O2 <-> SO3".
 #pragma once
 
 #include <stdexcept>
@@ -29,10 +29,12 @@ struct EquationTerm {
 struct ParsedEquation {
   std::vector<EquationTerm> reactants;
   std::vector<EquationTerm> products;
-  bool reversible = false;  // "<=>" (true) or "=>" (false)
+  bool reversible = false;  // "<->" (true) or "->" (false)
 };
 
-// Grammar: side ("=>" | "<=>") side; side: term ("+" term)*;
+// Grammar: side arrow side; side: term ("+" term)*; arrow: "->" (one way)
+// or "<->" (reversible), the canonical forms; "=>", "<=>", U+2192 (one way)
+// and U+21CC (reversible) are accepted too;
 // term: [coefficient whitespace] id; id: [A-Za-z0-9_-]+ (may start with a
 // digit only if it has a letter); coefficient: positive decimal number
 // ("2", "0.5", "1.5e0"). A species may not appear twice on one side.
