@@ -22,6 +22,7 @@
 #include <variant>
 #include <vector>
 
+#include "gsl_reference.hpp"
 #include "rxtrain/base/error.hpp"
 #include "rxtrain/base/units.hpp"
 #include "rxtrain/case/case.hpp"
@@ -32,63 +33,13 @@
 #include "rxtrain/stages/pfr.hpp"
 
 using namespace rxtrain;
+using rxtrain::test::gsl_brent;
+using rxtrain::test::GslNoAbort;
+using rxtrain::test::GslOde;
 
 namespace {
 
 // ---- GSL helpers (the independent solvers) ----------------------------------
-
-struct GslNoAbort {
-  gsl_error_handler_t* old = gsl_set_error_handler_off();
-  ~GslNoAbort() { gsl_set_error_handler(old); }
-};
-
-using Rhs = std::function<void(const double* y, double* dy)>;
-
-// Explicit Runge-Kutta-Prince-Dormand (8,9) on an autonomous system.
-class GslOde {
- public:
-  GslOde(int n, Rhs f, double rtol, double atol) : f_(std::move(f)) {
-    sys_ = {&GslOde::trampoline, nullptr, static_cast<size_t>(n), this};
-    driver_.reset(gsl_odeiv2_driver_alloc_y_new(&sys_, gsl_odeiv2_step_rk8pd, 1e-9, atol, rtol));
-    gsl_odeiv2_driver_set_nmax(driver_.get(), 0);  // no step limit
-  }
-  // y from t0 to t1.
-  void advance(double t0, double t1, std::vector<double>& y) {
-    gsl_odeiv2_driver_reset(driver_.get());
-    double t = t0;
-    const int status = gsl_odeiv2_driver_apply(driver_.get(), &t, t1, y.data());
-    REQUIRE(status == GSL_SUCCESS);
-  }
-
- private:
-  static int trampoline(double, const double y[], double dydt[], void* p) {
-    static_cast<GslOde*>(p)->f_(y, dydt);
-    return GSL_SUCCESS;
-  }
-  Rhs f_;
-  gsl_odeiv2_system sys_{};
-  std::unique_ptr<gsl_odeiv2_driver, decltype(&gsl_odeiv2_driver_free)> driver_{
-      nullptr, &gsl_odeiv2_driver_free};
-};
-
-// Brent's method (GSL) for g(x) = 0 on [lo, hi], to xtol absolute.
-double gsl_brent(const std::function<double(double)>& g, double lo, double hi, double xtol) {
-  gsl_function fn;
-  fn.function = [](double x, void* p) {
-    return (*static_cast<const std::function<double(double)>*>(p))(x);
-  };
-  fn.params = const_cast<std::function<double(double)>*>(&g);
-  std::unique_ptr<gsl_root_fsolver, decltype(&gsl_root_fsolver_free)> s(
-      gsl_root_fsolver_alloc(gsl_root_fsolver_brent), &gsl_root_fsolver_free);
-  REQUIRE(gsl_root_fsolver_set(s.get(), &fn, lo, hi) == GSL_SUCCESS);
-  for (int it = 0; it < 300; ++it) {
-    REQUIRE(gsl_root_fsolver_iterate(s.get()) == GSL_SUCCESS);
-    const double a = gsl_root_fsolver_x_lower(s.get());
-    const double b = gsl_root_fsolver_x_upper(s.get());
-    if (gsl_root_test_interval(a, b, xtol, 0) == GSL_SUCCESS) break;
-  }
-  return gsl_root_fsolver_root(s.get());
-}
 
 using Equations = std::function<void(const double* x, double* f)>;
 
