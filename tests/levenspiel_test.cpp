@@ -141,10 +141,10 @@ TEST_CASE("Levenspiel data in the JSON and CSV outputs", "[levenspiel]") {
   CHECK(j["levenspiel"][1]["area"].get<double>() == Approx(0.5).epsilon(1e-6));
   CHECK(j["levenspiel"][1]["points"][0].contains("inverse_rate"));
   const std::string csv = rxtrain::levenspiel_csv(r);
-  CHECK(csv.rfind("stage,basis,conversion,inverse_rate,area\n", 0) == 0);
-  const auto row = csv.find("P1,volume_m3,,,");  // the stage's area row
+  CHECK(csv.rfind("stage,unit,conversion,F_key_feed_over_minus_r,area\n", 0) == 0);
+  const auto row = csv.find("P1,m3,,,");  // the stage's area row
   REQUIRE(row != std::string::npos);
-  CHECK(std::stod(csv.substr(row + 15)) == Approx(0.5).epsilon(1e-6));
+  CHECK(std::stod(csv.substr(row + 8)) == Approx(0.5).epsilon(1e-6));
 }
 
 TEST_CASE("run --json and --csv carry the Levenspiel data of a demo case", "[levenspiel][cli]") {
@@ -169,7 +169,7 @@ TEST_CASE("run --json and --csv carry the Levenspiel data of a demo case", "[lev
     CHECK(c["area"].get<double>() == Approx(stage["catalyst_mass"].get<double>()).epsilon(1e-6));
   }
   const std::string csv = rxtrain::test::slurp(dir / "csv" / "levenspiel.csv");
-  CHECK(csv.rfind("stage,basis,conversion,inverse_rate,area\n", 0) == 0);
+  CHECK(csv.rfind("stage,unit,conversion,F_key_feed_over_minus_r,area\n", 0) == 0);
   CHECK(csv.find("nan") == std::string::npos);
   fs::remove_all(dir);
 }

@@ -2,6 +2,7 @@
 #include <catch2/catch.hpp>
 #include <filesystem>
 #include <fstream>
+#include <functional>
 #include <limits>
 #include <sstream>
 
@@ -138,4 +139,57 @@ TEST_CASE("OutputSet writes nothing until commit and cleans up when abandoned", 
   CHECK(read(dir / "old.json") == "new");
   CHECK(read(dir / "sub" / "b.csv") == "b");
   std::filesystem::remove_all(dir);
+}
+
+// Stream data by hand from the definitions: y_i = F_i / sum F, m_i = F_i M_i,
+// closure = (m_in - m_out) / m_in.
+TEST_CASE("streams carry mole fractions, mass flows and each stage's mass balance", "[report]") {
+  auto t = sample_result();
+  t.molar_mass = {0.050, 0.060};  // B heavier than A: the reaction A -> B does not keep mass
+  const auto j = to_json(t);
+  const auto& out = j["stages"][0]["outlet"];
+  CHECK(out["mole_fractions"]["A"].get<double>() == Approx(0.4));
+  CHECK(out["mole_fractions"]["B"].get<double>() == Approx(0.6));
+  CHECK(out["mass_flows"]["B"].get<double>() == Approx(0.036));
+  CHECK(out["mass_flow"].get<double>() == Approx(0.056));
+  // in 0.050 kg/s, out 0.4*0.050 + 0.6*0.060 = 0.056 kg/s: (0.050 - 0.056) / 0.050 = -0.12
+  CHECK(j["stages"][0]["mass_balance"].get<double>() == Approx(-0.12));
+  CHECK(j["stages"][1]["mass_balance"].get<double>() == 0.0);
+  const std::string table = format_stage_table(t);
+  CHECK(table.find("mass balance per reactor, (in - out) / in: R1 -1.2e-01") != std::string::npos);
+  CHECK(table.find("outlet kg/s") != std::string::npos);
+  const std::string s = streams_csv(t);
+  CHECK(s.find("\nR1 outlet,430,2000000,1,0.056,0.4,0.6,0.4,0.6\n") != std::string::npos);
+
+  t.molar_mass.clear();  // a gas case may give no molar masses: said, not guessed
+  CHECK(to_json(t)["feed"]["mass_flow"].is_null());
+  CHECK(format_stage_table(t).find("mass flows: not shown") != std::string::npos);
+}
+
+TEST_CASE("every number in the run's JSON has its unit in the units object", "[report]") {
+  auto t = sample_result();
+  t.molar_mass = {0.050, 0.050};
+  const auto j = to_json(t);
+  const auto& units = j["units"];
+  std::vector<std::string> missing;
+  std::function<void(const nlohmann::json&, const std::string&)> walk =
+      [&](const nlohmann::json& o, const std::string& key) {
+        if (o.is_object()) {
+          for (auto it = o.begin(); it != o.end(); ++it)
+            // Maps keyed by species id take their unit from the map's name.
+            walk(it.value(),
+                 key == "flows" || key == "mass_flows" || key == "mole_fractions" ? key : it.key());
+        } else if (o.is_array()) {
+          for (const auto& v : o) walk(v, key);
+        } else if (o.is_number() && !units.contains(key) && key != "steps" && key != "rhs_evals" &&
+                   key != "jac_evals" && key != "newton_iters" && key != "error_test_fails") {
+          missing.push_back(key);  // counts of the solver are plain counts
+        }
+      };
+  walk(j, "");
+  std::string list;
+  for (const auto& k : missing) list += k + " ";
+  INFO(list);
+  CHECK(missing.empty());
+  CHECK(units["ghsv"] == "1/h");  // the named exception to SI
 }

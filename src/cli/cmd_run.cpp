@@ -63,6 +63,7 @@ int run(const RunOptions& o) {
   if (!o.json_path.empty()) out.add(o.json_path, json_text(result));
   if (!o.csv_dir.empty()) {
     out.add(std::filesystem::path(o.csv_dir) / "stages.csv", stages_csv(result));
+    out.add(std::filesystem::path(o.csv_dir) / "streams.csv", streams_csv(result));
     out.add(std::filesystem::path(o.csv_dir) / "profiles.csv", profiles_csv(result));
     out.add(std::filesystem::path(o.csv_dir) / "paths.csv", paths_csv(result));
     out.add(std::filesystem::path(o.csv_dir) / "levenspiel.csv", levenspiel_csv(result));
@@ -83,9 +84,10 @@ int run(const RunOptions& o) {
 Action setup_run(CLI::App& app) {
   auto o = std::make_shared<RunOptions>();
   app.add_option("case", o->case_file, "Case file (YAML)")->required();
-  app.add_option("--json", o->json_path, "Write the whole result as JSON (SI units) to PATH");
+  app.add_option("--json", o->json_path, "Write the whole result as JSON (SI units) to FILE");
   app.add_option("--csv", o->csv_dir,
-                 "Write stages.csv, profiles.csv, paths.csv and levenspiel.csv into folder DIR");
+                 "Write stages.csv, streams.csv, profiles.csv, paths.csv and levenspiel.csv into "
+                 "folder DIR");
   app.add_option("--report", o->report_dir,
                  "Write report.html (self-contained, with figures) and the figures as SVG into "
                  "folder DIR");

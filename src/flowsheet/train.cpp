@@ -119,7 +119,11 @@ TrainWorkspace& TrainWorkspace::operator=(TrainWorkspace&&) noexcept = default;
 TrainResult TrainResult::for_case(const Case& c) {
   TrainResult result;
   result.title = c.title;
-  for (const auto& s : c.mechanism.species()) result.species.push_back(s.id);
+  for (const auto& s : c.mechanism.species()) {
+    result.species.push_back(s.id);
+    if (s.mw) result.molar_mass.push_back(*s.mw);
+  }
+  if (result.molar_mass.size() != result.species.size()) result.molar_mass.clear();
   result.key = c.mechanism.species()[c.key].id;
   result.feed = c.feed;
   result.warnings = c.warnings;

@@ -25,7 +25,8 @@ std::string flow_headers(const TrainResult& result) {
 std::string stages_csv(const TrainResult& result) {
   std::string out =
       "stage,type,heat,sized,volume_m3,catalyst_mass_kg,space_time_s,ghsv_per_h,whsv_per_h,"
-      "lhsv_per_h,duty_W,T_in_K,T_out_K,T_max_K,T_min_K,P_Pa,conversion" +
+      "lhsv_per_h,duty_W,T_in_K,T_out_K,T_max_K,T_min_K,P_Pa,conversion,mass_flow_kg_per_s,"
+      "mass_balance" +
       flow_headers(result) + "\n";
   for (const auto& r : result.stages) {
     std::string heat;
@@ -35,9 +36,28 @@ std::string stages_csv(const TrainResult& result) {
                        cell(r.catalyst_mass), cell(r.space_time), cell(r.ghsv), cell(r.whsv),
                        cell(r.lhsv), cell(r.duty), cell(r.inlet.T), cell(r.outlet.T), cell(r.T_max),
                        cell(r.T_min), cell(r.outlet.P), cell(r.conversion));
+    out += fmt::format(",{},{}", cell(mass_flow(r.outlet, result.molar_mass)),
+                       cell(mass_balance_closure(r.inlet, r.outlet, result.molar_mass)));
     for (double f : r.outlet.F) out += fmt::format(",{}", cell(f));
     out += "\n";
   }
+  return out;
+}
+
+std::string streams_csv(const TrainResult& result) {
+  std::string out =
+      "stream,T_K,P_Pa,total_flow_mol_per_s,mass_flow_kg_per_s" + flow_headers(result);
+  for (const auto& id : result.species) out += fmt::format(",y_{}", id);
+  out += "\n";
+  auto row = [&](const std::string& name, const Stream& s) {
+    out += fmt::format("{},{},{},{},{}", name, cell(s.T), cell(s.P), cell(s.total_flow()),
+                       cell(mass_flow(s, result.molar_mass)));
+    for (double f : s.F) out += fmt::format(",{}", cell(f));
+    for (double y : mole_fractions(s)) out += fmt::format(",{}", cell(y));
+    out += "\n";
+  };
+  row("feed", result.feed);
+  for (const auto& r : result.stages) row(r.id + " outlet", r.outlet);
   return out;
 }
 
@@ -66,9 +86,9 @@ std::string paths_csv(const TrainResult& result) {
 }
 
 std::string levenspiel_csv(const TrainResult& result) {
-  std::string out = "stage,basis,conversion,inverse_rate,area\n";
+  std::string out = "stage,unit,conversion,F_key_feed_over_minus_r,area\n";
   for (const auto& c : result.levenspiel) {
-    const char* unit = c.catalyst_basis ? "catalyst_kg" : "volume_m3";
+    const char* unit = c.catalyst_basis ? "kg" : "m3";
     for (const auto& p : c.points)
       out += fmt::format("{},{},{},{},\n", c.stage, unit, cell(p.X), cell(p.inverse_rate));
     out += fmt::format("{},{},,,{}\n", c.stage, unit, cell(c.area));

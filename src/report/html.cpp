@@ -58,12 +58,54 @@ std::string space_velocity_table(const TrainResult& r) {
          rows + "</table>\n";
 }
 
-std::string stream_table(const TrainResult& r) {
+// The feed and every stage's outlet, one row each: conditions, totals and
+// each species' molar flow; then the mole fractions. Where the species have
+// molar masses, each stage's mass balance beside the stream it makes.
+std::string stream_tables(const TrainResult& r) {
+  const bool mass = !r.molar_mass.empty();
   std::string h =
-      "<table>\n<tr><th>species</th><th>feed (mol/s)</th><th>outlet (mol/s)</th></tr>\n";
-  for (std::size_t i = 0; i < r.species.size(); ++i)
-    h += "<tr>" + cell(r.species[i], false) + cell(fmt::format("{:.5g}", r.feed.F[i]), true) +
-         cell(fmt::format("{:.5g}", std::max(0.0, r.outlet.F[i])), true) + "</tr>\n";
+      "<h2 id=\"streams\">Streams</h2>\n<table class=\"streams\">\n<tr><th>stream</th>"
+      "<th>T (°C / K)</th><th>P (bar)</th><th>total (mol/s)</th>";
+  if (mass) h += "<th>mass (kg/s)</th><th>mass balance (in − out) / in</th>";
+  for (const auto& id : r.species) h += "<th>" + xml_escape(id) + " (mol/s)</th>";
+  h += "</tr>\n";
+  auto row = [&](const std::string& name, const Stream& s, const StageResult* from) {
+    h += "<tr>" + cell(name, false) + temperature_cell(s.T) + cell(bar_text(s.P), true) +
+         cell(plain_sig_text(s.total_flow()), true);
+    if (mass) {
+      std::string closure = "-";
+      if (from && from->kind != StageKind::Exchanger)
+        if (const auto c = mass_balance_closure(from->inlet, from->outlet, r.molar_mass))
+          closure = closure_text(*c);
+      h += cell(plain_sig_text(mass_flow(s, r.molar_mass).value_or(0.0)), true) +
+           cell(closure, true);
+    }
+    for (double f : s.F) h += cell(plain_sig_text(std::max(0.0, f)), true);
+    h += "</tr>\n";
+  };
+  row("feed", r.feed, nullptr);
+  for (const auto& s : r.stages) row(s.id + " outlet", s.outlet, &s);
+  h += "</table>\n";
+  if (!mass)
+    h += "<p>Mass flows are not shown: not every species has a molar mass (mw or formula).</p>\n";
+
+  // Mole fractions, one column of common decimals per species.
+  std::vector<const Stream*> streams{&r.feed};
+  for (const auto& s : r.stages) streams.push_back(&s.outlet);
+  std::vector<std::vector<std::string>> y_cols;
+  for (std::size_t i = 0; i < r.species.size(); ++i) {
+    std::vector<double> column;
+    for (const Stream* s : streams) column.push_back(mole_fractions(*s)[i]);
+    y_cols.push_back(fraction_column(column));
+  }
+  h += "<table class=\"streams\">\n<tr><th>mole fractions</th>";
+  for (const auto& id : r.species) h += "<th>" + xml_escape(id) + "</th>";
+  h += "</tr>\n";
+  for (std::size_t k = 0; k < streams.size(); ++k) {
+    h += "<tr>" + cell(k == 0 ? std::string("feed") : r.stages[k - 1].id + " outlet", false);
+    for (const auto& col : y_cols) h += cell(col[k], true);
+    h += "</tr>\n";
+  }
   return h + "</table>\n";
 }
 
@@ -72,14 +114,15 @@ std::string stream_table(const TrainResult& r) {
 std::string run_report_html(const Case& c, const TrainResult& r, const std::vector<Figure>& figures,
                             const ReportProvenance& p) {
   std::string h = html::page_begin(r.title, p);
+  h += html::feed_section(c);
   h += "<h2 id=\"summary\">Stages</h2>\n" + stage_table(r);
   h += fmt::format("<p>Outlet: {} °C ({} K), {} bar; overall conversion of {} = {}.</p>\n",
-                   celsius_text(r.outlet.T), fixed_text(r.outlet.T, 2),
-                   fixed_text(r.outlet.P / 1e5, 3), xml_escape(r.key), fixed_text(r.conversion, 4));
+                   celsius_text(r.outlet.T), fixed_text(r.outlet.T, 2), bar_text(r.outlet.P),
+                   xml_escape(r.key), fixed_text(r.conversion, 4));
   for (const auto& s : r.stages)
     if (s.reach && s.heat) h += "<p>" + xml_escape(reach_sentence(s, r.species)) + ".</p>\n";
   h += space_velocity_table(r);
-  h += stream_table(r);
+  h += stream_tables(r);
   h += html::figures_section(figures);
   h += html::warnings_section(r.warnings);
   h += html::inputs_section(c);

@@ -169,10 +169,32 @@ std::string inputs_section(const Case& c) {
     h += "<tr>" + cell(rx.id, false) + cell(rx.equation, false) +
          cell(fmt::format("{:.3f}", rx.dH_298 / 1e3), true) + "<td><code>" +
          xml_escape(rate_text(m, rx)) + "</code></td></tr>\n";
+  return h + "</table>\n";
+}
+
+std::string feed_section(const Case& c) {
+  const auto& species = c.mechanism.species();
+  const auto y = fraction_column(mole_fractions(c.feed));
+  std::string h = fmt::format(
+      "<h2 id=\"feed\">Feed and design basis</h2>\n<p>Feed: {} °C ({} K), {} bar, {} mol/s in "
+      "all; key species {}.</p>\n<table>\n<tr><th>species</th><th>flow (mol/s)</th>"
+      "<th>mole fraction</th></tr>\n",
+      celsius_text(c.feed.T), fixed_text(c.feed.T, 2), bar_text(c.feed.P),
+      plain_sig_text(c.feed.total_flow()), xml_escape(species[c.key].id));
+  for (std::size_t i = 0; i < species.size(); ++i)
+    h += "<tr>" + cell(species[i].id, false) + cell(plain_sig_text(c.feed.F[i]), true) +
+         cell(y[i], true) + "</tr>\n";
   h += "</table>\n";
-  h += fmt::format("<h3>Feed</h3>\n<p>{} °C ({} K), {} bar; key species {}.</p>\n",
-                   celsius_text(c.feed.T), fixed_text(c.feed.T, 2), fixed_text(c.feed.P / 1e5, 3),
-                   xml_escape(m.species()[c.key].id));
+  auto limit = [](const std::optional<double>& T) {
+    return T ? fmt::format("{} °C ({} K)", celsius_text(*T), fixed_text(*T, 2))
+             : std::string("not given");
+  };
+  h += fmt::format("<p>Train-level target: {}. Catalyst limits: T_max {}; T_in_min {}.</p>\n",
+                   c.target_conversion
+                       ? fmt::format("conversion of {} = {}", xml_escape(species[c.key].id),
+                                     fixed_text(*c.target_conversion, 4))
+                       : std::string("none (each stage as the case gives it)"),
+                   limit(c.limits.T_max), limit(c.limits.T_in_min));
   return h;
 }
 

@@ -20,8 +20,50 @@ json flows(const std::vector<std::string>& ids, const std::vector<double>& F) {
   return o;
 }
 
-json stream(const std::vector<std::string>& ids, const Stream& s) {
-  return {{"T", json_number(s.T)}, {"P", json_number(s.P)}, {"flows", flows(ids, s.F)}};
+// Molar flows, mole fractions and, with molar masses, mass flows and their
+// total (null without).
+json stream(const std::vector<std::string>& ids, const std::vector<double>& molar_mass,
+            const Stream& s) {
+  const auto m = species_mass_flows(s, molar_mass);
+  const auto total = mass_flow(s, molar_mass);
+  return {{"T", json_number(s.T)},
+          {"P", json_number(s.P)},
+          {"flows", flows(ids, s.F)},
+          {"total_flow", json_number(s.total_flow())},
+          {"mole_fractions", flows(ids, mole_fractions(s))},
+          {"mass_flows", m ? flows(ids, *m) : json(nullptr)},
+          {"mass_flow", total ? json_number(*total) : json(nullptr)}};
+}
+
+// The units of every number in the output: SI, with the one exception
+// named (space velocities per hour, as the trade quotes them).
+json units_json() {
+  json u = {{"P", "Pa"},
+            {"flows", "mol/s"},
+            {"total_flow", "mol/s"},
+            {"mass_flows", "kg/s"},
+            {"mass_flow", "kg/s"},
+            {"mass_balance", "1, (in - out) / in"},
+            {"catalyst_mass", "kg"},
+            {"bulk_density", "kg/m3"},
+            {"space_time", "s"},
+            {"space_velocity", "1/s"},
+            {"ghsv", "1/h"},
+            {"whsv", "1/h"},
+            {"lhsv", "1/h"},
+            {"duty", "W"},
+            {"inverse_rate", "kg*s/mol or m3*s/mol, by the curve's basis"},
+            {"area", "kg or m3, by the curve's basis"}};
+  for (const char* k :
+       {"T", "T_max", "T_min", "T_in_min", "T_opt", "T_ad_eq", "T_at_X_max", "T_end", "limit"})
+    u[k] = "K";
+  for (const char* k : {"approach_T", "approach_T_window", "margin", "by"})
+    u[k] = "K (a difference)";
+  for (const char* k : {"volume", "V", "V_at_X_max"}) u[k] = "m3";
+  for (const char* k : {"conversion", "X", "X_eq", "X_eq_out", "X_in", "X_out", "X_ad_eq", "X_max",
+                        "X_end", "approach_X", "mole_fractions"})
+    u[k] = "1";
+  return u;
 }
 
 json profile(const std::vector<std::string>& ids, const StageResult& r) {
@@ -39,7 +81,8 @@ json profile(const std::vector<std::string>& ids, const StageResult& r) {
   return {{"V", V}, {"T", T}, {"X", X}, {"flows", flows_by_id}};
 }
 
-json stage(const std::vector<std::string>& ids, const StageResult& r) {
+json stage(const std::vector<std::string>& ids, const std::vector<double>& molar_mass,
+           const StageResult& r) {
   json s;
   s["id"] = r.id;
   s["type"] = stage_kind_name(r.kind);
@@ -58,8 +101,10 @@ json stage(const std::vector<std::string>& ids, const StageResult& r) {
   s["T_max"] = json_number(r.T_max);
   s["T_min"] = json_number(r.T_min);
   s["conversion"] = json_number(r.conversion);
-  s["inlet"] = stream(ids, r.inlet);
-  s["outlet"] = stream(ids, r.outlet);
+  s["inlet"] = stream(ids, molar_mass, r.inlet);
+  s["outlet"] = stream(ids, molar_mass, r.outlet);
+  const auto closure = mass_balance_closure(r.inlet, r.outlet, molar_mass);
+  s["mass_balance"] = closure ? json_number(*closure) : json(nullptr);
   json states = json::array();
   for (const auto& ss : r.steady_states)
     states.push_back(
@@ -150,15 +195,16 @@ nlohmann::json to_json(const TrainResult& result) {
   j["title"] = result.title;
   j["species"] = result.species;
   j["key"] = result.key;
-  j["feed"] = stream(result.species, result.feed);
+  j["units"] = units_json();
+  j["feed"] = stream(result.species, result.molar_mass, result.feed);
   j["conversion"] = json_number(result.conversion);
   json stages = json::array();
   for (const auto& r : result.stages) {
-    stages.push_back(stage(result.species, r));
+    stages.push_back(stage(result.species, result.molar_mass, r));
     stages.back()["limit"] = limit_json(result.limit_check, r);
   }
   j["stages"] = stages;
-  j["outlet"] = stream(result.species, result.outlet);
+  j["outlet"] = stream(result.species, result.molar_mass, result.outlet);
   json curve = json::array();
   for (const auto& p : result.equilibrium_curve)
     curve.push_back({{"T", json_number(p.T)}, {"X_eq", json_number(p.X_eq)}});

@@ -13,13 +13,59 @@
 
 namespace rxtrain {
 
+namespace {
+
+// Feed and outlet: molar flows, mole fractions and (with molar masses) mass
+// flows, their totals, and how well each stage keeps mass.
+std::string stream_columns(const TrainResult& result) {
+  const auto y_feed = fraction_column(mole_fractions(result.feed));
+  const auto y_out = fraction_column(mole_fractions(result.outlet));
+  const auto m_feed = species_mass_flows(result.feed, result.molar_mass);
+  const auto m_out = species_mass_flows(result.outlet, result.molar_mass);
+  std::vector<std::vector<std::string>> fl;
+  fl.push_back({"species", "feed mol/s", "feed y", "outlet mol/s", "outlet y"});
+  if (m_feed) {
+    fl.front().insert(fl.front().begin() + 3, "feed kg/s");
+    fl.front().push_back("outlet kg/s");
+  }
+  auto add = [&](std::string name, double F_in, std::string yi, double F_out, std::string yo,
+                 std::optional<double> kg_in, std::optional<double> kg_out) {
+    fl.push_back({std::move(name), plain_sig_text(F_in), std::move(yi),
+                  plain_sig_text(std::max(0.0, F_out)), std::move(yo)});
+    if (m_feed) {
+      fl.back().insert(fl.back().begin() + 3, plain_sig_text(*kg_in));
+      fl.back().push_back(plain_sig_text(*kg_out));
+    }
+  };
+  for (std::size_t i = 0; i < result.species.size(); ++i)
+    add(result.species[i], result.feed.F[i], y_feed[i], result.outlet.F[i], y_out[i],
+        m_feed ? std::optional((*m_feed)[i]) : std::nullopt,
+        m_out ? std::optional((*m_out)[i]) : std::nullopt);
+  add("total", result.feed.total_flow(), fixed_text(1.0, 4), result.outlet.total_flow(),
+      fixed_text(1.0, 4), mass_flow(result.feed, result.molar_mass),
+      mass_flow(result.outlet, result.molar_mass));
+  std::string out = render_columns(fl, 1);
+  if (!m_feed)
+    return out + "mass flows: not shown, not every species has a molar mass (mw or formula)\n";
+  std::string closures;
+  for (const auto& r : result.stages)
+    if (r.kind == StageKind::Exchanger)
+      continue;  // no reaction: in = out by construction
+    else if (const auto c = mass_balance_closure(r.inlet, r.outlet, result.molar_mass))
+      closures += fmt::format("{}{} {}", closures.empty() ? "" : ", ", r.id, closure_text(*c));
+  if (!closures.empty()) out += "mass balance per reactor, (in - out) / in: " + closures + "\n";
+  return out;
+}
+
+}  // namespace
+
 std::string format_stage_table(const TrainResult& result) {
   std::string out;
   out += result.title + "\n";
   const double Ft = result.feed.total_flow();
   out +=
       fmt::format("feed {} °C, {} bar, {} mol/s; key species {}\n\n", celsius_text(result.feed.T),
-                  fixed_text(result.feed.P / 1e5, 3), fmt::format("{:.4g}", Ft), result.key);
+                  bar_text(result.feed.P), plain_sig_text(Ft), result.key);
 
   std::vector<std::vector<std::string>> rows;
   rows.push_back({"stage", "type", "heat", "V m3", "cat kg", "tau s", "T in °C", "T out °C",
@@ -78,15 +124,9 @@ std::string format_stage_table(const TrainResult& result) {
   }
 
   out += fmt::format("\noutlet: {} °C, {} bar, overall conversion of {} = {}\n",
-                     celsius_text(result.outlet.T), fixed_text(result.outlet.P / 1e5, 3),
-                     result.key, fixed_text(result.conversion, 4));
-  std::vector<std::vector<std::string>> fl;
-  fl.push_back({"species", "feed mol/s", "outlet mol/s"});
-  for (std::size_t i = 0; i < result.species.size(); ++i)
-    fl.push_back({result.species[i], fmt::format("{:.5g}", result.feed.F[i]),
-                  fmt::format("{:.5g}", std::max(0.0, result.outlet.F[i]))});
-  out += render_columns(fl, 1);
-
+                     celsius_text(result.outlet.T), bar_text(result.outlet.P), result.key,
+                     fixed_text(result.conversion, 4));
+  out += stream_columns(result);
   if (!result.warnings.empty()) {
     out += "\nwarnings:\n";
     for (const auto& w : result.warnings) out += "  - " + w + "\n";

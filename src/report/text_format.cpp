@@ -23,7 +23,46 @@ std::string fixed_text(const std::optional<double>& v, int digits) {
 
 std::string sig_text(const std::optional<double>& v) {
   if (!v || !std::isfinite(*v)) return "-";
-  return fmt::format("{:.3g}", *v);
+  return plain_sig_text(*v, 3);
+}
+
+std::string plain_sig_text(double v, int sig) {
+  if (!std::isfinite(v)) return "-";
+  if (v == 0) return "0";
+  const int magnitude = static_cast<int>(std::floor(std::log10(std::abs(v))));
+  const int decimals = std::clamp(sig - 1 - magnitude, 0, 15);
+  std::string t = fmt::format("{:.{}f}", v, decimals);
+  if (t.find('.') != std::string::npos) {
+    while (t.back() == '0') t.pop_back();
+    if (t.back() == '.') t.pop_back();
+  }
+  return t == "-0" ? "0" : t;
+}
+
+std::vector<std::string> fraction_column(const std::vector<double>& values) {
+  int decimals = 4;
+  for (double v : values)
+    if (std::isfinite(v) && v > 0) {
+      const int magnitude = static_cast<int>(std::floor(std::log10(v)));
+      decimals = std::max(decimals, std::min(9, 1 - magnitude));
+    }
+  std::vector<std::string> out;
+  for (double v : values) out.push_back(fixed_text(v, decimals));
+  return out;
+}
+
+std::string closure_text(double relative) {
+  if (!std::isfinite(relative)) return "-";
+  // Below 1e-12 it is the round-off of the sums, whose digits vary with
+  // the build: say it closes rather than print noise.
+  return std::abs(relative) < 1e-12 ? "< 1e-12" : fmt::format("{:.1e}", relative);
+}
+
+std::string bar_text(double P) {
+  if (!std::isfinite(P)) return "-";
+  const double bar = P / 1e5;
+  const int magnitude = bar > 0 ? static_cast<int>(std::floor(std::log10(bar))) : 0;
+  return fixed_text(bar, std::clamp(3 - magnitude, 0, 6));
 }
 
 std::string celsius_text(double T) { return fixed_text(T - kZeroCelsius, 2); }

@@ -53,6 +53,9 @@ struct TrainResult {
   std::string title;
   std::vector<std::string> species;  // ids, column order of every output
   std::string key;                   // key species id
+  // kg/mol in species order, for mass flows; empty when a species has none
+  // (a gas case may omit them).
+  std::vector<double> molar_mass;
   Stream feed;
   std::vector<StageResult> stages;    // in train order
   Stream outlet;                      // outlet of the last stage

@@ -62,7 +62,11 @@ std::string header_row(const std::vector<std::string>& heads);
 std::string figures_section(const std::vector<Figure>& figures);
 // "Warnings" heading and a list ("None." when empty).
 std::string warnings_section(const std::vector<std::string>& warnings);
-// The case's species, reactions (rate laws written out, SI) and feed.
+// What the case asks: the feed (T, P, total flow, each species' flow and
+// mole fraction), the key species, the train-level target and the
+// catalyst's temperature limits ("not given" where the case has none).
+std::string feed_section(const Case& c);
+// The case's species and reactions (rate laws written out, SI).
 std::string inputs_section(const Case& c);
 
 }  // namespace html

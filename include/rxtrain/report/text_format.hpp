@@ -24,8 +24,23 @@ std::string reach_sentence(const StageResult& r, const std::vector<std::string>&
 // `v` with `digits` decimals; "-" when not finite or empty.
 std::string fixed_text(double v, int digits);
 std::string fixed_text(const std::optional<double>& v, int digits);
-// Three significant figures (quantities that span decades); "-" as above.
+// Three significant figures in plain notation (quantities that span
+// decades; a large one keeps its whole digits: 1233); "-" as above.
 std::string sig_text(const std::optional<double>& v);
+// `sig` significant digits in plain notation (never an exponent), trailing
+// zeros dropped: 219.44, 8.248, 30000, 0.000012346; "-" as above. For flows,
+// masses and volumes, whose columns span decades.
+std::string plain_sig_text(double v, int sig = 5);
+// A column of fractions (mole fractions) with one number of decimals: 4, or
+// more (up to 9) so that its smallest nonzero value shows two significant
+// digits (a 5 ppm impurity reads 0.0000050, not 0.0000).
+std::vector<std::string> fraction_column(const std::vector<double>& values);
+// A relative mass-balance closure, (in - out) / in: "-1.2e-01", or
+// "< 1e-12" where it is round-off.
+std::string closure_text(double relative);
+// Pa -> bar with four significant digits, trailing zeros kept (30.00,
+// 1.500, 0.9870): every screen prints pressures this way.
+std::string bar_text(double P);
 // K -> °C with two decimals (number only, no unit).
 std::string celsius_text(double T);
 // Code points, not bytes, so "°C" aligns.
