@@ -43,7 +43,7 @@ TEST_CASE("every demo case under cases/ runs and writes consistent JSON and CSV"
         CHECK(j["stages"][i]["inlet"] == j["stages"][i - 1]["outlet"]);
       CHECK(j["outlet"] == j["stages"].back()["outlet"]);
       for (const auto& s : j["stages"])
-        CHECK(s["T_max"].get<double>() >= s["outlet"]["T"].get<double>() - 1e-9);
+        CHECK(s["T_peak"].get<double>() >= s["outlet"]["T"].get<double>() - 1e-9);
       const std::string stages = slurp(dir / "csv" / "stages.csv");
       CHECK(std::count(stages.begin(), stages.end(), '\n') ==
             static_cast<long>(j["stages"].size()) + 1);
@@ -298,7 +298,7 @@ TEST_CASE("optimize --margin 15K: the written case runs every peak 15 K inside T
     if (s["type"] != "pfr") continue;
     ++beds;
     INFO(s["id"].get<std::string>());
-    CHECK(s["T_max"].get<double>() <= T_max - 15 + 1e-3);
+    CHECK(s["T_peak"].get<double>() <= T_max - 15 + 1e-3);
     CHECK(s["T_min"].get<double>() >= T_in_min + 15 - 1e-3);
   }
   CHECK(beds == 3);

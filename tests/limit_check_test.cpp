@@ -264,7 +264,7 @@ TEST_CASE("run and sweep say when a bed passes T_max", "[limits][cli]") {
   const auto& st = j["stages"][0];
   const auto& lim = st["limit"];
   CHECK(lim["T_max"].get<double>() == Approx(893.15));
-  CHECK(lim["over_limit"].get<double>() == Approx(st["T_max"].get<double>() - 893.15));
+  CHECK(lim["over_limit"].get<double>() == Approx(st["T_peak"].get<double>() - 893.15));
   REQUIRE(lim["findings"].size() == 1);
   const auto& f = lim["findings"][0];
   CHECK(f["kind"] == "over");

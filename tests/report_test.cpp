@@ -70,7 +70,7 @@ TEST_CASE("JSON result follows the documented layout, SI units, null where not a
   CHECK(r1["volume"].get<double>() == 2.0);
   CHECK(r1["catalyst_mass"].is_null());
   CHECK(r1["space_time"].get<double>() == 12.5);
-  CHECK(r1["T_max"].get<double>() == 430.0);
+  CHECK(r1["T_peak"].get<double>() == 430.0);
   CHECK(r1["inlet"]["flows"]["A"].get<double>() == 1.0);
   CHECK(r1["outlet"]["P"].get<double>() == 2.0e6);
   const auto& e1 = j["stages"][1];
@@ -106,7 +106,7 @@ TEST_CASE("CSV files have one header and one row per stage or profile point", "[
 
 TEST_CASE("the stage table shows display units and the caution", "[report]") {
   const std::string s = format_stage_table(sample_result());
-  CHECK(s.find("T max °C") != std::string::npos);
+  CHECK(s.find("T peak °C") != std::string::npos);
   CHECK(s.find("156.85") != std::string::npos);  // 430 K
   CHECK(s.find("-1.50") != std::string::npos);   // duty kW
   CHECK(s.find("0.6000") != std::string::npos);

@@ -514,14 +514,19 @@ TEST_CASE("design warnings: space times outside the usual ranges", "[staging]") 
   CHECK(warnings_for(StageKind::Pfr, 10).empty());
   const auto tank_short = warnings_for(StageKind::Cstr, 300);
   REQUIRE(tank_short.size() == 1);
-  CHECK_THAT(tank_short[0], Catch::Contains("below the usual range for a stirred tank"));
+  CHECK_THAT(tank_short[0], Catch::Contains("5 min is below what stirred tanks usually have"));
   const auto tank_long = warnings_for(StageKind::Cstr, 5 * 3600.0);
   REQUIRE(tank_long.size() == 1);
   CHECK_THAT(tank_long[0], Catch::Contains("5 h is above"));
   const auto tube_short = warnings_for(StageKind::Pfr, 0.2);
   REQUIRE(tube_short.size() == 1);
-  CHECK_THAT(tube_short[0], Catch::Contains("0.2 s is below the usual range for a tubular"));
+  CHECK_THAT(tube_short[0], Catch::Contains("0.2 s is below what empty tubular reactors"));
   CHECK(warnings_for(StageKind::Pfr, 2 * 3600.0).size() == 1);
+  // A catalyst bed is judged by its space velocities: no space-time warning.
+  TrainResult bed;
+  bed.stages.push_back(stage(StageKind::Pfr, 0.2));
+  bed.stages.back().bulk_density = 800.0;
+  CHECK(design_warnings(c, bed).empty());
 }
 
 // ---- the command line --------------------------------------------------------------

@@ -141,27 +141,28 @@ std::vector<std::string> design_warnings(const Case& c, const TrainResult& resul
         std::string amount = fmt::format("{:.3f} m3", kTailFraction * V);
         if (r.catalyst_mass)
           amount += fmt::format(", {:.0f} kg of catalyst", kTailFraction * *r.catalyst_mass);
+        const std::string added =
+            tail < 1e-4 ? std::string("less than 0.0001") : fmt::format("only {:.4f}", tail);
         out.push_back(fmt::format(
-            "stage {}: its last 10 % of volume ({}) adds only {:.4f} conversion (under {:.2f}; "
-            "common practice, no source): the rate there has nearly died out, close to "
-            "equilibrium or complete conversion, so that {} is largely wasted",
-            r.id, amount, std::max(tail, 0.0), kTailMinConversion,
-            r.catalyst_mass ? "catalyst" : "volume"));
+            "stage {}: its last 10 % of volume ({}) adds {} to the conversion: the rate there "
+            "has nearly died out, close to equilibrium or complete conversion, so that {} is "
+            "largely wasted",
+            r.id, amount, added, r.catalyst_mass ? "catalyst" : "volume"));
       }
     }
 
-    if (r.space_time) {
+    // A catalyst bed is judged by its space velocities (GHSV, WHSV), not
+    // by a residence time: only empty tubes and tanks get this check.
+    if (r.space_time && !r.bulk_density) {
       const bool tank = r.kind == StageKind::Cstr;
       const double lo = tank ? kTankTauLow : kTubeTauLow;
       const double hi = tank ? kTankTauHigh : kTubeTauHigh;
       const double tau = *r.space_time;
       if (tau < lo || tau > hi)
-        out.push_back(fmt::format(
-            "stage {}: space time {} is {} the usual range for a {} ({}; common practice, no "
-            "source)",
-            r.id, duration(tau), tau < lo ? "below" : "above",
-            tank ? "stirred tank" : "tubular reactor",
-            tank ? "about 10 min to 4 h" : "about 0.5 s to 1 h"));
+        out.push_back(fmt::format("stage {}: space time {} is {} what {} usually have ({})", r.id,
+                                  duration(tau), tau < lo ? "below" : "above",
+                                  tank ? "stirred tanks" : "empty tubular reactors",
+                                  tank ? "about 10 min to 4 h" : "about 0.5 s to 1 h"));
     }
   }
   return out;

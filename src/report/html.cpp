@@ -20,7 +20,7 @@ using svg::xml_escape;
 std::string stage_table(const TrainResult& r) {
   std::string h = "<table class=\"stages\">\n<tr>";
   for (const char* head : {"stage", "type", "heat", "V (m³)", "catalyst (kg)", "τ (s)",
-                           "T in (°C / K)", "T out (°C / K)", "T max (°C / K)", "X out",
+                           "T in (°C / K)", "T out (°C / K)", "T peak (°C / K)", "X out",
                            "X_eq(T_out) − X", "T_eq(X) − T (K)", "duty (kW)"})
     h += fmt::format("<th>{}</th>", xml_escape(head));
   h += "</tr>\n";
@@ -28,12 +28,13 @@ std::string stage_table(const TrainResult& r) {
     std::string heat = "-";
     if (s.heat) heat = heat_mode_name(*s.heat);
     h += "<tr>" + cell(s.id, false) + cell(stage_kind_name(s.kind), false) + cell(heat, false) +
-         cell(fixed_text(s.volume, 3) + (s.sized ? "*" : ""), true) +
-         cell(fixed_text(s.catalyst_mass, 1), true) + cell(sig_text(s.space_time), true) +
-         temperature_cell(s.inlet.T) + temperature_cell(s.outlet.T) + temperature_cell(s.T_max) +
+         cell(volume_text(s.volume) + (s.sized ? "*" : ""), true) +
+         cell(volume_text(s.catalyst_mass), true) + cell(sig_text(s.space_time), true) +
+         temperature_cell(s.inlet.T) + temperature_cell(s.outlet.T) +
+         (s.kind == StageKind::Exchanger ? cell("-", true) : temperature_cell(s.T_max)) +
          cell(fixed_text(s.conversion, 4), true) +
          cell(s.equilibrium ? fixed_text(s.equilibrium->approach_X, 4) : "-", true) +
-         cell(approach_T_cell(s), true) + cell(fixed_text(s.duty / 1e3, 2), true) + "</tr>\n";
+         cell(approach_T_cell(s), true) + cell(duty_text(s), true) + "</tr>\n";
   }
   h += "</table>\n";
   bool sized = false;
@@ -118,7 +119,7 @@ std::string run_report_html(const Case& c, const TrainResult& r, const std::vect
   h += "<h2 id=\"summary\">Stages</h2>\n" + stage_table(r);
   h += fmt::format("<p>Outlet: {} °C ({} K), {} bar; overall conversion of {} = {}.</p>\n",
                    celsius_text(r.outlet.T), fixed_text(r.outlet.T, 2), bar_text(r.outlet.P),
-                   xml_escape(r.key), fixed_text(r.conversion, 4));
+                   xml_escape(r.key), conversion_text(r.conversion));
   for (const auto& s : r.stages)
     if (s.reach && s.heat) h += "<p>" + xml_escape(reach_sentence(s, r.species)) + ".</p>\n";
   h += space_velocity_table(r);

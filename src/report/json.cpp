@@ -54,8 +54,8 @@ json units_json() {
             {"duty", "W"},
             {"inverse_rate", "kg*s/mol or m3*s/mol, by the curve's basis"},
             {"area", "kg or m3, by the curve's basis"}};
-  for (const char* k :
-       {"T", "T_max", "T_min", "T_in_min", "T_opt", "T_ad_eq", "T_at_X_max", "T_end", "limit"})
+  for (const char* k : {"T", "T_peak", "T_max", "T_min", "T_in_min", "T_opt", "T_ad_eq",
+                        "T_at_X_max", "T_end", "limit"})
     u[k] = "K";
   for (const char* k : {"approach_T", "approach_T_window", "margin", "by"})
     u[k] = "K (a difference)";
@@ -98,7 +98,7 @@ json stage(const std::vector<std::string>& ids, const std::vector<double>& molar
   s["lhsv"] = json_number(r.lhsv);
   s["space_velocity_basis"] = r.space_velocity_basis;
   s["duty"] = json_number(r.duty);
-  s["T_max"] = json_number(r.T_max);
+  s["T_peak"] = json_number(r.T_max);  // the stage's hottest point; T_max is the limit
   s["T_min"] = json_number(r.T_min);
   s["conversion"] = json_number(r.conversion);
   s["inlet"] = stream(ids, molar_mass, r.inlet);

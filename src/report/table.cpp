@@ -69,21 +69,22 @@ std::string format_stage_table(const TrainResult& result) {
 
   std::vector<std::vector<std::string>> rows;
   rows.push_back({"stage", "type", "heat", "V m3", "cat kg", "tau s", "T in °C", "T out °C",
-                  "T max °C", "X out", "X eq-X", "T eq-T K", "duty kW"});
+                  "T peak °C", "X out", "X_eq(T_out) − X", "T_eq(X) − T K", "duty kW"});
   bool any_sized = false;
   for (const auto& r : result.stages) {
+    const bool exchanger = r.kind == StageKind::Exchanger;
     std::string heat = "-";
     if (r.heat) heat = heat_mode_name(*r.heat);
-    std::string V = fixed_text(r.volume, 3);
+    std::string V = volume_text(r.volume);
     if (r.sized) {
       V += "*";
       any_sized = true;
     }
-    rows.push_back({r.id, stage_kind_name(r.kind), heat, V, fixed_text(r.catalyst_mass, 1),
+    rows.push_back({r.id, stage_kind_name(r.kind), heat, V, volume_text(r.catalyst_mass),
                     sig_text(r.space_time), celsius_text(r.inlet.T), celsius_text(r.outlet.T),
-                    celsius_text(r.T_max), fixed_text(r.conversion, 4),
+                    exchanger ? "-" : celsius_text(r.T_max), conversion_text(r.conversion),
                     r.equilibrium ? fixed_text(r.equilibrium->approach_X, 4) : "-",
-                    approach_T_cell(r), fixed_text(r.duty / 1e3, 2)});
+                    approach_T_cell(r), duty_text(r)});
   }
   out += render_columns(rows, 3);
   if (any_sized) out += "* volume found from the stage's target conversion\n";
@@ -91,8 +92,9 @@ std::string format_stage_table(const TrainResult& result) {
   for (const auto& r : result.stages) any_eq = any_eq || r.equilibrium.has_value();
   if (any_eq) {
     out +=
-        "X eq-X, T eq-T: approach to equilibrium at the outlet (X_eq(T_out) - X_out; the "
-        "temperature at which X_out is equilibrium, minus T_out)\n";
+        "X_eq(T_out) − X, T_eq(X) − T: approach to equilibrium at the outlet (the equilibrium "
+        "conversion at the outlet temperature, minus X; the temperature at which X is "
+        "equilibrium, minus T_out)\n";
     if (const auto note = approach_T_footnote(result); !note.empty()) out += note + "\n";
   }
   for (const auto& r : result.stages)
@@ -125,7 +127,7 @@ std::string format_stage_table(const TrainResult& result) {
 
   out += fmt::format("\noutlet: {} °C, {} bar, overall conversion of {} = {}\n",
                      celsius_text(result.outlet.T), bar_text(result.outlet.P), result.key,
-                     fixed_text(result.conversion, 4));
+                     conversion_text(result.conversion));
   out += stream_columns(result);
   if (!result.warnings.empty()) {
     out += "\nwarnings:\n";

@@ -58,6 +58,17 @@ std::string closure_text(double relative) {
   return std::abs(relative) < 1e-12 ? "< 1e-12" : fmt::format("{:.1e}", relative);
 }
 
+std::string conversion_text(double X) {
+  return fixed_text(X, std::isfinite(X) && std::abs(1 - X) < 1e-4 ? 6 : 4);
+}
+
+std::string volume_text(const std::optional<double>& v) { return v ? plain_sig_text(*v, 5) : "-"; }
+
+std::string duty_text(const StageResult& r) {
+  if (r.kind != StageKind::Exchanger && r.heat == HeatMode::Adiabatic) return "-";
+  return fixed_text(r.duty / 1e3, 2);
+}
+
 std::string bar_text(double P) {
   if (!std::isfinite(P)) return "-";
   const double bar = P / 1e5;
@@ -100,15 +111,15 @@ std::string reach_sentence(const StageResult& r, const std::vector<std::string>&
   const char* what = r.kind == StageKind::Cstr ? "tank" : "bed";
   if (!h.peak_inside() || !h.V_at_X_max)
     return fmt::format("{}: the most this stage can reach at any size is X = {} at {} °C ({})",
-                       r.id, fixed_text(h.X_max, 4), celsius_text(h.T_at_X_max), end);
+                       r.id, conversion_text(h.X_max), celsius_text(h.T_at_X_max), end);
   std::string where = fmt::format("V = {:.4g} m3", *h.V_at_X_max);
   if (r.bulk_density)
     where += fmt::format(", {:.4g} kg of catalyst", *h.V_at_X_max * *r.bulk_density);
   return fmt::format(
       "{}: the most this stage can reach at any size is X = {} at {} °C ({}); a larger {} gives "
       "conversion back, towards X = {} at {} °C ({})",
-      r.id, fixed_text(h.X_max, 4), celsius_text(h.T_at_X_max), where, what, fixed_text(h.X_end, 4),
-      celsius_text(h.T_end), end);
+      r.id, conversion_text(h.X_max), celsius_text(h.T_at_X_max), where, what,
+      conversion_text(h.X_end), celsius_text(h.T_end), end);
 }
 
 std::string space_velocity_basis_text(const std::vector<std::string>& basis,

@@ -38,6 +38,16 @@ std::vector<std::string> fraction_column(const std::vector<double>& values);
 // A relative mass-balance closure, (in - out) / in: "-1.2e-01", or
 // "< 1e-12" where it is round-off.
 std::string closure_text(double relative);
+// A conversion (or any fraction of the way to 1): four decimals, six
+// within 1e-4 of 1, where four would round 0.99995 up to a complete
+// conversion that did not happen.
+std::string conversion_text(double X);
+// Masses and volumes: five significant digits, no trailing zeros
+// (10000, 18.182, 0.85714); "-" when empty or not finite.
+std::string volume_text(const std::optional<double>& v);
+// A stage's duty in kW with two decimals; "-" for an adiabatic reactor,
+// which exchanges no heat by definition.
+std::string duty_text(const StageResult& r);
 // Pa -> bar with four significant digits, trailing zeros kept (30.00,
 // 1.500, 0.9870): every screen prints pressures this way.
 std::string bar_text(double P);
