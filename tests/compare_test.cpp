@@ -152,7 +152,7 @@ TEST_CASE("isothermal first order: a tube needs less volume than a tank", "[comp
   CHECK(V_pfr < V_cstr);
 }
 
-TEST_CASE("a sized stage takes its target along; a target below its new inlet is infeasible",
+TEST_CASE("a sized stage takes its target along, a target below its new inlet is infeasible",
           "[compare]") {
   const double k = 1e-3;
   const CompareResult r = rxtrain::compare_layouts(load(

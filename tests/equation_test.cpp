@@ -115,7 +115,7 @@ TEST_CASE("bad equations report the column", "[equation]") {
   }
 }
 
-TEST_CASE("arrows: -> and <-> are canonical; =>, <=> and the Unicode arrows are accepted",
+TEST_CASE("arrows: -> and <-> are canonical, =>, <=> and the Unicode arrows are accepted",
           "[equation]") {
   struct Case {
     const char* text;

@@ -145,7 +145,7 @@ TEST_CASE("a lowest point below T_in_min, and inlets beyond a limit", "[limits]"
                              "temperature T_in_min"));
 }
 
-TEST_CASE("a peak within the margin of T_max gets a note; at it, no margin left", "[limits]") {
+TEST_CASE("a peak within the margin of T_max gets a note, at it, no margin left", "[limits]") {
   const std::vector<StageResult> s{tube("R1", {{0, 600}, {1, 697}})};
   const LimitCheck near = check_temperature_limits(limits(700.0, {}), s, {.margin = 5.0});
   REQUIRE(near.findings.size() == 1);
@@ -172,7 +172,7 @@ TEST_CASE("a peak within the margin of T_max gets a note; at it, no margin left"
   CHECK(check_temperature_limits(limits({}, 550.0), fed).findings.empty());
 }
 
-TEST_CASE("tanks have no position; exchangers and cases without limits are not checked",
+TEST_CASE("tanks have no position, exchangers and cases without limits are not checked",
           "[limits]") {
   StageResult tank;
   tank.id = "T";

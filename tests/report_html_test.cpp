@@ -3,6 +3,7 @@
 #include <fmt/format.h>
 #include <tinyxml2.h>
 
+#include <algorithm>
 #include <catch2/catch.hpp>
 #include <functional>
 #include <nlohmann/json.hpp>
@@ -11,6 +12,7 @@
 #include "run_command.hpp"
 #include "rxtrain/base/units.hpp"
 #include "rxtrain/case/case.hpp"
+#include "rxtrain/flowsheet/train.hpp"
 #include "rxtrain/report/compare_report.hpp"
 #include "rxtrain/report/figures.hpp"
 #include "rxtrain/report/html.hpp"
@@ -355,7 +357,7 @@ TEST_CASE("staging and compare pages escape a title with XML special characters"
   }
 }
 
-TEST_CASE("optimize --report: the optimum shown equals the JSON; the trade-off has a bar per N",
+TEST_CASE("optimize --report: the optimum shown equals the JSON, the trade-off has a bar per N",
           "[html]") {
   const auto dir = fs::temp_directory_path() / "rxtrain_html_optimize";
   fs::remove_all(dir);
@@ -401,4 +403,50 @@ TEST_CASE("optimize --report: the optimum shown equals the JSON; the trade-off h
     CHECK(one.LoadFile((dir / "rep" / svg).c_str()) == tinyxml2::XML_SUCCESS);
   }
   fs::remove_all(dir);
+}
+
+TEST_CASE("figures: a stage keeps one colour in every figure, no yellow, one exchanger style",
+          "[html]") {
+  const UnitParser units;
+  const Case c =
+      load_case(std::string(RXTRAIN_SOURCE_DIR) + "/cases/so2-three-bed-converter.yaml", units);
+  const TrainResult r = run_train(c);
+  const auto figures = run_figures(c, r, r.levenspiel);
+  // Beds B1, B2, B3 take the first three stage colours, both coolers the
+  // neutral grey.
+  CHECK(stage_colour(r, "B1") == stage_colour(0));
+  CHECK(stage_colour(r, "B3") == stage_colour(2));
+  CHECK(stage_colour(r, "C1") == kExchangerColour);
+  CHECK(stage_colour(r, "C2") == kExchangerColour);
+  for (std::size_t k = 0; k < 8; ++k) CHECK(stage_colour(k) != "#F0E442");  // Okabe-Ito yellow
+  for (const auto& f : figures) {
+    INFO(f.name);
+    const std::string doc = f.chart.render();
+    CHECK(doc.find("#F0E442") == std::string::npos);
+    // Each bed's colour is drawn in every figure that shows beds.
+    for (const char* bed : {"B1", "B2", "B3"})
+      CHECK(doc.find("stroke=\"" + stage_colour(r, bed) + "\"") != std::string::npos);
+  }
+  // Later beds crowd the top-left corner: the diagram gets a zoomed twin.
+  CHECK(std::any_of(figures.begin(), figures.end(),
+                    [](const Figure& f) { return f.name == "tx-diagram-zoom"; }));
+}
+
+TEST_CASE("figures: a stirred tank is a point reached by a jump, not a path", "[html]") {
+  const UnitParser units;
+  const Case c =
+      load_case(std::string(RXTRAIN_SOURCE_DIR) + "/cases/liquid-tank-then-tube.yaml", units);
+  const TrainResult r = run_train(c);
+  const std::string doc = tx_diagram(c, r).chart.render();
+  tinyxml2::XMLDocument xml;
+  REQUIRE(xml.Parse(doc.c_str()) == tinyxml2::XML_SUCCESS);
+  int tank_markers = 0;
+  walk(xml.RootElement(), [&](const tinyxml2::XMLElement* e) {
+    if (std::string(e->Name()) == "g" && e->Attribute("class") &&
+        std::string(e->Attribute("class")) == "markers")
+      for (auto* m = e->FirstChildElement(); m; m = m->NextSiblingElement()) ++tank_markers;
+  });
+  CHECK(tank_markers == 1);  // T1, at its outlet state; the tube T2 has none
+  // One tank and one tube: nothing crowds a corner, no zoomed twin.
+  CHECK(tx_figures(c, r).size() == 1);
 }

@@ -386,7 +386,7 @@ TEST_CASE("an ok row carries a tank's several steady states in its message", "[s
   CHECK(evaluate_point(tube.c, OutputSpec::defaults(tube.c), wt).message.empty());
 }
 
-TEST_CASE("a run passes its tanks' steady states on; a failed run passes none", "[sweep]") {
+TEST_CASE("a run passes its tanks' steady states on, a failed run passes none", "[sweep]") {
   const Fixture tank(test::kSCurveTank);
   PointWorkspace ws;
   ws.train.equilibrium_views = false;
@@ -428,7 +428,7 @@ TEST_CASE("Monte Carlo percentiles of X follow the first-order PFR solution", "[
   CHECK(std::abs(std::log(pk->p50 / 1e-3)) < 5 * 1.2533 * 0.3 / std::sqrt(401.0));
 }
 
-TEST_CASE("the design margin is the P95 of the sized volume; infeasible runs are rows", "[sweep]") {
+TEST_CASE("the design margin is the P95 of the sized volume, infeasible runs are rows", "[sweep]") {
   // Reversible first order A <=> B, K = 1: X = X_eq (1 - exp(-k (1 + 1/K) tau))
   // with X_eq = K / (1 + K) (Levenspiel, 3rd ed., ch. 3), so the volume to
   // reach X is V = -v0 ln(1 - X / X_eq) / (k (1 + 1/K)).

@@ -3,7 +3,9 @@
 #include <fmt/format.h>
 
 #include <algorithm>
+#include <array>
 #include <cmath>
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -27,24 +29,86 @@ bool all_reactors_have_catalyst(const TrainResult& r) {
   return any;
 }
 
-// Palette colour of the k-th stage path; black is left to the equilibrium
-// curve, so long trains never draw a bed in the curve's colour.
-std::string path_colour(std::size_t k) {
-  std::vector<std::string> colours;
-  for (std::size_t i = 0; i < svg::kOkabeIto.size(); ++i)
-    if (svg::series_colour(i) != "#000000") colours.emplace_back(svg::series_colour(i));
-  return colours[k % colours.size()];
+}  // namespace
+
+std::string stage_colour(std::size_t reactor_index) {
+  // Okabe-Ito without black (the equilibrium curve), yellow (faint on white)
+  // and vermillion (the T_max line): blue, orange, sky blue, bluish green,
+  // reddish purple.
+  static constexpr std::array<std::string_view, 5> kStageColours = {"#0072B2", "#E69F00", "#56B4E9",
+                                                                    "#009E73", "#CC79A7"};
+  return std::string(kStageColours[reactor_index % kStageColours.size()]);
+}
+
+std::string stage_colour(const TrainResult& r, const std::string& stage_id) {
+  std::size_t k = 0;
+  for (const auto& s : r.stages) {
+    if (s.kind == StageKind::Exchanger) continue;
+    if (s.id == stage_id) return stage_colour(k);
+    ++k;
+  }
+  return kExchangerColour;
+}
+
+namespace {
+
+// A sixth reactor onwards repeats a colour; a dash keeps it apart.
+std::string stage_dash(const TrainResult& r, const std::string& stage_id) {
+  std::size_t k = 0;
+  for (const auto& s : r.stages) {
+    if (s.kind == StageKind::Exchanger) continue;
+    if (s.id == stage_id) return k < 5 ? "" : "8 3";
+    ++k;
+  }
+  return "";
+}
+
+// The box the reactor paths after the first one span, when they crowd a
+// corner of the whole diagram (each side under 35 % of the whole): the
+// region worth a zoomed panel. Empty otherwise.
+struct Box {
+  double x0, x1, y0, y1;
+};
+std::optional<Box> crowded_region(const TrainResult& r) {
+  double ax0 = INFINITY, ax1 = -INFINITY, ay0 = INFINITY, ay1 = -INFINITY;  // all paths
+  double bx0 = INFINITY, bx1 = -INFINITY, by0 = INFINITY, by1 = -INFINITY;  // later beds
+  int reactors = 0;
+  for (const auto& s : r.stages) {
+    const bool later = s.kind != StageKind::Exchanger && reactors >= 1;
+    if (s.kind != StageKind::Exchanger) ++reactors;
+    for (const auto& p : s.profile) {
+      const double T = p.T - kZeroCelsius;
+      ax0 = std::min(ax0, T), ax1 = std::max(ax1, T), ay0 = std::min(ay0, p.X),
+      ay1 = std::max(ay1, p.X);
+      if (later)
+        bx0 = std::min(bx0, T), bx1 = std::max(bx1, T), by0 = std::min(by0, p.X),
+        by1 = std::max(by1, p.X);
+    }
+  }
+  if (reactors < 2 || !(bx1 >= bx0) || !(ax1 > ax0) || !(ay1 > ay0)) return std::nullopt;
+  if (bx1 - bx0 > 0.35 * (ax1 - ax0) || by1 - by0 > 0.35 * (ay1 - ay0)) return std::nullopt;
+  // Pad by a quarter of each side (at least 5 K and 0.02) so that the
+  // coolers' steps and the equilibrium curve nearby show too.
+  const double px = std::max(5.0, 0.25 * (bx1 - bx0)), py = std::max(0.02, 0.25 * (by1 - by0));
+  return Box{bx0 - px, bx1 + px, std::max(0.0, by0 - py), std::min(1.0, by1 + py)};
 }
 
 }  // namespace
 
-Figure tx_diagram(const Case& c, const TrainResult& r, const std::string& title) {
+namespace {
+
+svg::Chart tx_chart(const Case& c, const TrainResult& r, const std::string& title,
+                    const std::optional<Box>& zoom) {
   svg::ChartOptions o;
   o.width = 720;
   o.height = 460;
   o.title = title;
   o.x_label = "Temperature (°C)";
   o.y_label = fmt::format("Conversion of {} (–)", r.key);
+  if (zoom) {
+    o.x_domain = svg::Interval{zoom->x0, zoom->x1};
+    o.y_domain = svg::Interval{zoom->y0, zoom->y1};
+  }
   svg::Chart chart(o);
   std::vector<double> x, y;
   if (!r.equilibrium_curve.empty()) {
@@ -69,7 +133,7 @@ Figure tx_diagram(const Case& c, const TrainResult& r, const std::string& title)
         x, y,
         {.label = "maximum-rate locus T_opt(X)", .colour = "#777777", .dash = "2 3", .width = 1.5});
   }
-  std::size_t path_index = 0;
+  bool exchanger_in_legend = false;
   for (const auto& s : r.stages) {
     x.clear();
     y.clear();
@@ -77,30 +141,69 @@ Figure tx_diagram(const Case& c, const TrainResult& r, const std::string& title)
       x.push_back(p.T - kZeroCelsius);
       y.push_back(p.X);
     }
-    svg::LineOptions lo;
-    lo.label = fmt::format("{} ({})", s.id, stage_word(s.kind));
-    lo.colour = path_colour(path_index++);
+    if (x.empty()) continue;
+    const std::string colour = stage_colour(r, s.id);
     if (s.kind == StageKind::Exchanger) {
-      lo.dash = "6 3";
-      lo.width = 1.5;
+      // One neutral style for every exchanger, in the legend once.
+      chart.add_line(x, y,
+                     {.label = exchanger_in_legend ? "" : "exchangers (constant conversion)",
+                      .colour = colour,
+                      .dash = "6 3",
+                      .width = 1.5});
+      exchanger_in_legend = true;
+    } else if (s.kind == StageKind::Cstr) {
+      // A stirred tank has no path: its contents are its outlet state. A
+      // thin jump from its inlet, and the tank as a point.
+      const std::vector<double> jx{s.inlet.T - kZeroCelsius, x.back()},
+          jy{c.conversion_basis().conversion(s.inlet), y.back()};
+      chart.add_line(jx, jy, {.colour = colour, .dash = "2 3", .width = 1.0});
+      const std::vector<double> px{x.back()}, py{y.back()};
+      chart.add_line(px, py,
+                     {.label = fmt::format("{} ({})", s.id, stage_word(s.kind)),
+                      .colour = colour,
+                      .dash = "",
+                      .marker = svg::Marker::Circle,
+                      .marker_size = 5.0});
     } else {
-      lo.dash = "";  // solid: reactor paths are told apart by colour and label
-      lo.width = 2.5;
+      chart.add_line(x, y,
+                     {.label = fmt::format("{} ({})", s.id, stage_word(s.kind)),
+                      .colour = colour,
+                      .dash = stage_dash(r, s.id),
+                      .width = 2.5});
     }
-    // A stirred tank jumps from inlet to outlet: its path is the two ends.
-    chart.add_line(x, y, lo);
-    if (!x.empty()) chart.add_text(x.back(), y.back(), s.id);
+    if (s.kind != StageKind::Exchanger) chart.add_text(x.back(), y.back(), s.id);
   }
   if (c.limits.T_max)
     chart.add_vline(*c.limits.T_max - kZeroCelsius, {.label = "T_max", .colour = "#D55E00"});
   if (c.limits.T_in_min) chart.add_vline(*c.limits.T_in_min - kZeroCelsius, {.label = "T_in_min"});
   if (c.target_conversion) chart.add_hline(*c.target_conversion, {.label = "target"});
+  return chart;
+}
+
+std::string tx_caption(const TrainResult& r) {
   std::string caption =
-      "Each stage's operating path; exchangers are the constant-conversion steps between "
-      "beds.";
+      "Each reactor's operating path (a stirred tank is a point, reached by a jump from its "
+      "inlet); exchangers are the constant-conversion steps between them.";
   if (!r.equilibrium_curve.empty())
     caption += " An adiabatic bed can approach, never cross, the equilibrium curve.";
-  return {"tx-diagram", caption, std::move(chart)};
+  return caption;
+}
+
+}  // namespace
+
+Figure tx_diagram(const Case& c, const TrainResult& r, const std::string& title) {
+  return {"tx-diagram", tx_caption(r), tx_chart(c, r, title, std::nullopt)};
+}
+
+std::vector<Figure> tx_figures(const Case& c, const TrainResult& r, const std::string& title) {
+  std::vector<Figure> out;
+  out.push_back(tx_diagram(c, r, title));
+  if (const auto zoom = crowded_region(r))
+    out.push_back({"tx-diagram-zoom",
+                   "The same diagram, zoomed on the reactors after the first, which crowd one "
+                   "corner of the whole.",
+                   tx_chart(c, r, title + ", zoomed on the later reactors", zoom)});
+  return out;
 }
 
 std::vector<Figure> profile_figures(const TrainResult& r) {
@@ -118,7 +221,6 @@ std::vector<Figure> profile_figures(const TrainResult& r) {
   ox.y_label = fmt::format("Conversion of {} (–)", r.key);
   svg::Chart tchart(ot), xchart(ox);
   double start = 0;
-  std::size_t index = 0;
   for (const auto& s : r.stages) {
     if (s.kind == StageKind::Exchanger) continue;
     const double scale = catalyst ? *s.bulk_density : 1.0;
@@ -137,15 +239,14 @@ std::vector<Figure> profile_figures(const TrainResult& r) {
       }
     }
     const std::string label = fmt::format("{} ({})", s.id, stage_word(s.kind));
-    const auto colour = std::string(svg::series_colour(index));
-    tchart.add_line(pos, T, {.label = label, .colour = colour, .dash = ""});
-    xchart.add_line(pos, X, {.label = label, .colour = colour, .dash = ""});
+    const std::string colour = stage_colour(r, s.id), dash = stage_dash(r, s.id);
+    tchart.add_line(pos, T, {.label = label, .colour = colour, .dash = dash});
+    xchart.add_line(pos, X, {.label = label, .colour = colour, .dash = dash});
     if (start > 0) {
       tchart.add_vline(start, {.label = s.id});
       xchart.add_vline(start, {.label = s.id});
     }
     start = pos.empty() ? start : pos.back();
-    ++index;
   }
   std::vector<Figure> out;
   out.push_back({"profile-temperature",
@@ -185,7 +286,7 @@ Figure levenspiel_figure(const std::vector<LevenspielCurve>& curves, const std::
   svg::Chart chart(o);
   std::size_t index = 0;
   for (const auto& c : curves) {
-    const auto colour = std::string(svg::series_colour(index++));
+    const std::string colour = stage_colour(index++);  // one curve per reactor, in train order
     const std::string label =
         fmt::format("{}: {} {}", c.stage, c.rectangle ? "rectangle" : "area",
                     catalyst ? fmt::format("{:.4g} kg", c.area) : fmt::format("{:.4g} m³", c.area));
@@ -215,7 +316,7 @@ Figure levenspiel_figure(const std::vector<LevenspielCurve>& curves, const std::
 std::vector<Figure> run_figures(const Case& c, const TrainResult& r,
                                 const std::vector<LevenspielCurve>& curves) {
   std::vector<Figure> out;
-  out.push_back(tx_diagram(c, r));
+  for (auto& f : tx_figures(c, r)) out.push_back(std::move(f));
   for (auto& f : profile_figures(r)) out.push_back(std::move(f));
   if (!curves.empty()) out.push_back(levenspiel_figure(curves, r.key));
   return out;
