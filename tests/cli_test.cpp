@@ -176,6 +176,14 @@ TEST_CASE("sweep: a grid writes one row per point and a report", "[cli][sweep]")
   CHECK(csv.find("nan") == std::string::npos);
   CHECK(fs::exists(dir / "rep" / "report.html"));
   CHECK(fs::exists(dir / "rep" / "sweep-X.svg"));
+  // Axes name the quantity and its display unit, not the raw path.
+  const std::string peak = slurp(dir / "rep" / "sweep-T2-T_max.svg");
+  CHECK(peak.find("Peak temperature of T2 (°C)") != std::string::npos);
+  CHECK(slurp(dir / "rep" / "sweep-X.svg").find("Overall conversion of the key (–)") !=
+        std::string::npos);
+  const std::string page = slurp(dir / "rep" / "report.html");
+  CHECK(page.find("Newton") == std::string::npos);  // solver internals live in docs/sweeps.md
+  CHECK(page.find("cold") == std::string::npos);
   CHECK(r.out.find("licensed engineers") != std::string::npos);
   fs::remove_all(dir);
 }

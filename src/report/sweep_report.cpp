@@ -3,9 +3,11 @@
 #include <fmt/format.h>
 
 #include <algorithm>
+#include <cctype>
 #include <cmath>
 #include <limits>
 
+#include "rxtrain/base/units.hpp"
 #include "rxtrain/report/html_page.hpp"
 #include "rxtrain/report/svg.hpp"
 
@@ -20,6 +22,13 @@ constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
 // Relative spread below which an output counts as constant over a study.
 constexpr double kConstant = 1e-9;
 
+std::string lower_first(std::string s) {
+  if (!s.empty() && s.size() > 1 && std::isupper(static_cast<unsigned char>(s[0])) &&
+      !std::isupper(static_cast<unsigned char>(s[1])))
+    s[0] = static_cast<char>(std::tolower(static_cast<unsigned char>(s[0])));
+  return s;
+}
+
 // A file stem from a column name ("R1.T_max" -> "R1-T_max").
 std::string stem(const std::string& name) {
   std::string s = name;
@@ -28,9 +37,52 @@ std::string stem(const std::string& name) {
   return s;
 }
 
-// "name [unit]" for an axis label.
-std::string labelled(const std::string& name, const std::string& unit) {
-  return unit.empty() ? name : fmt::format("{} [{}]", name, unit);
+// What a column holds, in words, and how its SI value shows to a person:
+// value * scale + offset in `unit` ("Peak temperature of R1", °C).
+struct Quantity {
+  std::string words;
+  std::string unit;
+  double scale = 1, offset = 0;
+  double show(double si) const { return si * scale + offset; }
+  std::string label() const { return unit.empty() ? words : fmt::format("{} ({})", words, unit); }
+};
+
+Quantity quantity(const std::string& name, const std::string& si_unit) {
+  // Split "R1.T_max" into stage and field; "train.R1.catalyst" into the
+  // same; top-level outputs and feed inputs have no stage.
+  std::string stage, field = name;
+  if (name.rfind("train.", 0) == 0) {
+    const auto dot = name.find('.', 6);
+    if (dot != std::string::npos) stage = name.substr(6, dot - 6), field = name.substr(dot + 1);
+  } else if (name.rfind("feed.", 0) != 0 && name.rfind("reactions.", 0) != 0) {
+    if (const auto dot = name.find('.'); dot != std::string::npos)
+      stage = name.substr(0, dot), field = name.substr(dot + 1);
+  }
+  const std::string of = stage.empty() ? "" : " of " + stage;
+  const std::string in = stage.empty() ? "" : " in " + stage;
+  auto celsius = [](std::string w) { return Quantity{std::move(w), "°C", 1, -kZeroCelsius}; };
+  if (name == "X") return {"Overall conversion of the key", "–"};
+  if (name == "T_out") return celsius("Temperature at the train outlet");
+  if (name == "feed.T") return celsius("Feed temperature");
+  if (name == "feed.P") return {"Feed pressure", "bar", 1e-5};
+  if (field == "T_max" || field == "T_peak") return celsius("Peak temperature" + of);
+  if (field == "T_min") return celsius("Lowest temperature" + of);
+  if (field == "outlet.T" || field == "T_out") return celsius("Outlet temperature" + of);
+  if (field == "conversion") return {"Conversion at the outlet" + of, "–"};
+  if (field == "volume") return {"Volume" + of, "m³"};
+  if (field == "catalyst" || field == "catalyst_mass") return {"Catalyst" + in, "kg"};
+  if (field == "duty") return {"Duty" + of, "kW", 1e-3};
+  if (field == "ghsv" || field == "whsv" || field == "lhsv") {
+    std::string upper = field;
+    for (char& c : upper) c = static_cast<char>(std::toupper(static_cast<unsigned char>(c)));
+    return {upper + of, "h⁻¹"};
+  }
+  if (field == "over_limit") return {"Temperature past the limit" + in, "K"};
+  if (field == "equilibrium.X_ad_eq") return {"Adiabatic equilibrium conversion" + of, "–"};
+  if (field == "equilibrium.approach_X") return {"X_eq(T_out) − X" + of, "–"};
+  // Anything else: its name, and its SI unit (absolute temperatures in °C).
+  if (si_unit == "K" && field.find("approach") == std::string::npos) return celsius(name);
+  return {name, si_unit == "1" || si_unit == "-" ? "–" : si_unit};
 }
 
 Figure grid_figure(const Study& study, const ColumnUnits& units, const std::string& output,
@@ -38,10 +90,12 @@ Figure grid_figure(const Study& study, const ColumnUnits& units, const std::stri
   const Axis& x_axis = study.axes.front();
   std::size_t others = 1;
   for (std::size_t k = 1; k < study.axes.size(); ++k) others *= study.axes[k].n;
+  const Quantity qx = quantity(x_axis.name, units.inputs.empty() ? "" : units.inputs.front());
+  const Quantity qy = quantity(output, col < units.outputs.size() ? units.outputs[col] : "");
   svg::ChartOptions o;
-  o.title = output + " against " + x_axis.name;
-  o.x_label = labelled(x_axis.name, units.inputs.empty() ? "" : units.inputs.front());
-  o.y_label = labelled(output, col < units.outputs.size() ? units.outputs[col] : "");
+  o.title = qy.words + " against " + lower_first(qx.words);
+  o.x_label = qx.label();
+  o.y_label = qy.label();
   svg::Chart chart(o);
   const std::size_t lines = std::min(others, kMaxLines);
   for (std::size_t s = 0; s < lines; ++s) {
@@ -49,12 +103,15 @@ Figure grid_figure(const Study& study, const ColumnUnits& units, const std::stri
     std::string label;
     for (const auto& r : rows) {
       if (r.run % others != s) continue;
-      x.push_back(r.inputs[0]);
-      y.push_back(r.result.outputs[col] ? *r.result.outputs[col] : kNaN);
+      x.push_back(qx.show(r.inputs[0]));
+      y.push_back(r.result.outputs[col] ? qy.show(*r.result.outputs[col]) : kNaN);
       if (label.empty() && study.axes.size() > 1)
-        for (std::size_t k = 1; k < study.axes.size(); ++k)
-          label += fmt::format("{}{} = {:.4g}", label.empty() ? "" : ", ", study.axes[k].name,
-                               r.inputs[k]);
+        for (std::size_t k = 1; k < study.axes.size(); ++k) {
+          const Quantity qk = quantity(study.axes[k].name,
+                                       k < units.inputs.size() ? units.inputs[k] : std::string());
+          label += fmt::format("{}{} = {:.4g} {}", label.empty() ? "" : ", ", study.axes[k].name,
+                               qk.show(r.inputs[k]), qk.unit);
+        }
     }
     if (x.empty()) continue;  // this shard holds none of the line
     svg::LineOptions lo;
@@ -62,7 +119,8 @@ Figure grid_figure(const Study& study, const ColumnUnits& units, const std::stri
     lo.marker = svg::Marker::Circle;
     chart.add_line(x, y, lo);
   }
-  std::string caption = fmt::format("{} at each grid point; a gap is a failed run.", output);
+  std::string caption =
+      fmt::format("{} ({}) at each grid point; a gap is a failed run.", qy.words, output);
   if (others > kMaxLines)
     caption += fmt::format(" The first {} of {} combinations of the other inputs are drawn.",
                            kMaxLines, others);
@@ -83,13 +141,16 @@ std::optional<Figure> histogram(const std::string& output, const std::string& un
     if (*hi_it - *lo_it <= kConstant * std::max(std::abs(*lo_it), std::abs(*hi_it)))
       return std::nullopt;
   }
+  const Quantity q = quantity(output, unit);
+  for (double& x : v) x = q.show(x);
   svg::ChartOptions o;
-  o.title = "Distribution of " + output;
-  o.x_label = labelled(output, unit);
+  o.title = "Distribution of " + lower_first(q.words);
+  o.x_label = q.label();
   o.y_label = "runs";
   o.legend = svg::LegendPosition::None;
   svg::Chart chart(o);
-  std::string caption = fmt::format("{} over the {} runs that finished", output, v.size());
+  std::string caption =
+      fmt::format("{} ({}) over the {} runs that finished", q.words, output, v.size());
   if (!v.empty()) {
     const auto [lo_it, hi_it] = std::minmax_element(v.begin(), v.end());
     const double lo = *lo_it, hi = *hi_it;
@@ -108,14 +169,15 @@ std::optional<Figure> histogram(const std::string& output, const std::string& un
     chart.add_bars(categories, counts, {});
     if (p && hi > lo) {
       // Category i sits at x = i and spans [lo + i w, lo + (i + 1) w].
-      const auto at = [&](double value) { return (value - lo) / width - 0.5; };
+      const auto at = [&](double value) { return (q.show(value) - lo) / width - 0.5; };
       chart.add_vline(at(p->p5), {.label = "P5"});
       chart.add_vline(at(p->p50), {.label = "P50"});
       chart.add_vline(at(p->p95), {.label = "P95"});
     }
     if (p)
-      caption += fmt::format("; P5 {:.6g}, P50 {:.6g}, P95 {:.6g} (bin centres on the axis).",
-                             p->p5, p->p50, p->p95);
+      caption += fmt::format("; P5 {:.6g}, P50 {:.6g}, P95 {:.6g}{} (bin centres on the axis).",
+                             q.show(p->p5), q.show(p->p50), q.show(p->p95),
+                             q.unit == "–" ? "" : " " + q.unit);
   } else {
     caption += ".";
   }
@@ -151,45 +213,44 @@ std::string sweep_report_html(const std::string& title, const std::string& case_
   for (const auto& d : header.definition)
     h += fmt::format("<tr><td><code>{}</code></td></tr>\n", xml_escape(d));
   h += fmt::format("<tr><td>shard {}</td></tr>\n</table>\n", shard.to_string());
-  h += "<p>Values are SI. <code>chain</code>: runs are solved in fixed chains of this many "
-       "consecutive runs. With stirred tanks, each tank first tries the previous run's steady "
-       "states as Newton starts; with tubular stages only, the chain's runs are integrated "
-       "together as one system, each held to the tolerance on its own, so a value agrees with "
-       "a lone <code>rxtrain run</code> of that point within the tolerance, not to the last "
-       "digit (1: every run alone, cold). The output does not depend on <code>--jobs</code> "
-       "or <code>--shard</code>.</p>\n";
+  h += "<p>This page shows °C, bar and kW; the CSV and JSON hold SI values. "
+       "The results do not depend on <code>--jobs</code> or <code>--shard</code>; how the runs "
+       "are solved, and how far a value may differ from a lone <code>rxtrain run</code> of the "
+       "same point, is in docs/sweeps.md.</p>\n";
   std::string counts;
   for (const auto& [status, n] : summary.statuses)
     counts += fmt::format("{}{} {}", counts.empty() ? "" : ", ", n, status);
   h += fmt::format("<h2 id=\"runs\">Runs</h2>\n<p>{} runs: {}.</p>\n", summary.runs,
                    xml_escape(counts));
   if (monte_carlo) {
-    h += "<h2 id=\"percentiles\">Percentiles</h2>\n<table>\n<tr><th>output</th><th>unit</th>"
-         "<th>n</th><th>P5</th><th>P50</th><th>P95</th></tr>\n";
+    h += "<h2 id=\"percentiles\">Percentiles</h2>\n<table>\n<tr><th>output</th><th>what it is</th>"
+         "<th>unit</th><th>n</th><th>P5</th><th>P50</th><th>P95</th></tr>\n";
     for (const auto& p : summary.percentiles) {
+      const Quantity q = quantity(p.name, p.unit);
       if (!p.p) {
         h += fmt::format(
-            "<tr><td>{}</td><td>{}</td><td class=\"num\">0</td><td>-</td><td>-</td><td>-</td>"
-            "</tr>\n",
-            xml_escape(p.name), xml_escape(p.unit));
+            "<tr><td>{}</td><td>{}</td><td>{}</td><td class=\"num\">0</td><td>-</td><td>-</td>"
+            "<td>-</td></tr>\n",
+            xml_escape(p.name), xml_escape(q.words), xml_escape(q.unit));
         continue;
       }
       h += fmt::format(
-          "<tr><td>{}</td><td>{}</td><td class=\"num\">{}</td><td class=\"num\">{:.6g}</td><td "
-          "class=\"num\">{:.6g}</td><td class=\"num\">{:.6g}</td></tr>\n",
-          xml_escape(p.name), xml_escape(p.unit), p.p->n, p.p->p5, p.p->p50, p.p->p95);
+          "<tr><td>{}</td><td>{}</td><td>{}</td><td class=\"num\">{}</td><td "
+          "class=\"num\">{:.6g}</td><td class=\"num\">{:.6g}</td><td "
+          "class=\"num\">{:.6g}</td></tr>\n",
+          xml_escape(p.name), xml_escape(q.words), xml_escape(q.unit), p.p->n, q.show(p.p->p5),
+          q.show(p.p->p50), q.show(p.p->p95));
     }
-    h += "</table>\n<p>Percentiles: Hyndman &amp; Fan (1996) definition 7, over the runs that "
-         "finished (status ok or over_limit).</p>\n";
+    h += "</table>\n<p>P5, P50, P95: the 5th, 50th and 95th percentiles over the runs that "
+         "finished (status ok or over_limit); their definition is in docs/sweeps.md.</p>\n";
     if (!summary.margins.empty()) {
       h += "<h2 id=\"margin\">Design margin</h2>\n<p>The amount each sized stage needs to meet its "
            "target in "
            "95 % of the runs (a run whose target is out of reach counts as unbounded).</p>\n<ul>\n";
       for (const auto& m : summary.margins) {
-        const std::string u = column_unit(summary, m.column);
+        const Quantity q = quantity(m.column, column_unit(summary, m.column));
         const auto v = [&](const std::optional<double>& x) {
-          return x ? fmt::format("{:.6g}{}{}", *x, u.empty() ? "" : " ", u)
-                   : std::string("unbounded");
+          return x ? fmt::format("{:.6g} {}", q.show(*x), q.unit) : std::string("unbounded");
         };
         h += fmt::format("<li>{}: P50 {}, P95 {} ({} runs with a value, {} infeasible)</li>\n",
                          xml_escape(m.column), v(m.p50), v(m.p95), m.ok, m.infeasible);
