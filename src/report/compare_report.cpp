@@ -15,17 +15,6 @@ namespace rxtrain {
 
 namespace {
 
-std::string text(const std::optional<double>& v, const char* f) {
-  return v && std::isfinite(*v) ? fmt::format(fmt::runtime(f), *v) : std::string("-");
-}
-
-// Four decimals; six within 1e-4 of complete conversion, where four would
-// print 1.0000 for what is not.
-std::string conversion_text(const std::optional<double>& X) {
-  if (!X || !std::isfinite(*X)) return "-";
-  return fixed_text(*X, 1 - *X < 1e-4 ? 6 : 4);
-}
-
 std::string ranking_text(const CompareResult& r) {
   return r.sized ? fmt::format("smallest total {}", r.catalyst_objective ? "catalyst" : "volume")
                  : std::string("highest final conversion");
@@ -203,15 +192,18 @@ std::string format_compare_table(const CompareResult& r) {
   out +=
       "Each reactor stage moves with its whole spec (size or target, type, heat, bulk "
       "density); exchangers keep their places.\n";
-  out += "Peak temperatures: " + ceiling_text(r.thermo_ceiling) + "; ! marks a peak above it.\n\n";
+  // The heat-capacity data's ceiling matters only where a peak passes it.
+  if (!beyond_thermo_summary(r).empty())
+    out += "Peak temperatures: " + ceiling_text(r.thermo_ceiling) + "; ! marks a peak above it.\n";
+  out += "\n";
   std::vector<std::vector<std::string>> rows{
       {"", "rank", "order", "heat", "moved", "V m3", "catalyst kg", "X out", "T peak °C"}};
   int rank = 0;
   for (const auto& l : r.layouts)
     rows.push_back({l.case_layout ? "*" : "", l.feasible ? std::to_string(++rank) : "-",
                     layout_order_text(l), layout_heat_name(l.heat),
-                    layout_moves_text(l, r.case_order), text(l.total_volume, "{:.4g}"),
-                    text(l.total_catalyst, "{:.5g}"), conversion_text(l.conversion), peak_text(l)});
+                    layout_moves_text(l, r.case_order), volume_text(l.total_volume),
+                    volume_text(l.total_catalyst), conversion_text(l.conversion), peak_text(l)});
   const std::string table = render_columns(rows, 5);
   // The notes go after the aligned columns, one layout per line.
   std::size_t begin = 0;
@@ -264,9 +256,12 @@ Figure compare_figure(const CompareResult& r) {
   chart.add_bars(categories, values, {.label = "", .colour = std::string(svg::series_colour(0))});
   return {"compare-layouts",
           fmt::format("Layouts best first ({}); * marks the case as written. Infeasible layouts "
-                      "have no bar; the table gives their reason. \"! beyond cp data\" marks a "
-                      "layout whose peak is above the heat-capacity data.",
-                      ranking_text(r)),
+                      "have no bar; the table gives their reason.{}",
+                      ranking_text(r),
+                      beyond_thermo_summary(r).empty()
+                          ? ""
+                          : " \"! beyond cp data\" marks a layout whose peak is above the "
+                            "heat-capacity data."),
           std::move(chart)};
 }
 
@@ -274,6 +269,7 @@ std::string compare_report_html(const Case& c, const CompareResult& r,
                                 const std::vector<Figure>& figures, const ReportProvenance& p) {
   using html::cell;
   std::string h = html::page_begin(c.title + " — layouts compared", p);
+  h += html::feed_section(c);
   h += "<h2 id=\"summary\">Layouts</h2>\n";
   h += fmt::format(
       "<p>Every order of the reactor stages, each as written, all adiabatic and all isothermal "
@@ -282,10 +278,11 @@ std::string compare_report_html(const Case& c, const CompareResult& r,
       "(identical stages exchanged) are one row. Best first ({}); * marks the case as "
       "written.</p>\n",
       ranking_text(r));
-  h += "<p>Peak temperatures: " + svg::xml_escape(ceiling_text(r.thermo_ceiling)) +
-       "; ! marks a peak above it.</p>\n";
-  if (const std::string s = beyond_thermo_summary(r); !s.empty())
+  if (const std::string s = beyond_thermo_summary(r); !s.empty()) {
+    h += "<p>Peak temperatures: " + svg::xml_escape(ceiling_text(r.thermo_ceiling)) +
+         "; ! marks a peak above it.</p>\n";
     h += "<p class=\"caution\"><strong>! " + svg::xml_escape(s) + ".</strong></p>\n";
+  }
   h += "<table class=\"stages\">\n";
   h += html::header_row({"", "rank", "order", "heat", "moved", "V total (m³)", "catalyst (kg)",
                          "conversion", "T peak (°C / K)", "notes"});
@@ -301,7 +298,7 @@ std::string compare_report_html(const Case& c, const CompareResult& r,
          // An order reads as one unit; wrapped at each ">" it reads as a list.
          "<td style=\"white-space: nowrap\">" + svg::xml_escape(layout_order_text(l)) + "</td>" +
          cell(layout_heat_name(l.heat), false) + cell(layout_moves_text(l, r.case_order), false) +
-         cell(text(l.total_volume, "{:.4g}"), true) + cell(text(l.total_catalyst, "{:.5g}"), true) +
+         cell(volume_text(l.total_volume), true) + cell(volume_text(l.total_catalyst), true) +
          cell(conversion_text(l.conversion), true) + peak +
          cell(join(notes_of(l, r), "; "), false) + "</tr>\n";
   }

@@ -527,6 +527,7 @@ ChartLayout Chart::layout() const {
   const double label_block = o.x_label.empty() ? 0.0 : 8.0 + fs + 1.0;  // x-axis label line
   const double max_bottom = 0.45 * o.height;
   std::vector<std::string> categories = categories_;
+  double label_left = 0.0;  // px the slanted category names need left of the plot
   for (int pass = 0; pass < 2; ++pass) {
     // Bottom: ticks, one line of tick labels (or slanted ones), the axis label.
     double tick_block = kTickLength + kTickGap + fs;
@@ -538,8 +539,12 @@ ChartLayout Chart::layout() const {
       // the first pass is close enough).
       const double room_down =
           (max_bottom - kTickLength - kTickGap - fs * c - label_block - 6.0) / s;
-      const double first_tick =
-          L.plot_left + 0.5 * (L.plot_right - L.plot_left) / static_cast<double>(categories.size());
+      // Room on the left is made first: the plot moves right (up to 35 % of
+      // the width) so that the first slanted name fits whole, and only a
+      // name longer than that is shortened.
+      const double slot = (L.plot_right - L.plot_left) / static_cast<double>(categories.size());
+      label_left = std::min(4.0 + widest(categories_) * c - 0.5 * slot, 0.35 * o.width);
+      const double first_tick = std::max(L.plot_left, label_left) + 0.5 * slot;
       const double room_left = (first_tick - 4.0) / c;
       const std::size_t max_chars = std::max<std::size_t>(
           4, static_cast<std::size_t>(std::min(room_down, room_left) / (kCharWidth * fs)));
@@ -570,8 +575,10 @@ ChartLayout Chart::layout() const {
     const double y_label_block = o.y_label.empty() ? 0.0 : 8.0 + fs + 1.0;
     const double needed_left =
         kTickLength + kTickGap + widest(L.y_tick_labels) + y_label_block + 4.0;
-    const double left = std::min(std::max(o.margins.left, needed_left),
-                                 o.margins.left + 0.5 * (o.width - o.margins.left - right));
+    const double left =
+        std::max(std::min(std::max(o.margins.left, needed_left),
+                          o.margins.left + 0.5 * (o.width - o.margins.left - right)),
+                 label_left);
     L.plot_left = left;
     L.plot_right = o.width - right;
     const double plot_w = L.plot_right - L.plot_left;

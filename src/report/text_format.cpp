@@ -62,6 +62,10 @@ std::string conversion_text(double X) {
   return fixed_text(X, std::isfinite(X) && std::abs(1 - X) < 1e-4 ? 6 : 4);
 }
 
+std::string conversion_text(const std::optional<double>& X) {
+  return X ? conversion_text(*X) : "-";
+}
+
 std::string volume_text(const std::optional<double>& v) { return v ? plain_sig_text(*v, 5) : "-"; }
 
 std::string duty_text(const StageResult& r) {

@@ -42,6 +42,7 @@ std::string closure_text(double relative);
 // within 1e-4 of 1, where four would round 0.99995 up to a complete
 // conversion that did not happen.
 std::string conversion_text(double X);
+std::string conversion_text(const std::optional<double>& X);  // "-" when empty
 // Masses and volumes: five significant digits, no trailing zeros
 // (10000, 18.182, 0.85714); "-" when empty or not finite.
 std::string volume_text(const std::optional<double>& v);
