@@ -9,6 +9,7 @@
 #include "rxtrain/report/atomic_file.hpp"
 #include "rxtrain/report/csv.hpp"
 #include "rxtrain/report/json.hpp"
+#include "rxtrain/report/quantity.hpp"
 #include "rxtrain/report/table.hpp"
 
 using namespace rxtrain;
@@ -192,4 +193,18 @@ TEST_CASE("every number in the run's JSON has its unit in the units object", "[r
   INFO(list);
   CHECK(missing.empty());
   CHECK(units["ghsv"] == "1/h");  // the named exception to SI
+}
+
+TEST_CASE("sweep columns read in words and display units", "[report]") {
+  const Quantity peak = column_quantity("R1.T_max", "K");
+  CHECK(peak.label() == "Peak temperature of R1 (°C)");
+  CHECK(peak.show(700.0) == Approx(426.85));  // 700 K - 273.15
+  CHECK(peak.text(700.0) == "426.85");
+  CHECK(column_quantity("feed.P", "Pa").text(2.5e6) == "25.00");
+  CHECK(column_quantity("train.R1.catalyst", "kg").label() == "Catalyst in R1 (kg)");
+  CHECK(column_quantity("R2.duty", "W").text(-1.5e6) == "-1500");  // kW
+  CHECK(column_quantity("R1.over_limit", "K").text(4.3597) == "4.36");  // a difference: no offset
+  CHECK(column_quantity("X", "-").text(0.999991) == "0.999991");
+  // A column this does not know keeps its name and SI unit.
+  CHECK(column_quantity("R1.something", "m3").label() == "R1.something (m3)");
 }

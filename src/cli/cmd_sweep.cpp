@@ -22,6 +22,7 @@
 #include "rxtrain/report/html_page.hpp"
 #include "rxtrain/report/sha256.hpp"
 #include "rxtrain/report/sweep_report.hpp"
+#include "rxtrain/report/sweep_text.hpp"
 #include "rxtrain/sweep/case_path.hpp"
 #include "rxtrain/sweep/outputs.hpp"
 #include "rxtrain/sweep/study.hpp"
@@ -99,44 +100,6 @@ class Progress {
   bool printed_ = false;
 };
 
-// A grid's rows as a small table (inputs and outputs, 6 significant digits).
-std::string grid_table(const std::vector<std::string>& inputs,
-                       const std::vector<std::string>& outputs, const ColumnUnits& units,
-                       const std::vector<RunRow>& rows) {
-  std::vector<std::string> head{"run"};
-  head.insert(head.end(), inputs.begin(), inputs.end());
-  head.insert(head.end(), outputs.begin(), outputs.end());
-  head.push_back("status");
-  // A second header line with each column's SI unit.
-  std::vector<std::string> unit_line{""};
-  for (const auto& u : units.inputs) unit_line.push_back("[" + u + "]");
-  for (const auto& u : units.outputs) unit_line.push_back("[" + u + "]");
-  unit_line.push_back("");
-  std::vector<std::vector<std::string>> cells;
-  for (const auto& r : rows) {
-    std::vector<std::string> line{fmt::format("{}", r.run)};
-    for (double v : r.inputs) line.push_back(fmt::format("{:.6g}", v));
-    for (const auto& v : r.result.outputs) line.push_back(v ? fmt::format("{:.6g}", *v) : "-");
-    line.push_back(run_status_name(r.result.status));
-    cells.push_back(std::move(line));
-  }
-  std::vector<std::size_t> w(head.size());
-  for (std::size_t i = 0; i < head.size(); ++i) {
-    w[i] = std::max(head[i].size(), unit_line[i].size());
-    for (const auto& l : cells) w[i] = std::max(w[i], l[i].size());
-  }
-  const auto line = [&](const std::vector<std::string>& l) {
-    std::string t;
-    for (std::size_t i = 0; i < l.size(); ++i)
-      t += fmt::format("{}{:>{}}", i ? "  " : "", l[i], w[i]);
-    while (!t.empty() && t.back() == ' ') t.pop_back();
-    return t + "\n";
-  };
-  std::string out = line(head) + line(unit_line);
-  for (const auto& l : cells) out += line(l);
-  return out;
-}
-
 int run_sweep_command(const SweepCommandOptions& o) {
   const UnitParser units;
   const Case c = load_case(o.case_file, units);
@@ -200,34 +163,7 @@ int run_sweep_command(const SweepCommandOptions& o) {
 
   std::string text = fmt::format("{}\nStudy of {} ({}), shard {}\n", c.title, o.case_file,
                                  study.monte_carlo() ? "Monte Carlo" : "grid", shard.to_string());
-  constexpr std::size_t kMaxTableRows = 100;
-  if (!study.monte_carlo()) {
-    text += rows.size() <= kMaxTableRows
-                ? grid_table(inputs, outputs.names(), col_units, rows)
-                : fmt::format("({} rows; write them with --csv PATH)\n", rows.size());
-  }
-  text += summary_text(summary, study.monte_carlo());
-  const auto noted = std::count_if(rows.begin(), rows.end(), [](const RunRow& r) {
-    return r.result.status == RunStatus::Ok && !r.result.message.empty();
-  });
-  for (const auto& r : rows)
-    if (r.result.status == RunStatus::Ok && !r.result.message.empty()) {
-      text += fmt::format(
-          "{} ok {} a note (the message column of --csv or --json); the first, run {}: {}\n", noted,
-          noted == 1 ? "run carries" : "runs carry", r.run, r.result.message);
-      break;
-    }
-  for (const auto& r : rows)
-    if (r.result.status == RunStatus::OverLimit) {
-      text += fmt::format("first run past a temperature limit: {}: {}\n", r.run, r.result.message);
-      break;
-    }
-  for (const auto& r : rows)
-    if (!has_outputs(r.result.status)) {
-      text += fmt::format("first failed run: {} ({}): {}\n", r.run,
-                          run_status_name(r.result.status), r.result.message);
-      break;
-    }
+  text += sweep_text(inputs, outputs.names(), col_units, rows, summary, study.monte_carlo());
   text += fmt::format("\nCAUTION: {}\n", kCaution);
   std::fputs(text.c_str(), stdout);
   const bool all_failed =

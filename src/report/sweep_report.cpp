@@ -9,6 +9,7 @@
 
 #include "rxtrain/base/units.hpp"
 #include "rxtrain/report/html_page.hpp"
+#include "rxtrain/report/quantity.hpp"
 #include "rxtrain/report/svg.hpp"
 
 namespace rxtrain::sweep {
@@ -37,61 +38,14 @@ std::string stem(const std::string& name) {
   return s;
 }
 
-// What a column holds, in words, and how its SI value shows to a person:
-// value * scale + offset in `unit` ("Peak temperature of R1", °C).
-struct Quantity {
-  std::string words;
-  std::string unit;
-  double scale = 1, offset = 0;
-  double show(double si) const { return si * scale + offset; }
-  std::string label() const { return unit.empty() ? words : fmt::format("{} ({})", words, unit); }
-};
-
-Quantity quantity(const std::string& name, const std::string& si_unit) {
-  // Split "R1.T_max" into stage and field; "train.R1.catalyst" into the
-  // same; top-level outputs and feed inputs have no stage.
-  std::string stage, field = name;
-  if (name.rfind("train.", 0) == 0) {
-    const auto dot = name.find('.', 6);
-    if (dot != std::string::npos) stage = name.substr(6, dot - 6), field = name.substr(dot + 1);
-  } else if (name.rfind("feed.", 0) != 0 && name.rfind("reactions.", 0) != 0) {
-    if (const auto dot = name.find('.'); dot != std::string::npos)
-      stage = name.substr(0, dot), field = name.substr(dot + 1);
-  }
-  const std::string of = stage.empty() ? "" : " of " + stage;
-  const std::string in = stage.empty() ? "" : " in " + stage;
-  auto celsius = [](std::string w) { return Quantity{std::move(w), "°C", 1, -kZeroCelsius}; };
-  if (name == "X") return {"Overall conversion of the key", "–"};
-  if (name == "T_out") return celsius("Temperature at the train outlet");
-  if (name == "feed.T") return celsius("Feed temperature");
-  if (name == "feed.P") return {"Feed pressure", "bar", 1e-5};
-  if (field == "T_max" || field == "T_peak") return celsius("Peak temperature" + of);
-  if (field == "T_min") return celsius("Lowest temperature" + of);
-  if (field == "outlet.T" || field == "T_out") return celsius("Outlet temperature" + of);
-  if (field == "conversion") return {"Conversion at the outlet" + of, "–"};
-  if (field == "volume") return {"Volume" + of, "m³"};
-  if (field == "catalyst" || field == "catalyst_mass") return {"Catalyst" + in, "kg"};
-  if (field == "duty") return {"Duty" + of, "kW", 1e-3};
-  if (field == "ghsv" || field == "whsv" || field == "lhsv") {
-    std::string upper = field;
-    for (char& c : upper) c = static_cast<char>(std::toupper(static_cast<unsigned char>(c)));
-    return {upper + of, "h⁻¹"};
-  }
-  if (field == "over_limit") return {"Temperature past the limit" + in, "K"};
-  if (field == "equilibrium.X_ad_eq") return {"Adiabatic equilibrium conversion" + of, "–"};
-  if (field == "equilibrium.approach_X") return {"X_eq(T_out) − X" + of, "–"};
-  // Anything else: its name, and its SI unit (absolute temperatures in °C).
-  if (si_unit == "K" && field.find("approach") == std::string::npos) return celsius(name);
-  return {name, si_unit == "1" || si_unit == "-" ? "–" : si_unit};
-}
-
 Figure grid_figure(const Study& study, const ColumnUnits& units, const std::string& output,
                    std::size_t col, const std::vector<RunRow>& rows) {
   const Axis& x_axis = study.axes.front();
   std::size_t others = 1;
   for (std::size_t k = 1; k < study.axes.size(); ++k) others *= study.axes[k].n;
-  const Quantity qx = quantity(x_axis.name, units.inputs.empty() ? "" : units.inputs.front());
-  const Quantity qy = quantity(output, col < units.outputs.size() ? units.outputs[col] : "");
+  const Quantity qx =
+      column_quantity(x_axis.name, units.inputs.empty() ? "" : units.inputs.front());
+  const Quantity qy = column_quantity(output, col < units.outputs.size() ? units.outputs[col] : "");
   svg::ChartOptions o;
   o.title = qy.words + " against " + lower_first(qx.words);
   o.x_label = qx.label();
@@ -107,8 +61,8 @@ Figure grid_figure(const Study& study, const ColumnUnits& units, const std::stri
       y.push_back(r.result.outputs[col] ? qy.show(*r.result.outputs[col]) : kNaN);
       if (label.empty() && study.axes.size() > 1)
         for (std::size_t k = 1; k < study.axes.size(); ++k) {
-          const Quantity qk = quantity(study.axes[k].name,
-                                       k < units.inputs.size() ? units.inputs[k] : std::string());
+          const Quantity qk = column_quantity(
+              study.axes[k].name, k < units.inputs.size() ? units.inputs[k] : std::string());
           label += fmt::format("{}{} = {:.4g} {}", label.empty() ? "" : ", ", study.axes[k].name,
                                qk.show(r.inputs[k]), qk.unit);
         }
@@ -141,7 +95,7 @@ std::optional<Figure> histogram(const std::string& output, const std::string& un
     if (*hi_it - *lo_it <= kConstant * std::max(std::abs(*lo_it), std::abs(*hi_it)))
       return std::nullopt;
   }
-  const Quantity q = quantity(output, unit);
+  const Quantity q = column_quantity(output, unit);
   for (double& x : v) x = q.show(x);
   svg::ChartOptions o;
   o.title = "Distribution of " + lower_first(q.words);
@@ -175,9 +129,8 @@ std::optional<Figure> histogram(const std::string& output, const std::string& un
       chart.add_vline(at(p->p95), {.label = "P95"});
     }
     if (p)
-      caption += fmt::format("; P5 {:.6g}, P50 {:.6g}, P95 {:.6g}{} (bin centres on the axis).",
-                             q.show(p->p5), q.show(p->p50), q.show(p->p95),
-                             q.unit == "–" ? "" : " " + q.unit);
+      caption += fmt::format("; P5 {}, P50 {}, P95 {}{} (bin centres on the axis).", q.text(p->p5),
+                             q.text(p->p50), q.text(p->p95), q.unit == "–" ? "" : " " + q.unit);
   } else {
     caption += ".";
   }
@@ -226,7 +179,7 @@ std::string sweep_report_html(const std::string& title, const std::string& case_
     h += "<h2 id=\"percentiles\">Percentiles</h2>\n<table>\n<tr><th>output</th><th>what it is</th>"
          "<th>unit</th><th>n</th><th>P5</th><th>P50</th><th>P95</th></tr>\n";
     for (const auto& p : summary.percentiles) {
-      const Quantity q = quantity(p.name, p.unit);
+      const Quantity q = column_quantity(p.name, p.unit);
       if (!p.p) {
         h += fmt::format(
             "<tr><td>{}</td><td>{}</td><td>{}</td><td class=\"num\">0</td><td>-</td><td>-</td>"
@@ -236,10 +189,9 @@ std::string sweep_report_html(const std::string& title, const std::string& case_
       }
       h += fmt::format(
           "<tr><td>{}</td><td>{}</td><td>{}</td><td class=\"num\">{}</td><td "
-          "class=\"num\">{:.6g}</td><td class=\"num\">{:.6g}</td><td "
-          "class=\"num\">{:.6g}</td></tr>\n",
-          xml_escape(p.name), xml_escape(q.words), xml_escape(q.unit), p.p->n, q.show(p.p->p5),
-          q.show(p.p->p50), q.show(p.p->p95));
+          "class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td></tr>\n",
+          xml_escape(p.name), xml_escape(q.words), xml_escape(q.unit), p.p->n, q.text(p.p->p5),
+          q.text(p.p->p50), q.text(p.p->p95));
     }
     h += "</table>\n<p>P5, P50, P95: the 5th, 50th and 95th percentiles over the runs that "
          "finished (status ok or over_limit); their definition is in docs/sweeps.md.</p>\n";
@@ -248,9 +200,9 @@ std::string sweep_report_html(const std::string& title, const std::string& case_
            "target in "
            "95 % of the runs (a run whose target is out of reach counts as unbounded).</p>\n<ul>\n";
       for (const auto& m : summary.margins) {
-        const Quantity q = quantity(m.column, column_unit(summary, m.column));
+        const Quantity q = column_quantity(m.column, column_unit(summary, m.column));
         const auto v = [&](const std::optional<double>& x) {
-          return x ? fmt::format("{:.6g} {}", q.show(*x), q.unit) : std::string("unbounded");
+          return x ? q.text(*x) + " " + q.unit : std::string("unbounded");
         };
         h += fmt::format("<li>{}: P50 {}, P95 {} ({} runs with a value, {} infeasible)</li>\n",
                          xml_escape(m.column), v(m.p50), v(m.p95), m.ok, m.infeasible);

@@ -16,10 +16,6 @@ namespace {
 
 using nlohmann::json;
 
-std::string cell(const std::optional<double>& v) {
-  return v ? fmt::format("{:.6g}", *v) : std::string("unbounded");
-}
-
 }  // namespace
 
 StudySummary summarize_study(const std::vector<std::string>& output_names,
@@ -107,44 +103,6 @@ std::string column_unit(const StudySummary& summary, const std::string& column) 
   for (const auto& p : summary.percentiles)
     if (p.name == column && p.unit != "-") return p.unit;
   return "";
-}
-
-std::string summary_text(const StudySummary& s, bool monte_carlo) {
-  std::string out = fmt::format("{} runs:", s.runs);
-  for (const auto& [status, n] : s.statuses) out += fmt::format(" {} {},", n, status);
-  out.back() = '\n';
-  if (!monte_carlo) return out;
-  std::size_t w = 6, wu = 4;
-  for (const auto& p : s.percentiles) {
-    w = std::max(w, p.name.size());
-    wu = std::max(wu, p.unit.size());
-  }
-  out += fmt::format("\n{:<{}}  {:<{}}  {:>6}  {:>14}  {:>14}  {:>14}\n", "output", w, "unit", wu,
-                     "n", "P5", "P50", "P95");
-  for (const auto& p : s.percentiles) {
-    if (!p.p) {
-      out += fmt::format("{:<{}}  {:<{}}  {:>6}  {:>14}  {:>14}  {:>14}\n", p.name, w, p.unit, wu,
-                         0, "-", "-", "-");
-      continue;
-    }
-    out += fmt::format("{:<{}}  {:<{}}  {:>6}  {:>14.6g}  {:>14.6g}  {:>14.6g}\n", p.name, w,
-                       p.unit, wu, p.p->n, p.p->p5, p.p->p50, p.p->p95);
-  }
-  if (!s.margins.empty()) {
-    out +=
-        "\nDesign margin (amount that meets the target in 95 % of the runs; an infeasible run "
-        "counts as unbounded):\n";
-    for (const auto& m : s.margins) {
-      const std::string u = column_unit(s, m.column);
-      const std::string unit = u.empty() ? u : " " + u;
-      const auto with_unit = [&](const std::optional<double>& v) {
-        return v ? cell(v) + unit : cell(v);
-      };
-      out += fmt::format("  {}: P50 {}, P95 {} ({} runs with a value, {} infeasible)\n", m.column,
-                         with_unit(m.p50), with_unit(m.p95), m.ok, m.infeasible);
-    }
-  }
-  return out;
 }
 
 }  // namespace rxtrain::sweep

@@ -58,8 +58,4 @@ std::string sweep_json_text(const StudyHeader& header, const Shard& shard,
 // dimensionless).
 std::string column_unit(const StudySummary& summary, const std::string& column);
 
-// The terminal summary: counts, then for Monte Carlo the percentiles and
-// the design margin.
-std::string summary_text(const StudySummary& summary, bool monte_carlo);
-
 }  // namespace rxtrain::sweep
