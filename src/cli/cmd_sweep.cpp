@@ -100,6 +100,15 @@ class Progress {
   bool printed_ = false;
 };
 
+// The study's options as the user wrote them, units and all.
+std::vector<std::string> as_given(const SweepCommandOptions& o) {
+  std::vector<std::string> out;
+  for (const auto& v : o.vary) out.push_back("--vary " + v);
+  for (const auto& v : o.sample) out.push_back("--sample " + v);
+  if (!o.sample.empty()) out.push_back(fmt::format("--runs {} --seed {}", o.runs, o.seed));
+  return out;
+}
+
 int run_sweep_command(const SweepCommandOptions& o) {
   const UnitParser units;
   const Case c = load_case(o.case_file, units);
@@ -155,7 +164,7 @@ int run_sweep_command(const SweepCommandOptions& o) {
   if (!o.report_dir.empty()) {
     const auto figures = sweep_figures(study, outputs.names(), col_units, rows);
     add_report_files(out, o.report_dir,
-                     sweep_report_html(c.title, o.case_file, header, shard, summary,
+                     sweep_report_html(c.title, o.case_file, as_given(o), header, shard, summary,
                                        study.monte_carlo(), figures),
                      figures);
   }

@@ -156,13 +156,19 @@ std::vector<Figure> sweep_figures(const Study& study, const std::vector<std::str
 }
 
 std::string sweep_report_html(const std::string& title, const std::string& case_file,
-                              const StudyHeader& header, const Shard& shard,
-                              const StudySummary& summary, bool monte_carlo,
+                              const std::vector<std::string>& as_given, const StudyHeader& header,
+                              const Shard& shard, const StudySummary& summary, bool monte_carlo,
                               const std::vector<Figure>& figures) {
   const ReportProvenance provenance{case_file, header.case_sha256, utc_date_today(),
                                     header.version};
   std::string h = html::page_begin("Study: " + title, provenance);
-  h += "<h2 id=\"study\">Study</h2>\n<table class=\"origin\">\n";
+  h += "<h2 id=\"study\">Study</h2>\n";
+  if (!as_given.empty()) {
+    h += "<p>As given:</p>\n<ul>\n";
+    for (const auto& a : as_given) h += "<li><code>" + xml_escape(a) + "</code></li>\n";
+    h += "</ul>\n<p>The same study in SI, as the CSV header records it:</p>\n";
+  }
+  h += "<table class=\"origin\">\n";
   for (const auto& d : header.definition)
     h += fmt::format("<tr><td><code>{}</code></td></tr>\n", xml_escape(d));
   h += fmt::format("<tr><td>shard {}</td></tr>\n</table>\n", shard.to_string());

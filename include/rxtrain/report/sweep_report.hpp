@@ -24,9 +24,11 @@ struct ColumnUnits {
 std::vector<Figure> sweep_figures(const Study& study, const std::vector<std::string>& outputs,
                                   const ColumnUnits& units, const std::vector<RunRow>& rows);
 
+// `as_given`: the study's options as the user wrote them (--vary ...,
+// --sample ...), shown above the definition in SI that the CSV header holds.
 std::string sweep_report_html(const std::string& title, const std::string& case_file,
-                              const StudyHeader& header, const Shard& shard,
-                              const StudySummary& summary, bool monte_carlo,
+                              const std::vector<std::string>& as_given, const StudyHeader& header,
+                              const Shard& shard, const StudySummary& summary, bool monte_carlo,
                               const std::vector<Figure>& figures);
 
 }  // namespace rxtrain::sweep
