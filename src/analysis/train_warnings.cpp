@@ -6,6 +6,7 @@
 #include <cmath>
 #include <limits>
 
+#include "rxtrain/analysis/result_guard.hpp"
 #include "rxtrain/base/error.hpp"
 #include "rxtrain/base/units.hpp"
 #include "rxtrain/models/energy_balance.hpp"
@@ -166,6 +167,13 @@ std::vector<std::string> design_warnings(const Case& c, const TrainResult& resul
     }
   }
   return out;
+}
+
+TrainResult run_checked(const Case& c, const TrainOptions& options) {
+  TrainResult result = run_train(c, options);
+  for (auto& w : design_warnings(c, result)) result.warnings.push_back(std::move(w));
+  check_finite(result);
+  return result;
 }
 
 }  // namespace rxtrain

@@ -7,7 +7,6 @@
 
 #include "commands.hpp"
 #include "limit_margin.hpp"
-#include "rxtrain/analysis/result_guard.hpp"
 #include "rxtrain/analysis/train_warnings.hpp"
 #include "rxtrain/base/units.hpp"
 #include "rxtrain/case/case.hpp"
@@ -52,9 +51,7 @@ int run(const RunOptions& o) {
                       o.approach_window + "\"");
     options.equilibrium.approach_T_window = w;
   }
-  TrainResult result = run_train(c, options);
-  for (auto& w : design_warnings(c, result)) result.warnings.push_back(std::move(w));
-  check_finite(result);  // no NaN or Inf may reach an output
+  const TrainResult result = run_checked(c, options);  // no NaN or Inf may reach an output
 
   // Every output is rendered before any is written, and all are renamed
   // into place together: a failure leaves no half-written file behind.

@@ -34,13 +34,31 @@ std::vector<std::string> split(const std::string& s, char sep) {
   throw InputError({option, 0, 0}, message);
 }
 
+// Text with a unit of the field's dimension, in SI; UnitError otherwise.
+double to_si_of(const std::string& text, const CasePath& p, const UnitParser& units) {
+  UnitOptions uo;
+  uo.plain_cal_is_thermochemical = p.chemistry_units;
+  return units.to_si(text, p.unit, uo);
+}
+
+}  // namespace
+
+double path_value(const std::string& text, const CasePath& p, const UnitParser& units,
+                  const std::string& option) {
+  try {
+    return to_si_of(text, p, units);
+  } catch (const UnitError& e) {
+    fail(option, fmt::format("{} needs {}: {}", p.name, p.unit.to_string(), e.what()));
+  }
+}
+
+namespace {
+
 // A value of the field's dimension, in SI.
 double quantity(const std::string& text, const CasePath& p, const UnitParser& units,
                 const std::string& option, const std::string& spec) {
-  UnitOptions uo;
-  uo.plain_cal_is_thermochemical = p.chemistry_units;
   try {
-    return units.to_si(text, p.unit, uo);
+    return to_si_of(text, p, units);
   } catch (const UnitError& e) {
     fail(option,
          fmt::format("in \"{}\": {} needs {}: {}", spec, p.name, p.unit.to_string(), e.what()));

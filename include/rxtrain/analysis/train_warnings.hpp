@@ -11,8 +11,10 @@
 //  * tubular beds whose last 10 % of volume adds under 0.01 conversion
 //    (catalyst, or volume in a tube without catalyst, wasted near
 //    equilibrium or complete conversion);
-//  * space times outside the usual ranges: stirred tanks about 10 min to
-//    4 h, tubular reactors about 0.5 s to 1 h (common practice, no source).
+//  * space times outside the usual ranges, for tanks and tubes without
+//    catalyst: stirred tanks about 10 min to 4 h, empty tubular reactors
+//    about 0.5 s to 1 h (common practice, no source); catalyst beds are
+//    judged by their space velocities.
 //
 // Example:
 //   TrainResult r = run_train(c);
@@ -36,5 +38,11 @@ namespace rxtrain {
 std::optional<double> adiabatic_temperature_change(const Case& c);
 
 std::vector<std::string> design_warnings(const Case& c, const TrainResult& result);
+
+// What `rxtrain run` computes, for every caller that wants the same answer
+// (the command line, the Python module): run_train, then the design
+// warnings appended to the result's, then the finite-number guard
+// (result_guard.hpp; throws SolverError on a NaN or Inf).
+TrainResult run_checked(const Case& c, const TrainOptions& options);
 
 }  // namespace rxtrain

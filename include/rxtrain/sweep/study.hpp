@@ -102,6 +102,12 @@ Study parse_study(const std::vector<std::string>& vary, const std::vector<std::s
                   std::size_t runs, std::uint64_t seed, const CasePathTable& table,
                   const UnitParser& units);
 
+// A value for path p given as text ("420 degC", a bare number is SI), in
+// SI. Throws InputError located at `option` for a unit of the wrong
+// dimension. (The range is checked when the value is applied.)
+double path_value(const std::string& text, const CasePath& p, const UnitParser& units,
+                  const std::string& option);
+
 inline constexpr std::size_t kMaxShards = 1'000'000;
 
 // A slice of the runs, "K/N" with 1 <= K <= N.
