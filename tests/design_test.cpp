@@ -334,9 +334,7 @@ TEST_CASE("a bed held at T_max: the conditions reported are the ones the residua
   CHECK_THAT(summary, !Catch::Contains("each exchanger ends where the rate equals"));
   CHECK_THAT(summary, Catch::Contains("C2 ends where the rate equals"));
   CHECK_THAT(summary, Catch::Contains("Not at C1: B1 ends at T_max"));
-  TrainOptions views;
-  views.curve_points = 11;
-  const auto figures = optimize_figures(c, d, views);
+  const auto figures = optimize_figures(c, d);
   REQUIRE_FALSE(figures.empty());
   CHECK_THAT(figures.front().caption, Catch::Contains(summary));
   CHECK_THAT(interstage_text(d, l, l.interstage[0]),

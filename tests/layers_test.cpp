@@ -66,3 +66,20 @@ TEST_CASE("no header of a lower layer includes a higher one", "[layers]") {
   for (const auto& v : violations) UNSCOPED_INFO(v);
   CHECK(violations.empty());
 }
+
+// docs/architecture.md: "reporters never solve". A reporter takes results
+// and phrases them; no call of a solver or of a study may appear in report/.
+TEST_CASE("no reporter calls a solver or runs a study", "[layers]") {
+  const std::regex call(
+      R"re(\b(run_train|run_train_batch|run_stage|run_pfr|run_pfr_batch|run_cstr|run_exchanger|add_equilibrium_views|run_staging|optimize_design|compare_layouts|run_sweep|run_checked)\s*\()re");
+  std::vector<std::string> found;
+  for (const char* top : {"src/report", "include/rxtrain/report"})
+    for (const auto& e : fs::recursive_directory_iterator(fs::path(RXTRAIN_SOURCE_DIR) / top)) {
+      if (!e.is_regular_file()) continue;
+      const std::string text = read(e.path());
+      for (std::sregex_iterator m(text.begin(), text.end(), call), stop; m != stop; ++m)
+        found.push_back(e.path().filename().string() + ": " + (*m)[1].str());
+    }
+  for (const auto& f : found) UNSCOPED_INFO(f);
+  CHECK(found.empty());
+}

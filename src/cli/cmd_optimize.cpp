@@ -354,6 +354,7 @@ int run_optimize_command(const OptimizeCommandOptions& o) {
   if (o.beds > 0) options.beds = o.beds;
   if (o.max_beds > 0) options.max_beds = o.max_beds;
   options.fixed_feed_T = o.fixed_feed_T;
+  options.equilibrium_views = !o.report_dir.empty();  // the figures draw them
   options.limit_check.margin = parse_limit_margin(o.limit_margin, units);
   if (!o.margin.empty()) {
     try {
@@ -394,10 +395,7 @@ int run_optimize_command(const OptimizeCommandOptions& o) {
     out.add(o.case_path, design_case_text(c, text, result, result.best, units, o.case_path));
   }
   if (!o.report_dir.empty()) {
-    TrainOptions views;
-    views.pfr = options.pfr;
-    views.equilibrium = options.equilibrium;
-    const auto figures = optimize_figures(c, result, views);
+    const auto figures = optimize_figures(c, result);
     add_report_files(
         out, o.report_dir,
         optimize_report_html(c, result, figures, provenance_of(o.case_file, RXTRAIN_VERSION)),

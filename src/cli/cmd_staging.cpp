@@ -33,16 +33,14 @@ int run_staging_command(const StagingCommandOptions& o) {
   const Case c = load_case(o.case_file, units);
   StagingOptions so = o.staging;
   so.limit_check.margin = parse_limit_margin(o.limit_margin, units);
+  so.equilibrium_views = !o.report_dir.empty();  // the figures draw them
   const StagingResult result = run_staging(c, so);
   // Rendered before anything is written; a failure leaves no file behind.
   OutputSet out;
   out.protect(o.case_file);  // the case file is never an output
   if (!o.json_path.empty()) out.add(o.json_path, staging_json_text(result));
   if (!o.report_dir.empty()) {
-    TrainOptions views;
-    views.pfr = o.staging.pfr;
-    views.equilibrium = o.staging.equilibrium;
-    const auto figures = staging_figures(c, result, views);
+    const auto figures = staging_figures(c, result);
     add_report_files(
         out, o.report_dir,
         staging_report_html(c, result, figures, provenance_of(o.case_file, RXTRAIN_VERSION)),

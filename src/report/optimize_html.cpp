@@ -117,15 +117,10 @@ std::string by_bed_count_table(const DesignResult& d) {
 
 }  // namespace
 
-std::vector<Figure> optimize_figures(const Case& c, const DesignResult& d,
-                                     const TrainOptions& views) {
+std::vector<Figure> optimize_figures(const Case& c, const DesignResult& d) {
   std::vector<Figure> out;
-  Case optimum = c;
-  optimum.train = design_train(c, d, d.best);
-  TrainOptions o = views;
-  o.equilibrium_views = true;
-  const TrainResult r = run_train(optimum, o);
-  Figure tx = tx_diagram(optimum, r, "The optimum on the temperature–conversion diagram");
+  const TrainResult& r = d.train;
+  Figure tx = tx_diagram(c, r, "The optimum on the temperature–conversion diagram");
   tx.name = "tx-optimum";
   // Which conditions hold is read from the computed residuals: a bed held
   // by a limit breaks the equal-rate rule at the exchanger after it.

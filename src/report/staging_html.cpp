@@ -83,12 +83,10 @@ std::string limit_text(const std::optional<double>& T) {
 
 }  // namespace
 
-std::vector<Figure> staging_figures(const Case& c, const StagingResult& r,
-                                    const TrainOptions& views) {
+std::vector<Figure> staging_figures(const Case& c, const StagingResult& r) {
   std::vector<Figure> out;
   if (!r.staged_run.stages.empty()) {
-    TrainResult staged = r.staged_run;
-    add_equilibrium_views(c, views, staged);
+    const TrainResult& staged = r.staged_run;
     Figure f = tx_diagram(c, staged, "Staged beds on the temperature–conversion diagram");
     f.name = "tx-staged";
     f.caption = fmt::format(
@@ -99,8 +97,7 @@ std::vector<Figure> staging_figures(const Case& c, const StagingResult& r,
     out.push_back(std::move(f));
   }
   if (!r.as_given_run.stages.empty()) {
-    TrainResult given = r.as_given_run;
-    add_equilibrium_views(c, views, given);
+    const TrainResult& given = r.as_given_run;
     Figure f = tx_diagram(c, given, "The train as given on the temperature–conversion diagram");
     f.name = "tx-as-given";
     out.push_back(std::move(f));

@@ -595,10 +595,12 @@ DesignResult optimize_design(const Case& c, const DesignOptions& options) {
   // The independent check: the layout as a train, run by run_train.
   TrainOptions to;
   to.pfr = options.pfr;
-  to.equilibrium_views = false;
+  to.equilibrium_views = options.equilibrium_views;
+  to.equilibrium = options.equilibrium;
   to.limit_check = options.limit_check;
   const Case trial = with_train(c, design_train(c, res, res.best));
-  const TrainResult check = run_train(trial, to);
+  res.train = run_train(trial, to);
+  const TrainResult& check = res.train;
   res.best.checked_conversion = check.conversion;
   if (std::abs(check.conversion - s.target) > 1e-5)
     res.warnings.push_back(fmt::format(

@@ -562,6 +562,13 @@ StagingResult run_staging(const Case& c, const StagingOptions& options) {
   for (const auto& w : design_warnings(c, res.as_given_run)) add_unique(w);
   for (const auto& w : res.staged_run.warnings) add_unique(w);
   for (const auto& w : design_warnings(c, res.staged_run)) add_unique(w);
+  if (options.equilibrium_views) {
+    TrainOptions views;
+    views.pfr = options.pfr;
+    views.equilibrium = options.equilibrium;
+    for (TrainResult* t : {&res.as_given_run, &res.staged_run})
+      if (!t->stages.empty()) add_equilibrium_views(c, views, *t);
+  }
   return res;
 }
 

@@ -16,12 +16,11 @@
 
 namespace rxtrain {
 
-// Runs the optimum's train (design_train) with the equilibrium views on and
-// draws it: T-X diagram, profiles, and with by_bed_count the total catalyst
-// (or volume) and the interstage duty against the number of beds. `views`
-// sets the solvers and the equilibrium curve's resolution.
-std::vector<Figure> optimize_figures(const Case& c, const DesignResult& d,
-                                     const TrainOptions& views = {});
+// Draws the optimum's train (d.train, run by optimize_design with
+// DesignOptions::equilibrium_views on): T-X diagram, profiles, and with
+// by_bed_count the total catalyst (or volume) and the interstage duty
+// against the number of beds. Runs no solver.
+std::vector<Figure> optimize_figures(const Case& c, const DesignResult& d);
 
 std::string optimize_report_html(const Case& c, const DesignResult& d,
                                  const std::vector<Figure>& figures,

@@ -17,10 +17,9 @@ namespace rxtrain {
 
 // T–X diagrams of the staged beds and of the train as given (each over the
 // equilibrium curve, with T_max and the target), then the temperature and
-// conversion profiles of the staged beds. `views` sets how the equilibrium
-// curves are computed (TrainOptions::equilibrium and curve_points).
-std::vector<Figure> staging_figures(const Case& c, const StagingResult& r,
-                                    const TrainOptions& views = {});
+// conversion profiles of the staged beds, from the result's trains (run by
+// run_staging with StagingOptions::equilibrium_views on). Runs no solver.
+std::vector<Figure> staging_figures(const Case& c, const StagingResult& r);
 
 std::string staging_report_html(const Case& c, const StagingResult& r,
                                 const std::vector<Figure>& figures,

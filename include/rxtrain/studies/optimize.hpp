@@ -60,6 +60,7 @@
 #include <vector>
 
 #include "rxtrain/case/case.hpp"
+#include "rxtrain/flowsheet/train.hpp"
 #include "rxtrain/models/equilibrium.hpp"
 #include "rxtrain/stages/limit_check.hpp"
 #include "rxtrain/stages/pfr.hpp"
@@ -114,6 +115,10 @@ struct DesignOptions {
   // The check of the optimum's train (and of the case as written) against
   // the limits (limit_check.hpp): its findings become warnings.
   LimitCheckOptions limit_check;
+  // Add the equilibrium views (the equilibrium curve, the maximum-rate
+  // locus, Levenspiel curves) to the optimum's train (DesignResult::train),
+  // for figures.
+  bool equilibrium_views = false;
   // Solvers of the checks and comparisons.
   PfrOptions pfr;
   EquilibriumOptions equilibrium;
@@ -256,6 +261,10 @@ struct DesignResult {
   // The optimum's train (design_train, run by run_train) against the
   // limits: a bed at T_max is a Near finding with no margin left.
   LimitCheck limit_check;
+  // The optimum's train as run_train ran it (the independent check), with
+  // the equilibrium views when options.equilibrium_views: what a report
+  // draws, so that no reporter runs a solver.
+  TrainResult train;
   std::vector<std::string> warnings;
 };
 

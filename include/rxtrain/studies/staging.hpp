@@ -75,6 +75,9 @@ struct StagingOptions {
   // The check of every stage (as given and staged) against the limits:
   // its findings are the first design warnings (limit_check.hpp).
   LimitCheckOptions limit_check;
+  // Add the equilibrium views (the equilibrium curve, the maximum-rate
+  // locus, Levenspiel curves) to as_given_run and staged_run, for figures.
+  bool equilibrium_views = false;
   // Solvers of the stages (as given and staged).
   PfrOptions pfr;
   CstrOptions cstr;
@@ -166,7 +169,8 @@ struct StagingResult {
   std::optional<double> conversion_limit;
   std::string staged_note;  // plain words on the staged answer
 
-  // Full stage results, for the design checks and reports.
+  // Full stage results, for the design checks and reports (with the
+  // equilibrium views when options.equilibrium_views).
   TrainResult as_given_run;  // the stages that ran
   TrainResult staged_run;    // beds and exchangers in order
   std::vector<std::string> warnings;
