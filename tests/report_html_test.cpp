@@ -266,7 +266,7 @@ TEST_CASE("staging --report: the beds and coolers shown equal the JSON answer", 
     CHECK(beds[i].cells[1] == celsius_text(b["T_in"].get<double>()));
     CHECK(beds[i].kelvin[2] == fixed_text(b["T_out"].get<double>(), 2) + " K");
     CHECK(beds[i].cells[5] == fixed_text(b["X_out"].get<double>(), 4));
-    CHECK(beds[i].cells[7] == fixed_text(b["volume"].get<double>(), 3));
+    CHECK(beds[i].cells[7] == volume_text(b["volume"].get<double>()));
   }
   const auto coolers = table_after(doc, "exchangers");
   REQUIRE(coolers.size() == j["coolers"].size());
@@ -378,8 +378,8 @@ TEST_CASE("optimize --report: the optimum shown equals the JSON, the trade-off h
     CHECK(beds[i].cells[1] == celsius_text(b["T_in"].get<double>()));
     CHECK(beds[i].kelvin[2] == fixed_text(b["T_out"].get<double>(), 2) + " K");
     CHECK(beds[i].cells[4] == fixed_text(b["X_out"].get<double>(), 4));
-    CHECK(beds[i].cells[6] == fixed_text(b["volume"].get<double>(), 3));
-    CHECK(beds[i].cells[7] == fixed_text(b["catalyst_mass"].get<double>(), 1));
+    CHECK(beds[i].cells[6] == volume_text(b["volume"].get<double>()));
+    CHECK(beds[i].cells[7] == volume_text(b["catalyst_mass"].get<double>()));
   }
   const auto counts = table_after(doc, "by-bed-count");
   REQUIRE(counts.size() == j["by_bed_count"].size());
@@ -388,7 +388,7 @@ TEST_CASE("optimize --report: the optimum shown equals the JSON, the trade-off h
     if (j["by_bed_count"][i]["total_catalyst"].is_number()) {
       ++feasible;
       CHECK(counts[i].cells[2] ==
-            fixed_text(j["by_bed_count"][i]["total_catalyst"].get<double>(), 1));
+            volume_text(j["by_bed_count"][i]["total_catalyst"].get<double>()));
     }
   tinyxml2::XMLDocument bars;
   REQUIRE(bars.LoadFile((dir / "rep" / "beds-catalyst.svg").c_str()) == tinyxml2::XML_SUCCESS);

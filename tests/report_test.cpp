@@ -202,7 +202,7 @@ TEST_CASE("sweep columns read in words and display units", "[report]") {
   CHECK(peak.text(700.0) == "426.85");
   CHECK(column_quantity("feed.P", "Pa").text(2.5e6) == "25.00");
   CHECK(column_quantity("train.R1.catalyst", "kg").label() == "Catalyst in R1 (kg)");
-  CHECK(column_quantity("R2.duty", "W").text(-1.5e6) == "-1500");  // kW
+  CHECK(column_quantity("R2.duty", "W").text(-1.5e6) == "-1500");       // kW
   CHECK(column_quantity("R1.over_limit", "K").text(4.3597) == "4.36");  // a difference: no offset
   CHECK(column_quantity("X", "-").text(0.999991) == "0.999991");
   // A column this does not know keeps its name and SI unit.

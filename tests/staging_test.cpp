@@ -556,7 +556,7 @@ TEST_CASE("staging command: answer, exit code and JSON layout", "[staging][cli]"
   REQUIRE(j["beds"].size() == static_cast<std::size_t>(n));
   REQUIRE(j["coolers"].size() == static_cast<std::size_t>(n - 1));
   for (const auto& b : j["beds"])
-    for (const char* k : {"T_in", "T_out", "X_in", "X_out", "volume", "catalyst_mass", "T_max"}) {
+    for (const char* k : {"T_in", "T_out", "X_in", "X_out", "volume", "catalyst_mass", "T_peak"}) {
       INFO(k);
       CHECK(b[k].is_number());
     }

@@ -22,7 +22,7 @@ double objective_of(const DesignResult& d, const std::optional<double>& catalyst
 }
 
 std::string amount(const DesignResult& d, double v) {
-  return d.catalyst_objective ? fixed_text(v, 1) + " kg" : fixed_text(v, 3) + " m³";
+  return volume_text(v) + (d.catalyst_objective ? " kg" : " m³");
 }
 
 std::string beds_table(const DesignLayout& l) {
@@ -32,8 +32,8 @@ std::string beds_table(const DesignLayout& l) {
   for (const auto& b : l.bed)
     h += "<tr>" + cell(b.id, false) + temperature_cell(b.T_in) + temperature_cell(b.T_out) +
          cell(fixed_text(b.X_in, 4), true) + cell(fixed_text(b.X_out, 4), true) +
-         cell(fixed_text(b.X_ad_eq, 4), true) + cell(fixed_text(b.volume, 3), true) +
-         cell(fixed_text(b.catalyst_mass, 1), true) + "</tr>\n";
+         cell(fixed_text(b.X_ad_eq, 4), true) + cell(volume_text(b.volume), true) +
+         cell(volume_text(b.catalyst_mass), true) + "</tr>\n";
   return h + "</table>\n";
 }
 
@@ -105,7 +105,7 @@ std::string by_bed_count_table(const DesignResult& d) {
     const double total = objective_of(d, c.total_catalyst, c.total_volume);
     h +=
         "<tr>" + cell(mark, false) + cell(std::to_string(c.beds), true) +
-        cell(d.catalyst_objective ? fixed_text(total, 1) : fixed_text(total, 4), true) +
+        cell(volume_text(total), true) +
         cell(previous > 0 ? fixed_text(100 * (previous - total) / previous, 2) + " %" : "-", true) +
         cell(fixed_text(c.total_duty / 1e3, 2), true) + "</tr>\n";
     previous = total;
@@ -142,8 +142,8 @@ std::vector<Figure> optimize_figures(const Case& c, const DesignResult& d) {
       n.push_back(std::to_string(l.beds));
       total.push_back(l.feasible ? objective_of(d, l.total_catalyst, l.total_volume)
                                  : std::numeric_limits<double>::quiet_NaN());
-      const double removed = d.exothermic ? -l.total_duty : l.total_duty;
-      duty.push_back(l.feasible ? removed / 1e3 : std::numeric_limits<double>::quiet_NaN());
+      // Signed as the tables are: heat added to the stream positive.
+      duty.push_back(l.feasible ? l.total_duty / 1e3 : std::numeric_limits<double>::quiet_NaN());
     }
     svg::ChartOptions co;
     co.width = 560;
@@ -162,7 +162,7 @@ std::vector<Figure> optimize_figures(const Case& c, const DesignResult& d) {
     svg::ChartOptions dopt = co;
     dopt.title = fmt::format("Interstage {} against the number of beds",
                              d.exothermic ? "cooling" : "heating");
-    dopt.y_label = d.exothermic ? "Heat removed between beds (kW)" : "Heat added between beds (kW)";
+    dopt.y_label = "Interstage duty (kW, heat added positive)";
     svg::Chart duties(dopt);
     duties.add_bars(n, duty, {.label = "", .colour = std::string(svg::series_colour(1))});
     out.push_back({"beds-duty",
@@ -177,6 +177,7 @@ std::string optimize_report_html(const Case& c, const DesignResult& d,
                                  const std::vector<Figure>& figures, const ReportProvenance& p) {
   const DesignLayout& l = d.best;
   std::string h = html::page_begin(d.title + " — optimal beds", p);
+  h += html::feed_section(c);
   h += "<h2 id=\"summary\">Optimum</h2>\n";
   h += fmt::format(
       "<p>Least total {} for an overall conversion of {} X = {} with every bed temperature "
@@ -190,7 +191,7 @@ std::string optimize_report_html(const Case& c, const DesignResult& d,
   h += fmt::format(
       "<p><strong>{} adiabatic beds, total {}{}.</strong></p>\n", l.beds,
       amount(d, objective_of(d, l.total_catalyst, l.total_volume)),
-      d.catalyst_objective ? fmt::format(" ({} m³)", fixed_text(l.total_volume, 3)) : "");
+      d.catalyst_objective ? fmt::format(" ({} m³)", volume_text(l.total_volume)) : "");
   h += beds_table(l);
   h += "<h2 id=\"exchangers\">Exchangers</h2>\n" + exchangers_table(d);
   h += "<h2 id=\"constraints\">Active constraints and check</h2>\n";

@@ -21,7 +21,7 @@ std::string optional_temperature_cell(const std::optional<double>& T) {
 std::string as_given_table(const StagingResult& r) {
   std::string h = "<table class=\"stages\">\n";
   h += html::header_row({"stage", "type", "T in (°C / K)", "T out (°C / K)",
-                         r.exothermic ? "T max (°C / K)" : "T min (°C / K)", "X in", "X out",
+                         r.exothermic ? "T peak (°C / K)" : "T lowest (°C / K)", "X in", "X out",
                          "X_ad_eq", "T_ad_eq (°C / K)", "V (m³)", "note"});
   for (const auto& a : r.as_given) {
     h += "<tr>" + cell(a.id, false) + cell(stage_kind_name(a.kind), false) +
@@ -32,7 +32,7 @@ std::string as_given_table(const StagingResult& r) {
       h += cell("-", true) + cell("-", true);
     h += cell(fixed_text(a.X_in, 4), true) + cell(a.ran ? fixed_text(a.X_out, 4) : "-", true) +
          cell(fixed_text(a.X_ad_eq, 4), true) + optional_temperature_cell(a.T_ad_eq) +
-         cell(a.ran ? fixed_text(a.volume, 3) : "-", true) + cell(a.note, false) + "</tr>\n";
+         cell(a.ran ? volume_text(a.volume) : "-", true) + cell(a.note, false) + "</tr>\n";
   }
   return h + "</table>\n";
 }
@@ -40,7 +40,7 @@ std::string as_given_table(const StagingResult& r) {
 std::string beds_table(const StagingResult& r) {
   std::string h = "<table class=\"stages\">\n";
   h += html::header_row({"bed", "T in (°C / K)", "T out (°C / K)",
-                         r.exothermic ? "T max (°C / K)" : "T min (°C / K)", "X in", "X out",
+                         r.exothermic ? "T peak (°C / K)" : "T lowest (°C / K)", "X in", "X out",
                          "X_ad_eq", "V (m³)", "catalyst (kg)", "ends at"});
   double V = 0, W = 0;
   bool all_mass = true;
@@ -48,7 +48,7 @@ std::string beds_table(const StagingResult& r) {
     h += "<tr>" + cell(b.id, false) + temperature_cell(b.T_in) + temperature_cell(b.T_out) +
          temperature_cell(r.exothermic ? b.T_max : b.T_min) + cell(fixed_text(b.X_in, 4), true) +
          cell(fixed_text(b.X_out, 4), true) + cell(fixed_text(b.X_ad_eq, 4), true) +
-         cell(fixed_text(b.volume, 3), true) + cell(fixed_text(b.catalyst_mass, 1), true) +
+         cell(volume_text(b.volume), true) + cell(volume_text(b.catalyst_mass), true) +
          cell(b.ended_by, false) + "</tr>\n";
     V += b.volume;
     if (b.catalyst_mass)
@@ -57,8 +57,8 @@ std::string beds_table(const StagingResult& r) {
       all_mass = false;
   }
   h += "</table>\n";
-  h += fmt::format("<p>Total: {} m³{}.</p>\n", fixed_text(V, 3),
-                   all_mass ? fmt::format(", {} kg of catalyst", fixed_text(W, 1)) : "");
+  h += fmt::format("<p>Total: {} m³{}.</p>\n", volume_text(V),
+                   all_mass ? fmt::format(", {} kg of catalyst", volume_text(W)) : "");
   return h;
 }
 
@@ -115,7 +115,8 @@ std::vector<Figure> staging_figures(const Case& c, const StagingResult& r) {
 std::string staging_report_html(const Case& c, const StagingResult& r,
                                 const std::vector<Figure>& figures, const ReportProvenance& p) {
   std::string h = html::page_begin(r.title + " — interstage-cooling check", p);
-  h += "<h2 id=\"summary\">Question and answer</h2>\n";
+  h += html::feed_section(c);
+  h += "<h2 id=\"summary\">Interstage cooling: the answer</h2>\n";
   h += fmt::format(
       "<p>Target: overall conversion of {} X = {}. Limits: T_max {}, T_in_min {}. "
       "Feed {} °C ({} K). Key reaction {}",

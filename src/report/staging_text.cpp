@@ -57,7 +57,7 @@ std::string format_staging_report(const StagingResult& r) {
     out += fmt::format("  No (limited by {}): {}.\n", limit_name(r.limited_by), r.why);
   std::vector<std::vector<std::string>> rows;
   // The extreme the bed runs to: hottest (exothermic) or coldest point.
-  const char* extreme = r.exothermic ? "T max °C" : "T min °C";
+  const char* extreme = r.exothermic ? "T peak °C" : "T lowest °C";
   rows.push_back({"stage", "type", "T in °C", "T out °C", extreme, "X in", "X out", "X_ad_eq",
                   "T_ad_eq °C", "V m3"});
   for (const auto& a : r.as_given) {
@@ -70,7 +70,7 @@ std::string format_staging_report(const StagingResult& r) {
     rows.push_back({a.id, stage_kind_name(a.kind), celsius_text(a.T_in), celsius_text(a.T_out),
                     celsius_text(r.exothermic ? a.T_max : a.T_min), fixed_text(a.X_in, 4),
                     fixed_text(a.X_out, 4), fixed_text(a.X_ad_eq, 4),
-                    a.T_ad_eq ? celsius_text(*a.T_ad_eq) : "-", fixed_text(a.volume, 3)});
+                    a.T_ad_eq ? celsius_text(*a.T_ad_eq) : "-", volume_text(a.volume)});
   }
   out += render_columns(rows, 2);
   out +=
@@ -91,8 +91,8 @@ std::string format_staging_report(const StagingResult& r) {
     for (const auto& bed : r.beds)
       b.push_back({bed.id, celsius_text(bed.T_in), celsius_text(bed.T_out),
                    celsius_text(r.exothermic ? bed.T_max : bed.T_min), fixed_text(bed.X_in, 4),
-                   fixed_text(bed.X_out, 4), fixed_text(bed.X_ad_eq, 4), fixed_text(bed.volume, 3),
-                   fixed_text(bed.catalyst_mass, 1), bed.ended_by});
+                   fixed_text(bed.X_out, 4), fixed_text(bed.X_ad_eq, 4), volume_text(bed.volume),
+                   volume_text(bed.catalyst_mass), bed.ended_by});
     out += fmt::format("\n{}", render_columns(b, 1));
     double V = 0, W = 0;
     bool all_mass = true;
@@ -103,8 +103,8 @@ std::string format_staging_report(const StagingResult& r) {
       else
         all_mass = false;
     }
-    out += fmt::format("  total: {} m3{}\n", fixed_text(V, 3),
-                       all_mass ? fmt::format(", {} kg of catalyst", fixed_text(W, 1)) : "");
+    out += fmt::format("  total: {} m3{}\n", volume_text(V),
+                       all_mass ? fmt::format(", {} kg of catalyst", volume_text(W)) : "");
   }
   if (!r.coolers.empty()) {
     std::vector<std::vector<std::string>> x;
