@@ -85,7 +85,7 @@ CompareResult two_stage_orders(double n, double Da) {
   const double tau = 0.5 / kV0;
   const double k = Da / (std::pow(kC0, n - 1) * tau);
   rxtrain::CompareOptions options;
-  options.train.pfr.cvode.rtol = 1e-12;
+  options.train.solvers.tube.cvode.rtol = 1e-12;
   return rxtrain::compare_layouts(
       load(nth_order_case(n, k, 0, R"(  - {type: pfr, id: P, volume: 0.5 m3, heat: isothermal}
   - {type: cstr, id: T, volume: 0.5 m3, heat: isothermal})")),
@@ -202,7 +202,7 @@ TEST_CASE("tubes of different volume in either order: distinct layouts, one clos
   // the order (Levenspiel, Chemical Reaction Engineering, PFRs in series).
   const double k = 2e-4;
   rxtrain::CompareOptions options;
-  options.train.pfr.cvode.rtol = 1e-12;
+  options.train.solvers.tube.cvode.rtol = 1e-12;
   const CompareResult r = rxtrain::compare_layouts(
       load(nth_order_case(1, k, 0, R"(  - {type: pfr, id: A1, volume: 0.3 m3, heat: isothermal}
   - {type: pfr, id: A2, volume: 0.7 m3, heat: isothermal})")),
@@ -232,7 +232,7 @@ TEST_CASE("identical beds exchanged are one layout naming both orders", "[compar
   // series), Da = k 0.5 / v0.
   const double k = 2e-4, Da = k * 0.5 / kV0;
   rxtrain::CompareOptions options;
-  options.train.pfr.cvode.rtol = 1e-12;
+  options.train.solvers.tube.cvode.rtol = 1e-12;
   const CompareResult r = rxtrain::compare_layouts(
       load(nth_order_case(1, k, 0, R"(  - {type: pfr, id: P1, volume: 0.5 m3, heat: isothermal}
   - {type: pfr, id: P2, volume: 0.5 m3, heat: isothermal}

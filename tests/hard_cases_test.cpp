@@ -348,7 +348,7 @@ TEST_CASE("hard: a CVODE failure names the stage, the position, the reason and a
   s.V = 100;
   s.heat = "adiabatic";
   TrainOptions options;
-  options.pfr.cvode.max_steps = 5;  // far too few: the integration must stop early
+  options.solvers.tube.cvode.max_steps = 5;  // far too few: the integration must stop early
   try {
     run_text(single_reaction_case(s), options);
     FAIL("ran with 5 steps");
@@ -372,8 +372,8 @@ TEST_CASE("hard: a Newton failure names the stage, the volume, the reason and a 
   s.Ea = 100e3;
   s.dH = -20e3;
   TrainOptions options;
-  options.cstr.newton.max_iterations = 1;
-  options.cstr.continuation_steps = 1;
+  options.solvers.newton.max_iterations = 1;
+  options.solvers.tank_continuation_steps = 1;
   try {
     run_text(single_reaction_case(s), options);
     FAIL("converged in one iteration");

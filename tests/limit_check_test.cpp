@@ -230,7 +230,7 @@ TEST_CASE("a sweep row whose bed passes T_max is over_limit, with its column and
   REQUIRE(col != names.end());  // a default column where the case gives limits
   PointWorkspace ws;
   ws.train.equilibrium_views = false;
-  ws.train.pfr.full_profile = false;  // as a sweep runs
+  ws.train.solvers.tube.full_profile = false;  // as a sweep runs
   const PointResult p = evaluate_point(c, o, ws);
   CHECK(p.status == RunStatus::OverLimit);
   CHECK(std::string(run_status_name(p.status)) == "over_limit");

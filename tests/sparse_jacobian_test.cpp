@@ -140,8 +140,8 @@ TEST_CASE("sparse and dense solvers give the same outlet", "[sparse]") {
   const Case c = synthetic_case(60, 120);
   TrainOptions dense, sparse;
   dense.equilibrium_views = sparse.equilibrium_views = false;
-  dense.pfr.jacobian = JacobianForm::Dense;
-  sparse.pfr.jacobian = JacobianForm::Sparse;
+  dense.solvers.tube.jacobian = JacobianForm::Dense;
+  sparse.solvers.tube.jacobian = JacobianForm::Sparse;
   const TrainResult rd = run_train(c, dense);
   const TrainResult rs = run_train(c, sparse);
   // Both integrate at rtol 1e-8 with the same exact Jacobian; the LU and KLU
@@ -266,7 +266,7 @@ TEST_CASE("outlet-only integration gives the numbers of the full profile", "[pfr
     const Case c = load_case(std::string(RXTRAIN_SOURCE_DIR "/") + name, units);
     TrainOptions full, lean;
     full.equilibrium_views = lean.equilibrium_views = false;
-    lean.pfr.full_profile = false;
+    lean.solvers.tube.full_profile = false;
     TrainWorkspace ws;
     const TrainResult a = run_train(c, full, ws);
     const TrainResult b = run_train(c, lean, ws);
@@ -282,8 +282,8 @@ TEST_CASE("outlet-only integration gives the numbers of the full profile", "[pfr
       // Near equilibrium the steps of the full profile can overshoot the
       // monotonic outlet temperature by round-off of the integration (seen:
       // 9e-7 K at 897 K), so the extremes agree to rtol (1e-8), not bits.
-      CHECK(s.T_max == Approx(t.T_max).epsilon(full.pfr.cvode.rtol));
-      CHECK(s.T_min == Approx(t.T_min).epsilon(full.pfr.cvode.rtol));
+      CHECK(s.T_max == Approx(t.T_max).epsilon(full.solvers.tube.cvode.rtol));
+      CHECK(s.T_min == Approx(t.T_min).epsilon(full.solvers.tube.cvode.rtol));
       CHECK(s.conversion == t.conversion);
       CHECK(s.stats.steps == t.stats.steps);
       CHECK(t.profile.size() <= s.profile.size());

@@ -73,7 +73,7 @@ std::vector<RunRow> run(const Fixture& f, const Study& s, const OutputSpec& o, s
   SweepOptions opt;
   opt.jobs = jobs;
   opt.shard = shard;
-  opt.train.pfr.cvode.max_steps = max_steps;
+  opt.train.solvers.tube.cvode.max_steps = max_steps;
   return run_sweep(f.c, f.table, s, o, opt);
 }
 
@@ -115,7 +115,7 @@ TEST_CASE("batched rows are as accurate as lone runs", "[sweep][batch]") {
   REQUIRE(lone.chain_length() == 1);
   SweepOptions ref_opt;
   ref_opt.jobs = 2;
-  ref_opt.train.pfr.cvode.rtol = 1e-12;
+  ref_opt.train.solvers.tube.cvode.rtol = 1e-12;
   const auto ref = run_sweep(f.c, f.table, lone, o, ref_opt);
   const auto batched = run(f, s, o, 2);
   const auto alone = run(f, lone, o, 2);

@@ -108,7 +108,7 @@ Work work_of(const TrainResult& r) {
 TrainOptions core_options() {
   TrainOptions o;
   o.equilibrium_views = false;  // the train alone, as a sweep runs it
-  o.pfr.full_profile = false;
+  o.solvers.tube.full_profile = false;
   return o;
 }
 
@@ -182,11 +182,11 @@ void bench_tolerances(const std::string& file, double budget) {
   const UnitParser units;
   const Case c = load_case(file, units);
   TrainOptions ref = core_options();
-  ref.pfr.cvode.rtol = 1e-12;
+  ref.solvers.tube.cvode.rtol = 1e-12;
   const double X_ref = run_train(c, ref).conversion;
   for (double rtol : {1e-4, 1e-6, 1e-8, 1e-10}) {
     TrainOptions o = core_options();
-    o.pfr.cvode.rtol = rtol;
+    o.solvers.tube.cvode.rtol = rtol;
     TrainWorkspace ws;
     const TrainResult r = run_train(c, o, ws);
     const Work w = work_of(r);
@@ -215,8 +215,8 @@ void bench_synthetic(double budget) {
   for (const auto& sz : sizes) {
     const Case c = synthetic_case(sz[0], sz[1]);
     TrainOptions dense = core_options(), sparse = core_options();
-    dense.pfr.jacobian = JacobianForm::Dense;
-    sparse.pfr.jacobian = JacobianForm::Sparse;
+    dense.solvers.tube.jacobian = JacobianForm::Dense;
+    sparse.solvers.tube.jacobian = JacobianForm::Sparse;
     TrainWorkspace ws_d, ws_s;
     const TrainResult rd = run_train(c, dense, ws_d);
     const TrainResult rs = run_train(c, sparse, ws_s);
@@ -248,7 +248,7 @@ void bench_synthetic(double budget) {
   for (const auto& sz : fixed) {
     const Case c = synthetic_case(sz[0], sz[1], 1, 10);
     TrainOptions sparse = core_options();
-    sparse.pfr.jacobian = JacobianForm::Sparse;
+    sparse.solvers.tube.jacobian = JacobianForm::Sparse;
     TrainWorkspace ws;
     const Work w = work_of(run_train(c, sparse, ws));
     const Timing t = median_seconds([&] { (void)run_train(c, sparse, ws); }, budget);

@@ -98,15 +98,16 @@ struct PyCase {
   PyResult run(double rtol, const std::variant<double, std::string>& limit_margin,
                const std::optional<std::variant<double, std::string>>& approach_window) const {
     TrainOptions o;
-    o.pfr.cvode.rtol = rtol;
-    if (const std::string err = o.pfr.cvode.validate(); !err.empty())
+    o.solvers.tube.cvode.rtol = rtol;
+    if (const std::string err = o.solvers.tube.cvode.validate(); !err.empty())
       throw InputError({"rtol", 0, 0}, err);
     o.limit_check.margin = kelvin_difference(limit_margin, "limit_margin");
     if (!(o.limit_check.margin >= 0))
       throw InputError({"limit_margin", 0, 0}, "the margin must be zero or more");
     if (approach_window) {
-      o.equilibrium.approach_T_window = kelvin_difference(*approach_window, "approach_window");
-      if (!(o.equilibrium.approach_T_window > 0))
+      o.solvers.equilibrium.approach_T_window =
+          kelvin_difference(*approach_window, "approach_window");
+      if (!(o.solvers.equilibrium.approach_T_window > 0))
         throw InputError({"approach_window", 0, 0}, "the window must be above zero");
     }
     PyResult r;

@@ -31,7 +31,7 @@ int run_compare_command(const CompareCommandOptions& o) {
   const UnitParser units;
   const Case c = load_case(o.case_file, units);
   CompareOptions options;
-  options.train.pfr.cvode.rtol = o.rtol;
+  options.train.solvers.tube.cvode.rtol = o.rtol;
   options.train.limit_check.margin = parse_limit_margin(o.limit_margin, units);
   const CompareResult result = compare_layouts(c, options);
   // Rendered before anything is written; a failure leaves no file behind.

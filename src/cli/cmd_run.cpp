@@ -37,7 +37,7 @@ int run(const RunOptions& o) {
   const UnitParser units;
   const Case c = load_case(o.case_file, units);
   TrainOptions options;
-  options.pfr.cvode.rtol = o.rtol;
+  options.solvers.tube.cvode.rtol = o.rtol;
   options.limit_check.margin = parse_limit_margin(o.limit_margin, units);
   if (!o.approach_window.empty()) {
     double w = 0;
@@ -49,7 +49,7 @@ int run(const RunOptions& o) {
     if (!(w > 0))
       throw UnitError("--approach-window: the window must be above zero, got \"" +
                       o.approach_window + "\"");
-    options.equilibrium.approach_T_window = w;
+    options.solvers.equilibrium.approach_T_window = w;
   }
   const TrainResult result = run_checked(c, options);  // no NaN or Inf may reach an output
 

@@ -123,7 +123,7 @@ int run_sweep_command(const SweepCommandOptions& o) {
   SweepOptions options;
   options.jobs = o.jobs;
   options.shard = shard;
-  options.train.pfr.cvode.rtol = o.rtol;
+  options.train.solvers.tube.cvode.rtol = o.rtol;
   options.train.limit_check.margin = parse_limit_margin(o.limit_margin, units);
   options.progress = Progress();
   // Runs solved in batches share their steps: the batches are part of the study.

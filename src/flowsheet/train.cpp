@@ -25,7 +25,7 @@ void add_equilibrium_records(const Case& c, const TrainOptions& options, TrainRe
     if (r.kind == StageKind::Exchanger || !r.heat) continue;
     try {
       r.equilibrium =
-          equilibrium_record(mech, r.inlet, r.outlet, *r.heat, basis, options.equilibrium);
+          equilibrium_record(mech, r.inlet, r.outlet, *r.heat, basis, options.solvers.equilibrium);
       if (r.equilibrium) {
         T_lo = std::min(T_lo, r.equilibrium->T_ad_eq);
         T_hi = std::max(T_hi, r.equilibrium->T_ad_eq);
@@ -37,12 +37,13 @@ void add_equilibrium_records(const Case& c, const TrainOptions& options, TrainRe
   }
   // A margin around what the train spans, so the curve frames the paths.
   const double margin = std::max(20.0, 0.1 * (T_hi - T_lo));
-  T_lo = std::max(options.equilibrium.T_min, T_lo - margin);
-  T_hi = std::min(options.equilibrium.T_max, T_hi + margin);
+  T_lo = std::max(options.solvers.equilibrium.T_min, T_lo - margin);
+  T_hi = std::min(options.solvers.equilibrium.T_max, T_hi + margin);
   const int n = std::max(2, options.curve_points);
   try {
-    result.equilibrium_curve = equilibrium_curve(
-        mech, c.feed, basis, {T_lo, T_hi, (T_hi - T_lo) / (n - 1)}, {}, options.equilibrium);
+    result.equilibrium_curve =
+        equilibrium_curve(mech, c.feed, basis, {T_lo, T_hi, (T_hi - T_lo) / (n - 1)}, {},
+                          options.solvers.equilibrium);
     double X_hi = basis.conversion(c.feed);
     for (const auto& p : result.equilibrium_curve) X_hi = std::max(X_hi, p.X_eq);
     const double X_lo = basis.conversion(c.feed);
@@ -50,7 +51,7 @@ void add_equilibrium_records(const Case& c, const TrainOptions& options, TrainRe
       // Stop short of the curve's top, where T_opt runs off the window.
       const double span = X_hi - X_lo;
       for (auto& p : max_rate_locus(mech, c.feed, basis, X_lo + 0.01 * span, X_hi - 0.01 * span, n,
-                                    T_lo, T_hi, options.equilibrium))
+                                    T_lo, T_hi, options.solvers.equilibrium))
         if (p.interior) result.max_rate_locus.push_back(p);
     }
   } catch (const std::exception& e) {
@@ -58,13 +59,8 @@ void add_equilibrium_records(const Case& c, const TrainOptions& options, TrainRe
   }
 }
 
-// The train's stirred-tank options with the train's one ODE setting.
-CstrOptions tank_options(const TrainOptions& options) {
-  CstrOptions o = options.cstr;
-  o.pfr = options.pfr;
-  o.guesses = {};
-  return o;
-}
+// The train's stirred-tank options, from its one SolverOptions.
+CstrOptions tank_options(const TrainOptions& options) { return options.solvers.tank(); }
 
 // What each reactor stage can reach at any size (StageReach), and what a
 // designer must be told about it: a sized bed whose conversion peaks
@@ -83,7 +79,7 @@ void add_reaches(const Case& c, const TrainOptions& options, TrainResult& result
     try {
       r.reach = r.kind == StageKind::Cstr
                     ? cstr_reach(mech, spec, r.inlet, basis, ws.cstr(), tank_options(options))
-                    : pfr_reach(mech, spec, r.inlet, basis, ws.pfr(), options.pfr);
+                    : pfr_reach(mech, spec, r.inlet, basis, ws.pfr(), options.solvers.tube);
     } catch (const std::exception& e) {
       result.warnings.push_back(
           fmt::format("stage {}: what it can reach at any size not computed: {}", r.id, e.what()));
@@ -143,7 +139,7 @@ TrainResult run_train(const Case& c, const TrainOptions& options, TrainWorkspace
 
   Stream stream = c.feed;
   CstrOptions tank = tank_options(options);
-  const StageContext ctx{mech, basis, ws.pfr(), ws.cstr(), options.pfr, tank};
+  const StageContext ctx{mech, basis, ws.pfr(), ws.cstr(), options.solvers.tube, tank};
   for (const auto& spec : c.train) {
     // A stirred tank starts from its warm starts, if any.
     tank.guesses = {};
@@ -165,7 +161,7 @@ TrainResult run_train(const Case& c, const TrainOptions& options, TrainWorkspace
 LimitCheck check_limits(const Case& c, const TrainOptions& options,
                         std::span<const StageResult> stages) {
   LimitCheckOptions o = options.limit_check;
-  o.locate = o.locate && options.pfr.full_profile;
+  o.locate = o.locate && options.solvers.tube.full_profile;
   return check_temperature_limits(c.limits, stages, o);
 }
 

@@ -12,7 +12,7 @@ bool train_batchable(const Case& c, const TrainOptions& options) {
   if (options.equilibrium_views) return false;
   for (const auto& spec : c.train)
     if (const auto* r = std::get_if<ReactorSpec>(&spec);
-        r != nullptr && !pfr_batchable(c.mechanism, *r, options.pfr))
+        r != nullptr && !pfr_batchable(c.mechanism, *r, options.solvers.tube))
       return false;
   return true;
 }
@@ -47,7 +47,7 @@ std::vector<TrainResult> run_trains_batched(std::span<const Case* const> cases,
         if (r == nullptr) throw std::invalid_argument("run_trains_batched: layouts differ");
         items[i] = PfrBatchItem{&c.mechanism, r, streams[i], c.conversion_basis()};
       }
-      std::vector<StageResult> done = run_pfr_batch(items, ws.pfr_batch(), options.pfr);
+      std::vector<StageResult> done = run_pfr_batch(items, ws.pfr_batch(), options.solvers.tube);
       for (std::size_t i = 0; i < cases.size(); ++i)
         results[i].stages.push_back(std::move(done[i]));
     }

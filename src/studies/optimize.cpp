@@ -64,7 +64,7 @@ struct Setup {
 double T_opt_or(const Setup& s, const DesignOptions& o, double X, double fallback) {
   try {
     const auto p =
-        max_rate_temperature(s.mech, s.c.feed, s.basis, X, s.T_lo, s.T_hi, o.equilibrium);
+        max_rate_temperature(s.mech, s.c.feed, s.basis, X, s.T_lo, s.T_hi, o.solvers.equilibrium);
     if (p) return std::clamp(p->T, s.T_lo, s.T_hi);
   } catch (const std::exception&) {
     // A start is only a start: the fallback does.
@@ -286,7 +286,7 @@ Case with_train(const Case& c, std::vector<StageSpec> train) {
 AsWrittenDesign as_written(const Setup& s, const DesignOptions& o) {
   AsWrittenDesign a;
   TrainOptions to;
-  to.pfr = o.pfr;
+  to.solvers = o.solvers;
   to.equilibrium_views = false;
   to.limit_check = o.limit_check;
   TrainResult r;
@@ -406,8 +406,7 @@ std::string DesignOptions::validate() const {
   if (!(feasibility_tolerance > 0)) return "feasibility_tolerance must be positive";
   if (auto e = limit_check.validate(); !e.empty()) return "limit_check: " + e;
   if (!(margin >= 0 && std::isfinite(margin))) return "margin must be finite and not negative";
-  if (auto e = pfr.cvode.validate(); !e.empty()) return "pfr.cvode: " + e;
-  if (auto e = equilibrium.validate(); !e.empty()) return "equilibrium: " + e;
+  if (auto e = solvers.validate(); !e.empty()) return "solvers." + e;
   return {};
 }
 
@@ -528,8 +527,7 @@ DesignResult optimize_design(const Case& c, const DesignOptions& options) {
   if (first) {
     try {
       StagingOptions so;
-      so.pfr = options.pfr;
-      so.equilibrium = options.equilibrium;
+      so.solvers = options.solvers;
       // The staging policy keeps the same window as the optimum.
       Case narrowed = c;
       narrowed.limits.T_in_min = T_lo;
@@ -543,7 +541,7 @@ DesignResult optimize_design(const Case& c, const DesignOptions& options) {
   }
 
   const detail::AdiabaticBedModel model(mech, c.feed, s.basis, j, options.quadrature_panels,
-                                        options.quadrature_nodes, options.equilibrium);
+                                        options.quadrature_nodes, options.solvers.equilibrium);
   int reactors = 0;
   for (const auto& sp : c.train) reactors += std::holds_alternative<ReactorSpec>(sp) ? 1 : 0;
   std::vector<int> counts;
@@ -594,9 +592,8 @@ DesignResult optimize_design(const Case& c, const DesignOptions& options) {
 
   // The independent check: the layout as a train, run by run_train.
   TrainOptions to;
-  to.pfr = options.pfr;
+  to.solvers = options.solvers;
   to.equilibrium_views = options.equilibrium_views;
-  to.equilibrium = options.equilibrium;
   to.limit_check = options.limit_check;
   const Case trial = with_train(c, design_train(c, res, res.best));
   res.train = run_train(trial, to);

@@ -118,7 +118,7 @@ void check_as_given(const Setup& s, const StagingOptions& o, const SunContext& c
     } else {
       const auto& rs = std::get<ReactorSpec>(spec);
       if (const auto eq =
-              adiabatic_equilibrium(mech, stream, rs.heat, s.basis, {}, o.equilibrium)) {
+              adiabatic_equilibrium(mech, stream, rs.heat, s.basis, {}, o.solvers.equilibrium)) {
         a.X_ad_eq = eq->X;
         a.T_ad_eq = eq->stream.T;
       }
@@ -137,8 +137,8 @@ void check_as_given(const Setup& s, const StagingOptions& o, const SunContext& c
         }
         continue;
       }
-      r = rs.type == ReactorType::Pfr ? run_pfr(mech, rs, stream, s.basis, ctx, o.pfr)
-                                      : run_cstr(mech, rs, stream, s.basis, ctx, o.cstr);
+      r = rs.type == ReactorType::Pfr ? run_pfr(mech, rs, stream, s.basis, ctx, o.solvers.tube)
+                                      : run_cstr(mech, rs, stream, s.basis, ctx, o.solvers.tank());
       last_spec = &rs;
       last_inlet = stream;
       last_X_ad_eq = a.X_ad_eq;
@@ -172,7 +172,7 @@ void check_as_given(const Setup& s, const StagingOptions& o, const SunContext& c
       const auto& rs = std::get<ReactorSpec>(
           *std::find_if(s.c.train.begin(), s.c.train.end(),
                         [&](const StageSpec& sp) { return stage_id(sp) == r.id; }));
-      if (auto q = limit_crossing(s, rs, r.inlet, ctx, o.pfr)) p = *q;
+      if (auto q = limit_crossing(s, rs, r.inlet, ctx, o.solvers.tube)) p = *q;
     }
     p.T = *s.T_limit;
     const bool before = p.X < s.target - kConversionTolerance;
@@ -235,7 +235,7 @@ void check_as_given(const Setup& s, const StagingOptions& o, const SunContext& c
       bigger.volume.reset();
       bigger.catalyst_mass.reset();
       bigger.target_conversion = s.target;
-      PfrOptions po = o.pfr;
+      PfrOptions po = o.solvers.tube;
       po.stop_temperature = s.T_limit;
       const StageResult r = run_pfr(mech, bigger, last_inlet, s.basis, ctx, po);
       if (r.conversion < s.target - kConversionTolerance) {
@@ -276,9 +276,9 @@ void check_as_given(const Setup& s, const StagingOptions& o, const SunContext& c
 // The maximum-rate temperature at conversion X, clipped to the window.
 double max_rate_return(const Setup& s, const StagingOptions& o, double X) {
   const auto& lim = s.c.limits;
-  const double lo = lim.T_in_min.value_or(o.equilibrium.T_min);
-  const double hi = lim.T_max.value_or(o.equilibrium.T_max);
-  const auto p = max_rate_temperature(s.mech, s.c.feed, s.basis, X, lo, hi, o.equilibrium);
+  const double lo = lim.T_in_min.value_or(o.solvers.equilibrium.T_min);
+  const double hi = lim.T_max.value_or(o.solvers.equilibrium.T_max);
+  const auto p = max_rate_temperature(s.mech, s.c.feed, s.basis, X, lo, hi, o.solvers.equilibrium);
   // Empty: the reaction runs backwards at every allowed temperature; the
   // next bed then cannot progress and the loop says so.
   return p ? std::clamp(p->T, lo, hi) : s.c.feed.T;
@@ -293,8 +293,8 @@ double return_temperature(const Setup& s, const StagingOptions& o, double X, dou
   const double T_opt = max_rate_return(s, o, X);
   const double floor = T_out - o.min_return * (T_out - T_in);
   const double T = s.exothermic ? std::min(T_opt, floor) : std::max(T_opt, floor);
-  const double lo = s.c.limits.T_in_min.value_or(o.equilibrium.T_min);
-  const double hi = s.c.limits.T_max.value_or(o.equilibrium.T_max);
+  const double lo = s.c.limits.T_in_min.value_or(o.solvers.equilibrium.T_min);
+  const double hi = s.c.limits.T_max.value_or(o.solvers.equilibrium.T_max);
   return std::clamp(T, lo, hi);
 }
 
@@ -304,7 +304,7 @@ double return_temperature(const Setup& s, const StagingOptions& o, double X, dou
 // moves away from T_opt, which falls with X. Empty where the line ends.
 std::optional<double> floor_shortfall(const Setup& s, const StagingOptions& o, const Stream& inlet,
                                       double X_in, double X) {
-  const auto line = adiabatic_line(s.mech, inlet, s.basis, X_in, X, 2, o.equilibrium);
+  const auto line = adiabatic_line(s.mech, inlet, s.basis, X_in, X, 2, o.solvers.equilibrium);
   if (line.truncated || line.points.size() < 2) return std::nullopt;
   const double T = line.points.back().T;
   const double back = s.exothermic ? T - max_rate_return(s, o, X) : max_rate_return(s, o, X) - T;
@@ -341,7 +341,7 @@ void build_staged(const Setup& s, const StagingOptions& o, const ReactorSpec& fi
   bed.heat = HeatMode::Adiabatic;
   bed.bulk_density = first.bulk_density;
   bed.where = first.where;
-  PfrOptions po = o.pfr;
+  PfrOptions po = o.solvers.tube;
   po.stop_temperature = s.T_limit;
   const char* exchanger_prefix = s.exothermic ? "C" : "H";
 
@@ -364,8 +364,8 @@ void build_staged(const Setup& s, const StagingOptions& o, const ReactorSpec& fi
                                     s.limit_label, celsius(*s.T_limit));
       break;
     }
-    const auto eq =
-        adiabatic_equilibrium(mech, stream, HeatMode::Adiabatic, s.basis, {}, o.equilibrium);
+    const auto eq = adiabatic_equilibrium(mech, stream, HeatMode::Adiabatic, s.basis, {},
+                                          o.solvers.equilibrium);
     if (!eq || eq->X - X <= kNoProgress) {
       res.staged_note = fmt::format(
           "bed {} cannot progress: fed at {} and X = {:.4f}, the stream is already at "
@@ -421,7 +421,7 @@ void build_staged(const Setup& s, const StagingOptions& o, const ReactorSpec& fi
 
   if (o.return_to == ReturnTo::Inlet)
     res.conversion_limit =
-        equilibrium_conversion(mech, s.c.feed, s.c.feed.T, s.basis, {}, o.equilibrium);
+        equilibrium_conversion(mech, s.c.feed, s.c.feed.T, s.basis, {}, o.solvers.equilibrium);
 
   if (res.target_reached) {
     if (res.beds_needed == 1)
@@ -481,8 +481,7 @@ std::string StagingOptions::validate() const {
     return fmt::format("min_return must lie in [0, 1), got {:g}", min_return);
   if (max_beds < 1 || max_beds > 100)
     return fmt::format("max_beds must lie between 1 and 100, got {}", max_beds);
-  if (auto e = pfr.cvode.validate(); !e.empty()) return "pfr.cvode: " + e;
-  if (auto e = equilibrium.validate(); !e.empty()) return "equilibrium: " + e;
+  if (auto e = solvers.validate(); !e.empty()) return "solvers." + e;
   return {};
 }
 
@@ -550,7 +549,7 @@ StagingResult run_staging(const Case& c, const StagingOptions& options) {
   build_staged(s, options, *first, ctx, res);
 
   LimitCheckOptions lo = options.limit_check;
-  lo.locate = lo.locate && options.pfr.full_profile;
+  lo.locate = lo.locate && options.solvers.tube.full_profile;
   res.as_given_run.limit_check = check_temperature_limits(c.limits, res.as_given_run.stages, lo);
   res.staged_run.limit_check = check_temperature_limits(c.limits, res.staged_run.stages, lo);
 
@@ -564,8 +563,7 @@ StagingResult run_staging(const Case& c, const StagingOptions& options) {
   for (const auto& w : design_warnings(c, res.staged_run)) add_unique(w);
   if (options.equilibrium_views) {
     TrainOptions views;
-    views.pfr = options.pfr;
-    views.equilibrium = options.equilibrium;
+    views.solvers = options.solvers;
     for (TrainResult* t : {&res.as_given_run, &res.staged_run})
       if (!t->stages.empty()) add_equilibrium_views(c, views, *t);
   }

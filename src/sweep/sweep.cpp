@@ -14,7 +14,7 @@ namespace {
 TrainOptions run_options(const OutputSpec& outputs, const SweepOptions& options) {
   TrainOptions t = options.train;
   t.equilibrium_views = outputs.needs_equilibrium_views();
-  t.pfr.full_profile = outputs.needs_equilibrium_views();
+  t.solvers.tube.full_profile = outputs.needs_equilibrium_views();
   return t;
 }
 

@@ -13,6 +13,7 @@
 #include "rxtrain/stages/limit_check.hpp"
 #include "rxtrain/stages/pfr.hpp"
 #include "rxtrain/stages/pfr_batch.hpp"
+#include "rxtrain/stages/solver_options.hpp"
 #include "rxtrain/stages/stage.hpp"
 
 namespace rxtrain {
@@ -26,11 +27,9 @@ struct CstrWarmStart {
 };
 
 struct TrainOptions {
-  // Every tubular integration of the train (CVODE tolerances, sizing
-  // limit), those inside stirred tanks (their adiabatic-limit start and
-  // reach) included: cstr.pfr is not read, so one setting holds throughout.
-  PfrOptions pfr;
-  CstrOptions cstr;  // stirred tanks (Newton, starts); its guesses and pfr are not read
+  // How every stage is solved (solver_options.hpp): one setting holds for
+  // every tube, every tank and the tubular runs inside the tanks.
+  SolverOptions solvers;
   // Warm starts of stirred-tank stages by stage id, passed on as that
   // stage's CstrOptions::guesses. They add Newton starts, so a result may
   // differ from a cold run's in the last digits and may hold a steady
@@ -41,7 +40,6 @@ struct TrainOptions {
   // Levenspiel curves of every reactor stage. Off for callers
   // that run a train many times and need only its outlet.
   bool equilibrium_views = true;
-  EquilibriumOptions equilibrium;
   // Points of the equilibrium curve and of the maximum-rate locus.
   int curve_points = 61;
   // The check of every reactor stage against the case's limits (its

@@ -64,6 +64,7 @@
 #include "rxtrain/models/equilibrium.hpp"
 #include "rxtrain/stages/limit_check.hpp"
 #include "rxtrain/stages/pfr.hpp"
+#include "rxtrain/stages/solver_options.hpp"
 
 namespace rxtrain {
 
@@ -119,9 +120,9 @@ struct DesignOptions {
   // locus, Levenspiel curves) to the optimum's train (DesignResult::train),
   // for figures.
   bool equilibrium_views = false;
-  // Solvers of the checks and comparisons.
-  PfrOptions pfr;
-  EquilibriumOptions equilibrium;
+  // How the checks and comparisons (and the equilibrium computations of
+  // the optimization) are solved.
+  SolverOptions solvers;
   // Called now and then while optimizing (from the calling thread).
   std::function<void(const DesignProgress&)> progress;
 

@@ -41,6 +41,7 @@
 #include "rxtrain/case/case.hpp"
 #include "rxtrain/flowsheet/train.hpp"
 #include "rxtrain/models/equilibrium.hpp"
+#include "rxtrain/stages/solver_options.hpp"
 
 namespace rxtrain {
 
@@ -78,10 +79,8 @@ struct StagingOptions {
   // Add the equilibrium views (the equilibrium curve, the maximum-rate
   // locus, Levenspiel curves) to as_given_run and staged_run, for figures.
   bool equilibrium_views = false;
-  // Solvers of the stages (as given and staged).
-  PfrOptions pfr;
-  CstrOptions cstr;
-  EquilibriumOptions equilibrium;
+  // How the stages (as given and staged) are solved.
+  SolverOptions solvers;
 
   // Empty when valid, else a message naming the bad field.
   std::string validate() const;
