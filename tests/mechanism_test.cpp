@@ -408,3 +408,42 @@ TEST_CASE("heat of reaction follows Kirchhoff's law", "[mechanism]") {
   CHECK(m.dCp(0, 700) == Approx(-4.0).epsilon(1e-14));
   CHECK(m.dH(0, 700) == Approx(-40e3 + -4.0 * (700 - kReferenceT)).epsilon(1e-13));
 }
+
+// The rate law written once (Mechanism::evaluate): its value at given
+// driving quantities is the documented power law (by hand), and its
+// gradient in d matches central differences (finite-difference check,
+// step 1e-6 relative: truncation ~1e-12, far below the 1e-7 asked).
+TEST_CASE("evaluate gives the rate law's value and its gradient in the driving quantities",
+          "[mechanism]") {
+  const Mechanism m = make_test_mechanism(Phase::Gas);
+  const double T = 560.0;
+  // Partial pressures (R2, R3 are pressure-driven), Pa; arbitrary values.
+  std::vector<double> d{3.0e5, 1.5e5, 0.8e5, 0.4e5, 1.0e5};
+  std::vector<double> g(5, 0.0);
+  // R2: C => D, irreversible, order 1.3 in C, Arrhenius with T_ref = 550 K.
+  const auto v2 = m.evaluate(1, T, d.data(), g.data());
+  const double k2 = 3.0e-4 * std::exp(-80e3 / kGasConstant * (1 / T - 1 / 550.0));
+  CHECK(v2.k == Approx(k2).epsilon(1e-14));
+  CHECK(v2.rate() == Approx(k2 * std::pow(d[2], 1.3)).epsilon(1e-13));
+  CHECK(g[2] == Approx(1.3 * std::pow(d[2], 0.3)).epsilon(1e-13));
+  CHECK(v2.c_rev == 0.0);
+  // R3: 2 A <=> D, orders 2 and 0.7; value = d_A^2 d_D^0.7 - c_rev d_A^0 d_D^1.7.
+  const auto v3 = m.evaluate(2, T, d.data(), g.data());
+  const double value3 = d[0] * d[0] * std::pow(d[3], 0.7) - v3.c_rev * std::pow(d[3], 1.7);
+  CHECK(v3.value == Approx(value3).epsilon(1e-13));
+  for (int i : {0, 3}) {
+    std::vector<double> up = d, down = d;
+    const double h = 1e-6 * d[i];
+    up[i] += h;
+    down[i] -= h;
+    const double fd =
+        (m.evaluate(2, T, up.data()).value - m.evaluate(2, T, down.data()).value) / (2 * h);
+    INFO("species " << i);
+    CHECK(g[i] == Approx(fd).epsilon(1e-7));
+  }
+  // The reverse coefficient's temperature derivative, by central differences.
+  const double hT = 1e-4;
+  const double fd_T =
+      (m.evaluate(2, T + hT, d.data()).c_rev - m.evaluate(2, T - hT, d.data()).c_rev) / (2 * hT);
+  CHECK(v3.dc_rev_dT == Approx(fd_T).epsilon(1e-6));
+}

@@ -62,6 +62,14 @@ Mechanism::Mechanism(Phase phase, std::vector<Species> species, std::vector<Reac
                                      : -std::log(kStandardPressure);
     compiled_.push_back(std::move(c));
   }
+  if (phase_ == Phase::Liquid)
+    for (const auto& sp : species_) liquid_v_.push_back(sp.liquid_molar_volume().value());
+}
+
+double Mechanism::liquid_volume_flow(const double* F) const {
+  double v = 0;
+  for (int i = 0; i < n_species(); ++i) v += F[i] * liquid_v_[i];
+  return v;
 }
 
 int Mechanism::index_of(const std::string& id) const {
@@ -77,7 +85,7 @@ double Mechanism::volumetric_flow(double T, double P, const double* F) const {
     for (int i = 0; i < n_species(); ++i) Ft += F[i];
     v = Ft * kGasConstant * T / P;
   } else {
-    for (int i = 0; i < n_species(); ++i) v += F[i] * *species_[i].mw / *species_[i].density;
+    v = liquid_volume_flow(F);
   }
   return v;
 }
@@ -158,9 +166,9 @@ Mechanism::Scale Mechanism::driving_scale(Driving driving, double T, double P,
     }
     s.dphi_dFt = -s.phi / Ft;
   } else {
+    // The rate laws count flows below zero (round-off) as zero.
     double v = 0;
-    for (int i = 0; i < n_species(); ++i)
-      v += std::max(F[i], 0.0) * *species_[i].mw / *species_[i].density;
+    for (int i = 0; i < n_species(); ++i) v += std::max(F[i], 0.0) * liquid_v_[i];
     s.phi = 1.0 / v;
     s.dphi_dv = -s.phi * s.phi;
   }
@@ -178,31 +186,55 @@ void Mechanism::activity_scale(int j, double T, double& ln_s, double& dln_s_dT) 
   }
 }
 
+Mechanism::RateLawValue Mechanism::evaluate(int j, double T, const double* d, double* g) const {
+  const auto& rx = reactions_[j];
+  const auto& parts = compiled_[j].parts;
+  RateLawValue v;
+  v.k = rate_constant(j, T);
+  v.dk_dT = v.k * rx.rate.Ea / (kGasConstant * T * T);  // same for both Arrhenius forms
+  double fwd = 1, rev = 1;
+  for (const auto& p : parts) {
+    fwd *= safe_pow(d[p.i], p.forward_exp);
+    if (rx.reversible) rev *= safe_pow(d[p.i], p.reverse_exp);
+  }
+  if (rx.reversible) {
+    double ln_s, dln_s;
+    activity_scale(j, T, ln_s, dln_s);
+    v.c_rev = std::exp(compiled_[j].dnu * ln_s - ln_K(j, T));
+    v.dc_rev_dT = v.c_rev * (compiled_[j].dnu * dln_s - dln_K_dT(j, T));
+    v.rev = rev;
+  }
+  v.value = fwd - v.c_rev * v.rev;
+  if (g) {
+    // g_i = d(value)/d(d_i): products over the other participants.
+    for (const auto& p : parts) {
+      double gf = safe_pow_derivative(d[p.i], p.forward_exp);
+      double gr = rx.reversible ? safe_pow_derivative(d[p.i], p.reverse_exp) : 0.0;
+      for (const auto& q : parts) {
+        if (q.i == p.i) continue;
+        gf *= safe_pow(d[q.i], q.forward_exp);
+        if (rx.reversible) gr *= safe_pow(d[q.i], q.reverse_exp);
+      }
+      g[p.i] = gf - v.c_rev * gr;
+    }
+  }
+  return v;
+}
+
 void Mechanism::rates(double T, double P, const double* F, double* r) const {
   const int nr = n_reactions();
-  Scale conc{}, press{};
-  bool have_conc = false, have_press = false;
+  Scales scales;
+  // Driving quantities (participants only) on the stack for mechanisms of
+  // up to 64 species, so that the right-hand side never allocates there.
+  constexpr int kStack = 64;
+  double stack[kStack];
+  std::vector<double> heap;
+  if (n_species() > kStack) heap.resize(static_cast<std::size_t>(n_species()));
+  double* d = n_species() > kStack ? heap.data() : stack;
   for (int j = 0; j < nr; ++j) {
-    const auto& rx = reactions_[j];
-    const bool pressure = rx.rate.driving == Driving::Pressure;
-    if (pressure && !have_press)
-      press = driving_scale(Driving::Pressure, T, P, F), have_press = true;
-    if (!pressure && !have_conc)
-      conc = driving_scale(Driving::Concentration, T, P, F), have_conc = true;
-    const double phi = pressure ? press.phi : conc.phi;
-    double fwd = 1, rev = 1;
-    for (const auto& p : compiled_[j].parts) {
-      const double d = std::max(F[p.i], 0.0) * phi;
-      fwd *= safe_pow(d, p.forward_exp);
-      if (rx.reversible) rev *= safe_pow(d, p.reverse_exp);
-    }
-    double value = fwd;
-    if (rx.reversible) {
-      double ln_s, dln_s;
-      activity_scale(j, T, ln_s, dln_s);
-      value -= rev * std::exp(compiled_[j].dnu * ln_s - ln_K(j, T));
-    }
-    r[j] = rate_constant(j, T) * value;
+    const Scale& sc = scale_for(reactions_[j].rate.driving, T, P, F, scales);
+    for (const auto& p : compiled_[j].parts) d[p.i] = std::max(F[p.i], 0.0) * sc.phi;
+    r[j] = evaluate(j, T, d).rate();
   }
 }
 
@@ -219,36 +251,10 @@ const Mechanism::Scale& Mechanism::scale_for(Driving driving, double T, double P
 double Mechanism::reaction_derivatives(int j, double T, const Scale& sc, const double* F, double* d,
                                        double* g, double* direct, double& dilution,
                                        double& dr_dT) const {
-  const auto& rx = reactions_[j];
   const auto& parts = compiled_[j].parts;
   for (const auto& p : parts) d[p.i] = std::max(F[p.i], 0.0) * sc.phi;
-
-  // Forward and reverse power products and their gradients in d.
-  const double k = rate_constant(j, T);
-  double fwd = 1, rev = 1;
-  for (const auto& p : parts) {
-    fwd *= safe_pow(d[p.i], p.forward_exp);
-    if (rx.reversible) rev *= safe_pow(d[p.i], p.reverse_exp);
-  }
-  double c_rev = 0, dc_rev_dT = 0;  // rev * c_rev is the reverse term
-  if (rx.reversible) {
-    double ln_s, dln_s;
-    activity_scale(j, T, ln_s, dln_s);
-    c_rev = std::exp(compiled_[j].dnu * ln_s - ln_K(j, T));
-    dc_rev_dT = c_rev * (compiled_[j].dnu * dln_s - dln_K_dT(j, T));
-  }
-  // g_i = d(value)/d(d_i), products over the other participants.
-  for (const auto& p : parts) {
-    double gf = safe_pow_derivative(d[p.i], p.forward_exp);
-    double gr = rx.reversible ? safe_pow_derivative(d[p.i], p.reverse_exp) : 0.0;
-    for (const auto& q : parts) {
-      if (q.i == p.i) continue;
-      gf *= safe_pow(d[q.i], q.forward_exp);
-      if (rx.reversible) gr *= safe_pow(d[q.i], q.reverse_exp);
-    }
-    g[p.i] = gf - c_rev * gr;
-  }
-  const double value = fwd - c_rev * rev;
+  const RateLawValue v = evaluate(j, T, d, g);
+  const double k = v.k;
 
   // Chain rule through d_i = max(F_i,0) * phi(F, T).
   double sum_gF = 0;  // sum_i g_i * F_i+ (only participants have g != 0)
@@ -256,14 +262,13 @@ double Mechanism::reaction_derivatives(int j, double T, const Scale& sc, const d
   for (std::size_t q = 0; q < parts.size(); ++q)
     direct[q] = F[parts[q].i] > 0 ? k * g[parts[q].i] * sc.phi : 0.0;
   dilution = k * sum_gF * (phase_ == Phase::Gas ? sc.dphi_dFt : sc.dphi_dv);
-  const double dk_dT = k * rx.rate.Ea / (kGasConstant * T * T);  // same for both Arrhenius forms
-  dr_dT = dk_dT * value + k * (sum_gF * sc.dphi_dT - dc_rev_dT * rev);
-  return k * value;
+  dr_dT = v.dk_dT * v.value + k * (sum_gF * sc.dphi_dT - v.dc_rev_dT * v.rev);
+  return v.rate();
 }
 
 double Mechanism::dilution_weight(int k, const double* F) const {
   if (!(F[k] > 0)) return 0.0;
-  return phase_ == Phase::Gas ? 1.0 : *species_[k].mw / *species_[k].density;
+  return phase_ == Phase::Gas ? 1.0 : liquid_v_[k];
 }
 
 void Mechanism::rates_and_jacobian(double T, double P, const double* F, double* r,
@@ -296,7 +301,7 @@ void Mechanism::rates_and_jacobian(double T, double P, const double* F, double* 
         if (F[i] > 0) dr_dF(j, i) += dilution;
     } else {
       for (int i = 0; i < n; ++i)
-        if (F[i] > 0) dr_dF(j, i) += dilution * *species_[i].mw / *species_[i].density;
+        if (F[i] > 0) dr_dF(j, i) += dilution * liquid_v_[i];
     }
     dr_dT(j) = dT;
   }

@@ -82,10 +82,7 @@ double ln_phi(const Mechanism& mech, double P, const std::vector<double>& F) {
     for (double f : F) Ft += f;
     return std::log(P / kStandardPressure) - std::log(Ft);
   }
-  double v = 0;
-  for (int i = 0; i < mech.n_species(); ++i)
-    v += F[i] * *mech.species()[i].mw / *mech.species()[i].density;
-  return -std::log(kLiquidStandardConcentration * v);
+  return -std::log(kLiquidStandardConcentration * mech.liquid_volume_flow(F.data()));
 }
 
 double sum_nu(const Reaction& rx) {
@@ -138,7 +135,7 @@ class EquilibriumSystem {
     // Liquid volume per mole of each species (ideal mixing).
     if (mech.phase() == Phase::Liquid) {
       w_.resize(n);
-      for (int i = 0; i < n; ++i) w_[i] = *mech.species()[i].mw / *mech.species()[i].density;
+      for (int i = 0; i < n; ++i) w_[i] = mech.species()[i].liquid_molar_volume().value();
     }
   }
 

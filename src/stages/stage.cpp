@@ -62,7 +62,7 @@ void add_space_velocities(const Mechanism& mech, StageResult& r, std::span<const
     all_mw = all_mw && s.mw.has_value();
     all_density = all_density && s.density.has_value();
     if (s.mw) mass += F[i] * *s.mw;
-    if (s.mw && s.density) liquid += F[i] * *s.mw / *s.density;
+    if (const auto v = s.liquid_molar_volume()) liquid += F[i] * *v;
   }
   r.whsv.reset();
   r.lhsv.reset();

@@ -38,6 +38,11 @@ class Mechanism {
   double cp(int i, double T) const;
   // sum_i F_i h_sensible_i(T), W (reference 298.15 K).
   double sensible_enthalpy_flow(double T, const double* F) const;
+  // Volume flow of a liquid by ideal mixing, sum of F_i MW_i / rho_i
+  // (m3/s), from the molar volumes computed once (Species::
+  // liquid_molar_volume); the rate laws use the same volumes with flows
+  // below zero counted as zero. Liquid phase only.
+  double liquid_volume_flow(const double* F) const;
   // Mass flow, kg/s; requires every mw.
   double mass_flow(const double* F) const;
 
@@ -46,6 +51,23 @@ class Mechanism {
   double ln_K(int j, double T) const;  // activity basis
   double dln_K_dT(int j, double T) const;
   double rate_constant(int j, double T) const;
+
+  // Reaction j's rate law, written once: at the driving quantities d_i
+  // (partial pressures or concentrations, indexed by species; only the
+  // reaction's participants are read),
+  //   r_j = k(T) * value,  value = prod d_i^o_i - c_rev(T) prod d_i^(o_i + nu_i)
+  // (c_rev = 0 for an irreversible reaction; for a reversible one
+  // c_rev = s^sum(nu) / K(T), s the activity scale). With g, also
+  // g_i = d value / d d_i for the participants. rates() and both Jacobians
+  // call it; a new rate law (adsorption terms, activity) changes it alone.
+  struct RateLawValue {
+    double k = 0, dk_dT = 0;          // rate constant and dk/dT
+    double value = 0;                 // the driving-force part: r = k * value
+    double rev = 0;                   // prod d_i^(o_i + nu_i) (reversible)
+    double c_rev = 0, dc_rev_dT = 0;  // reverse coefficient and its dT
+    double rate() const { return k * value; }
+  };
+  RateLawValue evaluate(int j, double T, const double* d, double* g = nullptr) const;
 
   // Rates r_j in each reaction's own basis (see kinetics.hpp).
   void rates(double T, double P, const double* F, double* r) const;
@@ -123,6 +145,7 @@ class Mechanism {
   std::vector<Species> species_;
   std::vector<Reaction> reactions_;
   std::vector<Compiled> compiled_;
+  std::vector<double> liquid_v_;  // MW_i / rho_i (liquid phase), m3/mol
   // Heat-capacity pieces of every species, species i's at
   // cp_pieces_[cp_start_[i] .. cp_start_[i+1]).
   std::vector<CpPiece> cp_pieces_;
