@@ -13,6 +13,7 @@
 //    back in the canonical form with their real exponent.
 #include "rxtrain/base/units.hpp"
 
+#include <fmt/format.h>
 #include <udunits2.h>
 
 #include <array>
@@ -594,6 +595,10 @@ bool UnitParser::is_convertible(std::string_view unit, const SiUnit& expected) c
   const std::string_view u = trim(unit);
   if (u.empty()) return false;
   return std::holds_alternative<double>(impl_->convert(1.0, u, expected, UnitOptions{}));
+}
+
+std::string temperature_words(double T) {
+  return fmt::format("{:.2f} °C / {:.2f} K", T - kZeroCelsius, T);
 }
 
 }  // namespace rxtrain

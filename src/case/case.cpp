@@ -1002,9 +1002,9 @@ TemperatureLimits Loader::read_limits(const YAML::Node& node) const {
   if (const auto* n = f.find("T_in_min")) lim.T_in_min = temperature(*n, "T_in_min of limits");
   if (lim.T_max && lim.T_in_min && !(*lim.T_in_min < *lim.T_max))
     fail(*f.find("T_in_min"),
-         fmt::format("T_in_min of limits ({:.2f} K) must be below T_max ({:.2f} K): T_in_min is "
-                     "the lowest useful bed inlet temperature, T_max the highest allowed in a bed",
-                     *lim.T_in_min, *lim.T_max));
+         fmt::format("T_in_min of limits ({}) must be below T_max ({}): T_in_min is the lowest "
+                     "useful bed inlet temperature, T_max the highest allowed in a bed",
+                     temperature_words(*lim.T_in_min), temperature_words(*lim.T_max)));
   return lim;
 }
 

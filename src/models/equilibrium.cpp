@@ -8,6 +8,7 @@
 #include <stdexcept>
 
 #include "rxtrain/base/error.hpp"
+#include "rxtrain/base/units.hpp"
 #include "rxtrain/solvers/scalar_root.hpp"
 
 namespace rxtrain {
@@ -527,9 +528,8 @@ EquilibriumState solve_equilibrium_impl(const Mechanism& mech, const Stream& inl
       if (nr.converged || res <= o.newton.residual_tolerance) break;
       if (!(res < 0.5 * best) || attempt >= 20)
         throw SolverError(
-            fmt::format("equilibrium at T = {:.2f} K: {} (max |ln Q - ln K| = "
-                        "{:.3g})",
-                        T, nr.message.empty() ? "Newton failed" : nr.message, std::min(res, best)));
+            fmt::format("equilibrium at {}: {} (max |ln Q - ln K| = {:.3g})", temperature_words(T),
+                        nr.message.empty() ? "Newton failed" : nr.message, std::min(res, best)));
       best = res;
     }
   }
@@ -687,9 +687,10 @@ std::optional<EquilibriumState> adiabatic_equilibrium(const Mechanism& mech, con
   const auto T = root_outward(energy, inlet.T, options, "adiabatic equilibrium");
   if (!T)
     throw SolverError(
-        fmt::format("adiabatic equilibrium: the adiabatic line from {:.2f} K "
-                    "meets equilibrium nowhere between {:g} K and {:g} K",
-                    inlet.T, options.T_min, options.T_max));
+        fmt::format("adiabatic equilibrium: the adiabatic line from {} meets equilibrium "
+                    "nowhere between {} and {}",
+                    temperature_words(inlet.T), temperature_words(options.T_min),
+                    temperature_words(options.T_max)));
   return solve_equilibrium_impl(mech, inlet, *T, basis, fixed_extents, options);
 }
 

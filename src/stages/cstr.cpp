@@ -12,6 +12,7 @@
 #include <stdexcept>
 
 #include "rxtrain/base/error.hpp"
+#include "rxtrain/base/units.hpp"
 #include "rxtrain/models/energy_balance.hpp"
 #include "rxtrain/stages/exchanger.hpp"
 
@@ -575,7 +576,7 @@ std::string temperature_list(const std::vector<State>& states) {
   std::string list;
   for (size_t k = 0; k < states.size(); ++k) {
     if (k > 0) list += (k + 1 == states.size()) ? " and " : ", ";
-    list += fmt::format("{:.2f} K", states[k].T);
+    list += temperature_words(states[k].T);
   }
   return list;
 }
@@ -756,8 +757,8 @@ struct Tank {
                   [](const State& a, const State& b) { return a.T < b.T; });
         warnings.push_back(fmt::format(
             "stage {}: {} steady states found at the sized volume (T = {}); reporting the one "
-            "at the target conversion (T = {:.2f} K), which start-up from the feed {}",
-            spec.id, states.size(), temperature_list(states), out.T,
+            "at the target conversion ({}), which start-up from the feed {}",
+            spec.id, states.size(), temperature_list(states), temperature_words(out.T),
             reached ? "reaches" : "does not reach"));
       }
     } catch (const SolverError& e) {

@@ -10,6 +10,7 @@
 
 #include "pfr_system.hpp"
 #include "rxtrain/base/error.hpp"
+#include "rxtrain/base/units.hpp"
 #include "rxtrain/solvers/quadrature.hpp"
 
 namespace rxtrain {
@@ -298,8 +299,8 @@ StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream
   }
   res.stats = ode.stats();
   if (stopped)
-    res.stats.message =
-        fmt::format("stopped at the stop temperature {:.2f} K at V = {:.6g} m3", T_stop, V);
+    res.stats.message = fmt::format("stopped at the stop temperature {} at V = {:.6g} m3",
+                                    temperature_words(T_stop), V);
   if (reached) detail::add_size_sensitivity(mech, rate_multipliers(mech, spec), basis, res);
   return res;
 }

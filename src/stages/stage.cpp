@@ -169,14 +169,14 @@ std::string out_of_reach_text(const ReactorSpec& spec, double X_target, const St
   for (const auto& sp : mech.species()) ids.push_back(sp.id);
   const std::string end = reach_end_text(reach, spec.heat, ids);
   if (!reach.peak_inside() || !reach.V_at_X_max)
-    return head + fmt::format(" (at T = {:.2f} K, {})", reach.T_at_X_max, end);
+    return head + fmt::format(" (at {}, {})", temperature_words(reach.T_at_X_max), end);
   std::string where = fmt::format("V = {:.4g} m3", *reach.V_at_X_max);
   if (spec.bulk_density)
     where += fmt::format(", {:.4g} kg of catalyst", *reach.V_at_X_max * *spec.bulk_density);
-  return head + fmt::format(
-                    " (at {}, T = {:.2f} K); a larger stage gives conversion back, to X = {:.4f} "
-                    "at T = {:.2f} K ({})",
-                    where, reach.T_at_X_max, reach.X_end, reach.T_end, end);
+  return head +
+         fmt::format(" (at {}, {}); a larger stage gives conversion back, to X = {:.4f} at {} ({})",
+                     where, temperature_words(reach.T_at_X_max), reach.X_end,
+                     temperature_words(reach.T_end), end);
 }
 
 std::vector<double> rate_multipliers(const Mechanism& mech, const ReactorSpec& spec) {

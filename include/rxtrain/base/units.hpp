@@ -22,6 +22,11 @@ namespace rxtrain {
 // offset every display of °C and the GHSV's normal conditions use.
 inline constexpr double kZeroCelsius = 273.15;  // K
 
+// A temperature for a message a person reads (errors and warnings made in
+// the core): "438.76 °C / 711.91 K", °C first as every screen shows it, the
+// kelvin beside it for whoever checks against SI output.
+std::string temperature_words(double T);
+
 // A unit string the parser does not accept, or one of the wrong dimension.
 // The message says what was expected and what was given; the case loader adds
 // the file location and the field name.

@@ -8,6 +8,7 @@
 #include <numbers>
 
 #include "rxtrain/base/error.hpp"
+#include "rxtrain/base/units.hpp"
 
 namespace rxtrain::detail {
 
@@ -82,10 +83,10 @@ double AdiabaticBedModel::temperature(double X_in, double T_in, double X) const 
     if (std::abs(T_next - T) <= 1e-14 * T) return T_next;
     T = T_next;
   }
-  throw SolverError(fmt::format(
-      "optimize: the energy balance of an adiabatic bed from X = {:.6f}, T = {:.2f} K has no "
-      "temperature at X = {:.6f}",
-      X_in, T_in, X));
+  throw SolverError(
+      fmt::format("optimize: the energy balance of an adiabatic bed from X = {:.6f} at {} has no "
+                  "temperature at X = {:.6f}",
+                  X_in, temperature_words(T_in), X));
 }
 
 double AdiabaticBedModel::rate(double X, double T) const {
