@@ -193,6 +193,8 @@ std::string out_of_range_text(std::string_view label, const FieldRange& range, s
     shown = fmt::format("{:g}", v);
   else if (!given.empty())
     shown = fmt::format("\"{}\"", given);
+  else if (si.empty())
+    shown = fmt::format("{:g} (SI)", v);  // a rate constant: its unit depends on its law
   else
     shown = fmt::format("{:g} {}", v, si);
   if (range == kPositive && si == "K")
@@ -218,6 +220,11 @@ void for_each_case_field(const Case& c,
         if (present(kSpecs[i].kind, c, k)) visit(kSpecs[i], kSpecs[i].owner == O::Case ? -1 : k);
     s = e;
   }
+}
+
+std::string case_field_text(const CaseFieldSpec& spec, double v, int digits) {
+  if (spec.si.empty() || spec.plain()) return fmt::format("{:.{}g}", v, digits);
+  return fmt::format("{:.{}g} {}", v, digits, spec.si);
 }
 
 std::vector<CaseField> case_fields(const Case& c) {

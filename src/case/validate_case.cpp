@@ -126,13 +126,16 @@ void Checker::mechanism() const {
 }
 
 // Names are built only for a field out of range: a sweep checks every run.
+// The flows come before the total and fractions made of them.
 void Checker::ranges() const {
-  for_each_case_field(c, [&](const CaseFieldSpec& s, int k) {
-    const double v = case_field_value(c, s, k);
-    if (s.range.contains(v)) return;
-    const CaseField f = case_field(c, s, k);
-    fail(where(f), out_of_range_text(f.label, f.range, s.si, v));
-  });
+  for (const bool derived : {false, true})
+    for_each_case_field(c, [&](const CaseFieldSpec& s, int k) {
+      if (s.derived() != derived) return;
+      const double v = case_field_value(c, s, k);
+      if (s.range.contains(v)) return;
+      const CaseField f = case_field(c, s, k);
+      fail(where(f), out_of_range_text(f.label, f.range, s.si, v));
+    });
 }
 
 void Checker::feed_and_key() const {

@@ -30,12 +30,13 @@ bool top_level_key(const std::string& line) {
 
 // Enough digits that the run reproduces the optimizer's numbers to far
 // below what the tests compare (1e-10 relative).
-std::string number(double v) { return fmt::format("{:.12g}", v); }
+constexpr int kDigits = 12;
+std::string number(double v) { return fmt::format("{:.{}g}", v, kDigits); }
 
 // "key: value unit" of a field of the table (case_fields.hpp), in SI.
 std::string field_text(CaseFieldKind kind, double v) {
   const CaseFieldSpec& s = case_field_spec(kind);
-  return fmt::format("{}: {} {}", s.key(), number(v), s.si);
+  return fmt::format("{}: {}", s.key(), case_field_text(s, v, kDigits));
 }
 
 }  // namespace

@@ -92,6 +92,11 @@ struct CaseFieldSpec {
   SweepUse sweep;
 
   bool plain() const { return si == "1"; }
+  // A view of other fields: the feed's total flow and mole fractions, of
+  // its flows (a Case holds flows only).
+  bool derived() const {
+    return kind == CaseFieldKind::FeedFlow || kind == CaseFieldKind::FeedFraction;
+  }
   // The YAML key the field is written under: the path's last part.
   std::string_view key() const { return path.substr(path.rfind('.') + 1); }
 };
@@ -110,6 +115,11 @@ SiUnit rate_constant_unit(const RateLaw& law, std::string description = "a rate 
 // value and unit are shown instead.
 std::string out_of_range_text(std::string_view label, const FieldRange& range, std::string_view si,
                               double v, std::string_view given = {});
+
+// A value of the field as a case file gives it: `digits` significant
+// digits and the field's SI unit ("1.5 kg"); a plain number or a rate
+// constant bare (a bare number is SI).
+std::string case_field_text(const CaseFieldSpec& spec, double v, int digits);
 
 // One field of one case.
 struct CaseField {
