@@ -154,7 +154,7 @@ TEST_CASE("sweep: a bad path or unit is an input error and writes nothing", "[cl
   r = run_rxtrain("sweep '" + c + "' --vary train.R1.catalyst=1m3:4m3:13" + csv);
   CHECK(r.exit_code == 2);
   CHECK(r.err.find("kg") != std::string::npos);
-  r = run_rxtrain("sweep '" + c + "' --vary feed.T=120degC:200degC:5 --output X,R7.T_max" + csv);
+  r = run_rxtrain("sweep '" + c + "' --vary feed.T=120degC:200degC:5 --output X,R7.T_peak" + csv);
   CHECK(r.exit_code == 2);
   CHECK(r.err.find("--output") != std::string::npos);
   CHECK_FALSE(fs::exists(dir / "x.csv"));
@@ -177,7 +177,7 @@ TEST_CASE("sweep: a grid writes one row per point and a report", "[cli][sweep]")
   CHECK(fs::exists(dir / "rep" / "report.html"));
   CHECK(fs::exists(dir / "rep" / "sweep-X.svg"));
   // Axes name the quantity and its display unit, not the raw path.
-  const std::string peak = slurp(dir / "rep" / "sweep-T2-T_max.svg");
+  const std::string peak = slurp(dir / "rep" / "sweep-T2-T_peak.svg");
   CHECK(peak.find("Peak temperature of T2 (°C)") != std::string::npos);
   CHECK(slurp(dir / "rep" / "sweep-X.svg").find("Overall conversion of the key (–)") !=
         std::string::npos);

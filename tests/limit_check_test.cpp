@@ -237,7 +237,7 @@ TEST_CASE("a sweep row whose bed passes T_max is over_limit, with its column and
   const auto k = static_cast<std::size_t>(col - names.begin());
   REQUIRE(p.outputs[k]);
   const auto t_max =
-      static_cast<std::size_t>(std::find(names.begin(), names.end(), "R1.T_max") - names.begin());
+      static_cast<std::size_t>(std::find(names.begin(), names.end(), "R1.T_peak") - names.begin());
   CHECK(*p.outputs[k] == Approx(*p.outputs[t_max] - test::HotBed::T_max).epsilon(1e-14));
   CHECK_THAT(p.message, Catch::Contains("stage R1 passes T_max"));
   // Counted, and kept in the percentiles (the hot tail is the point).

@@ -196,7 +196,7 @@ TEST_CASE("every number in the run's JSON has its unit in the units object", "[r
 }
 
 TEST_CASE("sweep columns read in words and display units", "[report]") {
-  const Quantity peak = column_quantity("R1.T_max", "K");
+  const Quantity peak = column_quantity("R1.T_peak", "K");
   CHECK(peak.label() == "Peak temperature of R1 (°C)");
   CHECK(peak.show(700.0) == Approx(426.85));  // 700 K - 273.15
   CHECK(peak.text(700.0) == "426.85");

@@ -1,9 +1,10 @@
 // One SolverOptions for a whole train: what a caller sets once reaches every
 // tube, every tank and the tubular runs inside the tanks.
+#include "rxtrain/stages/solver_options.hpp"
+
 #include <catch2/catch.hpp>
 
 #include "rxtrain/flowsheet/train.hpp"
-#include "rxtrain/stages/solver_options.hpp"
 
 using namespace rxtrain;
 

@@ -204,10 +204,12 @@ TEST_CASE("bad study definitions are input errors naming the option", "[sweep]")
   CHECK(e.find("--runs") == 0);
   e = input_error([&] { f.study({"feed.T=300K:310K:3"}, {"feed.P=normal(1bar,0.1bar)"}, 10); });
   CHECK(e.find("cannot be combined") != std::string::npos);
-  e = input_error([&] { OutputSpec::parse("X,R9.T_max", f.c); });
+  e = input_error([&] { OutputSpec::parse("X,R9.T_peak", f.c); });
   CHECK(e.find("--output") == 0);
-  e = input_error([&] { OutputSpec::parse("R1.Tmax", f.c); });
-  CHECK(e.find("did you mean \"R1.T_max\"") != std::string::npos);
+  e = input_error([&] { OutputSpec::parse("R1.Tpeak", f.c); });
+  CHECK(e.find("did you mean \"R1.T_peak\"") != std::string::npos);
+  e = input_error([&] { OutputSpec::parse("X,R1.T_max", f.c); });
+  CHECK(e.find("is now \"R1.T_peak\"") != std::string::npos);
   e = input_error([&] { Shard::parse("5/4"); });
   CHECK(e.find("--shard") == 0);
 }
@@ -250,7 +252,7 @@ TEST_CASE("the case editor writes fields the way the loader reads them", "[sweep
 TEST_CASE("a sweep point equals the run of the case written with that value", "[sweep]") {
   const Fixture f(demo_text());
   const Study s = f.study({"feed.T=140degC:160degC:3"});
-  const OutputSpec o = OutputSpec::parse("X,T_out,R1.T_max,R2.outlet.T,E1.duty", f.c);
+  const OutputSpec o = OutputSpec::parse("X,T_out,R1.T_peak,R2.outlet.T,E1.duty", f.c);
   const auto rows = run(f, s, o);
   REQUIRE(rows.size() == 3);
   std::string text = demo_text();

@@ -26,6 +26,7 @@
 #include "rxtrain/base/input_limits.hpp"
 #include "rxtrain/base/suggest.hpp"
 #include "rxtrain/base/units.hpp"
+#include "rxtrain/case/case_fields.hpp"
 #include "rxtrain/chem/equation.hpp"
 #include "rxtrain/chem/formula.hpp"
 
@@ -108,19 +109,12 @@ std::string join_and(const std::vector<std::string>& items) {
   return out;
 }
 
-// ---- units the fields expect ---------------------------------------------
+// ---- units of the fields outside the table (case_fields.hpp) -------------
 
 SiUnit temperature_unit() { return SiUnit::of("K", "a temperature"); }
-SiUnit pressure_unit() { return SiUnit::of("Pa", "a pressure"); }
-SiUnit volume_unit() { return SiUnit::of("m3", "a volume"); }
-SiUnit molar_flow_unit() { return SiUnit::of("mol/s", "a molar flow"); }
-SiUnit mass_unit() { return SiUnit::of("kg", "a mass"); }
-SiUnit density_unit() { return SiUnit::of("kg/m3", "a density"); }
-SiUnit molar_mass_unit() { return SiUnit::of("kg/mol", "a molar mass"); }
 SiUnit molar_energy_unit() { return SiUnit::of("J/mol", "an energy per mole"); }
 SiUnit molar_cp_unit() { return SiUnit::of("J/(mol*K)", "a molar heat capacity"); }
 SiUnit molar_entropy_unit() { return SiUnit::of("J/(mol*K)", "a molar entropy"); }
-SiUnit power_unit() { return SiUnit::of("W", "a power"); }
 
 // Chemistry tables quote kcal/mol and cal/(mol K) in thermochemical calories.
 UnitOptions chemistry_units() {
@@ -204,8 +198,14 @@ class Loader {
   std::string text(const YAML::Node& n, std::string_view field, std::string_view expected) const;
   double quantity(const YAML::Node& n, std::string_view field, const SiUnit& unit,
                   const UnitOptions& options = {}) const;
-  double positive_quantity(const YAML::Node& n, std::string_view field, const SiUnit& unit) const;
   double temperature(const YAML::Node& n, std::string_view field) const;
+  void check_range(const YAML::Node& n, std::string_view field, const FieldRange& range,
+                   std::string_view si, double v) const;
+  // A field of the table (case_fields.hpp), which gives its unit, range
+  // and name; `id` is its owner's. `unit` replaces the table's (a rate
+  // constant's, which depends on its law).
+  double field(const YAML::Node& n, CaseFieldKind kind, std::string_view id = {},
+               const SiUnit* unit = nullptr) const;
   double number(const YAML::Node& n, std::string_view field) const;
   std::vector<double> numbers(const YAML::Node& n, std::string_view field, std::size_t min_count,
                               std::size_t max_count) const;
@@ -334,18 +334,27 @@ double Loader::quantity(const YAML::Node& n, std::string_view field, const SiUni
   }
 }
 
-double Loader::positive_quantity(const YAML::Node& n, std::string_view field,
-                                 const SiUnit& unit) const {
-  const double v = quantity(n, field, unit);
-  if (v <= 0) fail(n, fmt::format("{} must be positive, got \"{}\"", field, n.Scalar()));
+double Loader::temperature(const YAML::Node& n, std::string_view field) const {
+  const double v = quantity(n, field, temperature_unit());
+  check_range(n, field, kPositive, "K", v);
   return v;
 }
 
-double Loader::temperature(const YAML::Node& n, std::string_view field) const {
-  const double v = quantity(n, field, temperature_unit());
-  if (v <= 0)
-    fail(n,
-         fmt::format("{} must be above absolute zero, got \"{}\" ({:g} K)", field, n.Scalar(), v));
+void Loader::check_range(const YAML::Node& n, std::string_view field, const FieldRange& range,
+                         std::string_view si, double v) const {
+  if (!range.contains(v)) fail(n, out_of_range_text(field, range, si, v, n.Scalar()));
+}
+
+double Loader::field(const YAML::Node& n, CaseFieldKind kind, std::string_view id,
+                     const SiUnit* unit) const {
+  const CaseFieldSpec& s = case_field_spec(kind);
+  const std::string label = fmt::format(fmt::runtime(s.label), id);
+  const double v =
+      s.plain() ? number(n, label)
+                : quantity(n, label,
+                           unit ? *unit : SiUnit::of(std::string(s.si), std::string(s.quantity)),
+                           s.chemistry_units ? chemistry_units() : UnitOptions{});
+  check_range(n, label, s.range, s.si, v);
   return v;
 }
 
@@ -446,7 +455,7 @@ Species Loader::read_one_species(const YAML::Node& node, std::size_t index) {
     }
   }
   if (const auto* n = f.find("mw")) {
-    sp.mw = positive_quantity(*n, "mw of " + ctx, molar_mass_unit());
+    sp.mw = field(*n, CaseFieldKind::MolarMass, sp.id);
     if (sp.formula) {
       const double from_formula = molar_mass(*sp.formula);
       if (std::abs(*sp.mw - from_formula) > kMwTolerance * from_formula)
@@ -462,8 +471,7 @@ Species Loader::read_one_species(const YAML::Node& node, std::size_t index) {
     sp.thermo = read_thermo(*n, sp.id);
     info.thermo = *n;
   }
-  if (const auto* n = f.find("density"))
-    sp.density = positive_quantity(*n, "density of " + ctx, density_unit());
+  if (const auto* n = f.find("density")) sp.density = field(*n, CaseFieldKind::Density, sp.id);
 
   if (phase_ == Phase::Liquid) {
     // Liquid volumes come from mw / density of every species (ideal mixing).
@@ -514,7 +522,7 @@ CpModel Loader::read_cp(const YAML::Node& node, const std::string& owner) const 
   const std::string field = "cp of species " + owner;
   if (node.IsScalar()) {
     const double cp = quantity(node, field, molar_cp_unit(), chemistry_units());
-    if (cp <= 0) fail(node, fmt::format("{} must be positive, got \"{}\"", field, node.Scalar()));
+    check_range(node, field, kPositive, molar_cp_unit().numerator, cp);
     return CpConstant{cp};
   }
   if (node.IsSequence()) {
@@ -731,19 +739,16 @@ RateLaw Loader::read_rate(const YAML::Node& node, const std::string& rx_id,
 
   const bool per_cat = law.basis == RateBasis::Catalyst;
   const bool pressure = law.driving == Driving::Pressure;
-  SiUnit unit = SiUnit::per_power(
-      per_cat ? "mol/(kg*s)" : "mol/(m3*s)", pressure ? "Pa" : "mol/m3", total_order,
-      fmt::format("a rate constant for a rate per {} with {} driving force and orders summing "
-                  "to {:g}",
-                  per_cat ? "kg of catalyst" : "m3 of reactor",
-                  pressure ? "a partial-pressure" : "a concentration", total_order));
-  const YAML::Node& a = f.need("A", "the pre-exponential factor, e.g. A: 3.0e-2 mol/(kg*s*bar)");
-  law.A = quantity(a, "A of reaction " + rx_id, unit);
-  if (law.A <= 0)
-    fail(a, fmt::format("A of reaction {} must be positive, got \"{}\"", rx_id, a.Scalar()));
-  law.Ea = quantity(f.need("Ea", "the activation energy, e.g. Ea: 65 kJ/mol (0 for none)"),
-                    "Ea of reaction " + rx_id, molar_energy_unit(), chemistry_units());
-  if (const auto* n = f.find("T_ref")) law.T_ref = temperature(*n, "T_ref of reaction " + rx_id);
+  const SiUnit unit = rate_constant_unit(
+      law, fmt::format("a rate constant for a rate per {} with {} driving force and orders summing "
+                       "to {:g}",
+                       per_cat ? "kg of catalyst" : "m3 of reactor",
+                       pressure ? "a partial-pressure" : "a concentration", total_order));
+  law.A = field(f.need("A", "the pre-exponential factor, e.g. A: 3.0e-2 mol/(kg*s*bar)"),
+                CaseFieldKind::RateA, rx_id, &unit);
+  law.Ea = field(f.need("Ea", "the activation energy, e.g. Ea: 65 kJ/mol (0 for none)"),
+                 CaseFieldKind::RateEa, rx_id);
+  if (const auto* n = f.find("T_ref")) law.T_ref = field(*n, CaseFieldKind::RateTref, rx_id);
   return law;
 }
 
@@ -805,12 +810,12 @@ EquilibriumSource Loader::read_equilibrium(const Fields& f, const Reaction& rx) 
   }
   Fields e(*this, *n, field);
   e.check({"K", "T", "dH"});
-  const YAML::Node& k = e.need("K", "the equilibrium constant at T (activity basis), e.g. K: 2.9");
-  eq.K_ref = number(k, "K of " + field);
-  if (eq.K_ref <= 0) fail(k, fmt::format("K of {} must be positive, got {:g}", field, eq.K_ref));
-  eq.T_ref = temperature(e.need("T", "the temperature of K, e.g. T: 450 K"), "T of " + field);
+  eq.K_ref = this->field(e.need("K", "the equilibrium constant at T (activity basis), e.g. K: 2.9"),
+                         CaseFieldKind::EquilibriumK, rx.id);
+  eq.T_ref = this->field(e.need("T", "the temperature of K, e.g. T: 450 K"),
+                         CaseFieldKind::EquilibriumT, rx.id);
   if (const auto* d = e.find("dH"))
-    eq.dH = quantity(*d, "dH of " + field, molar_energy_unit(), chemistry_units());
+    eq.dH = this->field(*d, CaseFieldKind::EquilibriumDH, rx.id);
   else
     eq.dH = rx.dH_298 + sensible_sum(rx.nu, eq.T_ref);
   eq.kind = EquilibriumSource::Kind::VantHoff;
@@ -822,9 +827,8 @@ EquilibriumSource Loader::read_equilibrium(const Fields& f, const Reaction& rx) 
 void Loader::read_feed(const YAML::Node& node) {
   Fields f(*this, node, "feed");
   f.check({"T", "P", "flow", "composition", "flows"});
-  feed_.T = temperature(f.need("T", "the feed temperature, e.g. T: 130 degC"), "feed T");
-  feed_.P = positive_quantity(f.need("P", "the feed pressure, e.g. P: 25 bar"), "feed P",
-                              pressure_unit());
+  feed_.T = field(f.need("T", "the feed temperature, e.g. T: 130 degC"), CaseFieldKind::FeedT);
+  feed_.P = field(f.need("P", "the feed pressure, e.g. P: 25 bar"), CaseFieldKind::FeedP);
   feed_.F.assign(species_.size(), 0.0);
   const YAML::Node* flow = f.find("flow");
   const YAML::Node* comp = f.find("composition");
@@ -840,10 +844,7 @@ void Loader::read_feed(const YAML::Node& node) {
     double total = 0;
     for (const auto& e : fl.entries()) {
       const int i = species_index(e.key, "feed flows");
-      const double F = quantity(e.value, "feed flow of " + e.name, molar_flow_unit());
-      if (F < 0)
-        fail(e.value, fmt::format("feed flow of {} must not be negative, got \"{}\"", e.name,
-                                  e.value.Scalar()));
+      const double F = field(e.value, CaseFieldKind::FeedFlowOf, e.name);
       feed_.F[i] = F;
       total += F;
     }
@@ -858,14 +859,12 @@ void Loader::read_feed(const YAML::Node& node) {
     fail(node,
          "feed gives composition but is missing \"flow\" (the total molar flow, e.g. "
          "flow: 50 kmol/h)");
-  const double total = positive_quantity(*flow, "feed flow", molar_flow_unit());
+  const double total = field(*flow, CaseFieldKind::FeedFlow);
   Fields c(*this, *comp, "feed composition");
   double sum = 0;
   for (const auto& e : c.entries()) {
     const int i = species_index(e.key, "feed composition");
-    const double x = number(e.value, "mole fraction of " + e.name);
-    if (x < 0 || x > 1)
-      fail(e.value, fmt::format("mole fraction of {} must lie in [0, 1], got {:g}", e.name, x));
+    const double x = field(e.value, CaseFieldKind::FeedFraction, e.name);
     feed_.F[i] = x * total;
     sum += x;
   }
@@ -927,8 +926,8 @@ StageSpec Loader::read_stage(const YAML::Node& node, std::size_t index) {
       fail(node, fmt::format("{} needs exactly one of T_out (outlet temperature, e.g. T_out: 125 "
                              "degC) or duty (heat added, e.g. duty: -1.2 MW)",
                              ctx));
-    if (t_out) x.T_out = temperature(*t_out, "T_out of " + ctx);
-    if (duty) x.duty = quantity(*duty, "duty of " + ctx, power_unit());
+    if (t_out) x.T_out = field(*t_out, CaseFieldKind::ExchangerTout, sid);
+    if (duty) x.duty = field(*duty, CaseFieldKind::ExchangerDuty, sid);
     return x;
   }
 
@@ -952,11 +951,10 @@ StageSpec Loader::read_stage(const YAML::Node& node, std::size_t index) {
                            "bulk_density) or target (e.g. target: {{conversion: 0.65}})",
                            ctx));
   if (const auto* n = f.find("bulk_density"))
-    r.bulk_density = positive_quantity(*n, "bulk_density of " + ctx, density_unit());
-  if (const auto* n = f.find("volume"))
-    r.volume = positive_quantity(*n, "volume of " + ctx, volume_unit());
+    r.bulk_density = field(*n, CaseFieldKind::BulkDensity, sid);
+  if (const auto* n = f.find("volume")) r.volume = field(*n, CaseFieldKind::Volume, sid);
   if (const auto* n = f.find("catalyst")) {
-    r.catalyst_mass = positive_quantity(*n, "catalyst of " + ctx, mass_unit());
+    r.catalyst_mass = field(*n, CaseFieldKind::Catalyst, sid);
     if (!r.bulk_density)
       fail(node, fmt::format("{} gives catalyst but is missing \"bulk_density\", which turns the "
                              "catalyst mass into a bed volume (e.g. bulk_density: 750 kg/m3)",
@@ -967,11 +965,7 @@ StageSpec Loader::read_stage(const YAML::Node& node, std::size_t index) {
     Fields t(*this, *n, "target of " + ctx);
     t.check({"conversion"});
     const YAML::Node& x = t.need("conversion", "the overall key conversion to reach, e.g. 0.65");
-    const double X = number(x, "target conversion of " + ctx);
-    if (!(X > 0 && X < 1))
-      fail(x, fmt::format("target conversion of {} must lie strictly between 0 and 1, got {:g}",
-                          ctx, X));
-    r.target_conversion = X;
+    r.target_conversion = field(x, CaseFieldKind::StageTarget, sid);
   }
   if (const auto* n = f.find("heat"))
     r.heat = choice(*n, "heat of " + ctx, {"adiabatic", "isothermal"}) == "isothermal"
@@ -987,10 +981,7 @@ double Loader::read_train_target(const YAML::Node& node) const {
   t.check({"conversion"});
   const YAML::Node& x =
       t.need("conversion", "the overall key conversion the train should reach, e.g. 0.92");
-  const double X = number(x, "target conversion");
-  if (!(X > 0 && X < 1))
-    fail(x, fmt::format("target conversion must lie strictly between 0 and 1, got {:g}", X));
-  return X;
+  return field(x, CaseFieldKind::TrainTarget);
 }
 
 TemperatureLimits Loader::read_limits(const YAML::Node& node) const {
@@ -998,8 +989,8 @@ TemperatureLimits Loader::read_limits(const YAML::Node& node) const {
   f.check({"T_max", "T_in_min"});
   TemperatureLimits lim;
   lim.where = at(node);
-  if (const auto* n = f.find("T_max")) lim.T_max = temperature(*n, "T_max of limits");
-  if (const auto* n = f.find("T_in_min")) lim.T_in_min = temperature(*n, "T_in_min of limits");
+  if (const auto* n = f.find("T_max")) lim.T_max = field(*n, CaseFieldKind::LimitTmax);
+  if (const auto* n = f.find("T_in_min")) lim.T_in_min = field(*n, CaseFieldKind::LimitTinMin);
   if (lim.T_max && lim.T_in_min && !(*lim.T_in_min < *lim.T_max))
     fail(*f.find("T_in_min"),
          fmt::format("T_in_min of limits ({}) must be below T_max ({}): T_in_min is the lowest "
@@ -1151,6 +1142,9 @@ Case Loader::load(const YAML::Node& root) {
   c.key = key_;
   c.train = std::move(train_);
   c.warnings = std::move(warnings_);
+  // Every check above has a location in the file and comes first; this
+  // keeps a loaded case and one built in code to one standard.
+  validate_case(c);
   return c;
 }
 

@@ -39,7 +39,7 @@ Quantity column_quantity(const std::string& name, const std::string& si_unit) {
   if (name == "T_out") return celsius("Temperature at the train outlet");
   if (name == "feed.T") return celsius("Feed temperature");
   if (name == "feed.P") return {"Feed pressure", "bar", 1e-5};
-  if (field == "T_max" || field == "T_peak") return celsius("Peak temperature" + of);
+  if (field == "T_peak") return celsius("Peak temperature" + of);
   if (field == "T_min") return celsius("Lowest temperature" + of);
   if (field == "outlet.T" || field == "T_out") return celsius("Outlet temperature" + of);
   if (field == "conversion") return {"Conversion at the outlet" + of, "–"};

@@ -9,6 +9,7 @@
 
 #include "rxtrain/base/error.hpp"
 #include "rxtrain/base/units.hpp"
+#include "rxtrain/case/case_fields.hpp"
 
 namespace rxtrain {
 
@@ -81,10 +82,13 @@ Case layout_case(const Case& c, const std::vector<ReactorSpec>& reactors,
 // Runs one layout. `X_sized`: the highest stage target of a sized train,
 // which every layout of it must still reach at its outlet. A layout whose
 // stage passes the case's temperature limits is infeasible, with every
-// such stage's finding as its reason (limit_check.hpp).
+// such stage's finding as its reason (limit_check.hpp); so is a layout the
+// loader would refuse (validate_case), with the loader's message.
 Layout evaluate(const Case& lc, const TrainOptions& options, const std::optional<double>& X_sized) {
   Layout l;
   try {
+    // A layout is a case built here: checked as a loaded one before it runs.
+    validate_case(lc);
     const TrainResult res = run_train(lc, options);
     double V = 0, W = 0, T_hi = res.feed.T;
     bool all_catalyst = true;

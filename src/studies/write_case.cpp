@@ -8,6 +8,7 @@
 #include "rxtrain/base/caution.hpp"
 #include "rxtrain/base/error.hpp"
 #include "rxtrain/base/units.hpp"
+#include "rxtrain/case/case_fields.hpp"
 
 namespace rxtrain {
 
@@ -29,7 +30,14 @@ bool top_level_key(const std::string& line) {
 
 // Enough digits that the run reproduces the optimizer's numbers to far
 // below what the tests compare (1e-10 relative).
-std::string number(double v) { return fmt::format("{:.12g}", v); }
+constexpr int kDigits = 12;
+std::string number(double v) { return fmt::format("{:.{}g}", v, kDigits); }
+
+// "key: value unit" of a field of the table (case_fields.hpp), in SI.
+std::string field_text(CaseFieldKind kind, double v) {
+  const CaseFieldSpec& s = case_field_spec(kind);
+  return fmt::format("{}: {}", s.key(), case_field_text(s, v, kDigits));
+}
 
 }  // namespace
 
@@ -61,25 +69,32 @@ std::string design_case_text(const Case& c, const std::string& case_text, const 
       "# The optimum layout written by `rxtrain optimize` ({} adiabatic beds, total {} {} {}{}).\n"
       "# {}\n",
       layout.beds, d.catalyst_objective ? "catalyst" : "volume", number(total),
-      d.catalyst_objective ? "kg" : "m3",
+      case_field_spec(d.catalyst_objective ? CaseFieldKind::Catalyst : CaseFieldKind::Volume).si,
       d.margin > 0 ? fmt::format("; every bed temperature kept {:g} K inside the limits (--margin)",
                                  d.margin)
                    : "",
       kCaution);
   block += "train:\n";
   const auto train = design_train(c, d, layout);
+  {
+    // The layout as a case built in code, checked before any text of it.
+    Case built = c;
+    built.train = train;
+    validate_case(built);
+  }
   std::size_t bed = 0;
   for (const auto& sp : train) {
     if (const auto* x = std::get_if<ExchangerSpec>(&sp)) {
-      block += fmt::format("  - {{type: exchanger, id: {}, T_out: {} K}}   # {:.2f} degC\n", x->id,
-                           number(*x->T_out), *x->T_out - kZeroCelsius);
+      block += fmt::format("  - {{type: exchanger, id: {}, {}}}   # {:.2f} degC\n", x->id,
+                           field_text(CaseFieldKind::ExchangerTout, *x->T_out),
+                           *x->T_out - kZeroCelsius);
       continue;
     }
     const auto& r = std::get<ReactorSpec>(sp);
     const DesignBed& b = layout.bed[bed++];
-    std::string size = r.catalyst_mass ? fmt::format("catalyst: {} kg", number(*r.catalyst_mass))
-                                       : fmt::format("volume: {} m3", number(*r.volume));
-    if (r.bulk_density) size += fmt::format(", bulk_density: {} kg/m3", number(*r.bulk_density));
+    std::string size = r.catalyst_mass ? field_text(CaseFieldKind::Catalyst, *r.catalyst_mass)
+                                       : field_text(CaseFieldKind::Volume, *r.volume);
+    if (r.bulk_density) size += ", " + field_text(CaseFieldKind::BulkDensity, *r.bulk_density);
     block +=
         fmt::format("  - {{type: pfr, id: {}, {}}}   # X {:.6f} -> {:.6f}, {:.2f} -> {:.2f} degC\n",
                     r.id, size, b.X_in, b.X_out, b.T_in - kZeroCelsius, b.T_out - kZeroCelsius);

@@ -11,29 +11,24 @@ namespace rxtrain::sweep {
 
 namespace {
 
-// Stage fields that are plain numbers in the JSON result.
-constexpr const char* kScalarFields[] = {
-    "volume",  "catalyst_mass", "bulk_density", "space_time", "space_velocity", "ghsv",
-    "whsv",    "lhsv",          "duty",         "T_max",      "T_min",          "conversion",
-    "inlet.T", "inlet.P",       "outlet.T",     "outlet.P",   "over_limit"};
-constexpr const char* kEquilibriumFields[] = {"X_ad_eq", "T_ad_eq", "X_eq_out", "approach_X",
-                                              "approach_T"};
-
 std::optional<double> finite(std::optional<double> v) {
   if (v && std::isfinite(*v)) return v;
   return std::nullopt;
 }
 
 std::vector<std::string> all_names(const Case& c) {
-  std::vector<std::string> names{"X", "T_out"};
+  std::vector<std::string> names;
+  for (const auto& f : train_result_fields()) names.emplace_back(f.name);
   for (const auto& s : c.train) {
     const std::string& id = stage_id(s);
-    for (const char* f : kScalarFields) names.push_back(id + "." + f);
-    for (const auto& sp : c.mechanism.species()) {
-      names.push_back(id + ".inlet.flows." + sp.id);
-      names.push_back(id + ".outlet.flows." + sp.id);
-    }
-    for (const char* f : kEquilibriumFields) names.push_back(id + ".equilibrium." + f);
+    for (const auto& f : stage_result_fields())
+      if (f.scope == ResultScope::Stage) names.push_back(id + "." + std::string(f.name));
+    for (const auto& sp : c.mechanism.species())
+      for (const auto& f : stage_result_fields())
+        if (f.scope == ResultScope::Flow)
+          names.push_back(fmt::format("{}.{}.{}", id, f.name, sp.id));
+    for (const auto& f : stage_result_fields())
+      if (f.scope == ResultScope::Equilibrium) names.push_back(id + "." + std::string(f.name));
   }
   return names;
 }
@@ -44,7 +39,8 @@ OutputColumn column(const std::string& name, const Case& c) {
                      fmt::format("unknown output \"{}\"{}", name,
                                  suggest_nearest(name, all_names(c), "valid names", 40)));
   };
-  if (name == "X" || name == "T_out") return {name, -1, name, -1};
+  for (const auto& f : train_result_fields())
+    if (name == f.name) return {name, -1, name, -1, &f};
   const auto dot = name.find('.');
   if (dot == std::string::npos) return fail();
   const std::string id = name.substr(0, dot), field = name.substr(dot + 1);
@@ -52,36 +48,23 @@ OutputColumn column(const std::string& name, const Case& c) {
   for (std::size_t k = 0; k < c.train.size(); ++k)
     if (stage_id(c.train[k]) == id) stage = static_cast<int>(k);
   if (stage < 0) return fail();
-  for (const char* f : kScalarFields)
-    if (field == f) return {name, stage, field, -1};
-  for (const char* f : kEquilibriumFields)
-    if (field == std::string("equilibrium.") + f) return {name, stage, field, -1};
-  for (const char* side : {"inlet.flows.", "outlet.flows."}) {
-    const std::string pre = side;
+  if (field == "T_max")  // the name this column had before T_max meant only the limit
+    throw InputError({"--output", 0, 0},
+                     fmt::format("\"{}\" is now \"{}.T_peak\" (the stage's hottest point; "
+                                 "T_max names only the catalyst's limit)",
+                                 name, id));
+  for (const auto& f : stage_result_fields()) {
+    if (f.scope != ResultScope::Flow) {
+      if (field == f.name) return {name, stage, field, -1, &f};
+      continue;
+    }
+    const std::string pre = std::string(f.name) + ".";
     if (field.rfind(pre, 0) == 0) {
       const int i = c.mechanism.index_of(field.substr(pre.size()));
-      if (i >= 0) return {name, stage, pre.substr(0, pre.size() - 1), i};
+      if (i >= 0) return {name, stage, std::string(f.name), i, &f};
     }
   }
   return fail();
-}
-
-const char* unit_of(const OutputColumn& col) {
-  const std::string& f = col.field;
-  const auto ends = [&](std::string_view tail) { return f.ends_with(tail); };
-  if (col.species >= 0) return "mol/s";
-  if (f == "T_out" || f == "T_max" || f == "T_min" || f == "over_limit" || ends(".T") ||
-      ends("T_ad_eq") || ends("approach_T"))
-    return "K";
-  if (ends(".P")) return "Pa";
-  if (f == "volume") return "m3";
-  if (f == "catalyst_mass") return "kg";
-  if (f == "bulk_density") return "kg/m3";
-  if (f == "space_time") return "s";
-  if (f == "space_velocity") return "1/s";
-  if (f == "ghsv" || f == "whsv" || f == "lhsv") return "1/h";
-  if (f == "duty") return "W";
-  return "-";  // X, conversion, equilibrium X and approach_X
 }
 
 }  // namespace
@@ -92,9 +75,9 @@ OutputSpec OutputSpec::defaults(const Case& c) {
   o.columns_.push_back(column("T_out", c));
   for (const auto& s : c.train) {
     const std::string& id = stage_id(s);
-    // An exchanger's T_max is only the hotter of its ends; its outlet says it.
+    // An exchanger's peak is only the hotter of its ends; its outlet says it.
     if (!std::holds_alternative<ExchangerSpec>(s)) {
-      o.columns_.push_back(column(id + ".T_max", c));
+      o.columns_.push_back(column(id + ".T_peak", c));
       if (c.limits.T_max || c.limits.T_in_min) o.columns_.push_back(column(id + ".over_limit", c));
     }
     o.columns_.push_back(column(id + ".outlet.T", c));
@@ -118,7 +101,7 @@ OutputSpec OutputSpec::parse(const std::string& list, const Case& c) {
     if (name.empty())
       throw InputError({"--output", 0, 0},
                        fmt::format("empty column name in \"{}\"; expected names separated by "
-                                   "commas, e.g. X,T_out,R1.T_max",
+                                   "commas, e.g. X,T_out,R1.T_peak",
                                    list));
     for (const auto& existing : o.columns_)
       if (existing.name == name)
@@ -137,53 +120,21 @@ std::vector<std::string> OutputSpec::names() const {
 
 std::vector<std::string> OutputSpec::units() const {
   std::vector<std::string> out;
-  for (const auto& col : columns_) out.emplace_back(unit_of(col));
+  for (const auto& col : columns_) out.emplace_back(col.spec->unit);
   return out;
 }
 
 bool OutputSpec::needs_equilibrium_views() const {
   for (const auto& col : columns_)
-    if (col.field.rfind("equilibrium.", 0) == 0) return true;
+    if (col.spec->scope == ResultScope::Equilibrium) return true;
   return false;
 }
 
 std::optional<double> OutputSpec::extract(std::size_t i, const TrainResult& r) const {
   const OutputColumn& col = columns_[i];
-  if (col.stage < 0) return finite(col.field == "X" ? r.conversion : r.outlet.T);
-  const StageResult& s = r.stages.at(static_cast<std::size_t>(col.stage));
-  const std::string& f = col.field;
-  if (col.species >= 0) {
-    const Stream& st = f == "inlet.flows" ? s.inlet : s.outlet;
-    return finite(st.F.at(static_cast<std::size_t>(col.species)));
-  }
-  if (f == "volume") return finite(s.volume);
-  if (f == "catalyst_mass") return finite(s.catalyst_mass);
-  if (f == "bulk_density") return finite(s.bulk_density);
-  if (f == "space_time") return finite(s.space_time);
-  if (f == "space_velocity") return finite(s.space_velocity);
-  if (f == "ghsv") return finite(s.ghsv);
-  if (f == "whsv") return finite(s.whsv);
-  if (f == "lhsv") return finite(s.lhsv);
-  if (f == "duty") return finite(s.duty);
-  if (f == "T_max") return finite(s.T_max);
-  if (f == "T_min") return finite(s.T_min);
-  if (f == "over_limit") {
-    if (!r.limit_check.applies() || s.kind == StageKind::Exchanger) return std::nullopt;
-    return finite(r.limit_check.past(s.id));
-  }
-  if (f == "conversion") return finite(s.conversion);
-  if (f == "inlet.T") return finite(s.inlet.T);
-  if (f == "inlet.P") return finite(s.inlet.P);
-  if (f == "outlet.T") return finite(s.outlet.T);
-  if (f == "outlet.P") return finite(s.outlet.P);
-  if (!s.equilibrium) return std::nullopt;
-  const auto& e = *s.equilibrium;
-  if (f == "equilibrium.X_ad_eq") return finite(e.X_ad_eq);
-  if (f == "equilibrium.T_ad_eq") return finite(e.T_ad_eq);
-  if (f == "equilibrium.X_eq_out") return finite(e.X_eq_out);
-  if (f == "equilibrium.approach_X") return finite(e.approach_X);
-  if (f == "equilibrium.approach_T") return finite(e.approach_T);
-  return std::nullopt;
+  const StageResult* s =
+      col.stage < 0 ? nullptr : &r.stages.at(static_cast<std::size_t>(col.stage));
+  return finite(col.spec->get(r, s, col.species));
 }
 
 std::vector<std::string> design_margin_columns(const Case& c) {

@@ -1,8 +1,10 @@
 // The case file of an optimized layout (`rxtrain optimize --write-case`):
 // the case as written, with its top-level `train` replaced by the layout's
-// stages (design_train in design.hpp), so that `rxtrain run` reproduces the
-// optimum. Everything else in the file, comments and sources included, is
-// kept as the user wrote it.
+// stages (design_train in optimize.hpp), so that `rxtrain run` reproduces
+// the optimum. The case with that train is checked as a loaded one
+// (validate_case) before any text is made; its fields are written under
+// the keys and in the SI units of the field table (case_fields.hpp). Everything else in the file,
+// comments and sources included, is kept as the user wrote it.
 //
 // Example:
 //   const std::string text = design_case_text(c, original_text, d, d.best, units, "opt.yaml");

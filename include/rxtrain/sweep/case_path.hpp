@@ -1,9 +1,11 @@
 // Numeric fields of a case addressed by their YAML path, for sweeps and
 // Monte Carlo studies: "feed.T", "train.R1.volume",
-// "reactions.isom.rate.Ea". The table is built once from the loaded Case;
-// a CaseEditor then writes chosen fields into a working copy of the case
-// for each run, with no YAML parsed and no validation repeated beyond each
-// field's own range.
+// "reactions.isom.rate.Ea". The paths, their units, ranges and how each
+// is set come from the case's field table (case/case_fields.hpp); this
+// table holds those of them a sweep offers. A CaseEditor then writes
+// chosen fields into a working copy of the case for each run, with no
+// YAML parsed, and checks the edited case as the loader checks a file
+// (validate_case).
 //
 // Paths (each offered only where the case has the field):
 //   feed.T  feed.P  feed.flow            K, Pa, mol/s (flow scales every
@@ -18,13 +20,12 @@
 //   reactions.ID.rate.A | rate.Ea | rate.T_ref
 //   reactions.ID.equilibrium.K | equilibrium.dH   (van 't Hoff form)
 //   species.ID.density                   liquid phase
-// Species thermo data are not offered: the loader derives reaction heats
-// and equilibrium data from them, which a single edited number would leave
-// inconsistent.
+// Species thermo data and molar masses are not offered: the loader derives
+// reaction heats and equilibrium data from them, which a single edited
+// number would leave inconsistent (SweepUse in case_fields.hpp).
 #pragma once
 
 #include <cstddef>
-#include <limits>
 #include <span>
 #include <string>
 #include <string_view>
@@ -32,45 +33,13 @@
 
 #include "rxtrain/base/units.hpp"
 #include "rxtrain/case/case.hpp"
+#include "rxtrain/case/case_fields.hpp"
 
 namespace rxtrain::sweep {
 
-enum class PathField {
-  FeedT,
-  FeedP,
-  FeedFlow,
-  FeedFlowOf,
-  FeedFraction,
-  Volume,
-  Catalyst,
-  BulkDensity,
-  StageTarget,
-  ExchangerTout,
-  ExchangerDuty,
-  RateA,
-  RateEa,
-  RateTref,
-  EquilibriumK,
-  EquilibriumDH,
-  Density,
-};
-
 // One addressable field: its path, the SI unit the loader reads it in and
-// the values it may take (the loader's own checks).
-struct CasePath {
-  std::string name;
-  SiUnit unit;                   // dimension checked when a value is given with a unit
-  bool chemistry_units = false;  // plain cal = thermochemical calorie (as the loader)
-  PathField field = PathField::FeedT;
-  int index = -1;  // species, stage or reaction index the field belongs to
-  double lo = -std::numeric_limits<double>::infinity();
-  double hi = std::numeric_limits<double>::infinity();
-  bool lo_open = false;  // lo itself is excluded
-  bool hi_open = false;
-
-  bool contains(double v) const;
-  std::string domain_text() const;  // e.g. "above 0", "between 0 and 1"
-};
+// the values it may take (the loader's own range).
+using CasePath = CaseField;
 
 class CasePathTable {
  public:
@@ -104,12 +73,12 @@ class CaseEditor {
   // only what the chosen paths touch is reset and rewritten (the feed, the
   // edited stages, the mechanism when a reaction or species is edited).
   // Throws InputError (located at the case file) when a value lies outside
-  // its field's range or leaves the key species without feed flow.
+  // its field's range, or the edited case fails validate_case (e.g. it
+  // leaves the key species without feed flow).
   void apply(const Case& base, std::span<const double> values, Case& work) const;
 
  private:
   std::vector<CasePath> paths_;  // the chosen paths, in value order
-  bool edits_mechanism_ = false;
 };
 
 }  // namespace rxtrain::sweep

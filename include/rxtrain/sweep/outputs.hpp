@@ -1,23 +1,19 @@
 // The result columns of a study, named as the user writes them:
 //   X, T_out                the train outlet's key conversion and temperature
-//   STAGE.FIELD             a numeric field of the stage's JSON result
-//                           (report/json.hpp): volume, catalyst_mass,
-//                           bulk_density, space_time, space_velocity, ghsv,
-//                           whsv, lhsv, duty, T_max, T_min, conversion,
-//                           inlet.T, inlet.P, outlet.T, outlet.P,
-//                           inlet.flows.SP, outlet.flows.SP,
-//                           over_limit (K by which the stage passes the
-//                           case's limits, 0 within; empty for an
-//                           exchanger or a case without limits),
-//                           equilibrium.X_ad_eq | T_ad_eq | X_eq_out |
-//                           approach_X | approach_T
-// Values are SI (GHSV, WHSV, LHSV in 1/h, as in the JSON).
+//   STAGE.FIELD             a numeric field of the stage's result, as the
+//                           table of result fields names it
+//                           (analysis/result_fields.hpp): volume, T_max,
+//                           outlet.T, inlet.flows.SP, over_limit,
+//                           equilibrium.approach_T, ...
+// Values and units are SI (GHSV, WHSV, LHSV in 1/h, as in the JSON), the
+// units those of the table.
 #pragma once
 
 #include <optional>
 #include <string>
 #include <vector>
 
+#include "rxtrain/analysis/result_fields.hpp"
 #include "rxtrain/case/case.hpp"
 #include "rxtrain/flowsheet/train.hpp"
 
@@ -25,9 +21,10 @@ namespace rxtrain::sweep {
 
 struct OutputColumn {
   std::string name;
-  int stage = -1;     // -1: the train (X, T_out)
-  std::string field;  // JSON field name within the stage, dotted
-  int species = -1;   // for *.flows.SP
+  int stage = -1;                         // -1: the train (X, T_out)
+  std::string field;                      // JSON field name within the stage, dotted
+  int species = -1;                       // for *.flows.SP
+  const ResultFieldSpec* spec = nullptr;  // its row of the result table
 };
 
 class OutputSpec {

@@ -1,0 +1,46 @@
+// The numeric results of a train by name, each with its SI unit and how it
+// is read: the train's own (X, T_out) and every stage's (the fields of the
+// stage's JSON result, report/json.cpp, under the same dotted names). The
+// sweep's output columns are built on it (sweep/outputs.hpp); a new stage
+// result a study may read is one row here.
+//
+// Stage fields: volume, catalyst_mass, bulk_density, space_time,
+// space_velocity, ghsv, whsv, lhsv, duty, T_peak (the stage's hottest
+// point; T_max names only the catalyst's limit), T_min, conversion,
+// inlet.T, inlet.P, outlet.T, outlet.P, over_limit (K by which the stage
+// passes the case's limits, 0 within; none for an exchanger or a case
+// without limits), inlet.flows.SP, outlet.flows.SP,
+// equilibrium.X_ad_eq | T_ad_eq | X_eq_out | approach_X | approach_T.
+#pragma once
+
+#include <optional>
+#include <span>
+#include <string_view>
+
+#include "rxtrain/flowsheet/train.hpp"
+
+namespace rxtrain {
+
+enum class ResultScope {
+  Train,        // the train's outlet
+  Stage,        // one number of a stage
+  Flow,         // a species' flow at a stage's inlet or outlet (name + ".SP")
+  Equilibrium,  // the stage's equilibrium record (needs the equilibrium views)
+};
+
+struct ResultFieldSpec {
+  std::string_view name;  // "T_peak", "inlet.T", "inlet.flows", "equilibrium.X_ad_eq"
+  std::string_view unit;  // SI ("K", "m3", "1/h"; GHSV, WHSV, LHSV as in the JSON); "-": a fraction
+  ResultScope scope;
+  // The value; nullopt where it does not apply (e.g. a liquid stage's
+  // GHSV, a stage without an equilibrium record). `stage` is null for the
+  // train's own fields; `species` indexes flows.
+  std::optional<double> (*get)(const TrainResult& r, const StageResult* stage, int species);
+};
+
+// X, T_out.
+std::span<const ResultFieldSpec> train_result_fields();
+// The stage fields above, in that order.
+std::span<const ResultFieldSpec> stage_result_fields();
+
+}  // namespace rxtrain

@@ -1,0 +1,96 @@
+#include "rxtrain/analysis/result_fields.hpp"
+
+#include <array>
+
+namespace rxtrain {
+
+namespace {
+
+using R = ResultScope;
+using V = std::optional<double>;
+
+constexpr std::array kTrain{
+    ResultFieldSpec{
+        "X", "-", R::Train,
+        [](const TrainResult& r, const StageResult*, int) -> V { return r.conversion; }},
+    ResultFieldSpec{"T_out", "K", R::Train,
+                    [](const TrainResult& r, const StageResult*, int) -> V { return r.outlet.T; }},
+};
+
+constexpr std::array kStage{
+    ResultFieldSpec{"volume", "m3", R::Stage,
+                    [](const TrainResult&, const StageResult* s, int) { return s->volume; }},
+    ResultFieldSpec{"catalyst_mass", "kg", R::Stage,
+                    [](const TrainResult&, const StageResult* s, int) { return s->catalyst_mass; }},
+    ResultFieldSpec{"bulk_density", "kg/m3", R::Stage,
+                    [](const TrainResult&, const StageResult* s, int) { return s->bulk_density; }},
+    ResultFieldSpec{"space_time", "s", R::Stage,
+                    [](const TrainResult&, const StageResult* s, int) { return s->space_time; }},
+    ResultFieldSpec{
+        "space_velocity", "1/s", R::Stage,
+        [](const TrainResult&, const StageResult* s, int) { return s->space_velocity; }},
+    ResultFieldSpec{"ghsv", "1/h", R::Stage,
+                    [](const TrainResult&, const StageResult* s, int) { return s->ghsv; }},
+    ResultFieldSpec{"whsv", "1/h", R::Stage,
+                    [](const TrainResult&, const StageResult* s, int) { return s->whsv; }},
+    ResultFieldSpec{"lhsv", "1/h", R::Stage,
+                    [](const TrainResult&, const StageResult* s, int) { return s->lhsv; }},
+    ResultFieldSpec{"duty", "W", R::Stage,
+                    [](const TrainResult&, const StageResult* s, int) -> V { return s->duty; }},
+    ResultFieldSpec{"T_peak", "K", R::Stage,
+                    [](const TrainResult&, const StageResult* s, int) -> V { return s->T_max; }},
+    ResultFieldSpec{"T_min", "K", R::Stage,
+                    [](const TrainResult&, const StageResult* s, int) -> V { return s->T_min; }},
+    ResultFieldSpec{
+        "conversion", "-", R::Stage,
+        [](const TrainResult&, const StageResult* s, int) -> V { return s->conversion; }},
+    ResultFieldSpec{"inlet.T", "K", R::Stage,
+                    [](const TrainResult&, const StageResult* s, int) -> V { return s->inlet.T; }},
+    ResultFieldSpec{"inlet.P", "Pa", R::Stage,
+                    [](const TrainResult&, const StageResult* s, int) -> V { return s->inlet.P; }},
+    ResultFieldSpec{"outlet.T", "K", R::Stage,
+                    [](const TrainResult&, const StageResult* s, int) -> V { return s->outlet.T; }},
+    ResultFieldSpec{"outlet.P", "Pa", R::Stage,
+                    [](const TrainResult&, const StageResult* s, int) -> V { return s->outlet.P; }},
+    ResultFieldSpec{"over_limit", "K", R::Stage,
+                    [](const TrainResult& r, const StageResult* s, int) -> V {
+                      if (!r.limit_check.applies() || s->kind == StageKind::Exchanger)
+                        return std::nullopt;
+                      return r.limit_check.past(s->id);
+                    }},
+    ResultFieldSpec{"inlet.flows", "mol/s", R::Flow,
+                    [](const TrainResult&, const StageResult* s, int i) -> V {
+                      return s->inlet.F.at(static_cast<std::size_t>(i));
+                    }},
+    ResultFieldSpec{"outlet.flows", "mol/s", R::Flow,
+                    [](const TrainResult&, const StageResult* s, int i) -> V {
+                      return s->outlet.F.at(static_cast<std::size_t>(i));
+                    }},
+    ResultFieldSpec{"equilibrium.X_ad_eq", "-", R::Equilibrium,
+                    [](const TrainResult&, const StageResult* s, int) -> V {
+                      return s->equilibrium ? V(s->equilibrium->X_ad_eq) : std::nullopt;
+                    }},
+    ResultFieldSpec{"equilibrium.T_ad_eq", "K", R::Equilibrium,
+                    [](const TrainResult&, const StageResult* s, int) -> V {
+                      return s->equilibrium ? V(s->equilibrium->T_ad_eq) : std::nullopt;
+                    }},
+    ResultFieldSpec{"equilibrium.X_eq_out", "-", R::Equilibrium,
+                    [](const TrainResult&, const StageResult* s, int) -> V {
+                      return s->equilibrium ? V(s->equilibrium->X_eq_out) : std::nullopt;
+                    }},
+    ResultFieldSpec{"equilibrium.approach_X", "-", R::Equilibrium,
+                    [](const TrainResult&, const StageResult* s, int) -> V {
+                      return s->equilibrium ? V(s->equilibrium->approach_X) : std::nullopt;
+                    }},
+    ResultFieldSpec{"equilibrium.approach_T", "K", R::Equilibrium,
+                    [](const TrainResult&, const StageResult* s, int) -> V {
+                      return s->equilibrium ? s->equilibrium->approach_T : std::nullopt;
+                    }},
+};
+
+}  // namespace
+
+std::span<const ResultFieldSpec> train_result_fields() { return kTrain; }
+std::span<const ResultFieldSpec> stage_result_fields() { return kStage; }
+
+}  // namespace rxtrain
