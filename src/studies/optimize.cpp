@@ -12,6 +12,7 @@
 #include "rxtrain/analysis/train_warnings.hpp"
 #include "rxtrain/base/error.hpp"
 #include "rxtrain/base/units.hpp"
+#include "rxtrain/case/case_fields.hpp"
 #include "rxtrain/flowsheet/train.hpp"
 #include "rxtrain/studies/staging.hpp"
 
@@ -277,9 +278,11 @@ DesignLayout make_layout(const Setup& s, const detail::AdiabaticBedModel& model,
   return l;
 }
 
+// The case with another train, checked as a loaded case is (validate_case).
 Case with_train(const Case& c, std::vector<StageSpec> train) {
   Case t = c;
   t.train = std::move(train);
+  validate_case(t);
   return t;
 }
 
@@ -532,6 +535,7 @@ DesignResult optimize_design(const Case& c, const DesignOptions& options) {
       Case narrowed = c;
       narrowed.limits.T_in_min = T_lo;
       narrowed.limits.T_max = T_hi;
+      validate_case(narrowed);
       staged_inlet = run_staging(narrowed, so);
       so.return_to = ReturnTo::MaxRate;
       staged_optimal = run_staging(narrowed, so);
