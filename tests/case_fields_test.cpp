@@ -16,6 +16,7 @@
 #include <set>
 #include <sstream>
 
+#include "input_error.hpp"
 #include "rxtrain/analysis/result_fields.hpp"
 #include "rxtrain/base/units.hpp"
 #include "rxtrain/flowsheet/train.hpp"
@@ -139,15 +140,7 @@ void require_same_fields(const Case& a, const Case& b) {
   }
 }
 
-std::string input_error(const std::function<void()>& f) {
-  try {
-    f();
-  } catch (const InputError& e) {
-    return e.what();
-  }
-  FAIL("no InputError");
-  return "";
-}
+using rxtrain::test::input_error;
 
 }  // namespace
 

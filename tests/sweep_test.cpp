@@ -15,6 +15,7 @@
 #include <string>
 #include <variant>
 
+#include "input_error.hpp"
 #include "rxtrain/base/units.hpp"
 #include "rxtrain/case/case.hpp"
 #include "rxtrain/flowsheet/train.hpp"
@@ -60,15 +61,7 @@ std::string demo_text() {
   return s.str();
 }
 
-std::string input_error(const std::function<void()>& f) {
-  try {
-    f();
-  } catch (const InputError& e) {
-    return e.what();
-  }
-  FAIL("no InputError");
-  return "";
-}
+using rxtrain::test::input_error;
 
 struct Fixture {
   UnitParser units;

@@ -188,10 +188,10 @@ std::string optimize_report_html(const Case& c, const DesignResult& d,
       xml_escape(window_text(d)), celsius_text(d.feed_T),
       d.fixed_feed_T ? " (bed 1 kept at the feed temperature)" : "",
       d.exothermic ? "exothermic" : "endothermic", l.starts);
-  h += fmt::format(
-      "<p><strong>{} adiabatic beds, total {}{}.</strong></p>\n", l.beds,
-      amount(d, objective_of(d, l.total_catalyst, l.total_volume)),
-      d.catalyst_objective ? fmt::format(" ({} m³)", volume_text(l.total_volume)) : "");
+  h +=
+      fmt::format("<p><strong>{} adiabatic beds, total {}{}.</strong></p>\n", l.beds,
+                  amount(d, objective_of(d, l.total_catalyst, l.total_volume)),
+                  d.catalyst_objective ? fmt::format(" ({} m³)", volume_text(l.total_volume)) : "");
   h += beds_table(l);
   h += "<h2 id=\"exchangers\">Exchangers</h2>\n" + exchangers_table(d);
   h += "<h2 id=\"constraints\">Active constraints and check</h2>\n";

@@ -289,12 +289,7 @@ std::string optimize_table(const DesignResult& d, const DesignOptions& o) {
         out += fmt::format("  {} bed{}: {}\n", c.beds, c.beds == 1 ? "" : "s", c.why);
   }
 
-  if (!d.warnings.empty()) {
-    out += "\nwarnings:\n";
-    for (const auto& w : d.warnings) out += fmt::format("  - {}\n", w);
-  }
-  out += fmt::format("\n{}\n", kCaution);
-  return out;
+  return out + warnings_and_caution(d.warnings);
 }
 
 }  // namespace rxtrain

@@ -118,12 +118,7 @@ std::string format_staging_report(const StagingResult& r) {
     out += "  duty: heat added to the stream (negative: removed)\n";
   }
 
-  if (!r.warnings.empty()) {
-    out += "\nwarnings:\n";
-    for (const auto& w : r.warnings) out += fmt::format("  - {}\n", w);
-  }
-  out += fmt::format("\n{}\n", kCaution);
-  return out;
+  return out + warnings_and_caution(r.warnings);
 }
 
 }  // namespace rxtrain

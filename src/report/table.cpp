@@ -129,12 +129,7 @@ std::string format_stage_table(const TrainResult& result) {
                      celsius_text(result.outlet.T), bar_text(result.outlet.P), result.key,
                      conversion_text(result.conversion));
   out += stream_columns(result);
-  if (!result.warnings.empty()) {
-    out += "\nwarnings:\n";
-    for (const auto& w : result.warnings) out += "  - " + w + "\n";
-  }
-  out += fmt::format("\n{}\n", kCaution);
-  return out;
+  return out + warnings_and_caution(result.warnings);
 }
 
 }  // namespace rxtrain

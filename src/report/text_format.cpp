@@ -5,6 +5,7 @@
 #include <algorithm>
 #include <cmath>
 
+#include "rxtrain/base/caution.hpp"
 #include "rxtrain/base/units.hpp"
 
 namespace rxtrain {
@@ -56,6 +57,15 @@ std::string closure_text(double relative) {
   // Below 1e-12 it is the round-off of the sums, whose digits vary with
   // the build: say it closes rather than print noise.
   return std::abs(relative) < 1e-12 ? "< 1e-12" : fmt::format("{:.1e}", relative);
+}
+
+std::string warnings_and_caution(const std::vector<std::string>& warnings) {
+  std::string out;
+  if (!warnings.empty()) {
+    out += "\nwarnings:\n";
+    for (const auto& w : warnings) out += fmt::format("  - {}\n", w);
+  }
+  return out + fmt::format("\n{}\n", kCaution);
 }
 
 std::string conversion_text(double X) {

@@ -38,6 +38,9 @@ std::vector<std::string> fraction_column(const std::vector<double>& values);
 // A relative mass-balance closure, (in - out) / in: "-1.2e-01", or
 // "< 1e-12" where it is round-off.
 std::string closure_text(double relative);
+// The end of every terminal report: "warnings:" and one "  - " line each
+// (nothing when there are none), then the caution.
+std::string warnings_and_caution(const std::vector<std::string>& warnings);
 // A conversion (or any fraction of the way to 1): four decimals, six
 // within 1e-4 of 1, where four would round 0.99995 up to a complete
 // conversion that did not happen.
