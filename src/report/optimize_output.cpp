@@ -169,7 +169,9 @@ std::string gain_line(const DesignResult& d, const std::string& what, double oth
 
 }  // namespace
 
-std::string optimize_table(const DesignResult& d, const DesignOptions& o) {
+namespace {
+
+std::string header_lines(const DesignResult& d) {
   std::string out = d.title + "\n";
   out += fmt::format(
       "optimize: least total {} for an overall conversion of {} X = {} with every bed "
@@ -181,14 +183,17 @@ std::string optimize_table(const DesignResult& d, const DesignOptions& o) {
       "key reaction: {}; method: SLSQP (finite-difference gradients) from {} "
       "starts, polished until the inlet temperatures settle\n\n",
       d.exothermic ? "exothermic" : "endothermic", d.best.starts);
+  return out;
+}
 
-  const DesignLayout& l = d.best;
-  out += fmt::format("Optimum: {} adiabatic beds, total {}{}\n", l.beds,
-                     d.catalyst_objective
-                         ? fmt::format("{} of catalyst ({} m3)", amount_text(d, *l.total_catalyst),
-                                       volume_text(l.total_volume))
-                         : amount_text(d, l.total_volume),
-                     "");
+// The optimum's beds, feed conditioning and exchangers.
+std::string layout_tables(const DesignResult& d, const DesignLayout& l) {
+  std::string out =
+      fmt::format("Optimum: {} adiabatic beds, total {}\n", l.beds,
+                  d.catalyst_objective
+                      ? fmt::format("{} of catalyst ({} m3)", amount_text(d, *l.total_catalyst),
+                                    volume_text(l.total_volume))
+                      : amount_text(d, l.total_volume));
   std::vector<std::vector<std::string>> rows;
   rows.push_back({"bed", "T in °C", "T out °C", "X in", "X out", "X_ad_eq", "V m3", "cat kg"});
   for (const auto& b : l.bed)
@@ -202,31 +207,30 @@ std::string optimize_table(const DesignResult& d, const DesignOptions& o) {
   else
     out += fmt::format("  feed conditioning {}: {} -> {} °C, duty {} kW\n", f.id,
                        celsius_text(f.T_in), celsius_text(f.T_out), fixed_text(f.duty / 1e3, 2));
-  if (!l.coolers.empty()) {
-    std::vector<std::vector<std::string>> x;
-    x.push_back({d.exothermic ? "cooler" : "heater", "after", "T in °C", "T out °C", "duty kW"});
-    for (std::size_t k = 0; k < l.coolers.size(); ++k) {
-      const auto& c = l.coolers[k];
-      x.push_back({c.id, l.bed[k].id, celsius_text(c.T_in), celsius_text(c.T_out),
-                   fixed_text(c.duty / 1e3, 2)});
-    }
-    out += "\n" + render_columns(x, 2);
-    out += fmt::format(
-        "  interstage duty in all: {} kW (heat added to the stream; negative: "
-        "removed)\n",
-        fixed_text(l.total_duty / 1e3, 2));
+  if (l.coolers.empty()) return out;
+  std::vector<std::vector<std::string>> x;
+  x.push_back({d.exothermic ? "cooler" : "heater", "after", "T in °C", "T out °C", "duty kW"});
+  for (std::size_t k = 0; k < l.coolers.size(); ++k) {
+    const auto& c = l.coolers[k];
+    x.push_back({c.id, l.bed[k].id, celsius_text(c.T_in), celsius_text(c.T_out),
+                 fixed_text(c.duty / 1e3, 2)});
   }
+  out += "\n" + render_columns(x, 2);
   out += fmt::format(
+      "  interstage duty in all: {} kW (heat added to the stream; negative: "
+      "removed)\n",
+      fixed_text(l.total_duty / 1e3, 2));
+  return out;
+}
+
+// Active limits, the optimality conditions from their residuals, the check.
+std::string conditions_lines(const DesignResult& d, const DesignLayout& l) {
+  std::string active;
+  for (const auto& a : l.active_constraints)
+    active += (active.empty() ? "" : ", ") + active_limit_text(d, l, a);
+  std::string out = fmt::format(
       "  active constraints: {}\n",
-      l.active_constraints.empty()
-          ? std::string("none (every inlet and bed temperature lies inside the "
-                        "window)")
-          : [&] {
-              std::string s;
-              for (const auto& a : l.active_constraints)
-                s += (s.empty() ? "" : ", ") + active_limit_text(d, l, a);
-              return s;
-            }());
+      active.empty() ? "none (every inlet and bed temperature lies inside the window)" : active);
   if (l.bed.size() > 1) {
     out += "  optimality conditions (Konoki 1956; Aris 1961), from the computed residuals:\n";
     for (const auto& c : l.interstage) out += "    " + interstage_text(d, l, c) + "\n";
@@ -234,8 +238,12 @@ std::string optimize_table(const DesignResult& d, const DesignOptions& o) {
   }
   out += fmt::format("  check: run with these beds, the train reaches X = {} (target {})\n\n",
                      fixed_text(l.checked_conversion, 6), fixed_text(d.target, 4));
+  return out;
+}
 
-  out += "Gain\n";
+// Against the case as written and the staging policy.
+std::string gain_lines(const DesignResult& d) {
+  std::string out = "Gain\n";
   if (d.as_written) {
     const auto& a = *d.as_written;
     const auto other = objective_total(d, a.total_catalyst, a.total_volume);
@@ -260,35 +268,44 @@ std::string optimize_table(const DesignResult& d, const DesignOptions& o) {
     else
       out += fmt::format("  against the staging policy: {}\n", s.note);
   }
+  return out;
+}
 
-  if (!d.by_bed_count.empty()) {
-    out += fmt::format("\nBeds against total {} (--max-beds {}); * = the optimum above\n",
-                       d.catalyst_objective ? "catalyst" : "volume", *o.max_beds);
-    std::vector<std::vector<std::string>> t;
-    t.push_back({"", "beds", d.catalyst_objective ? "cat kg" : "V m3", "saved by this bed",
-                 "interstage duty kW"});
-    double previous = 0;  // the total of N - 1 beds; 0 when that N is infeasible
-    for (const auto& c : d.by_bed_count) {
-      const bool mark = c.beds == l.beds;
-      if (!c.feasible) {
-        t.push_back({mark ? "*" : "", std::to_string(c.beds), "-", "-", "-"});
-        previous = 0;
-        continue;
-      }
-      const double total = objective_total(d, c);
-      const std::string saved =
-          previous > 0 ? fmt::format("{} %", fixed_text(100 * (previous - total) / previous, 2))
-                       : std::string("-");
-      t.push_back({mark ? "*" : "", std::to_string(c.beds), volume_text(total), saved,
-                   fixed_text(c.total_duty / 1e3, 2)});
-      previous = total;
+// The trade-off of --max-beds: each N's least total and what another bed saves.
+std::string by_bed_count_lines(const DesignResult& d, int max_beds) {
+  std::string out = fmt::format("\nBeds against total {} (--max-beds {}); * = the optimum above\n",
+                                d.catalyst_objective ? "catalyst" : "volume", max_beds);
+  std::vector<std::vector<std::string>> t;
+  t.push_back({"", "beds", d.catalyst_objective ? "cat kg" : "V m3", "saved by this bed",
+               "interstage duty kW"});
+  double previous = 0;  // the total of N - 1 beds; 0 when that N is infeasible
+  for (const auto& c : d.by_bed_count) {
+    const bool mark = c.beds == d.best.beds;
+    if (!c.feasible) {
+      t.push_back({mark ? "*" : "", std::to_string(c.beds), "-", "-", "-"});
+      previous = 0;
+      continue;
     }
-    out += render_columns(t, 1);
-    for (const auto& c : d.by_bed_count)
-      if (!c.feasible)
-        out += fmt::format("  {} bed{}: {}\n", c.beds, c.beds == 1 ? "" : "s", c.why);
+    const double total = objective_total(d, c);
+    const std::string saved =
+        previous > 0 ? fmt::format("{} %", fixed_text(100 * (previous - total) / previous, 2))
+                     : std::string("-");
+    t.push_back({mark ? "*" : "", std::to_string(c.beds), volume_text(total), saved,
+                 fixed_text(c.total_duty / 1e3, 2)});
+    previous = total;
   }
+  out += render_columns(t, 1);
+  for (const auto& c : d.by_bed_count)
+    if (!c.feasible) out += fmt::format("  {} bed{}: {}\n", c.beds, c.beds == 1 ? "" : "s", c.why);
+  return out;
+}
 
+}  // namespace
+
+std::string optimize_table(const DesignResult& d, const DesignOptions& o) {
+  std::string out = header_lines(d) + layout_tables(d, d.best) + conditions_lines(d, d.best);
+  out += gain_lines(d);
+  if (!d.by_bed_count.empty()) out += by_bed_count_lines(d, o.max_beds.value_or(0));
   return out + warnings_and_caution(d.warnings);
 }
 
