@@ -450,3 +450,13 @@ TEST_CASE("figures: a stirred tank is a point reached by a jump, not a path", "[
   // One tank and one tube: nothing crowds a corner, no zoomed twin.
   CHECK(tx_figures(c, r).size() == 1);
 }
+
+TEST_CASE("the inputs section shows each rate law as the case gives it, beside its SI form",
+          "[html]") {
+  const UnitParser units;
+  const Case c = load_case_from_string(kTinyCase, "tiny.yaml", units);
+  CHECK(c.mechanism.reactions()[0].rate.as_written == "A: 5 1/s, Ea: 40 kJ/mol, T_ref: 400 K");
+  const std::string h = html::inputs_section(c);
+  CHECK(h.find("<code>A: 5 1/s, Ea: 40 kJ/mol, T_ref: 400 K</code>") != std::string::npos);
+  CHECK(h.find("rate law (SI)") != std::string::npos);
+}

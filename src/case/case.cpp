@@ -749,6 +749,10 @@ RateLaw Loader::read_rate(const YAML::Node& node, const std::string& rx_id,
   law.Ea = field(f.need("Ea", "the activation energy, e.g. Ea: 65 kJ/mol (0 for none)"),
                  CaseFieldKind::RateEa, rx_id);
   if (const auto* n = f.find("T_ref")) law.T_ref = field(*n, CaseFieldKind::RateTref, rx_id);
+  for (const char* key : {"A", "Ea", "T_ref"})
+    if (const auto* n = f.find(key); n && n->IsScalar())
+      law.as_written +=
+          fmt::format("{}{}: {}", law.as_written.empty() ? "" : ", ", key, n->Scalar());
   return law;
 }
 

@@ -164,11 +164,13 @@ std::string inputs_section(const Case& c) {
          cell(s.thermo.h_f() ? fmt::format("{:.3f}", *s.thermo.h_f() / 1e3) : "-", true) +
          cell(cp_text(s.thermo), false) + "</tr>\n";
   h += "</table>\n<h3>Reactions</h3>\n<table>\n<tr><th>id</th><th>equation</th>"
-       "<th>ΔH_r(298.15 K) (kJ/mol)</th><th>rate law (SI)</th></tr>\n";
+       "<th>ΔH_r(298.15 K) (kJ/mol)</th><th>rate law (SI)</th><th>as the case gives it</th>"
+       "</tr>\n";
   for (const auto& rx : m.reactions())
     h += "<tr>" + cell(rx.id, false) + cell(rx.equation, false) +
          cell(fmt::format("{:.3f}", rx.dH_298 / 1e3), true) + "<td><code>" +
-         xml_escape(rate_text(m, rx)) + "</code></td></tr>\n";
+         xml_escape(rate_text(m, rx)) + "</code></td><td><code>" +
+         xml_escape(rx.rate.as_written.empty() ? "-" : rx.rate.as_written) + "</code></td></tr>\n";
   return h + "</table>\n";
 }
 

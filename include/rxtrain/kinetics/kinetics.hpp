@@ -28,6 +28,10 @@ struct RateLaw {
   std::optional<double> T_ref;  // K
   Driving driving = Driving::Concentration;
   std::vector<double> orders;  // per species (0 when absent from the law)
+  // The parameters as the case file gives them, units and all ("A: 3.0e-2
+  // mol/(kg*s*bar), Ea: 65 kJ/mol, T_ref: 420 K"), for reports beside the
+  // SI form; empty for a law built in code.
+  std::string as_written;
 };
 
 // Where K(T) of a reversible reaction comes from.
