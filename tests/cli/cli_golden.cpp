@@ -27,7 +27,7 @@ namespace fs = std::filesystem;
 
 namespace {
 
-constexpr double kRelTol = 1e-9;       // numbers in JSON and CSV
+constexpr double kRelTol = 1e-9;  // numbers in JSON and CSV
 // Below this a number is round-off (a mass balance's closure, about 1e-16,
 // or a flow of a used-up species): its digits are noise, not a result.
 constexpr double kRoundOff = 1e-14;
