@@ -35,7 +35,7 @@ std::optional<double> saving(const DesignResult& d, const std::optional<double>&
   return *other - objective_total(d, d.best);
 }
 
-json exchanger_json(const DesignExchanger& x) {
+json exchanger_json(const Interstage& x) {
   return {{"id", x.id},
           {"T_in", json_number(x.T_in)},
           {"T_out", json_number(x.T_out)},

@@ -23,8 +23,6 @@ namespace {
 // A limit counts as active within this (K): the optimizer settles inlet
 // temperatures to better than 1 mK, so 0.01 K tells a bound from a near miss.
 constexpr double kActiveTolerance = 0.01;
-// A train "reaches" the target within this conversion.
-constexpr double kConversionTolerance = 1e-6;
 // Condition (1) holds within this relative rate difference: at free
 // optimums the residual measures below 1e-6 (tests/design_test.cpp).
 constexpr double kRateTolerance = 1e-4;
@@ -241,6 +239,8 @@ DesignLayout make_layout(const Setup& s, const detail::AdiabaticBedModel& model,
     b.id = s.ids(fmt::format("B{}", n + 1));
     b.T_in = st.T_in[n];
     b.T_out = st.T_out[n];
+    b.T_max = std::max(b.T_in, b.T_out);
+    b.T_min = std::min(b.T_in, b.T_out);
     b.X_in = st.X_in[n];
     b.X_out = st.X_out[n];
     b.X_ad_eq = st.X_e[n];
@@ -257,7 +257,7 @@ DesignLayout make_layout(const Setup& s, const detail::AdiabaticBedModel& model,
     if (b.catalyst_mass) l.total_catalyst = l.total_catalyst.value_or(0.0) + *b.catalyst_mass;
     if (n > 0) {
       const DesignBed& a = l.bed[n - 1];
-      DesignExchanger x;
+      Interstage x;
       x.id = s.ids(fmt::format("{}{}", exchanger, n));
       x.T_in = a.T_out;
       x.T_out = b.T_in;
@@ -307,7 +307,7 @@ AsWrittenDesign as_written(const Setup& s, const DesignOptions& o) {
   }
   a.ran = true;
   a.conversion = r.conversion;
-  a.reaches_target = r.conversion >= s.target - kConversionTolerance;
+  a.reaches_target = r.conversion >= s.target - kReachTolerance;
   a.within_limits = true;
   bool all_mass = true;
   std::vector<std::string> notes;
@@ -415,93 +415,29 @@ std::string DesignOptions::validate() const {
 
 std::vector<StageSpec> design_train(const Case& c, const DesignResult& d,
                                     const DesignLayout& layout) {
-  std::vector<StageSpec> train;
-  const SourceLocation where{c.file, 0, 0};
-  if (!d.fixed_feed_T && layout.feed_conditioning.T_out != c.feed.T) {
-    ExchangerSpec x;
-    x.id = layout.feed_conditioning.id;
-    x.T_out = layout.feed_conditioning.T_out;
-    x.where = where;
-    train.push_back(x);
-  }
-  for (std::size_t n = 0; n < layout.bed.size(); ++n) {
-    if (n > 0) {
-      ExchangerSpec x;
-      x.id = layout.coolers[n - 1].id;
-      x.T_out = layout.coolers[n - 1].T_out;
-      x.where = where;
-      train.push_back(x);
-    }
-    ReactorSpec r;
-    r.id = layout.bed[n].id;
-    r.type = ReactorType::Pfr;
-    r.heat = HeatMode::Adiabatic;
-    r.bulk_density = d.bulk_density;
-    // As the loader holds a bed given by its catalyst: both the mass and
-    // the volume it fills.
-    if (d.catalyst_objective) r.catalyst_mass = layout.bed[n].catalyst_mass;
-    r.volume = layout.bed[n].volume;
-    r.where = where;
-    train.push_back(r);
-  }
-  return train;
+  BedLayout l;
+  if (!d.fixed_feed_T && layout.feed_conditioning.T_out != c.feed.T)
+    l.feed_conditioning = layout.feed_conditioning;
+  l.beds.assign(layout.bed.begin(), layout.bed.end());  // the Bed of each
+  l.interstages = layout.coolers;
+  l.bulk_density = d.bulk_density;
+  l.by_mass = d.catalyst_objective;
+  return layout_stages(l, {c.file, 0, 0});
 }
 
 DesignResult optimize_design(const Case& c, const DesignOptions& options) {
   if (const auto e = options.validate(); !e.empty())
     throw std::invalid_argument("DesignOptions: " + e);
   const Mechanism& mech = c.mechanism;
-  if (!c.target_conversion)
-    throw InputError(c.target_where,
-                     "the case has no train-level target; optimize sizes the beds to one: add "
-                     "\"target: {conversion: 0.92}\" at the top level of the case");
-  if (!c.limits.T_max || !c.limits.T_in_min)
-    throw InputError(c.limits.where,
-                     "optimize needs the catalyst's temperature window: add \"limits: {T_max: "
-                     "..., T_in_min: ...}\" at the top level of the case (the bounds of every "
-                     "bed inlet and of every temperature in a bed)");
-  const int j = key_reaction(mech, c.key);
-  const std::string key = mech.species()[c.key].id;
-  if (mech.n_reactions() != 1 || j < 0 || !mech.reactions()[j].reversible) {
-    const Reaction& rx = mech.reactions()[mech.n_reactions() > 1 ? 1 : std::max(j, 0)];
-    throw InputError(
-        rx.where,
-        mech.n_reactions() != 1
-            ? fmt::format("optimize handles one reversible reaction that consumes the key {}; "
-                          "the case has {} reactions (this is the second): with one reaction "
-                          "the conversion alone fixes the composition along the beds",
-                          key, mech.n_reactions())
-            : fmt::format("optimize needs a reversible reaction that consumes the key {}: "
-                          "reaction {} ({}) is irreversible, so a single bed at T_max would "
-                          "do; write it with <=> and give its equilibrium",
-                          key, rx.id, rx.equation));
-  }
-  const ReactorSpec* first = nullptr;
-  for (const auto& sp : c.train)
-    if ((first = std::get_if<ReactorSpec>(&sp))) break;
-  const bool catalyst = mech.reactions()[j].rate.basis == RateBasis::Catalyst;
-  if (catalyst && (!first || !first->bulk_density))
-    throw InputError(first ? first->where : SourceLocation{c.file, 0, 0},
-                     fmt::format("reaction {} has a per-catalyst rate: optimize gives the beds "
-                                 "the first reactor's bulk_density; give it one (e.g. "
-                                 "bulk_density: 750 kg/m3)",
-                                 mech.reactions()[j].id));
+  const LayoutCase lc = check_layout_case(c, LayoutStudy::Optimize);
+  const int j = lc.reaction;
+  const std::string& key = lc.key;
+  const bool catalyst = lc.per_catalyst;
   const Window w = window_of(c, options);
   const double T_lo = w.T_lo, T_hi = w.T_hi;
-  Setup s{c,
-          mech,
-          c.conversion_basis(),
-          j,
-          *c.target_conversion,
-          T_lo,
-          T_hi,
-          mech.dH(j, c.feed.T) < 0,
-          catalyst,
-          first ? first->bulk_density : std::nullopt,
-          Ids{},
-          options.margin,
-          w.hi_label,
-          w.lo_label};
+  Setup s{c,     mech,           c.conversion_basis(), j,         lc.target,
+          T_lo,  T_hi,           lc.exothermic,        catalyst,  lc.bulk_density,
+          Ids{}, options.margin, w.hi_label,           w.lo_label};
   for (const auto& sp : mech.species()) s.ids.taken.insert(sp.id);
   for (const auto& rx : mech.reactions()) s.ids.taken.insert(rx.id);
 
@@ -527,7 +463,7 @@ DesignResult optimize_design(const Case& c, const DesignOptions& options) {
   // The staging policy's answers: a comparison and starts. A failure
   // there (e.g. a target it cannot reach) takes nothing from the optimum.
   std::optional<StagingResult> staged_inlet, staged_optimal;
-  if (first) {
+  if (lc.has_reactor) {
     try {
       StagingOptions so;
       so.solvers = options.solvers;

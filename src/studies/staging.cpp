@@ -16,9 +16,6 @@ namespace rxtrain {
 
 namespace {
 
-// A conversion counts as reached within this (absolute): CVODE's root on
-// the conversion lands within ~1e-10 of it.
-constexpr double kConversionTolerance = 1e-8;
 // A bed whose X_ad_eq lies no further than this above its inlet conversion
 // cannot progress.
 constexpr double kNoProgress = 1e-9;
@@ -38,6 +35,9 @@ struct Setup {
   std::optional<double> T_limit;
   StagingLimit limit_kind = StagingLimit::TMax;
   const char* limit_label = "T_max";
+  // The first reactor's, given to every staged bed.
+  std::optional<double> bulk_density;
+  SourceLocation bed_where;
 };
 
 TrainResult empty_result(const Case& c) {
@@ -175,7 +175,7 @@ void check_as_given(const Setup& s, const StagingOptions& o, const SunContext& c
       if (auto q = limit_crossing(s, rs, r.inlet, ctx, o.solvers.tube)) p = *q;
     }
     p.T = *s.T_limit;
-    const bool before = p.X < s.target - kConversionTolerance;
+    const bool before = p.X < s.target - kReachTolerance;
     if (p.V == 0 && (s.exothermic ? r.inlet.T >= *s.T_limit : r.inlet.T <= *s.T_limit))
       note_of(r.id) =
           fmt::format("is fed at {}, already {} {} = {}", celsius(r.inlet.T),
@@ -194,7 +194,7 @@ void check_as_given(const Setup& s, const StagingOptions& o, const SunContext& c
   }
   if (res.limited_by == StagingLimit::Equilibrium) return;
 
-  const bool short_of_target = res.as_given_conversion < s.target - kConversionTolerance;
+  const bool short_of_target = res.as_given_conversion < s.target - kReachTolerance;
   if (!last_spec) {
     res.limited_by = StagingLimit::Size;
     res.why = "the train has no reactor";
@@ -238,7 +238,7 @@ void check_as_given(const Setup& s, const StagingOptions& o, const SunContext& c
       PfrOptions po = o.solvers.tube;
       po.stop_temperature = s.T_limit;
       const StageResult r = run_pfr(mech, bigger, last_inlet, s.basis, ctx, po);
-      if (r.conversion < s.target - kConversionTolerance) {
+      if (r.conversion < s.target - kReachTolerance) {
         LimitPoint p{r.conversion, r.volume.value_or(0.0), *s.T_limit, true};
         it->note = fmt::format(
             "reaches X = {:.4f}; enlarged, it would {} {} {} at X = {:.4f}, V = {:.4g} m3 from "
@@ -332,15 +332,11 @@ double run_on_end(const Setup& s, const StagingOptions& o, const Stream& inlet, 
   return b;
 }
 
-void build_staged(const Setup& s, const StagingOptions& o, const ReactorSpec& first,
-                  const SunContext& ctx, StagingResult& res) {
+void build_staged(const Setup& s, const StagingOptions& o, const SunContext& ctx,
+                  StagingResult& res) {
   const Mechanism& mech = s.mech;
   res.staged_run = empty_result(s.c);
-  ReactorSpec bed;
-  bed.type = ReactorType::Pfr;
-  bed.heat = HeatMode::Adiabatic;
-  bed.bulk_density = first.bulk_density;
-  bed.where = first.where;
+  ReactorSpec bed = bed_stage("", s.bulk_density, s.bed_where);
   PfrOptions po = o.solvers.tube;
   po.stop_temperature = s.T_limit;
   const char* exchanger_prefix = s.exothermic ? "C" : "H";
@@ -349,10 +345,9 @@ void build_staged(const Setup& s, const StagingOptions& o, const ReactorSpec& fi
   double X = s.basis.conversion(stream);
   for (int k = 1; k <= o.max_beds; ++k) {
     if (k > 1) {
-      ExchangerSpec x;
-      x.id = fmt::format("{}{}", exchanger_prefix, k - 1);
-      x.T_out = return_temperature(s, o, X, res.beds.back().T_in, res.beds.back().T_out);
-      x.where = first.where;
+      const ExchangerSpec x = interstage_stage(
+          fmt::format("{}{}", exchanger_prefix, k - 1),
+          return_temperature(s, o, X, res.beds.back().T_in, res.beds.back().T_out), s.bed_where);
       StageResult r = run_exchanger(mech, x, stream, s.basis);
       res.coolers.push_back({x.id, r.inlet.T, r.outlet.T, r.duty});
       stream = r.outlet;
@@ -391,7 +386,7 @@ void build_staged(const Setup& s, const StagingOptions& o, const ReactorSpec& fi
     b.T_ad_eq = eq->stream.T;
     b.volume = r.volume.value_or(0.0);
     b.catalyst_mass = r.catalyst_mass;
-    if (r.conversion < X_bed - kConversionTolerance)
+    if (r.conversion < X_bed - kReachTolerance)
       b.ended_by = s.limit_label;
     else
       b.ended_by = X_bed == s.target ? "target" : X_bed > X_stop ? "floor" : "approach";
@@ -399,7 +394,7 @@ void build_staged(const Setup& s, const StagingOptions& o, const ReactorSpec& fi
     stream = r.outlet;
     X = r.conversion;
     append(res.staged_run, std::move(r), s.c);
-    if (X >= s.target - kConversionTolerance) {
+    if (X >= s.target - kReachTolerance) {
       res.target_reached = true;
       res.beds_needed = k;
       break;
@@ -489,39 +484,20 @@ StagingResult run_staging(const Case& c, const StagingOptions& options) {
   if (const auto e = options.validate(); !e.empty())
     throw std::invalid_argument("StagingOptions: " + e);
   const Mechanism& mech = c.mechanism;
-  if (!c.target_conversion)
-    throw InputError(c.target_where,
-                     "the case has no train-level target; staging sizes the beds to one: add "
-                     "\"target: {conversion: 0.92}\" at the top level of the case (the overall "
-                     "conversion of the key the whole train should reach)");
-  const int j = key_reaction(mech, c.key);
-  const std::string key = mech.species()[c.key].id;
-  if (j < 0 || !mech.reactions()[j].reversible) {
-    const Reaction& rx = mech.reactions()[std::max(j, 0)];
-    throw InputError(
-        j < 0 ? SourceLocation{c.file, 0, 0} : rx.where,
-        fmt::format("staging needs a reversible reaction that consumes the key {}: equilibrium "
-                    "is what limits an adiabatic bed and sets the interstage cooling; reaction "
-                    "{} ({}) is irreversible; write it with <=> and give its equilibrium",
-                    key, rx.id, rx.equation));
-  }
-  const ReactorSpec* first = nullptr;
-  for (const auto& sp : c.train)
-    if ((first = std::get_if<ReactorSpec>(&sp))) break;
-  if (!first)
-    throw InputError({c.file, 0, 0},
-                     "the train has no reactor; staging needs at least one (its bulk density "
-                     "is given to the staged beds)");
-
-  const bool exo = mech.dH(j, c.feed.T) < 0;
+  const LayoutCase lc = check_layout_case(c, LayoutStudy::Staging);
+  const int j = lc.reaction;
+  const std::string& key = lc.key;
+  const bool exo = lc.exothermic;
   const Setup s{c,
                 mech,
                 c.conversion_basis(),
-                *c.target_conversion,
+                lc.target,
                 exo,
                 exo ? c.limits.T_max : c.limits.T_in_min,
                 exo ? StagingLimit::TMax : StagingLimit::TInMin,
-                exo ? "T_max" : "T_in_min"};
+                exo ? "T_max" : "T_in_min",
+                lc.bulk_density,
+                lc.bed_where};
   if (options.return_to == ReturnTo::MaxRate && !s.exothermic && !c.limits.T_max)
     throw InputError(
         c.limits.where,
@@ -546,7 +522,7 @@ StagingResult run_staging(const Case& c, const StagingOptions& options) {
   SunContext ctx;
   check_as_given(s, options, ctx, res);
   res.reachable = res.limited_by == StagingLimit::None;
-  build_staged(s, options, *first, ctx, res);
+  build_staged(s, options, ctx, res);
 
   LimitCheckOptions lo = options.limit_check;
   lo.locate = lo.locate && options.solvers.tube.full_profile;

@@ -65,6 +65,7 @@
 #include "rxtrain/stages/limit_check.hpp"
 #include "rxtrain/stages/pfr.hpp"
 #include "rxtrain/stages/solver_options.hpp"
+#include "rxtrain/studies/bed_layout.hpp"
 
 namespace rxtrain {
 
@@ -130,13 +131,9 @@ struct DesignOptions {
   std::string validate() const;
 };
 
-struct DesignBed {
-  std::string id;              // B1, B2, ...
-  double T_in = 0, T_out = 0;  // K; T is monotone along the bed
-  double X_in = 0, X_out = 0;
-  double X_ad_eq = 0;                   // where the bed's adiabatic line meets equilibrium
-  double volume = 0;                    // m3
-  std::optional<double> catalyst_mass;  // kg (per-catalyst rates)
+// A bed of an optimized layout (Bed: bed_layout.hpp; T is monotone along
+// it, so T_max and T_min are its ends).
+struct DesignBed : Bed {
   // Rate of the key reaction at the inlet and outlet, in its own basis
   // (mol/(kg s) or mol/(m3 s)).
   double rate_in = 0, rate_out = 0;
@@ -191,20 +188,14 @@ struct InletCondition {
   std::vector<ActiveLimit> exempt_by;
 };
 
-struct DesignExchanger {
-  std::string id;              // C1, ... (H1, ... heating); F0 feed conditioning
-  double T_in = 0, T_out = 0;  // K
-  double duty = 0;             // W, heat added (< 0 for a cooler)
-};
-
 // One optimized layout of N beds.
 struct DesignLayout {
   int beds = 0;
   bool feasible = false;
   std::string why;  // infeasible: plain words on what cannot be met
   std::vector<DesignBed> bed;
-  std::vector<DesignExchanger> coolers;  // between beds: N - 1
-  DesignExchanger feed_conditioning;     // feed T -> bed 1's inlet
+  std::vector<Interstage> coolers;       // between beds: N - 1 (C1, ...; H1, ... heating)
+  Interstage feed_conditioning;          // E0: feed T -> bed 1's inlet
   double total_volume = 0;               // m3
   std::optional<double> total_catalyst;  // kg (per-catalyst rates)
   double total_duty = 0;                 // W, sum of the interstage exchangers
@@ -277,11 +268,12 @@ struct DesignResult {
 // window (naming the best reached); SolverError on a numerical failure.
 DesignResult optimize_design(const Case& c, const DesignOptions& options = {});
 
-// The stages of a layout as a train the case format holds: an exchanger
-// from the feed to bed 1's inlet temperature (when they differ), then bed,
-// exchanger, bed, ...; beds are adiabatic PFRs given by catalyst mass
-// (per-catalyst rates) or volume, with the result's bulk density. Stage
-// ids avoid the case's species and reaction ids.
+// The stages of a layout as a train the case format holds (layout_stages):
+// an exchanger from the feed to bed 1's inlet temperature (when they differ
+// and the feed is not fixed), then bed, exchanger, bed, ...; beds are
+// adiabatic PFRs given by catalyst mass (per-catalyst rates) or volume,
+// with the result's bulk density. Stage ids avoid the case's species and
+// reaction ids.
 std::vector<StageSpec> design_train(const Case& c, const DesignResult& d,
                                     const DesignLayout& layout);
 

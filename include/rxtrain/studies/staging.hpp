@@ -42,6 +42,7 @@
 #include "rxtrain/flowsheet/train.hpp"
 #include "rxtrain/models/equilibrium.hpp"
 #include "rxtrain/stages/solver_options.hpp"
+#include "rxtrain/studies/bed_layout.hpp"
 
 namespace rxtrain {
 
@@ -112,23 +113,13 @@ struct LimitPoint {
   bool beyond_bed = false;
 };
 
-struct StagedBed {
-  std::string id;                                    // B1, B2, ...
-  double T_in = 0, T_out = 0, T_max = 0, T_min = 0;  // K
-  double X_in = 0, X_out = 0;
-  double X_ad_eq = 0, T_ad_eq = 0;      // from the bed's inlet
-  double volume = 0;                    // m3
-  std::optional<double> catalyst_mass;  // kg (with a bulk density)
+// A bed of the staged answer (Bed: bed_layout.hpp).
+struct StagedBed : Bed {
+  double T_ad_eq = 0;  // K, where the bed's adiabatic line meets equilibrium
   // Why the bed ends: "approach", "T_max", "T_in_min" or "target";
   // "floor" when it ran on past its approach point to where the exchanger
   // after it takes back min_return of its temperature change.
   std::string ended_by;
-};
-
-struct StagedExchanger {
-  std::string id;              // C1, C2, ... (H1, ... when heating)
-  double T_in = 0, T_out = 0;  // K
-  double duty = 0;             // W, heat added (< 0 for a cooler)
 };
 
 struct StagingResult {
@@ -158,11 +149,11 @@ struct StagingResult {
   std::vector<AsGivenStage> as_given;
 
   // ---- the staged answer
-  bool target_reached = false;           // by the staged beds within max_beds
-  int beds_needed = 0;                   // when target_reached
-  std::vector<StagedBed> beds;           // the beds built (max_beds when not reached)
-  std::vector<StagedExchanger> coolers;  // between beds: beds.size() - 1
-  double staged_conversion = 0;          // outlet of the last bed: the most reachable when short
+  bool target_reached = false;      // by the staged beds within max_beds
+  int beds_needed = 0;              // when target_reached
+  std::vector<StagedBed> beds;      // the beds built (max_beds when not reached)
+  std::vector<Interstage> coolers;  // between beds: beds.size() - 1
+  double staged_conversion = 0;     // outlet of the last bed: the most reachable when short
   // Inlet policy: X_eq at bed 1's inlet temperature, which any number of
   // beds approaches but never passes. Empty for the max-rate policy.
   std::optional<double> conversion_limit;

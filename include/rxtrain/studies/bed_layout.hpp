@@ -1,0 +1,93 @@
+// The bed layout the staged studies share (staging.hpp, optimize.hpp): a
+// train of adiabatic beds with an exchanger between each two (and, for the
+// optimizer, one conditioning the feed), the check of a case for such a
+// study, and the one place a layout becomes stage specs. SI units (T in K,
+// volumes m3, masses kg, duties W, heat added to the stream positive).
+//
+// Example:
+//   const LayoutCase lc = check_layout_case(c, LayoutStudy::Staging);
+//   ReactorSpec b = bed_stage("B1", lc.bulk_density, where);  // sized later
+//   std::vector<StageSpec> train = layout_stages(layout, where);
+#pragma once
+
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "rxtrain/case/case.hpp"
+
+namespace rxtrain {
+
+// A conversion counts as reached when it is within this (absolute) of the
+// conversion aimed at, in every comparison of the staged studies. 1e-6:
+// far below the four decimals shown, above the CVODE root on a conversion
+// (~1e-10) and above the agreement of the optimizer's quadrature with the
+// train solver on the same beds (its check warns only past 1e-5), so that
+// a train written by `optimize` reaches its own target when run again.
+inline constexpr double kReachTolerance = 1e-6;
+
+// One adiabatic bed of a layout. T is monotone along an adiabatic bed of
+// one reaction; with several, T_max and T_min are the extremes inside it.
+struct Bed {
+  std::string id;                                    // B1, B2, ...
+  double T_in = 0, T_out = 0, T_max = 0, T_min = 0;  // K
+  double X_in = 0, X_out = 0;
+  double X_ad_eq = 0;                   // where the bed's adiabatic line meets equilibrium
+  double volume = 0;                    // m3
+  std::optional<double> catalyst_mass;  // kg (with a bulk density)
+};
+
+// An exchanger of a layout: between two beds (C1, ...; H1, ... heating) or
+// conditioning the feed (E0).
+struct Interstage {
+  std::string id;
+  double T_in = 0, T_out = 0;  // K
+  double duty = 0;             // W, heat added (< 0 for a cooler)
+};
+
+// A layout to run as a train: beds given by their size.
+struct BedLayout {
+  std::optional<Interstage> feed_conditioning;  // before bed 1, when it changes the feed
+  std::vector<Bed> beds;
+  std::vector<Interstage> interstages;  // between beds: beds.size() - 1
+  std::optional<double> bulk_density;   // kg/m3, every bed's
+  // Beds given by catalyst mass (with the volume it fills, as the loader
+  // holds them), else by volume.
+  bool by_mass = false;
+};
+
+// What a staged study needs of the case, checked once.
+struct LayoutCase {
+  int reaction = 0;           // the key reaction (key_reaction())
+  std::string key;            // key species id
+  double target = 0;          // train-level target conversion
+  bool exothermic = true;     // sign of the key reaction's dH at the feed
+  bool per_catalyst = false;  // the key reaction's rate is per kg of catalyst
+  bool has_reactor = false;   // the train has a reactor stage
+  // The first reactor's bulk density and place, given to every bed.
+  std::optional<double> bulk_density;
+  SourceLocation bed_where;
+};
+
+// The study a case is checked for, which also names it in the messages.
+//   Staging:  a train-level target, a reversible key reaction, a reactor;
+//   Optimize: a target, both limits, exactly one reaction (reversible),
+//             and a bulk density for a per-catalyst rate.
+enum class LayoutStudy { Staging, Optimize };
+
+// Throws InputError, located at the offending entry of the case, for the
+// first requirement of `study` the case misses.
+LayoutCase check_layout_case(const Case& c, LayoutStudy study);
+
+// An adiabatic tubular bed with the layout's bulk density; the caller sets
+// its size (volume, catalyst mass or target conversion).
+ReactorSpec bed_stage(const std::string& id, const std::optional<double>& bulk_density,
+                      const SourceLocation& where);
+// An exchanger returning the stream to T_out.
+ExchangerSpec interstage_stage(const std::string& id, double T_out, const SourceLocation& where);
+
+// The stages of a layout in train order: the feed conditioning (if any),
+// then bed, exchanger, bed, ...
+std::vector<StageSpec> layout_stages(const BedLayout& layout, const SourceLocation& where);
+
+}  // namespace rxtrain
