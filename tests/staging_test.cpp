@@ -175,7 +175,7 @@ TEST_CASE("an equilibrium-limited bed: three beds with two intercoolers reach th
   REQUIRE(r.as_given.size() == 1);
   CHECK(r.as_given[0].X_ad_eq.value() == Approx(X_ad1).epsilon(1e-8));
   CHECK(r.as_given[0].T_ad_eq.value() == Approx(s.T_at(0, s.T_feed, X_ad1)).epsilon(1e-8));
-  CHECK_THAT(r.why, Catch::Contains("meets equilibrium"));
+  CHECK_THAT(as_given_answer_text(r), Catch::Contains("meets equilibrium"));
 
   // Staged: three beds, two coolers back to the feed temperature.
   REQUIRE(r.target_reached);
@@ -206,7 +206,7 @@ TEST_CASE("an equilibrium-limited bed: three beds with two intercoolers reach th
   }
   // Inlet policy: any number of beds approaches X_eq(T_feed) = 0.8.
   CHECK(r.conversion_limit.value() == Approx(s.X_eq(s.T_feed)).epsilon(1e-9));
-  CHECK_THAT(r.staged_note, Catch::Contains("3 adiabatic beds with 2 intercoolers"));
+  CHECK_THAT(staged_answer_text(r), Catch::Contains("3 adiabatic beds with 2 intercoolers"));
   const std::string text = format_staging_report(r);
   CHECK_THAT(text, Catch::Contains("limited by equilibrium"));
   CHECK_THAT(text, Catch::Contains("licensed engineers"));
@@ -230,8 +230,8 @@ TEST_CASE("T_max, not equilibrium, forces the split", "[staging]") {
   CHECK(r.limit_point->X == Approx(X_cross).epsilon(1e-8));
   CHECK(r.limit_point->V == Approx(s.volume(0, s.T_feed, X_cross)).epsilon(1e-5));
   CHECK_FALSE(r.limit_point->beyond_bed);
-  CHECK_THAT(r.why, Catch::Contains("passes T_max"));
-  CHECK_THAT(r.why, Catch::Contains("before the target"));
+  CHECK_THAT(as_given_answer_text(r), Catch::Contains("passes T_max"));
+  CHECK_THAT(as_given_answer_text(r), Catch::Contains("before the target"));
 
   // Staged: every bed adds (T_max - T_feed) / lambda = 0.2 -> 0.2, 0.4, 0.5.
   const auto X_beds = independent_beds(s, target, 0.9, T_max);
@@ -287,7 +287,7 @@ TEST_CASE("an endothermic train: temperature falls and reheating is suggested", 
     CHECK(h.duty > 0);  // heat added: reheating
     CHECK(h.T_out == Approx(s.T_feed).epsilon(1e-12));
   }
-  CHECK_THAT(r.staged_note, Catch::Contains("interstage heating is needed"));
+  CHECK_THAT(staged_answer_text(r), Catch::Contains("interstage heating is needed"));
   CHECK_THAT(format_staging_report(r), Catch::Contains("heater"));
 }
 
@@ -306,7 +306,7 @@ TEST_CASE("a bed that only needs more catalyst is limited by size", "[staging]")
   // One bed sized to the target is the staged answer: no cooling needed.
   CHECK(r.beds_needed == 1);
   CHECK(r.coolers.empty());
-  CHECK_THAT(r.staged_note, Catch::Contains("no interstage cooling is needed"));
+  CHECK_THAT(staged_answer_text(r), Catch::Contains("no interstage cooling is needed"));
 }
 
 TEST_CASE("a train that reaches its target within T_max is reachable", "[staging]") {
@@ -331,7 +331,7 @@ TEST_CASE("a train that reaches its target within T_max is reachable", "[staging
   CHECK_FALSE(hot.reachable);
   CHECK(hot.limited_by == StagingLimit::TMax);
   CHECK(hot.limit_point->X == Approx((800 - s.T_feed) / s.lambda()).epsilon(1e-8));
-  CHECK_THAT(hot.why, Catch::Contains("after the target"));
+  CHECK_THAT(as_given_answer_text(hot), Catch::Contains("after the target"));
 }
 
 TEST_CASE("a sized stage whose own target lies beyond equilibrium is reported, not thrown",
@@ -347,7 +347,7 @@ TEST_CASE("a sized stage whose own target lies beyond equilibrium is reported, n
   REQUIRE(r.as_given.size() == 3);
   CHECK_FALSE(r.as_given[1].ran);
   CHECK_FALSE(r.as_given[2].ran);
-  CHECK_THAT(r.why, Catch::Contains("its own target X = 0.6000"));
+  CHECK_THAT(as_given_answer_text(r), Catch::Contains("its own target X = 0.6000"));
 }
 
 // The temperature of the highest rate at conversion X within [lo, hi], by
@@ -646,4 +646,47 @@ TEST_CASE("staging command: input errors exit 2 with a located message", "[stagi
   CHECK_THAT(irr.err, Catch::Contains(file.string() + ":8:"));
   CHECK_THAT(irr.err, Catch::Contains("irreversible"));
   std::filesystem::remove(file);
+}
+
+TEST_CASE("the staging answer's words are phrased by the report from the numbers", "[staging]") {
+  // The sentences the study wrote itself before report/ phrased them
+  // (kept word for word; the golden outputs hold the other kinds).
+  StagingResult r;
+  r.target = 0.9;
+  r.exothermic = true;
+  r.limits.T_max = 743.15;  // 470 °C
+  r.max_beds = 4;
+  AsGivenStage a;
+  a.id = "R3";
+  a.ran = true;
+  a.X_out = 0.8123;
+  StageNote n;
+  n.kind = StageNoteKind::EnlargedPassesLimit;
+  n.at = {0.85, 12.5, 743.15, true};
+  a.notes = {n};
+  r.as_given = {a};
+  r.limited_by = StagingLimit::TMax;
+  r.limiting_stage = "R3";
+  CHECK(as_given_answer_text(r) ==
+        "stage R3 reaches X = 0.8123; enlarged, it would pass T_max 470.00 °C at X = 0.8500, "
+        "V = 12.5 m3 from its inlet, before the target");
+  n.kind = StageNoteKind::PassesLimit;
+  n.before_target = false;
+  r.as_given[0].notes = {n};
+  CHECK(stage_note_text(r, r.as_given[0]) ==
+        "passes T_max = 470.00 °C at X = 0.8500, V = 12.5 m3 from its inlet, after the target (a "
+        "bed ending where X reaches 0.9000 would stay within it)");
+
+  r.staged_conversion = 0.7;
+  r.beds.resize(2);
+  r.stop = {StagedStopKind::NoProgress, 3, 673.15, 0.7};
+  CHECK(staged_answer_text(r) ==
+        "the target X = 0.9000 is out of reach with up to 4 beds: bed 3 cannot progress: fed at "
+        "400.00 °C and X = 0.7000, the stream is already at equilibrium; the beds before reach "
+        "X = 0.7000");
+  r.beds.clear();
+  r.stop = {StagedStopKind::EndsAtInlet, 1, 743.15, 0.0};
+  CHECK(staged_answer_text(r) ==
+        "the target X = 0.9000 is out of reach with up to 4 beds: bed 1 ends at its inlet (T_max "
+        "470.00 °C)");
 }

@@ -75,8 +75,9 @@ std::string gains(const DesignResult& d) {
       h += line(fmt::format("Against the case as written, {} reactors", a.reactors),
                 objective_of(d, a.total_catalyst, a.total_volume));
     else
-      h += fmt::format("<li>The case as written: {}</li>\n",
-                       xml_escape(a.note.empty() ? "not comparable" : a.note));
+      h += fmt::format(
+          "<li>The case as written: {}</li>\n",
+          xml_escape(as_written_text(d).empty() ? "not comparable" : as_written_text(d)));
   }
   if (d.staging) {
     const auto& s = *d.staging;
@@ -84,7 +85,7 @@ std::string gains(const DesignResult& d) {
       h += line(fmt::format("Against the staging policy, {} beds", s.beds),
                 objective_of(d, s.total_catalyst, s.total_volume));
     else
-      h += fmt::format("<li>The staging policy: {}</li>\n", xml_escape(s.note));
+      h += fmt::format("<li>The staging policy: {}</li>\n", xml_escape(staging_policy_text(d)));
   }
   return h + "</ul>\n";
 }
@@ -219,7 +220,7 @@ std::string optimize_report_html(const Case& c, const DesignResult& d,
   if (!d.by_bed_count.empty())
     h += "<h2 id=\"by-bed-count\">Beds against catalyst</h2>\n" + by_bed_count_table(d);
   h += html::figures_section(figures);
-  h += html::warnings_section(d.warnings);
+  h += html::warnings_section(optimize_warnings(d));
   h += html::inputs_section(c);
   h += html::page_end();
   return h;

@@ -119,7 +119,7 @@ std::string optimize_json_text(const DesignResult& d) {
                        {"total_catalyst", json_number(a.total_catalyst)},
                        {"total_duty", a.ran ? json_number(a.total_duty) : json(nullptr)},
                        {"saving", comparable ? json_number(saving(d, other)) : json(nullptr)},
-                       {"note", a.note.empty() ? json(nullptr) : json(a.note)}};
+                       {"note", as_written_text(d).empty() ? json(nullptr) : json(as_written_text(d))}};
   } else {
     j["as_written"] = nullptr;
   }
@@ -133,7 +133,7 @@ std::string optimize_json_text(const DesignResult& d) {
         {"saving",
          s.reached ? json_number(saving(d, objective_total(d, s.total_catalyst, s.total_volume)))
                    : json(nullptr)},
-        {"note", s.note}};
+        {"note", staging_policy_text(d)}};
   } else {
     j["staging"] = nullptr;
   }
@@ -146,10 +146,10 @@ std::string optimize_json_text(const DesignResult& d) {
          {"total_catalyst", c.feasible ? json_number(c.total_catalyst) : json(nullptr)},
          {"total_volume", c.feasible ? json_number(c.total_volume) : json(nullptr)},
          {"total_duty", c.feasible ? json_number(c.total_duty) : json(nullptr)},
-         {"why", c.feasible ? json(nullptr) : json(c.why)}});
+         {"why", c.feasible ? json(nullptr) : json(shortfall_message(d, c.shortfall))}});
   j["by_bed_count"] = counts;
   j["limit_check"] = limit_check_json(d.limit_check);
-  j["warnings"] = d.warnings;
+  j["warnings"] = optimize_warnings(d);
   j["caution"] = kCaution;
   return j.dump(2) + "\n";
 }
@@ -252,10 +252,10 @@ std::string gain_lines(const DesignResult& d) {
     if (a.ran && a.reaches_target && a.within_limits && other && *other > 0)
       out += gain_line(d, what, *other);
     else if (a.ran)
-      out += fmt::format("  against {}: not comparable, it {}{}\n", what, a.note,
+      out += fmt::format("  against {}: not comparable, it {}{}\n", what, as_written_text(d),
                          other ? fmt::format(" (it holds {})", amount_text(d, *other)) : "");
     else
-      out += fmt::format("  against the case as written: it {}\n", a.note);
+      out += fmt::format("  against the case as written: it {}\n", as_written_text(d));
   }
   if (d.staging) {
     const auto& s = *d.staging;
@@ -266,7 +266,7 @@ std::string gain_lines(const DesignResult& d) {
                                    s.beds == 1 ? "" : "s"),
                        *other);
     else
-      out += fmt::format("  against the staging policy: {}\n", s.note);
+      out += fmt::format("  against the staging policy: {}\n", staging_policy_text(d));
   }
   return out;
 }
@@ -296,7 +296,7 @@ std::string by_bed_count_lines(const DesignResult& d, int max_beds) {
   }
   out += render_columns(t, 1);
   for (const auto& c : d.by_bed_count)
-    if (!c.feasible) out += fmt::format("  {} bed{}: {}\n", c.beds, c.beds == 1 ? "" : "s", c.why);
+    if (!c.feasible) out += fmt::format("  {} bed{}: {}\n", c.beds, c.beds == 1 ? "" : "s", shortfall_message(d, c.shortfall));
   return out;
 }
 
@@ -306,7 +306,7 @@ std::string optimize_table(const DesignResult& d, const DesignOptions& o) {
   std::string out = header_lines(d) + layout_tables(d, d.best) + conditions_lines(d, d.best);
   out += gain_lines(d);
   if (!d.by_bed_count.empty()) out += by_bed_count_lines(d, o.max_beds.value_or(0));
-  return out + warnings_and_caution(d.warnings);
+  return out + warnings_and_caution(optimize_warnings(d));
 }
 
 }  // namespace rxtrain

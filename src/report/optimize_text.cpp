@@ -5,6 +5,7 @@
 #include <cmath>
 #include <vector>
 
+#include "rxtrain/report/staging_report.hpp"
 #include "rxtrain/report/text_format.hpp"
 
 namespace rxtrain {
@@ -191,6 +192,55 @@ std::string window_text(const DesignResult& d) {
   if (d.margin <= 0) return "within " + limits;
   return fmt::format("kept {:g} K inside the limits {}: from {} °C to {} °C", d.margin, limits,
                      celsius_text(d.window_low), celsius_text(d.window_high));
+}
+
+}  // namespace rxtrain
+
+namespace rxtrain {
+
+std::string as_written_text(const DesignResult& d) {
+  if (!d.as_written) return {};
+  const AsWrittenDesign& a = *d.as_written;
+  if (!a.ran) return fmt::format("does not run: {}", a.error);
+  std::vector<std::string> notes;
+  if (!a.reaches_target)
+    notes.push_back(
+        fmt::format("reaches X = {:.4f}, short of the target {:.4f}", a.conversion, d.target));
+  for (const auto& x : a.outside_window)
+    notes.push_back(
+        x.above ? fmt::format("{} reaches {}, above {} ({})", x.stage, celsius_unit_text(x.T),
+                              high_label(d), celsius_unit_text(d.window_high))
+                : fmt::format("{} runs down to {}, below {} ({})", x.stage, celsius_unit_text(x.T),
+                              low_label(d), celsius_unit_text(d.window_low)));
+  for (const auto& f : a.limit_check.findings)
+    if (f.kind != LimitFindingKind::Near)
+      notes.push_back(limit_finding_text(f, a.limit_check.margin));
+  std::string s;
+  for (const auto& n : notes) s += (s.empty() ? "" : "; ") + n;
+  return s;
+}
+
+std::string staging_policy_text(const DesignResult& d) {
+  return d.staging ? staged_answer_text(d.staging->result) : std::string();
+}
+
+std::vector<std::string> optimize_warnings(const DesignResult& d) {
+  std::vector<std::string> w = d.warnings;
+  if (d.check_disagrees)
+    w.push_back(fmt::format(
+        "the optimum's beds run by the train solver reach X = {:.6f}, not the target {:.6f}: "
+        "the optimizer's quadrature and the ODE solver disagree; treat the sizes with care",
+        d.best.checked_conversion, d.target));
+  for (const auto& f : d.limit_check.findings)
+    w.push_back("the optimum: " + limit_finding_text(f, d.limit_check.margin));
+  if (const auto& dT = d.dT_ad_past_T_max)
+    w.push_back(fmt::format(
+        "the adiabatic temperature rise of the feed at full conversion of {} is {:.1f} K "
+        "(from {} to {}), above T_max = {}: the beds are cut short by T_max or equilibrium "
+        "and the stream is cooled between them",
+        d.key, *dT, celsius_unit_text(d.feed_T), celsius_unit_text(d.feed_T + *dT),
+        celsius_unit_text(d.limits.T_max.value_or(0.0))));
+  return w;
 }
 
 }  // namespace rxtrain

@@ -4,6 +4,7 @@
 
 #include <cmath>
 
+#include "rxtrain/report/staging_report.hpp"
 #include "rxtrain/report/text_format.hpp"
 
 namespace rxtrain {
@@ -32,7 +33,8 @@ std::string as_given_table(const StagingResult& r) {
       h += cell("-", true) + cell("-", true);
     h += cell(fixed_text(a.X_in, 4), true) + cell(a.ran ? fixed_text(a.X_out, 4) : "-", true) +
          cell(fixed_text(a.X_ad_eq, 4), true) + optional_temperature_cell(a.T_ad_eq) +
-         cell(a.ran ? volume_text(a.volume) : "-", true) + cell(a.note, false) + "</tr>\n";
+         cell(a.ran ? volume_text(a.volume) : "-", true) + cell(stage_note_text(r, a), false) +
+         "</tr>\n";
   }
   return h + "</table>\n";
 }
@@ -127,12 +129,13 @@ std::string staging_report_html(const Case& c, const StagingResult& r,
     h += fmt::format("; adiabatic temperature {} of the feed at full conversion {} K",
                      *r.dT_ad >= 0 ? "rise" : "fall", fixed_text(std::abs(*r.dT_ad), 2));
   h += ".</p>\n";
-  h += fmt::format("<p><strong>Can the train as given reach the target?</strong> {}</p>\n",
-                   xml_escape(r.reachable ? fmt::format("Yes: {}.", r.why)
-                                          : fmt::format("No (limited by {}): {}.",
-                                                        limit_name(r.limited_by), r.why)));
+  h += fmt::format(
+      "<p><strong>Can the train as given reach the target?</strong> {}</p>\n",
+      xml_escape(r.reachable ? fmt::format("Yes: {}.", as_given_answer_text(r))
+                             : fmt::format("No (limited by {}): {}.", limit_name(r.limited_by),
+                                           as_given_answer_text(r))));
   h += fmt::format("<p><strong>Is interstage {} needed, and where?</strong> {}.</p>\n",
-                   r.exothermic ? "cooling" : "heating", xml_escape(r.staged_note));
+                   r.exothermic ? "cooling" : "heating", xml_escape(staged_answer_text(r)));
   h += fmt::format(
       "<p>Policy: each bed runs until it is {} % of the way from its inlet conversion to its "
       "adiabatic equilibrium conversion X_ad_eq, or until {}, or until the target; the {} "

@@ -44,7 +44,7 @@ json staging_json(const StagingResult& r) {
   j["reachable"] = r.reachable;
   j["limited_by"] = text_or_null(limit_name(r.limited_by));
   j["limiting_stage"] = text_or_null(r.limiting_stage);
-  j["why"] = r.why;
+  j["why"] = as_given_answer_text(r);
   j["limit_point"] = r.limit_point ? json{{"X", json_number(r.limit_point->X)},
                                           {"V", json_number(r.limit_point->V)},
                                           {"T", json_number(r.limit_point->T)},
@@ -66,14 +66,14 @@ json staging_json(const StagingResult& r) {
                      {"volume", json_number(a.volume)},
                      {"X_ad_eq", json_number(a.X_ad_eq)},
                      {"T_ad_eq", json_number(a.T_ad_eq)},
-                     {"note", text_or_null(a.note)},
+                     {"note", text_or_null(stage_note_text(r, a))},
                      {"limit", limit_of(r.as_given_run, a.id)}});
   j["as_given"] = given;
   j["target_reached"] = r.target_reached;
   j["beds_needed"] = r.target_reached ? json(r.beds_needed) : json(nullptr);
   j["staged_conversion"] = json_number(r.staged_conversion);
   j["conversion_limit"] = json_number(r.conversion_limit);
-  j["staged_note"] = r.staged_note;
+  j["staged_note"] = staged_answer_text(r);
   j["policy"] = {
       {"approach", json_number(r.approach)},
       {"return_to", return_to_name(r.return_to)},

@@ -52,9 +52,10 @@ std::string format_staging_report(const StagingResult& r) {
   // 1. The train as given.
   out += "Can the train as given reach the target?\n";
   if (r.reachable)
-    out += fmt::format("  Yes: {}.\n", r.why);
+    out += fmt::format("  Yes: {}.\n", as_given_answer_text(r));
   else
-    out += fmt::format("  No (limited by {}): {}.\n", limit_name(r.limited_by), r.why);
+    out += fmt::format("  No (limited by {}): {}.\n", limit_name(r.limited_by),
+                       as_given_answer_text(r));
   std::vector<std::vector<std::string>> rows;
   // The extreme the bed runs to: hottest (exothermic) or coldest point.
   const char* extreme = r.exothermic ? "T peak °C" : "T lowest °C";
@@ -77,12 +78,13 @@ std::string format_staging_report(const StagingResult& r) {
       "  X_ad_eq, T_ad_eq: where the stage's adiabatic line from its inlet meets equilibrium "
       "(the most it can reach at any size)\n";
   for (const auto& a : r.as_given)
-    if (!a.note.empty() && a.id != r.limiting_stage) out += fmt::format("  {}: {}\n", a.id, a.note);
+    if (!a.notes.empty() && a.id != r.limiting_stage)
+      out += fmt::format("  {}: {}\n", a.id, stage_note_text(r, a));
   out += "\n";
 
   // 2. The staged answer.
   out += fmt::format("Is interstage {} needed, and where?\n", r.exothermic ? "cooling" : "heating");
-  out += fmt::format("  {}.\n", r.staged_note);
+  out += fmt::format("  {}.\n", staged_answer_text(r));
   out += fmt::format("  {}\n", policy_text(r));
   if (!r.beds.empty()) {
     std::vector<std::vector<std::string>> b;

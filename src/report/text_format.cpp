@@ -91,6 +91,7 @@ std::string bar_text(double P) {
 }
 
 std::string celsius_text(double T) { return fixed_text(T - kZeroCelsius, 2); }
+std::string celsius_unit_text(double T) { return celsius_text(T) + " °C"; }
 
 std::size_t display_width(const std::string& s) {
   std::size_t n = 0;

@@ -110,30 +110,24 @@ std::vector<detail::StartLayout> starts_for(const Setup& s, const DesignOptions&
   return out;
 }
 
-std::string infeasible_text(const Setup& s, const detail::LayoutProblem& p,
-                            const detail::LayoutState& st) {
-  if (!st.evaluable)
-    return "no layout could be evaluated (the energy balance or the equilibrium of a bed has no "
-           "solution)";
+// What the best infeasible layout misses most (its largest constraint
+// violation: 2n the far end of bed n, 2n+1 its equilibrium, 2N the target).
+LayoutShortfall shortfall_of(const detail::LayoutProblem& p, const detail::LayoutState& st) {
+  LayoutShortfall f;
+  if (!st.evaluable) return f;
   int worst = 0;
   for (int k = 1; k < p.n_constraints(); ++k)
     if (st.constraints[k] > st.constraints[worst]) worst = k;
-  if (worst == 2 * p.beds) {
-    const int n = p.beds - 1;
-    return fmt::format(
-        "the best layout found still falls short: bed {} can reach at most X = {:.4f} (its "
-        "adiabatic equilibrium, fed at {} and X = {:.4f}) while the target is {:.4f}",
-        p.beds, st.X_in[n] + p.s_max * (st.X_e[n] - st.X_in[n]), celsius(st.T_in[n]), st.X_in[n],
-        s.target);
-  }
-  const int n = worst / 2;
-  if (worst % 2 == 0)
-    return fmt::format("the best layout found still {} {} = {}: bed {} ends at {}",
-                       s.exothermic ? "passes" : "falls below",
-                       s.exothermic ? s.hi_label : s.lo_label,
-                       celsius(s.exothermic ? s.T_hi : s.T_lo), n + 1, celsius(st.T_out[n]));
-  return fmt::format("the best layout found feeds bed {} beyond equilibrium ({} at X = {:.4f})",
-                     n + 1, celsius(st.T_in[n]), st.X_in[n]);
+  f.bed = worst == 2 * p.beds ? p.beds - 1 : worst / 2;
+  f.kind = worst == 2 * p.beds ? ShortfallKind::LastBedShort
+           : worst % 2 == 0    ? ShortfallKind::PassesLimit
+                               : ShortfallKind::BeyondEquilibrium;
+  const int n = f.bed;
+  f.T_in = st.T_in[n];
+  f.X_in = st.X_in[n];
+  f.T_out = st.T_out[n];
+  f.X_reach = st.X_in[n] + p.s_max * (st.X_e[n] - st.X_in[n]);
+  return f;
 }
 
 // The limits that hold the beds of a layout (within kActiveTolerance).
@@ -230,7 +224,7 @@ DesignLayout make_layout(const Setup& s, const detail::AdiabaticBedModel& model,
   const auto& st = sol.state;
   if (!l.feasible || !st.evaluable) {
     l.feasible = false;
-    l.why = infeasible_text(s, p, st);
+    l.shortfall = shortfall_of(p, st);
     return l;
   }
   const char* exchanger = s.exothermic ? "C" : "H";
@@ -296,21 +290,22 @@ AsWrittenDesign as_written(const Setup& s, const DesignOptions& o) {
   try {
     r = run_train(s.c, to);
   } catch (const InputError& e) {
-    a.note = fmt::format("does not run: {}", e.message());
+    a.error = e.message();
     return a;
   } catch (const InfeasibleError& e) {
-    a.note = fmt::format("does not run: {}", e.message());
+    a.error = e.message();
     return a;
   } catch (const SolverError& e) {
-    a.note = fmt::format("does not run: {}", e.what());
+    a.error = e.what();
     return a;
   }
   a.ran = true;
   a.conversion = r.conversion;
   a.reaches_target = r.conversion >= s.target - kReachTolerance;
-  a.within_limits = true;
   bool all_mass = true;
-  std::vector<std::string> notes;
+  // Inside the window narrowed by a margin: the limits themselves are the
+  // limit check's, so only a margin adds excursions.
+  const bool narrowed = s.T_hi < *s.c.limits.T_max || s.T_lo > *s.c.limits.T_in_min;
   for (const auto& st : r.stages) {
     if (st.kind == StageKind::Exchanger) {
       a.total_duty += st.duty;
@@ -322,31 +317,17 @@ AsWrittenDesign as_written(const Setup& s, const DesignOptions& o) {
       a.total_catalyst = a.total_catalyst.value_or(0.0) + *st.catalyst_mass;
     else
       all_mass = false;
-    // Inside the window narrowed by a margin: the limits themselves are
-    // the limit check's (below), so only a margin adds these.
-    if (s.T_hi < *s.c.limits.T_max || s.T_lo > *s.c.limits.T_in_min) {
-      if (st.T_max > s.T_hi + kActiveTolerance) {
-        a.within_limits = false;
-        notes.push_back(fmt::format("{} reaches {}, above {} ({})", st.id, celsius(st.T_max),
-                                    s.hi_label, celsius(s.T_hi)));
-      }
-      if (st.T_min < s.T_lo - kActiveTolerance) {
-        a.within_limits = false;
-        notes.push_back(fmt::format("{} runs down to {}, below {} ({})", st.id, celsius(st.T_min),
-                                    s.lo_label, celsius(s.T_lo)));
-      }
-    }
+    if (narrowed && st.T_max > s.T_hi + kActiveTolerance)
+      a.outside_window.push_back({st.id, st.T_max, true});
+    if (narrowed && st.T_min < s.T_lo - kActiveTolerance)
+      a.outside_window.push_back({st.id, st.T_min, false});
   }
-  for (const auto& f : r.limit_check.findings)
-    if (f.kind != LimitFindingKind::Near) {
-      a.within_limits = false;
-      notes.push_back(limit_finding_text(f, r.limit_check.margin));
-    }
+  a.limit_check = r.limit_check;
+  a.within_limits =
+      a.outside_window.empty() &&
+      std::none_of(r.limit_check.findings.begin(), r.limit_check.findings.end(),
+                   [](const LimitFinding& f) { return f.kind != LimitFindingKind::Near; });
   if (!all_mass) a.total_catalyst.reset();
-  if (!a.reaches_target)
-    notes.insert(notes.begin(), fmt::format("reaches X = {:.4f}, short of the target {:.4f}",
-                                            a.conversion, s.target));
-  for (const auto& n : notes) a.note += (a.note.empty() ? "" : "; ") + n;
   return a;
 }
 
@@ -379,7 +360,7 @@ Window window_of(const Case& c, const DesignOptions& o) {
 StagingDesign staging_of(const StagingResult& r) {
   StagingDesign d;
   d.reached = r.target_reached;
-  d.note = r.staged_note;
+  d.result = r;
   d.beds = r.target_reached ? r.beds_needed : static_cast<int>(r.beds.size());
   bool all_mass = true;
   for (const auto& b : r.beds) {
@@ -413,6 +394,34 @@ std::string DesignOptions::validate() const {
   return {};
 }
 
+std::string shortfall_message(const DesignResult& d, const LayoutShortfall& f) {
+  const int bed = f.bed + 1;
+  const auto label = [&](bool high) {
+    return d.margin > 0 ? fmt::format("{} {} {:g} K", high ? "T_max" : "T_in_min", high ? "-" : "+",
+                                      d.margin)
+                        : std::string(high ? "T_max" : "T_in_min");
+  };
+  switch (f.kind) {
+    case ShortfallKind::NotEvaluable:
+      break;
+    case ShortfallKind::LastBedShort:
+      return fmt::format(
+          "the best layout found still falls short: bed {} can reach at most X = {:.4f} (its "
+          "adiabatic equilibrium, fed at {} and X = {:.4f}) while the target is {:.4f}",
+          bed, f.X_reach, celsius(f.T_in), f.X_in, d.target);
+    case ShortfallKind::PassesLimit:
+      return fmt::format("the best layout found still {} {} = {}: bed {} ends at {}",
+                         d.exothermic ? "passes" : "falls below", label(d.exothermic),
+                         celsius(d.exothermic ? d.window_high : d.window_low), bed,
+                         celsius(f.T_out));
+    case ShortfallKind::BeyondEquilibrium:
+      return fmt::format("the best layout found feeds bed {} beyond equilibrium ({} at X = {:.4f})",
+                         bed, celsius(f.T_in), f.X_in);
+  }
+  return "no layout could be evaluated (the energy balance or the equilibrium of a bed has no "
+         "solution)";
+}
+
 std::vector<StageSpec> design_train(const Case& c, const DesignResult& d,
                                     const DesignLayout& layout) {
   BedLayout l;
@@ -425,80 +434,48 @@ std::vector<StageSpec> design_train(const Case& c, const DesignResult& d,
   return layout_stages(l, {c.file, 0, 0});
 }
 
-DesignResult optimize_design(const Case& c, const DesignOptions& options) {
-  if (const auto e = options.validate(); !e.empty())
-    throw std::invalid_argument("DesignOptions: " + e);
-  const Mechanism& mech = c.mechanism;
-  const LayoutCase lc = check_layout_case(c, LayoutStudy::Optimize);
-  const int j = lc.reaction;
-  const std::string& key = lc.key;
-  const bool catalyst = lc.per_catalyst;
-  const Window w = window_of(c, options);
-  const double T_lo = w.T_lo, T_hi = w.T_hi;
-  Setup s{c,     mech,           c.conversion_basis(), j,         lc.target,
-          T_lo,  T_hi,           lc.exothermic,        catalyst,  lc.bulk_density,
-          Ids{}, options.margin, w.hi_label,           w.lo_label};
-  for (const auto& sp : mech.species()) s.ids.taken.insert(sp.id);
-  for (const auto& rx : mech.reactions()) s.ids.taken.insert(rx.id);
+namespace {
 
-  DesignResult res;
-  res.title = c.title;
-  res.key = key;
-  res.target = s.target;
-  res.limits = c.limits;
-  res.exothermic = s.exothermic;
-  res.catalyst_objective = catalyst;
-  res.feed_T = c.feed.T;
-  res.bulk_density = s.bulk_density;
-  res.fixed_feed_T = options.fixed_feed_T;
-  res.margin = options.margin;
-  res.window_low = T_lo;
-  res.window_high = T_hi;
-  res.warnings = c.warnings;
+// The staging policy's answers (inlet and max-rate) in the optimum's
+// window: a comparison and starts.
+struct StagedStarts {
+  std::optional<StagingResult> inlet, max_rate;
+};
 
-  const double X0 = s.basis.conversion(c.feed);
-  if (!(s.target > X0))
-    throw InputError(c.target_where, "the target conversion is not above the feed's");
-
-  // The staging policy's answers: a comparison and starts. A failure
-  // there (e.g. a target it cannot reach) takes nothing from the optimum.
-  std::optional<StagingResult> staged_inlet, staged_optimal;
-  if (lc.has_reactor) {
-    try {
-      StagingOptions so;
-      so.solvers = options.solvers;
-      // The staging policy keeps the same window as the optimum.
-      Case narrowed = c;
-      narrowed.limits.T_in_min = T_lo;
-      narrowed.limits.T_max = T_hi;
-      validate_case(narrowed);
-      staged_inlet = run_staging(narrowed, so);
-      so.return_to = ReturnTo::MaxRate;
-      staged_optimal = run_staging(narrowed, so);
-    } catch (const std::exception& e) {
-      res.warnings.push_back(fmt::format("the staging policy was not run: {}", e.what()));
-    }
+StagedStarts run_staging_policies(const Setup& s, const DesignOptions& options, DesignResult& res) {
+  StagedStarts out;
+  try {
+    StagingOptions so;
+    so.solvers = options.solvers;
+    // The staging policy keeps the same window as the optimum.
+    Case narrowed = s.c;
+    narrowed.limits.T_in_min = s.T_lo;
+    narrowed.limits.T_max = s.T_hi;
+    validate_case(narrowed);
+    out.inlet = run_staging(narrowed, so);
+    so.return_to = ReturnTo::MaxRate;
+    out.max_rate = run_staging(narrowed, so);
+  } catch (const std::exception& e) {
+    // A failure there (e.g. a target it cannot reach) takes nothing from
+    // the optimum.
+    res.warnings.push_back(fmt::format("the staging policy was not run: {}", e.what()));
   }
+  return out;
+}
 
-  const detail::AdiabaticBedModel model(mech, c.feed, s.basis, j, options.quadrature_panels,
-                                        options.quadrature_nodes, options.solvers.equilibrium);
-  int reactors = 0;
-  for (const auto& sp : c.train) reactors += std::holds_alternative<ReactorSpec>(sp) ? 1 : 0;
-  std::vector<int> counts;
-  if (options.max_beds)
-    for (int n = 1; n <= *options.max_beds; ++n) counts.push_back(n);
-  else
-    counts.push_back(options.beds.value_or(std::max(reactors, 1)));
-
+// The best layout of every bed count in `counts`.
+std::vector<DesignLayout> optimize_counts(const Setup& s, const detail::AdiabaticBedModel& model,
+                                          const std::vector<int>& counts,
+                                          const DesignOptions& options,
+                                          const StagedStarts& staged) {
   std::vector<DesignLayout> layouts;
-  std::string last_why;
   for (int N : counts) {
     detail::LayoutProblem p;
     p.model = &model;
     p.beds = N;
     p.fixed_first = options.fixed_feed_T;
-    p.T_feed = c.feed.T;
-    p.X0 = X0;
+    p.T_feed = s.c.feed.T;
+    p.X0 = s.basis.conversion(s.c.feed);
     p.target = s.target;
     p.T_lo = s.T_lo;
     p.T_hi = s.T_hi;
@@ -507,11 +484,16 @@ DesignResult optimize_design(const Case& c, const DesignOptions& options) {
     p.s_max = options.s_max;
     const auto starts = starts_for(
         s, options, N,
-        {staged_inlet ? &*staged_inlet : nullptr, staged_optimal ? &*staged_optimal : nullptr});
+        {staged.inlet ? &*staged.inlet : nullptr, staged.max_rate ? &*staged.max_rate : nullptr});
     const auto sol = detail::solve_layout(p, starts, options, options.progress);
     layouts.push_back(make_layout(s, model, p, sol, options));
-    if (!layouts.back().feasible) last_why = layouts.back().why;
   }
+  return layouts;
+}
+
+// The least total among the feasible layouts (the fewest beds on a tie);
+// null when none is feasible.
+const DesignLayout* least_total(const std::vector<DesignLayout>& layouts, bool catalyst) {
   const DesignLayout* best = nullptr;
   for (const auto& l : layouts) {
     if (!l.feasible) continue;
@@ -519,6 +501,79 @@ DesignResult optimize_design(const Case& c, const DesignOptions& options) {
     const double best_total = best ? (catalyst ? *best->total_catalyst : best->total_volume) : 0.0;
     if (!best || total < best_total * (1 - 1e-9)) best = &l;
   }
+  return best;
+}
+
+// The independent check: the optimum as a train, run by run_train.
+void check_optimum(const Setup& s, const DesignOptions& options, DesignResult& res) {
+  TrainOptions to;
+  to.solvers = options.solvers;
+  to.equilibrium_views = options.equilibrium_views;
+  to.limit_check = options.limit_check;
+  const Case trial = with_train(s.c, design_train(s.c, res, res.best));
+  res.train = run_train(trial, to);
+  res.best.checked_conversion = res.train.conversion;
+  res.check_disagrees = std::abs(res.train.conversion - s.target) > 1e-5;
+  res.limit_check = res.train.limit_check;
+}
+
+DesignResult result_for(const Setup& s, const DesignOptions& options) {
+  const Case& c = s.c;
+  DesignResult res;
+  res.title = c.title;
+  res.key = c.mechanism.species()[c.key].id;
+  res.target = s.target;
+  res.limits = c.limits;
+  res.exothermic = s.exothermic;
+  res.catalyst_objective = s.catalyst;
+  res.feed_T = c.feed.T;
+  res.bulk_density = s.bulk_density;
+  res.fixed_feed_T = options.fixed_feed_T;
+  res.margin = options.margin;
+  res.window_low = s.T_lo;
+  res.window_high = s.T_hi;
+  res.warnings = c.warnings;
+  // Worth seeing beside the optimum; the train's other design warnings
+  // (rules of thumb on bed length and space time) are not: the optimum
+  // sizes the beds itself.
+  if (const auto dT = adiabatic_temperature_change(c))
+    if (s.exothermic && c.feed.T + *dT > *c.limits.T_max) res.dT_ad_past_T_max = dT;
+  return res;
+}
+
+}  // namespace
+
+DesignResult optimize_design(const Case& c, const DesignOptions& options) {
+  if (const auto e = options.validate(); !e.empty())
+    throw std::invalid_argument("DesignOptions: " + e);
+  const Mechanism& mech = c.mechanism;
+  const LayoutCase lc = check_layout_case(c, LayoutStudy::Optimize);
+  const Window w = window_of(c, options);
+  Setup s{c,      mech,           c.conversion_basis(), lc.reaction,     lc.target,
+          w.T_lo, w.T_hi,         lc.exothermic,        lc.per_catalyst, lc.bulk_density,
+          Ids{},  options.margin, w.hi_label,           w.lo_label};
+  for (const auto& sp : mech.species()) s.ids.taken.insert(sp.id);
+  for (const auto& rx : mech.reactions()) s.ids.taken.insert(rx.id);
+
+  DesignResult res = result_for(s, options);
+  if (!(s.target > s.basis.conversion(c.feed)))
+    throw InputError(c.target_where, "the target conversion is not above the feed's");
+  const StagedStarts staged =
+      lc.has_reactor ? run_staging_policies(s, options, res) : StagedStarts{};
+
+  const detail::AdiabaticBedModel model(mech, c.feed, s.basis, lc.reaction,
+                                        options.quadrature_panels, options.quadrature_nodes,
+                                        options.solvers.equilibrium);
+  int reactors = 0;
+  for (const auto& sp : c.train) reactors += std::holds_alternative<ReactorSpec>(sp) ? 1 : 0;
+  std::vector<int> counts;
+  if (options.max_beds)
+    for (int n = 1; n <= *options.max_beds; ++n) counts.push_back(n);
+  else
+    counts.push_back(options.beds.value_or(std::max(reactors, 1)));
+
+  const std::vector<DesignLayout> layouts = optimize_counts(s, model, counts, options, staged);
+  const DesignLayout* best = least_total(layouts, s.catalyst);
   if (!best)
     throw InfeasibleError(
         c.target_where,
@@ -526,41 +581,15 @@ DesignResult optimize_design(const Case& c, const DesignOptions& options) {
                     "[{}, {}]: {}",
                     counts.size() == 1 ? fmt::format("{} adiabatic beds", counts.front())
                                        : fmt::format("1 to {} adiabatic beds", counts.back()),
-                    s.target, s.lo_label, s.hi_label, celsius(s.T_lo), celsius(s.T_hi), last_why));
+                    s.target, s.lo_label, s.hi_label, celsius(s.T_lo), celsius(s.T_hi),
+                    shortfall_message(res, layouts.back().shortfall)));
   res.best = *best;
   if (options.max_beds) res.by_bed_count = layouts;
-
-  // The independent check: the layout as a train, run by run_train.
-  TrainOptions to;
-  to.solvers = options.solvers;
-  to.equilibrium_views = options.equilibrium_views;
-  to.limit_check = options.limit_check;
-  const Case trial = with_train(c, design_train(c, res, res.best));
-  res.train = run_train(trial, to);
-  const TrainResult& check = res.train;
-  res.best.checked_conversion = check.conversion;
-  if (std::abs(check.conversion - s.target) > 1e-5)
-    res.warnings.push_back(fmt::format(
-        "the optimum's beds run by the train solver reach X = {:.6f}, not the target {:.6f}: "
-        "the optimizer's quadrature and the ODE solver disagree; treat the sizes with care",
-        check.conversion, s.target));
-  res.limit_check = check.limit_check;
-  for (const auto& f : check.limit_check.findings)
-    res.warnings.push_back("the optimum: " + limit_finding_text(f, check.limit_check.margin));
-  // The adiabatic temperature rise against T_max is worth seeing beside
-  // the optimum; the train's other design warnings (rules of thumb on bed
-  // length and space time) are not: the optimum sizes the beds itself.
-  if (const auto dT = adiabatic_temperature_change(c))
-    if (s.exothermic && c.feed.T + *dT > *c.limits.T_max)
-      res.warnings.push_back(fmt::format(
-          "the adiabatic temperature rise of the feed at full conversion of {} is {:.1f} K "
-          "(from {} to {}), above T_max = {}: the beds are cut short by T_max or equilibrium "
-          "and the stream is cooled between them",
-          key, *dT, celsius(c.feed.T), celsius(c.feed.T + *dT), celsius(*c.limits.T_max)));
+  check_optimum(s, options, res);
 
   if (options.compare) {
     res.as_written = as_written(s, options);
-    if (staged_inlet) res.staging = staging_of(*staged_inlet);
+    if (staged.inlet) res.staging = staging_of(*staged.inlet);
   }
   return res;
 }

@@ -20,8 +20,6 @@ namespace {
 // cannot progress.
 constexpr double kNoProgress = 1e-9;
 
-std::string celsius(double T) { return fmt::format("{:.2f} °C", T - kZeroCelsius); }
-
 // Where the train's conversion and temperature limit stand, shared by the
 // two halves of the check.
 struct Setup {
@@ -77,38 +75,51 @@ std::optional<LimitPoint> limit_crossing(const Setup& s, const ReactorSpec& spec
   return LimitPoint{r.conversion, r.volume.value_or(0.0), r.outlet.T, false};
 }
 
-// " within T_max = 480.00 °C" / " without falling below T_in_min = ...".
-std::string within_limit(const Setup& s) {
-  return fmt::format(" {} {} = {}", s.exothermic ? "within" : "without falling below",
-                     s.limit_label, celsius(*s.T_limit));
-}
-
 // ---- the train as given ---------------------------------------------------
 
-void check_as_given(const Setup& s, const StagingOptions& o, const SunContext& ctx,
-                    StagingResult& res) {
+StageKind kind_of(const StageSpec& spec) {
+  if (std::holds_alternative<ExchangerSpec>(spec)) return StageKind::Exchanger;
+  return std::get<ReactorSpec>(spec).type == ReactorType::Cstr ? StageKind::Cstr : StageKind::Pfr;
+}
+
+StageNote note(StageNoteKind kind) {
+  StageNote n;
+  n.kind = kind;
+  return n;
+}
+
+AsGivenStage& stage_of(StagingResult& res, const std::string& id) {
+  return *std::find_if(res.as_given.begin(), res.as_given.end(),
+                       [&](const AsGivenStage& a) { return a.id == id; });
+}
+
+// The last reactor that ran, with its spec and inlet.
+struct LastReactor {
+  const ReactorSpec* spec = nullptr;
+  Stream inlet;
+  std::optional<double> X_ad_eq;
+};
+
+// Runs the stages in order until a sized stage whose own target lies
+// beyond its X_ad_eq (that stage limits the train: Equilibrium); the
+// stages after it are listed as not run.
+LastReactor walk_as_given(const Setup& s, const StagingOptions& o, const SunContext& ctx,
+                          StagingResult& res) {
   const Mechanism& mech = s.mech;
   res.as_given_run = empty_result(s.c);
   res.as_given_run.warnings = s.c.warnings;
   Stream stream = s.c.feed;
-  // A sized stage whose own target lies beyond its X_ad_eq: the walk stops.
   std::string infeasible_stage;
-  // The last reactor that ran, with its spec and inlet.
-  const ReactorSpec* last_spec = nullptr;
-  Stream last_inlet;
-  std::optional<double> last_X_ad_eq;
-
+  LastReactor last;
   for (const auto& spec : s.c.train) {
     AsGivenStage a;
     a.id = stage_id(spec);
+    a.kind = kind_of(spec);
     a.T_in = stream.T;
     a.X_in = s.basis.conversion(stream);
     if (!infeasible_stage.empty()) {
-      a.kind = std::holds_alternative<ExchangerSpec>(spec)             ? StageKind::Exchanger
-               : std::get<ReactorSpec>(spec).type == ReactorType::Cstr ? StageKind::Cstr
-                                                                       : StageKind::Pfr;
-      a.note =
-          fmt::format("not run: stage {} before it cannot reach its own target", infeasible_stage);
+      a.notes.push_back(note(StageNoteKind::NotRun));
+      a.notes.back().blocked_by = infeasible_stage;
       res.as_given.push_back(std::move(a));
       continue;
     }
@@ -123,27 +134,20 @@ void check_as_given(const Setup& s, const StagingOptions& o, const SunContext& c
         a.T_ad_eq = eq->stream.T;
       }
       if (rs.target_conversion && a.X_ad_eq && *rs.target_conversion >= *a.X_ad_eq) {
-        a.kind = rs.type == ReactorType::Cstr ? StageKind::Cstr : StageKind::Pfr;
-        a.note = fmt::format(
-            "its own target X = {:.4f} lies beyond what it can reach at any size: it meets "
-            "equilibrium at X_ad_eq = {:.4f} ({})",
-            *rs.target_conversion, *a.X_ad_eq, celsius(*a.T_ad_eq));
+        a.notes.push_back(note(StageNoteKind::OwnTargetBeyondEquilibrium));
+        a.notes.back().own_target = *rs.target_conversion;
         infeasible_stage = a.id;
         res.as_given.push_back(std::move(a));
         if (res.limiting_stage.empty()) {
           res.limited_by = StagingLimit::Equilibrium;
           res.limiting_stage = rs.id;
-          res.why = fmt::format("stage {}: {}", rs.id, res.as_given.back().note);
         }
         continue;
       }
       r = rs.type == ReactorType::Pfr ? run_pfr(mech, rs, stream, s.basis, ctx, o.solvers.tube)
                                       : run_cstr(mech, rs, stream, s.basis, ctx, o.solvers.tank());
-      last_spec = &rs;
-      last_inlet = stream;
-      last_X_ad_eq = a.X_ad_eq;
+      last = {&rs, stream, a.X_ad_eq};
     }
-    a.kind = r.kind;
     a.ran = true;
     a.T_out = r.outlet.T;
     a.T_max = r.T_max;
@@ -155,16 +159,13 @@ void check_as_given(const Setup& s, const StagingOptions& o, const SunContext& c
     append(res.as_given_run, std::move(r), s.c);
   }
   res.as_given_conversion = s.basis.conversion(stream);
-  auto note_of = [&](const std::string& id) -> std::string& {
-    return std::find_if(res.as_given.begin(), res.as_given.end(),
-                        [&](const AsGivenStage& a) { return a.id == id; })
-        ->note;
-  };
+  return last;
+}
 
-  // The first stage that meets the temperature limit, and where: told in
-  // its note whatever limits the train first.
-  std::optional<LimitPoint> crossing;
-  std::string crossing_stage;
+// The first stage that meets the temperature limit, and where: its note
+// tells it whatever limits the train first. Empty id when none does.
+std::pair<std::string, LimitPoint> first_crossing(const Setup& s, const StagingOptions& o,
+                                                  const SunContext& ctx, StagingResult& res) {
   for (const StageResult& r : res.as_given_run.stages) {
     if (r.kind == StageKind::Exchanger || !beyond(s, r)) continue;
     LimitPoint p{r.conversion, r.volume.value_or(0.0), r.outlet.T, false};
@@ -175,100 +176,82 @@ void check_as_given(const Setup& s, const StagingOptions& o, const SunContext& c
       if (auto q = limit_crossing(s, rs, r.inlet, ctx, o.solvers.tube)) p = *q;
     }
     p.T = *s.T_limit;
-    const bool before = p.X < s.target - kReachTolerance;
+    StageNote n = note(StageNoteKind::PassesLimit);
+    n.at = p;
     if (p.V == 0 && (s.exothermic ? r.inlet.T >= *s.T_limit : r.inlet.T <= *s.T_limit))
-      note_of(r.id) =
-          fmt::format("is fed at {}, already {} {} = {}", celsius(r.inlet.T),
-                      s.exothermic ? "above" : "below", s.limit_label, celsius(*s.T_limit));
-    else
-      note_of(r.id) = fmt::format(
-          "{} {} = {} at X = {:.4f}, V = {:.4g} m3 from its inlet{}",
-          s.exothermic ? "passes" : "falls below", s.limit_label, celsius(*s.T_limit), p.X, p.V,
-          before ? ", before the target"
-                 : fmt::format(", after the target (a bed ending where X reaches {:.4f} would "
-                               "stay within it)",
-                               s.target));
-    crossing = p;
-    crossing_stage = r.id;
-    break;
+      n.kind = StageNoteKind::FedPastLimit;
+    n.before_target = p.X < s.target - kReachTolerance;
+    stage_of(res, r.id).notes = {n};
+    return {r.id, p};
   }
+  return {};
+}
+
+// Size: more catalyst in the last reactor would do, unless the larger bed
+// would meet the temperature limit first.
+void judge_size(const Setup& s, const StagingOptions& o, const SunContext& ctx,
+                const LastReactor& last, StagingResult& res) {
+  AsGivenStage& a = stage_of(res, last.spec->id);
+  res.limited_by = StagingLimit::Size;
+  res.limiting_stage = last.spec->id;
+  if (last.spec->type != ReactorType::Pfr || !(s.target > s.basis.conversion(last.inlet))) {
+    a.notes = {note(StageNoteKind::NeedsVolume)};
+    return;
+  }
+  ReactorSpec bigger = *last.spec;
+  bigger.volume.reset();
+  bigger.catalyst_mass.reset();
+  bigger.target_conversion = s.target;
+  PfrOptions po = o.solvers.tube;
+  po.stop_temperature = s.T_limit;
+  const StageResult r = run_pfr(s.mech, bigger, last.inlet, s.basis, ctx, po);
+  if (r.conversion < s.target - kReachTolerance) {
+    const LimitPoint p{r.conversion, r.volume.value_or(0.0), *s.T_limit, true};
+    a.notes = {note(StageNoteKind::EnlargedPassesLimit)};
+    a.notes.back().at = p;
+    res.limited_by = s.limit_kind;
+    res.limit_point = p;
+  } else {
+    res.volume_needed = r.volume;
+    a.notes = {note(StageNoteKind::NeedsCatalyst)};
+    a.notes.back().volume_needed = *r.volume;
+    a.notes.back().catalyst_needed = r.catalyst_mass;
+  }
+}
+
+// What limits the train as given, first of: equilibrium (a stage's own
+// target, or the train's target beyond the last reactor's X_ad_eq), the
+// temperature limit, the size; None when it reaches the target.
+void check_as_given(const Setup& s, const StagingOptions& o, const SunContext& ctx,
+                    StagingResult& res) {
+  const LastReactor last = walk_as_given(s, o, ctx, res);
+  const auto [crossing_stage, crossing] = first_crossing(s, o, ctx, res);
   if (res.limited_by == StagingLimit::Equilibrium) return;
 
   const bool short_of_target = res.as_given_conversion < s.target - kReachTolerance;
-  if (!last_spec) {
-    res.limited_by = StagingLimit::Size;
-    res.why = "the train has no reactor";
+  if (!last.spec) {
+    res.limited_by = StagingLimit::Size;  // no reactor: the words say so
     return;
   }
-
-  // 1. Equilibrium: the target lies beyond the last reactor's X_ad_eq.
-  if (short_of_target && last_X_ad_eq && s.target > *last_X_ad_eq) {
-    const auto it = std::find_if(res.as_given.begin(), res.as_given.end(),
-                                 [&](const AsGivenStage& a) { return a.id == last_spec->id; });
-    const std::string also = it->note.empty() ? "" : fmt::format("; also, it {}", it->note);
-    it->note = fmt::format(
-        "the target X = {:.4f} lies beyond what it can reach at any size: it meets equilibrium "
-        "at X_ad_eq = {:.4f} ({}){}",
-        s.target, *it->X_ad_eq, celsius(*it->T_ad_eq), also);
+  if (short_of_target && last.X_ad_eq && s.target > *last.X_ad_eq) {
+    // Before what else holds it (kept as "also").
+    auto& notes = stage_of(res, last.spec->id).notes;
+    notes.insert(notes.begin(), note(StageNoteKind::TargetBeyondEquilibrium));
     res.limited_by = StagingLimit::Equilibrium;
-    res.limiting_stage = last_spec->id;
-    res.why = fmt::format("stage {}: {}", last_spec->id, it->note);
+    res.limiting_stage = last.spec->id;
     return;
   }
-
-  // 2. The temperature limit, at the first stage that meets it.
-  if (crossing) {
+  if (!crossing_stage.empty()) {
     res.limited_by = s.limit_kind;
     res.limiting_stage = crossing_stage;
     res.limit_point = crossing;
-    res.why = fmt::format("stage {} {}", crossing_stage, note_of(crossing_stage));
     return;
   }
-
-  // 3. Size: more catalyst in the last reactor would do, unless the larger
-  // bed would meet the temperature limit first.
   if (short_of_target) {
-    auto it = std::find_if(res.as_given.begin(), res.as_given.end(),
-                           [&](const AsGivenStage& a) { return a.id == last_spec->id; });
-    if (last_spec->type == ReactorType::Pfr && s.target > s.basis.conversion(last_inlet)) {
-      ReactorSpec bigger = *last_spec;
-      bigger.volume.reset();
-      bigger.catalyst_mass.reset();
-      bigger.target_conversion = s.target;
-      PfrOptions po = o.solvers.tube;
-      po.stop_temperature = s.T_limit;
-      const StageResult r = run_pfr(mech, bigger, last_inlet, s.basis, ctx, po);
-      if (r.conversion < s.target - kReachTolerance) {
-        LimitPoint p{r.conversion, r.volume.value_or(0.0), *s.T_limit, true};
-        it->note = fmt::format(
-            "reaches X = {:.4f}; enlarged, it would {} {} {} at X = {:.4f}, V = {:.4g} m3 from "
-            "its inlet, before the target",
-            it->X_out, s.exothermic ? "pass" : "fall below", s.limit_label, celsius(*s.T_limit),
-            p.X, p.V);
-        res.limited_by = s.limit_kind;
-        res.limit_point = p;
-      } else {
-        res.volume_needed = r.volume;
-        it->note = fmt::format(
-            "reaches X = {:.4f}; only more catalyst is needed: {:.4g} m3{} would reach the "
-            "target (it holds {:.4g} m3)",
-            it->X_out, *r.volume,
-            r.catalyst_mass ? fmt::format(" ({:.4g} kg)", *r.catalyst_mass) : "",
-            it->volume.value_or(0.0));
-        res.limited_by = StagingLimit::Size;
-      }
-    } else {
-      it->note = fmt::format("reaches X = {:.4f}; only more volume is needed", it->X_out);
-      res.limited_by = StagingLimit::Size;
-    }
-    res.limiting_stage = last_spec->id;
-    res.why = fmt::format("stage {} {}", last_spec->id, it->note);
+    judge_size(s, o, ctx, last, res);
     return;
   }
   res.limited_by = StagingLimit::None;
-  res.why = fmt::format("the train as given reaches X = {:.4f} (target {:.4f}){}",
-                        res.as_given_conversion, s.target,
-                        s.T_limit ? within_limit(s) : std::string(" (no temperature limit given)"));
 }
 
 // ---- the staged answer ------------------------------------------------------
@@ -354,18 +337,13 @@ void build_staged(const Setup& s, const StagingOptions& o, const SunContext& ctx
       append(res.staged_run, std::move(r), s.c);
     }
     if (s.T_limit && (s.exothermic ? stream.T >= *s.T_limit : stream.T <= *s.T_limit)) {
-      res.staged_note = fmt::format("bed {} would be fed at {}, already {} {} = {}", k,
-                                    celsius(stream.T), s.exothermic ? "at or above" : "at or below",
-                                    s.limit_label, celsius(*s.T_limit));
+      res.stop = {StagedStopKind::FedPastLimit, k, stream.T, X};
       break;
     }
     const auto eq = adiabatic_equilibrium(mech, stream, HeatMode::Adiabatic, s.basis, {},
                                           o.solvers.equilibrium);
     if (!eq || eq->X - X <= kNoProgress) {
-      res.staged_note = fmt::format(
-          "bed {} cannot progress: fed at {} and X = {:.4f}, the stream is already at "
-          "equilibrium",
-          k, celsius(stream.T), X);
+      res.stop = {StagedStopKind::NoProgress, k, stream.T, X};
       break;
     }
     const double X_stop = X + o.approach * (eq->X - X);
@@ -400,8 +378,7 @@ void build_staged(const Setup& s, const StagingOptions& o, const SunContext& ctx
       break;
     }
     if (b.volume <= 0) {
-      res.staged_note =
-          fmt::format("bed {} ends at its inlet ({} {})", k, s.limit_label, celsius(*s.T_limit));
+      res.stop = {StagedStopKind::EndsAtInlet, k, b.T_in, b.X_in};
       break;
     }
   }
@@ -417,35 +394,6 @@ void build_staged(const Setup& s, const StagingOptions& o, const SunContext& ctx
   if (o.return_to == ReturnTo::Inlet)
     res.conversion_limit =
         equilibrium_conversion(mech, s.c.feed, s.c.feed.T, s.basis, {}, o.solvers.equilibrium);
-
-  if (res.target_reached) {
-    if (res.beds_needed == 1)
-      res.staged_note = fmt::format(
-          "no interstage {} is needed: one adiabatic bed reaches X = {:.4f}{}",
-          s.exothermic ? "cooling" : "heating", s.target, s.T_limit ? within_limit(s) : "");
-    else
-      res.staged_note = fmt::format(
-          "interstage {} is needed: {} adiabatic beds with {} {} reach X = {:.4f}{}",
-          s.exothermic ? "cooling" : "heating", res.beds_needed, res.beds_needed - 1,
-          s.exothermic ? (res.beds_needed == 2 ? "intercooler" : "intercoolers")
-                       : (res.beds_needed == 2 ? "interstage heater" : "interstage heaters"),
-          s.target, s.T_limit ? within_limit(s) : "");
-    return;
-  }
-  std::string why =
-      fmt::format("{} beds reach only X = {:.4f}", res.beds.size(), res.staged_conversion);
-  if (!res.staged_note.empty())
-    why = res.beds.empty() ? res.staged_note
-                           : fmt::format("{}; the beds before reach X = {:.4f}", res.staged_note,
-                                         res.staged_conversion);
-  if (res.conversion_limit && s.target >= *res.conversion_limit)
-    why += fmt::format(
-        "; with every bed fed at {}, no number of beds passes X_eq({}) = {:.4f}, and the "
-        "target X = {:.4f} lies beyond it (try --return-to max-rate, or a {} inlet temperature)",
-        celsius(s.c.feed.T), celsius(s.c.feed.T), *res.conversion_limit, s.target,
-        s.exothermic ? "lower" : "higher");
-  res.staged_note = fmt::format("the target X = {:.4f} is out of reach with up to {} beds: {}",
-                                s.target, o.max_beds, why);
 }
 
 }  // namespace

@@ -9,6 +9,7 @@
 #pragma once
 
 #include <string>
+#include <vector>
 
 #include "rxtrain/studies/optimize.hpp"
 
@@ -30,5 +31,15 @@ std::string interstage_summary(const DesignResult& d, const DesignLayout& l);
 // "the window T_in_min 300.00 °C to T_max 470.00 °C" or, with a margin,
 // "... kept 15 K inside the limits: 315.00 °C to 455.00 °C".
 std::string window_text(const DesignResult& d);
+// What keeps the case as written from comparison (it does not run, misses
+// the target, leaves the window or passes a limit); "" when nothing does
+// or it was not compared.
+std::string as_written_text(const DesignResult& d);
+// The staging policy's answer in words (staged_answer_text); "" when it was
+// not compared.
+std::string staging_policy_text(const DesignResult& d);
+// The warnings of the optimum: the result's own, then a disagreement of
+// the check, the optimum's limit findings, the adiabatic rise past T_max.
+std::vector<std::string> optimize_warnings(const DesignResult& d);
 
 }  // namespace rxtrain

@@ -34,6 +34,14 @@ namespace rxtrain {
 
 std::string format_staging_report(const StagingResult& result);
 
+// The answers in words, the same in every report (staging_words.cpp):
+// whether the train as given reaches the target and what limits it;
+std::string as_given_answer_text(const StagingResult& result);
+// what limits stage `a` of the train as given ("" when nothing does);
+std::string stage_note_text(const StagingResult& result, const AsGivenStage& a);
+// whether interstage cooling (heating) is needed, and how many beds.
+std::string staged_answer_text(const StagingResult& result);
+
 nlohmann::json staging_json(const StagingResult& result);
 // Text form written by --json (two-space indent, trailing newline).
 std::string staging_json_text(const StagingResult& result);

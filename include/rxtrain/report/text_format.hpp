@@ -57,6 +57,8 @@ std::string duty_text(const StageResult& r);
 std::string bar_text(double P);
 // K -> °C with two decimals (number only, no unit).
 std::string celsius_text(double T);
+// The same with its unit: "480.00 °C".
+std::string celsius_unit_text(double T);
 // Code points, not bytes, so "°C" aligns.
 std::size_t display_width(const std::string& s);
 // Rows of cells: the first `n_left` columns left-aligned (names), the rest

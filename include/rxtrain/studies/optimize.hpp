@@ -66,6 +66,7 @@
 #include "rxtrain/stages/pfr.hpp"
 #include "rxtrain/stages/solver_options.hpp"
 #include "rxtrain/studies/bed_layout.hpp"
+#include "rxtrain/studies/staging.hpp"
 
 namespace rxtrain {
 
@@ -188,11 +189,27 @@ struct InletCondition {
   std::vector<ActiveLimit> exempt_by;
 };
 
+// What keeps the best layout found for N beds from the target or the
+// window (the constraint it violates most); shortfall_message phrases it.
+enum class ShortfallKind {
+  NotEvaluable,       // no layout could be evaluated
+  LastBedShort,       // the last bed can reach at most X_reach, short of the target
+  PassesLimit,        // bed `bed` ends past the window's far end (T_out)
+  BeyondEquilibrium,  // bed `bed` is fed beyond equilibrium
+};
+struct LayoutShortfall {
+  ShortfallKind kind = ShortfallKind::NotEvaluable;
+  int bed = 0;                // 0-based
+  double T_in = 0, X_in = 0;  // its inlet
+  double T_out = 0;           // K, its far end
+  double X_reach = 0;         // LastBedShort
+};
+
 // One optimized layout of N beds.
 struct DesignLayout {
   int beds = 0;
   bool feasible = false;
-  std::string why;  // infeasible: plain words on what cannot be met
+  LayoutShortfall shortfall;  // infeasible: what cannot be met
   std::vector<DesignBed> bed;
   std::vector<Interstage> coolers;       // between beds: N - 1 (C1, ...; H1, ... heating)
   Interstage feed_conditioning;          // E0: feed T -> bed 1's inlet
@@ -212,12 +229,23 @@ struct DesignLayout {
 };
 
 // The case as written, against the same target and window.
+// A temperature of the case as written outside the window narrowed by the
+// margin (the limits themselves are its limit check's).
+struct WindowExcursion {
+  std::string stage;
+  double T = 0;       // K, the stage's peak (above) or lowest point (below)
+  bool above = true;  // above the window's top, else below its bottom
+};
+
+// The case as written, against the same target and window.
 struct AsWrittenDesign {
   bool ran = false;
-  std::string note;  // why it did not run, or what it misses; empty when it meets everything
+  std::string error;  // why it did not run (the error's message); empty when it ran
   double conversion = 0;
   bool reaches_target = false;
-  bool within_limits = false;
+  bool within_limits = false;  // no excursion and no limit finding beyond Near
+  std::vector<WindowExcursion> outside_window;
+  LimitCheck limit_check;  // its findings other than Near count against it
   int reactors = 0;
   double total_volume = 0;               // m3
   std::optional<double> total_catalyst;  // kg, when every reactor has one
@@ -225,13 +253,13 @@ struct AsWrittenDesign {
 };
 
 // The `staging` policy's answer (default options: --approach 0.9,
-// --return-to inlet).
+// --return-to inlet), in the window narrowed by the margin.
 struct StagingDesign {
   bool reached = false;
-  std::string note;
   int beds = 0;
   double total_volume = 0;
   std::optional<double> total_catalyst;
+  StagingResult result;  // the whole answer (report/staging_report.hpp phrases it)
 };
 
 struct DesignResult {
@@ -257,6 +285,15 @@ struct DesignResult {
   // the equilibrium views when options.equilibrium_views: what a report
   // draws, so that no reporter runs a solver.
   TrainResult train;
+  // train's conversion differs from the target by more than 1e-5:
+  // the optimizer's quadrature and the ODE solver disagree.
+  bool check_disagrees = false;
+  // K: the feed's adiabatic temperature rise at full conversion of the
+  // key, set when it carries the feed past T_max (exothermic).
+  std::optional<double> dT_ad_past_T_max;
+  // The case's warnings and, when the staging policy could not be run,
+  // its error. report/optimize_text.hpp's optimize_warnings adds what the
+  // fields above say.
   std::vector<std::string> warnings;
 };
 
@@ -267,6 +304,11 @@ struct DesignResult {
 // layout with the allowed number of beds meets the target within the
 // window (naming the best reached); SolverError on a numerical failure.
 DesignResult optimize_design(const Case& c, const DesignOptions& options = {});
+
+// The words of a shortfall: the row of an infeasible bed count, and the
+// reason optimize_design's InfeasibleError gives (an error is worded where
+// it is thrown), so both say the same.
+std::string shortfall_message(const DesignResult& d, const LayoutShortfall& s);
 
 // The stages of a layout as a train the case format holds (layout_stages):
 // an exchanger from the feed to bed 1's inlet temperature (when they differ

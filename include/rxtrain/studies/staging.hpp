@@ -30,7 +30,7 @@
 //   StagingOptions o;
 //   o.approach = 0.9;
 //   StagingResult s = run_staging(c, o);  // c has target: {conversion: 0.92}
-//   if (!s.reachable) explain(s.limiting_stage, s.why);
+//   if (!s.reachable) explain(s.limited_by, s.limiting_stage, s.as_given);
 //   if (s.target_reached) report(s.beds_needed, s.beds, s.coolers);
 #pragma once
 
@@ -87,6 +87,41 @@ struct StagingOptions {
   std::string validate() const;
 };
 
+// Where a bed meets a temperature limit: conversion, position in the bed
+// (m3 from its inlet) and the limit itself.
+struct LimitPoint {
+  double X = 0;
+  double V = 0;  // m3
+  double T = 0;  // K
+  // Beyond the bed's given volume (an undersized bed that would pass the
+  // limit before the target if it were enlarged).
+  bool beyond_bed = false;
+};
+
+// What limits a stage of the train as given; report/staging_report.hpp
+// phrases it. The limit met is the result's (T_max exothermic, T_in_min
+// endothermic); X_ad_eq, T_ad_eq, X_out and the volume are the stage's.
+enum class StageNoteKind {
+  NotRun,                      // a sized stage before it (blocked_by) cannot reach its own target
+  OwnTargetBeyondEquilibrium,  // its own target (own_target) lies beyond its X_ad_eq
+  TargetBeyondEquilibrium,     // the train's target lies beyond its X_ad_eq
+  FedPastLimit,                // fed already past the limit
+  PassesLimit,                 // meets the limit at `at`, before the target or after it
+  EnlargedPassesLimit,         // short; enlarged, it would meet the limit at `at` first
+  NeedsCatalyst,               // short; volume_needed (catalyst_needed) would reach the target
+  NeedsVolume,                 // short; only more volume is needed (a stirred tank)
+};
+
+struct StageNote {
+  StageNoteKind kind = StageNoteKind::NotRun;
+  std::string blocked_by;                 // NotRun: the stage's id
+  double own_target = 0;                  // OwnTargetBeyondEquilibrium
+  LimitPoint at;                          // PassesLimit, EnlargedPassesLimit
+  bool before_target = false;             // PassesLimit: met before the target
+  double volume_needed = 0;               // NeedsCatalyst: m3
+  std::optional<double> catalyst_needed;  // NeedsCatalyst: kg, with a bulk density
+};
+
 // One stage of the train as given, against the target and the limits.
 struct AsGivenStage {
   std::string id;
@@ -98,19 +133,24 @@ struct AsGivenStage {
   // Reactors with a reversible key reaction: the most the stage can reach
   // from its inlet at any size.
   std::optional<double> X_ad_eq, T_ad_eq;
-  // Plain words on what limits this stage, empty when nothing does.
-  std::string note;
+  // What limits this stage, empty when nothing does; a second note is what
+  // also holds it ("...; also, it ...").
+  std::vector<StageNote> notes;
 };
 
-// Where a bed meets a temperature limit: conversion, position in the bed
-// (m3 from its inlet) and the limit itself.
-struct LimitPoint {
-  double X = 0;
-  double V = 0;  // m3
-  double T = 0;  // K
-  // Beyond the bed's given volume (an undersized bed that would pass the
-  // limit before the target if it were enlarged).
-  bool beyond_bed = false;
+// Where the staging loop stops before the target for want of a bed that
+// can progress (report/staging_report.hpp phrases it, with the answer).
+enum class StagedStopKind {
+  None,          // the target was reached, or max_beds were built
+  FedPastLimit,  // bed `bed` would be fed at or past the limit
+  NoProgress,    // bed `bed` is fed at equilibrium
+  EndsAtInlet,   // bed `bed` meets the limit at its inlet
+};
+struct StagedStop {
+  StagedStopKind kind = StagedStopKind::None;
+  int bed = 0;   // 1-based
+  double T = 0;  // K, its inlet
+  double X = 0;  // its inlet conversion
 };
 
 // A bed of the staged answer (Bed: bed_layout.hpp).
@@ -141,8 +181,7 @@ struct StagingResult {
   // ---- the train as given
   bool reachable = false;  // reaches the target within the limits
   StagingLimit limited_by = StagingLimit::None;
-  std::string limiting_stage;             // id; empty for None
-  std::string why;                        // plain words (also when reachable)
+  std::string limiting_stage;             // id, its notes say why; empty for None
   std::optional<LimitPoint> limit_point;  // TMax / TInMin: where it is met
   std::optional<double> volume_needed;    // Size: volume of the last bed to reach the target
   double as_given_conversion = 0;
@@ -157,7 +196,8 @@ struct StagingResult {
   // Inlet policy: X_eq at bed 1's inlet temperature, which any number of
   // beds approaches but never passes. Empty for the max-rate policy.
   std::optional<double> conversion_limit;
-  std::string staged_note;  // plain words on the staged answer
+  // Why the beds stopped short of the target, if a bed did.
+  StagedStop stop;
 
   // Full stage results, for the design checks and reports (with the
   // equilibrium views when options.equilibrium_views).
