@@ -419,6 +419,37 @@ TEST_CASE("more beds never need more, and a bed count that cannot reach is told"
   if (d.staging->reached) CHECK(d.best.total_volume <= d.staging->total_volume);
 }
 
+// One bed held at the feed temperature has no free variable: NLopt
+// refuses such a problem, so the layout is evaluated as it stands.
+TEST_CASE("one bed fed at the feed temperature is evaluated as it stands", "[design]") {
+  const AbSystem s;
+  DesignOptions o;
+  o.fixed_feed_T = true;
+  o.compare = false;
+  SECTION("a target one bed reaches: the bed sized to it") {
+    const Case c = s.load(kWideWindow, 0.3);
+    o.beds = 1;
+    const DesignResult d = optimize_design(c, o);
+    REQUIRE(d.best.feasible);
+    REQUIRE(d.best.bed.size() == 1);
+    CHECK(d.best.bed[0].T_in == s.T_feed);
+    CHECK(d.best.evaluations == 1);
+    // The train solver, run on the bed as sized, reaches the target.
+    CHECK(d.best.checked_conversion == Approx(0.3).margin(1e-6));
+  }
+  SECTION("a target past the bed's adiabatic equilibrium is infeasible and told") {
+    const Case c = s.load("limits: {T_max: 640 K, T_in_min: 450 K}");
+    o.beds = 1;
+    CHECK_THROWS_AS(optimize_design(c, o), InfeasibleError);
+    o.beds.reset();
+    o.max_beds = 3;
+    const DesignResult d = optimize_design(c, o);
+    REQUIRE(d.by_bed_count.size() == 3);
+    CHECK_FALSE(d.by_bed_count[0].feasible);
+    CHECK(d.best.beds > 1);
+  }
+}
+
 TEST_CASE("optimize refuses what it cannot design", "[design]") {
   const AbSystem s;
   SECTION("no limits") {

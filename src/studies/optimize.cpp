@@ -579,7 +579,8 @@ DesignResult optimize_design(const Case& c, const DesignOptions& options) {
         c.target_where,
         fmt::format("no layout of {} reaches the target X = {:.4f} within [{}, {}] = "
                     "[{}, {}]: {}",
-                    counts.size() == 1 ? fmt::format("{} adiabatic beds", counts.front())
+                    counts.size() == 1 ? fmt::format("{} adiabatic bed{}", counts.front(),
+                                                     counts.front() == 1 ? "" : "s")
                                        : fmt::format("1 to {} adiabatic beds", counts.back()),
                     s.target, s.lo_label, s.hi_label, celsius(s.T_lo), celsius(s.T_hi),
                     shortfall_message(res, layouts.back().shortfall)));

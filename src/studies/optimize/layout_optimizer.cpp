@@ -272,6 +272,16 @@ std::vector<double> start_vector(const LayoutProblem& p, const StartLayout& s) {
 LayoutSolution solve_layout(const LayoutProblem& p, const std::vector<StartLayout>& starts,
                             const DesignOptions& o,
                             const std::function<void(const DesignProgress&)>& progress) {
+  LayoutSolution sol;
+  if (p.n_variables() == 0) {
+    // One bed fed at the feed temperature: nothing to choose (NLopt
+    // refuses a problem without variables); the layout is what it is.
+    sol.state = evaluate_layout(p, sol.x);
+    sol.evaluations = 1;
+    sol.feasible = sol.state.evaluable && std::isfinite(sol.state.total) &&
+                   sol.state.violation() <= o.feasibility_tolerance;
+    return sol;
+  }
   Evaluator ev(p, o, progress);
   // Scale: the total of the first evaluable start.
   for (const auto& s : starts) {
@@ -281,7 +291,6 @@ LayoutSolution solve_layout(const LayoutProblem& p, const std::vector<StartLayou
       break;
     }
   }
-  LayoutSolution sol;
   int k = 0;
   for (const auto& s : starts) {
     ev.set_stage(++k, static_cast<int>(starts.size()));
