@@ -55,7 +55,7 @@ int run_compare_command(const CompareCommandOptions& o) {
 Action setup_compare(CLI::App& app) {
   auto o = std::make_shared<CompareCommandOptions>();
   app.add_option("case", o->case_file, "Case file (YAML)")->required();
-  app.add_option("--json", o->json_path, "Write every layout, best first, as JSON (SI) to PATH");
+  app.add_option("--json", o->json_path, "Write every layout, best first, as JSON (SI) to FILE");
   app.add_option("--report", o->report_dir,
                  "Write report.html (self-contained: the layouts table and a bar chart of them) "
                  "and the chart as SVG into folder DIR");

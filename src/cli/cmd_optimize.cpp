@@ -153,13 +153,13 @@ Action setup_optimize(CLI::App& app) {
                  "Keep every bed temperature this far inside the catalyst's limits: within "
                  "[T_in_min + margin, T_max - margin] (a temperature difference, e.g. 15K; "
                  "default 0)");
-  app.add_option("--json", o->json_path, "Write the optimum as JSON (SI units) to PATH");
+  app.add_option("--json", o->json_path, "Write the optimum as JSON (SI units) to FILE");
   app.add_option("--report", o->report_dir,
                  "Write report.html (self-contained: the optimum over the equilibrium curve, "
                  "profiles, and with --max-beds the beds-against-catalyst trade-off) and the "
                  "figures as SVG into folder DIR");
   app.add_option("--write-case", o->case_path,
-                 "Write the case with the optimum's train to PATH (rxtrain run reproduces it)");
+                 "Write the case with the optimum's train to FILE (rounded where that keeps its target and limits; rxtrain run reproduces it)");
   return [o] { return run_optimize_command(*o); };
 }
 

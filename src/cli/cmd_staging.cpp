@@ -114,7 +114,7 @@ Action setup_staging(CLI::App& app) {
       ->check(CLI::Range(1, 100))
       ->capture_default_str();
   add_limit_margin_option(app, o->limit_margin);
-  app.add_option("--json", o->json_path, "Write the answer as JSON (SI units) to PATH");
+  app.add_option("--json", o->json_path, "Write the answer as JSON (SI units) to FILE");
   app.add_option("--report", o->report_dir,
                  "Write report.html (self-contained, with the staged beds on the "
                  "temperature-conversion diagram) and the figures as SVG into folder DIR");

@@ -207,9 +207,9 @@ Action setup_sweep(CLI::App& app) {
                  "Columns, comma-separated: X, T_out, STAGE.FIELD (e.g. R1.T_max, R2.volume, "
                  "E1.outlet.T); default: X, T_out, every reactor's T_max, every stage's outlet.T, "
                  "every sized stage's volume and catalyst_mass");
-  app.add_option("--csv", o->csv_path, "Write one row per run (SI) to PATH");
+  app.add_option("--csv", o->csv_path, "Write one row per run (SI) to FILE");
   app.add_option("--json", o->json_path,
-                 "Write the rows, percentiles and design margin (SI) to PATH");
+                 "Write the rows, percentiles and design margin (SI) to FILE");
   app.add_option("--report", o->report_dir,
                  "Write report.html and SVG plots (outputs against the varied input, or "
                  "histograms) into folder DIR");
