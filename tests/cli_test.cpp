@@ -171,7 +171,10 @@ TEST_CASE("sweep: a grid writes one row per point and a report", "[cli][sweep]")
   INFO(r.err);
   REQUIRE(r.exit_code == 0);
   const std::string csv = slurp(dir / "g.csv");
-  CHECK(std::count(csv.begin(), csv.end(), '\n') == 12 + 3);  // 12 header lines, 3 rows
+  CHECK(std::count(csv.begin(), csv.end(), '\n') == 13 + 3);  // 13 header lines, 3 rows
+  // Every column's SI unit, named once (a target conversion is a plain number).
+  CHECK(csv.find("\n# units: train.T2.target.conversion=-,X=-,") != std::string::npos);
+  CHECK(csv.find(",T2.volume=m3") != std::string::npos);
   CHECK(csv.find("\n# margin: T1.volume,T2.volume\n") != std::string::npos);
   CHECK(csv.find("nan") == std::string::npos);
   CHECK(fs::exists(dir / "rep" / "report.html"));

@@ -132,6 +132,17 @@ int run_sweep_command(const SweepCommandOptions& o) {
   std::ifstream in(o.case_file, std::ios::binary);
   const std::string bytes((std::istreambuf_iterator<char>(in)), std::istreambuf_iterator<char>());
   StudyHeader header{RXTRAIN_VERSION, sha256_hex(bytes), study.definition(), outputs.names()};
+  ColumnUnits col_units;
+  for (std::size_t p : study.paths()) {
+    const std::string u = table.at(p).unit.to_string();
+    col_units.inputs.push_back(u.empty() || u == "1" ? "-" : u);
+  }
+  col_units.outputs = outputs.units();
+  const auto input_names = study.input_names();
+  for (std::size_t i = 0; i < input_names.size(); ++i)
+    header.units.emplace_back(input_names[i], col_units.inputs[i]);
+  for (std::size_t i = 0; i < header.outputs.size(); ++i)
+    header.units.emplace_back(header.outputs[i], col_units.outputs[i]);
   // The integrator's tolerance changes the numbers, so it is part of the study.
   header.definition.push_back(fmt::format("rtol: {}", o.rtol));
   // So does the margin the rows' notes near a limit are taken at.
@@ -146,12 +157,6 @@ int run_sweep_command(const SweepCommandOptions& o) {
   const std::vector<RunRow> rows = run_sweep(c, table, study, outputs, options);
   const auto inputs = study.input_names();
   StudySummary summary = summarize_study(outputs.names(), header.margin, rows);
-  ColumnUnits col_units;
-  for (std::size_t p : study.paths()) {
-    const std::string u = table.at(p).unit.to_string();
-    col_units.inputs.push_back(u.empty() || u == "1" ? "-" : u);
-  }
-  col_units.outputs = outputs.units();
   for (std::size_t k = 0; k < summary.percentiles.size(); ++k)
     summary.percentiles[k].unit = col_units.outputs[k];
 

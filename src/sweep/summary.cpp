@@ -63,6 +63,9 @@ std::string sweep_json_text(const StudyHeader& header, const Shard& shard,
   json study = {{"version", header.version},       {"case_sha256", header.case_sha256},
                 {"definition", header.definition}, {"inputs", input_names},
                 {"outputs", header.outputs},       {"shard", shard.to_string()}};
+  json units = json::object();
+  for (const auto& [name, unit] : header.units) units[name] = unit;
+  study["units"] = units;
   json runs = json::array();
   for (const auto& r : rows) {
     json in = json::object(), out = json::object();

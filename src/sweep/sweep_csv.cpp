@@ -133,6 +133,11 @@ StudyHeader read_header(const std::vector<std::string>& identity) {
       h.outputs = split_list(value("outputs: "));
     else if (l.rfind("margin: ", 0) == 0)
       h.margin = split_list(value("margin: "));
+    else if (l.rfind("units: ", 0) == 0)
+      for (const auto& pair : split_list(value("units: "))) {
+        const auto eq = pair.rfind('=');
+        if (eq != std::string::npos) h.units.emplace_back(pair.substr(0, eq), pair.substr(eq + 1));
+      }
     else
       h.definition.push_back(l);
   }
@@ -191,6 +196,12 @@ std::string sweep_csv(const StudyHeader& header, const Shard& shard,
   std::string names;
   for (const auto& n : header.outputs) names += (names.empty() ? "" : ",") + n;
   out += fmt::format("# outputs: {}\n", names);
+  if (!header.units.empty()) {
+    std::string units;
+    for (const auto& [name, unit] : header.units)
+      units += fmt::format("{}{}={}", units.empty() ? "" : ",", name, unit);
+    out += fmt::format("# units: {}\n", units);
+  }
   if (!header.margin.empty()) {
     std::string margin;
     for (const auto& n : header.margin) margin += (margin.empty() ? "" : ",") + n;

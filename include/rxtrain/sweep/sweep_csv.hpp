@@ -38,6 +38,10 @@ struct StudyHeader {
   std::vector<std::string> outputs;     // output column names
   // The columns the design margin is taken over (summary.hpp); empty: none.
   std::vector<std::string> margin = {};
+  // The SI unit of every input and output column, by name, in column
+  // order ("-" for a plain number): the CSV's "# units:" line, the JSON's
+  // "units" object.
+  std::vector<std::pair<std::string, std::string>> units = {};
 };
 
 std::string sweep_csv(const StudyHeader& header, const Shard& shard,
