@@ -25,7 +25,7 @@ std::string flow_headers(const TrainResult& result) {
 std::string stages_csv(const TrainResult& result) {
   std::string out =
       "stage,type,heat,sized,volume_m3,catalyst_mass_kg,space_time_s,ghsv_per_h,whsv_per_h,"
-      "lhsv_per_h,duty_W,T_in_K,T_out_K,T_max_K,T_min_K,P_Pa,conversion,mass_flow_kg_per_s,"
+      "lhsv_per_h,duty_W,T_in_K,T_out_K,T_peak_K,T_min_K,P_Pa,conversion,mass_flow_kg_per_s,"
       "mass_balance" +
       flow_headers(result) + "\n";
   for (const auto& r : result.stages) {
