@@ -467,13 +467,13 @@ void Chart::add_text(double x, double y, std::string text, TextOptions options) 
   series_.emplace_back(detail::TextLabel{x, y, std::move(text), std::move(options)});
 }
 
-ChartLayout Chart::layout() const {
-  const auto& o = options_;
-  const double fs = o.font_size;
-  const bool categorical = !categories_.empty();
+namespace {
 
+// The x and y extents of every finite point the series draw (bars reach
+// down to 0, an area without a lower edge too).
+std::pair<Extent, Extent> data_extents(const std::vector<detail::Series>& series) {
   Extent ex, ey;
-  for (const auto& s : series_) {
+  for (const auto& s : series) {
     if (const auto* l = std::get_if<detail::LineSeries>(&s)) {
       for (std::size_t i = 0; i < l->x.size(); ++i)
         if (std::isfinite(l->x[i]) && std::isfinite(l->y[i])) ex.add(l->x[i]), ey.add(l->y[i]);
@@ -499,27 +499,74 @@ ChartLayout Chart::layout() const {
   }
   if (ex.empty()) ex = {0.0, 1.0};
   if (ey.empty()) ey = {0.0, 1.0};
+  return {ex, ey};
+}
 
-  // Ticks of an axis: on a fixed domain, those inside it; else the nice
-  // domain of the data, which ends on ticks.
-  auto axis = [](const std::optional<Interval>& fixed_domain, const Extent& e, int n,
-                 Interval& domain) {
-    if (fixed_domain) {
-      domain = *fixed_domain;
-      const double tol = 1e-9 * (domain.hi - domain.lo);
-      auto t = nice_ticks(domain.lo, domain.hi, n);
-      std::erase_if(t, [&](double v) { return v < domain.lo - tol || v > domain.hi + tol; });
-      return t;
-    }
-    auto t = nice_ticks(e.lo, e.hi, n);
-    domain = {t.front(), t.back()};
+// Ticks of an axis: on a fixed domain, those inside it; else the nice
+// domain of the data, which ends on ticks.
+std::vector<double> axis_ticks(const std::optional<Interval>& fixed_domain, const Extent& e, int n,
+                               Interval& domain) {
+  if (fixed_domain) {
+    domain = *fixed_domain;
+    const double tol = 1e-9 * (domain.hi - domain.lo);
+    auto t = nice_ticks(domain.lo, domain.hi, n);
+    std::erase_if(t, [&](double v) { return v < domain.lo - tol || v > domain.hi + tol; });
     return t;
-  };
-  auto widest = [fs](const std::vector<std::string>& labels) {
-    double w = 0.0;
-    for (const auto& l : labels) w = std::max(w, text_width(l, fs));
-    return w;
-  };
+  }
+  auto t = nice_ticks(e.lo, e.hi, n);
+  domain = {t.front(), t.back()};
+  return t;
+}
+
+double widest_label(const std::vector<std::string>& labels, double fs) {
+  double w = 0.0;
+  for (const auto& l : labels) w = std::max(w, text_width(l, fs));
+  return w;
+}
+
+// `name` cut to max_chars code points, the last of them an ellipsis.
+void shorten(std::string& name, std::size_t max_chars) {
+  if (code_points(name) <= max_chars) return;
+  std::size_t keep = 0, cps = 0;  // byte length of the first max_chars - 1 code points
+  while (keep < name.size() && cps < max_chars - 1) {
+    ++keep;
+    while (keep < name.size() && (static_cast<unsigned char>(name[keep]) & 0xC0u) == 0x80u) ++keep;
+    ++cps;
+  }
+  name = name.substr(0, keep) + "\u2026";
+}
+
+}  // namespace
+
+double Chart::slanted_tick_block(const ChartLayout& L, std::vector<std::string>& categories,
+                                 double label_block, double& label_left) const {
+  const auto& o = options_;
+  const double fs = o.font_size;
+  const double max_bottom = 0.45 * o.height;
+  const double s = std::sin(kSlant * std::numbers::pi / 180.0),
+               c = std::cos(kSlant * std::numbers::pi / 180.0);
+  // Long category names are shortened so the slanted text stays on the
+  // figure: below the plot, and left of the first slot (the plot area of
+  // the first pass is close enough).
+  const double room_down = (max_bottom - kTickLength - kTickGap - fs * c - label_block - 6.0) / s;
+  // Room on the left is made first: the plot moves right (up to 35 % of
+  // the width) so that the first slanted name fits whole, and only a
+  // name longer than that is shortened.
+  const double slot = (L.plot_right - L.plot_left) / static_cast<double>(categories.size());
+  label_left = std::min(4.0 + widest_label(categories_, fs) * c - 0.5 * slot, 0.35 * o.width);
+  const double first_tick = std::max(L.plot_left, label_left) + 0.5 * slot;
+  const double room_left = (first_tick - 4.0) / c;
+  const std::size_t max_chars = std::max<std::size_t>(
+      4, static_cast<std::size_t>(std::min(room_down, room_left) / (kCharWidth * fs)));
+  for (auto& name : categories) shorten(name, max_chars);
+  return kTickLength + kTickGap + widest_label(categories, fs) * s + fs * c;
+}
+
+ChartLayout Chart::layout() const {
+  const auto& o = options_;
+  const double fs = o.font_size;
+  const bool categorical = !categories_.empty();
+  const auto [ex, ey] = data_extents(series_);
 
   ChartLayout L;
   const double top = o.title.empty() ? o.margins.top : std::max(o.margins.top, kTitleSize + 20.0);
@@ -530,37 +577,9 @@ ChartLayout Chart::layout() const {
   double label_left = 0.0;  // px the slanted category names need left of the plot
   for (int pass = 0; pass < 2; ++pass) {
     // Bottom: ticks, one line of tick labels (or slanted ones), the axis label.
-    double tick_block = kTickLength + kTickGap + fs;
-    if (L.rotate_x_labels) {
-      const double s = std::sin(kSlant * std::numbers::pi / 180.0),
-                   c = std::cos(kSlant * std::numbers::pi / 180.0);
-      // Long category names are shortened so the slanted text stays on the
-      // figure: below the plot, and left of the first slot (the plot area of
-      // the first pass is close enough).
-      const double room_down =
-          (max_bottom - kTickLength - kTickGap - fs * c - label_block - 6.0) / s;
-      // Room on the left is made first: the plot moves right (up to 35 % of
-      // the width) so that the first slanted name fits whole, and only a
-      // name longer than that is shortened.
-      const double slot = (L.plot_right - L.plot_left) / static_cast<double>(categories.size());
-      label_left = std::min(4.0 + widest(categories_) * c - 0.5 * slot, 0.35 * o.width);
-      const double first_tick = std::max(L.plot_left, label_left) + 0.5 * slot;
-      const double room_left = (first_tick - 4.0) / c;
-      const std::size_t max_chars = std::max<std::size_t>(
-          4, static_cast<std::size_t>(std::min(room_down, room_left) / (kCharWidth * fs)));
-      for (auto& name : categories) {
-        if (code_points(name) <= max_chars) continue;
-        std::size_t keep = 0, cps = 0;  // byte length of the first max_chars - 1 code points
-        while (keep < name.size() && cps < max_chars - 1) {
-          ++keep;
-          while (keep < name.size() && (static_cast<unsigned char>(name[keep]) & 0xC0u) == 0x80u)
-            ++keep;
-          ++cps;
-        }
-        name = name.substr(0, keep) + "\u2026";
-      }
-      tick_block = kTickLength + kTickGap + widest(categories) * s + fs * c;
-    }
+    const double tick_block = L.rotate_x_labels
+                                  ? slanted_tick_block(L, categories, label_block, label_left)
+                                  : kTickLength + kTickGap + fs;
     const double bottom =
         std::min(max_bottom, std::max(o.margins.bottom, tick_block + label_block + 6.0));
     L.plot_top = top;
@@ -570,11 +589,11 @@ ChartLayout Chart::layout() const {
     // y: ticks at least 1.8 font sizes apart.
     const int ny = std::clamp(static_cast<int>(plot_h / (1.8 * fs)) + 1, 3, o.max_y_ticks);
     Interval ydom;
-    L.y_ticks = axis(o.y_domain, ey, ny, ydom);
+    L.y_ticks = axis_ticks(o.y_domain, ey, ny, ydom);
     L.y_tick_labels = tick_labels(L.y_ticks);
     const double y_label_block = o.y_label.empty() ? 0.0 : 8.0 + fs + 1.0;
     const double needed_left =
-        kTickLength + kTickGap + widest(L.y_tick_labels) + y_label_block + 4.0;
+        kTickLength + kTickGap + widest_label(L.y_tick_labels, fs) + y_label_block + 4.0;
     const double left =
         std::max(std::min(std::max(o.margins.left, needed_left),
                           o.margins.left + 0.5 * (o.width - o.margins.left - right)),
@@ -593,19 +612,19 @@ ChartLayout Chart::layout() const {
       for (std::size_t i = 0; i < categories.size(); ++i)
         L.x_ticks.push_back(static_cast<double>(i));
       L.x_tick_labels = categories;
-      const bool crowded = widest(categories) + 6.0 > plot_w / n;
+      const bool crowded = widest_label(categories, fs) + 6.0 > plot_w / n;
       if (crowded && !L.rotate_x_labels) {
         L.rotate_x_labels = true;
         continue;  // second pass with room for slanted labels
       }
     } else {
       for (int nx = o.max_x_ticks; nx >= 3; --nx) {
-        L.x_ticks = axis(o.x_domain, ex, nx, xdom);
+        L.x_ticks = axis_ticks(o.x_domain, ex, nx, xdom);
         L.x_tick_labels = tick_labels(L.x_ticks);
         const double gap = L.x_ticks.size() < 2 ? plot_w
                                                 : std::abs(L.x_ticks[1] - L.x_ticks[0]) /
                                                       (xdom.hi - xdom.lo) * plot_w;
-        if (widest(L.x_tick_labels) + 10.0 <= gap) break;
+        if (widest_label(L.x_tick_labels, fs) + 10.0 <= gap) break;
       }
     }
     L.x = {xdom.lo, xdom.hi, L.plot_left, L.plot_right};

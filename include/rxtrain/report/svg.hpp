@@ -259,6 +259,7 @@ class Chart {
 
   // The mapping and ticks render() uses for the current data.
   ChartLayout layout() const;
+
   LinearScale x_scale() const { return layout().x; }
   LinearScale y_scale() const { return layout().y; }
 
@@ -269,6 +270,11 @@ class Chart {
 
  private:
   std::string render_svg() const;
+  // The height below the plot that slanted category names need; shortens
+  // `categories` to fit and sets `label_left` (px the first name needs
+  // left of the plot).
+  double slanted_tick_block(const ChartLayout& L, std::vector<std::string>& categories,
+                            double label_block, double& label_left) const;
 
   ChartOptions options_;
   std::vector<detail::Series> series_;
