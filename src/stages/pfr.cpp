@@ -178,119 +178,143 @@ class PathRecorder {
 
 }  // namespace
 
+namespace {
+
+// Where the integration of a stage stops: its volume, or, when sized, the
+// space-time bound (the target conversion's root ends it sooner).
+double end_volume(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet, double X_in,
+                  const PfrOptions& options) {
+  if (!spec.target_conversion) return spec.volume.value();
+  if (*spec.target_conversion <= X_in)
+    throw InputError(spec.where, fmt::format("stage {}: target conversion {:.4f} is not above the "
+                                             "conversion at its inlet ({:.4f})",
+                                             spec.id, *spec.target_conversion, X_in));
+  return options.max_space_time * mech.volumetric_flow(inlet.T, inlet.P, inlet.F.data());
+}
+
+// Roots: the target conversion when sizing, and the stop temperature.
+// Temperature extremes (dT/dV = 0) are found after each step from the
+// integrator's interpolating polynomial instead (PathRecorder): as a root
+// function dT/dV would cost one more right-hand side per step. Always
+// set, so that a reused integrator drops the last stage's roots.
+void arm_roots(PfrWorkspace::State& st, CvodeIntegrator& ode, const ConversionBasis& basis, int n,
+               std::optional<double> X_target, std::optional<double> T_stop) {
+  auto& rt = st.roots;
+  rt = {};
+  rt.basis = basis;
+  rt.n = n;
+  std::vector<int> directions;
+  if (X_target) {
+    rt.X_target = *X_target;
+    rt.i_target = 0;
+    directions = {1};
+  }
+  if (T_stop) {
+    rt.T_stop = *T_stop;
+    rt.i_stop = rt.count();
+    directions.push_back(0);
+  }
+  ode.set_roots(
+      rt.count(), [r = &rt](double, const double* y, double* g) { return r->eval(y, g); },
+      directions);
+}
+
+// How the integration of a stage ended.
+struct Walk {
+  double V = 0;          // m3
+  bool reached = false;  // the target conversion's root
+  bool stopped = false;  // the stop temperature's root (or an inlet past it)
+};
+
+// Integrates the stage from its inlet to V_end or a root, recording the
+// path (every step, or only the ends and turns).
+Walk walk_stage(PfrWorkspace::State& st, CvodeIntegrator& ode, PathRecorder& path,
+                const ReactorSpec& spec, const Stream& inlet, int n, double V_end, bool every_step,
+                std::optional<double> T_stop) {
+  std::vector<double>& y = st.y;
+  path.record(0.0, y);
+  Walk w;
+  if (spec.heat == HeatMode::Adiabatic && st.sys.rhs(y.data(), st.ydot.data()) == 0)
+    path.set_slope(st.ydot[n]);
+  if (T_stop) {
+    // A root at the inlet itself is not reported by CVODE: an inlet at or
+    // past the stop temperature, on the side T moves to, ends the stage here.
+    const double s = path.slope();
+    if ((s > 0 && inlet.T >= *T_stop) || (s < 0 && inlet.T <= *T_stop)) w.stopped = true;
+  }
+  while (!w.stopped) {
+    CvodeIntegrator::Event ev;
+    const double V_prev = w.V;
+    try {
+      ev = every_step ? ode.step(V_end, w.V, y) : ode.advance(V_end, w.V, y);
+    } catch (const SolverError& e) {
+      throw SolverError(fmt::format(
+          "{} at V = {:.6g} m3 (of {:.6g} m3): {}; try: check the units and size of A and Ea "
+          "(a rate far too fast or too slow), split the stage at that volume, or loosen --rtol",
+          spec.id, w.V, V_end, e.what()));
+    }
+    path.stepped(ode, V_prev, w.V, y, -1);
+    if (ev == CvodeIntegrator::Event::Stop) break;
+    if (ev != CvodeIntegrator::Event::Root) continue;
+    const auto found = ode.roots_found();
+    const auto& rt = st.roots;
+    if (rt.i_target >= 0 && found[rt.i_target] != 0) {
+      w.reached = true;
+      break;
+    }
+    if (rt.i_stop >= 0 && found[rt.i_stop] != 0) {
+      w.stopped = true;
+      break;
+    }
+  }
+  return w;
+}
+
+}  // namespace
+
 StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
                     const ConversionBasis& basis, PfrWorkspace& ws, const PfrOptions& options) {
   const int n = mech.n_species();
   PfrWorkspace::State& st = ws.state();
   CvodeIntegrator& ode =
       st.start(ws.context(), mech, rate_multipliers(mech, spec), spec.heat, inlet, options);
-  PfrSystem& sys = st.sys;
 
   StageResult res;  // its profile, while the stage runs (see the end)
-  const double X_in = basis.conversion(inlet);
   const bool sizing = spec.target_conversion.has_value();
-  double V_end = 0;
-  if (sizing) {
-    if (*spec.target_conversion <= X_in)
-      throw InputError(spec.where,
-                       fmt::format("stage {}: target conversion {:.4f} is not above the "
-                                   "conversion at its inlet ({:.4f})",
-                                   spec.id, *spec.target_conversion, X_in));
-    V_end = options.max_space_time * mech.volumetric_flow(inlet.T, inlet.P, inlet.F.data());
-  } else {
-    V_end = spec.volume.value();
-  }
+  const double V_end = end_volume(mech, spec, inlet, basis.conversion(inlet), options);
   ode.set_stop_time(V_end);
-
-  // Roots: the target conversion when sizing, and the stop temperature. Temperature extremes
-  // (dT/dV = 0) are found after each step from the integrator's
-  // interpolating polynomial instead (PathRecorder): as a root function
-  // dT/dV would cost one more right-hand side per step.
-  auto& rt = st.roots;
-  rt = {};
-  rt.basis = basis;
-  rt.n = n;
   const bool adiabatic = spec.heat == HeatMode::Adiabatic;
   // The stop temperature only matters where T moves.
-  const bool stop_at_T = adiabatic && options.stop_temperature.has_value();
-  const double X_target = sizing ? *spec.target_conversion : 0.0;
-  const double T_stop = stop_at_T ? *options.stop_temperature : 0.0;
-  std::vector<int> directions;
-  if (sizing) {
-    rt.X_target = X_target;
-    rt.i_target = 0;
-    directions = {1};
-  }
-  if (stop_at_T) {
-    rt.T_stop = T_stop;
-    rt.i_stop = rt.count();
-    directions.push_back(0);
-  }
-  // Always set, so that a reused integrator drops the last stage's roots.
-  ode.set_roots(
-      rt.count(), [r = &rt](double, const double* y, double* g) { return r->eval(y, g); },
-      directions);
+  const std::optional<double> T_stop =
+      adiabatic ? options.stop_temperature : std::optional<double>{};
+  arm_roots(st, ode, basis, n, spec.target_conversion, T_stop);
 
   // With one reaction dT/dV = -dH r / sum F cp: r keeps its sign along a
   // bed (the reaction approaches its equilibrium without crossing it) and
   // so does dH over the few hundred kelvin of one bed, so T is monotonic
   // and its extremes are the end points (isothermal: T is constant).
   const bool monotonic = !adiabatic || mech.n_reactions() == 1;
-  const bool every_step = options.full_profile || !monotonic;
   PathRecorder path(res, basis, n, !monotonic, st.dky, st.y_turn);
-  std::vector<double>& y = st.y;
-  std::vector<double>& ydot = st.ydot;
-  path.record(0.0, y);
-  double V = 0;
-  bool reached = false;
-  bool stopped = false;
-  if (adiabatic && sys.rhs(y.data(), ydot.data()) == 0) path.set_slope(ydot[n]);
-  if (stop_at_T) {
-    // A root at the inlet itself is not reported by CVODE: an inlet at or
-    // past the stop temperature, on the side T moves to, ends the stage here.
-    const double s = path.slope();
-    if ((s > 0 && inlet.T >= T_stop) || (s < 0 && inlet.T <= T_stop)) stopped = true;
-  }
-  while (!stopped) {
-    CvodeIntegrator::Event ev;
-    const double V_prev = V;
-    try {
-      ev = every_step ? ode.step(V_end, V, y) : ode.advance(V_end, V, y);
-    } catch (const SolverError& e) {
-      throw SolverError(fmt::format(
-          "{} at V = {:.6g} m3 (of {:.6g} m3): {}; try: check the units and size of A and Ea "
-          "(a rate far too fast or too slow), split the stage at that volume, or loosen --rtol",
-          spec.id, V, V_end, e.what()));
-    }
-    path.stepped(ode, V_prev, V, y, -1);
-    if (ev == CvodeIntegrator::Event::Stop) break;
-    if (ev != CvodeIntegrator::Event::Root) continue;
-    const auto found = ode.roots_found();
-    if (rt.i_target >= 0 && found[rt.i_target] != 0) {
-      reached = true;
-      break;
-    }
-    if (rt.i_stop >= 0 && found[rt.i_stop] != 0) {
-      stopped = true;
-      break;
-    }
-  }
-  if (sizing && !reached && !stopped) {
+  const Walk w =
+      walk_stage(st, ode, path, spec, inlet, n, V_end, options.full_profile || !monotonic, T_stop);
+  double V = w.V;
+  if (sizing && !w.reached && !w.stopped) {
     const StageReach reach = pfr_reach(mech, spec, inlet, basis, ws, options);
-    throw InfeasibleError(spec.where, out_of_reach_text(spec, X_target, reach, mech));
+    throw InfeasibleError(spec.where,
+                          out_of_reach_text(spec, *spec.target_conversion, reach, mech));
   }
 
-  if (reached && mech.n_reactions() == 1) {
+  if (w.reached && mech.n_reactions() == 1) {
     // One reaction: the volume by quadrature along the exact path (see
     // size_by_quadrature); the volume integration above told that the target is
     // met before the stop temperature.
     res.profile.resize(1);
-    V = detail::size_by_quadrature(mech, spec, inlet, basis, X_target, options.cvode.rtol,
-                                   options.full_profile, res, y);
+    V = detail::size_by_quadrature(mech, spec, inlet, basis, *spec.target_conversion,
+                                   options.cvode.rtol, options.full_profile, res, st.y);
   }
 
   std::vector<ProfilePoint> profile = std::move(res.profile);
-  res = detail::pfr_result(mech, spec, inlet, basis, sizing, V, y.data());
+  res = detail::pfr_result(mech, spec, inlet, basis, sizing, V, st.y.data());
   res.profile = std::move(profile);
   res.T_max = res.T_min = inlet.T;
   for (const auto& p : res.profile) {
@@ -298,10 +322,10 @@ StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream
     res.T_min = std::min(res.T_min, p.T);
   }
   res.stats = ode.stats();
-  if (stopped)
+  if (w.stopped)
     res.stats.message = fmt::format("stopped at the stop temperature {} at V = {:.6g} m3",
-                                    temperature_words(T_stop), V);
-  if (reached) detail::add_size_sensitivity(mech, rate_multipliers(mech, spec), basis, res);
+                                    temperature_words(*T_stop), V);
+  if (w.reached) detail::add_size_sensitivity(mech, rate_multipliers(mech, spec), basis, res);
   return res;
 }
 
