@@ -44,18 +44,10 @@ json exchanger_json(const Interstage& x) {
 
 }  // namespace
 
-std::string optimize_json_text(const DesignResult& d) {
-  json j;
-  j["title"] = d.title;
-  j["key"] = d.key;
-  j["target"] = json_number(d.target);
-  j["limits"] = {{"T_max", json_number(d.limits.T_max)},
-                 {"T_in_min", json_number(d.limits.T_in_min)}};
-  j["reaction"] = d.exothermic ? "exothermic" : "endothermic";
-  j["objective"] = d.catalyst_objective ? "catalyst" : "volume";
-  j["fixed_feed_T"] = d.fixed_feed_T;
-  j["margin"] = json_number(d.margin);
-  j["window"] = {{"T_low", json_number(d.window_low)}, {"T_high", json_number(d.window_high)}};
+namespace {
+
+// The optimum's beds, exchangers, totals and active limits.
+void put_layout(json& j, const DesignResult& d) {
   const DesignLayout& l = d.best;
   json beds = json::array();
   for (const auto& b : l.bed)
@@ -80,6 +72,11 @@ std::string optimize_json_text(const DesignResult& d) {
   json active = json::array();
   for (const auto& a : l.active_constraints) active.push_back(active_limit_text(d, l, a));
   j["active_constraints"] = active;
+}
+
+// The optimality conditions at the optimum, each with its residual.
+json conditions_json(const DesignResult& d) {
+  const DesignLayout& l = d.best;
   auto exempt = [&](const std::vector<ActiveLimit>& v) {
     json e = json::array();
     for (const auto& a : v) e.push_back(active_limit_text(d, l, a));
@@ -102,14 +99,16 @@ std::string optimize_json_text(const DesignResult& d) {
                       {"shift", json_number(c.shift)},
                       {"state", condition_state_name(c.state)},
                       {"exempt_by", exempt(c.exempt_by)}});
-  j["conditions"] = {{"interstage", interstage}, {"inlets", inlets}};
-  j["checked_conversion"] = json_number(l.checked_conversion);
-  j["optimizer"] = {
-      {"evaluations", l.evaluations}, {"starts", l.starts}, {"polish_rounds", l.polish_rounds}};
+  return {{"interstage", interstage}, {"inlets", inlets}};
+}
+
+// The case as written and the staging policy, against the optimum.
+void put_comparisons(json& j, const DesignResult& d) {
   if (d.as_written) {
     const auto& a = *d.as_written;
     const bool comparable = a.ran && a.reaches_target && a.within_limits;
     const auto other = objective_total(d, a.total_catalyst, a.total_volume);
+    const std::string note = as_written_text(d);
     j["as_written"] = {{"ran", a.ran},
                        {"conversion", a.ran ? json_number(a.conversion) : json(nullptr)},
                        {"reaches_target", a.reaches_target},
@@ -119,7 +118,7 @@ std::string optimize_json_text(const DesignResult& d) {
                        {"total_catalyst", json_number(a.total_catalyst)},
                        {"total_duty", a.ran ? json_number(a.total_duty) : json(nullptr)},
                        {"saving", comparable ? json_number(saving(d, other)) : json(nullptr)},
-                       {"note", as_written_text(d).empty() ? json(nullptr) : json(as_written_text(d))}};
+                       {"note", note.empty() ? json(nullptr) : json(note)}};
   } else {
     j["as_written"] = nullptr;
   }
@@ -137,6 +136,10 @@ std::string optimize_json_text(const DesignResult& d) {
   } else {
     j["staging"] = nullptr;
   }
+}
+
+// The best layout of each bed count (the optimum alone without --max-beds).
+json by_bed_count_json(const DesignResult& d) {
   json counts = json::array();
   const std::vector<DesignLayout> one{d.best};
   for (const auto& c : d.by_bed_count.empty() ? one : d.by_bed_count)
@@ -147,7 +150,31 @@ std::string optimize_json_text(const DesignResult& d) {
          {"total_volume", c.feasible ? json_number(c.total_volume) : json(nullptr)},
          {"total_duty", c.feasible ? json_number(c.total_duty) : json(nullptr)},
          {"why", c.feasible ? json(nullptr) : json(shortfall_message(d, c.shortfall))}});
-  j["by_bed_count"] = counts;
+  return counts;
+}
+
+}  // namespace
+
+std::string optimize_json_text(const DesignResult& d) {
+  json j;
+  j["title"] = d.title;
+  j["key"] = d.key;
+  j["target"] = json_number(d.target);
+  j["limits"] = {{"T_max", json_number(d.limits.T_max)},
+                 {"T_in_min", json_number(d.limits.T_in_min)}};
+  j["reaction"] = d.exothermic ? "exothermic" : "endothermic";
+  j["objective"] = d.catalyst_objective ? "catalyst" : "volume";
+  j["fixed_feed_T"] = d.fixed_feed_T;
+  j["margin"] = json_number(d.margin);
+  j["window"] = {{"T_low", json_number(d.window_low)}, {"T_high", json_number(d.window_high)}};
+  put_layout(j, d);
+  j["conditions"] = conditions_json(d);
+  j["checked_conversion"] = json_number(d.best.checked_conversion);
+  j["optimizer"] = {{"evaluations", d.best.evaluations},
+                    {"starts", d.best.starts},
+                    {"polish_rounds", d.best.polish_rounds}};
+  put_comparisons(j, d);
+  j["by_bed_count"] = by_bed_count_json(d);
   j["limit_check"] = limit_check_json(d.limit_check);
   j["warnings"] = optimize_warnings(d);
   j["caution"] = kCaution;
@@ -296,7 +323,9 @@ std::string by_bed_count_lines(const DesignResult& d, int max_beds) {
   }
   out += render_columns(t, 1);
   for (const auto& c : d.by_bed_count)
-    if (!c.feasible) out += fmt::format("  {} bed{}: {}\n", c.beds, c.beds == 1 ? "" : "s", shortfall_message(d, c.shortfall));
+    if (!c.feasible)
+      out += fmt::format("  {} bed{}: {}\n", c.beds, c.beds == 1 ? "" : "s",
+                         shortfall_message(d, c.shortfall));
   return out;
 }
 
