@@ -159,7 +159,8 @@ Action setup_optimize(CLI::App& app) {
                  "profiles, and with --max-beds the beds-against-catalyst trade-off) and the "
                  "figures as SVG into folder DIR");
   app.add_option("--write-case", o->case_path,
-                 "Write the case with the optimum's train to FILE (rounded where that keeps its target and limits; rxtrain run reproduces it)");
+                 "Write the case with the optimum's train to FILE (rounded where that keeps its "
+                 "target and limits; rxtrain run reproduces it)");
   return [o] { return run_optimize_command(*o); };
 }
 
