@@ -8,7 +8,7 @@
 #include <optional>
 #include <vector>
 
-#include "pfr_system.hpp"
+#include "pfr_shared.hpp"
 #include "rxtrain/base/error.hpp"
 #include "rxtrain/base/units.hpp"
 #include "rxtrain/solvers/quadrature.hpp"

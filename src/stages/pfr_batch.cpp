@@ -8,7 +8,7 @@
 #include <stdexcept>
 #include <vector>
 
-#include "pfr_system.hpp"
+#include "pfr_shared.hpp"
 #include "rxtrain/base/error.hpp"
 
 namespace rxtrain {

@@ -1,16 +1,19 @@
-// The tubular-reactor ODE system (right-hand side, dense and sparse
-// Jacobians) shared by one-stage runs (pfr.cpp) and batched runs
-// (pfr_batch.cpp). Internal to the library: not installed, not API.
+// The tubular balances: the mole and energy balances of a tubular stage
+// as an ODE system in its volume, on the state y = [F_1..F_n, T, Q]
+// (molar flows mol/s, temperature K, heat added W), with its dense and
+// sparse analytic Jacobians. The one home of these balances: lone and
+// batched tubular stages (stages/pfr.cpp, stages/pfr_batch.cpp) integrate
+// it; a new state (pressure, a coolant temperature) is added here.
+// Internal to the library (rxtrain::detail), not API.
 #pragma once
 
 #include <algorithm>
 #include <cmath>
 #include <vector>
 
+#include "rxtrain/chem/stream.hpp"
 #include "rxtrain/kinetics/mechanism.hpp"
 #include "rxtrain/solvers/cvode.hpp"
-#include "rxtrain/solvers/scalar_root.hpp"
-#include "rxtrain/stages/stage.hpp"
 
 namespace rxtrain::detail {
 
@@ -273,30 +276,5 @@ inline void state_scale(const Mechanism& mech, const Stream& in, std::vector<dou
   s.push_back(in.T);
   s.push_back(std::max(1.0, mech.heat_capacity_flow(in.T, in.F.data()) * in.T));
 }
-
-// A one-reaction tubular bed sized to X_target by quadrature of dV/dX along
-// its exact path (pfr.cpp): returns the volume, appends profile points to
-// res (every quadrature piece, or only the end without full_profile) and
-// leaves y = [F, T, Q] at the end.
-double size_by_quadrature(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
-                          const ConversionBasis& basis, double X_target, double rtol,
-                          bool full_profile, StageResult& res, std::vector<double>& y);
-
-// A sized stage: res.size_sensitivity, the relative change of its volume
-// per 1e-6 of conversion at the outlet, and a warning where the size is
-// ill-conditioned.
-void add_size_sensitivity(const Mechanism& mech, const std::vector<double>& multipliers,
-                          const ConversionBasis& basis, StageResult& res);
-
-// A profile point at volume V from the state y = [F, T, ...].
-ProfilePoint profile_point(double V, const double* y, int n, const ConversionBasis& basis);
-
-// What a tubular stage's result holds whether it ran alone or batched:
-// identity, volume, catalyst, outlet (flows' round-off below zero cleared),
-// duty, conversion and space velocities, from its end state y = [F, T, Q]
-// at volume V. Profile, T_max, T_min and solver statistics are the
-// caller's.
-StageResult pfr_result(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
-                       const ConversionBasis& basis, bool sized, double V, const double* y);
 
 }  // namespace rxtrain::detail

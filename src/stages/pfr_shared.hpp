@@ -1,0 +1,40 @@
+// What lone and batched tubular stages share beyond their balances
+// (models/tubular_balances.hpp): sizing by quadrature, the size
+// sensitivity, profile points and the stage result. Internal to the
+// library: not installed, not API.
+#pragma once
+
+#include <vector>
+
+#include "rxtrain/models/tubular_balances.hpp"
+#include "rxtrain/solvers/scalar_root.hpp"
+#include "rxtrain/stages/stage.hpp"
+
+namespace rxtrain::detail {
+
+// A one-reaction tubular bed sized to X_target by quadrature of dV/dX along
+// its exact path (pfr.cpp): returns the volume, appends profile points to
+// res (every quadrature piece, or only the end without full_profile) and
+// leaves y = [F, T, Q] at the end.
+double size_by_quadrature(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
+                          const ConversionBasis& basis, double X_target, double rtol,
+                          bool full_profile, StageResult& res, std::vector<double>& y);
+
+// A sized stage: res.size_sensitivity, the relative change of its volume
+// per 1e-6 of conversion at the outlet, and a warning where the size is
+// ill-conditioned.
+void add_size_sensitivity(const Mechanism& mech, const std::vector<double>& multipliers,
+                          const ConversionBasis& basis, StageResult& res);
+
+// A profile point at volume V from the state y = [F, T, ...].
+ProfilePoint profile_point(double V, const double* y, int n, const ConversionBasis& basis);
+
+// What a tubular stage's result holds whether it ran alone or batched:
+// identity, volume, catalyst, outlet (flows' round-off below zero cleared),
+// duty, conversion and space velocities, from its end state y = [F, T, Q]
+// at volume V. Profile, T_max, T_min and solver statistics are the
+// caller's.
+StageResult pfr_result(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
+                       const ConversionBasis& basis, bool sized, double V, const double* y);
+
+}  // namespace rxtrain::detail
