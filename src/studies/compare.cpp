@@ -10,6 +10,7 @@
 #include "rxtrain/base/error.hpp"
 #include "rxtrain/base/units.hpp"
 #include "rxtrain/case/case_fields.hpp"
+#include "rxtrain/studies/bed_layout.hpp"
 
 namespace rxtrain {
 
@@ -39,10 +40,6 @@ ThermoCeiling thermo_ceiling(const Mechanism& mech, double default_ceiling) {
 }
 
 namespace {
-
-// Below this a sized layout's final conversion is short of its highest
-// stage target (the sizing root finder lands far closer than this).
-constexpr double kTargetTolerance = 1e-6;
 
 // A reactor stage's spec under a layout's heat mode.
 ReactorSpec with_heat(ReactorSpec r, LayoutHeat heat) {
@@ -113,7 +110,7 @@ Layout evaluate(const Case& lc, const TrainOptions& options, const std::optional
       else
         l.reason += (l.reason.empty() ? "" : "; ") + s;
     }
-    if (l.feasible && X_sized && res.conversion < *X_sized - kTargetTolerance) {
+    if (l.feasible && X_sized && res.conversion < *X_sized - kReachTolerance) {
       l.feasible = false;
       l.reason = fmt::format(
           "ends at X = {:.4f}, short of the {:.4f} a stage is sized to: a later stage gives "

@@ -19,7 +19,8 @@
 namespace rxtrain {
 
 // A conversion counts as reached when it is within this (absolute) of the
-// conversion aimed at, in every comparison of the staged studies. 1e-6:
+// conversion aimed at, in every comparison of the studies (staging,
+// optimize, and compare's sized layouts). 1e-6:
 // far below the four decimals shown, above the CVODE root on a conversion
 // (~1e-10) and above the agreement of the optimizer's quadrature with the
 // train solver on the same beds (its check warns only past 1e-5), so that
