@@ -84,12 +84,52 @@ std::string thermo_note(const ThermoCeiling& t) {
                      t.T - kZeroCelsius);
 }
 
+}  // namespace
+
+std::string compare_reason_text(const Layout& l) {
+  switch (l.failure) {
+    case LayoutFailure::None:
+      return "";
+    case LayoutFailure::PassesLimit: {
+      std::string s;
+      for (const auto& f : l.limit_check.findings)
+        if (f.kind != LimitFindingKind::Near)
+          s += (s.empty() ? "" : "; ") + limit_finding_text(f, l.limit_check.margin);
+      return s;
+    }
+    case LayoutFailure::GivesBack:
+      return fmt::format(
+          "ends at X = {:.4f}, short of the {:.4f} a stage is sized to: a later stage gives "
+          "conversion back",
+          l.conversion.value_or(0.0), l.X_sized.value_or(0.0));
+    case LayoutFailure::Equilibrium:
+      return "equilibrium: " + l.error;
+    case LayoutFailure::Input:
+      return l.error;
+    case LayoutFailure::Solver:
+      return "solver: " + l.error;
+  }
+  return "";
+}
+
+namespace {
+
+// The stages of a layout within the margin of a limit (Near findings;
+// none when the layout did not run).
+std::vector<std::string> near_limit_notes(const Layout& l) {
+  std::vector<std::string> notes;
+  for (const auto& f : l.limit_check.findings)
+    if (f.kind == LimitFindingKind::Near)
+      notes.push_back(limit_finding_text(f, l.limit_check.margin));
+  return notes;
+}
+
 // Everything said about a layout beside its numbers, most serious first.
 std::vector<std::string> notes_of(const Layout& l, const CompareResult& r) {
   std::vector<std::string> notes;
-  if (!l.feasible) notes.push_back("infeasible: " + l.reason);
-  // A feasible layout near a temperature limit (within the margin).
-  for (const auto& n : l.notes) notes.push_back(n);
+  if (!l.feasible) notes.push_back("infeasible: " + compare_reason_text(l));
+  // A layout near a temperature limit (within the margin).
+  for (const auto& n : near_limit_notes(l)) notes.push_back(n);
   if (l.beyond_thermo) notes.push_back(thermo_note(r.thermo_ceiling));
   if (const std::string same = same_train_text(l, r.case_order); !same.empty())
     notes.push_back(same);
@@ -159,19 +199,20 @@ std::string compare_json_text(const CompareResult& r) {
     nlohmann::json moved = nlohmann::json::array();
     for (const auto& m : l.moves)
       moved.push_back({{"stage", m.stage}, {"from", m.from}, {"to", m.to}});
-    layouts.push_back({{"order", l.order},
-                       {"orders", l.orders},
-                       {"moved", moved},
-                       {"heat", layout_heat_name(l.heat)},
-                       {"case_layout", l.case_layout},
-                       {"feasible", l.feasible},
-                       {"reason", l.feasible ? nlohmann::json(nullptr) : nlohmann::json(l.reason)},
-                       {"total_volume", json_number(l.total_volume)},
-                       {"total_catalyst", json_number(l.total_catalyst)},
-                       {"conversion", json_number(l.conversion)},
-                       {"T_peak", json_number(l.T_peak)},
-                       {"beyond_thermo_data", l.beyond_thermo},
-                       {"notes", l.notes}});
+    layouts.push_back(
+        {{"order", l.order},
+         {"orders", l.orders},
+         {"moved", moved},
+         {"heat", layout_heat_name(l.heat)},
+         {"case_layout", l.case_layout},
+         {"feasible", l.feasible},
+         {"reason", l.feasible ? nlohmann::json(nullptr) : nlohmann::json(compare_reason_text(l))},
+         {"total_volume", json_number(l.total_volume)},
+         {"total_catalyst", json_number(l.total_catalyst)},
+         {"conversion", json_number(l.conversion)},
+         {"T_peak", json_number(l.T_peak)},
+         {"beyond_thermo_data", l.beyond_thermo},
+         {"notes", near_limit_notes(l)}});
   }
   const auto& t = r.thermo_ceiling;
   return nlohmann::json{

@@ -78,9 +78,9 @@ Case layout_case(const Case& c, const std::vector<ReactorSpec>& reactors,
 
 // Runs one layout. `X_sized`: the highest stage target of a sized train,
 // which every layout of it must still reach at its outlet. A layout whose
-// stage passes the case's temperature limits is infeasible, with every
-// such stage's finding as its reason (limit_check.hpp); so is a layout the
-// loader would refuse (validate_case), with the loader's message.
+// stage passes the case's temperature limits is infeasible (its limit
+// check holds the findings); so is a layout the loader would refuse
+// (validate_case), with the loader's message.
 Layout evaluate(const Case& lc, const TrainOptions& options, const std::optional<double>& X_sized) {
   Layout l;
   try {
@@ -102,27 +102,23 @@ Layout evaluate(const Case& lc, const TrainOptions& options, const std::optional
     if (all_catalyst) l.total_catalyst = W;
     l.conversion = res.conversion;
     l.T_peak = T_hi;
+    l.limit_check = res.limit_check;
     l.feasible = !res.limit_check.passed();
-    for (const auto& f : res.limit_check.findings) {
-      const std::string s = limit_finding_text(f, res.limit_check.margin);
-      if (f.kind == LimitFindingKind::Near)
-        l.notes.push_back(s);
-      else
-        l.reason += (l.reason.empty() ? "" : "; ") + s;
-    }
+    if (!l.feasible) l.failure = LayoutFailure::PassesLimit;
     if (l.feasible && X_sized && res.conversion < *X_sized - kReachTolerance) {
       l.feasible = false;
-      l.reason = fmt::format(
-          "ends at X = {:.4f}, short of the {:.4f} a stage is sized to: a later stage gives "
-          "conversion back",
-          res.conversion, *X_sized);
+      l.failure = LayoutFailure::GivesBack;
+      l.X_sized = X_sized;
     }
   } catch (const InfeasibleError& e) {
-    l.reason = "equilibrium: " + e.message();
+    l.failure = LayoutFailure::Equilibrium;
+    l.error = e.message();
   } catch (const InputError& e) {
-    l.reason = e.message();
+    l.failure = LayoutFailure::Input;
+    l.error = e.message();
   } catch (const SolverError& e) {
-    l.reason = std::string("solver: ") + e.what();
+    l.failure = LayoutFailure::Solver;
+    l.error = e.what();
   }
   return l;
 }

@@ -42,6 +42,10 @@ std::string layout_order_text(const Layout& l);
 // "R3 moved to the front", "R1 moved between R2 and R3", or each moved
 // stage's new place ("R3 to 1st, R1 to 2nd, R2 to 3rd").
 std::string layout_moves_text(const Layout& l, const std::vector<std::string>& case_order);
+// Why an infeasible layout is so, in words ("" when feasible): its
+// stages past the limits, the conversion it gives back, or the error that
+// stopped it.
+std::string compare_reason_text(const Layout& l);
 
 Figure compare_figure(const CompareResult& r);
 std::string compare_report_html(const Case& c, const CompareResult& r,

@@ -23,6 +23,7 @@
 
 #include "rxtrain/case/case.hpp"
 #include "rxtrain/flowsheet/train.hpp"
+#include "rxtrain/stages/limit_check.hpp"
 
 namespace rxtrain {
 
@@ -62,6 +63,16 @@ struct StageMove {
   int to = 0;
 };
 
+// Why a layout is infeasible.
+enum class LayoutFailure {
+  None,
+  PassesLimit,  // a stage passes T_max or falls below T_in_min
+  GivesBack,    // the outlet ends short of a stage's sizing target
+  Equilibrium,  // a stage's target lies beyond its equilibrium
+  Input,        // the layout is a case the loader would refuse
+  Solver,       // the solver failed on it
+};
+
 struct Layout {
   // Reactor-stage ids in train order: of the orders below, the one that
   // moves the fewest stages from the case.
@@ -72,13 +83,17 @@ struct Layout {
   LayoutHeat heat = LayoutHeat::AsWritten;
   bool case_layout = false;  // the case exactly as written
   bool feasible = false;
-  // Why not, when infeasible; a layout whose stage passes the case's
-  // limits (limit_check.hpp) is infeasible, with every such stage's
-  // finding here.
-  std::string reason;
-  // Stages of a feasible layout within the margin of a limit (Near
-  // findings), phrased.
-  std::vector<std::string> notes;
+  // Why not, when infeasible (report/compare_report.hpp phrases it).
+  LayoutFailure failure = LayoutFailure::None;
+  // The message of the error that stopped the run (Equilibrium, Input,
+  // Solver), worded where it was thrown.
+  std::string error;
+  // The run against the case's limits: its Over and Under findings make
+  // the layout infeasible (PassesLimit); its Near findings are noted.
+  LimitCheck limit_check;
+  // GivesBack: the highest stage target of the sized train, which the
+  // outlet falls short of.
+  std::optional<double> X_sized;
   std::optional<double> total_volume;    // m3
   std::optional<double> total_catalyst;  // kg, when every reactor has one
   std::optional<double> conversion;      // overall key conversion at the outlet
