@@ -20,6 +20,8 @@ constexpr double kHighestT = 1.0e4;  // K
 // temperature in about 15 tries.
 constexpr double kBracketGrowth = 1.5;
 constexpr int kMaxIterations = 200;
+// Newton steps tried from the guess before the bracketed search.
+constexpr int kNewtonFirstSteps = 8;
 
 }  // namespace
 
@@ -34,6 +36,25 @@ double temperature_for_enthalpy(const Mechanism& mech, const std::vector<double>
   const double tol = 1e-14 * scale;
   double g0 = g(T0);
   if (std::abs(g0) <= tol) return T0;
+
+  // From a good guess (the usual case: the last temperature of a path, a
+  // first-order estimate) plain Newton converges in a few steps; the
+  // bracketed search below is for the rest. sum F hs(T) rises with T
+  // wherever cp > 0, so a step that leaves the range or a non-positive
+  // heat-capacity flow hands over to the bracket.
+  {
+    double T = T0, gT = g0;
+    for (int it = 0; it < kNewtonFirstSteps; ++it) {
+      const double C = mech.heat_capacity_flow(T, F.data());
+      if (!(C > 0) || !std::isfinite(C)) break;
+      const double T_next = T - gT / C;
+      if (!(T_next > kLowestT && T_next < kHighestT)) break;
+      if (std::abs(T_next - T) <= 4 * std::numeric_limits<double>::epsilon() * T) return T_next;
+      T = T_next;
+      gT = g(T);
+      if (std::abs(gT) <= tol) return T;
+    }
+  }
 
   // Bracket the root: walk from T0 in the direction the slope points to,
   // then the other way, multiplying the distance each time.

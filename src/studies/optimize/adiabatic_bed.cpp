@@ -9,6 +9,7 @@
 
 #include "rxtrain/base/error.hpp"
 #include "rxtrain/base/units.hpp"
+#include "rxtrain/models/energy_balance.hpp"
 
 namespace rxtrain::detail {
 
@@ -68,25 +69,20 @@ double AdiabaticBedModel::temperature(double X_in, double T_in, double X) const 
   if (X == X_in) return T_in;
   const double dH298 = mech_.reactions()[j_].dH_298;
   const auto F_in = flows(X_in);
-  const auto F = flows(X);
   const double H = mech_.sensible_enthalpy_flow(T_in, F_in.data()) + xi_per_X_ * (X_in - X) * dH298;
   // First guess: the heat of reaction at the inlet over the inlet's heat
-  // capacity flow; Newton on the sensible enthalpy (monotone in T).
+  // capacity flow.
   double T = T_in - xi_per_X_ * (X - X_in) * mech_.dH(j_, T_in) /
                         mech_.heat_capacity_flow(T_in, F_in.data());
   if (!(T > 0)) T = 0.5 * T_in;
-  for (int it = 0; it < 60; ++it) {
-    const double f = mech_.sensible_enthalpy_flow(T, F.data()) - H;
-    const double dT = f / mech_.heat_capacity_flow(T, F.data());
-    double T_next = T - dT;
-    if (!(T_next > 0)) T_next = 0.5 * T;
-    if (std::abs(T_next - T) <= 1e-14 * T) return T_next;
-    T = T_next;
+  try {
+    return temperature_for_enthalpy(mech_, flows(X), H, T);
+  } catch (const SolverError&) {
+    throw SolverError(
+        fmt::format("optimize: the energy balance of an adiabatic bed from X = {:.6f} at {} has no "
+                    "temperature at X = {:.6f}",
+                    X_in, temperature_words(T_in), X));
   }
-  throw SolverError(
-      fmt::format("optimize: the energy balance of an adiabatic bed from X = {:.6f} at {} has no "
-                  "temperature at X = {:.6f}",
-                  X_in, temperature_words(T_in), X));
 }
 
 double AdiabaticBedModel::rate(double X, double T) const {
