@@ -9,6 +9,7 @@
 
 #include "rxtrain/base/error.hpp"
 #include "rxtrain/base/units.hpp"
+#include "rxtrain/models/energy_balance.hpp"
 #include "rxtrain/solvers/scalar_root.hpp"
 
 namespace rxtrain {
@@ -739,10 +740,7 @@ AdiabaticLine adiabatic_line(const Mechanism& mech, const Stream& inlet,
                                 mech.species()[basis.key].id);
   const int j = line.reaction;
   const double nu_key = mech.reactions()[j].nu[basis.key];
-  const double* Fin = inlet.F.data();
-  const double H_in = mech.sensible_enthalpy_flow(inlet.T, Fin);
-  const double scale =
-      std::max(mech.heat_capacity_flow(inlet.T, Fin) * inlet.T, std::numeric_limits<double>::min());
+  double T_guess = inlet.T;  // the last point's temperature: the next one is close
   for (int k = 0; k < points; ++k) {
     const double X = X_first + (X_last - X_first) * k / (points - 1);
     if (!flows_at_conversion(mech, inlet, basis, j, X)) {
@@ -756,22 +754,20 @@ AdiabaticLine adiabatic_line(const Mechanism& mech, const Stream& inlet,
       line.points.push_back({X, inlet.T});
       continue;
     }
-    // Rises with T: its derivative is the heat capacity flow at X.
-    auto E = [&](double T) {
-      return (mech.sensible_enthalpy_flow(T, Fin) - H_in + xi * mech.dH(j, T)) / scale;
-    };
-    const double E_lo = E(options.T_min), E_hi = E(options.T_max);
-    if (!(E_lo <= 0 && E_hi >= 0)) {
+    // The energy balance's one implementation (energy_balance.hpp).
+    std::optional<double> T;
+    try {
+      T = stream_after_extent(mech, inlet, HeatMode::Adiabatic, j, xi, T_guess).T;
+    } catch (const SolverError&) {
+    }
+    if (!T || *T < options.T_min || *T > options.T_max) {
       line.truncated = true;
       line.why = fmt::format("the adiabatic temperature leaves [{:g} K, {:g} K] before X = {:.6g}",
                              options.T_min, options.T_max, X);
       break;
     }
-    const ScalarRoot r = brent_root(E, options.T_min, options.T_max, E_lo, E_hi,
-                                    options.T_tolerance, options.max_iterations);
-    if (!r.converged)
-      throw SolverError(fmt::format("adiabatic line at X = {:.6g}: no convergence", X));
-    line.points.push_back({X, r.x});
+    line.points.push_back({X, *T});
+    T_guess = *T;
   }
   return line;
 }
