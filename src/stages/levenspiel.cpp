@@ -4,6 +4,8 @@
 #include <array>
 #include <cmath>
 
+#include "rxtrain/models/tubular_balances.hpp"
+
 namespace rxtrain {
 
 namespace {
@@ -29,6 +31,9 @@ class StageCurve {
         n_(mech.n_species()),
         beta_(volume_multipliers(mech, s)),
         r_(mech.n_reactions()) {
+    balances_.reset(mech, beta_,
+                    s.heat == HeatMode::Adiabatic ? HeatMode::Adiabatic : HeatMode::Isothermal,
+                    s.inlet.P);
     // Per unit of the curve's basis: a catalyst basis divides the
     // volumetric rates by the bulk density.
     basis_scale_ = catalyst_basis ? 1.0 / *s.bulk_density : 1.0;
@@ -50,21 +55,18 @@ class StageCurve {
   }
 
   // d[F_1..F_n, T]/dX along the tubular stage's path at one state: the
-  // stage's balances in V (see stages/pfr.hpp) over dX/dV = -r_key / F0.
-  // False where the key is not consumed (X does not advance).
+  // tube's balances in V (models/tubular_balances.hpp) over
+  // dX/dV = -r_key / F0. False where the key is not consumed (X does not
+  // advance) or the balances cannot be evaluated.
   bool slope_in_X(double T, const double* F, double* dy) {
-    mech_.rates(T, s_.inlet.P, F, r_.data());
-    std::fill(dy, dy + n_ + 1, 0.0);
-    double q = 0;
-    for (int j = 0; j < mech_.n_reactions(); ++j) {
-      const double R = beta_[j] * r_[j];
-      for (int i = 0; i < n_; ++i) dy[i] += mech_.reactions()[j].nu[i] * R;
-      q += mech_.dH(j, T) * R;
-    }
-    if (s_.heat == HeatMode::Adiabatic) dy[n_] = -q / mech_.heat_capacity_flow(T, F);
-    const double dX_dV = -dy[key_] / F0_;
+    y_.assign(F, F + n_);
+    y_.push_back(T);
+    y_.push_back(0.0);
+    ydot_.resize(y_.size());
+    if (balances_.rhs(y_.data(), ydot_.data()) != 0) return false;
+    const double dX_dV = -ydot_[key_] / F0_;
     if (!(dX_dV > 0) || !std::isfinite(dX_dV)) return false;
-    for (int i = 0; i <= n_; ++i) dy[i] /= dX_dV;
+    for (int i = 0; i <= n_; ++i) dy[i] = ydot_[i] / dX_dV;
     return true;
   }
 
@@ -79,6 +81,8 @@ class StageCurve {
   std::vector<double> beta_;
   std::vector<double> r_;
   double basis_scale_ = 1.0;
+  detail::PfrSystem balances_;
+  std::vector<double> y_, ydot_;  // [F, T, Q] and its slope in V
 };
 
 // One profile point in X with its state [F, T] and slope d[F, T]/dX.
