@@ -152,13 +152,10 @@ class PathRecorder {
         o.interpolate(at, 1, dky_.data());
         return dky_[n_];
       };
-      const double s_now = slope_at(t);
-      if ((slope_ > 0 && s_now < 0) || (slope_ < 0 && s_now > 0)) {
-        const double t_ext = bisect_sign_change(t_prev, t, slope_, slope_at);
-        o.interpolate(t_ext, 0, y_turn_.data());
-        record(v_index < 0 ? t_ext : y_turn_[v_index], y_turn_.data());
+      if (const auto t_ext = detail::temperature_turn(t_prev, t, slope_, slope_at(t), slope_at)) {
+        o.interpolate(*t_ext, 0, y_turn_.data());
+        record(v_index < 0 ? *t_ext : y_turn_[v_index], y_turn_.data());
       }
-      if (s_now != 0) slope_ = s_now;
     }
     record(v_index < 0 ? t : y[v_index], y);
   }

@@ -179,9 +179,7 @@ void integrate_batch(std::span<const PfrBatchItem> items, PfrBatchWorkspace::Sta
     ode.interpolate(at, 1, st.dky.data());
     return st.dky[static_cast<std::size_t>(b) * N + n];
   };
-  const auto extreme = [&](int b, double lo, double hi) {
-    const double at =
-        bisect_sign_change(lo, hi, st.slope[b], [&](double x) { return dT_ds(x, b); });
+  const auto extreme = [&](int b, double at) {
     ode.interpolate(at, 0, st.dky.data());
     const double T = st.dky[static_cast<std::size_t>(b) * N + n];
     st.T_max[b] = std::max(st.T_max[b], T);
@@ -205,9 +203,9 @@ void integrate_batch(std::span<const PfrBatchItem> items, PfrBatchWorkspace::Sta
           any_watch ? ode.step(s_end, s, st.y) : ode.advance(s_end, s, st.y);
       for (int b = 0; b < m && any_watch; ++b) {
         if (!st.watch[b] || st.done[b]) continue;
-        const double now = dT_ds(s, b);
-        if ((st.slope[b] > 0 && now < 0) || (st.slope[b] < 0 && now > 0)) extreme(b, s_prev, s);
-        if (now != 0) st.slope[b] = now;
+        if (const auto at = detail::temperature_turn(s_prev, s, st.slope[b], dT_ds(s, b),
+                                                     [&](double x) { return dT_ds(x, b); }))
+          extreme(b, *at);
         const double T = st.y[static_cast<std::size_t>(b) * N + n];
         st.T_max[b] = std::max(st.T_max[b], T);
         st.T_min[b] = std::min(st.T_min[b], T);

@@ -4,6 +4,7 @@
 // library: not installed, not API.
 #pragma once
 
+#include <optional>
 #include <vector>
 
 #include "rxtrain/models/tubular_balances.hpp"
@@ -36,5 +37,20 @@ ProfilePoint profile_point(double V, const double* y, int n, const ConversionBas
 // caller's.
 StageResult pfr_result(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
                        const ConversionBasis& basis, bool sized, double V, const double* y);
+
+// Where T turns inside a step from t_prev to t of a tubular stage (lone
+// or batched): dT/dt was `slope` at t_prev and is `s_now` at t; on a sign
+// change the turn is bisected on `slope_at` (dT/dt from the integrator's
+// interpolating polynomial). `slope` becomes s_now unless that is 0 (a
+// flat point keeps the last direction).
+template <class Slope>
+std::optional<double> temperature_turn(double t_prev, double t, double& slope, double s_now,
+                                       Slope&& slope_at) {
+  std::optional<double> at;
+  if ((slope > 0 && s_now < 0) || (slope < 0 && s_now > 0))
+    at = bisect_sign_change(t_prev, t, slope, slope_at);
+  if (s_now != 0) slope = s_now;
+  return at;
+}
 
 }  // namespace rxtrain::detail
