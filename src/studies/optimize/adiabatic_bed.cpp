@@ -53,11 +53,16 @@ AdiabaticBedModel::AdiabaticBedModel(const Mechanism& mech, const Stream& feed,
 }
 
 std::vector<double> AdiabaticBedModel::flows(double X) const {
-  std::vector<double> F = feed_.F;
+  std::vector<double> F;
+  flows_into(X, F);
+  return F;
+}
+
+void AdiabaticBedModel::flows_into(double X, std::vector<double>& F) const {
+  F = feed_.F;
   const auto& nu = mech_.reactions()[j_].nu;
   const double xi = xi_per_X_ * X;
   for (std::size_t i = 0; i < F.size(); ++i) F[i] = std::max(F[i] + nu[i] * xi, 0.0);
-  return F;
 }
 
 double AdiabaticBedModel::enthalpy_flow(double X, double T) const {
@@ -68,15 +73,17 @@ double AdiabaticBedModel::enthalpy_flow(double X, double T) const {
 double AdiabaticBedModel::temperature(double X_in, double T_in, double X) const {
   if (X == X_in) return T_in;
   const double dH298 = mech_.reactions()[j_].dH_298;
-  const auto F_in = flows(X_in);
+  std::vector<double>& F_in = scratch_.F_in;
+  flows_into(X_in, F_in);
   const double H = mech_.sensible_enthalpy_flow(T_in, F_in.data()) + xi_per_X_ * (X_in - X) * dH298;
   // First guess: the heat of reaction at the inlet over the inlet's heat
   // capacity flow.
   double T = T_in - xi_per_X_ * (X - X_in) * mech_.dH(j_, T_in) /
                         mech_.heat_capacity_flow(T_in, F_in.data());
   if (!(T > 0)) T = 0.5 * T_in;
+  flows_into(X, scratch_.F);
   try {
-    return temperature_for_enthalpy(mech_, flows(X), H, T);
+    return temperature_for_enthalpy(mech_, scratch_.F, H, T);
   } catch (const SolverError&) {
     throw SolverError(
         fmt::format("optimize: the energy balance of an adiabatic bed from X = {:.6f} at {} has no "
@@ -86,13 +93,27 @@ double AdiabaticBedModel::temperature(double X_in, double T_in, double X) const 
 }
 
 double AdiabaticBedModel::rate(double X, double T) const {
-  const auto F = flows(X);
-  std::vector<double> r(mech_.n_reactions());
-  mech_.rates(T, feed_.P, F.data(), r.data());
-  return r[j_];
+  flows_into(X, scratch_.F_rate);
+  scratch_.r.resize(mech_.n_reactions());
+  mech_.rates(T, feed_.P, scratch_.F_rate.data(), scratch_.r.data());
+  return scratch_.r[j_];
 }
 
 double AdiabaticBedModel::equilibrium_end(double X_in, double T_in) const {
+  // The optimizer's finite differences move one variable at a time, so
+  // most calls repeat an inlet seen a few calls before: an exact-match
+  // memo (the function is pure) saves the equilibrium solve.
+  for (const auto& e : ends_)
+    if (e.X_in == X_in && e.T_in == T_in) return e.X_e;
+  const double X_e = solve_equilibrium_end(X_in, T_in);
+  if (ends_.size() < kEndMemo)
+    ends_.push_back({X_in, T_in, X_e});
+  else
+    ends_[next_end_++ % kEndMemo] = {X_in, T_in, X_e};
+  return X_e;
+}
+
+double AdiabaticBedModel::solve_equilibrium_end(double X_in, double T_in) const {
   const Stream inlet{T_in, feed_.P, flows(X_in)};
   const auto eq =
       adiabatic_equilibrium(mech_, inlet, HeatMode::Adiabatic, basis_, {}, equilibrium_);
@@ -131,6 +152,18 @@ double AdiabaticBedModel::equilibrium_end(double X_in, double T_in) const {
 }
 
 double AdiabaticBedModel::size(double X_in, double T_in, double X_out, double X_e) const {
+  // As equilibrium_end: the beds a finite difference leaves alone repeat.
+  for (const auto& e : sizes_)
+    if (e.X_in == X_in && e.T_in == T_in && e.X_out == X_out && e.X_e == X_e) return e.size;
+  const double W = integrate_size(X_in, T_in, X_out, X_e);
+  if (sizes_.size() < kSizeMemo)
+    sizes_.push_back({X_in, T_in, X_out, X_e, W});
+  else
+    sizes_[next_size_++ % kSizeMemo] = {X_in, T_in, X_out, X_e, W};
+  return W;
+}
+
+double AdiabaticBedModel::integrate_size(double X_in, double T_in, double X_out, double X_e) const {
   if (!(X_out > X_in)) return 0.0;
   const double u_a = -std::log(X_e - X_in);
   const double u_b = -std::log(X_e - X_out);

@@ -27,6 +27,7 @@ class AdiabaticBedModel {
                     int panels, int nodes, const EquilibriumOptions& equilibrium);
 
   std::vector<double> flows(double X) const;
+  void flows_into(double X, std::vector<double>& F) const;
   // Highest X at which no flow is negative.
   double X_cap() const { return X_cap_; }
   // T at X on the adiabatic line through (X_in, T_in). Throws SolverError
@@ -57,6 +58,28 @@ class AdiabaticBedModel {
   std::vector<double> nodes_, weights_;  // on [-1, 1]
   int panels_;
   EquilibriumOptions equilibrium_;
+  // Buffers of temperature() and rate(), kept so that the optimizer's
+  // millions of calls do not allocate. A model serves one thread.
+  struct Scratch {
+    std::vector<double> F_in, F, F_rate, r;
+  };
+  mutable Scratch scratch_;
+  // The last equilibrium ends computed (equilibrium_end), by exact inlet.
+  struct End {
+    double X_in, T_in, X_e;
+  };
+  static constexpr std::size_t kEndMemo = 64;
+  mutable std::vector<End> ends_;
+  mutable std::size_t next_end_ = 0;
+  double solve_equilibrium_end(double X_in, double T_in) const;
+  // The last sizes computed (size), by exact arguments.
+  struct Size {
+    double X_in, T_in, X_out, X_e, size;
+  };
+  static constexpr std::size_t kSizeMemo = 64;
+  mutable std::vector<Size> sizes_;
+  mutable std::size_t next_size_ = 0;
+  double integrate_size(double X_in, double T_in, double X_out, double X_e) const;
 };
 
 // Gauss-Legendre nodes and weights on [-1, 1] (n >= 1), by Newton's method
