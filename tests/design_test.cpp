@@ -37,6 +37,7 @@
 #include "rxtrain/report/optimize_text.hpp"
 #include "rxtrain/studies/optimize.hpp"
 #include "rxtrain/studies/write_case.hpp"
+#include "studies/optimize/layout_optimizer.hpp"
 
 using namespace rxtrain;
 
@@ -142,6 +143,85 @@ bool has_active(const DesignResult& d, const std::string& text) {
 }
 
 }  // namespace
+
+// The optimizer's gradients are analytic (the model's partials chained
+// through the beds). Checked here against the closed forms of the A <=> B
+// system above: dV/dX_out = F_A0 / r(X_out, T_out) (PFR design equation);
+// dV/dT_in = F_A0 ∫ d(1/r)/dT dX and dV/dX_in = -F_A0 / r_in - λ F_A0 ∫
+// d(1/r)/dT dX (T = T_in + λ (X - X_in) along a bed, integrals by GSL);
+// dX_e/dT_in from X_e/(1 - X_e) = K(T_in + λ (X_e - X_in)) by implicit
+// differentiation: (dlnK/dT) / (1/(X_e (1 - X_e)) - λ dlnK/dT), with
+// dlnK/dT = dH/(R T²) (van 't Hoff). Then the whole layout's gradient
+// against central differences of the layout itself.
+TEST_CASE("the optimizer's analytic gradients match closed forms and differences", "[design]") {
+  const AbSystem s;
+  const Case c = s.load(kWideWindow);
+  const detail::AdiabaticBedModel model(c.mechanism, c.feed, c.conversion_basis(), 0, 4, 16,
+                                        EquilibriumOptions{});
+  const double X_in = 0.2, T_in = 610.0;
+  const double X_e = model.equilibrium_end(X_in, T_in);
+  const double X_out = X_in + 0.8 * (X_e - X_in);
+  const auto w = model.size_slopes(X_in, T_in, X_out, X_e);
+  const double T_out = s.T_at(X_in, T_in, X_out);
+  CHECK(w.dX_out == Approx(s.F_A0 / s.rate(X_out, T_out)).epsilon(1e-10));
+  const auto [integral, scale] = s.dT_condition(X_in, T_in, X_out);
+  CHECK(w.dT_in == Approx(s.F_A0 * integral).margin(1e-6 * s.F_A0 * scale));
+  CHECK(w.dX_in ==
+        Approx(-s.F_A0 / s.rate(X_in, T_in) - s.lambda() * s.F_A0 * integral).epsilon(1e-6));
+  const double T_e = s.T_at(X_in, T_in, X_e);
+  const double dlnK = s.dH / (R * T_e * T_e);
+  const double dXe_dTin = dlnK / (1 / (X_e * (1 - X_e)) - s.lambda() * dlnK);
+  const auto e = model.equilibrium_end_slopes(X_in, T_in, X_e);
+  CHECK(e.dT_in == Approx(dXe_dTin).epsilon(1e-8));
+  // Along the line dX_e/dX_in = -λ dX_e/dT_in (only T_in - λ X_in matters).
+  CHECK(e.dX_in == Approx(-s.lambda() * dXe_dTin).epsilon(1e-8));
+
+  for (const bool fixed : {false, true}) {
+    // Near the optimum of three beds (where the optimizer works), moved
+    // off it so that no derivative is zero by optimality.
+    DesignOptions o;
+    o.beds = 3;
+    o.compare = false;
+    o.fixed_feed_T = fixed;
+    const DesignResult d = optimize_design(c, o);
+    detail::LayoutProblem p;
+    p.model = &model;
+    p.beds = 3;
+    p.fixed_first = fixed;
+    p.T_feed = s.T_feed;
+    p.X0 = 0;
+    p.target = 0.9;
+    p.T_lo = d.window_low;
+    p.T_hi = d.window_high;
+    std::vector<double> x;
+    for (const auto& b : d.best.bed)
+      if (!(fixed && &b == &d.best.bed.front()))
+        x.push_back((b.T_in - p.T_lo) / (p.T_hi - p.T_lo) + 0.01);
+    for (std::size_t k = 0; k + 1 < d.best.bed.size(); ++k) {
+      const auto& b = d.best.bed[k];
+      x.push_back((b.X_out - b.X_in) / (b.X_ad_eq - b.X_in) - 0.02);
+    }
+    detail::LayoutGradient g;
+    const auto st = detail::evaluate_layout(p, x, &g);
+    REQUIRE(st.evaluable);
+    // A point where the last bed reaches the target short of its
+    // equilibrium: nearer, its size is too steep for the differences.
+    REQUIRE(st.constraints[2 * p.beds] < 0);
+    const int n = p.n_variables(), m = p.n_constraints();
+    for (int i = 0; i < n; ++i) {
+      const double h = 1e-6;
+      auto xp = x, xm = x;
+      xp[i] += h;
+      xm[i] -= h;
+      const auto a = detail::evaluate_layout(p, xp), b = detail::evaluate_layout(p, xm);
+      INFO("fixed " << fixed << ", variable " << i);
+      CHECK(g.total[i] == Approx((a.total - b.total) / (2 * h)).epsilon(1e-5).margin(1e-6));
+      for (int k = 0; k < m; ++k)
+        CHECK(g.constraints[k * n + i] ==
+              Approx((a.constraints[k] - b.constraints[k]) / (2 * h)).epsilon(1e-5).margin(1e-7));
+    }
+  }
+}
 
 TEST_CASE("at the optimum of three beds the Konoki-Aris conditions hold", "[design]") {
   const AbSystem s;

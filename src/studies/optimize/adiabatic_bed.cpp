@@ -99,6 +99,80 @@ double AdiabaticBedModel::rate(double X, double T) const {
   return scratch_.r[j_];
 }
 
+AdiabaticBedModel::RatePartials AdiabaticBedModel::rate_partials(double X, double T) const {
+  flows_into(X, scratch_.F_rate);
+  const int n = mech_.n_species(), nr = mech_.n_reactions();
+  scratch_.r.resize(nr);
+  scratch_.dr_dF.resize(nr, n);
+  scratch_.dr_dT.resize(nr);
+  mech_.rates_and_jacobian(T, feed_.P, scratch_.F_rate.data(), scratch_.r.data(), scratch_.dr_dF,
+                           scratch_.dr_dT, scratch_.mech);
+  const auto& nu = mech_.reactions()[j_].nu;
+  RatePartials p;
+  p.r = scratch_.r[j_];
+  p.dr_dT = scratch_.dr_dT(j_);
+  for (int i = 0; i < n; ++i) p.dr_dX += scratch_.dr_dF(j_, i) * nu[i] * xi_per_X_;
+  return p;
+}
+
+AdiabaticBedModel::LineSlopes AdiabaticBedModel::line_slopes(double X_in, double T_in, double X,
+                                                             double T) const {
+  flows_into(X, scratch_.F);
+  const double C = mech_.heat_capacity_flow(T, scratch_.F.data());
+  flows_into(X_in, scratch_.F_in);
+  LineSlopes s;
+  // d/dX of sum F(X) hs(T) + xi X dH_298 = const: xi dH(T) + C dT/dX = 0.
+  s.dT_dX = -xi_per_X_ * mech_.dH(j_, T) / C;
+  s.dT_dT_in = mech_.heat_capacity_flow(T_in, scratch_.F_in.data()) / C;
+  s.dT_dX_in = xi_per_X_ * mech_.dH(j_, T_in) / C;
+  return s;
+}
+
+AdiabaticBedModel::EndSlopes AdiabaticBedModel::equilibrium_end_slopes(double X_in, double T_in,
+                                                                       double X_e) const {
+  // r(X_e, T(X_e; X_in, T_in)) = 0: dX_e/dθ = -r_T T_θ / (r_X + r_T T_X).
+  const double T_e = temperature(X_in, T_in, X_e);
+  const RatePartials p = rate_partials(X_e, T_e);
+  const LineSlopes l = line_slopes(X_in, T_in, X_e, T_e);
+  const double along = p.dr_dX + p.dr_dT * l.dT_dX;
+  EndSlopes e;
+  if (along == 0 || !std::isfinite(along)) return e;
+  e.dX_in = -p.dr_dT * l.dT_dX_in / along;
+  e.dT_in = -p.dr_dT * l.dT_dT_in / along;
+  return e;
+}
+
+AdiabaticBedModel::SizeSlopes AdiabaticBedModel::size_slopes(double X_in, double T_in, double X_out,
+                                                             double X_e) const {
+  SizeSlopes out;
+  out.size = size(X_in, T_in, X_out, X_e);
+  if (!(X_out > X_in) || !std::isfinite(out.size)) return out;
+  // W = xi ∫ dX / r(X, T(X)): the ends by the integrand, the inlet's
+  // T and X also through the line, -r_T / r² · ∂T/∂θ, on size()'s nodes.
+  const double u_a = -std::log(X_e - X_in);
+  const double u_b = -std::log(X_e - X_out);
+  const double h = (u_b - u_a) / panels_;
+  double by_T_in = 0, by_X_in = 0;
+  for (int p = 0; p < panels_; ++p) {
+    const double mid = u_a + (p + 0.5) * h;
+    for (std::size_t k = 0; k < nodes_.size(); ++k) {
+      const double u = mid + 0.5 * h * nodes_[k];
+      const double gap = std::exp(-u);
+      const double X = X_e - gap;
+      const double T = temperature(X_in, T_in, X);
+      const RatePartials r = rate_partials(X, T);
+      const LineSlopes l = line_slopes(X_in, T_in, X, T);
+      const double w = weights_[k] * 0.5 * h * gap * (-r.dr_dT / (r.r * r.r));
+      by_T_in += w * l.dT_dT_in;
+      by_X_in += w * l.dT_dX_in;
+    }
+  }
+  out.dT_in = xi_per_X_ * by_T_in;
+  out.dX_in = xi_per_X_ * (by_X_in - 1.0 / rate(X_in, T_in));
+  out.dX_out = xi_per_X_ / rate(X_out, temperature(X_in, T_in, X_out));
+  return out;
+}
+
 double AdiabaticBedModel::equilibrium_end(double X_in, double T_in) const {
   // The optimizer's finite differences move one variable at a time, so
   // most calls repeat an inlet seen a few calls before: an exact-match

@@ -10,6 +10,7 @@
 // Bed size: W = F_key,feed / |nu_key| * integral dX / r(X, T(X)).
 #pragma once
 
+#include <Eigen/Dense>
 #include <optional>
 #include <vector>
 
@@ -43,6 +44,33 @@ class AdiabaticBedModel {
   // when the inlet lies beyond equilibrium. Throws SolverError when no
   // equilibrium lies in the module's temperature window.
   double equilibrium_end(double X_in, double T_in) const;
+  // The rate of the key reaction and its partial derivatives at (X, T):
+  // in T at fixed flows, and in X at fixed T (the flows moved by the
+  // reaction's stoichiometry).
+  struct RatePartials {
+    double r = 0, dr_dT = 0, dr_dX = 0;
+  };
+  RatePartials rate_partials(double X, double T) const;
+  // How T at X on the adiabatic line through (X_in, T_in) moves (T the
+  // line's temperature there): along the line (dT/dX), with the inlet
+  // temperature and with the inlet conversion. From the enthalpy kept,
+  // sum F(X) hs(T) = sum F(X_in) hs(T_in) - xi (X - X_in) dH_298.
+  struct LineSlopes {
+    double dT_dX = 0, dT_dT_in = 0, dT_dX_in = 0;
+  };
+  LineSlopes line_slopes(double X_in, double T_in, double X, double T) const;
+  // The derivatives of equilibrium_end in the inlet's X and T (implicit:
+  // the rate vanishes at X_e on the line).
+  struct EndSlopes {
+    double dX_in = 0, dT_in = 0;
+  };
+  EndSlopes equilibrium_end_slopes(double X_in, double T_in, double X_e) const;
+  // size() and its derivatives in X_in, T_in and X_out (the integral of
+  // dX / r does not depend on X_e, which only sets the substitution).
+  struct SizeSlopes {
+    double size = 0, dX_in = 0, dT_in = 0, dX_out = 0;
+  };
+  SizeSlopes size_slopes(double X_in, double T_in, double X_out, double X_e) const;
   // Catalyst mass (kg, per-catalyst rates) or volume (m3) of the bed from
   // X_in to X_out < X_e, by Gauss-Legendre quadrature in u = -ln(X_e - X).
   // Infinity when the rate is not positive at a node.
@@ -62,6 +90,9 @@ class AdiabaticBedModel {
   // millions of calls do not allocate. A model serves one thread.
   struct Scratch {
     std::vector<double> F_in, F, F_rate, r;
+    Eigen::MatrixXd dr_dF;
+    Eigen::VectorXd dr_dT;
+    Mechanism::Scratch mech;
   };
   mutable Scratch scratch_;
   // The last equilibrium ends computed (equilibrium_end), by exact inlet.

@@ -15,10 +15,6 @@ namespace {
 // Objective returned where a layout cannot be evaluated: far above any
 // scaled total (which is about one), so every method backs away from it.
 constexpr double kUnevaluable = 1e6;
-// Central-difference step in the scaled variables: z spans the window
-// (1e-6 of 200 K is 0.2 mK), s the way to equilibrium. With an objective
-// smooth to round-off (~1e-15), the gradient is good to ~1e-9.
-constexpr double kStep = 1e-6;
 // Tolerance NLopt gives the constraints (scaled units).
 constexpr double kConstraintTolerance = 1e-10;
 
@@ -31,7 +27,7 @@ void bounds(const LayoutProblem& p, std::vector<double>& lb, std::vector<double>
   }
 }
 
-// Objective, constraints and their finite-difference gradients at one x,
+// Objective, constraints and their gradients at one x,
 // cached because NLopt asks for the objective and the constraints at the
 // same point one after the other. Keeps the best feasible layout of every
 // evaluation it makes.
@@ -70,8 +66,9 @@ class Evaluator {
 
  private:
   // Scaled objective and constraints at x; records the best layouts.
-  void point(const std::vector<double>& x, double& f, std::vector<double>& c) {
-    const LayoutState s = evaluate_layout(p_, x);
+  void point(const std::vector<double>& x, double& f, std::vector<double>& c,
+             LayoutGradient* gradient = nullptr) {
+    const LayoutState s = evaluate_layout(p_, x, gradient);
     ++evaluations_;
     c = s.constraints;
     f = s.evaluable && std::isfinite(s.total) ? s.total / scale_ : kUnevaluable;
@@ -107,27 +104,20 @@ class Evaluator {
   void compute(const double* x, bool need_grad) {
     const std::vector<double> xv(x, x + n_);
     if (have_ && xv == x_ && (have_grad_ || !need_grad)) return;
-    if (!(have_ && xv == x_)) {
+    if (!need_grad) {
       point(xv, f_, c_);
-      x_ = xv;
-      have_ = true;
-      have_grad_ = false;
+    } else {
+      // The gradients are analytic (evaluate_layout's forward mode): one
+      // evaluation instead of 2n for central differences.
+      LayoutGradient g;
+      point(xv, f_, c_, &g);
+      grad_f_.resize(n_);
+      for (int i = 0; i < n_; ++i) grad_f_[i] = g.total[i] / scale_;
+      grad_c_ = g.constraints;
     }
-    if (!need_grad) return;
-    grad_f_.assign(n_, 0.0);
-    grad_c_.assign(static_cast<std::size_t>(m_) * n_, 0.0);
-    std::vector<double> c_plus, c_minus;
-    for (int i = 0; i < n_; ++i) {
-      std::vector<double> xp = xv, xm = xv;
-      xp[i] += kStep;
-      xm[i] -= kStep;
-      double f_plus = 0, f_minus = 0;
-      point(xp, f_plus, c_plus);
-      point(xm, f_minus, c_minus);
-      grad_f_[i] = (f_plus - f_minus) / (2 * kStep);
-      for (int k = 0; k < m_; ++k) grad_c_[k * n_ + i] = (c_plus[k] - c_minus[k]) / (2 * kStep);
-    }
-    have_grad_ = true;
+    x_ = xv;
+    have_ = true;
+    have_grad_ = need_grad;
   }
 
   const LayoutProblem& p_;
@@ -203,31 +193,100 @@ double LayoutState::violation() const {
   return v;
 }
 
-LayoutState evaluate_layout(const LayoutProblem& p, const std::vector<double>& x) {
+LayoutState evaluate_layout(const LayoutProblem& p, const std::vector<double>& x,
+                            LayoutGradient* gradient) {
   const AdiabaticBedModel& model = *p.model;
+  const int nv = p.n_variables();
   LayoutState st;
   st.constraints.assign(p.n_constraints(), 0.0);
+  // Forward mode: with each quantity its derivatives in x (empty: none asked).
+  using Slope = std::vector<double>;
+  const bool slopes = gradient != nullptr;
+  const auto zero = [&] { return Slope(slopes ? nv : 0, 0.0); };
+  // a + k b, element by element (both sized nv or both empty).
+  const auto axpy = [](Slope& a, double k, const Slope& b) {
+    for (std::size_t i = 0; i < a.size(); ++i) a[i] += k * b[i];
+  };
+  if (slopes) {
+    gradient->total.assign(nv, 0.0);
+    gradient->constraints.assign(static_cast<std::size_t>(p.n_constraints()) * nv, 0.0);
+  }
+  const auto constraint_slope = [&](int row, const Slope& d) {
+    if (slopes) std::copy(d.begin(), d.end(), gradient->constraints.begin() + row * nv);
+  };
   const double width = p.T_hi - p.T_lo;
   int iz = 0, is = p.n_temperatures();
   double X = p.X0;
+  Slope dX = zero(), dTotal = zero();
   try {
     for (int n = 0; n < p.beds; ++n) {
-      const double T = n == 0 && p.fixed_first ? p.T_feed : p.T_lo + x[iz++] * width;
+      const bool fixed = n == 0 && p.fixed_first;
+      Slope dT = zero();
+      if (!fixed && slopes) dT[iz] = width;
+      const double T = fixed ? p.T_feed : p.T_lo + x[iz++] * width;
       const double X_e = model.equilibrium_end(X, T);
+      Slope dX_e = zero();
+      if (slopes) {
+        const auto e = model.equilibrium_end_slopes(X, T, X_e);
+        axpy(dX_e, e.dX_in, dX);
+        axpy(dX_e, e.dT_in, dT);
+      }
       const double span = X_e - X;
+      Slope dspan = dX_e;
+      axpy(dspan, -1.0, dX);
       double X_b = X;
+      Slope dX_b = dX;
       if (n < p.beds - 1) {
-        const double s = x[is++];
-        if (span > 0) X_b = X + s * span;
+        const double s = x[is];
+        if (span > 0) {
+          X_b = X + s * span;
+          axpy(dX_b, s, dspan);
+          if (slopes) dX_b[is] += span;
+        }
+        ++is;
       } else {
         const double cap = X + p.s_max * span;
         st.constraints[2 * p.beds] = p.target - cap;
+        Slope dcap = dX;
+        axpy(dcap, p.s_max, dspan);
+        Slope dc = zero();
+        axpy(dc, -1.0, dcap);
+        constraint_slope(2 * p.beds, dc);
         X_b = std::max(X, std::min(p.target, cap));
+        if (X_b == p.target && p.target > X)
+          dX_b = zero();
+        else if (X_b == cap && cap > X)
+          dX_b = dcap;
       }
-      const double W = span > 0 ? model.size(X, T, X_b, X_e) : 0.0;
+      double W = 0;
+      Slope dW = zero();
+      if (span > 0) {
+        if (slopes) {
+          const auto w = model.size_slopes(X, T, X_b, X_e);
+          W = w.size;
+          axpy(dW, w.dX_in, dX);
+          axpy(dW, w.dT_in, dT);
+          axpy(dW, w.dX_out, dX_b);
+        } else {
+          W = model.size(X, T, X_b, X_e);
+        }
+      }
       const double T_out = model.temperature(X, T, X_b);
+      Slope dT_out = zero();
+      if (slopes) {
+        const auto l = model.line_slopes(X, T, X_b, T_out);
+        axpy(dT_out, l.dT_dX_in, dX);
+        axpy(dT_out, l.dT_dT_in, dT);
+        axpy(dT_out, l.dT_dX, dX_b);
+      }
       st.constraints[2 * n] = (p.exothermic ? T_out - p.T_hi : p.T_lo - T_out) / width;
+      Slope dc = zero();
+      axpy(dc, (p.exothermic ? 1.0 : -1.0) / width, dT_out);
+      constraint_slope(2 * n, dc);
       st.constraints[2 * n + 1] = X + 1e-9 - X_e;
+      Slope dforward = dX;
+      axpy(dforward, -1.0, dX_e);
+      constraint_slope(2 * n + 1, dforward);
       st.T_in.push_back(T);
       st.T_out.push_back(T_out);
       st.X_in.push_back(X);
@@ -235,11 +294,19 @@ LayoutState evaluate_layout(const LayoutProblem& p, const std::vector<double>& x
       st.X_e.push_back(X_e);
       st.size.push_back(W);
       st.total += W;
+      axpy(dTotal, 1.0, dW);
       X = X_b;
+      dX = dX_b;
     }
   } catch (const SolverError&) {
     st.evaluable = false;
     std::fill(st.constraints.begin(), st.constraints.end(), 1.0);
+  }
+  if (slopes) {
+    if (st.evaluable && std::isfinite(st.total))
+      gradient->total = dTotal;
+    else
+      std::fill(gradient->constraints.begin(), gradient->constraints.end(), 0.0);
   }
   return st;
 }

@@ -45,7 +45,17 @@ struct LayoutState {
   double violation() const;         // largest constraint value (0 when none > 0)
 };
 
-LayoutState evaluate_layout(const LayoutProblem& p, const std::vector<double>& x);
+// The derivatives of a layout's total and constraints in x, by the chain
+// rule through the beds (forward mode on the model's analytic partials).
+struct LayoutGradient {
+  std::vector<double> total;        // n_variables
+  std::vector<double> constraints;  // n_constraints x n_variables, row-major
+};
+
+// The layout at x; with `gradient`, also its derivatives (zero where the
+// layout cannot be evaluated).
+LayoutState evaluate_layout(const LayoutProblem& p, const std::vector<double>& x,
+                            LayoutGradient* gradient = nullptr);
 
 // A start in physical terms: inlet temperatures and outlet conversions of
 // every bed (X_out of the last is replaced by the target).
