@@ -183,7 +183,7 @@ std::string optimize_report_html(const Case& c, const DesignResult& d,
   h += fmt::format(
       "<p>Least total {} for an overall conversion of {} X = {} with every bed temperature "
       "{}; feed at {} °C{}. Key reaction {}. Method: SLSQP with "
-      "finite-difference gradients from {} starts, polished until the inlet temperatures "
+      "analytic gradients from {} starts, polished until the inlet temperatures "
       "settle.</p>\n",
       d.catalyst_objective ? "catalyst" : "bed volume", xml_escape(d.key), fixed_text(d.target, 4),
       xml_escape(window_text(d)), celsius_text(d.feed_T),

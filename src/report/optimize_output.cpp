@@ -207,7 +207,7 @@ std::string header_lines(const DesignResult& d) {
       fixed_text(d.target, 4), window_text(d), celsius_text(d.feed_T),
       d.fixed_feed_T ? " (bed 1 kept at the feed temperature)" : "");
   out += fmt::format(
-      "key reaction: {}; method: SLSQP (finite-difference gradients) from {} "
+      "key reaction: {}; method: SLSQP (analytic gradients) from {} "
       "starts, polished until the inlet temperatures settle\n\n",
       d.exothermic ? "exothermic" : "endothermic", d.best.starts);
   return out;
