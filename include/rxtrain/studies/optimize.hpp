@@ -16,8 +16,9 @@
 // per kg of catalyst, or per m3 for per-volume rates). The integral is
 // taken by Gauss-Legendre quadrature in u = -ln(X_e - X), X_e the bed's
 // adiabatic equilibrium conversion, where the integrand is smooth up to
-// equilibrium; a fixed rule makes W a smooth function of the decisions, as
-// finite-difference gradients need.
+// equilibrium; a fixed rule makes W a smooth function of the decisions,
+// whose derivatives the same rule gives (analytic gradients, see
+// docs/optimize.md).
 //
 // Decisions. The inlet temperature of every bed (bed 1's unless
 // fixed_feed_T) and, for beds 1..N-1, the fraction s of the way from the
@@ -26,7 +27,7 @@
 // the window (its outlet, since T is monotone along an adiabatic bed of one
 // reaction); the last bed able to reach the target.
 //
-// Method (NLopt). SLSQP with central finite-difference gradients from
+// Method (NLopt). SLSQP with analytic gradients from
 // several start layouts (equal and front-loaded conversion splits at the
 // maximum-rate temperature, at the feed temperature and at the window's
 // middle, and the `staging` policy's layout), COBYLA where SLSQP fails from
@@ -99,8 +100,8 @@ struct DesignOptions {
   int quadrature_nodes = 16;
   // Bounds on the fraction s of the way to X_e at which a bed ends: below
   // s_min a bed does nothing, at s_max = 1 - 1e-5 its last stretch costs
-  // ln(1e5) times its near-equilibrium rate, far past any optimum (and a
-  // finite-difference step of 1e-6 stays short of X_e).
+  // ln(1e5) times its near-equilibrium rate, far past any optimum (and the
+  // checks' difference steps of 1e-6 stay short of X_e).
   double s_min = 1e-4;
   double s_max = 1.0 - 1e-5;
   // Polish rounds end when no inlet temperature moves more than this (K).
@@ -109,7 +110,7 @@ struct DesignOptions {
   int max_evaluations = 4000;
   // A layout counts as feasible when no constraint is violated by more
   // than this: temperatures in units of the window's width (1e-9 of 200 K
-  // is 0.2 uK), conversions absolute. Tight, so that no finite-difference
+  // is 0.2 uK), conversions absolute. Tight, so that no line-search
   // probe just past an active limit is kept as the best layout.
   double feasibility_tolerance = 1e-9;
   // Compare with the case as written and with the `staging` policy (each

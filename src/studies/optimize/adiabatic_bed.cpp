@@ -174,9 +174,9 @@ AdiabaticBedModel::SizeSlopes AdiabaticBedModel::size_slopes(double X_in, double
 }
 
 double AdiabaticBedModel::equilibrium_end(double X_in, double T_in) const {
-  // The optimizer's finite differences move one variable at a time, so
-  // most calls repeat an inlet seen a few calls before: an exact-match
-  // memo (the function is pure) saves the equilibrium solve.
+  // The optimizer returns to points it has seen (line searches, polish
+  // rounds, the conditions' differences of one bed): an exact-match memo
+  // (the function is pure) saves the equilibrium solve.
   for (const auto& e : ends_)
     if (e.X_in == X_in && e.T_in == T_in) return e.X_e;
   const double X_e = solve_equilibrium_end(X_in, T_in);
@@ -226,7 +226,7 @@ double AdiabaticBedModel::solve_equilibrium_end(double X_in, double T_in) const 
 }
 
 double AdiabaticBedModel::size(double X_in, double T_in, double X_out, double X_e) const {
-  // As equilibrium_end: the beds a finite difference leaves alone repeat.
+  // As equilibrium_end: beds whose inputs repeat are not integrated again.
   for (const auto& e : sizes_)
     if (e.X_in == X_in && e.T_in == T_in && e.X_out == X_out && e.X_e == X_e) return e.size;
   const double W = integrate_size(X_in, T_in, X_out, X_e);
