@@ -146,6 +146,24 @@ std::string rate_text(const Mechanism& mech, const Reaction& rx) {
     if (o != 1) s += fmt::format("^{:g}", o);
   }
   if (rx.reversible) s += " · (1 − Q/K)";
+  if (const auto& a = rx.rate.adsorption) {
+    // The LHHW denominator, each K_j(T) by its value at its reference T.
+    s += " / (1";
+    for (const auto& t : a->terms) {
+      s += fmt::format(" + {:.4g}", t.K);
+      if (t.dH != 0)
+        s += t.T_ref ? fmt::format("·exp[−{:.4g} kJ/mol / R · (1/T − 1/{:.2f} K)]", t.dH / 1e3,
+                                   *t.T_ref)
+                     : fmt::format("·exp[−{:.4g} kJ/mol / (R T)]", t.dH / 1e3);
+      for (int i = 0; i < mech.n_species(); ++i) {
+        if (t.powers[i] == 0) continue;
+        s += fmt::format("·{}({})", pressure ? "p" : "C", mech.species()[i].id);
+        if (t.powers[i] != 1) s += fmt::format("^{:g}", t.powers[i]);
+      }
+    }
+    s += ")";
+    if (a->exponent != 1) s += fmt::format("^{:g}", a->exponent);
+  }
   s += rx.rate.basis == RateBasis::Catalyst ? "   [mol/(kg·s)" : "   [mol/(m³·s)";
   s += pressure ? ", p in Pa]" : ", C in mol/m³]";
   return s;
