@@ -1018,7 +1018,7 @@ StageSpec Loader::read_stage(const YAML::Node& node, std::size_t index) {
     return x;
   }
 
-  f.check({"type", "id", "volume", "catalyst", "bulk_density", "target", "heat"});
+  f.check({"type", "id", "volume", "catalyst", "bulk_density", "target", "heat", "activity"});
   ReactorSpec r;
   r.id = sid;
   r.type = type == "cstr" ? ReactorType::Cstr : ReactorType::Pfr;
@@ -1058,6 +1058,7 @@ StageSpec Loader::read_stage(const YAML::Node& node, std::size_t index) {
     r.heat = choice(*n, "heat of " + ctx, {"adiabatic", "isothermal"}) == "isothermal"
                  ? HeatMode::Isothermal
                  : HeatMode::Adiabatic;
+  if (const auto* n = f.find("activity")) r.activity = field(*n, CaseFieldKind::Activity, sid);
   return r;
 }
 
