@@ -760,11 +760,17 @@ RateLaw Loader::read_rate(const YAML::Node& node, const std::string& rx_id,
     law.adsorption = read_adsorption(*n, ctx, law.driving);
     // The terms as written, after the rate constant's parameters.
     const auto& terms = (*n)["terms"];
-    law.as_written += fmt::format("; adsorption exponent {:g}", law.adsorption->exponent);
-    for (std::size_t t = 0; t < terms.size(); ++t)
+    law.as_written += fmt::format("; adsorption, exponent {:g}:", law.adsorption->exponent);
+    for (std::size_t t = 0; t < terms.size(); ++t) {
+      std::string term;
       for (const char* key : {"K", "dH", "T_ref"})
         if (const auto v = terms[t][key]; v && v.IsScalar())
-          law.as_written += fmt::format(", {} {}: {}", key, t + 1, v.Scalar());
+          term += fmt::format("{}{}: {}", term.empty() ? "" : ", ", key, v.Scalar());
+      const auto& powers = law.adsorption->terms[t].powers;
+      for (std::size_t i = 0; i < powers.size(); ++i)
+        if (powers[i] != 0) term += fmt::format(", {}: {:g}", species_[i].id, powers[i]);
+      law.as_written += fmt::format(" [{}]", term);
+    }
   }
   return law;
 }

@@ -3,6 +3,7 @@
 #include <fmt/format.h>
 
 #include <chrono>
+#include <cmath>
 #include <ctime>
 #include <fstream>
 #include <iterator>
@@ -151,10 +152,13 @@ std::string rate_text(const Mechanism& mech, const Reaction& rx) {
     s += " / (1";
     for (const auto& t : a->terms) {
       s += fmt::format(" + {:.4g}", t.K);
-      if (t.dH != 0)
-        s += t.T_ref ? fmt::format("·exp[−{:.4g} kJ/mol / R · (1/T − 1/{:.2f} K)]", t.dH / 1e3,
-                                   *t.T_ref)
-                     : fmt::format("·exp[−{:.4g} kJ/mol / (R T)]", t.dH / 1e3);
+      if (t.dH != 0) {
+        // exp(−dH/R ...) with the sign of −dH folded in (dH < 0 usually).
+        const std::string e =
+            fmt::format("{}{:.4g} kJ/mol", t.dH > 0 ? "−" : "", std::abs(t.dH) / 1e3);
+        s += t.T_ref ? fmt::format("·exp[{} / R · (1/T − 1/{:.2f} K)]", e, *t.T_ref)
+                     : fmt::format("·exp[{} / (R T)]", e);
+      }
       for (int i = 0; i < mech.n_species(); ++i) {
         if (t.powers[i] == 0) continue;
         s += fmt::format("·{}({})", pressure ? "p" : "C", mech.species()[i].id);
