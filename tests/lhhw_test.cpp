@@ -1,14 +1,20 @@
 // Tubular beds with an adsorption-inhibited (Langmuir-Hinshelwood-Hougen-
 // Watson) rate law, r = k c / (1 + K c): against the closed-form design
 // equation of an isothermal bed and against GSL odeiv2 for an adiabatic
-// one. All kinetic and physical data here are invented for the tests.
+// one; validate_case's rules for adsorption terms. All kinetic and
+// physical data here are invented for the tests.
 #include <catch2/catch.hpp>
 #include <cmath>
+#include <functional>
 #include <optional>
 #include <string>
 #include <vector>
 
 #include "gsl_reference.hpp"
+#include "input_error.hpp"
+#include "rxtrain/base/units.hpp"
+#include "rxtrain/case/case.hpp"
+#include "rxtrain/case/case_fields.hpp"
 #include "rxtrain/stages/pfr.hpp"
 
 using namespace rxtrain;
@@ -195,4 +201,29 @@ TEST_CASE("adiabatic tubular bed with r = k c/(1 + K(T) c) agrees with GSL rk8pd
   CHECK(compared > 10);
   CHECK(res.outlet.T == Approx(y[1]).epsilon(1e-7));
   CHECK(res.conversion == Approx(1 - y[0] / FA0).epsilon(1e-7));
+}
+
+// A case built in code (a sweep point, a layout) passes the loader's rules
+// through validate_case: an adsorption term the loader would refuse is
+// refused there too, at the reaction.
+TEST_CASE("validate_case refuses adsorption terms the loader refuses", "[lhhw]") {
+  const UnitParser units;
+  const Case base =
+      load_case(RXTRAIN_SOURCE_DIR "/tools/bench-cases/so2-three-bed-lhhw.yaml", units);
+  validate_case(base);
+  auto with = [&](const std::function<void(Adsorption&)>& change) {
+    Case c = base;
+    std::vector<Reaction> rx = c.mechanism.reactions();
+    change(*rx[0].rate.adsorption);
+    c.mechanism = Mechanism(c.mechanism.phase(), c.mechanism.species(), rx);
+    return rxtrain::test::input_error([&] { validate_case(c); });
+  };
+  CHECK_THAT(with([](Adsorption& a) { a.exponent = -1; }),
+             Catch::Contains("exponent of adsorption of rate of reaction ox must be positive"));
+  CHECK_THAT(with([](Adsorption& a) { a.terms[1].K = 0; }),
+             Catch::Contains("K of term 2 of adsorption of rate of reaction ox must be positive"));
+  CHECK_THAT(with([](Adsorption& a) { a.terms[0].powers[2] = -1; }),
+             Catch::Contains("power of SO3 in term 1"));
+  CHECK_THAT(with([](Adsorption& a) { a.terms[0].powers.assign(4, 0.0); }),
+             Catch::Contains("needs at least one species with a positive power"));
 }
