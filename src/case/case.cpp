@@ -226,6 +226,9 @@ class Loader {
   Reaction read_one_reaction(const YAML::Node& node, std::size_t index);
   RateLaw read_rate(const YAML::Node& node, const std::string& rx_id,
                     const ParsedEquation& eq) const;
+  Adsorption read_adsorption(const YAML::Node& node, const std::string& ctx, Driving driving) const;
+  AdsorptionTerm read_adsorption_term(const YAML::Node& node, const std::string& ctx,
+                                      Driving driving) const;
   double read_dH(const Fields& f, const Reaction& rx) const;
   EquilibriumSource read_equilibrium(const Fields& f, const Reaction& rx) const;
   void read_feed(const YAML::Node& node);
@@ -700,7 +703,7 @@ Reaction Loader::read_one_reaction(const YAML::Node& node, std::size_t index) {
 RateLaw Loader::read_rate(const YAML::Node& node, const std::string& rx_id,
                           const ParsedEquation& eq) const {
   Fields f(*this, node, "rate of reaction " + rx_id);
-  f.check({"per", "A", "Ea", "T_ref", "driving", "orders"});
+  f.check({"per", "A", "Ea", "T_ref", "driving", "orders", "adsorption"});
   const std::string& ctx = f.context();
   RateLaw law;
   law.orders.assign(species_.size(), 0.0);
@@ -753,7 +756,93 @@ RateLaw Loader::read_rate(const YAML::Node& node, const std::string& rx_id,
     if (const auto* n = f.find(key); n && n->IsScalar())
       law.as_written +=
           fmt::format("{}{}: {}", law.as_written.empty() ? "" : ", ", key, n->Scalar());
+  if (const auto* n = f.find("adsorption")) {
+    law.adsorption = read_adsorption(*n, ctx, law.driving);
+    // The terms as written, after the rate constant's parameters.
+    const auto& terms = (*n)["terms"];
+    law.as_written += fmt::format("; adsorption, exponent {:g}:", law.adsorption->exponent);
+    for (std::size_t t = 0; t < terms.size(); ++t) {
+      std::string term;
+      for (const char* key : {"K", "dH", "T_ref"})
+        if (const auto v = terms[t][key]; v && v.IsScalar())
+          term += fmt::format("{}{}: {}", term.empty() ? "" : ", ", key, v.Scalar());
+      const auto& powers = law.adsorption->terms[t].powers;
+      for (std::size_t i = 0; i < powers.size(); ++i)
+        if (powers[i] != 0) term += fmt::format(", {}: {:g}", species_[i].id, powers[i]);
+      law.as_written += fmt::format(" [{}]", term);
+    }
+  }
   return law;
+}
+
+// adsorption: {exponent: n, terms: [{K, dH, T_ref, species: {SP: m}}, ...]}
+// (kinetics.hpp gives the law).
+Adsorption Loader::read_adsorption(const YAML::Node& node, const std::string& ctx,
+                                   Driving driving) const {
+  const std::string where = "adsorption of " + ctx;
+  Fields f(*this, node, where);
+  f.check({"exponent", "terms"});
+  Adsorption a;
+  if (const auto* n = f.find("exponent")) {
+    const std::string label = "exponent of " + where;
+    a.exponent = number(*n, label);
+    check_range(*n, label, kPositive, "1", a.exponent);
+  }
+  const YAML::Node& list = f.need("terms",
+                                  "a list of terms, e.g. terms: [{K: 8.0 1/bar, dH: -30 kJ/mol, "
+                                  "species: {A: 1}}]");
+  if (!list.IsSequence() || list.size() == 0)
+    fail(list, fmt::format("terms of {} needs a list of adsorption terms (- {{K: ..., dH: ..., "
+                           "species: {{...}}}}), got {}",
+                           where, describe(list)));
+  if (list.size() > Adsorption::kMaxTerms)
+    fail(list, fmt::format("too many terms in {}: {} (the limit is {})", where, list.size(),
+                           Adsorption::kMaxTerms));
+  for (std::size_t t = 0; t < list.size(); ++t)
+    a.terms.push_back(read_adsorption_term(
+        list[t], fmt::format("adsorption term {} of {}", t + 1, ctx), driving));
+  return a;
+}
+
+AdsorptionTerm Loader::read_adsorption_term(const YAML::Node& node, const std::string& ctx,
+                                            Driving driving) const {
+  Fields f(*this, node, ctx);
+  f.check({"K", "dH", "T_ref", "species"});
+  AdsorptionTerm t;
+  t.powers.assign(species_.size(), 0.0);
+  // The species first: they fix the unit of K.
+  const YAML::Node& sp = f.need("species",
+                                "the adsorbing species and their powers, e.g. "
+                                "species: {H2: 0.5} for dissociative adsorption");
+  Fields powers(*this, sp, "species of " + ctx);
+  double total = 0;
+  for (const auto& e : powers.entries()) {
+    const int i = species_index(e.key, "species of " + ctx);
+    const std::string label = fmt::format("power of {} in {}", e.name, ctx);
+    const double m = number(e.value, label);
+    check_range(e.value, label, kNonNegative, "1", m);
+    t.powers[i] = m;
+    total += m;
+  }
+  if (!(total > 0))
+    fail(sp, fmt::format("species of {} needs at least one species with a positive power, e.g. "
+                         "{{A: 1}}",
+                         ctx));
+  const bool pressure = driving == Driving::Pressure;
+  const SiUnit unit = SiUnit::per_power(
+      "1", pressure ? "Pa" : "mol/m3", total,
+      fmt::format("an adsorption constant for a {} driving force and species powers summing "
+                  "to {:g}",
+                  pressure ? "partial-pressure" : "concentration", total));
+  const YAML::Node& K = f.need("K", "the adsorption constant, e.g. K: 8.0 1/bar");
+  t.K = quantity(K, "K of " + ctx, unit);
+  check_range(K, "K of " + ctx, kPositive, "", t.K);
+  t.dH = quantity(f.need("dH",
+                         "the adsorption enthalpy, e.g. dH: -30 kJ/mol (0 for a K "
+                         "independent of T)"),
+                  "dH of " + ctx, molar_energy_unit(), chemistry_units());
+  if (const auto* n = f.find("T_ref")) t.T_ref = temperature(*n, "T_ref of " + ctx);
+  return t;
 }
 
 double Loader::read_dH(const Fields& f, const Reaction& rx) const {
@@ -935,7 +1024,7 @@ StageSpec Loader::read_stage(const YAML::Node& node, std::size_t index) {
     return x;
   }
 
-  f.check({"type", "id", "volume", "catalyst", "bulk_density", "target", "heat"});
+  f.check({"type", "id", "volume", "catalyst", "bulk_density", "target", "heat", "activity"});
   ReactorSpec r;
   r.id = sid;
   r.type = type == "cstr" ? ReactorType::Cstr : ReactorType::Pfr;
@@ -975,6 +1064,7 @@ StageSpec Loader::read_stage(const YAML::Node& node, std::size_t index) {
     r.heat = choice(*n, "heat of " + ctx, {"adiabatic", "isothermal"}) == "isothermal"
                  ? HeatMode::Isothermal
                  : HeatMode::Adiabatic;
+  if (const auto* n = f.find("activity")) r.activity = field(*n, CaseFieldKind::Activity, sid);
   return r;
 }
 

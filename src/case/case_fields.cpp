@@ -39,6 +39,8 @@ constexpr std::array kSpecs{
                   S::Offered},
     CaseFieldSpec{K::BulkDensity, O::Stage, "train.{}.bulk_density", "bulk_density of stage {}",
                   "kg/m3", "a density", false, kPositive, S::Offered},
+    CaseFieldSpec{K::Activity, O::Stage, "train.{}.activity", "activity of stage {}", "1",
+                  "a plain number", false, kPositive, S::Offered},
     CaseFieldSpec{K::ExchangerTout, O::Stage, "train.{}.T_out", "T_out of stage {}", "K",
                   "a temperature", false, kPositive, S::Offered},
     CaseFieldSpec{K::ExchangerDuty, O::Stage, "train.{}.duty", "duty of stage {}", "W", "a power",
@@ -95,6 +97,8 @@ bool present(K kind, const Case& c, int k) {
       return reactor(c, k) && reactor(c, k)->target_conversion;
     case K::BulkDensity:
       return reactor(c, k) && reactor(c, k)->bulk_density;
+    case K::Activity:
+      return reactor(c, k) != nullptr;
     case K::ExchangerTout:
       return exchanger(c, k) && exchanger(c, k)->T_out;
     case K::ExchangerDuty:
@@ -288,6 +292,8 @@ double case_field_value(const Case& c, const CaseFieldSpec& spec, int index) {
       return reactor(c, index)->target_conversion.value_or(0);
     case K::BulkDensity:
       return reactor(c, index)->bulk_density.value_or(0);
+    case K::Activity:
+      return reactor(c, index)->activity;
     case K::ExchangerTout:
       return exchanger(c, index)->T_out.value_or(0);
     case K::ExchangerDuty:
@@ -362,6 +368,9 @@ void set_stage_field(Case& c, const CaseField& f, double v) {
       // the loader reads it); with volume given, the volume stays.
       r.bulk_density = v;
       if (r.catalyst_mass) r.volume = *r.catalyst_mass / v;
+      break;
+    case K::Activity:
+      r.activity = v;
       break;
     default:
       break;

@@ -58,6 +58,7 @@ struct Checker {
   void feed_and_key() const;
   void stages() const;
   void limits_and_basis() const;
+  void adsorption(const Reaction& rx) const;
   void energy_and_catalyst() const;
 };
 
@@ -69,11 +70,15 @@ void Checker::shapes() const {
     fail(file(), fmt::format("the feed gives {} flows for {} species", c.feed.F.size(), n));
   if (c.key < 0 || static_cast<std::size_t>(c.key) >= n)
     fail(file(), fmt::format("the key species index {} is not a species of the case", c.key));
-  for (const auto& rx : c.mechanism.reactions())
-    if (rx.nu.size() != n || rx.rate.orders.size() != n)
-      fail(rx.where, fmt::format("reaction {} gives coefficients or orders for other than the {} "
-                                 "species of the case",
+  for (const auto& rx : c.mechanism.reactions()) {
+    bool sized = rx.nu.size() == n && rx.rate.orders.size() == n;
+    if (const auto& a = rx.rate.adsorption)
+      for (const auto& t : a->terms) sized = sized && t.powers.size() == n;
+    if (!sized)
+      fail(rx.where, fmt::format("reaction {} gives coefficients, orders or adsorption powers for "
+                                 "other than the {} species of the case",
                                  rx.id, n));
+  }
   if (c.train.empty())
     fail(file(),
          "train needs a list of at least one stage (- {type: pfr, id: R1, volume: 2.5 m3})");
@@ -115,6 +120,7 @@ void Checker::mechanism() const {
              fmt::format("order of {} in rate of reaction {} must not be negative (the rate "
                          "would be infinite where {} is absent), got {:g}",
                          species[i].id, rx.id, species[i].id, rx.rate.orders[i]));
+    if (rx.rate.adsorption) adsorption(rx);
     if (rx.equilibrium.kind == EquilibriumSource::Kind::Thermo)
       for (std::size_t i = 0; i < species.size(); ++i)
         if (rx.nu[i] != 0 && (!species[i].thermo.has_h_f() || !species[i].thermo.has_s()))
@@ -122,6 +128,36 @@ void Checker::mechanism() const {
                fmt::format("equilibrium of reaction {}: thermo needs h_f and s of every "
                            "species in the reaction; species {} has no {}",
                            rx.id, species[i].id, species[i].thermo.has_h_f() ? "s" : "h_f"));
+  }
+}
+
+// The loader's rules for an adsorption block (docs/case-format.md).
+void Checker::adsorption(const Reaction& rx) const {
+  const Adsorption& a = *rx.rate.adsorption;
+  const auto& species = c.mechanism.species();
+  const std::string ctx = "adsorption of rate of reaction " + rx.id;
+  if (!(a.exponent > 0) || !std::isfinite(a.exponent))
+    fail(rx.where, fmt::format("exponent of {} must be positive, got {:g}", ctx, a.exponent));
+  if (a.terms.empty() || a.terms.size() > Adsorption::kMaxTerms)
+    fail(rx.where,
+         fmt::format("{} needs 1 to {} terms, got {}", ctx, Adsorption::kMaxTerms, a.terms.size()));
+  for (std::size_t t = 0; t < a.terms.size(); ++t) {
+    const AdsorptionTerm& term = a.terms[t];
+    const std::string where = fmt::format("term {} of {}", t + 1, ctx);
+    if (!(term.K > 0) || !std::isfinite(term.K))
+      fail(rx.where, fmt::format("K of {} must be positive, got {:g} (SI)", where, term.K));
+    if (!std::isfinite(term.dH)) fail(rx.where, fmt::format("dH of {} must be finite", where));
+    if (term.T_ref && !(*term.T_ref > 0 && std::isfinite(*term.T_ref)))
+      fail(rx.where, fmt::format("T_ref of {} must be above absolute zero", where));
+    double total = 0;
+    for (std::size_t i = 0; i < species.size(); ++i) {
+      if (!(term.powers[i] >= 0) || !std::isfinite(term.powers[i]))
+        fail(rx.where, fmt::format("power of {} in {} must not be negative, got {:g}",
+                                   species[i].id, where, term.powers[i]));
+      total += term.powers[i];
+    }
+    if (!(total > 0))
+      fail(rx.where, fmt::format("{} needs at least one species with a positive power", where));
   }
 }
 

@@ -76,6 +76,7 @@ void add_reaches(const Case& c, const TrainOptions& options, TrainResult& result
     spec.type = r.kind == StageKind::Cstr ? ReactorType::Cstr : ReactorType::Pfr;
     spec.heat = *r.heat;
     spec.bulk_density = r.bulk_density;
+    spec.activity = r.activity;
     try {
       r.reach = r.kind == StageKind::Cstr
                     ? cstr_reach(mech, spec, r.inlet, basis, ws.cstr(), tank_options(options))

@@ -1,6 +1,7 @@
 #include "rxtrain/kinetics/mechanism.hpp"
 
 #include <algorithm>
+#include <array>
 #include <cmath>
 #include <stdexcept>
 #include <string>
@@ -45,14 +46,41 @@ Mechanism::Mechanism(Phase phase, std::vector<Species> species, std::vector<Reac
     if (static_cast<int>(rx.nu.size()) != n || static_cast<int>(rx.rate.orders.size()) != n)
       throw std::invalid_argument("reaction " + rx.id + ": vectors not sized to species");
     Compiled c;
+    const auto& ads = rx.rate.adsorption;
+    auto adsorbs = [&](int i) {
+      if (!ads) return false;
+      return std::any_of(ads->terms.begin(), ads->terms.end(),
+                         [i](const AdsorptionTerm& t) { return t.powers[i] != 0; });
+    };
+    if (ads)
+      for (const auto& t : ads->terms)
+        if (static_cast<int>(t.powers.size()) != n)
+          throw std::invalid_argument("reaction " + rx.id +
+                                      ": adsorption term not sized to species");
+    if (ads && ads->terms.size() > Adsorption::kMaxTerms)
+      throw std::invalid_argument("reaction " + rx.id + ": too many adsorption terms");
     for (int i = 0; i < n; ++i) {
       const double o = rx.rate.orders[i];
       const double nu = rx.nu[i];
-      if (o != 0 || nu != 0) {
-        c.parts.push_back({i, o, o + nu});
+      const bool a = adsorbs(i);
+      if (o != 0 || nu != 0 || a) {
+        const bool read = o != 0 || (rx.reversible && o + nu != 0) || a;
+        c.parts.push_back({i, o, o + nu, read});
         c.species.push_back(i);
       }
       c.dnu += nu;
+    }
+    if (ads) {
+      c.ads_exp = ads->exponent;
+      for (const auto& t : ads->terms) {
+        CompiledTerm ct;
+        ct.K = t.K;
+        ct.dH = t.dH;
+        ct.inv_T_ref = t.T_ref ? 1.0 / *t.T_ref : 0.0;
+        for (int i = 0; i < n; ++i)
+          if (t.powers[i] != 0) ct.factors.emplace_back(i, t.powers[i]);
+        c.ads.push_back(std::move(ct));
+      }
     }
     c.offset = n_direct_;
     n_direct_ += static_cast<int>(c.parts.size());
@@ -205,6 +233,7 @@ Mechanism::RateLawValue Mechanism::evaluate(int j, double T, const double* d, do
     v.rev = rev;
   }
   v.value = fwd - v.c_rev * v.rev;
+  v.dvalue_dT = -(v.dc_rev_dT * v.rev);
   if (g) {
     // g_i = d(value)/d(d_i): products over the other participants.
     for (const auto& p : parts) {
@@ -218,7 +247,45 @@ Mechanism::RateLawValue Mechanism::evaluate(int j, double T, const double* d, do
       g[p.i] = gf - v.c_rev * gr;
     }
   }
+  if (!compiled_[j].ads.empty()) apply_adsorption(j, T, d, g, v);
   return v;
+}
+
+void Mechanism::apply_adsorption(int j, double T, const double* d, double* g,
+                                 RateLawValue& v) const {
+  const Compiled& c = compiled_[j];
+  // DEN = 1 + sum_t K_t(T) P_t, P_t = prod d_i^m_i; dK_t/dT = K_t dH_t/(R T^2).
+  double den = 1, dden_dT = 0;
+  std::array<double, Adsorption::kMaxTerms> Ks;
+  for (std::size_t k = 0; k < c.ads.size(); ++k) {
+    const CompiledTerm& t = c.ads[k];
+    const double K = t.K * std::exp(-t.dH / kGasConstant * (1.0 / T - t.inv_T_ref));
+    Ks[k] = K;
+    double prod = 1;
+    for (const auto& [i, m] : t.factors) prod *= safe_pow(d[i], m);
+    den += K * prod;
+    dden_dT += K * prod * t.dH / (kGasConstant * T * T);
+  }
+  const double n = c.ads_exp;
+  const double w = 1.0 / safe_pow(den, n);  // DEN^-n
+  const double num = v.value;
+  v.den = den;
+  v.value = num * w;
+  // d(num DEN^-n) = DEN^-n d num - n num DEN^-(n+1) dDEN.
+  const double c_den = n * v.value / den;
+  v.dvalue_dT = v.dvalue_dT * w - c_den * dden_dT;
+  if (!g) return;
+  for (const auto& p : c.parts) g[p.i] *= w;
+  for (std::size_t k = 0; k < c.ads.size(); ++k) {
+    const CompiledTerm& t = c.ads[k];
+    const double K = Ks[k];
+    for (const auto& [i, m] : t.factors) {
+      double dprod = safe_pow_derivative(d[i], m);
+      for (const auto& [q, mq] : t.factors)
+        if (q != i) dprod *= safe_pow(d[q], mq);
+      g[i] -= c_den * K * dprod;
+    }
+  }
 }
 
 void Mechanism::rates(double T, double P, const double* F, double* r) const {
@@ -262,7 +329,7 @@ double Mechanism::reaction_derivatives(int j, double T, const Scale& sc, const d
   for (std::size_t q = 0; q < parts.size(); ++q)
     direct[q] = F[parts[q].i] > 0 ? k * g[parts[q].i] * sc.phi : 0.0;
   dilution = k * sum_gF * (phase_ == Phase::Gas ? sc.dphi_dFt : sc.dphi_dv);
-  dr_dT = v.dk_dT * v.value + k * (sum_gF * sc.dphi_dT - v.dc_rev_dT * v.rev);
+  dr_dT = v.dk_dT * v.value + k * (sum_gF * sc.dphi_dT + v.dvalue_dT);
   return v.rate();
 }
 

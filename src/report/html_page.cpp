@@ -3,6 +3,7 @@
 #include <fmt/format.h>
 
 #include <chrono>
+#include <cmath>
 #include <ctime>
 #include <fstream>
 #include <iterator>
@@ -146,6 +147,27 @@ std::string rate_text(const Mechanism& mech, const Reaction& rx) {
     if (o != 1) s += fmt::format("^{:g}", o);
   }
   if (rx.reversible) s += " · (1 − Q/K)";
+  if (const auto& a = rx.rate.adsorption) {
+    // The LHHW denominator, each K_j(T) by its value at its reference T.
+    s += " / (1";
+    for (const auto& t : a->terms) {
+      s += fmt::format(" + {:.4g}", t.K);
+      if (t.dH != 0) {
+        // exp(−dH/R ...) with the sign of −dH folded in (dH < 0 usually).
+        const std::string e =
+            fmt::format("{}{:.4g} kJ/mol", t.dH > 0 ? "−" : "", std::abs(t.dH) / 1e3);
+        s += t.T_ref ? fmt::format("·exp[{} / R · (1/T − 1/{:.2f} K)]", e, *t.T_ref)
+                     : fmt::format("·exp[{} / (R T)]", e);
+      }
+      for (int i = 0; i < mech.n_species(); ++i) {
+        if (t.powers[i] == 0) continue;
+        s += fmt::format("·{}({})", pressure ? "p" : "C", mech.species()[i].id);
+        if (t.powers[i] != 1) s += fmt::format("^{:g}", t.powers[i]);
+      }
+    }
+    s += ")";
+    if (a->exponent != 1) s += fmt::format("^{:g}", a->exponent);
+  }
   s += rx.rate.basis == RateBasis::Catalyst ? "   [mol/(kg·s)" : "   [mol/(m³·s)";
   s += pressure ? ", p in Pa]" : ", C in mol/m³]";
   return s;

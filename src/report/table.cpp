@@ -1,6 +1,7 @@
 #include "rxtrain/report/table.hpp"
 
 #include <fmt/format.h>
+#include <fmt/ranges.h>
 
 #include <algorithm>
 #include <cmath>
@@ -88,6 +89,14 @@ std::string format_stage_table(const TrainResult& result) {
   }
   out += render_columns(rows, 3);
   if (any_sized) out += "* volume found from the stage's target conversion\n";
+  // Only where a stage gives one: every rate in it is multiplied by it.
+  std::vector<std::string> activities;
+  for (const auto& r : result.stages)
+    if (r.kind != StageKind::Exchanger && r.activity != 1)
+      activities.push_back(fmt::format("{} {:.3g}", r.id, r.activity));
+  if (!activities.empty())
+    out += fmt::format("catalyst activity (multiplies every rate in the stage): {}\n",
+                       fmt::join(activities, ", "));
   bool any_eq = false;
   for (const auto& r : result.stages) any_eq = any_eq || r.equilibrium.has_value();
   if (any_eq) {

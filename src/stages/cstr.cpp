@@ -713,6 +713,7 @@ struct Tank {
     res.sized = sizing;
     res.inlet = inlet;
     res.bulk_density = spec.bulk_density;
+    res.activity = spec.activity;
     res.volume = V;
     if (spec.bulk_density) res.catalyst_mass = V * *spec.bulk_density;
     res.outlet = Stream{out.T, inlet.P, out.F};

@@ -10,12 +10,14 @@ namespace rxtrain {
 
 namespace {
 
-// Volumetric multiplier of each rate: per-catalyst rates times the bulk
-// density (a stage with per-catalyst rates always has one once it ran).
+// Volumetric multiplier of each rate, as rate_multipliers gives it to the
+// stage: the activity, times the bulk density for per-catalyst rates (a
+// stage with per-catalyst rates always has one once it ran).
 std::vector<double> volume_multipliers(const Mechanism& mech, const StageResult& s) {
-  std::vector<double> beta(mech.n_reactions(), 1.0);
+  std::vector<double> beta(mech.n_reactions(), s.activity);
   for (int j = 0; j < mech.n_reactions(); ++j)
-    if (mech.reactions()[j].rate.basis == RateBasis::Catalyst) beta[j] = s.bulk_density.value_or(0);
+    if (mech.reactions()[j].rate.basis == RateBasis::Catalyst)
+      beta[j] = s.activity * s.bulk_density.value_or(0);
   return beta;
 }
 

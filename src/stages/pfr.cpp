@@ -458,6 +458,7 @@ StageResult pfr_result(const Mechanism& mech, const ReactorSpec& spec, const Str
   res.heat = spec.heat;
   res.inlet = inlet;
   res.bulk_density = spec.bulk_density;
+  res.activity = spec.activity;
   res.volume = V;
   res.sized = sized;
   if (spec.bulk_density) res.catalyst_mass = V * *spec.bulk_density;

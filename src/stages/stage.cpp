@@ -188,9 +188,9 @@ std::vector<double> rate_multipliers(const Mechanism& mech, const ReactorSpec& s
                          fmt::format("stage {}: reaction {} has a per-catalyst rate; give the "
                                      "stage a bulk_density (e.g. bulk_density: 750 kg/m3)",
                                      spec.id, rx.id));
-      m.push_back(*spec.bulk_density);
+      m.push_back(spec.activity * *spec.bulk_density);
     } else {
-      m.push_back(1.0);
+      m.push_back(spec.activity);
     }
   }
   return m;

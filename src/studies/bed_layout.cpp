@@ -67,6 +67,15 @@ LayoutCase check_layout_case(const Case& c, LayoutStudy study) {
                      "optimize needs the catalyst's temperature window: add \"limits: {T_max: "
                      "..., T_in_min: ...}\" at the top level of the case (the bounds of every "
                      "bed inlet and of every temperature in a bed)");
+  // The studies design new beds, which take no activity yet: refused, so
+  // that no layout is silently designed for the fresh catalyst.
+  const char* name = study == LayoutStudy::Staging ? "staging" : "optimize";
+  for (const auto& s : c.train)
+    if (const auto* r = std::get_if<ReactorSpec>(&s); r && r->activity != 1)
+      throw InputError(r->where, fmt::format("stage {} gives activity {:g}; {} designs new beds "
+                                             "with the catalyst's own rates and does not yet "
+                                             "take an activity (remove it to run {})",
+                                             r->id, r->activity, name, name));
   LayoutCase lc;
   lc.reaction = key_reaction(mech, c.key);
   lc.key = mech.species()[c.key].id;

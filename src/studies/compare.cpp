@@ -53,7 +53,7 @@ ReactorSpec with_heat(ReactorSpec r, LayoutHeat heat) {
 bool same_spec(const ReactorSpec& a, const ReactorSpec& b) {
   return a.type == b.type && a.heat == b.heat && a.volume == b.volume &&
          a.catalyst_mass == b.catalyst_mass && a.bulk_density == b.bulk_density &&
-         a.target_conversion == b.target_conversion;
+         a.target_conversion == b.target_conversion && a.activity == b.activity;
 }
 
 // The case with its reactors in `order` (indices into `reactors`) placed

@@ -29,6 +29,9 @@ struct ReactorSpec {
   std::optional<double> catalyst_mass;      // kg
   std::optional<double> bulk_density;       // kg/m3
   std::optional<double> target_conversion;  // overall key conversion to reach
+  // Catalyst activity: multiplies every rate in the stage (1: the rates as
+  // the kinetics give them; e.g. 0.7 to design for end of run).
+  double activity = 1;
   SourceLocation where;
 };
 

@@ -8,7 +8,7 @@
 // Paths, with ID the owner's id (docs/sweeps.md lists those offered to
 // sweeps):
 //   feed.T  feed.P  feed.flow  feed.flows.ID  feed.composition.ID
-//   train.ID.volume | catalyst | target.conversion | bulk_density | T_out | duty
+//   train.ID.volume | catalyst | target.conversion | bulk_density | activity | T_out | duty
 //   reactions.ID.rate.A | rate.Ea | rate.T_ref
 //   reactions.ID.equilibrium.K | equilibrium.T | equilibrium.dH  (van 't Hoff form)
 //   species.ID.mw | species.ID.density
@@ -56,6 +56,7 @@ enum class CaseFieldKind {
   Volume,        // a reactor given by volume (not by catalyst)
   StageTarget,
   BulkDensity,  // with catalyst given, the mass stays and the volume follows
+  Activity,     // a reactor's catalyst activity; every reactor has one (default 1)
   ExchangerTout,
   ExchangerDuty,
   RateA,

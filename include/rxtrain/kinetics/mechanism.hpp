@@ -4,6 +4,7 @@
 #pragma once
 
 #include <Eigen/Dense>
+#include <utility>
 #include <vector>
 
 #include "rxtrain/chem/reaction_thermo.hpp"
@@ -55,16 +56,20 @@ class Mechanism {
   // Reaction j's rate law, written once: at the driving quantities d_i
   // (partial pressures or concentrations, indexed by species; only the
   // reaction's participants are read),
-  //   r_j = k(T) * value,  value = prod d_i^o_i - c_rev(T) prod d_i^(o_i + nu_i)
+  //   r_j = k(T) * value,  value = num / DEN^n,
+  //   num = prod d_i^o_i - c_rev(T) prod d_i^(o_i + nu_i)
   // (c_rev = 0 for an irreversible reaction; for a reversible one
-  // c_rev = s^sum(nu) / K(T), s the activity scale). With g, also
-  // g_i = d value / d d_i for the participants. rates() and both Jacobians
-  // call it; a new rate law (adsorption terms, activity) changes it alone.
+  // c_rev = s^sum(nu) / K(T), s the activity scale; DEN = 1 without
+  // adsorption terms, see kinetics.hpp). With g, also g_i = d value / d d_i
+  // for the participants. rates() and both Jacobians call it; a new rate
+  // law changes it alone.
   struct RateLawValue {
     double k = 0, dk_dT = 0;          // rate constant and dk/dT
     double value = 0;                 // the driving-force part: r = k * value
+    double dvalue_dT = 0;             // d value / dT at fixed d (K(T), K_j(T))
     double rev = 0;                   // prod d_i^(o_i + nu_i) (reversible)
     double c_rev = 0, dc_rev_dT = 0;  // reverse coefficient and its dT
+    double den = 1;                   // DEN (1 without adsorption terms)
     double rate() const { return k * value; }
   };
   RateLawValue evaluate(int j, double T, const double* d, double* g = nullptr) const;
@@ -100,6 +105,11 @@ class Mechanism {
   // with the same values rates_and_jacobian gives.
   void rates_and_sparse_jacobian(double T, double P, const double* F, double* r, double* direct,
                                  double* dilution, double* dr_dT, Scratch& scratch) const;
+  // Whether r_j's law reads rate_species(j)[p] itself: a forward order, a
+  // reverse exponent (reversible) or an adsorption term. The other rate
+  // species (products of an irreversible reaction) have dr_j/dF = 0
+  // exactly, apart from the dilution term.
+  bool reads(int j, int p) const { return compiled_[j].parts[p].read; }
   // d(total flow or mixture volume)/dF_k as the rates see it: 1 (gas) or
   // MW_k / rho_k (liquid) where F_k > 0; 0 where F_k <= 0 (flows are
   // clipped at zero in the rate laws).
@@ -110,15 +120,26 @@ class Mechanism {
     int i;
     double forward_exp;  // o_i
     double reverse_exp;  // o_i + nu_i
+    bool read;           // see reads()
+  };
+  // One adsorption term, K_j(T) prod d_i^m_ij, over its species.
+  struct CompiledTerm {
+    double K = 0, dH = 0;
+    double inv_T_ref = 0;                         // 1/T_ref, or 0 for K exp(-dH/(R T))
+    std::vector<std::pair<int, double>> factors;  // (species, m_ij > 0)
   };
   struct Compiled {
     std::vector<Participant> parts;
-    std::vector<int> species;  // parts[p].i, for rate_species()
-    int offset = 0;            // see direct_offset()
-    double dnu = 0;            // sum of nu (for the activity scale)
-    ReactionThermo thermo;     // dH, dCp, ln K from the species' cp models
-    double ln_s = 0;           // activity scale ln s where it is constant (see activity_scale)
+    std::vector<int> species;       // parts[p].i, for rate_species()
+    int offset = 0;                 // see direct_offset()
+    double dnu = 0;                 // sum of nu (for the activity scale)
+    ReactionThermo thermo;          // dH, dCp, ln K from the species' cp models
+    double ln_s = 0;                // activity scale ln s where it is constant (see activity_scale)
+    std::vector<CompiledTerm> ads;  // empty: no adsorption denominator
+    double ads_exp = 1;             // n of DEN^n
   };
+  // Divides v's value (and g, when given) by DEN^n of reaction j.
+  void apply_adsorption(int j, double T, const double* d, double* g, RateLawValue& v) const;
   // Driving forces d_i = max(F_i, 0) * phi; returns phi and its derivatives.
   struct Scale {
     double phi = 0;  // d_i = max(F_i, 0) * phi

@@ -118,8 +118,7 @@ class PfrSystem {
     const Mechanism& mech = *mech_;
     const int N = n_ + 2;
     const int T_row = heat_ == HeatMode::Adiabatic ? n_ : n_ + 1;  // the dense energy row
-    // The rate species r_j depends on directly: a forward order, or a
-    // reverse exponent (order + nu) of a reversible reaction. The others
+    // The rate species r_j depends on directly (Mechanism::reads). The others
     // (products of an irreversible reaction) have dr_j/dF_k = 0 exactly;
     // in the pattern they would only add LU fill-in, which grows faster
     // than the network (synthetic 200-species stage: nnz(L+U) 11048 ->
@@ -127,13 +126,9 @@ class PfrSystem {
     dep_start_.assign(1, 0);
     dep_p_.clear();
     for (int j = 0; j < nr_; ++j) {
-      const Reaction& rx = mech.reactions()[j];
       const auto& ks = mech.rate_species(j);
-      for (std::size_t p = 0; p < ks.size(); ++p) {
-        const double o = rx.rate.orders[ks[p]];
-        if (o != 0 || (rx.reversible && o + rx.nu[ks[p]] != 0))
-          dep_p_.push_back(static_cast<int>(p));
-      }
+      for (std::size_t p = 0; p < ks.size(); ++p)
+        if (mech.reads(j, static_cast<int>(p))) dep_p_.push_back(static_cast<int>(p));
       dep_start_.push_back(static_cast<int>(dep_p_.size()));
     }
     pos_.assign(static_cast<std::size_t>(N) * N, -1);

@@ -118,6 +118,7 @@ struct StageResult {
   Stream outlet;
   std::optional<double> volume;          // m3
   std::optional<double> bulk_density;    // kg/m3
+  double activity = 1;                   // catalyst activity (ReactorSpec::activity)
   std::optional<double> catalyst_mass;   // kg
   std::optional<double> space_time;      // s, V / v0 at inlet conditions
   std::optional<double> space_velocity;  // 1/s, 1 / space_time
@@ -154,8 +155,8 @@ struct StageResult {
 // fill them on the whole stream; the train applies the case's basis.
 void add_space_velocities(const Mechanism& mech, StageResult& r, std::span<const int> basis = {});
 
-// Volumetric rate multiplier of each reaction in a stage: 1 for per-volume
-// rates, the bulk density for per-catalyst rates. Throws InputError when a
+// Volumetric rate multiplier of each reaction in a stage: the stage's
+// catalyst activity, times the bulk density for per-catalyst rates. Throws InputError when a
 // per-catalyst rate meets a stage without a bulk density.
 std::vector<double> rate_multipliers(const Mechanism& mech, const ReactorSpec& spec);
 
