@@ -61,7 +61,7 @@ json units_json() {
     u[k] = "K (a difference)";
   for (const char* k : {"volume", "V", "V_at_X_max"}) u[k] = "m3";
   for (const char* k : {"conversion", "X", "X_eq", "X_eq_out", "X_in", "X_out", "X_ad_eq", "X_max",
-                        "X_end", "approach_X", "mole_fractions"})
+                        "X_end", "approach_X", "mole_fractions", "activity"})
     u[k] = "1";
   return u;
 }
@@ -91,6 +91,9 @@ json stage(const std::vector<std::string>& ids, const std::vector<double>& molar
   s["volume"] = json_number(r.volume);
   s["catalyst_mass"] = json_number(r.catalyst_mass);
   s["bulk_density"] = json_number(r.bulk_density);
+  // Reactors only: the factor on every rate in the stage (1: as the case's
+  // rate laws give them).
+  s["activity"] = r.kind == StageKind::Exchanger ? json(nullptr) : json_number(r.activity);
   s["space_time"] = json_number(r.space_time);
   s["space_velocity"] = json_number(r.space_velocity);
   s["ghsv"] = json_number(r.ghsv);
