@@ -1,10 +1,11 @@
 // Catalyst activity (`activity:` on a reactor stage) multiplies every rate
 // in the stage: checked against the closed-form first-order tubular and
 // stirred-tank design equations with the rate constant a k, through the
-// case file, the table of case fields (sweeps) and the studies that refuse
-// it. All kinetic and physical data here are invented for the tests.
+// case file, the table of case fields (sweeps) and the studies that design
+// beds for it. All kinetic and physical data here are invented for the tests.
 #include <catch2/catch.hpp>
 #include <cmath>
+#include <filesystem>
 #include <string>
 #include <vector>
 
@@ -15,6 +16,7 @@
 #include "rxtrain/flowsheet/train.hpp"
 #include "rxtrain/stages/cstr.hpp"
 #include "rxtrain/stages/pfr.hpp"
+#include "rxtrain/studies/optimize.hpp"
 #include "rxtrain/studies/staging.hpp"
 #include "rxtrain/sweep/case_path.hpp"
 
@@ -139,11 +141,52 @@ TEST_CASE("activity is read from the case and offered to sweeps for every reacto
   CHECK(high.stages[0].conversion > low.stages[0].conversion);
 }
 
-TEST_CASE("staging refuses a case with an activity instead of ignoring it", "[activity]") {
+TEST_CASE("staging and optimize refuse reactors of different activities", "[activity]") {
   const UnitParser units;
   const Case c = load_case_from_string(kCase, "a.yaml", units);
-  // Line 16 of kCase (which opens with a newline) holds R1's entry.
+  // R1 (line 16 of kCase, which opens with a newline) gives 0.7, R2 the
+  // default 1: no single activity to design new beds for.
   const std::string e = rxtrain::test::input_error([&] { run_staging(c); });
-  CHECK_THAT(e, Catch::StartsWith("a.yaml:16:"));
-  CHECK_THAT(e, Catch::Contains("stage R1 gives activity 0.7; staging designs new beds"));
+  CHECK_THAT(e, Catch::StartsWith("a.yaml:"));
+  CHECK_THAT(e, Catch::Contains("stage R2 gives activity 1 but stage R1 gives 0.7; staging "
+                                "designs every new bed for one activity"));
+}
+
+// With every rate times a, an adiabatic bed follows the same path in
+// (X, T) (the energy balance does not see the rate) at 1/a times the
+// catalyst: dW = F dX / (a r). So the staging policy (bed ends by approach
+// to equilibrium, returns to the maximum-rate temperature, neither moved
+// by a) and the optimum (its objective scaled by 1/a) give the same beds,
+// each 1/a times as large. Case: the optimize demo (invented data).
+TEST_CASE("staged and optimized beds are designed for the reactors' activity", "[activity]") {
+  const UnitParser units;
+  const Case fresh = load_case(
+      (std::filesystem::path(RXTRAIN_SOURCE_DIR) / "cases" / "three-bed-optimize.yaml").string(),
+      units);
+  Case aged = fresh;
+  const double a = 0.6;
+  for (auto& sp : aged.train)
+    if (auto* r = std::get_if<ReactorSpec>(&sp)) r->activity = a;
+
+  const StagingResult s1 = run_staging(fresh), sa = run_staging(aged);
+  REQUIRE(s1.beds.size() == sa.beds.size());
+  for (std::size_t k = 0; k < s1.beds.size(); ++k) {
+    INFO("bed " << k + 1);
+    CHECK(sa.beds[k].T_in == Approx(s1.beds[k].T_in).margin(1e-6));
+    CHECK(sa.beds[k].T_out == Approx(s1.beds[k].T_out).margin(1e-6));
+    CHECK(*sa.beds[k].catalyst_mass == Approx(*s1.beds[k].catalyst_mass / a).epsilon(1e-6));
+  }
+
+  DesignOptions o;
+  o.beds = 3;
+  o.compare = false;
+  const DesignResult d1 = optimize_design(fresh, o), da = optimize_design(aged, o);
+  CHECK(da.activity == a);
+  CHECK(*da.best.total_catalyst == Approx(*d1.best.total_catalyst / a).epsilon(1e-6));
+  for (std::size_t k = 0; k < d1.best.bed.size(); ++k)
+    CHECK(da.best.bed[k].T_in == Approx(d1.best.bed[k].T_in).margin(1e-3));  // T_settle
+  // The optimum's beds carry the activity into the train that checks them.
+  CHECK(da.best.checked_conversion == Approx(da.target).margin(1e-6));
+  for (const auto& st : da.train.stages)
+    if (st.kind != StageKind::Exchanger) CHECK(st.activity == a);
 }

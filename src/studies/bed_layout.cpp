@@ -67,16 +67,26 @@ LayoutCase check_layout_case(const Case& c, LayoutStudy study) {
                      "optimize needs the catalyst's temperature window: add \"limits: {T_max: "
                      "..., T_in_min: ...}\" at the top level of the case (the bounds of every "
                      "bed inlet and of every temperature in a bed)");
-  // The studies design new beds, which take no activity yet: refused, so
-  // that no layout is silently designed for the fresh catalyst.
+  // The studies design new beds for one catalyst activity (end of run,
+  // say): the one every reactor gives. Reactors that differ leave no
+  // single answer, so they are refused rather than one picked silently.
   const char* name = study == LayoutStudy::Staging ? "staging" : "optimize";
-  for (const auto& s : c.train)
-    if (const auto* r = std::get_if<ReactorSpec>(&s); r && r->activity != 1)
-      throw InputError(r->where, fmt::format("stage {} gives activity {:g}; {} designs new beds "
-                                             "with the catalyst's own rates and does not yet "
-                                             "take an activity (remove it to run {})",
-                                             r->id, r->activity, name, name));
   LayoutCase lc;
+  const ReactorSpec* set_by = nullptr;
+  for (const auto& s : c.train) {
+    const auto* r = std::get_if<ReactorSpec>(&s);
+    if (!r) continue;
+    if (!set_by) {
+      set_by = r;
+      lc.activity = r->activity;
+    } else if (r->activity != lc.activity) {
+      throw InputError(r->where,
+                       fmt::format("stage {} gives activity {:g} but stage {} gives {:g}; {} "
+                                   "designs every new bed for one activity: give each reactor "
+                                   "the same",
+                                   r->id, r->activity, set_by->id, lc.activity, name));
+    }
+  }
   lc.reaction = key_reaction(mech, c.key);
   lc.key = mech.species()[c.key].id;
   require_reversible_key(c, study, lc.reaction, lc.key);
@@ -104,12 +114,13 @@ LayoutCase check_layout_case(const Case& c, LayoutStudy study) {
 }
 
 ReactorSpec bed_stage(const std::string& id, const std::optional<double>& bulk_density,
-                      const SourceLocation& where) {
+                      double activity, const SourceLocation& where) {
   ReactorSpec r;
   r.id = id;
   r.type = ReactorType::Pfr;
   r.heat = HeatMode::Adiabatic;
   r.bulk_density = bulk_density;
+  r.activity = activity;
   r.where = where;
   return r;
 }
@@ -132,7 +143,7 @@ std::vector<StageSpec> layout_stages(const BedLayout& layout, const SourceLocati
       train.push_back(interstage_stage(x.id, x.T_out, where));
     }
     const Bed& b = layout.beds[n];
-    ReactorSpec r = bed_stage(b.id, layout.bulk_density, where);
+    ReactorSpec r = bed_stage(b.id, layout.bulk_density, layout.activity, where);
     // As the loader holds a bed given by its catalyst: both the mass and
     // the volume it fills.
     if (layout.by_mass) r.catalyst_mass = b.catalyst_mass;

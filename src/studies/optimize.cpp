@@ -430,6 +430,7 @@ std::vector<StageSpec> design_train(const Case& c, const DesignResult& d,
   l.beds.assign(layout.bed.begin(), layout.bed.end());  // the Bed of each
   l.interstages = layout.coolers;
   l.bulk_density = d.bulk_density;
+  l.activity = d.activity;
   l.by_mass = d.catalyst_objective;
   return layout_stages(l, {c.file, 0, 0});
 }
@@ -556,6 +557,7 @@ DesignResult optimize_design(const Case& c, const DesignOptions& options) {
   for (const auto& rx : mech.reactions()) s.ids.taken.insert(rx.id);
 
   DesignResult res = result_for(s, options);
+  res.activity = lc.activity;
   if (!(s.target > s.basis.conversion(c.feed)))
     throw InputError(c.target_where, "the target conversion is not above the feed's");
   const StagedStarts staged =
@@ -563,7 +565,7 @@ DesignResult optimize_design(const Case& c, const DesignOptions& options) {
 
   const detail::AdiabaticBedModel model(mech, c.feed, s.basis, lc.reaction,
                                         options.quadrature_panels, options.quadrature_nodes,
-                                        options.solvers.equilibrium);
+                                        options.solvers.equilibrium, lc.activity);
   int reactors = 0;
   for (const auto& sp : c.train) reactors += std::holds_alternative<ReactorSpec>(sp) ? 1 : 0;
   std::vector<int> counts;

@@ -36,6 +36,7 @@ struct Setup {
   // The first reactor's, given to every staged bed.
   std::optional<double> bulk_density;
   SourceLocation bed_where;
+  double activity = 1;  // of every staged bed (the case's reactors')
 };
 
 TrainResult empty_result(const Case& c) {
@@ -319,7 +320,7 @@ void build_staged(const Setup& s, const StagingOptions& o, const SunContext& ctx
                   StagingResult& res) {
   const Mechanism& mech = s.mech;
   res.staged_run = empty_result(s.c);
-  ReactorSpec bed = bed_stage("", s.bulk_density, s.bed_where);
+  ReactorSpec bed = bed_stage("", s.bulk_density, s.activity, s.bed_where);
   PfrOptions po = o.solvers.tube;
   po.stop_temperature = s.T_limit;
   const char* exchanger_prefix = s.exothermic ? "C" : "H";
@@ -445,7 +446,8 @@ StagingResult run_staging(const Case& c, const StagingOptions& options) {
                 exo ? StagingLimit::TMax : StagingLimit::TInMin,
                 exo ? "T_max" : "T_in_min",
                 lc.bulk_density,
-                lc.bed_where};
+                lc.bed_where,
+                lc.activity};
   if (options.return_to == ReturnTo::MaxRate && !s.exothermic && !c.limits.T_max)
     throw InputError(
         c.limits.where,

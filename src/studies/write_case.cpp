@@ -167,6 +167,7 @@ std::string case_text_with(const Case& c, const std::vector<std::string>& lines,
     std::string size = r.catalyst_mass ? field_text(CaseFieldKind::Catalyst, *r.catalyst_mass)
                                        : field_text(CaseFieldKind::Volume, *r.volume);
     if (r.bulk_density) size += ", " + field_text(CaseFieldKind::BulkDensity, *r.bulk_density);
+    if (r.activity != 1) size += ", " + field_text(CaseFieldKind::Activity, r.activity);
     block += fmt::format(
         "  - {{type: pfr, id: {}, {}}}   # optimum: X {:.6f} -> {:.6f}, {:.2f} -> {:.2f} degC\n",
         r.id, size, b.X_in, b.X_out, b.T_in - kZeroCelsius, b.T_out - kZeroCelsius);

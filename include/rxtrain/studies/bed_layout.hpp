@@ -52,6 +52,7 @@ struct BedLayout {
   std::vector<Bed> beds;
   std::vector<Interstage> interstages;  // between beds: beds.size() - 1
   std::optional<double> bulk_density;   // kg/m3, every bed's
+  double activity = 1;                  // every bed's catalyst activity
   // Beds given by catalyst mass (with the volume it fills, as the loader
   // holds them), else by volume.
   bool by_mass = false;
@@ -67,6 +68,9 @@ struct LayoutCase {
   bool has_reactor = false;   // the train has a reactor stage
   // The first reactor's bulk density and place, given to every bed.
   std::optional<double> bulk_density;
+  // The catalyst activity the beds are designed for: the one every
+  // reactor of the case gives (1 when none does).
+  double activity = 1;
   SourceLocation bed_where;
 };
 
@@ -80,10 +84,10 @@ enum class LayoutStudy { Staging, Optimize };
 // first requirement of `study` the case misses.
 LayoutCase check_layout_case(const Case& c, LayoutStudy study);
 
-// An adiabatic tubular bed with the layout's bulk density; the caller sets
-// its size (volume, catalyst mass or target conversion).
+// An adiabatic tubular bed with the layout's bulk density and activity;
+// the caller sets its size (volume, catalyst mass or target conversion).
 ReactorSpec bed_stage(const std::string& id, const std::optional<double>& bulk_density,
-                      const SourceLocation& where);
+                      double activity, const SourceLocation& where);
 // An exchanger returning the stream to T_out.
 ExchangerSpec interstage_stage(const std::string& id, double T_out, const SourceLocation& where);
 

@@ -272,6 +272,7 @@ struct DesignResult {
   bool catalyst_objective = true;      // per-catalyst rates: minimize kg, else m3
   double feed_T = 0;                   // K
   std::optional<double> bulk_density;  // kg/m3, of the first reactor
+  double activity = 1;                 // the catalyst activity the beds are designed for
   bool fixed_feed_T = false;
   double margin = 0;                          // K, options.margin
   double window_low = 0, window_high = 0;     // K, the limits narrowed by the margin

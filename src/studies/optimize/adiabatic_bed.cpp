@@ -41,8 +41,14 @@ void gauss_legendre(int n, std::vector<double>& nodes, std::vector<double>& weig
 
 AdiabaticBedModel::AdiabaticBedModel(const Mechanism& mech, const Stream& feed,
                                      const ConversionBasis& basis, int j, int panels, int nodes,
-                                     const EquilibriumOptions& equilibrium)
-    : mech_(mech), feed_(feed), basis_(basis), j_(j), panels_(panels), equilibrium_(equilibrium) {
+                                     const EquilibriumOptions& equilibrium, double activity)
+    : mech_(mech),
+      feed_(feed),
+      basis_(basis),
+      j_(j),
+      panels_(panels),
+      equilibrium_(equilibrium),
+      activity_(activity) {
   const auto& nu = mech.reactions()[j].nu;
   xi_per_X_ = basis.F_key_feed / std::abs(nu[basis.key]);
   // X at which the first reactant runs out.
@@ -96,7 +102,7 @@ double AdiabaticBedModel::rate(double X, double T) const {
   flows_into(X, scratch_.F_rate);
   scratch_.r.resize(mech_.n_reactions());
   mech_.rates(T, feed_.P, scratch_.F_rate.data(), scratch_.r.data());
-  return scratch_.r[j_];
+  return activity_ * scratch_.r[j_];
 }
 
 AdiabaticBedModel::RatePartials AdiabaticBedModel::rate_partials(double X, double T) const {
@@ -109,9 +115,9 @@ AdiabaticBedModel::RatePartials AdiabaticBedModel::rate_partials(double X, doubl
                            scratch_.dr_dT, scratch_.mech);
   const auto& nu = mech_.reactions()[j_].nu;
   RatePartials p;
-  p.r = scratch_.r[j_];
-  p.dr_dT = scratch_.dr_dT(j_);
-  for (int i = 0; i < n; ++i) p.dr_dX += scratch_.dr_dF(j_, i) * nu[i] * xi_per_X_;
+  p.r = activity_ * scratch_.r[j_];
+  p.dr_dT = activity_ * scratch_.dr_dT(j_);
+  for (int i = 0; i < n; ++i) p.dr_dX += activity_ * scratch_.dr_dF(j_, i) * nu[i] * xi_per_X_;
   return p;
 }
 

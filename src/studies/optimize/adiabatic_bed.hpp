@@ -25,7 +25,8 @@ class AdiabaticBedModel {
   // j: the reaction that carries the key (the mechanism's only one).
   // panels x nodes: the Gauss-Legendre rule of size().
   AdiabaticBedModel(const Mechanism& mech, const Stream& feed, const ConversionBasis& basis, int j,
-                    int panels, int nodes, const EquilibriumOptions& equilibrium);
+                    int panels, int nodes, const EquilibriumOptions& equilibrium,
+                    double activity = 1);
 
   std::vector<double> flows(double X) const;
   void flows_into(double X, std::vector<double>& F) const;
@@ -34,7 +35,8 @@ class AdiabaticBedModel {
   // T at X on the adiabatic line through (X_in, T_in). Throws SolverError
   // when the energy balance has no positive root.
   double temperature(double X_in, double T_in, double X) const;
-  // Rate of the key reaction at (X, T), in its own basis.
+  // Rate of the key reaction at (X, T), in its own basis, times the
+  // catalyst activity the beds are designed for.
   double rate(double X, double T) const;
   // Sensible enthalpy flow (W) of the stream at conversion X and T.
   double enthalpy_flow(double X, double T) const;
@@ -86,6 +88,7 @@ class AdiabaticBedModel {
   std::vector<double> nodes_, weights_;  // on [-1, 1]
   int panels_;
   EquilibriumOptions equilibrium_;
+  double activity_ = 1;
   // Buffers of temperature() and rate(), kept so that the optimizer's
   // millions of calls do not allocate. A model serves one thread.
   struct Scratch {
