@@ -19,19 +19,14 @@
 #include "rxtrain/studies/optimize.hpp"
 #include "rxtrain/studies/staging.hpp"
 #include "rxtrain/sweep/case_path.hpp"
+#include "test_species.hpp"
 
 using namespace rxtrain;
 
 namespace {
 
 Species species(const std::string& id, double cp, double mw, double density) {
-  Species s;
-  s.id = id;
-  s.name = id;
-  s.mw = mw;
-  s.density = density;
-  s.thermo = ThermoModel(CpConstant{cp}, 0.0, 100.0);
-  return s;
+  return test::make_species(id, cp, 0.0, 100.0, mw, density);
 }
 
 // Liquid A -> B, first order, equal molar volumes (constant v); per

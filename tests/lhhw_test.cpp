@@ -16,6 +16,7 @@
 #include "rxtrain/case/case.hpp"
 #include "rxtrain/case/case_fields.hpp"
 #include "rxtrain/stages/pfr.hpp"
+#include "test_species.hpp"
 
 using namespace rxtrain;
 using rxtrain::test::GslNoAbort;
@@ -24,13 +25,7 @@ using rxtrain::test::GslOde;
 namespace {
 
 Species species(const std::string& id, double cp, double mw, double density) {
-  Species s;
-  s.id = id;
-  s.name = id;
-  s.mw = mw;
-  s.density = density;
-  s.thermo = ThermoModel(CpConstant{cp}, 0.0, 100.0);
-  return s;
+  return test::make_species(id, cp, 0.0, 100.0, mw, density);
 }
 
 // Liquid A -> B in solvent S, r = k(T) C_A / (1 + K_A(T) C_A); A and B

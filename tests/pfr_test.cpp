@@ -17,6 +17,7 @@
 
 #include "gsl_reference.hpp"
 #include "rxtrain/stages/pfr_batch.hpp"
+#include "test_species.hpp"
 
 using namespace rxtrain;
 using rxtrain::test::gsl_brent;
@@ -26,13 +27,7 @@ using rxtrain::test::GslOde;
 namespace {
 
 Species species(const std::string& id, double cp, double mw = 0.1, double density = 1000) {
-  Species s;
-  s.id = id;
-  s.name = id;
-  s.mw = mw;
-  s.density = density;
-  s.thermo = ThermoModel(CpConstant{cp}, 0.0, 100.0);
-  return s;
+  return test::make_species(id, cp, 0.0, 100.0, mw, density);
 }
 
 // First-order irreversible reaction in species `reactant`.
