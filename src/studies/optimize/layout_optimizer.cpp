@@ -193,122 +193,169 @@ double LayoutState::violation() const {
   return v;
 }
 
+namespace {
+
+// A layout evaluated bed by bed, in forward mode when derivatives are
+// asked: with each quantity its derivatives in x (a Slope; empty when
+// none are asked).
+class LayoutWalk {
+ public:
+  using Slope = std::vector<double>;
+
+  LayoutWalk(const LayoutProblem& p, const std::vector<double>& x, LayoutGradient* gradient)
+      : p_(p),
+        model_(*p.model),
+        x_(x),
+        g_(gradient),
+        nv_(p.n_variables()),
+        width_(p.T_hi - p.T_lo),
+        is_(p.n_temperatures()),
+        X_(p.X0),
+        dX_(zero()),
+        dTotal_(zero()) {
+    st_.constraints.assign(p.n_constraints(), 0.0);
+    if (g_) {
+      g_->total.assign(nv_, 0.0);
+      g_->constraints.assign(static_cast<std::size_t>(p.n_constraints()) * nv_, 0.0);
+    }
+  }
+
+  // Bed n: its inlet temperature, equilibrium end, end, size and outlet.
+  void bed(int n) {
+    const bool fixed = n == 0 && p_.fixed_first;
+    Slope dT = zero();
+    if (!fixed && g_) dT[iz_] = width_;
+    const double T = fixed ? p_.T_feed : p_.T_lo + x_[iz_++] * width_;
+    const double X_e = model_.equilibrium_end(X_, T);
+    Slope dX_e = zero();
+    if (g_) {
+      const auto e = model_.equilibrium_end_slopes(X_, T, X_e);
+      axpy(dX_e, e.dX_in, dX_);
+      axpy(dX_e, e.dT_in, dT);
+    }
+    Slope dX_b = dX_;
+    const double X_b = bed_end(n, X_e, dX_e, dX_b);
+    double W = 0;
+    Slope dW = zero();
+    if (X_e > X_ && g_) {
+      const auto w = model_.size_slopes(X_, T, X_b, X_e);
+      W = w.size;
+      axpy(dW, w.dX_in, dX_);
+      axpy(dW, w.dT_in, dT);
+      axpy(dW, w.dX_out, dX_b);
+    } else if (X_e > X_) {
+      W = model_.size(X_, T, X_b, X_e);
+    }
+    const double T_out = model_.temperature(X_, T, X_b);
+    Slope dT_out = zero();
+    if (g_) {
+      const auto l = model_.line_slopes(X_, T, X_b, T_out);
+      axpy(dT_out, l.dT_dX_in, dX_);
+      axpy(dT_out, l.dT_dT_in, dT);
+      axpy(dT_out, l.dT_dX, dX_b);
+    }
+    // Its far end within the window; an inlet short of equilibrium.
+    const double sign = p_.exothermic ? 1.0 : -1.0;
+    Slope dc = zero();
+    axpy(dc, sign / width_, dT_out);
+    constraint(2 * n, (p_.exothermic ? T_out - p_.T_hi : p_.T_lo - T_out) / width_, dc);
+    Slope dforward = dX_;
+    axpy(dforward, -1.0, dX_e);
+    constraint(2 * n + 1, X_ + 1e-9 - X_e, dforward);
+    st_.T_in.push_back(T);
+    st_.T_out.push_back(T_out);
+    st_.X_in.push_back(X_);
+    st_.X_out.push_back(X_b);
+    st_.X_e.push_back(X_e);
+    st_.size.push_back(W);
+    st_.total += W;
+    axpy(dTotal_, 1.0, dW);
+    X_ = X_b;
+    dX_ = std::move(dX_b);
+  }
+
+  // A bed's balance could not be solved: every constraint violated.
+  void unevaluable() {
+    st_.evaluable = false;
+    std::fill(st_.constraints.begin(), st_.constraints.end(), 1.0);
+  }
+
+  LayoutState finish() {
+    if (g_) {
+      if (st_.evaluable && std::isfinite(st_.total))
+        g_->total = dTotal_;
+      else
+        std::fill(g_->constraints.begin(), g_->constraints.end(), 0.0);
+    }
+    return std::move(st_);
+  }
+
+ private:
+  Slope zero() const { return Slope(g_ ? nv_ : 0, 0.0); }
+  // a += k b, element by element (both sized nv or both empty).
+  static void axpy(Slope& a, double k, const Slope& b) {
+    for (std::size_t i = 0; i < a.size(); ++i) a[i] += k * b[i];
+  }
+  void constraint(int row, double value, const Slope& d) {
+    st_.constraints[row] = value;
+    if (g_) std::copy(d.begin(), d.end(), g_->constraints.begin() + row * nv_);
+  }
+
+  // The conversion at which bed n ends (dX_b: its slope, entering as the
+  // inlet's): the fraction s of the way to X_e, or, for the last bed, the
+  // target when it can reach it (its own constraint says whether).
+  double bed_end(int n, double X_e, const Slope& dX_e, Slope& dX_b) {
+    const double span = X_e - X_;
+    Slope dspan = dX_e;
+    axpy(dspan, -1.0, dX_);
+    if (n < p_.beds - 1) {
+      const double s = x_[is_];
+      double X_b = X_;
+      if (span > 0) {
+        X_b = X_ + s * span;
+        axpy(dX_b, s, dspan);
+        if (g_) dX_b[is_] += span;
+      }
+      ++is_;
+      return X_b;
+    }
+    const double cap = X_ + p_.s_max * span;
+    Slope dcap = dX_;
+    axpy(dcap, p_.s_max, dspan);
+    Slope dc = zero();
+    axpy(dc, -1.0, dcap);
+    constraint(2 * p_.beds, p_.target - cap, dc);
+    const double X_b = std::max(X_, std::min(p_.target, cap));
+    if (X_b == p_.target && p_.target > X_)
+      dX_b = zero();
+    else if (X_b == cap && cap > X_)
+      dX_b = dcap;
+    return X_b;
+  }
+
+  const LayoutProblem& p_;
+  const AdiabaticBedModel& model_;
+  const std::vector<double>& x_;
+  LayoutGradient* g_;
+  int nv_;
+  double width_;
+  int iz_ = 0, is_;  // the next temperature and fraction in x
+  double X_;         // the next bed's inlet conversion
+  Slope dX_, dTotal_;
+  LayoutState st_;
+};
+
+}  // namespace
+
 LayoutState evaluate_layout(const LayoutProblem& p, const std::vector<double>& x,
                             LayoutGradient* gradient) {
-  const AdiabaticBedModel& model = *p.model;
-  const int nv = p.n_variables();
-  LayoutState st;
-  st.constraints.assign(p.n_constraints(), 0.0);
-  // Forward mode: with each quantity its derivatives in x (empty: none asked).
-  using Slope = std::vector<double>;
-  const bool slopes = gradient != nullptr;
-  const auto zero = [&] { return Slope(slopes ? nv : 0, 0.0); };
-  // a + k b, element by element (both sized nv or both empty).
-  const auto axpy = [](Slope& a, double k, const Slope& b) {
-    for (std::size_t i = 0; i < a.size(); ++i) a[i] += k * b[i];
-  };
-  if (slopes) {
-    gradient->total.assign(nv, 0.0);
-    gradient->constraints.assign(static_cast<std::size_t>(p.n_constraints()) * nv, 0.0);
-  }
-  const auto constraint_slope = [&](int row, const Slope& d) {
-    if (slopes) std::copy(d.begin(), d.end(), gradient->constraints.begin() + row * nv);
-  };
-  const double width = p.T_hi - p.T_lo;
-  int iz = 0, is = p.n_temperatures();
-  double X = p.X0;
-  Slope dX = zero(), dTotal = zero();
+  LayoutWalk walk(p, x, gradient);
   try {
-    for (int n = 0; n < p.beds; ++n) {
-      const bool fixed = n == 0 && p.fixed_first;
-      Slope dT = zero();
-      if (!fixed && slopes) dT[iz] = width;
-      const double T = fixed ? p.T_feed : p.T_lo + x[iz++] * width;
-      const double X_e = model.equilibrium_end(X, T);
-      Slope dX_e = zero();
-      if (slopes) {
-        const auto e = model.equilibrium_end_slopes(X, T, X_e);
-        axpy(dX_e, e.dX_in, dX);
-        axpy(dX_e, e.dT_in, dT);
-      }
-      const double span = X_e - X;
-      Slope dspan = dX_e;
-      axpy(dspan, -1.0, dX);
-      double X_b = X;
-      Slope dX_b = dX;
-      if (n < p.beds - 1) {
-        const double s = x[is];
-        if (span > 0) {
-          X_b = X + s * span;
-          axpy(dX_b, s, dspan);
-          if (slopes) dX_b[is] += span;
-        }
-        ++is;
-      } else {
-        const double cap = X + p.s_max * span;
-        st.constraints[2 * p.beds] = p.target - cap;
-        Slope dcap = dX;
-        axpy(dcap, p.s_max, dspan);
-        Slope dc = zero();
-        axpy(dc, -1.0, dcap);
-        constraint_slope(2 * p.beds, dc);
-        X_b = std::max(X, std::min(p.target, cap));
-        if (X_b == p.target && p.target > X)
-          dX_b = zero();
-        else if (X_b == cap && cap > X)
-          dX_b = dcap;
-      }
-      double W = 0;
-      Slope dW = zero();
-      if (span > 0) {
-        if (slopes) {
-          const auto w = model.size_slopes(X, T, X_b, X_e);
-          W = w.size;
-          axpy(dW, w.dX_in, dX);
-          axpy(dW, w.dT_in, dT);
-          axpy(dW, w.dX_out, dX_b);
-        } else {
-          W = model.size(X, T, X_b, X_e);
-        }
-      }
-      const double T_out = model.temperature(X, T, X_b);
-      Slope dT_out = zero();
-      if (slopes) {
-        const auto l = model.line_slopes(X, T, X_b, T_out);
-        axpy(dT_out, l.dT_dX_in, dX);
-        axpy(dT_out, l.dT_dT_in, dT);
-        axpy(dT_out, l.dT_dX, dX_b);
-      }
-      st.constraints[2 * n] = (p.exothermic ? T_out - p.T_hi : p.T_lo - T_out) / width;
-      Slope dc = zero();
-      axpy(dc, (p.exothermic ? 1.0 : -1.0) / width, dT_out);
-      constraint_slope(2 * n, dc);
-      st.constraints[2 * n + 1] = X + 1e-9 - X_e;
-      Slope dforward = dX;
-      axpy(dforward, -1.0, dX_e);
-      constraint_slope(2 * n + 1, dforward);
-      st.T_in.push_back(T);
-      st.T_out.push_back(T_out);
-      st.X_in.push_back(X);
-      st.X_out.push_back(X_b);
-      st.X_e.push_back(X_e);
-      st.size.push_back(W);
-      st.total += W;
-      axpy(dTotal, 1.0, dW);
-      X = X_b;
-      dX = dX_b;
-    }
+    for (int n = 0; n < p.beds; ++n) walk.bed(n);
   } catch (const SolverError&) {
-    st.evaluable = false;
-    std::fill(st.constraints.begin(), st.constraints.end(), 1.0);
+    walk.unevaluable();
   }
-  if (slopes) {
-    if (st.evaluable && std::isfinite(st.total))
-      gradient->total = dTotal;
-    else
-      std::fill(gradient->constraints.begin(), gradient->constraints.end(), 0.0);
-  }
-  return st;
+  return walk.finish();
 }
 
 std::vector<double> start_vector(const LayoutProblem& p, const StartLayout& s) {
