@@ -2,6 +2,8 @@
 
 #include <fmt/format.h>
 
+#include <Eigen/LU>
+#include <Eigen/QR>
 #include <algorithm>
 #include <cmath>
 #include <limits>

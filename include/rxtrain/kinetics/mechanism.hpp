@@ -3,7 +3,7 @@
 // Immutable after construction; safe to share between threads.
 #pragma once
 
-#include <Eigen/Dense>
+#include <Eigen/Core>
 #include <utility>
 #include <vector>
 

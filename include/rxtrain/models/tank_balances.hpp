@@ -6,7 +6,7 @@
 // (rxtrain::detail), not API.
 #pragma once
 
-#include <Eigen/Dense>
+#include <Eigen/Core>
 #include <vector>
 
 #include "rxtrain/chem/stream.hpp"

@@ -3,7 +3,8 @@
 // backtracking line search on 0.5 |f|^2.
 #pragma once
 
-#include <Eigen/Dense>
+#include <Eigen/Core>
+#include <Eigen/LU>
 #include <functional>
 #include <string>
 

@@ -10,7 +10,7 @@
 // Bed size: W = F_key,feed / |nu_key| * integral dX / r(X, T(X)).
 #pragma once
 
-#include <Eigen/Dense>
+#include <Eigen/Core>
 #include <optional>
 #include <vector>
 
