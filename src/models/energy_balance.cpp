@@ -116,8 +116,17 @@ double temperature_for_enthalpy(const Mechanism& mech, const std::vector<double>
 
 Stream stream_after_extent(const Mechanism& mech, const Stream& inlet, HeatMode heat, int j,
                            double xi, double T_guess) {
+  Stream out;
+  stream_after_extent(mech, inlet, heat, j, xi, T_guess, out);
+  return out;
+}
+
+void stream_after_extent(const Mechanism& mech, const Stream& inlet, HeatMode heat, int j,
+                         double xi, double T_guess, Stream& out) {
   const auto& nu = mech.reactions()[j].nu;
-  Stream out{inlet.T, inlet.P, inlet.F};
+  out.T = inlet.T;
+  out.P = inlet.P;
+  out.F.assign(inlet.F.begin(), inlet.F.end());  // no allocation once out has the room
   const double floor = 1e-12 * inlet.total_flow();
   for (int i = 0; i < mech.n_species(); ++i) {
     out.F[i] += nu[i] * xi;
@@ -129,7 +138,6 @@ Stream stream_after_extent(const Mechanism& mech, const Stream& inlet, HeatMode 
         mech.sensible_enthalpy_flow(inlet.T, inlet.F.data()) - xi * mech.reactions()[j].dH_298;
     out.T = temperature_for_enthalpy(mech, out.F, H, std::isnan(T_guess) ? inlet.T : T_guess);
   }
-  return out;
 }
 
 }  // namespace rxtrain

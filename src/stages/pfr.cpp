@@ -486,14 +486,15 @@ double size_by_quadrature(const Mechanism& mech, const ReactorSpec& spec, const 
   const double X_in = basis.conversion(inlet);
   const double per_X = basis.F_key_feed / -nu[basis.key];  // extent per unit of X
   double T_last = inlet.T;  // Newton's start for the next temperature
-  auto state_at = [&](double X) {
-    Stream s = stream_after_extent(mech, inlet, spec.heat, 0, (X - X_in) * per_X, T_last);
+  Stream s;                 // the state at X, its buffers reused
+  auto state_at = [&](double X) -> const Stream& {
+    stream_after_extent(mech, inlet, spec.heat, 0, (X - X_in) * per_X, T_last, s);
     T_last = s.T;
     return s;
   };
   double r = 0;
   auto dV_dX = [&](double X) {
-    const Stream s = state_at(X);
+    state_at(X);
     mech.rates(s.T, s.P, s.F.data(), &r);
     const double R = beta * r;
     if (!(R > 0))
@@ -520,12 +521,12 @@ double size_by_quadrature(const Mechanism& mech, const ReactorSpec& spec, const 
     V += piece.value;
     // Every piece's state, kept or not, so that the end's Newton starts
     // from the same guess with or without the profile.
-    const Stream s = state_at(piece.b);
+    const Stream& at = state_at(piece.b);
     if (!full_profile && &piece != &q.pieces.back()) continue;
-    y.assign(s.F.begin(), s.F.end());
-    y.push_back(s.T);
+    y.assign(at.F.begin(), at.F.end());
+    y.push_back(at.T);
     y.push_back(dH * (piece.b - X_in) * per_X);
-    res.profile.push_back(ProfilePoint{V, s.T, piece.b, s.F});
+    res.profile.push_back(ProfilePoint{V, at.T, piece.b, at.F});
   }
   return V;
 }

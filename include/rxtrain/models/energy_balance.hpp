@@ -29,5 +29,9 @@ double temperature_for_enthalpy(const Mechanism& mech, const std::vector<double>
 // SolverError when no temperature closes the balance.
 Stream stream_after_extent(const Mechanism& mech, const Stream& inlet, HeatMode heat, int j,
                            double xi, double T_guess = std::numeric_limits<double>::quiet_NaN());
+// The same into `out`, whose buffers are reused (for callers that evaluate
+// many extents, e.g. a quadrature along a bed).
+void stream_after_extent(const Mechanism& mech, const Stream& inlet, HeatMode heat, int j,
+                         double xi, double T_guess, Stream& out);
 
 }  // namespace rxtrain
