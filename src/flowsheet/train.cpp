@@ -71,7 +71,7 @@ void add_reaches(const Case& c, const TrainOptions& options, TrainResult& result
   TrainWorkspace ws;
   for (auto& r : result.stages) {
     if (r.kind == StageKind::Exchanger || !r.heat) continue;
-    ReactorSpec spec;
+    ReactorSpec spec{};
     spec.id = r.id;
     spec.type = r.kind == StageKind::Cstr ? ReactorType::Cstr : ReactorType::Pfr;
     spec.heat = *r.heat;
