@@ -238,6 +238,7 @@ class Loader {
   OutletTarget read_outlet_target(const YAML::Node& node, const std::string& ctx) const;
   TemperatureLimits read_limits(const YAML::Node& node) const;
   std::vector<int> read_space_velocity_basis(const YAML::Node& node) const;
+  std::vector<int> read_products(const YAML::Node& node) const;
   StageSpec read_stage(const YAML::Node& node, std::size_t index);
   void check_energy_needs() const;
   void check_catalyst_basis() const;
@@ -1182,6 +1183,30 @@ std::vector<int> Loader::read_space_velocity_basis(const YAML::Node& node) const
   return basis;
 }
 
+// The wanted products: distinct declared species, each formed (nu > 0) by
+// some reaction, since a yield is counted on the reaction that forms it.
+std::vector<int> Loader::read_products(const YAML::Node& node) const {
+  if (!node.IsSequence() || node.size() == 0)
+    fail(node, fmt::format("products needs a list of species ids (e.g. products: [C2H4]), got {}",
+                           describe(node)));
+  std::vector<int> products;
+  for (const auto& item : node) {
+    const int i = species_index(item, "products");
+    if (std::find(products.begin(), products.end(), i) != products.end())
+      fail(item, fmt::format("species {} is named twice in products", species_[i].id));
+    if (i == key_)
+      fail(item, fmt::format("products: {} is the key reactant; name the species the train "
+                             "should make",
+                             species_[i].id));
+    const bool formed = std::any_of(reactions_.begin(), reactions_.end(),
+                                    [&](const Reaction& rx) { return rx.nu[i] > 0; });
+    if (!formed)
+      fail(item, fmt::format("products: no reaction forms {}, so it has no yield", species_[i].id));
+    products.push_back(i);
+  }
+  return products;
+}
+
 // Adiabatic reactors and exchangers close an energy balance, which needs
 // cp of every species; an all-isothermal train does not.
 void Loader::check_energy_needs() const {
@@ -1262,7 +1287,7 @@ Case Loader::load(const YAML::Node& root) {
                      "reactions, feed, key and train");
   Fields top(*this, root, "the case");
   top.check({"title", "phase", "species", "reactions", "feed", "key", "train", "target", "limits",
-             "space_velocity_basis"});
+             "space_velocity_basis", "products"});
   Case c;
   c.file = file_;
   c.title = file_;
@@ -1284,6 +1309,7 @@ Case Loader::load(const YAML::Node& root) {
   if (const auto* n = top.find("limits")) c.limits = read_limits(*n);
   if (const auto* n = top.find("space_velocity_basis"))
     c.space_velocity_basis = read_space_velocity_basis(*n);
+  if (const auto* n = top.find("products")) c.products = read_products(*n);
   check_energy_needs();
   check_catalyst_basis();
 

@@ -84,6 +84,9 @@ struct Case {
   // as indices into the mechanism's species, each with a molar mass; empty
   // (the default): the whole stream. GHSV is always on the whole gas.
   std::vector<int> space_velocity_basis;
+  // The wanted products (top-level `products`), as indices into the
+  // mechanism's species; each is formed by some reaction.
+  std::vector<int> products;
 
   ConversionBasis conversion_basis() const { return {key, feed.F[key]}; }
 };
