@@ -338,7 +338,7 @@ double volume_for_outlet(const Mechanism& mech, const ReactorSpec& spec, const S
         fmt::format("stage {}: outlet target {} = {:.6g} ppm is out of reach; the least this stage "
                     "can reach is {:.6g} ppm (at V = {:.6g} m3{})",
                     spec.id, sp, t.x * 1e6, x_min * 1e6, V_min,
-                    V >= V_end            ? ", the space-time bound"
+                    V >= V_end            ? ", the path followed to the space-time bound"
                     : T_stop && V < V_end ? ", the stop temperature"
                                           : ""));
 
