@@ -235,8 +235,10 @@ class Loader {
   void read_key(const YAML::Node& node);
   void read_train(const YAML::Node& list);
   double read_train_target(const YAML::Node& node) const;
+  OutletTarget read_outlet_target(const YAML::Node& node, const std::string& ctx) const;
   TemperatureLimits read_limits(const YAML::Node& node) const;
   std::vector<int> read_space_velocity_basis(const YAML::Node& node) const;
+  std::vector<int> read_products(const YAML::Node& node) const;
   StageSpec read_stage(const YAML::Node& node, std::size_t index);
   void check_energy_needs() const;
   void check_catalyst_basis() const;
@@ -1056,9 +1058,24 @@ StageSpec Loader::read_stage(const YAML::Node& node, std::size_t index) {
   }
   if (const auto* n = f.find("target")) {
     Fields t(*this, *n, "target of " + ctx);
-    t.check({"conversion"});
-    const YAML::Node& x = t.need("conversion", "the overall key conversion to reach, e.g. 0.65");
-    r.target_conversion = field(x, CaseFieldKind::StageTarget, sid);
+    t.check({"conversion", "outlet"});
+    if (t.find("conversion") && t.find("outlet"))
+      fail(*t.key_of("outlet"), fmt::format("target of {} gives both conversion and outlet; give "
+                                            "exactly one",
+                                            ctx));
+    if (const auto* o = t.find("outlet")) {
+      if (r.type == ReactorType::Cstr)
+        fail(*t.key_of("outlet"),
+             fmt::format("target of {}: an outlet-purity target sizes tubular stages (type: pfr) "
+                         "only; give this stirred tank a volume or a conversion target",
+                         ctx));
+      r.target_outlet = read_outlet_target(*o, ctx);
+    } else {
+      const YAML::Node& x = t.need("conversion",
+                                   "the overall key conversion to reach, e.g. 0.65, or an outlet "
+                                   "purity, e.g. outlet: {C2H2: 1 ppm}");
+      r.target_conversion = field(x, CaseFieldKind::StageTarget, sid);
+    }
   }
   if (const auto* n = f.find("heat"))
     r.heat = choice(*n, "heat of " + ctx, {"adiabatic", "isothermal"}) == "isothermal"
@@ -1066,6 +1083,58 @@ StageSpec Loader::read_stage(const YAML::Node& node, std::size_t index) {
                  : HeatMode::Adiabatic;
   if (const auto* n = f.find("activity")) r.activity = field(*n, CaseFieldKind::Activity, sid);
   return r;
+}
+
+// An outlet purity: one species and its mole fraction ("1 ppm", "0.5 %"
+// or a plain fraction), below the species' mole fraction at the stage
+// inlet. Where no reactor stands before this one the inlet is the feed and
+// that is checked here; after a reactor the stage checks it when it runs.
+OutletTarget Loader::read_outlet_target(const YAML::Node& node, const std::string& ctx) const {
+  const std::string where = "outlet target of " + ctx;
+  if (!node.IsMap() || node.size() != 1)
+    fail(node, fmt::format("{} needs one species and its outlet mole fraction, e.g. outlet: "
+                           "{{C2H2: 1 ppm}}, got {}",
+                           where, describe(node)));
+  const auto entry = *node.begin();
+  OutletTarget t;
+  t.species = species_index(entry.first, where);
+  const std::string& sp = species_[t.species].id;
+  const YAML::Node& v = entry.second;
+  std::string s = v.IsScalar() ? v.Scalar() : std::string{};
+  double scale = 1;
+  for (const auto& [suffix, factor] : {std::pair{"ppm", 1e-6}, std::pair{"%", 1e-2}}) {
+    const std::string_view sv = suffix;
+    if (s.size() > sv.size() && s.compare(s.size() - sv.size(), sv.size(), sv) == 0) {
+      s.resize(s.size() - sv.size());
+      scale = factor;
+      break;
+    }
+  }
+  while (!s.empty() && s.back() == ' ') s.pop_back();
+  const auto x = parse_number(s);
+  if (!x)
+    fail(v, fmt::format("{} needs a mole fraction for {} (e.g. 1 ppm, 0.5 %, or 1e-6), got {}",
+                        where, sp, describe(v)));
+  t.x = *x * scale;
+  if (!(t.x > 0 && t.x < 1))
+    fail(v, fmt::format("{}: the outlet mole fraction of {} must lie between 0 and 1 "
+                        "(exclusive), got {:g}",
+                        where, sp, t.x));
+  double total = 0;
+  for (double F : feed_.F) total += F;
+  const double x_feed = feed_.F[t.species] / total;
+  if (!(x_feed > 0))
+    fail(entry.first, fmt::format("{}: {} is not in the feed stream, so there is no outlet "
+                                  "purity of it to reach",
+                                  where, sp));
+  const bool after_reactor = std::any_of(train_.begin(), train_.end(), [](const StageSpec& st) {
+    return std::holds_alternative<ReactorSpec>(st);
+  });
+  if (!after_reactor && t.x >= x_feed)
+    fail(v, fmt::format("{}: {} mole fraction {:.6g} ppm is not below its value at the stage "
+                        "inlet ({:.6g} ppm); the target would be met by no catalyst at all",
+                        where, sp, t.x * 1e6, x_feed * 1e6));
+  return t;
 }
 
 // ---- train-level target and temperature limits --------------------------
@@ -1112,6 +1181,30 @@ std::vector<int> Loader::read_space_velocity_basis(const YAML::Node& node) const
     basis.push_back(i);
   }
   return basis;
+}
+
+// The wanted products: distinct declared species, each formed (nu > 0) by
+// some reaction, since a yield is counted on the reaction that forms it.
+std::vector<int> Loader::read_products(const YAML::Node& node) const {
+  if (!node.IsSequence() || node.size() == 0)
+    fail(node, fmt::format("products needs a list of species ids (e.g. products: [C2H4]), got {}",
+                           describe(node)));
+  std::vector<int> products;
+  for (const auto& item : node) {
+    const int i = species_index(item, "products");
+    if (std::find(products.begin(), products.end(), i) != products.end())
+      fail(item, fmt::format("species {} is named twice in products", species_[i].id));
+    if (i == key_)
+      fail(item, fmt::format("products: {} is the key reactant; name the species the train "
+                             "should make",
+                             species_[i].id));
+    const bool formed = std::any_of(reactions_.begin(), reactions_.end(),
+                                    [&](const Reaction& rx) { return rx.nu[i] > 0; });
+    if (!formed)
+      fail(item, fmt::format("products: no reaction forms {}, so it has no yield", species_[i].id));
+    products.push_back(i);
+  }
+  return products;
 }
 
 // Adiabatic reactors and exchangers close an energy balance, which needs
@@ -1194,7 +1287,7 @@ Case Loader::load(const YAML::Node& root) {
                      "reactions, feed, key and train");
   Fields top(*this, root, "the case");
   top.check({"title", "phase", "species", "reactions", "feed", "key", "train", "target", "limits",
-             "space_velocity_basis"});
+             "space_velocity_basis", "products"});
   Case c;
   c.file = file_;
   c.title = file_;
@@ -1216,6 +1309,7 @@ Case Loader::load(const YAML::Node& root) {
   if (const auto* n = top.find("limits")) c.limits = read_limits(*n);
   if (const auto* n = top.find("space_velocity_basis"))
     c.space_velocity_basis = read_space_velocity_basis(*n);
+  if (const auto* n = top.find("products")) c.products = read_products(*n);
   check_energy_needs();
   check_catalyst_basis();
 

@@ -198,15 +198,18 @@ void Checker::stages() const {
     }
     const auto& r = std::get<ReactorSpec>(s);
     const char* size = r.catalyst_mass ? "catalyst" : r.volume ? "volume" : nullptr;
-    if (size && r.target_conversion)
+    if (size && r.sized())
       fail(r.where, fmt::format("stage {} gives both {} and target; give exactly one of volume, "
                                 "catalyst or target",
                                 r.id, size));
-    if (!size && !r.target_conversion)
+    if (!size && !r.sized())
       fail(r.where,
            fmt::format("stage {} needs one of volume, catalyst (a mass, with bulk_density) or "
                        "target",
                        r.id));
+    if (r.target_outlet && r.type == ReactorType::Cstr)
+      fail(r.where,
+           fmt::format("stage {}: an outlet-purity target sizes tubular stages only", r.id));
     if (!r.catalyst_mass) continue;
     if (!r.bulk_density)
       fail(r.where, fmt::format("stage {} gives catalyst but is missing \"bulk_density\", which "

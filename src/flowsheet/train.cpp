@@ -5,6 +5,7 @@
 #include <algorithm>
 #include <type_traits>
 
+#include "rxtrain/flowsheet/yields.hpp"
 #include "rxtrain/stages/exchanger.hpp"
 #include "rxtrain/stages/run_stage.hpp"
 
@@ -71,7 +72,7 @@ void add_reaches(const Case& c, const TrainOptions& options, TrainResult& result
   TrainWorkspace ws;
   for (auto& r : result.stages) {
     if (r.kind == StageKind::Exchanger || !r.heat) continue;
-    ReactorSpec spec;
+    ReactorSpec spec{};
     spec.id = r.id;
     spec.type = r.kind == StageKind::Cstr ? ReactorType::Cstr : ReactorType::Pfr;
     spec.heat = *r.heat;
@@ -155,6 +156,7 @@ TrainResult run_train(const Case& c, const TrainOptions& options, TrainWorkspace
   result.outlet = stream;
   result.conversion = basis.conversion(stream);
   result.limit_check = check_limits(c, options, result.stages);
+  add_product_yields(c, result);
   if (options.equilibrium_views) add_equilibrium_views(c, options, result);
   return result;
 }

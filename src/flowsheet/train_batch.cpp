@@ -4,6 +4,7 @@
 #include <variant>
 
 #include "rxtrain/flowsheet/train.hpp"
+#include "rxtrain/flowsheet/yields.hpp"
 #include "rxtrain/stages/exchanger.hpp"
 
 namespace rxtrain {
@@ -63,6 +64,7 @@ std::vector<TrainResult> run_trains_batched(std::span<const Case* const> cases,
     results[i].outlet = streams[i];
     results[i].conversion = cases[i]->conversion_basis().conversion(streams[i]);
     results[i].limit_check = check_limits(*cases[i], options, results[i].stages);
+    add_product_yields(*cases[i], results[i]);
   }
   return results;
 }

@@ -748,6 +748,10 @@ struct Tank {
 StageResult run_cstr(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
                      const ConversionBasis& basis, CstrWorkspace& workspace,
                      const CstrOptions& options) {
+  if (spec.target_outlet)
+    throw InputError(spec.where, fmt::format("stage {}: an outlet-purity target sizes tubular "
+                                             "stages only",
+                                             spec.id));
   Tank t(mech, spec, inlet, basis, workspace, options);
   if (spec.target_conversion)
     t.size(*spec.target_conversion);

@@ -12,6 +12,7 @@
 #include "rxtrain/base/error.hpp"
 #include "rxtrain/base/units.hpp"
 #include "rxtrain/solvers/quadrature.hpp"
+#include "rxtrain/solvers/scalar_root.hpp"
 
 namespace rxtrain {
 
@@ -49,9 +50,14 @@ struct PfrWorkspace::State {
     int n = 0;
     int i_target = -1, i_stop = -1;
     double X_target = 0, T_stop = 0;
+    // >= 0: the target is this species' mole fraction X_target, not the
+    // key's conversion.
+    int fraction_of = -1;
     int count() const { return (i_target >= 0) + (i_stop >= 0); }
     int eval(const double* y, double* g) const {
-      if (i_target >= 0) g[i_target] = basis.conversion(y) - X_target;
+      if (i_target >= 0)
+        g[i_target] = fraction_of >= 0 ? detail::mole_fraction(y, n, fraction_of) - X_target
+                                       : basis.conversion(y) - X_target;
       if (i_stop >= 0) g[i_stop] = y[n] - T_stop;
       return 0;
     }
@@ -269,8 +275,122 @@ Walk walk_stage(PfrWorkspace::State& st, CvodeIntegrator& ode, PathRecorder& pat
 
 }  // namespace
 
+namespace {
+
+// The volume at which `spec`'s outlet mole fraction of t.species falls to
+// t.x, from a rated stage: a CVODE root on the mole fraction along the
+// path brackets it, then Brent's method polishes it on whole ratings of
+// the stage, so that rating the size found gives the target back to the
+// integrator's own consistency rather than to the root's interpolation.
+// A purity the path does not reach before the space-time bound (or the
+// stop temperature) is refused with the least mole fraction it reaches.
+double volume_for_outlet(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
+                         const ConversionBasis& basis, PfrWorkspace& ws,
+                         const PfrOptions& options) {
+  const int n = mech.n_species();
+  const OutletTarget& t = *spec.target_outlet;
+  const std::string& sp = mech.species()[t.species].id;
+  const double x_in = detail::mole_fraction(inlet.F.data(), n, t.species);
+  if (!(t.x < x_in))
+    throw InputError(
+        spec.where, fmt::format("stage {}: outlet target {} = {:.6g} ppm is not below its value at "
+                                "the stage inlet ({:.6g} ppm)",
+                                spec.id, sp, t.x * 1e6, x_in * 1e6));
+  PfrWorkspace::State& st = ws.state();
+  const auto multipliers = rate_multipliers(mech, spec);
+  const double V_end =
+      options.max_space_time * mech.volumetric_flow(inlet.T, inlet.P, inlet.F.data());
+  std::optional<double> T_stop;
+  if (spec.heat == HeatMode::Adiabatic) T_stop = options.stop_temperature;
+
+  // The path, step by step, to the first crossing of the target.
+  CvodeIntegrator& ode = st.start(ws.context(), mech, multipliers, spec.heat, inlet, options);
+  ode.set_stop_time(V_end);
+  arm_roots(st, ode, basis, n, t.x, T_stop);
+  st.roots.fraction_of = t.species;
+  ode.set_roots(
+      st.roots.count(),
+      [r = &st.roots](double, const double* y, double* g) { return r->eval(y, g); },
+      std::vector<int>(st.roots.count(), 0));
+  std::vector<double>& y = st.y;
+  double V = 0, V_prev = 0, x_min = x_in, V_min = 0;
+  bool reached = false;
+  for (;;) {
+    V_prev = V;
+    const auto ev = ode.step(V_end, V, y);
+    const double x = detail::mole_fraction(y.data(), n, t.species);
+    if (x < x_min) {
+      x_min = x;
+      V_min = V;
+    }
+    if (ev == CvodeIntegrator::Event::Stop) break;
+    if (ev != CvodeIntegrator::Event::Root) continue;
+    const auto found = ode.roots_found();
+    if (found[st.roots.i_target] != 0 && x <= t.x * (1 + 1e-6)) {
+      reached = true;
+      break;
+    }
+    if (st.roots.i_stop >= 0 && found[st.roots.i_stop] != 0) break;
+  }
+  if (!reached)
+    throw InfeasibleError(
+        spec.where,
+        fmt::format("stage {}: outlet target {} = {:.6g} ppm is out of reach; the least this stage "
+                    "can reach is {:.6g} ppm (at V = {:.6g} m3{})",
+                    spec.id, sp, t.x * 1e6, x_min * 1e6, V_min,
+                    V >= V_end            ? ", the path followed to the space-time bound"
+                    : T_stop && V < V_end ? ", the stop temperature"
+                                          : ""));
+
+  // Outlet mole fraction less the target, of the stage rated at volume v.
+  auto excess = [&](double v) {
+    CvodeIntegrator& o = st.start(ws.context(), mech, multipliers, spec.heat, inlet, options);
+    arm_roots(st, o, basis, n, std::nullopt, std::nullopt);
+    o.set_stop_time(v);
+    double at = 0;
+    while (o.advance(v, at, y) != CvodeIntegrator::Event::Stop) {
+    }
+    return detail::mole_fraction(y.data(), n, t.species) - t.x;
+  };
+  double a = V_prev, b = V;
+  double fa = a > 0 ? excess(a) : x_in - t.x, fb = excess(b);
+  // The root's interpolation and a whole rating differ by the integration
+  // error: widen the bracket until the ratings straddle the target.
+  for (int k = 0; k < 20 && fb > 0 && b < V_end; ++k) {
+    a = b;
+    fa = fb;
+    b = std::min(V_end, b + (b - V_prev) * (1 << k) + 1e-9 * b);
+    fb = excess(b);
+  }
+  for (int k = 0; k < 20 && fa < 0; ++k) {
+    b = a;
+    fb = fa;
+    a = 0.5 * a;
+    fa = excess(a);
+  }
+  if (!(fa >= 0 && fb <= 0))
+    throw SolverError(
+        fmt::format("{}: the volume for outlet {} = {:.6g} ppm could not be "
+                    "bracketed between {:.6g} and {:.6g} m3",
+                    spec.id, sp, t.x * 1e6, a, b));
+  const ScalarRoot r = brent_root(excess, a, b, fa, fb, 1e-14, 200);
+  return r.x;
+}
+
+}  // namespace
+
 StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
                     const ConversionBasis& basis, PfrWorkspace& ws, const PfrOptions& options) {
+  if (spec.target_outlet) {
+    // Sized to a purity: rated at the volume found, so that the result is
+    // exactly that of a rated stage of that size.
+    ReactorSpec rated = spec;
+    rated.target_outlet.reset();
+    rated.volume = volume_for_outlet(mech, spec, inlet, basis, ws, options);
+    StageResult res = run_pfr(mech, rated, inlet, basis, ws, options);
+    res.sized = true;
+    return res;
+  }
   const int n = mech.n_species();
   PfrWorkspace::State& st = ws.state();
   CvodeIntegrator& ode =
@@ -444,6 +564,12 @@ Stream adiabatic_limit(const Mechanism& mech, const std::vector<double>& multipl
 }
 
 namespace detail {
+
+double mole_fraction(const double* F, int n, int i) {
+  double total = 0;
+  for (int j = 0; j < n; ++j) total += F[j];
+  return total > 0 ? F[i] / total : 0.0;
+}
 
 ProfilePoint profile_point(double V, const double* y, int n, const ConversionBasis& basis) {
   return ProfilePoint{V, y[n], basis.conversion(y), std::vector<double>(y, y + n)};

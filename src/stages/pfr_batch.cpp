@@ -55,6 +55,9 @@ PfrBatchWorkspace::~PfrBatchWorkspace() = default;
 PfrBatchWorkspace::PfrBatchWorkspace(PfrBatchWorkspace&&) noexcept = default;
 PfrBatchWorkspace& PfrBatchWorkspace::operator=(PfrBatchWorkspace&&) noexcept = default;
 
+// A stage sized to an outlet purity is never batched (it has neither a
+// volume nor a conversion target): its size is polished on whole ratings
+// of the lone stage (pfr.cpp), which a batch cannot share.
 bool pfr_batchable(const Mechanism& mech, const ReactorSpec& spec, const PfrOptions& options) {
   return spec.type == ReactorType::Pfr &&
          (spec.target_conversion || (spec.volume && *spec.volume > 0)) && !options.full_profile &&

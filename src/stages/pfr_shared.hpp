@@ -27,6 +27,9 @@ double size_by_quadrature(const Mechanism& mech, const ReactorSpec& spec, const 
 void add_size_sensitivity(const Mechanism& mech, const std::vector<double>& multipliers,
                           const ConversionBasis& basis, StageResult& res);
 
+// Mole fraction of species i in flows F[0..n).
+double mole_fraction(const double* F, int n, int i);
+
 // A profile point at volume V from the state y = [F, T, ...].
 ProfilePoint profile_point(double V, const double* y, int n, const ConversionBasis& basis);
 

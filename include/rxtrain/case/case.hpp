@@ -19,8 +19,16 @@ class UnitParser;
 
 enum class ReactorType { Pfr, Cstr };
 
-// A reactor stage. Exactly one of volume / catalyst_mass / target is set
-// (catalyst_mass needs bulk_density; volume = catalyst_mass / bulk_density).
+// An outlet-purity target (`target: {outlet: {C2H2: 1 ppm}}`): the stage is
+// sized until `species`' outlet mole fraction falls to `x`.
+struct OutletTarget {
+  int species = -1;  // index into the mechanism's species
+  double x = 0;      // mole fraction, 0 < x < the inlet's
+};
+
+// A reactor stage. Exactly one of volume / catalyst_mass / target_conversion
+// / target_outlet is set (catalyst_mass needs bulk_density; volume =
+// catalyst_mass / bulk_density).
 struct ReactorSpec {
   std::string id;
   ReactorType type = ReactorType::Pfr;
@@ -29,6 +37,8 @@ struct ReactorSpec {
   std::optional<double> catalyst_mass;      // kg
   std::optional<double> bulk_density;       // kg/m3
   std::optional<double> target_conversion;  // overall key conversion to reach
+  std::optional<OutletTarget> target_outlet;
+  bool sized() const { return target_conversion || target_outlet; }
   // Catalyst activity: multiplies every rate in the stage (1: the rates as
   // the kinetics give them; e.g. 0.7 to design for end of run).
   double activity = 1;
@@ -74,6 +84,9 @@ struct Case {
   // as indices into the mechanism's species, each with a molar mass; empty
   // (the default): the whole stream. GHSV is always on the whole gas.
   std::vector<int> space_velocity_basis;
+  // The wanted products (top-level `products`), as indices into the
+  // mechanism's species; each is formed by some reaction.
+  std::vector<int> products;
 
   ConversionBasis conversion_basis() const { return {key, feed.F[key]}; }
 };

@@ -68,6 +68,11 @@ struct TrainResult {
   std::vector<MaxRatePoint> max_rate_locus;
   // One Levenspiel curve per reactor stage (filled with the views above).
   std::vector<LevenspielCurve> levenspiel;
+  // The case's wanted products (ids) and the train's yield and selectivity
+  // of each at its outlet (flowsheet/yields.hpp); empty without products.
+  std::vector<std::string> products;
+  std::vector<double> yield;
+  std::vector<std::optional<double>> selectivity;
 
   // An empty result for c: its title, species, key, feed and loader
   // warnings, ready for its stages.

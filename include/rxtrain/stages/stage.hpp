@@ -146,6 +146,10 @@ struct StageResult {
   // the target (dV/dX * 1e-6 / V); large when the target lies close to
   // what the stage can reach and the size is ill-conditioned.
   std::optional<double> size_sensitivity;
+  // Per wanted product of the case (TrainResult::products), cumulative
+  // from the train's feed (filled by run_train; flowsheet/yields.hpp).
+  std::vector<double> yield;
+  std::vector<std::optional<double>> selectivity;
 };
 
 // Fills space time, space velocity, GHSV, WHSV and LHSV from the stage's

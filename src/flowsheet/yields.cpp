@@ -1,0 +1,52 @@
+#include "rxtrain/flowsheet/yields.hpp"
+
+#include <cmath>
+
+#include "rxtrain/flowsheet/train.hpp"
+
+namespace rxtrain {
+
+namespace {
+
+// |nu_key / nu_P| in the first reaction that forms P (the loader makes
+// sure one does).
+double stoichiometric_ratio(const Mechanism& mech, int key, int p) {
+  for (const auto& rx : mech.reactions())
+    if (rx.nu[p] > 0 && rx.nu[key] != 0) return std::abs(rx.nu[key] / rx.nu[p]);
+  for (const auto& rx : mech.reactions())
+    if (rx.nu[p] > 0) return 1.0 / rx.nu[p];  // the key takes no part: per unit of P formed
+  return 1.0;
+}
+
+}  // namespace
+
+ProductYields product_yields(const Case& c, const Stream& s) {
+  ProductYields y;
+  const double F_key_feed = c.feed.F[c.key];
+  const double converted = F_key_feed - s.F[c.key];
+  for (const int p : c.products) {
+    const double formed = stoichiometric_ratio(c.mechanism, c.key, p) * (s.F[p] - c.feed.F[p]);
+    y.yield.push_back(formed / F_key_feed);
+    // Below round-off of the key's flow nothing is converted and S has no value.
+    if (converted > 1e-12 * F_key_feed)
+      y.selectivity.push_back(formed / converted);
+    else
+      y.selectivity.push_back(std::nullopt);
+  }
+  return y;
+}
+
+void add_product_yields(const Case& c, TrainResult& result) {
+  if (c.products.empty()) return;
+  for (const int p : c.products) result.products.push_back(c.mechanism.species()[p].id);
+  for (auto& st : result.stages) {
+    ProductYields y = product_yields(c, st.outlet);
+    st.yield = std::move(y.yield);
+    st.selectivity = std::move(y.selectivity);
+  }
+  ProductYields y = product_yields(c, result.outlet);
+  result.yield = std::move(y.yield);
+  result.selectivity = std::move(y.selectivity);
+}
+
+}  // namespace rxtrain
