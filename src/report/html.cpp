@@ -39,7 +39,9 @@ std::string stage_table(const TrainResult& r) {
   h += "</table>\n";
   bool sized = false;
   for (const auto& s : r.stages) sized = sized || s.sized;
-  if (sized) h += "<p>* volume found from the stage's target conversion.</p>\n";
+  if (sized)
+    h += "<p>* volume found from the stage's target (its conversion, or a species' outlet mole "
+         "fraction).</p>\n";
   if (const auto note = approach_T_footnote(r); !note.empty())
     h += "<p>" + xml_escape(note) + ".</p>\n";
   return h;

@@ -88,7 +88,10 @@ std::string format_stage_table(const TrainResult& result) {
                     approach_T_cell(r), duty_text(r)});
   }
   out += render_columns(rows, 3);
-  if (any_sized) out += "* volume found from the stage's target conversion\n";
+  if (any_sized)
+    out +=
+        "* volume found from the stage's target (its conversion, or a species' outlet mole "
+        "fraction)\n";
   // Only where a stage gives one: every rate in it is multiplied by it.
   std::vector<std::string> activities;
   for (const auto& r : result.stages)
