@@ -10,19 +10,15 @@
 
 #include "rxtrain/base/error.hpp"
 #include "rxtrain/stages/pfr.hpp"
+#include "test_species.hpp"
 
 using namespace rxtrain;
 
 namespace {
 
+// Equal molar volumes (0.1 kg/mol at 1000 kg/m3): constant volumetric flow.
 Species species(const std::string& id) {
-  Species s;
-  s.id = id;
-  s.name = id;
-  s.mw = 0.1;
-  s.density = 1000;  // equal molar volumes: constant volumetric flow
-  s.thermo = ThermoModel(CpConstant{150}, 0.0, 100.0);
-  return s;
+  return test::make_species(id, 150, 0.0, 100.0, 0.1, 1000);
 }
 
 // Liquid A -> B (or A <=> B with K = `K_eq`), first order in A, with an
