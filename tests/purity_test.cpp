@@ -9,6 +9,7 @@
 #include <vector>
 
 #include "rxtrain/base/error.hpp"
+#include "rxtrain/stages/cstr.hpp"
 #include "rxtrain/stages/pfr.hpp"
 #include "test_species.hpp"
 
@@ -112,4 +113,54 @@ TEST_CASE("a purity not below the stage inlet's is refused at the stage", "[puri
   const Mechanism mech = first_order(0.05);
   SunContext ctx;
   CHECK_THROWS_AS(run_pfr(mech, purity_stage(0.25), kInlet, {0, 2.0}, ctx), InputError);
+}
+
+// A stirred tank, isothermal first order at constant v: the tank's balance
+// F_A0 - F_A = k C_A V gives x_A = x_A0 / (1 + k V / v0) (the first-order
+// CSTR design equation, analytic; A -> B keeps the total flow), so
+// V = (v0 / k) (x_A0 / x - 1). Rating the size found gives x back.
+TEST_CASE("a stirred tank sized to an outlet purity: closed form and round trip", "[purity]") {
+  const double k = 0.05;
+  const Mechanism mech = first_order(k);
+  SunContext ctx;
+  ReactorSpec tank = purity_stage(1e-3);
+  tank.type = ReactorType::Cstr;
+  const StageResult sized = run_cstr(mech, tank, kInlet, {0, 2.0}, ctx);
+  CHECK(sized.sized);
+  REQUIRE(sized.outlet_target);
+  CHECK(*sized.volume == Approx(kV0 / k * (0.2 / 1e-3 - 1)).epsilon(1e-8));
+  ReactorSpec rated = tank;
+  rated.target_outlet.reset();
+  rated.volume = *sized.volume;
+  const StageResult r = run_cstr(mech, rated, kInlet, {0, 2.0}, ctx);
+  CHECK(r.outlet.F[0] / 10.0 == Approx(1e-3).epsilon(1e-8));
+}
+
+// A <=> B in a tank stops short of x_A0 / (1 + K) at any finite size (law of
+// mass action, analytic): a purity below it is refused, quoting the least
+// mole fraction the tank reaches at the largest size searched. There the
+// tank's balance x0 - x = k tau (x - (x0 - x) / K), tau = V / v0 (analytic)
+// gives x = x0 (1 + k tau / K) / (1 + k tau (1 + 1/K)).
+TEST_CASE("a stirred tank refuses a purity past equilibrium", "[purity]") {
+  const double K = 1e4;
+  const Mechanism mech = first_order(0.05, K);
+  SunContext ctx;
+  ReactorSpec tank = purity_stage(1e-6);
+  tank.type = ReactorType::Cstr;
+  try {
+    run_cstr(mech, tank, kInlet, {0, 2.0}, ctx);
+    FAIL("an unreachable purity was sized");
+  } catch (const InfeasibleError& e) {
+    const std::string m = e.what();
+    INFO(m);
+    const auto at = m.find("the least this tank reaches is ");
+    REQUIRE(at != std::string::npos);
+    const double best = std::stod(m.substr(at + 31)) * 1e-6;
+    const auto at_V = m.find("at V = ");
+    REQUIRE(at_V != std::string::npos);
+    const double ktau = 0.05 * std::stod(m.substr(at_V + 7)) / kV0;
+    CHECK(best > 0.2 / (1 + K));
+    CHECK(best == Approx(0.2 * (1 + ktau / K) / (1 + ktau * (1 + 1 / K))).epsilon(1e-5));
+    CHECK(e.where().line == 12);
+  }
 }

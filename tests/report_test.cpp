@@ -149,8 +149,8 @@ TEST_CASE("streams carry mole fractions, mass flows and each stage's mass balanc
   t.molar_mass = {0.050, 0.060};  // B heavier than A: the reaction A -> B does not keep mass
   const auto j = to_json(t);
   const auto& out = j["stages"][0]["outlet"];
-  CHECK(out["mole_fractions"]["A"].get<double>() == Approx(0.4));
-  CHECK(out["mole_fractions"]["B"].get<double>() == Approx(0.6));
+  CHECK(out["x"]["A"].get<double>() == Approx(0.4));
+  CHECK(out["x"]["B"].get<double>() == Approx(0.6));
   CHECK(out["mass_flows"]["B"].get<double>() == Approx(0.036));
   CHECK(out["mass_flow"].get<double>() == Approx(0.056));
   // in 0.050 kg/s, out 0.4*0.050 + 0.6*0.060 = 0.056 kg/s: (0.050 - 0.056) / 0.050 = -0.12
@@ -170,7 +170,15 @@ TEST_CASE("streams carry mole fractions, mass flows and each stage's mass balanc
 TEST_CASE("every number in the run's JSON has its unit in the units object", "[report]") {
   auto t = sample_result();
   t.molar_mass = {0.050, 0.050};
+  t.products = {"B"};  // yields and selectivities are numbers too
+  t.yield = {0.4};
+  t.selectivity = {0.8};
+  for (auto& st : t.stages) {
+    st.yield = {0.4};
+    st.selectivity = {0.8};
+  }
   const auto j = to_json(t);
+  REQUIRE(j["stages"][0]["yield"]["B"] == 0.4);
   const auto& units = j["units"];
   std::vector<std::string> missing;
   std::function<void(const nlohmann::json&, const std::string&)> walk =
@@ -178,8 +186,10 @@ TEST_CASE("every number in the run's JSON has its unit in the units object", "[r
         if (o.is_object()) {
           for (auto it = o.begin(); it != o.end(); ++it)
             // Maps keyed by species id take their unit from the map's name.
-            walk(it.value(),
-                 key == "flows" || key == "mass_flows" || key == "mole_fractions" ? key : it.key());
+            walk(it.value(), key == "flows" || key == "mass_flows" || key == "x" ||
+                                     key == "yield" || key == "selectivity"
+                                 ? key
+                                 : it.key());
         } else if (o.is_array()) {
           for (const auto& v : o) walk(v, key);
         } else if (o.is_number() && !units.contains(key) && key != "steps" && key != "rhs_evals" &&

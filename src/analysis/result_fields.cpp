@@ -9,6 +9,14 @@ namespace {
 using R = ResultScope;
 using V = std::optional<double>;
 
+// Where species i stands among the case's wanted products (-1: not one).
+int product_position(const TrainResult& r, int i) {
+  const auto& id = r.species.at(static_cast<std::size_t>(i));
+  for (std::size_t k = 0; k < r.products.size(); ++k)
+    if (r.products[k] == id) return static_cast<int>(k);
+  return -1;
+}
+
 constexpr std::array kTrain{
     ResultFieldSpec{
         "X", "-", R::Train,
@@ -65,6 +73,23 @@ constexpr std::array kStage{
     ResultFieldSpec{"outlet.flows", "mol/s", R::Flow,
                     [](const TrainResult&, const StageResult* s, int i) -> V {
                       return s->outlet.F.at(static_cast<std::size_t>(i));
+                    }},
+    ResultFieldSpec{"x_out", "-", R::Flow,
+                    [](const TrainResult&, const StageResult* s, int i) -> V {
+                      return mole_fractions(s->outlet).at(static_cast<std::size_t>(i));
+                    }},
+    ResultFieldSpec{"yield", "-", R::Product,
+                    [](const TrainResult& r, const StageResult* s, int i) -> V {
+                      const int k = product_position(r, i);
+                      if (k < 0 || k >= static_cast<int>(s->yield.size())) return std::nullopt;
+                      return s->yield[static_cast<std::size_t>(k)];
+                    }},
+    ResultFieldSpec{"selectivity", "-", R::Product,
+                    [](const TrainResult& r, const StageResult* s, int i) -> V {
+                      const int k = product_position(r, i);
+                      if (k < 0 || k >= static_cast<int>(s->selectivity.size()))
+                        return std::nullopt;
+                      return s->selectivity[static_cast<std::size_t>(k)];
                     }},
     ResultFieldSpec{"equilibrium.X_ad_eq", "-", R::Equilibrium,
                     [](const TrainResult&, const StageResult* s, int) -> V {

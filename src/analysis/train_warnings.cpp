@@ -5,6 +5,7 @@
 #include <algorithm>
 #include <cmath>
 #include <limits>
+#include <variant>
 
 #include "rxtrain/analysis/result_guard.hpp"
 #include "rxtrain/base/error.hpp"
@@ -133,7 +134,14 @@ std::vector<std::string> design_warnings(const Case& c, const TrainResult& resul
   for (const auto& r : result.stages) {
     if (r.kind == StageKind::Exchanger) continue;
 
-    if (r.kind == StageKind::Pfr && r.volume && *r.volume > 0 && !r.profile.empty()) {
+    // A stage sized to an outlet purity needs its last ppm, however little
+    // conversion they are: its tail is the specification, not waste.
+    bool sized_to_purity = false;
+    for (const auto& s : c.train)
+      if (const auto* spec = std::get_if<ReactorSpec>(&s); spec && spec->id == r.id)
+        sized_to_purity = spec->target_outlet.has_value();
+    if (r.kind == StageKind::Pfr && r.volume && *r.volume > 0 && !r.profile.empty() &&
+        !sized_to_purity) {
       const double V = *r.volume;
       const double X_in = c.conversion_basis().conversion(r.inlet);
       const double gain = r.conversion - X_in;

@@ -1064,11 +1064,6 @@ StageSpec Loader::read_stage(const YAML::Node& node, std::size_t index) {
                                             "exactly one",
                                             ctx));
     if (const auto* o = t.find("outlet")) {
-      if (r.type == ReactorType::Cstr)
-        fail(*t.key_of("outlet"),
-             fmt::format("target of {}: an outlet-purity target sizes tubular stages (type: pfr) "
-                         "only; give this stirred tank a volume or a conversion target",
-                         ctx));
       r.target_outlet = read_outlet_target(*o, ctx);
     } else {
       const YAML::Node& x = t.need("conversion",

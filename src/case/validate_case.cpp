@@ -207,9 +207,6 @@ void Checker::stages() const {
            fmt::format("stage {} needs one of volume, catalyst (a mass, with bulk_density) or "
                        "target",
                        r.id));
-    if (r.target_outlet && r.type == ReactorType::Cstr)
-      fail(r.where,
-           fmt::format("stage {}: an outlet-purity target sizes tubular stages only", r.id));
     if (!r.catalyst_mass) continue;
     if (!r.bulk_density)
       fail(r.where, fmt::format("stage {} gives catalyst but is missing \"bulk_density\", which "

@@ -27,7 +27,11 @@ std::string stages_csv(const TrainResult& result) {
       "stage,type,heat,sized,volume_m3,catalyst_mass_kg,space_time_s,ghsv_per_h,whsv_per_h,"
       "lhsv_per_h,duty_W,T_in_K,T_out_K,T_peak_K,T_min_K,P_Pa,conversion,mass_flow_kg_per_s,"
       "mass_balance" +
-      flow_headers(result) + "\n";
+      flow_headers(result);
+  // Per wanted product (none without products:): yield and selectivity,
+  // cumulative from the feed.
+  for (const auto& p : result.products) out += fmt::format(",yield_{0},selectivity_{0}", p);
+  out += "\n";
   for (const auto& r : result.stages) {
     std::string heat;
     if (r.heat) heat = heat_mode_name(*r.heat);
@@ -39,6 +43,10 @@ std::string stages_csv(const TrainResult& result) {
     out += fmt::format(",{},{}", cell(mass_flow(r.outlet, result.molar_mass)),
                        cell(mass_balance_closure(r.inlet, r.outlet, result.molar_mass)));
     for (double f : r.outlet.F) out += fmt::format(",{}", cell(f));
+    for (std::size_t k = 0; k < result.products.size(); ++k) {
+      const bool has = k < r.yield.size() && k < r.selectivity.size();
+      out += fmt::format(",{},{}", has ? cell(r.yield[k]) : "", has ? cell(r.selectivity[k]) : "");
+    }
     out += "\n";
   }
   return out;

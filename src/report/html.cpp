@@ -47,6 +47,31 @@ std::string stage_table(const TrainResult& r) {
   return h;
 }
 
+// Per wanted product: each stage's yield and selectivity, cumulative from
+// the feed (nothing without products).
+std::string product_table(const TrainResult& r) {
+  if (r.products.empty()) return {};
+  std::string h = "<h2 id=\"products\">Wanted products</h2>\n<table>\n<tr><th>stage</th>";
+  for (const auto& p : r.products)
+    h += fmt::format("<th>yield of {0}</th><th>selectivity to {0}</th>", xml_escape(p));
+  h += "</tr>\n";
+  for (const auto& s : r.stages) {
+    h += "<tr>" + cell(s.id, false);
+    for (std::size_t k = 0; k < r.products.size(); ++k) {
+      h += cell(k < s.yield.size() ? fixed_text(s.yield[k], 4) : "-", true);
+      const bool has = k < s.selectivity.size() && s.selectivity[k];
+      h += cell(has ? fixed_text(*s.selectivity[k], 4) : "-", true);
+    }
+    h += "</tr>\n";
+  }
+  return h + fmt::format(
+                 "</table>\n<p>Cumulative from the feed, like X: yield Y = r (F_P − F_P,feed) / "
+                 "F_{0},feed and selectivity S = r (F_P − F_P,feed) / (F_{0},feed − F_{0}), r = "
+                 "|ν_{0} / ν_P| in the first reaction forming P, so that Y = S · X; "
+                 "“-” where no {0} has been converted.</p>\n",
+                 xml_escape(r.key));
+}
+
 std::string space_velocity_table(const TrainResult& r) {
   std::string rows;
   for (const auto& s : r.stages)
@@ -123,7 +148,10 @@ std::string run_report_html(const Case& c, const TrainResult& r, const std::vect
                    celsius_text(r.outlet.T), fixed_text(r.outlet.T, 2), bar_text(r.outlet.P),
                    xml_escape(r.key), conversion_text(r.conversion));
   for (const auto& s : r.stages)
+    if (s.outlet_target) h += "<p>" + xml_escape(purity_sentence(s, r.species)) + ".</p>\n";
+  for (const auto& s : r.stages)
     if (s.reach && s.heat) h += "<p>" + xml_escape(reach_sentence(s, r.species)) + ".</p>\n";
+  h += product_table(r);
   h += space_velocity_table(r);
   h += stream_tables(r);
   h += html::figures_section(figures);

@@ -7,6 +7,7 @@
 #include <ctime>
 #include <fstream>
 #include <iterator>
+#include <variant>
 
 #include "rxtrain/base/caution.hpp"
 #include "rxtrain/report/atomic_file.hpp"
@@ -219,6 +220,25 @@ std::string feed_section(const Case& c) {
                                      fixed_text(*c.target_conversion, 4))
                        : std::string("none (each stage as the case gives it)"),
                    limit(c.limits.T_max), limit(c.limits.T_in_min));
+  // What each sized stage is sized to, and the products the case wants.
+  std::string targets;
+  for (const auto& s : c.train) {
+    const auto* r = std::get_if<ReactorSpec>(&s);
+    if (!r || !r->sized()) continue;
+    targets += targets.empty() ? "" : "; ";
+    targets +=
+        r->target_outlet
+            ? fmt::format("{} to an outlet {} of {}", r->id, species[r->target_outlet->species].id,
+                          purity_text(r->target_outlet->x))
+            : fmt::format("{} to a conversion of {} of {}", r->id, species[c.key].id,
+                          fixed_text(*r->target_conversion, 4));
+  }
+  if (!targets.empty()) h += "<p>Stages sized: " + xml_escape(targets) + ".</p>\n";
+  if (!c.products.empty()) {
+    std::string names;
+    for (const int p : c.products) names += (names.empty() ? "" : ", ") + species[p].id;
+    h += "<p>Wanted products: " + xml_escape(names) + ".</p>\n";
+  }
   return h;
 }
 

@@ -30,7 +30,7 @@ json stream(const std::vector<std::string>& ids, const std::vector<double>& mola
           {"P", json_number(s.P)},
           {"flows", flows(ids, s.F)},
           {"total_flow", json_number(s.total_flow())},
-          {"mole_fractions", flows(ids, mole_fractions(s))},
+          {"x", flows(ids, mole_fractions(s))},
           {"mass_flows", m ? flows(ids, *m) : json(nullptr)},
           {"mass_flow", total ? json_number(*total) : json(nullptr)}};
 }
@@ -61,7 +61,7 @@ json units_json() {
     u[k] = "K (a difference)";
   for (const char* k : {"volume", "V", "V_at_X_max"}) u[k] = "m3";
   for (const char* k : {"conversion", "X", "X_eq", "X_eq_out", "X_in", "X_out", "X_ad_eq", "X_max",
-                        "X_end", "approach_X", "mole_fractions", "activity"})
+                        "X_end", "approach_X", "x", "activity", "yield", "selectivity"})
     u[k] = "1";
   return u;
 }
@@ -81,13 +81,34 @@ json profile(const std::vector<std::string>& ids, const StageResult& r) {
   return {{"V", V}, {"T", T}, {"X", X}, {"flows", flows_by_id}};
 }
 
+// Per wanted product: its yield and its selectivity (null where nothing of
+// the key has been converted); both null for a case without products.
+json product_values(const std::vector<std::string>& products, const std::vector<double>& values) {
+  if (products.empty()) return nullptr;
+  return flows(products, values);
+}
+json product_values(const std::vector<std::string>& products,
+                    const std::vector<std::optional<double>>& values) {
+  if (products.empty()) return nullptr;
+  json o = json::object();
+  for (std::size_t k = 0; k < products.size() && k < values.size(); ++k)
+    o[products[k]] = values[k] ? json_number(*values[k]) : json(nullptr);
+  return o;
+}
+
 json stage(const std::vector<std::string>& ids, const std::vector<double>& molar_mass,
-           const StageResult& r) {
+           const std::vector<std::string>& products, const StageResult& r) {
   json s;
   s["id"] = r.id;
   s["type"] = stage_kind_name(r.kind);
   s["heat"] = r.heat ? json(heat_mode_name(*r.heat)) : json(nullptr);
   s["sized"] = r.sized;
+  // The outlet purity the stage was sized to (null: none).
+  s["target_outlet"] =
+      r.outlet_target
+          ? json{{"species", ids.at(static_cast<std::size_t>(r.outlet_target->species))},
+                 {"x", json_number(r.outlet_target->x)}}
+          : json(nullptr);
   s["volume"] = json_number(r.volume);
   s["catalyst_mass"] = json_number(r.catalyst_mass);
   s["bulk_density"] = json_number(r.bulk_density);
@@ -104,6 +125,8 @@ json stage(const std::vector<std::string>& ids, const std::vector<double>& molar
   s["T_peak"] = json_number(r.T_max);  // the stage's hottest point; T_max is the limit
   s["T_min"] = json_number(r.T_min);
   s["conversion"] = json_number(r.conversion);
+  s["yield"] = product_values(products, r.yield);
+  s["selectivity"] = product_values(products, r.selectivity);
   s["inlet"] = stream(ids, molar_mass, r.inlet);
   s["outlet"] = stream(ids, molar_mass, r.outlet);
   const auto closure = mass_balance_closure(r.inlet, r.outlet, molar_mass);
@@ -201,9 +224,12 @@ nlohmann::json to_json(const TrainResult& result) {
   j["units"] = units_json();
   j["feed"] = stream(result.species, result.molar_mass, result.feed);
   j["conversion"] = json_number(result.conversion);
+  j["products"] = result.products;
+  j["yield"] = product_values(result.products, result.yield);
+  j["selectivity"] = product_values(result.products, result.selectivity);
   json stages = json::array();
   for (const auto& r : result.stages) {
-    stages.push_back(stage(result.species, result.molar_mass, r));
+    stages.push_back(stage(result.species, result.molar_mass, result.products, r));
     stages.back()["limit"] = limit_json(result.limit_check, r);
   }
   j["stages"] = stages;

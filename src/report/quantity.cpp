@@ -52,6 +52,11 @@ Quantity column_quantity(const std::string& name, const std::string& si_unit) {
     return {upper + of, "h⁻¹"};
   }
   if (field == "over_limit") return {"Temperature past the limit" + in, "K"};
+  // A mole fraction read as a purity is quoted in ppm (1 ppm would be
+  // 0.0000 as a fraction).
+  if (field.rfind("x_out.", 0) == 0) return {"Outlet " + field.substr(6) + of, "ppm", 1e6};
+  if (field.rfind("yield.", 0) == 0) return {"Yield of " + field.substr(6) + of, "–"};
+  if (field.rfind("selectivity.", 0) == 0) return {"Selectivity to " + field.substr(12) + of, "–"};
   if (field == "equilibrium.X_ad_eq") return {"Adiabatic equilibrium conversion" + of, "–"};
   if (field == "equilibrium.approach_X") return {"X_eq(T_out) − X" + of, "–"};
   // Anything else: its name, and its SI unit (absolute temperatures in °C).

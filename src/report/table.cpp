@@ -58,6 +58,31 @@ std::string stream_columns(const TrainResult& result) {
   return out;
 }
 
+// Per wanted product: each stage's yield and selectivity, cumulative from the
+// feed like X (empty without products).
+std::string product_columns(const TrainResult& result) {
+  if (result.products.empty()) return {};
+  std::vector<std::vector<std::string>> rows;
+  rows.push_back({"stage"});
+  for (const auto& p : result.products) {
+    rows.front().push_back("yield " + p);
+    rows.front().push_back("selectivity " + p);
+  }
+  for (const auto& r : result.stages) {
+    rows.push_back({r.id});
+    for (std::size_t k = 0; k < result.products.size(); ++k) {
+      rows.back().push_back(k < r.yield.size() ? fixed_text(r.yield[k], 4) : "-");
+      const bool has_s = k < r.selectivity.size() && r.selectivity[k];
+      rows.back().push_back(has_s ? fixed_text(*r.selectivity[k], 4) : "-");
+    }
+  }
+  return fmt::format(
+             "\nwanted products, cumulative from the feed (yield Y = S · X; selectivity on the "
+             "{} converted, \"-\" where none is):\n",
+             result.key) +
+         render_columns(rows, 1);
+}
+
 }  // namespace
 
 std::string format_stage_table(const TrainResult& result) {
@@ -110,6 +135,8 @@ std::string format_stage_table(const TrainResult& result) {
     if (const auto note = approach_T_footnote(result); !note.empty()) out += note + "\n";
   }
   for (const auto& r : result.stages)
+    if (r.outlet_target) out += "  " + purity_sentence(r, result.species) + "\n";
+  for (const auto& r : result.stages)
     if (r.reach && r.heat) out += "  " + reach_sentence(r, result.species) + "\n";
 
   // Space velocities only where they apply (GHSV at 0 °C, 1 atm).
@@ -136,6 +163,8 @@ std::string format_stage_table(const TrainResult& result) {
         one_basis ? "on " + bases.front() : std::string("on the flows named per stage"));
     out += render_columns(sv, 1);
   }
+
+  out += product_columns(result);
 
   out += fmt::format("\noutlet: {} °C, {} bar, overall conversion of {} = {}\n",
                      celsius_text(result.outlet.T), bar_text(result.outlet.P), result.key,

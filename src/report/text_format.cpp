@@ -52,6 +52,18 @@ std::vector<std::string> fraction_column(const std::vector<double>& values) {
   return out;
 }
 
+std::string purity_text(double x) {
+  if (!std::isfinite(x)) return "-";
+  return x < 1e-3 ? fmt::format("{:.6g} ppm", x * 1e6) : fmt::format("{:.6g} %", x * 100);
+}
+
+std::string purity_sentence(const StageResult& r, const std::vector<std::string>& species) {
+  if (!r.outlet_target) return {};
+  const auto i = static_cast<std::size_t>(r.outlet_target->species);
+  return fmt::format("{}: sized to an outlet {} of {}; it leaves at {}", r.id, species.at(i),
+                     purity_text(r.outlet_target->x), purity_text(mole_fractions(r.outlet)[i]));
+}
+
 std::string closure_text(double relative) {
   if (!std::isfinite(relative)) return "-";
   // Below 1e-12 it is the round-off of the sums, whose digits vary with

@@ -15,6 +15,7 @@
 #include "rxtrain/base/units.hpp"
 #include "rxtrain/models/energy_balance.hpp"
 #include "rxtrain/models/tank_balances.hpp"
+#include "rxtrain/solvers/scalar_root.hpp"
 #include "rxtrain/stages/exchanger.hpp"
 
 namespace rxtrain {
@@ -634,6 +635,60 @@ struct Tank {
     V = o.V;
   }
 
+  // An outlet-purity target: follow the feed branch in volume until the
+  // species' mole fraction falls to the target, then Brent on ln V with
+  // tanks rated from the branch's last state before the crossing.
+  void size_to_purity(const OutletTarget& t) {
+    const std::string& sp = mech.species()[t.species].id;
+    auto fraction = [&](const State& st) {
+      double total = 0;
+      for (double f : st.F) total += std::max(f, 0.0);
+      return total > 0 ? std::max(st.F[t.species], 0.0) / total : 0.0;
+    };
+    const double x_in = fraction(State{inlet.F, inlet.T});
+    if (!(t.x < x_in))
+      throw InputError(spec.where,
+                       fmt::format("stage {}: outlet target {} = {:.6g} ppm is not below its "
+                                   "value at the stage inlet ({:.6g} ppm)",
+                                   spec.id, sp, t.x * 1e6, x_in * 1e6));
+    const double v0 = mech.volumetric_flow(inlet.T, inlet.P, inlet.F.data());
+    const double V_end = options.pfr.max_space_time * v0;
+    auto reached = [&](const State& st, double) { return fraction(st) <= t.x; };
+    const std::vector<State> fallbacks = starts_from({}, State{inlet.F, inlet.T}, inlet, limit);
+    March m = feed_branch(solver, inlet, V_end * std::pow(10.0, -kSizingDecades), V_end,
+                          options.continuation_steps, fallbacks, reached);
+    if (!m.ok)
+      throw SolverError(fmt::format(
+          "{}: sizing to an outlet purity by continuation in volume failed ({}); try: a looser "
+          "purity, a different feed temperature, or give a volume to rate",
+          spec.id, m.message));
+    if (!reached(m.state, m.V))
+      throw InfeasibleError(
+          spec.where,
+          fmt::format("stage {}: outlet target {} = {:.6g} ppm is out of reach; the least this "
+                      "tank reaches is {:.6g} ppm (at V = {:.6g} m3, the space-time bound)",
+                      spec.id, sp, t.x * 1e6, fraction(m.state) * 1e6, m.V));
+    const double V_lo = m.V_previous > 0 ? m.V_previous : m.V * 1e-3;
+    const State from = m.V_previous > 0 ? m.previous : State{inlet.F, inlet.T};
+    Outcome last;
+    auto excess = [&](double ln_V) {
+      last = solver.rate(from, std::exp(ln_V));
+      if (!last.converged)
+        throw SolverError(
+            fmt::format("{}: Newton did not converge when sizing for outlet {} = "
+                        "{:.6g} ppm (at V = {:.6g} m3); try: rate a given volume",
+                        spec.id, sp, t.x * 1e6, std::exp(ln_V)));
+      return fraction(last.state) - t.x;
+    };
+    const double a = std::log(V_lo), b = std::log(m.V);
+    const ScalarRoot r = brent_root(excess, a, b, excess(a), excess(b), 1e-14, kMaxBisections);
+    excess(r.x);  // the state at the root found
+    out = last.state;
+    V = last.V;
+    states.push_back(out);
+    search_other_states();
+  }
+
   void search_other_states() {
     // The target fixes the state; the tank of that volume may still have
     // other steady states, and start-up from the feed may settle in one of
@@ -704,9 +759,10 @@ struct Tank {
   }
 
   StageResult result() const {
-    const bool sizing = spec.target_conversion.has_value();
+    const bool sizing = spec.sized();
     const double X_in = basis.conversion(inlet);
     StageResult res;
+    res.outlet_target = spec.target_outlet;
     res.id = spec.id;
     res.kind = StageKind::Cstr;
     res.heat = spec.heat;
@@ -733,10 +789,12 @@ struct Tank {
       res.steady_states.push_back(std::move(ss));
     }
     res.stats.newton_iters = solver.iterations() + extra.iterations;
-    res.stats.message = fmt::format(
-        "{}Newton: {} solves, {} iterations; {} steady state(s)",
-        sizing && mech.n_reactions() == 1 ? "sized in closed form from the stoichiometry; " : "",
-        solver.solves() + extra.solves, res.stats.newton_iters, states.size());
+    res.stats.message =
+        fmt::format("{}Newton: {} solves, {} iterations; {} steady state(s)",
+                    spec.target_conversion && mech.n_reactions() == 1
+                        ? "sized in closed form from the stoichiometry; "
+                        : "",
+                    solver.solves() + extra.solves, res.stats.newton_iters, states.size());
     res.warnings = warnings;
     add_space_velocities(mech, res);
     return res;
@@ -748,12 +806,10 @@ struct Tank {
 StageResult run_cstr(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
                      const ConversionBasis& basis, CstrWorkspace& workspace,
                      const CstrOptions& options) {
-  if (spec.target_outlet)
-    throw InputError(spec.where, fmt::format("stage {}: an outlet-purity target sizes tubular "
-                                             "stages only",
-                                             spec.id));
   Tank t(mech, spec, inlet, basis, workspace, options);
-  if (spec.target_conversion)
+  if (spec.target_outlet)
+    t.size_to_purity(*spec.target_outlet);
+  else if (spec.target_conversion)
     t.size(*spec.target_conversion);
   else
     t.rate();

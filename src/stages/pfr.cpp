@@ -389,6 +389,7 @@ StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream
     rated.volume = volume_for_outlet(mech, spec, inlet, basis, ws, options);
     StageResult res = run_pfr(mech, rated, inlet, basis, ws, options);
     res.sized = true;
+    res.outlet_target = spec.target_outlet;
     return res;
   }
   const int n = mech.n_species();

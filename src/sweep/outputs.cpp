@@ -2,6 +2,7 @@
 
 #include <fmt/format.h>
 
+#include <algorithm>
 #include <cmath>
 #include <variant>
 
@@ -27,6 +28,10 @@ std::vector<std::string> all_names(const Case& c) {
       for (const auto& f : stage_result_fields())
         if (f.scope == ResultScope::Flow)
           names.push_back(fmt::format("{}.{}.{}", id, f.name, sp.id));
+    for (const int p : c.products)
+      for (const auto& f : stage_result_fields())
+        if (f.scope == ResultScope::Product)
+          names.push_back(fmt::format("{}.{}.{}", id, f.name, c.mechanism.species()[p].id));
     for (const auto& f : stage_result_fields())
       if (f.scope == ResultScope::Equilibrium) names.push_back(id + "." + std::string(f.name));
   }
@@ -54,15 +59,21 @@ OutputColumn column(const std::string& name, const Case& c) {
                                  "T_max names only the catalyst's limit)",
                                  name, id));
   for (const auto& f : stage_result_fields()) {
-    if (f.scope != ResultScope::Flow) {
+    if (f.scope != ResultScope::Flow && f.scope != ResultScope::Product) {
       if (field == f.name) return {name, stage, field, -1, &f};
       continue;
     }
     const std::string pre = std::string(f.name) + ".";
-    if (field.rfind(pre, 0) == 0) {
-      const int i = c.mechanism.index_of(field.substr(pre.size()));
-      if (i >= 0) return {name, stage, std::string(f.name), i, &f};
-    }
+    if (field.rfind(pre, 0) != 0) continue;
+    const int i = c.mechanism.index_of(field.substr(pre.size()));
+    if (i < 0) continue;
+    if (f.scope == ResultScope::Product &&
+        std::find(c.products.begin(), c.products.end(), i) == c.products.end())
+      throw InputError({"--output", 0, 0},
+                       fmt::format("\"{}\": {} is not one of the case's wanted products; "
+                                   "expected a species the case lists under products:",
+                                   name, field.substr(pre.size())));
+    return {name, stage, std::string(f.name), i, &f};
   }
   return fail();
 }
@@ -81,11 +92,22 @@ OutputSpec OutputSpec::defaults(const Case& c) {
       if (c.limits.T_max || c.limits.T_in_min) o.columns_.push_back(column(id + ".over_limit", c));
     }
     o.columns_.push_back(column(id + ".outlet.T", c));
-    if (const auto* r = std::get_if<ReactorSpec>(&s); r && r->target_conversion) {
+    if (const auto* r = std::get_if<ReactorSpec>(&s); r && r->sized()) {
       o.columns_.push_back(column(id + ".volume", c));
       if (r->bulk_density) o.columns_.push_back(column(id + ".catalyst_mass", c));
+      if (r->target_outlet)
+        o.columns_.push_back(
+            column(id + ".x_out." + c.mechanism.species()[r->target_outlet->species].id, c));
     }
   }
+  // The wanted products' yields at the last reactor (cumulative from the
+  // feed, so the train's).
+  const std::string* last = nullptr;
+  for (const auto& s : c.train)
+    if (std::holds_alternative<ReactorSpec>(s)) last = &stage_id(s);
+  if (last)
+    for (const int p : c.products)
+      o.columns_.push_back(column(*last + ".yield." + c.mechanism.species()[p].id, c));
   return o;
 }
 
@@ -140,7 +162,7 @@ std::optional<double> OutputSpec::extract(std::size_t i, const TrainResult& r) c
 std::vector<std::string> design_margin_columns(const Case& c) {
   std::vector<std::string> out;
   for (const auto& s : c.train)
-    if (const auto* r = std::get_if<ReactorSpec>(&s); r && r->target_conversion)
+    if (const auto* r = std::get_if<ReactorSpec>(&s); r && r->sized())
       out.push_back(r->id + (r->bulk_density ? ".catalyst_mass" : ".volume"));
   return out;
 }

@@ -9,8 +9,10 @@
 // point; T_max names only the catalyst's limit), T_min, conversion,
 // inlet.T, inlet.P, outlet.T, outlet.P, over_limit (K by which the stage
 // passes the case's limits, 0 within; none for an exchanger or a case
-// without limits), inlet.flows.SP, outlet.flows.SP,
-// equilibrium.X_ad_eq | T_ad_eq | X_eq_out | approach_X | approach_T.
+// without limits), inlet.flows.SP, outlet.flows.SP, x_out.SP (outlet mole
+// fraction), yield.P and selectivity.P (P a wanted product, cumulative from
+// the feed; flowsheet/yields.hpp), equilibrium.X_ad_eq | T_ad_eq | X_eq_out | approach_X |
+// approach_T.
 #pragma once
 
 #include <optional>
@@ -26,6 +28,7 @@ enum class ResultScope {
   Stage,        // one number of a stage
   Flow,         // a species' flow at a stage's inlet or outlet (name + ".SP")
   Equilibrium,  // the stage's equilibrium record (needs the equilibrium views)
+  Product,      // a wanted product's yield or selectivity (name + ".P", P in `products:`)
 };
 
 struct ResultFieldSpec {

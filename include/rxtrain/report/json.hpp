@@ -1,9 +1,11 @@
 // The whole result of a train run as JSON, SI units only. Layout:
 //   {"title", "species": [ids], "key", "feed": STREAM, "conversion",
+//    "products": [ids], "yield": {P: Y} | null, "selectivity": {P: S | null} | null,
 //    "stages": [{"id", "type", "heat", "sized", "volume", "catalyst_mass",
 //                "bulk_density", "space_time", "space_velocity", "ghsv", "whsv",
 //                "lhsv", "space_velocity_basis": [ids], "duty", "T_max", "T_min",
-//                "conversion", "inlet": STREAM,
+//                "conversion", "yield", "selectivity" (as the train's, cumulative
+//                from the feed), "inlet": STREAM,
 //                "outlet": STREAM, "steady_states": [...], "profile": {...},
 //                "solver": {...}, "warnings": [...],
 //                "equilibrium": {"X_ad_eq", "T_ad_eq", "X_eq_out", "approach_X",
@@ -16,7 +18,9 @@
 //    "levenspiel": [{"stage", "basis": "volume" | "catalyst", "rectangle",
 //                    "X_in", "X_out", "area", "points": [{"X",
 //                    "inverse_rate"}, ...]}], "warnings": [...], "caution"}
-// STREAM = {"T", "P", "flows": {id: mol/s}}. LIMIT (limit_check.hpp) =
+// STREAM = {"T", "P", "flows": {id: mol/s}, "total_flow", "x": {id: mole
+// fraction}, "mass_flows": {id: kg/s} | null, "mass_flow" | null}.
+// LIMIT (limit_check.hpp) =
 //   {"T_max", "T_in_min", "margin", "over_limit": K beyond the limits (0
 //    within), "findings": [{"kind": "over" | "under" | "near", "bound":
 //    "T_max" | "T_in_min", "limit", "T", "by", "at_inlet", "V",

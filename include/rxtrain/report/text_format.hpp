@@ -38,6 +38,14 @@ std::vector<std::string> fraction_column(const std::vector<double>& values);
 // A relative mass-balance closure, (in - out) / in: "-1.2e-01", or
 // "< 1e-12" where it is round-off.
 std::string closure_text(double relative);
+
+// A mole fraction as a purity is quoted: in ppm below 0.1 %, else in %
+// ("1 ppm", "6 %"), six significant digits.
+std::string purity_text(double x);
+
+// "R1: sized to an outlet C2H2 of 1 ppm; it leaves at 1 ppm" for a stage
+// sized to an outlet purity; empty for any other.
+std::string purity_sentence(const StageResult& r, const std::vector<std::string>& species);
 // The end of every terminal report: "warnings:" and one "  - " line each
 // (nothing when there are none), then the caution.
 std::string warnings_and_caution(const std::vector<std::string>& warnings);

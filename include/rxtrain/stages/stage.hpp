@@ -114,6 +114,9 @@ struct StageResult {
   StageKind kind = StageKind::Pfr;
   std::optional<HeatMode> heat;  // reactors only
   bool sized = false;            // volume found from a target
+  // Sized to an outlet purity: the target it was sized to (the outlet
+  // stream says what it reached).
+  std::optional<OutletTarget> outlet_target;
   Stream inlet;
   Stream outlet;
   std::optional<double> volume;          // m3

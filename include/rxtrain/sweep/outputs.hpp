@@ -30,8 +30,10 @@ struct OutputColumn {
 class OutputSpec {
  public:
   // The default columns: X, T_out, every reactor's T_max (and over_limit
-  // when the case gives limits), every stage's outlet.T, and every sized
-  // reactor's volume (and catalyst_mass where it has a bulk density).
+  // when the case gives limits), every stage's outlet.T, every sized
+  // reactor's volume (and catalyst_mass where it has a bulk density; and
+  // the outlet mole fraction it was sized to, for a purity target), and
+  // the yield of each wanted product at the last reactor.
   static OutputSpec defaults(const Case& c);
   // A comma-separated list. Throws InputError located at "--output" for an
   // unknown stage or field, with the nearest valid name.
