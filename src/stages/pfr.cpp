@@ -23,6 +23,35 @@ using detail::state_scale;
 
 namespace {
 
+// The pellet binding of a stage with effectiveness factors: rates per m3
+// of pellet = activity x pellet density x the per-catalyst rate. Empty
+// without a pellet or without D_eff (a pellet for pressure drop only).
+std::optional<detail::PelletBinding> pellet_binding(const Mechanism& mech, const ReactorSpec& spec,
+                                                    double rtol) {
+  if (!spec.pellet || spec.pellet->D_eff.empty()) return std::nullopt;
+  const PelletSpec& ps = *spec.pellet;
+  detail::PelletBinding b;
+  b.spec = &ps;
+  // The grid tolerance follows the ODE's, floored where the grid would
+  // grow past what a right-hand side can afford (PelletSolveOptions).
+  b.rtol = std::max(rtol, 1e-7);
+  for (const auto& rx : mech.reactions()) {
+    if (rx.rate.basis != RateBasis::Catalyst)
+      throw InputError(ps.where, fmt::format("stage {}: effectiveness factors need per-catalyst "
+                                             "rates (per: catalyst); reaction {} is per volume",
+                                             spec.id, rx.id));
+    if (!ps.density)
+      throw InputError(ps.where,
+                       fmt::format("stage {}: the pellet needs a density (e.g. density: 1400 "
+                                   "kg/m3) to turn the per-catalyst rate of {} into a rate per "
+                                   "pellet volume; this stage gives no void fraction to infer it "
+                                   "from the bulk density",
+                                   spec.id, rx.id));
+    b.multipliers.push_back(spec.activity * *ps.density);
+  }
+  return b;
+}
+
 // Relative volume change per 1e-6 of conversion above which a sized
 // stage's size is called ill-conditioned: about where a first-order bed
 // stands 1e-4 from complete conversion (common practice, no source).
@@ -65,10 +94,12 @@ struct PfrWorkspace::State {
   std::vector<double> dky, y_turn;  // interpolated dT/dV (dX/dV) search (see run_pfr)
   // Binds the system to a stage and (re)starts the integrator at its inlet,
   // re-creating the integrator only when it cannot be reused.
+  std::optional<detail::PelletBinding> pellet;  // of the current stage
   CvodeIntegrator& start(const SunContext& ctx, const Mechanism& mech,
                          const std::vector<double>& multipliers, HeatMode heat, const Stream& inlet,
-                         const PfrOptions& options) {
-    sys.reset(mech, multipliers, heat, inlet.P);
+                         const PfrOptions& options, const ReactorSpec* spec = nullptr) {
+    pellet = spec ? pellet_binding(mech, *spec, options.cvode.rtol) : std::nullopt;
+    sys.reset(mech, multipliers, heat, inlet.P, pellet ? &*pellet : nullptr);
     const bool sparse = uses_sparse_jacobian(options, mech.n_species());
     state_scale(mech, inlet, scale);
     bool reuse = ode && ode->size() == sys.size() && ode->sparse() == sparse &&
@@ -395,7 +426,7 @@ StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream
   const int n = mech.n_species();
   PfrWorkspace::State& st = ws.state();
   CvodeIntegrator& ode =
-      st.start(ws.context(), mech, rate_multipliers(mech, spec), spec.heat, inlet, options);
+      st.start(ws.context(), mech, rate_multipliers(mech, spec), spec.heat, inlet, options, &spec);
 
   StageResult res;  // its profile, while the stage runs (see the end)
   const bool sizing = spec.target_conversion.has_value();
@@ -422,7 +453,9 @@ StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream
                           out_of_reach_text(spec, *spec.target_conversion, reach, mech));
   }
 
-  if (w.reached && mech.n_reactions() == 1) {
+  // The quadrature reads the intrinsic rate: with effectiveness factors
+  // the volume integration's root stands.
+  if (w.reached && mech.n_reactions() == 1 && !st.pellet) {
     // One reaction: the volume by quadrature along the exact path (see
     // size_by_quadrature); the volume integration above told that the target is
     // met before the stop temperature.
@@ -443,7 +476,12 @@ StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream
   if (w.stopped)
     res.stats.message = fmt::format("stopped at the stop temperature {} at V = {:.6g} m3",
                                     temperature_words(*T_stop), V);
-  if (w.reached) detail::add_size_sensitivity(mech, rate_multipliers(mech, spec), basis, res);
+  if (w.reached) {
+    std::vector<double> beta = rate_multipliers(mech, spec);
+    if (st.pellet && st.sys.update_eta(st.y[n], st.y.data()) == 0)
+      for (std::size_t j = 0; j < beta.size(); ++j) beta[j] *= st.sys.eta()[j];
+    detail::add_size_sensitivity(mech, beta, basis, res);
+  }
   return res;
 }
 
@@ -452,7 +490,7 @@ StageReach pfr_reach(const Mechanism& mech, const ReactorSpec& spec, const Strea
   const int n = mech.n_species();
   PfrWorkspace::State& st = ws.state();
   CvodeIntegrator& ode =
-      st.start(ws.context(), mech, rate_multipliers(mech, spec), spec.heat, inlet, options);
+      st.start(ws.context(), mech, rate_multipliers(mech, spec), spec.heat, inlet, options, &spec);
   PfrSystem& sys = st.sys;
   const double V_end =
       options.max_space_time * mech.volumetric_flow(inlet.T, inlet.P, inlet.F.data());

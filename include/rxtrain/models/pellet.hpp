@@ -23,9 +23,9 @@
 #include <optional>
 #include <vector>
 
-namespace rxtrain {
+#include "rxtrain/kinetics/pellet_spec.hpp"
 
-enum class PelletShape { Slab, Cylinder, Sphere };
+namespace rxtrain {
 
 // V_p/S_p of a pellet. `size`: sphere or cylinder diameter, slab thickness
 // (both faces open, so V_p/S_p = size/2); `length`: a finite cylinder's
