@@ -71,15 +71,16 @@ double thiele_effectiveness(const PelletKinetics& kin, const PelletTransport& tr
 
 // What the 1-D pellet solve does and how finely.
 struct PelletSolveOptions {
-  // Grid nodes (centre to surface) of the first solve: enough for a mild
-  // modulus; the grid doubles while eta moves by more than `rtol`.
+  // Grid nodes (centre to surface) of the coarsest grid; each call solves
+  // it and its doubles until the estimates converge (`rtol`).
   int nodes = 16;
   // Largest grid; beyond it the solve throws (a modulus so large that the
   // reaction lives in a film thinner than the grid resolves).
   int max_nodes = 4096;
-  // Relative change of every eta_j between a grid and its double (after
-  // Richardson extrapolation of the second-order scheme) that counts as
-  // converged. Tubular stages pass their ODE tolerance.
+  // Relative change of every eta_j between two successive Richardson
+  // estimates (each from a grid and its double; the scheme is second
+  // order) that counts as converged. Tubular stages pass their ODE
+  // tolerance.
   double rtol = 1e-6;
   // Newton on the discretized pellet: relative step size that ends it.
   double newton_tol = 1e-12;
@@ -91,8 +92,8 @@ struct PelletSolveOptions {
 // c = c_s at the surface and a symmetric centre (a = 0, 1, 2 for slab,
 // cylinder, sphere), by second-order finite volumes on a grid clustered
 // toward the surface, Newton on the block-tridiagonal system, and grid
-// doubling with Richardson extrapolation until eta converges. Keeps its
-// last profile to warm-start the next call (a tubular stage calls it at
+// doubling with Richardson extrapolation until eta converges. Keeps each
+// grid's last profile to warm-start the next call (a tubular stage calls it at
 // every right-hand side). Not thread-safe: one per integration.
 class PelletSolver {
  public:
