@@ -33,7 +33,7 @@ TrainResult sample_result() {
   r.T_max = 430.0;
   r.T_min = 400.0;
   r.conversion = 0.6;
-  r.profile = {{0.0, 400.0, 0.0, {1.0, 0.0}}, {2.0, 430.0, 0.6, {0.4, 0.6}}};
+  r.profile = {{0.0, 400.0, 0.0, {1.0, 0.0}, {}}, {2.0, 430.0, 0.6, {0.4, 0.6}, {}}};
   StageResult e;
   e.id = "E1";
   e.kind = StageKind::Exchanger;

@@ -1087,16 +1087,31 @@ StageSpec Loader::read_stage(const YAML::Node& node, std::size_t index) {
                        "diffusivity the effectiveness factors need (e.g. pellet: {{shape: sphere, "
                        "size: 3 mm, D_eff: 2.0e-6 m2/s, density: 1400 kg/m3}})",
                        ctx));
-    r.pellet->effectiveness = choice(*n, "effectiveness of " + ctx, {"thiele", "pellet"}) ==
-                                      "thiele"
-                                  ? EffectivenessModel::Thiele
-                                  : EffectivenessModel::Pellet;
+    r.pellet->effectiveness =
+        choice(*n, "effectiveness of " + ctx, {"thiele", "pellet"}) == "thiele"
+            ? EffectivenessModel::Thiele
+            : EffectivenessModel::Pellet;
   }
   if (r.pellet && !r.pellet->D_eff.empty() && r.type != ReactorType::Pfr)
     fail(*f.key_of("pellet"),
          fmt::format("{}: effectiveness factors (pellet D_eff) are computed for tubular stages "
                      "(type: pfr) only",
                      ctx));
+  // Effectiveness factors turn each per-catalyst rate into a rate per
+  // pellet volume: that needs per-catalyst rates and the pellet's density
+  // (the same rules stages/pfr.cpp applies to a case built in code).
+  if (r.pellet && !r.pellet->D_eff.empty())
+    for (const auto& rx : reactions_) {
+      if (rx.rate.basis != RateBasis::Catalyst)
+        fail(*f.find("pellet"), fmt::format("{}: effectiveness factors need per-catalyst rates "
+                                            "(per: catalyst); reaction {} is per volume",
+                                            ctx, rx.id));
+      if (!r.pellet->density)
+        fail(*f.find("pellet"),
+             fmt::format("{}: the pellet needs a density (e.g. density: 1400 kg/m3) to turn the "
+                         "per-catalyst rate of {} into a rate per pellet volume",
+                         ctx, rx.id));
+    }
   return r;
 }
 

@@ -2,7 +2,6 @@
 
 #include <fmt/format.h>
 
-#include <Eigen/Dense>
 #include <algorithm>
 #include <array>
 #include <cmath>
@@ -149,15 +148,53 @@ void PelletSolver::reset() {
   last_nodes_ = 0;
 }
 
-bool PelletSolver::solve_grid(const PelletKinetics& kin, const PelletTransport& tr,
-                              const double* c_s, int N, std::vector<double>& eta) {
-  const int n = kin.n_species(), nr = kin.n_reactions();
-  const int a = shape_exponent(tr.shape);
-  const double R = tr.L * (a + 1);
+namespace {
+
+// In-place inverse of the n x n row-major matrix A by Gauss-Jordan with
+// partial pivoting (the blocks are the species count, a handful). `piv`
+// holds n ints. False when A is singular.
+bool invert_small(double* A, int n, int* piv) {
+  for (int k = 0; k < n; ++k) {
+    int p = k;
+    for (int i = k + 1; i < n; ++i)
+      if (std::abs(A[i * n + k]) > std::abs(A[p * n + k])) p = i;
+    if (!(std::abs(A[p * n + k]) > 0) || !std::isfinite(A[p * n + k])) return false;
+    piv[k] = p;
+    if (p != k)
+      for (int m = 0; m < n; ++m) std::swap(A[k * n + m], A[p * n + m]);
+    const double inv = 1.0 / A[k * n + k];
+    A[k * n + k] = 1.0;
+    for (int m = 0; m < n; ++m) A[k * n + m] *= inv;
+    for (int i = 0; i < n; ++i) {
+      if (i == k) continue;
+      const double f = A[i * n + k];
+      if (f == 0) continue;
+      A[i * n + k] = 0.0;
+      for (int m = 0; m < n; ++m) A[i * n + m] -= f * A[k * n + m];
+    }
+  }
+  // Undo the row swaps as column swaps, last first.
+  for (int k = n - 1; k >= 0; --k)
+    if (piv[k] != k)
+      for (int i = 0; i < n; ++i) std::swap(A[i * n + k], A[i * n + piv[k]]);
+  return true;
+}
+
+}  // namespace
+
+const PelletSolver::Grid& PelletSolver::grid(PelletShape shape, double L, int N) {
+  for (const auto& g : grids_)
+    if (g.N == N && g.shape == shape && g.L == L) return g;
+  Grid g;
+  g.N = N;
+  g.shape = shape;
+  g.L = L;
+  const int a = shape_exponent(shape);
+  const double R = L * (a + 1);
   // Nodes clustered toward the surface, where a large modulus puts the
   // reaction: x = R (1 - sinh(b (1 - s)) / sinh b), s uniform in [0, 1].
   constexpr double kB = 3.0;
-  std::vector<double> x(N), face(N + 1), vol(N), Aw(N + 1);
+  std::vector<double> x(N), face(N + 1);
   for (int k = 0; k < N; ++k) {
     const double s = static_cast<double>(k) / (N - 1);
     x[k] = R * (1 - std::sinh(kB * (1 - s)) / std::sinh(kB));
@@ -167,11 +204,23 @@ bool PelletSolver::solve_grid(const PelletKinetics& kin, const PelletTransport& 
   face[0] = 0;
   for (int k = 1; k < N; ++k) face[k] = 0.5 * (x[k - 1] + x[k]);
   face[N] = R;
+  g.vol.resize(N);
   for (int k = 0; k < N; ++k)
-    vol[k] = (ipow(face[k + 1], a) * face[k + 1] - ipow(face[k], a) * face[k]) / (a + 1);
+    g.vol[k] = (ipow(face[k + 1], a) * face[k + 1] - ipow(face[k], a) * face[k]) / (a + 1);
   // Conductance of face k (between nodes k-1 and k): A / dx.
-  Aw[0] = 0;
-  for (int k = 1; k < N; ++k) Aw[k] = ipow(face[k], a) / (x[k] - x[k - 1]);
+  g.Aw.assign(N + 1, 0.0);
+  for (int k = 1; k < N; ++k) g.Aw[k] = ipow(face[k], a) / (x[k] - x[k - 1]);
+  g.V = ipow(R, a) * R / (a + 1);
+  grids_.push_back(std::move(g));
+  return grids_.back();
+}
+
+bool PelletSolver::solve_grid(const PelletKinetics& kin, const PelletTransport& tr,
+                              const double* c_s, int N, std::vector<double>& eta) {
+  const int n = kin.n_species(), nr = kin.n_reactions();
+  const Grid& g = grid(tr.shape, tr.L, N);
+  const std::vector<double>& vol = g.vol;
+  const std::vector<double>& Aw = g.Aw;
 
   // Unknowns: nodes 0..N-2 (node N-1 is the surface, c = c_s).
   const int M = N - 1;
@@ -188,65 +237,79 @@ bool PelletSolver::solve_grid(const PelletKinetics& kin, const PelletTransport& 
   for (int i = 0; i < n; ++i) c_ref += std::abs(c_s[i]);
   c_ref = std::max(c_ref, 1e-300);
 
-  std::vector<Eigen::PartialPivLU<Eigen::MatrixXd>> lu(M);
-  std::vector<Eigen::VectorXd> d(M);
-  Eigen::MatrixXd B(n, n);
-  Eigen::VectorXd res(n);
-  std::vector<double> r(nr), g(n);
-  std::vector<double> nu(static_cast<std::size_t>(nr) * n);
+  // Work space, kept between calls: per node the inverse of the eliminated
+  // diagonal block (n x n) and the eliminated right-hand side (n).
+  const std::size_t nn = static_cast<std::size_t>(n) * n;
+  binv_.resize(static_cast<std::size_t>(M) * nn);
+  d_.resize(static_cast<std::size_t>(M) * n);
+  nu_.resize(static_cast<std::size_t>(nr) * n);
+  g_.resize(n);
+  piv_.resize(n);
+  delta_.resize(2 * static_cast<std::size_t>(n));
   for (int j = 0; j < nr; ++j)
-    for (int i = 0; i < n; ++i) nu[j * n + i] = kin.nu(j, i);
+    for (int i = 0; i < n; ++i) nu_[j * n + i] = kin.nu(j, i);
 
   bool converged = false;
   for (int it = 0; it < options_.max_newton && !converged; ++it) {
     // Block Thomas forward sweep: the coupling to k-1 and k+1 is diagonal
-    // (D_i Aw), so B'_k = B_k - diag(Dl) B'_{k-1}^-1 diag(Du).
+    // (D_i Aw), so B'_k = B_k - diag(D Aw_k) B'_{k-1}^-1 diag(D Aw_k) and
+    // d'_k = d_k - diag(D Aw_k) B'_{k-1}^-1 d'_{k-1}.
     for (int k = 0; k < M; ++k) {
       const double* ck = &c[k * n];
-      B.setZero();
+      double* B = &binv_[k * nn];
+      double* d = &d_[k * n];
+      std::fill(B, B + nn, 0.0);
       for (int i = 0; i < n; ++i) {
         const double up = k + 1 < M ? c[(k + 1) * n + i] : c_s[i];
         const double down = k > 0 ? c[(k - 1) * n + i] : 0.0;
-        res(i) = tr.D[i] * (Aw[k + 1] * (up - ck[i]) - Aw[k] * (ck[i] - down));
-        B(i, i) = -tr.D[i] * (Aw[k + 1] + Aw[k]);
+        d[i] = -tr.D[i] * (Aw[k + 1] * (up - ck[i]) - Aw[k] * (ck[i] - down));
+        B[i * n + i] = -tr.D[i] * (Aw[k + 1] + Aw[k]);
       }
       for (int j = 0; j < nr; ++j) {
-        const double rj = kin.rate(j, ck, g.data());
+        const double rj = kin.rate(j, ck, g_.data());
         for (int i = 0; i < n; ++i) {
-          const double v = nu[j * n + i] * vol[k];
+          const double v = nu_[j * n + i] * vol[k];
           if (v == 0) continue;
-          res(i) += v * rj;
-          for (int m = 0; m < n; ++m) B(i, m) += v * g[m];
+          d[i] -= v * rj;
+          for (int m = 0; m < n; ++m) B[i * n + m] += v * g_[m];
         }
       }
-      d[k] = -res;
       if (k > 0) {
-        // Eliminate node k-1: B -= diag(Dl_k) * B'^-1_{k-1} * diag(Du_{k-1}).
-        Eigen::MatrixXd Du = Eigen::MatrixXd::Zero(n, n);
-        for (int i = 0; i < n; ++i) Du(i, i) = tr.D[i] * Aw[k];
-        const Eigen::MatrixXd X = lu[k - 1].solve(Du);
-        const Eigen::VectorXd y = lu[k - 1].solve(d[k - 1]);
+        const double* P = &binv_[(k - 1) * nn];
+        const double* dp = &d_[(k - 1) * n];
         for (int i = 0; i < n; ++i) {
-          B.row(i) -= tr.D[i] * Aw[k] * X.row(i);
-          d[k](i) -= tr.D[i] * Aw[k] * y(i);
+          const double li = tr.D[i] * Aw[k];
+          double acc = 0;
+          for (int m = 0; m < n; ++m) {
+            B[i * n + m] -= li * P[i * n + m] * tr.D[m] * Aw[k];
+            acc += P[i * n + m] * dp[m];
+          }
+          d[i] -= li * acc;
         }
       }
-      lu[k].compute(B);
+      if (!invert_small(B, n, piv_.data())) return false;
     }
     // Back substitution and the update (projected onto c >= 0).
     double step = 0;
-    Eigen::VectorXd delta_next;
+    double* next = delta_.data() + n;  // delta of node k + 1
+    double* cur = delta_.data();
     for (int k = M - 1; k >= 0; --k) {
-      Eigen::VectorXd rhs = d[k];
-      if (k + 1 < M)
-        for (int i = 0; i < n; ++i) rhs(i) -= tr.D[i] * Aw[k + 1] * delta_next(i);
-      Eigen::VectorXd delta = lu[k].solve(rhs);
+      const double* P = &binv_[k * nn];
+      const double* d = &d_[k * n];
       for (int i = 0; i < n; ++i) {
-        if (!std::isfinite(delta(i))) return false;
-        c[k * n + i] = std::max(c[k * n + i] + delta(i), 0.0);
-        step = std::max(step, std::abs(delta(i)));
+        double acc = 0;
+        for (int m = 0; m < n; ++m) {
+          const double rhs = d[m] - (k + 1 < M ? tr.D[m] * Aw[k + 1] * next[m] : 0.0);
+          acc += P[i * n + m] * rhs;
+        }
+        cur[i] = acc;
       }
-      delta_next = std::move(delta);
+      for (int i = 0; i < n; ++i) {
+        if (!std::isfinite(cur[i])) return false;
+        c[k * n + i] = std::max(c[k * n + i] + cur[i], 0.0);
+        step = std::max(step, std::abs(cur[i]));
+      }
+      std::swap(cur, next);
     }
     converged = step <= options_.newton_tol * c_ref;
   }
@@ -255,7 +318,6 @@ bool PelletSolver::solve_grid(const PelletKinetics& kin, const PelletTransport& 
     return false;
   }
   // eta_j = volume average of r_j over r_j(c_s); the surface shell at c_s.
-  const double V = ipow(R, a) * R / (a + 1);
   eta.assign(nr, 0.0);
   for (int j = 0; j < nr; ++j) {
     const double rs = kin.rate(j, c_s, nullptr);
@@ -265,7 +327,7 @@ bool PelletSolver::solve_grid(const PelletKinetics& kin, const PelletTransport& 
     }
     double sum = vol[N - 1] * rs;
     for (int k = 0; k < M; ++k) sum += vol[k] * kin.rate(j, &c[k * n], nullptr);
-    eta[j] = sum / (V * rs);
+    eta[j] = sum / (g.V * rs);
   }
   return true;
 }

@@ -118,8 +118,23 @@ class PelletSolver {
   bool solve_grid(const PelletKinetics& kin, const PelletTransport& tr, const double* c_surface,
                   int nodes, std::vector<double>& eta);
 
+  // A grid's geometry: control volumes and face conductances (per shape,
+  // length scale and node count; a stage uses a few).
+  struct Grid {
+    int N = 0;
+    PelletShape shape = PelletShape::Sphere;
+    double L = 0;
+    std::vector<double> vol, Aw;
+    double V = 0;  // the pellet's volume in the grid's measure
+  };
+  const Grid& grid(PelletShape shape, double L, int N);
+
   PelletSolveOptions options_;
   int last_nodes_ = 0;
+  std::vector<Grid> grids_;
+  // The Newton iteration's work space (see solve_grid).
+  std::vector<double> binv_, d_, nu_, g_, delta_;
+  std::vector<int> piv_;
   // Warm start: the profile (node-major, nodes x species) per grid size.
   std::vector<std::vector<double>> profiles_;
   std::vector<double> eta_a_, eta_b_, eta_prev_;  // eta per grid level
