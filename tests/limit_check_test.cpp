@@ -41,7 +41,7 @@ StageResult tube(const std::string& id, std::vector<std::pair<double, double>> V
   r.outlet.T = VT.back().second;
   r.T_max = r.T_min = r.inlet.T;
   for (const auto& [V, T] : VT) {
-    r.profile.push_back({V, T, 0.0, {}});
+    r.profile.push_back({V, T, 0.0, {}, {}});
     r.T_max = std::max(r.T_max, T);
     r.T_min = std::min(r.T_min, T);
   }
@@ -180,7 +180,7 @@ TEST_CASE("tanks have no position, exchangers and cases without limits are not c
   tank.inlet.T = 600;
   tank.outlet.T = tank.T_max = 720;
   tank.T_min = 600;
-  tank.profile = {{0, 600, 0, {}}, {1, 720, 0.5, {}}};
+  tank.profile = {{0, 600, 0, {}, {}}, {1, 720, 0.5, {}, {}}};
   StageResult heater = tube("X", {{0, 600}, {0, 900}});
   heater.kind = StageKind::Exchanger;
   const std::vector<StageResult> s{tank, heater};

@@ -59,7 +59,7 @@ TrainResult hand_result(const std::string& title) {
   r.conversion = 0.4;
   for (int i = 0; i <= 20; ++i) {
     const double X = 0.4 * i / 20.0;
-    r.profile.push_back({0.5 * i / 20.0, 400.0 + 500.0 * X, X, {1 - X, X}});
+    r.profile.push_back({0.5 * i / 20.0, 400.0 + 500.0 * X, X, {1 - X, X}, {}});
   }
   StageResult e;
   e.id = "E1";
@@ -70,7 +70,7 @@ TrainResult hand_result(const std::string& title) {
   e.T_max = 600;
   e.T_min = 400;
   e.conversion = 0.4;
-  e.profile = {{0, 600.0, 0.4, {0.6, 0.4}}, {0, 400.0, 0.4, {0.6, 0.4}}};
+  e.profile = {{0, 600.0, 0.4, {0.6, 0.4}, {}}, {0, 400.0, 0.4, {0.6, 0.4}, {}}};
   t.stages = {r, e};
   t.outlet = e.outlet;
   t.conversion = 0.4;

@@ -33,7 +33,7 @@ TrainResult sample_result() {
   r.T_max = 430.0;
   r.T_min = 400.0;
   r.conversion = 0.6;
-  r.profile = {{0.0, 400.0, 0.0, {1.0, 0.0}}, {2.0, 430.0, 0.6, {0.4, 0.6}}};
+  r.profile = {{0.0, 400.0, 0.0, {1.0, 0.0}, {}}, {2.0, 430.0, 0.6, {0.4, 0.6}, {}}};
   StageResult e;
   e.id = "E1";
   e.kind = StageKind::Exchanger;
@@ -173,12 +173,16 @@ TEST_CASE("every number in the run's JSON has its unit in the units object", "[r
   t.products = {"B"};  // yields and selectivities are numbers too
   t.yield = {0.4};
   t.selectivity = {0.8};
+  t.reactions = {"r1"};  // and effectiveness factors, in ranges and profiles
   for (auto& st : t.stages) {
     st.yield = {0.4};
     st.selectivity = {0.8};
+    st.effectiveness = {EffectivenessRange{0.5, 0.9, 0.9}};
+    for (auto& p : st.profile) p.eta = {0.7};
   }
   const auto j = to_json(t);
   REQUIRE(j["stages"][0]["yield"]["B"] == 0.4);
+  REQUIRE(j["stages"][0]["effectiveness"]["r1"]["min"] == 0.5);
   const auto& units = j["units"];
   std::vector<std::string> missing;
   std::function<void(const nlohmann::json&, const std::string&)> walk =
@@ -187,7 +191,8 @@ TEST_CASE("every number in the run's JSON has its unit in the units object", "[r
           for (auto it = o.begin(); it != o.end(); ++it)
             // Maps keyed by species id take their unit from the map's name.
             walk(it.value(), key == "flows" || key == "mass_flows" || key == "x" ||
-                                     key == "yield" || key == "selectivity"
+                                     key == "yield" || key == "selectivity" ||
+                                     key == "effectiveness"
                                  ? key
                                  : it.key());
         } else if (o.is_array()) {

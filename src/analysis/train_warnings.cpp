@@ -54,6 +54,7 @@ double conversion_at(const Case& c, const StageResult& r, double V, const SunCon
   spec.volume = V;
   spec.bulk_density = r.bulk_density;
   spec.activity = r.activity;
+  spec.pellet = r.pellet;
   try {
     return run_pfr(c.mechanism, spec, r.inlet, c.conversion_basis(), ctx).conversion;
   } catch (const SolverError&) {

@@ -237,6 +237,7 @@ class Loader {
   double read_train_target(const YAML::Node& node) const;
   OutletTarget read_outlet_target(const YAML::Node& node, const std::string& ctx) const;
   TemperatureLimits read_limits(const YAML::Node& node) const;
+  PelletSpec read_pellet(const YAML::Node& node, const std::string& ctx) const;
   std::vector<int> read_space_velocity_basis(const YAML::Node& node) const;
   std::vector<int> read_products(const YAML::Node& node) const;
   StageSpec read_stage(const YAML::Node& node, std::size_t index);
@@ -1026,7 +1027,8 @@ StageSpec Loader::read_stage(const YAML::Node& node, std::size_t index) {
     return x;
   }
 
-  f.check({"type", "id", "volume", "catalyst", "bulk_density", "target", "heat", "activity"});
+  f.check({"type", "id", "volume", "catalyst", "bulk_density", "target", "heat", "activity",
+           "pellet", "effectiveness"});
   ReactorSpec r;
   r.id = sid;
   r.type = type == "cstr" ? ReactorType::Cstr : ReactorType::Pfr;
@@ -1077,6 +1079,39 @@ StageSpec Loader::read_stage(const YAML::Node& node, std::size_t index) {
                  ? HeatMode::Isothermal
                  : HeatMode::Adiabatic;
   if (const auto* n = f.find("activity")) r.activity = field(*n, CaseFieldKind::Activity, sid);
+  if (const auto* n = f.find("pellet")) r.pellet = read_pellet(*n, "pellet of " + ctx);
+  if (const auto* n = f.find("effectiveness")) {
+    if (!r.pellet || r.pellet->D_eff.empty())
+      fail(*f.key_of("effectiveness"),
+           fmt::format("{} gives effectiveness but its pellet has no D_eff, the effective "
+                       "diffusivity the effectiveness factors need (e.g. pellet: {{shape: sphere, "
+                       "size: 3 mm, D_eff: 2.0e-6 m2/s, density: 1400 kg/m3}})",
+                       ctx));
+    r.pellet->effectiveness =
+        choice(*n, "effectiveness of " + ctx, {"thiele", "pellet"}) == "thiele"
+            ? EffectivenessModel::Thiele
+            : EffectivenessModel::Pellet;
+  }
+  if (r.pellet && !r.pellet->D_eff.empty() && r.type != ReactorType::Pfr)
+    fail(*f.key_of("pellet"),
+         fmt::format("{}: effectiveness factors (pellet D_eff) are computed for tubular stages "
+                     "(type: pfr) only",
+                     ctx));
+  // Effectiveness factors turn each per-catalyst rate into a rate per
+  // pellet volume: that needs per-catalyst rates and the pellet's density
+  // (the same rules stages/pfr.cpp applies to a case built in code).
+  if (r.pellet && !r.pellet->D_eff.empty())
+    for (const auto& rx : reactions_) {
+      if (rx.rate.basis != RateBasis::Catalyst)
+        fail(*f.find("pellet"), fmt::format("{}: effectiveness factors need per-catalyst rates "
+                                            "(per: catalyst); reaction {} is per volume",
+                                            ctx, rx.id));
+      if (!r.pellet->density)
+        fail(*f.find("pellet"),
+             fmt::format("{}: the pellet needs a density (e.g. density: 1400 kg/m3) to turn the "
+                         "per-catalyst rate of {} into a rate per pellet volume",
+                         ctx, rx.id));
+    }
   return r;
 }
 
@@ -1130,6 +1165,53 @@ OutletTarget Loader::read_outlet_target(const YAML::Node& node, const std::strin
                         "inlet ({:.6g} ppm); the target would be met by no catalyst at all",
                         where, sp, t.x * 1e6, x_feed * 1e6));
   return t;
+}
+
+// A stage's catalyst pellets (kinetics/pellet_spec.hpp).
+PelletSpec Loader::read_pellet(const YAML::Node& node, const std::string& ctx) const {
+  Fields f(*this, node, ctx);
+  f.check({"shape", "size", "length", "D_eff", "density"});
+  PelletSpec p;
+  p.where = at(node);
+  const std::string shape = choice(f.need("shape", "the pellet shape: sphere, cylinder or slab"),
+                                   "shape of " + ctx, {"sphere", "cylinder", "slab"});
+  p.shape = shape == "sphere"     ? PelletShape::Sphere
+            : shape == "cylinder" ? PelletShape::Cylinder
+                                  : PelletShape::Slab;
+  const SiUnit length_unit = SiUnit::of("m", "a length");
+  auto positive = [&](const YAML::Node& n, const std::string& label, const SiUnit& unit) {
+    const double v = quantity(n, label, unit);
+    check_range(n, label, kPositive, unit.to_string(), v);
+    return v;
+  };
+  p.size = positive(f.need("size", "the pellet diameter (slab: thickness), e.g. size: 3 mm"),
+                    "size of " + ctx, length_unit);
+  if (const auto* n = f.find("length")) {
+    if (p.shape != PelletShape::Cylinder)
+      fail(*f.key_of("length"), fmt::format("{}: length applies to a cylinder only", ctx));
+    p.length = positive(*n, "length of " + ctx, length_unit);
+  }
+  if (const auto* n = f.find("density"))
+    p.density = positive(*n, "density of " + ctx, SiUnit::of("kg/m3", "a density"));
+  if (const auto* n = f.find("D_eff")) {
+    const SiUnit d_unit = SiUnit::of("m2/s", "a diffusivity");
+    if (n->IsMap()) {
+      // Per species; every species in the pellet needs one.
+      p.D_eff.assign(species_.size(), 0.0);
+      Fields per(*this, *n, "D_eff of " + ctx);
+      for (const auto& e : per.entries())
+        p.D_eff[species_index(e.key, "D_eff of " + ctx)] =
+            positive(e.value, fmt::format("D_eff of {} in {}", e.name, ctx), d_unit);
+      for (std::size_t i = 0; i < species_.size(); ++i)
+        if (p.D_eff[i] == 0)
+          fail(*n, fmt::format("D_eff of {} has no value for species {}; give every species one "
+                               "(or one value for all, e.g. D_eff: 2.0e-6 m2/s)",
+                               ctx, species_[i].id));
+    } else {
+      p.D_eff.assign(species_.size(), positive(*n, "D_eff of " + ctx, d_unit));
+    }
+  }
+  return p;
 }
 
 // ---- train-level target and temperature limits --------------------------

@@ -74,6 +74,10 @@ void add_reaches(const Case& c, const TrainOptions& options, TrainResult& result
     if (r.kind == StageKind::Exchanger || !r.heat) continue;
     ReactorSpec spec{};
     spec.id = r.id;
+    // The pellets too: the reach is on the rates the stage runs with.
+    for (const auto& st : c.train)
+      if (const auto* rs = std::get_if<ReactorSpec>(&st); rs && rs->id == r.id)
+        spec.pellet = rs->pellet;
     spec.type = r.kind == StageKind::Cstr ? ReactorType::Cstr : ReactorType::Pfr;
     spec.heat = *r.heat;
     spec.bulk_density = r.bulk_density;
@@ -123,6 +127,7 @@ TrainResult TrainResult::for_case(const Case& c) {
   }
   if (result.molar_mass.size() != result.species.size()) result.molar_mass.clear();
   result.key = c.mechanism.species()[c.key].id;
+  for (const auto& rx : c.mechanism.reactions()) result.reactions.push_back(rx.id);
   result.feed = c.feed;
   result.warnings = c.warnings;
   return result;

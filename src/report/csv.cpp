@@ -70,11 +70,21 @@ std::string streams_csv(const TrainResult& result) {
 }
 
 std::string profiles_csv(const TrainResult& result) {
-  std::string out = "stage,V_m3,T_K,P_Pa,conversion" + flow_headers(result) + "\n";
+  std::string out = "stage,V_m3,T_K,P_Pa,conversion" + flow_headers(result);
+  // Effectiveness factors per reaction, when a stage has them (empty cells
+  // in the stages without).
+  bool eta = false;
+  for (const auto& r : result.stages) eta = eta || !r.effectiveness.empty();
+  if (eta)
+    for (const auto& id : result.reactions) out += ",eta_" + id;
+  out += "\n";
   for (const auto& r : result.stages) {
     for (const auto& p : r.profile) {
       out += fmt::format("{},{},{},{},{}", r.id, cell(p.V), cell(p.T), cell(r.inlet.P), cell(p.X));
       for (double f : p.F) out += fmt::format(",{}", cell(f));
+      if (eta)
+        for (std::size_t j = 0; j < result.reactions.size(); ++j)
+          out += "," + (j < p.eta.size() ? cell(p.eta[j]) : std::string());
       out += "\n";
     }
   }

@@ -150,6 +150,9 @@ std::string run_report_html(const Case& c, const TrainResult& r, const std::vect
   for (const auto& s : r.stages)
     if (s.outlet_target) h += "<p>" + xml_escape(purity_sentence(s, r.species)) + ".</p>\n";
   for (const auto& s : r.stages)
+    if (!s.effectiveness.empty())
+      h += "<p>" + xml_escape(effectiveness_sentence(s, r.reactions)) + ".</p>\n";
+  for (const auto& s : r.stages)
     if (s.reach && s.heat) h += "<p>" + xml_escape(reach_sentence(s, r.species)) + ".</p>\n";
   h += product_table(r);
   h += space_velocity_table(r);

@@ -37,7 +37,7 @@ json stream(const std::vector<std::string>& ids, const std::vector<double>& mola
 
 // The units of every number in the output: SI, with the one exception
 // named (space velocities per hour, as the trade quotes them).
-json units_json() {
+json units_json(const std::vector<std::string>& reactions) {
   json u = {{"P", "Pa"},
             {"flows", "mol/s"},
             {"total_flow", "mol/s"},
@@ -60,13 +60,16 @@ json units_json() {
   for (const char* k : {"approach_T", "approach_T_window", "margin", "by"})
     u[k] = "K (a difference)";
   for (const char* k : {"volume", "V", "V_at_X_max"}) u[k] = "m3";
-  for (const char* k : {"conversion", "X", "X_eq", "X_eq_out", "X_in", "X_out", "X_ad_eq", "X_max",
-                        "X_end", "approach_X", "x", "activity", "yield", "selectivity"})
+  for (const char* k :
+       {"conversion", "X", "X_eq", "X_eq_out", "X_in", "X_out", "X_ad_eq", "X_max", "X_end",
+        "approach_X", "x", "activity", "yield", "selectivity", "effectiveness"})
     u[k] = "1";
+  for (const auto& id : reactions) u["eta_" + id] = "1";
   return u;
 }
 
-json profile(const std::vector<std::string>& ids, const StageResult& r) {
+json profile(const std::vector<std::string>& ids, const std::vector<std::string>& reactions,
+             const StageResult& r) {
   json V = json::array(), T = json::array(), X = json::array();
   std::vector<json> F(ids.size(), json::array());
   for (const auto& p : r.profile) {
@@ -78,7 +81,16 @@ json profile(const std::vector<std::string>& ids, const StageResult& r) {
   }
   json flows_by_id = json::object();
   for (std::size_t i = 0; i < ids.size(); ++i) flows_by_id[ids[i]] = F[i];
-  return {{"V", V}, {"T", T}, {"X", X}, {"flows", flows_by_id}};
+  json out = {{"V", V}, {"T", T}, {"X", X}, {"flows", flows_by_id}};
+  // With effectiveness factors: "eta_REACTION" per reaction.
+  if (!r.effectiveness.empty())
+    for (std::size_t j = 0; j < reactions.size(); ++j) {
+      json eta = json::array();
+      for (const auto& p : r.profile)
+        eta.push_back(j < p.eta.size() ? json_number(p.eta[j]) : json());
+      out["eta_" + reactions[j]] = eta;
+    }
+  return out;
 }
 
 // Per wanted product: its yield and its selectivity (null where nothing of
@@ -96,8 +108,10 @@ json product_values(const std::vector<std::string>& products,
   return o;
 }
 
-json stage(const std::vector<std::string>& ids, const std::vector<double>& molar_mass,
-           const std::vector<std::string>& products, const StageResult& r) {
+json stage(const TrainResult& t, const StageResult& r) {
+  const auto& ids = t.species;
+  const auto& molar_mass = t.molar_mass;
+  const auto& products = t.products;
   json s;
   s["id"] = r.id;
   s["type"] = stage_kind_name(r.kind);
@@ -136,7 +150,19 @@ json stage(const std::vector<std::string>& ids, const std::vector<double>& molar
     states.push_back(
         {{"T", json_number(ss.T)}, {"conversion", json_number(ss.X)}, {"flows", flows(ids, ss.F)}});
   s["steady_states"] = r.kind == StageKind::Cstr ? states : json(nullptr);
-  s["profile"] = profile(ids, r);
+  s["profile"] = profile(ids, t.reactions, r);
+  // Catalyst pellets with D_eff: each reaction's effectiveness factor over
+  // the stage (null without).
+  if (r.effectiveness.empty()) {
+    s["effectiveness"] = nullptr;
+  } else {
+    json e = json::object();
+    for (std::size_t j = 0; j < r.effectiveness.size() && j < t.reactions.size(); ++j)
+      e[t.reactions[j]] = {{"min", json_number(r.effectiveness[j].min)},
+                           {"max", json_number(r.effectiveness[j].max)},
+                           {"outlet", json_number(r.effectiveness[j].outlet)}};
+    s["effectiveness"] = e;
+  }
   s["solver"] = {{"steps", r.stats.steps},
                  {"rhs_evals", r.stats.rhs_evals},
                  {"jac_evals", r.stats.jac_evals},
@@ -221,7 +247,7 @@ nlohmann::json to_json(const TrainResult& result) {
   j["title"] = result.title;
   j["species"] = result.species;
   j["key"] = result.key;
-  j["units"] = units_json();
+  j["units"] = units_json(result.reactions);
   j["feed"] = stream(result.species, result.molar_mass, result.feed);
   j["conversion"] = json_number(result.conversion);
   j["products"] = result.products;
@@ -229,7 +255,7 @@ nlohmann::json to_json(const TrainResult& result) {
   j["selectivity"] = product_values(result.products, result.selectivity);
   json stages = json::array();
   for (const auto& r : result.stages) {
-    stages.push_back(stage(result.species, result.molar_mass, result.products, r));
+    stages.push_back(stage(result, r));
     stages.back()["limit"] = limit_json(result.limit_check, r);
   }
   j["stages"] = stages;

@@ -64,6 +64,27 @@ std::string purity_sentence(const StageResult& r, const std::vector<std::string>
                      purity_text(r.outlet_target->x), purity_text(mole_fractions(r.outlet)[i]));
 }
 
+std::string effectiveness_sentence(const StageResult& r,
+                                   const std::vector<std::string>& reactions) {
+  if (r.effectiveness.empty() || !r.pellet) return {};
+  const PelletSpec& p = *r.pellet;
+  const char* shape = p.shape == PelletShape::Sphere     ? "spherical"
+                      : p.shape == PelletShape::Cylinder ? "cylindrical"
+                                                         : "slab";
+  const char* model = p.effectiveness == EffectivenessModel::Pellet
+                          ? "the pellet solved"
+                          : "the generalized Thiele modulus";
+  std::string out = fmt::format(
+      "{}: effectiveness factors ({} pellets, {}; isothermal pellet, no film resistance):", r.id,
+      shape, model);
+  for (std::size_t j = 0; j < r.effectiveness.size() && j < reactions.size(); ++j) {
+    const auto& e = r.effectiveness[j];
+    out += fmt::format("{} {} {:.3f} to {:.3f}, {:.3f} at the outlet", j ? ";" : "", reactions[j],
+                       e.min, e.max, e.outlet);
+  }
+  return out;
+}
+
 std::string closure_text(double relative) {
   if (!std::isfinite(relative)) return "-";
   // Below 1e-12 it is the round-off of the sums, whose digits vary with

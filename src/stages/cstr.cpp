@@ -778,8 +778,8 @@ struct Tank {
     res.conversion = basis.conversion(res.outlet);
     res.T_max = std::max(inlet.T, out.T);
     res.T_min = std::min(inlet.T, out.T);
-    res.profile.push_back(ProfilePoint{0.0, inlet.T, X_in, inlet.F});
-    res.profile.push_back(ProfilePoint{V, res.outlet.T, res.conversion, res.outlet.F});
+    res.profile.push_back(ProfilePoint{0.0, inlet.T, X_in, inlet.F, {}});
+    res.profile.push_back(ProfilePoint{V, res.outlet.T, res.conversion, res.outlet.F, {}});
     for (const auto& st : states) {
       SteadyState ss;
       ss.T = st.T;

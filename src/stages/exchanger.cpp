@@ -49,8 +49,8 @@ StageResult run_exchanger(const Mechanism& mech, const ExchangerSpec& spec, cons
   res.T_max = std::max(inlet.T, T_out);
   res.T_min = std::min(inlet.T, T_out);
   res.conversion = basis.conversion(inlet);
-  res.profile.push_back(ProfilePoint{0.0, inlet.T, res.conversion, inlet.F});
-  res.profile.push_back(ProfilePoint{0.0, T_out, res.conversion, inlet.F});
+  res.profile.push_back(ProfilePoint{0.0, inlet.T, res.conversion, inlet.F, {}});
+  res.profile.push_back(ProfilePoint{0.0, T_out, res.conversion, inlet.F, {}});
   res.stats.message = spec.T_out ? "outlet temperature given; duty from the enthalpy balance"
                                  : "duty given; outlet temperature from the enthalpy balance";
   return res;

@@ -4,6 +4,7 @@
 #include <array>
 #include <cmath>
 
+#include "pfr_shared.hpp"
 #include "rxtrain/models/tubular_balances.hpp"
 
 namespace rxtrain {
@@ -33,9 +34,14 @@ class StageCurve {
         n_(mech.n_species()),
         beta_(volume_multipliers(mech, s)),
         r_(mech.n_reactions()) {
+    // The stage's pellets: the curve is of the rates the stage ran with.
+    pellet_spec_.id = s.id;
+    pellet_spec_.activity = s.activity;
+    pellet_spec_.pellet = s.pellet;
+    pellet_ = detail::pellet_binding(mech, pellet_spec_, 1e-6);
     balances_.reset(mech, beta_,
                     s.heat == HeatMode::Adiabatic ? HeatMode::Adiabatic : HeatMode::Isothermal,
-                    s.inlet.P);
+                    s.inlet.P, pellet_ ? &*pellet_ : nullptr);
     // Per unit of the curve's basis: a catalyst basis divides the
     // volumetric rates by the bulk density.
     basis_scale_ = catalyst_basis ? 1.0 / *s.bulk_density : 1.0;
@@ -44,9 +50,10 @@ class StageCurve {
   // -r_key per unit of the curve's basis (m3 or kg).
   double key_consumption(double T, const double* F) {
     mech_.rates(T, s_.inlet.P, F, r_.data());
+    if (pellet_ && balances_.update_eta(T, F) != 0) return 0;
     double c = 0;
     for (int j = 0; j < mech_.n_reactions(); ++j)
-      c -= mech_.reactions()[j].nu[key_] * beta_[j] * r_[j];
+      c -= mech_.reactions()[j].nu[key_] * beta_[j] * r_[j] * balances_.eta()[j];
     return c * basis_scale_;
   }
 
@@ -83,6 +90,8 @@ class StageCurve {
   std::vector<double> beta_;
   std::vector<double> r_;
   double basis_scale_ = 1.0;
+  ReactorSpec pellet_spec_;                      // the stage's pellets, for pellet_
+  std::optional<detail::PelletBinding> pellet_;  // effectiveness factors, if any
   detail::PfrSystem balances_;
   std::vector<double> y_, ydot_;  // [F, T, Q] and its slope in V
 };

@@ -62,13 +62,18 @@ struct PfrWorkspace::State {
       return 0;
     }
   } roots;
-  std::vector<double> dky, y_turn;  // interpolated dT/dV (dX/dV) search (see run_pfr)
+  std::vector<double> dky, y_turn;              // interpolated dT/dV (dX/dV) search (see run_pfr)
+  std::optional<detail::PelletBinding> pellet;  // of the current stage
   // Binds the system to a stage and (re)starts the integrator at its inlet,
-  // re-creating the integrator only when it cannot be reused.
+  // re-creating the integrator only when it cannot be reused. `spec` is the
+  // stage's, for its pellets (effectiveness factors); null only where no
+  // stage stands behind the run (a tank's adiabatic limit), and then the
+  // rates are the intrinsic ones.
   CvodeIntegrator& start(const SunContext& ctx, const Mechanism& mech,
                          const std::vector<double>& multipliers, HeatMode heat, const Stream& inlet,
-                         const PfrOptions& options) {
-    sys.reset(mech, multipliers, heat, inlet.P);
+                         const PfrOptions& options, const ReactorSpec* spec) {
+    pellet = spec ? detail::pellet_binding(mech, *spec, options.cvode.rtol) : std::nullopt;
+    sys.reset(mech, multipliers, heat, inlet.P, pellet ? &*pellet : nullptr);
     const bool sparse = uses_sparse_jacobian(options, mech.n_species());
     state_scale(mech, inlet, scale);
     bool reuse = ode && ode->size() == sys.size() && ode->sparse() == sparse &&
@@ -304,7 +309,8 @@ double volume_for_outlet(const Mechanism& mech, const ReactorSpec& spec, const S
   if (spec.heat == HeatMode::Adiabatic) T_stop = options.stop_temperature;
 
   // The path, step by step, to the first crossing of the target.
-  CvodeIntegrator& ode = st.start(ws.context(), mech, multipliers, spec.heat, inlet, options);
+  CvodeIntegrator& ode =
+      st.start(ws.context(), mech, multipliers, spec.heat, inlet, options, &spec);
   ode.set_stop_time(V_end);
   arm_roots(st, ode, basis, n, t.x, T_stop);
   st.roots.fraction_of = t.species;
@@ -344,7 +350,8 @@ double volume_for_outlet(const Mechanism& mech, const ReactorSpec& spec, const S
 
   // Outlet mole fraction less the target, of the stage rated at volume v.
   auto excess = [&](double v) {
-    CvodeIntegrator& o = st.start(ws.context(), mech, multipliers, spec.heat, inlet, options);
+    CvodeIntegrator& o =
+        st.start(ws.context(), mech, multipliers, spec.heat, inlet, options, &spec);
     arm_roots(st, o, basis, n, std::nullopt, std::nullopt);
     o.set_stop_time(v);
     double at = 0;
@@ -377,6 +384,31 @@ double volume_for_outlet(const Mechanism& mech, const ReactorSpec& spec, const S
   return r.x;
 }
 
+// Each reaction's effectiveness factor at every profile point, and its
+// range over the stage (the pellet model as the stage ran it).
+void add_effectiveness(PfrWorkspace::State& st, const ReactorSpec& spec, StageResult& res) {
+  res.pellet = spec.pellet;
+  const int nr = static_cast<int>(st.sys.eta().size());
+  std::vector<double> y;
+  for (auto& p : res.profile) {
+    y.assign(p.F.begin(), p.F.end());
+    y.push_back(p.T);
+    if (st.sys.update_eta(p.T, y.data()) != 0)
+      throw SolverError(
+          fmt::format("{}: effectiveness factors at V = {:.6g} m3 failed", spec.id, p.V));
+    p.eta = st.sys.eta();
+  }
+  res.effectiveness.assign(nr, EffectivenessRange{});
+  for (int j = 0; j < nr && !res.profile.empty(); ++j) {
+    auto& e = res.effectiveness[j];
+    e.min = e.max = e.outlet = res.profile.back().eta[j];
+    for (const auto& p : res.profile) {
+      e.min = std::min(e.min, p.eta[j]);
+      e.max = std::max(e.max, p.eta[j]);
+    }
+  }
+}
+
 }  // namespace
 
 StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
@@ -395,7 +427,7 @@ StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream
   const int n = mech.n_species();
   PfrWorkspace::State& st = ws.state();
   CvodeIntegrator& ode =
-      st.start(ws.context(), mech, rate_multipliers(mech, spec), spec.heat, inlet, options);
+      st.start(ws.context(), mech, rate_multipliers(mech, spec), spec.heat, inlet, options, &spec);
 
   StageResult res;  // its profile, while the stage runs (see the end)
   const bool sizing = spec.target_conversion.has_value();
@@ -422,7 +454,9 @@ StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream
                           out_of_reach_text(spec, *spec.target_conversion, reach, mech));
   }
 
-  if (w.reached && mech.n_reactions() == 1) {
+  // The quadrature reads the intrinsic rate: with effectiveness factors
+  // the volume integration's root stands.
+  if (w.reached && mech.n_reactions() == 1 && !st.pellet) {
     // One reaction: the volume by quadrature along the exact path (see
     // size_by_quadrature); the volume integration above told that the target is
     // met before the stop temperature.
@@ -443,7 +477,13 @@ StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream
   if (w.stopped)
     res.stats.message = fmt::format("stopped at the stop temperature {} at V = {:.6g} m3",
                                     temperature_words(*T_stop), V);
-  if (w.reached) detail::add_size_sensitivity(mech, rate_multipliers(mech, spec), basis, res);
+  if (st.pellet) add_effectiveness(st, spec, res);
+  if (w.reached) {
+    std::vector<double> beta = rate_multipliers(mech, spec);
+    if (st.pellet && st.sys.update_eta(st.y[n], st.y.data()) == 0)
+      for (std::size_t j = 0; j < beta.size(); ++j) beta[j] *= st.sys.eta()[j];
+    detail::add_size_sensitivity(mech, beta, basis, res);
+  }
   return res;
 }
 
@@ -452,7 +492,7 @@ StageReach pfr_reach(const Mechanism& mech, const ReactorSpec& spec, const Strea
   const int n = mech.n_species();
   PfrWorkspace::State& st = ws.state();
   CvodeIntegrator& ode =
-      st.start(ws.context(), mech, rate_multipliers(mech, spec), spec.heat, inlet, options);
+      st.start(ws.context(), mech, rate_multipliers(mech, spec), spec.heat, inlet, options, &spec);
   PfrSystem& sys = st.sys;
   const double V_end =
       options.max_space_time * mech.volumetric_flow(inlet.T, inlet.P, inlet.F.data());
@@ -550,7 +590,7 @@ Stream adiabatic_limit(const Mechanism& mech, const std::vector<double>& multipl
                        const PfrOptions& options) {
   const int n = mech.n_species();
   PfrWorkspace::State& st = ws.state();
-  CvodeIntegrator& ode = st.start(ws.context(), mech, multipliers, heat, inlet, options);
+  CvodeIntegrator& ode = st.start(ws.context(), mech, multipliers, heat, inlet, options, nullptr);
   ode.set_roots(0, nullptr, {});
   const double V_end =
       options.max_space_time * mech.volumetric_flow(inlet.T, inlet.P, inlet.F.data());
@@ -566,6 +606,35 @@ Stream adiabatic_limit(const Mechanism& mech, const std::vector<double>& multipl
 
 namespace detail {
 
+// The pellet binding of a stage with effectiveness factors: rates per m3
+// of pellet = activity x pellet density x the per-catalyst rate. Empty
+// without a pellet or without D_eff (a pellet for pressure drop only).
+std::optional<PelletBinding> pellet_binding(const Mechanism& mech, const ReactorSpec& spec,
+                                            double rtol) {
+  if (!spec.pellet || spec.pellet->D_eff.empty()) return std::nullopt;
+  const PelletSpec& ps = *spec.pellet;
+  PelletBinding b;
+  b.spec = &ps;
+  // The grid tolerance follows the ODE's, floored where the grid would
+  // grow past what a right-hand side can afford (PelletSolveOptions).
+  b.rtol = std::max(rtol, 1e-7);
+  for (const auto& rx : mech.reactions()) {
+    if (rx.rate.basis != RateBasis::Catalyst)
+      throw InputError(ps.where, fmt::format("stage {}: effectiveness factors need per-catalyst "
+                                             "rates (per: catalyst); reaction {} is per volume",
+                                             spec.id, rx.id));
+    if (!ps.density)
+      throw InputError(ps.where,
+                       fmt::format("stage {}: the pellet needs a density (e.g. density: 1400 "
+                                   "kg/m3) to turn the per-catalyst rate of {} into a rate per "
+                                   "pellet volume; this stage gives no void fraction to infer it "
+                                   "from the bulk density",
+                                   spec.id, rx.id));
+    b.multipliers.push_back(spec.activity * *ps.density);
+  }
+  return b;
+}
+
 double mole_fraction(const double* F, int n, int i) {
   double total = 0;
   for (int j = 0; j < n; ++j) total += F[j];
@@ -573,7 +642,7 @@ double mole_fraction(const double* F, int n, int i) {
 }
 
 ProfilePoint profile_point(double V, const double* y, int n, const ConversionBasis& basis) {
-  return ProfilePoint{V, y[n], basis.conversion(y), std::vector<double>(y, y + n)};
+  return ProfilePoint{V, y[n], basis.conversion(y), std::vector<double>(y, y + n), {}};
 }
 
 StageResult pfr_result(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
@@ -653,7 +722,7 @@ double size_by_quadrature(const Mechanism& mech, const ReactorSpec& spec, const 
     y.assign(at.F.begin(), at.F.end());
     y.push_back(at.T);
     y.push_back(dH * (piece.b - X_in) * per_X);
-    res.profile.push_back(ProfilePoint{V, at.T, piece.b, at.F});
+    res.profile.push_back(ProfilePoint{V, at.T, piece.b, at.F, {}});
   }
   return V;
 }

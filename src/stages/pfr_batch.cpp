@@ -59,6 +59,8 @@ PfrBatchWorkspace& PfrBatchWorkspace::operator=(PfrBatchWorkspace&&) noexcept = 
 // volume nor a conversion target): its size is polished on whole ratings
 // of the lone stage (pfr.cpp), which a batch cannot share.
 bool pfr_batchable(const Mechanism& mech, const ReactorSpec& spec, const PfrOptions& options) {
+  // Effectiveness factors take the lone path (run_pfr), which binds them.
+  if (spec.pellet && !spec.pellet->D_eff.empty()) return false;
   return spec.type == ReactorType::Pfr &&
          (spec.target_conversion || (spec.volume && *spec.volume > 0)) && !options.full_profile &&
          !options.stop_temperature && !uses_sparse_jacobian(options, mech.n_species()) &&

@@ -27,6 +27,15 @@ double size_by_quadrature(const Mechanism& mech, const ReactorSpec& spec, const 
 void add_size_sensitivity(const Mechanism& mech, const std::vector<double>& multipliers,
                           const ConversionBasis& basis, StageResult& res);
 
+// The pellet binding of a stage with effectiveness factors (pellets with
+// D_eff): rates per m3 of pellet = activity x pellet density x the
+// per-catalyst rate; `rtol` the pellet grid's tolerance (floored at 1e-7).
+// Empty without a pellet or without D_eff (a pellet for pressure drop
+// only). Throws InputError for per-volume rates or a pellet without a
+// density.
+std::optional<PelletBinding> pellet_binding(const Mechanism& mech, const ReactorSpec& spec,
+                                            double rtol);
+
 // Mole fraction of species i in flows F[0..n).
 double mole_fraction(const double* F, int n, int i);
 

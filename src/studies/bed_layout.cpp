@@ -76,6 +76,16 @@ LayoutCase check_layout_case(const Case& c, LayoutStudy study) {
   for (const auto& s : c.train) {
     const auto* r = std::get_if<ReactorSpec>(&s);
     if (!r) continue;
+    // The new beds' rates are the intrinsic ones: a case whose beds hold
+    // pellets with effectiveness factors would be designed on other rates
+    // than it runs with, so it is refused, not designed wrongly.
+    if (r->pellet && !r->pellet->D_eff.empty())
+      throw InputError(r->pellet->where,
+                       fmt::format("stage {} gives its pellets a D_eff (effectiveness factors); "
+                                   "{} designs new beds on the intrinsic rates and does not model "
+                                   "pellets yet: remove D_eff to study the intrinsic design, or "
+                                   "rate a layout with run or compare",
+                                   r->id, name));
     if (!set_by) {
       set_by = r;
       lc.activity = r->activity;

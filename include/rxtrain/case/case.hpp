@@ -12,6 +12,7 @@
 #include "rxtrain/chem/heat_mode.hpp"
 #include "rxtrain/chem/stream.hpp"
 #include "rxtrain/kinetics/mechanism.hpp"
+#include "rxtrain/kinetics/pellet_spec.hpp"
 
 namespace rxtrain {
 
@@ -42,6 +43,9 @@ struct ReactorSpec {
   // Catalyst activity: multiplies every rate in the stage (1: the rates as
   // the kinetics give them; e.g. 0.7 to design for end of run).
   double activity = 1;
+  // Catalyst pellets: effectiveness factors of a tubular stage when D_eff
+  // is given (models/pellet.hpp); absent: the intrinsic rates.
+  std::optional<PelletSpec> pellet;
   SourceLocation where;
 };
 

@@ -49,8 +49,9 @@ struct TrainOptions {
 
 struct TrainResult {
   std::string title;
-  std::vector<std::string> species;  // ids, column order of every output
-  std::string key;                   // key species id
+  std::vector<std::string> species;    // ids, column order of every output
+  std::string key;                     // key species id
+  std::vector<std::string> reactions;  // ids, order of each stage's effectiveness
   // kg/mol in species order, for mass flows; empty when a species has none
   // (a gas case may omit them).
   std::vector<double> molar_mass;

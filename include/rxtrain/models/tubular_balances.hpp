@@ -13,18 +13,78 @@
 
 #include "rxtrain/chem/stream.hpp"
 #include "rxtrain/kinetics/mechanism.hpp"
+#include "rxtrain/models/pellet.hpp"
 #include "rxtrain/solvers/cvode.hpp"
 
 namespace rxtrain::detail {
+
+// The mechanism's rate laws inside a pellet at one bed temperature: rates
+// per m3 of pellet (the per-catalyst rate times the pellet density and the
+// activity, in `multipliers`) at local concentrations.
+class MechanismInPellet final : public PelletKinetics {
+ public:
+  void bind(const Mechanism& mech, const std::vector<double>& multipliers) {
+    mech_ = &mech;
+    mult_ = &multipliers;
+    d_.assign(mech.n_species(), 0.0);
+    g_.assign(mech.n_species(), 0.0);
+  }
+  // Driving quantity per unit concentration: R T for partial pressures of
+  // a gas, else 1 (liquid laws read concentrations either way).
+  void set_temperature(double T) {
+    T_ = T;
+    factor_.resize(mech_->n_reactions());
+    for (int j = 0; j < mech_->n_reactions(); ++j)
+      factor_[j] =
+          mech_->phase() == Phase::Gas && mech_->reactions()[j].rate.driving == Driving::Pressure
+              ? kGasConstant * T
+              : 1.0;
+  }
+  int n_species() const override { return mech_->n_species(); }
+  int n_reactions() const override { return mech_->n_reactions(); }
+  double nu(int j, int i) const override { return mech_->reactions()[j].nu[i]; }
+  double rate(int j, const double* c, double* grad) const override {
+    const int n = mech_->n_species();
+    const double f = factor_[j];
+    for (int i = 0; i < n; ++i) d_[i] = std::max(c[i], 0.0) * f;
+    if (grad) std::fill(g_.begin(), g_.end(), 0.0);
+    const auto v = mech_->evaluate(j, T_, d_.data(), grad ? g_.data() : nullptr);
+    const double s = (*mult_)[j] * v.k;
+    if (grad)
+      for (int i = 0; i < n; ++i) grad[i] = c[i] > 0 ? s * g_[i] * f : 0.0;
+    return s * v.value;
+  }
+
+ private:
+  const Mechanism* mech_ = nullptr;
+  const std::vector<double>* mult_ = nullptr;
+  double T_ = 0;
+  std::vector<double> factor_;
+  mutable std::vector<double> d_, g_;  // evaluate()'s work space
+};
+
+// What a stage's pellets make of its rates (see PfrSystem::reset).
+struct PelletBinding {
+  const PelletSpec* spec = nullptr;  // with D_eff
+  std::vector<double> multipliers;   // per reaction: rate per pellet volume / intrinsic rate
+  double rtol = 1e-6;                // the pellet solve's grid tolerance
+};
 
 // The tubular-reactor ODE system on y = [F_1..F_n, T, Q]. Rebound to each
 // stage with reset(); its buffers keep their capacity between runs, so
 // neither rhs() nor the Jacobians allocate.
 class PfrSystem {
  public:
-  void reset(const Mechanism& mech, const std::vector<double>& multipliers, HeatMode heat,
-             double P) {
+  // With `pellet` (effectiveness factors), every rate is the intrinsic one
+  // times its eta_j at the bulk state; the Jacobians keep eta_j fixed at
+  // the state they are evaluated at (its own derivatives are left out), so
+  // they are approximate, which CVODE's Newton iteration tolerates: it
+  // converges on the residual, and tests/pellet_test.cpp checks the stage
+  // outlet against a tight-tolerance run and GSL.
+  void reset(const Mechanism& mech, const std::vector<double>& multipliers, HeatMode heat, double P,
+             const PelletBinding* pellet = nullptr) {
     mech_ = &mech;
+    bind_pellet(mech, pellet);
     beta_.assign(multipliers.begin(), multipliers.end());
     heat_ = heat;
     P_ = P;
@@ -61,10 +121,11 @@ class PfrSystem {
     for (int i = 0; i < n_; ++i) Ft += std::max(y[i], 0.0);
     if (!(Ft > 0)) return 1;
     mech.rates(T, P_, y, r_.data());
+    if (pellet_) update_eta(T, y, Ft);
     for (int i = 0; i < n_; ++i) ydot[i] = 0;
     double q = 0;  // sum_j dH_j R_j, W/m3
     for (int j = 0; j < nr_; ++j) {
-      const double R = r_[j] * beta_[j];
+      const double R = r_[j] * beta_[j] * eta_[j];
       for (int s = st_start_[j]; s < st_start_[j + 1]; ++s) ydot[st_species_[s]] += st_nu_[s] * R;
       q += mech.dH(j, T) * R;
     }
@@ -88,6 +149,14 @@ class PfrSystem {
     const double T = y[n_];
     if (!(T > 0)) return 1;
     mech.rates_and_jacobian(T, P_, y, r_.data(), dr_dF_, dr_dT_, scratch_);
+    if (pellet_) {
+      if (update_eta(T, y) != 0) return 1;
+      for (int j = 0; j < nr_; ++j) {
+        r_[j] *= eta_[j];
+        dr_dF_.row(j) *= eta_[j];
+        dr_dT_(j) *= eta_[j];
+      }
+    }
     auto at = [&](int row, int col) -> double& { return J[row + N * col]; };
     for (int j = 0; j < nr_; ++j) {
       for (int s = st_start_[j]; s < st_start_[j + 1]; ++s) {
@@ -175,6 +244,16 @@ class PfrSystem {
     if (!(T > 0)) return 1;
     mech.rates_and_sparse_jacobian(T, P_, y, r_.data(), direct_.data(), dilution_.data(),
                                    dr_dT_.data(), scratch_);
+    if (pellet_) {
+      if (update_eta(T, y) != 0) return 1;
+      for (int j = 0; j < nr_; ++j) {
+        const int np = static_cast<int>(mech.rate_species(j).size());
+        for (int p = 0; p < np; ++p) direct_[mech.direct_offset(j) + p] *= eta_[j];
+        r_[j] *= eta_[j];
+        dilution_[j] *= eta_[j];
+        dr_dT_(j) *= eta_[j];
+      }
+    }
     std::fill(values, values + nnz_, 0.0);
     std::fill(dq_dF_.begin(), dq_dF_.end(), 0.0);
     double q = 0, dq_dT = 0, dq_dilution = 0;
@@ -206,7 +285,61 @@ class PfrSystem {
     return 0;
   }
 
+  // eta_j at the last evaluated state (all 1 without effectiveness factors).
+  const std::vector<double>& eta() const { return eta_; }
+  bool has_pellet() const { return pellet_ != nullptr; }
+  // eta_j at state y (for the profile points); 0 on success.
+  int update_eta(double T, const double* y) {
+    double Ft = 0;
+    for (int i = 0; i < n_; ++i) Ft += std::max(y[i], 0.0);
+    if (!(Ft > 0) || !(T > 0)) return 1;
+    update_eta(T, y, Ft);
+    return 0;
+  }
+
  private:
+  void bind_pellet(const Mechanism& mech, const PelletBinding* pellet) {
+    pellet_ = pellet;
+    eta_.assign(mech.n_reactions(), 1.0);
+    if (!pellet) return;
+    const PelletSpec& ps = *pellet->spec;
+    transport_.shape = ps.shape;
+    transport_.L = pellet_length_scale(ps.shape, ps.size, ps.length);
+    transport_.D = ps.D_eff;
+    in_pellet_.bind(mech, pellet->multipliers);
+    solver_ = PelletSolver(PelletSolveOptions{.rtol = pellet->rtol});
+    // Thiele: each reaction's key is its first reactant with a nonzero order.
+    key_.assign(mech.n_reactions(), -1);
+    for (int j = 0; j < mech.n_reactions(); ++j) {
+      const auto& rx = mech.reactions()[j];
+      for (int i = 0; i < mech.n_species() && key_[j] < 0; ++i)
+        if (rx.nu[i] < 0 && rx.rate.orders[i] != 0) key_[j] = i;
+    }
+    c_surface_.resize(mech.n_species());
+  }
+
+  // eta_j at the bulk state: surface concentrations = bulk (no film).
+  void update_eta(double T, const double* y, double Ft) {
+    const Mechanism& mech = *mech_;
+    double scale = 0;
+    if (mech.phase() == Phase::Gas) {
+      scale = P_ / (Ft * kGasConstant * T);
+    } else {
+      for (int i = 0; i < n_; ++i) c_surface_[i] = std::max(y[i], 0.0);
+      scale = 1.0 / mech.liquid_volume_flow(c_surface_.data());
+    }
+    for (int i = 0; i < n_; ++i) c_surface_[i] = std::max(y[i], 0.0) * scale;
+    in_pellet_.set_temperature(T);
+    if (pellet_->spec->effectiveness == EffectivenessModel::Pellet) {
+      solver_.solve(in_pellet_, transport_, c_surface_.data(), eta_.data());
+    } else {
+      for (int j = 0; j < nr_; ++j)
+        eta_[j] = key_[j] < 0
+                      ? 1.0
+                      : thiele_effectiveness(in_pellet_, transport_, c_surface_.data(), j, key_[j]);
+    }
+  }
+
   // The energy row (adiabatic: T; isothermal: Q) from q, dq/dT and dq_dF_.
   template <class At>
   void energy_rows(const double* y, double T, double q, double dq_dT, At at) {
@@ -251,6 +384,14 @@ class PfrSystem {
   // positions in rate_species(j) that r_j depends on (see build_pattern).
   std::vector<int> dep_start_, dep_p_;
   int nnz_ = 0;
+  // Effectiveness factors (bind_pellet); eta_ is all 1 without them.
+  const PelletBinding* pellet_ = nullptr;
+  std::vector<double> eta_;
+  MechanismInPellet in_pellet_;
+  PelletTransport transport_;
+  PelletSolver solver_;
+  std::vector<int> key_;
+  std::vector<double> c_surface_;
 };
 
 // True when an integrator made with options a can run with options b.

@@ -46,6 +46,11 @@ std::string purity_text(double x);
 // "R1: sized to an outlet C2H2 of 1 ppm; it leaves at 1 ppm" for a stage
 // sized to an outlet purity; empty for any other.
 std::string purity_sentence(const StageResult& r, const std::vector<std::string>& species);
+
+// "R1: effectiveness factors (spherical pellets, solved pellet; isothermal
+// pellet, no film resistance): semi 0.412 to 0.633, 0.633 at the outlet;
+// ..." for a stage with effectiveness factors; empty for any other.
+std::string effectiveness_sentence(const StageResult& r, const std::vector<std::string>& reactions);
 // The end of every terminal report: "warnings:" and one "  - " line each
 // (nothing when there are none), then the caution.
 std::string warnings_and_caution(const std::vector<std::string>& warnings);

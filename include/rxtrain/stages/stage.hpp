@@ -29,6 +29,15 @@ struct ProfilePoint {
   double T = 0;           // K
   double X = 0;           // overall key conversion
   std::vector<double> F;  // mol/s
+  // Effectiveness factor of each reaction at this point (catalyst pellets
+  // with D_eff; empty without).
+  std::vector<double> eta;
+};
+
+// A reaction's effectiveness factor over a stage: its least and greatest
+// along the integrated profile, and its value at the outlet.
+struct EffectivenessRange {
+  double min = 1, max = 1, outlet = 1;
 };
 
 // One solution of a stirred tank's balances.
@@ -153,6 +162,11 @@ struct StageResult {
   // from the train's feed (filled by run_train; flowsheet/yields.hpp).
   std::vector<double> yield;
   std::vector<std::optional<double>> selectivity;
+  // Tubular stages with catalyst pellets that give D_eff: the pellets (so
+  // that what re-runs the stage runs it alike) and each reaction's
+  // effectiveness factor over the stage; empty without.
+  std::optional<PelletSpec> pellet;
+  std::vector<EffectivenessRange> effectiveness;
 };
 
 // Fills space time, space velocity, GHSV, WHSV and LHSV from the stage's
