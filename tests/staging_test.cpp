@@ -690,3 +690,33 @@ TEST_CASE("the staging answer's words are phrased by the report from the numbers
         "the target X = 0.9000 is out of reach with up to 4 beds: bed 1 ends at its inlet (T_max "
         "470.00 °C)");
 }
+
+// A train-level target that the train misses is said by `run` (its design
+// warnings), whether a conversion or an outlet purity; one it meets is not.
+TEST_CASE("design warnings: the train's target, met or missed", "[staging]") {
+  AbSystem s;
+  TrainResult r;
+  r.outlet = Stream{s.T_feed, s.P, {0.4 * s.F_A0, 0.6 * s.F_A0, s.F_I0}};
+  r.conversion = 0.6;
+  const auto missed = design_warnings(s.load("target: {conversion: 0.70}", kOneBed), r);
+  REQUIRE(missed.size() == 1);
+  CHECK_THAT(missed[0], Catch::Contains("reaches X = 0.6000 of A at its outlet, short of its "
+                                        "target 0.7000"));
+  CHECK(design_warnings(s.load("target: {conversion: 0.60}", kOneBed), r).empty());
+  // x_A at the outlet = 0.4 F_A0 / (F_A0 + F_I0).
+  const double x_A = 0.4 * s.F_A0 / (s.F_A0 + s.F_I0);
+  const auto purity = [&](double x) {
+    return design_warnings(s.load(fmt::format("target: {{outlet: {{A: {}}}}}", x), kOneBed), r);
+  };
+  const auto over = purity(0.5 * x_A);
+  REQUIRE(over.size() == 1);
+  CHECK_THAT(over[0], Catch::Contains("the outlet of the train as the case gives it holds"));
+  CHECK(purity(1.01 * x_A).empty());
+  // The staged studies size to a conversion: an outlet target is refused.
+  try {
+    run_staging(s.load(fmt::format("target: {{outlet: {{A: {}}}}}", 0.5 * x_A), kOneBed));
+    FAIL("staging took an outlet target");
+  } catch (const InputError& e) {
+    CHECK_THAT(e.message(), Catch::Contains("the train's target is an outlet purity"));
+  }
+}

@@ -103,6 +103,23 @@ std::vector<std::string> design_warnings(const Case& c, const TrainResult& resul
   for (const auto& f : result.limit_check.findings)
     out.push_back(limit_finding_text(f, result.limit_check.margin));
 
+  // Then against the train's own target, said plainly when missed.
+  if (c.target_conversion && result.conversion < *c.target_conversion - kReachTolerance)
+    out.push_back(fmt::format(
+        "the train as the case gives it reaches X = {:.4f} of {} at its outlet, short of its "
+        "target {:.4f}; staging "
+        "shows how many beds with intercoolers the target takes",
+        result.conversion, key, *c.target_conversion));
+  if (c.target_outlet) {
+    const auto& t = *c.target_outlet;
+    const double x = mole_fractions(result.outlet)[t.species];
+    if (x > t.x * (1 + kReachTolerance))
+      out.push_back(fmt::format(
+          "the outlet of the train as the case gives it holds {:.6g} ppm of {}, above its target "
+          "{:.6g} ppm",
+          x * 1e6, c.mechanism.species()[t.species].id, t.x * 1e6));
+  }
+
   if (const auto dT = adiabatic_temperature_change(c)) {
     const double T_full = c.feed.T + *dT;
     if (*dT > 0 && lim.T_max && T_full > *lim.T_max && c.feed.T >= *lim.T_max) {

@@ -234,7 +234,7 @@ class Loader {
   void read_feed(const YAML::Node& node);
   void read_key(const YAML::Node& node);
   void read_train(const YAML::Node& list);
-  double read_train_target(const YAML::Node& node) const;
+  void read_train_target(const YAML::Node& node, Case& c) const;
   OutletTarget read_outlet_target(const YAML::Node& node, const std::string& ctx) const;
   TemperatureLimits read_limits(const YAML::Node& node) const;
   PelletSpec read_pellet(const YAML::Node& node, const std::string& ctx) const;
@@ -1216,12 +1216,30 @@ PelletSpec Loader::read_pellet(const YAML::Node& node, const std::string& ctx) c
 
 // ---- train-level target and temperature limits --------------------------
 
-double Loader::read_train_target(const YAML::Node& node) const {
+void Loader::read_train_target(const YAML::Node& node, Case& c) const {
   Fields t(*this, node, "target");
-  t.check({"conversion"});
-  const YAML::Node& x =
-      t.need("conversion", "the overall key conversion the train should reach, e.g. 0.92");
-  return field(x, CaseFieldKind::TrainTarget);
+  t.check({"conversion", "outlet"});
+  if (t.find("conversion") && t.find("outlet"))
+    fail(*t.key_of("outlet"), "target gives both conversion and outlet; give exactly one");
+  if (const auto* o = t.find("outlet")) {
+    OutletTarget target = read_outlet_target(*o, "the train");
+    // Against the feed, which is the train's inlet (read_outlet_target
+    // checks it only for a stage with no reactor before it).
+    double total = 0;
+    for (double F : feed_.F) total += F;
+    const double x_feed = feed_.F[target.species] / total;
+    if (target.x >= x_feed)
+      fail(o->begin()->second,
+           fmt::format("outlet target of the train: {} mole fraction {:.6g} ppm is not below its "
+                       "value in the feed ({:.6g} ppm)",
+                       species_[target.species].id, target.x * 1e6, x_feed * 1e6));
+    c.target_outlet = target;
+    return;
+  }
+  const YAML::Node& x = t.need("conversion",
+                               "the overall key conversion the train should reach, e.g. 0.92, or "
+                               "an outlet purity, e.g. outlet: {C2H2: 1 ppm}");
+  c.target_conversion = field(x, CaseFieldKind::TrainTarget);
 }
 
 TemperatureLimits Loader::read_limits(const YAML::Node& node) const {
@@ -1379,7 +1397,7 @@ Case Loader::load(const YAML::Node& root) {
   read_train(top.need("train", "the list of stages"));
   c.target_where = {file_, 0, 0};
   if (const auto* n = top.find("target")) {
-    c.target_conversion = read_train_target(*n);
+    read_train_target(*n, c);
     c.target_where = at(*n);
   }
   c.limits.where = {file_, 0, 0};

@@ -19,6 +19,13 @@ const ReactorSpec* first_reactor(const Case& c) {
 
 void require_target(const Case& c, LayoutStudy study) {
   if (c.target_conversion) return;
+  if (c.target_outlet)
+    throw InputError(c.target_where,
+                     fmt::format("the train's target is an outlet purity; {} sizes beds to a "
+                                 "conversion of the key: give \"target: {{conversion: X}}\" at "
+                                 "the top level, or size the last stage to the purity "
+                                 "(target: {{outlet: ...}} on the stage) and rate it with run",
+                                 study == LayoutStudy::Staging ? "staging" : "optimize"));
   throw InputError(c.target_where,
                    study == LayoutStudy::Staging
                        ? "the case has no train-level target; staging sizes the beds to one: add "

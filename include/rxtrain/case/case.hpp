@@ -82,6 +82,10 @@ struct Case {
   // Train-level target (top-level `target: {conversion: X}`), 0 < X < 1:
   // the overall key conversion the whole train should reach.
   std::optional<double> target_conversion;
+  // Or an outlet purity of the whole train (`target: {outlet: {SP: x}}`):
+  // `run` says whether the train's outlet meets it; the staged studies,
+  // which size beds to a conversion, refuse it.
+  std::optional<OutletTarget> target_outlet;
   SourceLocation target_where;  // the `target` entry; file only when absent
   TemperatureLimits limits;
   // Species WHSV and LHSV are quoted on (top-level `space_velocity_basis`),
@@ -94,6 +98,16 @@ struct Case {
 
   ConversionBasis conversion_basis() const { return {key, feed.F[key]}; }
 };
+
+// A conversion counts as reached when it is within this (absolute) of the
+// conversion aimed at, in every comparison of the studies (staging,
+// optimize, and compare's sized layouts) and in `run`'s check of the
+// train-level target. 1e-6:
+// far below the four decimals shown, above the CVODE root on a conversion
+// (~1e-10) and above the agreement of the optimizer's quadrature with the
+// train solver on the same beds (its check warns only past 1e-5), so that
+// a train written by `optimize` reaches its own target when run again.
+inline constexpr double kReachTolerance = 1e-6;
 
 // Reads and validates a case file. Throws InputError.
 Case load_case(const std::string& path, const UnitParser& units);

@@ -18,14 +18,8 @@
 
 namespace rxtrain {
 
-// A conversion counts as reached when it is within this (absolute) of the
-// conversion aimed at, in every comparison of the studies (staging,
-// optimize, and compare's sized layouts). 1e-6:
-// far below the four decimals shown, above the CVODE root on a conversion
-// (~1e-10) and above the agreement of the optimizer's quadrature with the
-// train solver on the same beds (its check warns only past 1e-5), so that
-// a train written by `optimize` reaches its own target when run again.
-inline constexpr double kReachTolerance = 1e-6;
+// kReachTolerance (case/case.hpp) is the one tolerance on reaching a
+// conversion the studies use.
 
 // One adiabatic bed of a layout. T is monotone along an adiabatic bed of
 // one reaction; with several, T_max and T_min are the extremes inside it.
