@@ -390,3 +390,29 @@ TEST_CASE("every stage result field reads what the JSON writer writes", "[case-f
     }
   }
 }
+
+// `rxtrain run` without --json, --csv or --report skips the curves (the
+// table shows none of them): the records and reaches it prints must be the
+// ones the full views give, to the last bit.
+TEST_CASE("the views without their curves keep every record and reach", "[case-fields]") {
+  const UnitParser units;
+  const Case c = load_case(
+      (std::filesystem::path(RXTRAIN_SOURCE_DIR) / "cases" / "so2-three-bed-converter.yaml")
+          .string(),
+      units);
+  const TrainResult all = run_train(c, TrainOptions{});
+  TrainOptions table_only;
+  table_only.view_curves = false;
+  const TrainResult table = run_train(c, table_only);
+  CHECK(table.equilibrium_curve.empty());
+  CHECK(table.max_rate_locus.empty());
+  CHECK(table.levenspiel.empty());
+  REQUIRE_FALSE(all.equilibrium_curve.empty());
+  REQUIRE_FALSE(all.levenspiel.empty());
+  nlohmann::json a = to_json(all), t = to_json(table);
+  for (auto* j : {&a, &t})
+    for (const char* k : {"equilibrium_curve", "max_rate_locus", "levenspiel"}) j->erase(k);
+  CHECK(a == t);
+  CHECK(a["stages"][0]["equilibrium"] != nullptr);
+  CHECK(a["stages"][0]["reach"] != nullptr);
+}

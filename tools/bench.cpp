@@ -140,10 +140,11 @@ void bench_startup(const std::string& file, double budget) {
 void bench_cases(const std::vector<std::string>& files, double budget) {
   fmt::print(
       "\n== cases: wall time per run (fresh: run_train(c, o); reused: with a "
-      "TrainWorkspace; views: as `rxtrain run`)\n");
-  fmt::print("{:<36} {:>6} {:>6} {:>6} {:>5} {:>6} {:>7} {:>11} {:>11} {:>11} {:>11}\n", "case",
-             "stages", "steps", "rhs", "jac", "g", "allocs", "fresh", "reused", "reused CPU",
-             "views");
+      "TrainWorkspace; views: as `rxtrain run --json` (every view); table: as `rxtrain run` "
+      "printing its table (records and reaches, no curves))\n");
+  fmt::print("{:<36} {:>6} {:>6} {:>6} {:>5} {:>6} {:>7} {:>11} {:>11} {:>11} {:>11} {:>11}\n",
+             "case", "stages", "steps", "rhs", "jac", "g", "allocs", "fresh", "reused",
+             "reused CPU", "views", "table");
   const UnitParser units;
   for (const auto& f : files) {
     const std::string name = std::filesystem::path(f).filename().string();
@@ -161,11 +162,14 @@ void bench_cases(const std::vector<std::string>& files, double budget) {
       const Timing t_reused = median_seconds([&] { (void)run_train(c, core, ws); }, budget);
       const Timing t_views =
           median_seconds([&] { (void)run_train(c, TrainOptions{}, ws); }, budget);
+      TrainOptions table_only;  // `rxtrain run` without --json, --csv or --report
+      table_only.view_curves = false;
+      const Timing t_table = median_seconds([&] { (void)run_train(c, table_only, ws); }, budget);
       fmt::print(
           "{:<36} {:>6} {:>6} {:>6} {:>5} {:>6} {:>7} {:>8.1f} us {:>8.1f} us {:>8.1f} us "
-          "{:>8.2f} ms\n",
+          "{:>8.2f} ms {:>8.2f} ms\n",
           name, first.stages.size(), w.steps, w.rhs, w.jac, w.roots, allocs, t_fresh.wall * 1e6,
-          t_reused.wall * 1e6, t_reused.cpu * 1e6, t_views.wall * 1e3);
+          t_reused.wall * 1e6, t_reused.cpu * 1e6, t_views.wall * 1e3, t_table.wall * 1e3);
     } catch (const std::exception& e) {
       fmt::print("{:<36} failed: {}\n", name, e.what());
     }

@@ -37,6 +37,8 @@ int run(const RunOptions& o) {
   const UnitParser units;
   const Case c = load_case(o.case_file, units);
   TrainOptions options;
+  // The curves are drawn or written only by the JSON, CSV and report.
+  options.view_curves = !o.json_path.empty() || !o.csv_dir.empty() || !o.report_dir.empty();
   options.solvers.tube.cvode.rtol = o.rtol;
   options.limit_check.margin = parse_limit_margin(o.limit_margin, units);
   if (!o.approach_window.empty()) {

@@ -36,6 +36,7 @@ void add_equilibrium_records(const Case& c, const TrainOptions& options, TrainRe
           fmt::format("stage {}: equilibrium record not computed: {}", r.id, e.what()));
     }
   }
+  if (!options.view_curves) return;
   // A margin around what the train spans, so the curve frames the paths.
   const double margin = std::max(20.0, 0.1 * (T_hi - T_lo));
   T_lo = std::max(options.solvers.equilibrium.T_min, T_lo - margin);
@@ -188,7 +189,8 @@ void set_warm_starts(const TrainResult& result, std::vector<CstrWarmStart>& warm
 void add_equilibrium_views(const Case& c, const TrainOptions& options, TrainResult& result) {
   add_equilibrium_records(c, options, result);
   add_reaches(c, options, result);
-  result.levenspiel = levenspiel_curves(c.mechanism, c.key, c.feed.F[c.key], result.stages);
+  if (options.view_curves)
+    result.levenspiel = levenspiel_curves(c.mechanism, c.key, c.feed.F[c.key], result.stages);
 }
 
 }  // namespace rxtrain

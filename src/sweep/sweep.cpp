@@ -15,6 +15,7 @@ TrainOptions run_options(const OutputSpec& outputs, const SweepOptions& options)
   TrainOptions t = options.train;
   t.equilibrium_views = outputs.needs_equilibrium_views();
   t.solvers.tube.full_profile = outputs.needs_equilibrium_views();
+  t.view_curves = false;  // a row holds numbers of the stages, never a curve
   return t;
 }
 

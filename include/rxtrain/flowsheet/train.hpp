@@ -40,6 +40,11 @@ struct TrainOptions {
   // Levenspiel curves of every reactor stage. Off for callers
   // that run a train many times and need only its outlet.
   bool equilibrium_views = true;
+  // With the views: also the equilibrium curve, the maximum-rate locus and
+  // the Levenspiel curves, which only the JSON, CSV and report show (about
+  // two thirds of the views' cost). Off: each stage's equilibrium record
+  // and reach only, all the text table needs.
+  bool view_curves = true;
   // Points of the equilibrium curve and of the maximum-rate locus.
   int curve_points = 61;
   // The check of every reactor stage against the case's limits (its
