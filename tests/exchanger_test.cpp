@@ -9,6 +9,7 @@
 
 #include "rxtrain/base/error.hpp"
 #include "rxtrain/models/energy_balance.hpp"
+#include "rxtrain/models/heat_exchange.hpp"
 
 namespace {
 
@@ -125,5 +126,63 @@ TEST_CASE("temperature_for_enthalpy inverts the sensible enthalpy flow", "[excha
   for (double H : {-5000.0, 0.0, 1.0, 123456.0}) {
     const double T = rxtrain::temperature_for_enthalpy(mech, F, H, 1000.0);
     CHECK(rel(T, 298.15 + H / 70.0) < 1e-12);
+  }
+}
+
+// Counter-flow LMTD by hand: process 200 -> 80 °C against water 30 -> 45 °C.
+// The ends: dT_a = 200 - 45 = 155 K, dT_b = 80 - 30 = 50 K; LMTD = (155 - 50)
+// / ln(155 / 50) = 105 / ln 3.1 = 105 / 1.1314021114911 = 92.805200674072 K
+// (the log-mean of the terminal differences, e.g. Incropera, Fundamentals of
+// Heat and Mass Transfer, ch. 11). A heater's ends are both negative and give
+// the same form: steam at 250 °C heating 60 -> 150 °C: (100 - 190) / ln(100 /
+// 190) = 140.21882851984 K.
+TEST_CASE("counter-flow LMTD, area and utility flow by hand", "[exchanger]") {
+  using rxtrain::counterflow_lmtd;
+  const double C = 273.15;
+  CHECK(rel(*counterflow_lmtd(200 + C, 80 + C, 30 + C, 45 + C), 92.805200674072) < 1e-12);
+  CHECK(rel(*counterflow_lmtd(60 + C, 150 + C, 250 + C, 250 + C), 140.21882851984) < 1e-12);
+  // Equal ends: the common difference.
+  CHECK(rel(*counterflow_lmtd(200 + C, 100 + C, 50 + C, 150 + C), 50.0) < 1e-12);
+  // A cross (the water would leave hotter than the process enters its end),
+  // and a pinch of zero, have no LMTD.
+  CHECK_FALSE(counterflow_lmtd(200 + C, 80 + C, 30 + C, 210 + C));
+  CHECK_FALSE(counterflow_lmtd(200 + C, 80 + C, 80 + C, 120 + C));
+  // A = |Q| / (U LMTD); the water's flow |Q| / (cp dT): 1 MW, U = 350 W/(m2 K),
+  // cp = 4180 J/(kg K): A = 30.786452013363 m2, 15.948963317384 kg/s.
+  const auto z = rxtrain::size_exchanger(-1e6, 350, 200 + C, 80 + C, 30 + C, 45 + C, 4180.0);
+  REQUIRE(z);
+  CHECK(rel(z->area, 30.786452013363) < 1e-12);
+  REQUIRE(z->utility_flow);
+  CHECK(rel(*z->utility_flow, 15.948963317384) < 1e-12);
+  // A utility on the wrong side: steam at 250 °C cannot heat 410 -> 430 °C.
+  CHECK_FALSE(rxtrain::size_exchanger(1e6, 60, 410 + C, 430 + C, 250 + C, 250 + C, {}));
+  CHECK(rxtrain::size_exchanger(-1e6, 60, 620 + C, 430 + C, 250 + C, 250 + C, {}));
+  // A boiling utility has no flow from a sensible balance.
+  CHECK_FALSE(
+      rxtrain::size_exchanger(1e6, 350, 60 + C, 150 + C, 250 + C, 250 + C, {})->utility_flow);
+}
+
+TEST_CASE("an exchanger stage with U and a utility reports its size, and a cross is refused",
+          "[exchanger]") {
+  const Mechanism mech(Phase::Gas, {species("A", CpConstant{30.0}), species("B", CpConstant{45.0})},
+                       {});
+  const Stream in{700.0, 3e5, {2.0, 3.0}};
+  const rxtrain::ConversionBasis basis{0, 4.0};
+  ExchangerSpec x = exchanger(450.0, {});
+  x.U = 200;
+  x.utility = rxtrain::UtilitySpec{400.0, 500.0, 2000.0};
+  const StageResult r = rxtrain::run_exchanger(mech, x, in, basis);
+  REQUIRE(r.exchanger_size);
+  const double lmtd = ((700.0 - 500.0) - (450.0 - 400.0)) / std::log(200.0 / 50.0);
+  CHECK(rel(r.exchanger_size->lmtd, lmtd) < 1e-12);
+  CHECK(rel(r.exchanger_size->area, std::abs(r.duty) / (200 * lmtd)) < 1e-12);
+  CHECK(rel(*r.exchanger_size->utility_flow, std::abs(r.duty) / (2000.0 * 100.0)) < 1e-12);
+  x.utility = rxtrain::UtilitySpec{400.0, 720.0, 2000.0};  // leaves hotter than the process enters
+  try {
+    rxtrain::run_exchanger(mech, x, in, basis);
+    FAIL("a temperature cross was sized");
+  } catch (const rxtrain::InputError& e) {
+    CHECK(e.where().line == 12);
+    CHECK_THAT(e.message(), Catch::Contains("temperature cross"));
   }
 }

@@ -45,6 +45,16 @@ constexpr std::array kStage{
                     [](const TrainResult&, const StageResult* s, int) { return s->lhsv; }},
     ResultFieldSpec{"duty", "W", R::Stage,
                     [](const TrainResult&, const StageResult* s, int) -> V { return s->duty; }},
+    ResultFieldSpec{"area", "m2", R::Stage,
+                    [](const TrainResult&, const StageResult* s, int) -> V {
+                      if (!s->exchanger_size) return std::nullopt;
+                      return s->exchanger_size->area;
+                    }},
+    ResultFieldSpec{"lmtd", "K", R::Stage,
+                    [](const TrainResult&, const StageResult* s, int) -> V {
+                      if (!s->exchanger_size) return std::nullopt;
+                      return s->exchanger_size->lmtd;
+                    }},
     ResultFieldSpec{"T_peak", "K", R::Stage,
                     [](const TrainResult&, const StageResult* s, int) -> V { return s->T_max; }},
     ResultFieldSpec{"T_min", "K", R::Stage,

@@ -236,6 +236,7 @@ class Loader {
   void read_train(const YAML::Node& list);
   void read_train_target(const YAML::Node& node, Case& c) const;
   OutletTarget read_outlet_target(const YAML::Node& node, const std::string& ctx) const;
+  void read_exchanger_size(const Fields& f, ExchangerSpec& x) const;
   TemperatureLimits read_limits(const YAML::Node& node) const;
   PelletSpec read_pellet(const YAML::Node& node, const std::string& ctx) const;
   std::vector<int> read_space_velocity_basis(const YAML::Node& node) const;
@@ -1010,7 +1011,7 @@ StageSpec Loader::read_stage(const YAML::Node& node, std::size_t index) {
   const std::string& ctx = f.context();
 
   if (type == "exchanger") {
-    f.check({"type", "id", "T_out", "duty"});
+    f.check({"type", "id", "T_out", "duty", "U", "utility"});
     ExchangerSpec x;
     x.id = sid;
     x.where = at(node);
@@ -1024,6 +1025,7 @@ StageSpec Loader::read_stage(const YAML::Node& node, std::size_t index) {
                              ctx));
     if (t_out) x.T_out = field(*t_out, CaseFieldKind::ExchangerTout, sid);
     if (duty) x.duty = field(*duty, CaseFieldKind::ExchangerDuty, sid);
+    read_exchanger_size(f, x);
     return x;
   }
 
@@ -1113,6 +1115,46 @@ StageSpec Loader::read_stage(const YAML::Node& node, std::size_t index) {
                          ctx, rx.id));
     }
   return r;
+}
+
+// An exchanger's sizing: U and its utility, both or neither. The utility
+// is {T_in, T_out, cp} (sensible; cp optional, for its flow) or {T}
+// (boiling or condensing at one temperature).
+void Loader::read_exchanger_size(const Fields& f, ExchangerSpec& x) const {
+  const std::string& ctx = f.context();
+  const auto* U = f.find("U");
+  const auto* u = f.find("utility");
+  if (!U && !u) return;
+  if (!U || !u)
+    fail(U ? *f.key_of("U") : *f.key_of("utility"),
+         fmt::format("{} gives {} without {}; an exchanger is sized from both (e.g. U: 350 "
+                     "W/m2/K and utility: {{T_in: 30 degC, T_out: 45 degC, cp: 4.18 kJ/kg/K}})",
+                     ctx, U ? "U" : "utility", U ? "utility" : "U"));
+  const SiUnit u_unit = SiUnit::of("W/(m2*K)", "a heat transfer coefficient");
+  x.U = quantity(*U, "U of " + ctx, u_unit);
+  check_range(*U, "U of " + ctx, kPositive, u_unit.to_string(), *x.U);
+  Fields g(*this, *u, "utility of " + ctx);
+  g.check({"T", "T_in", "T_out", "cp"});
+  UtilitySpec us;
+  if (const auto* t = g.find("T")) {
+    if (g.find("T_in") || g.find("T_out") || g.find("cp"))
+      fail(*g.key_of("T"), fmt::format("utility of {} gives T (one temperature: boiling or "
+                                       "condensing) together with T_in, T_out or cp; give one "
+                                       "kind",
+                                       ctx));
+    us.T_in = us.T_out = temperature(*t, "T of the utility of " + ctx);
+  } else {
+    us.T_in = temperature(g.need("T_in", "the utility's inlet temperature, e.g. T_in: 30 degC"),
+                          "T_in of the utility of " + ctx);
+    us.T_out = temperature(g.need("T_out", "the utility's outlet temperature, e.g. T_out: 45 degC"),
+                           "T_out of the utility of " + ctx);
+    if (const auto* cp = g.find("cp")) {
+      const SiUnit cp_unit = SiUnit::of("J/(kg*K)", "a specific heat capacity");
+      us.cp = quantity(*cp, "cp of the utility of " + ctx, cp_unit);
+      check_range(*cp, "cp of the utility of " + ctx, kPositive, cp_unit.to_string(), *us.cp);
+    }
+  }
+  x.utility = us;
 }
 
 // An outlet purity: one species and its mole fraction ("1 ppm", "0.5 %"

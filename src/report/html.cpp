@@ -150,6 +150,8 @@ std::string run_report_html(const Case& c, const TrainResult& r, const std::vect
   for (const auto& s : r.stages)
     if (s.outlet_target) h += "<p>" + xml_escape(purity_sentence(s, r.species)) + ".</p>\n";
   for (const auto& s : r.stages)
+    if (s.exchanger_size) h += "<p>" + xml_escape(exchanger_size_sentence(s)) + ".</p>\n";
+  for (const auto& s : r.stages)
     if (!s.effectiveness.empty())
       h += "<p>" + xml_escape(effectiveness_sentence(s, r.reactions)) + ".</p>\n";
   for (const auto& s : r.stages)

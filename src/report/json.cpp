@@ -53,11 +53,12 @@ json units_json(const std::vector<std::string>& reactions) {
             {"lhsv", "1/h"},
             {"duty", "W"},
             {"inverse_rate", "kg*s/mol or m3*s/mol, by the curve's basis"},
-            {"area", "kg or m3, by the curve's basis"}};
+            {"area", "m2 for an exchanger; kg or m3 for a Levenspiel curve, by its basis"},
+            {"flow", "kg/s (a utility's mass flow)"}};
   for (const char* k : {"T", "T_peak", "T_max", "T_min", "T_in_min", "T_opt", "T_ad_eq",
-                        "T_at_X_max", "T_end", "limit"})
+                        "T_at_X_max", "T_end", "limit", "T_in", "T_out"})
     u[k] = "K";
-  for (const char* k : {"approach_T", "approach_T_window", "margin", "by"})
+  for (const char* k : {"approach_T", "approach_T_window", "margin", "by", "lmtd"})
     u[k] = "K (a difference)";
   for (const char* k : {"volume", "V", "V_at_X_max"}) u[k] = "m3";
   for (const char* k :
@@ -136,6 +137,16 @@ json stage(const TrainResult& t, const StageResult& r) {
   s["lhsv"] = json_number(r.lhsv);
   s["space_velocity_basis"] = r.space_velocity_basis;
   s["duty"] = json_number(r.duty);
+  // An exchanger given U and its utility: the counter-flow LMTD, the area
+  // and the utility (its flow where its cp is given); null otherwise.
+  s["lmtd"] = r.exchanger_size ? json_number(r.exchanger_size->lmtd) : json(nullptr);
+  s["area"] = r.exchanger_size ? json_number(r.exchanger_size->area) : json(nullptr);
+  s["utility"] = r.utility ? json{{"T_in", json_number(r.utility->T_in)},
+                                  {"T_out", json_number(r.utility->T_out)},
+                                  {"flow", r.exchanger_size && r.exchanger_size->utility_flow
+                                               ? json_number(*r.exchanger_size->utility_flow)
+                                               : json(nullptr)}}
+                           : json(nullptr);
   s["T_peak"] = json_number(r.T_max);  // the stage's hottest point; T_max is the limit
   s["T_min"] = json_number(r.T_min);
   s["conversion"] = json_number(r.conversion);

@@ -46,6 +46,8 @@ Quantity column_quantity(const std::string& name, const std::string& si_unit) {
   if (field == "volume") return {"Volume" + of, "m³"};
   if (field == "catalyst" || field == "catalyst_mass") return {"Catalyst" + in, "kg"};
   if (field == "duty") return {"Duty" + of, "kW", 1e-3};
+  if (field == "area") return {"Exchanger area" + of, "m²"};
+  if (field == "lmtd") return {"Log-mean temperature difference" + of, "K"};
   if (field == "ghsv" || field == "whsv" || field == "lhsv") {
     std::string upper = field;
     for (char& c : upper) c = static_cast<char>(std::toupper(static_cast<unsigned char>(c)));

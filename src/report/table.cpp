@@ -137,6 +137,8 @@ std::string format_stage_table(const TrainResult& result) {
   for (const auto& r : result.stages)
     if (r.outlet_target) out += "  " + purity_sentence(r, result.species) + "\n";
   for (const auto& r : result.stages)
+    if (r.exchanger_size) out += "  " + exchanger_size_sentence(r) + "\n";
+  for (const auto& r : result.stages)
     if (!r.effectiveness.empty()) out += "  " + effectiveness_sentence(r, result.reactions) + "\n";
   for (const auto& r : result.stages)
     if (r.reach && r.heat) out += "  " + reach_sentence(r, result.species) + "\n";

@@ -85,6 +85,18 @@ std::string effectiveness_sentence(const StageResult& r,
   return out;
 }
 
+std::string exchanger_size_sentence(const StageResult& r) {
+  if (!r.exchanger_size || !r.utility) return {};
+  const auto& z = *r.exchanger_size;
+  const auto& u = *r.utility;
+  std::string utility = u.T_in == u.T_out ? fmt::format("utility at {} °C", celsius_text(u.T_in))
+                                          : fmt::format("utility {} → {} °C", celsius_text(u.T_in),
+                                                        celsius_text(u.T_out));
+  if (z.utility_flow) utility += fmt::format(", {} kg/s", plain_sig_text(*z.utility_flow));
+  return fmt::format("{}: counter flow, LMTD {} K, area {} m2 ({})", r.id, fixed_text(z.lmtd, 2),
+                     plain_sig_text(z.area), utility);
+}
+
 std::string closure_text(double relative) {
   if (!std::isfinite(relative)) return "-";
   // Below 1e-12 it is the round-off of the sums, whose digits vary with

@@ -7,7 +7,9 @@
 #include <limits>
 
 #include "rxtrain/base/error.hpp"
+#include "rxtrain/base/units.hpp"
 #include "rxtrain/models/energy_balance.hpp"
+#include "rxtrain/models/heat_exchange.hpp"
 
 namespace rxtrain {
 
@@ -53,6 +55,21 @@ StageResult run_exchanger(const Mechanism& mech, const ExchangerSpec& spec, cons
   res.profile.push_back(ProfilePoint{0.0, T_out, res.conversion, inlet.F, {}});
   res.stats.message = spec.T_out ? "outlet temperature given; duty from the enthalpy balance"
                                  : "duty given; outlet temperature from the enthalpy balance";
+  if (spec.U && spec.utility) {
+    const UtilitySpec& u = *spec.utility;
+    res.utility = u;
+    res.exchanger_size = size_exchanger(duty, *spec.U, inlet.T, T_out, u.T_in, u.T_out, u.cp);
+    if (!res.exchanger_size)
+      throw InputError(
+          spec.where,
+          fmt::format("stage {}: temperature cross: the process goes from {} to {} ({} the "
+                      "stream) and the utility from {} to {}; in counter flow the utility must "
+                      "stay {} than the process at both ends (process in against utility out, "
+                      "process out against utility in)",
+                      spec.id, temperature_words(inlet.T), temperature_words(T_out),
+                      duty < 0 ? "cooling" : "heating", temperature_words(u.T_in),
+                      temperature_words(u.T_out), duty < 0 ? "colder" : "hotter"));
+  }
   return res;
 }
 

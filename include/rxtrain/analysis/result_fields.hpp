@@ -5,7 +5,8 @@
 // result a study may read is one row here.
 //
 // Stage fields: volume, catalyst_mass, bulk_density, space_time,
-// space_velocity, ghsv, whsv, lhsv, duty, T_peak (the stage's hottest
+// space_velocity, ghsv, whsv, lhsv, duty, area and lmtd (an exchanger
+// given U and its utility), T_peak (the stage's hottest
 // point; T_max names only the catalyst's limit), T_min, conversion,
 // inlet.T, inlet.P, outlet.T, outlet.P, over_limit (K by which the stage
 // passes the case's limits, 0 within; none for an exchanger or a case

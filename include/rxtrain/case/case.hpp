@@ -50,10 +50,22 @@ struct ReactorSpec {
 };
 
 // An interstage cooler or heater: exactly one of T_out and duty.
+// The utility on the other side of an exchanger: a sensible one entering
+// at T_in and leaving at T_out (with cp, its flow follows), or a boiling or
+// condensing one at one temperature (T_in == T_out, no cp).
+struct UtilitySpec {
+  double T_in = 0, T_out = 0;  // K
+  std::optional<double> cp;    // J/(kg K)
+};
+
 struct ExchangerSpec {
   std::string id;
   std::optional<double> T_out;  // K
   std::optional<double> duty;   // W, heat added to the stream
+  // Optional sizing (both or neither): the overall coefficient, W/(m2 K),
+  // and the utility on the other side (models/heat_exchange.hpp).
+  std::optional<double> U;
+  std::optional<UtilitySpec> utility;
   SourceLocation where;
 };
 

@@ -39,6 +39,10 @@ std::vector<std::string> fraction_column(const std::vector<double>& values);
 // "< 1e-12" where it is round-off.
 std::string closure_text(double relative);
 
+// "E1: counter flow, LMTD 45.20 K, area 123.4 m2 (utility 30.00 → 45.00
+// °C, 12.3 kg/s)" for an exchanger given U and its utility; empty else.
+std::string exchanger_size_sentence(const StageResult& r);
+
 // A mole fraction as a purity is quoted: in ppm below 0.1 %, else in %
 // ("1 ppm", "6 %"), six significant digits.
 std::string purity_text(double x);

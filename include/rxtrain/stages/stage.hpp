@@ -13,6 +13,7 @@
 #include "rxtrain/chem/stream.hpp"
 #include "rxtrain/models/energy_balance.hpp"
 #include "rxtrain/models/equilibrium.hpp"
+#include "rxtrain/models/heat_exchange.hpp"
 #include "rxtrain/solvers/cvode.hpp"
 
 namespace rxtrain {
@@ -167,6 +168,10 @@ struct StageResult {
   // effectiveness factor over the stage; empty without.
   std::optional<PelletSpec> pellet;
   std::vector<EffectivenessRange> effectiveness;
+  // Exchangers given U and a utility: the utility and the size
+  // (models/heat_exchange.hpp); empty without.
+  std::optional<UtilitySpec> utility;
+  std::optional<ExchangerSize> exchanger_size;
 };
 
 // Fills space time, space velocity, GHSV, WHSV and LHSV from the stage's
