@@ -214,16 +214,15 @@ std::string feed_section(const Case& c) {
     return T ? fmt::format("{} °C ({} K)", celsius_text(*T), fixed_text(*T, 2))
              : std::string("not given");
   };
-  h += fmt::format("<p>Train-level target: {}. Catalyst limits: T_max {}; T_in_min {}.</p>\n",
-                   c.target_conversion
-                       ? fmt::format("conversion of {} = {}", xml_escape(species[c.key].id),
-                                     fixed_text(*c.target_conversion, 4))
-                   : c.target_outlet
-                       ? fmt::format("outlet {} of {}",
-                                     xml_escape(species[c.target_outlet->species].id),
-                                     purity_text(c.target_outlet->x))
-                       : std::string("none (each stage as the case gives it)"),
-                   limit(c.limits.T_max), limit(c.limits.T_in_min));
+  h += fmt::format(
+      "<p>Train-level target: {}. Catalyst limits: T_max {}; T_in_min {}.</p>\n",
+      c.target_conversion ? fmt::format("conversion of {} = {}", xml_escape(species[c.key].id),
+                                        fixed_text(*c.target_conversion, 4))
+      : c.target_outlet
+          ? fmt::format("outlet {} of {}", xml_escape(species[c.target_outlet->species].id),
+                        purity_text(c.target_outlet->x))
+          : std::string("none (each stage as the case gives it)"),
+      limit(c.limits.T_max), limit(c.limits.T_in_min));
   // What each sized stage is sized to, and the products the case wants.
   std::string targets;
   for (const auto& s : c.train) {
