@@ -535,7 +535,9 @@ struct Tank {
       reach = cstr_reach(mech, spec, inlet, basis, workspace, options);
     } catch (const SolverError&) {
     }
-    if (reach) throw InfeasibleError(spec.where, out_of_reach_text(spec, X_t, *reach, mech));
+    if (reach)
+      throw InfeasibleError(spec.where, out_of_reach_text(spec, X_t, *reach, mech), reach->X_max,
+                            "conversion");
     throw InfeasibleError(spec.where,
                           fmt::format("stage {}: target conversion {:.4f} is out of reach: the "
                                       "net rate there is zero or negative",
