@@ -6,7 +6,6 @@ RXTRAIN_BIN the rxtrain binary and RXTRAIN_SOURCE_DIR the repository.
 
 import glob
 import json
-import math
 import os
 import re
 import subprocess
@@ -14,28 +13,11 @@ import tempfile
 
 import numpy
 import pytest
+from conftest import BIN, SOURCE, same
 
 import rxtrain
 
-SOURCE = os.environ.get("RXTRAIN_SOURCE_DIR", os.path.join(os.path.dirname(__file__), "..", ".."))
-BIN = os.environ.get("RXTRAIN_BIN", os.path.join(SOURCE, "build", "rxtrain"))
 DEMOS = sorted(glob.glob(os.path.join(SOURCE, "cases", "*.yaml")))
-
-
-def same(a, b, where="$"):
-    """Equal documents, numbers within 1e-12 relative (the issue's bound)."""
-    if isinstance(a, dict):
-        assert isinstance(b, dict) and sorted(a) == sorted(b), where
-        for k in a:
-            same(a[k], b[k], f"{where}.{k}")
-    elif isinstance(a, list):
-        assert isinstance(b, list) and len(a) == len(b), where
-        for i, (x, y) in enumerate(zip(a, b)):
-            same(x, y, f"{where}[{i}]")
-    elif isinstance(a, float) or isinstance(b, float):
-        assert math.isclose(a, b, rel_tol=1e-12, abs_tol=0.0) or a == b, f"{where}: {a} != {b}"
-    else:
-        assert a == b, f"{where}: {a!r} != {b!r}"
 
 
 @pytest.mark.parametrize("path", DEMOS, ids=os.path.basename)
@@ -113,6 +95,9 @@ def test_an_unreachable_target_is_an_infeasible_error_with_the_reach():
     assert isinstance(e.value, rxtrain.SolverError)
     assert e.value.file == "unreachable.yaml" and e.value.line == 70
     assert "the most this stage can reach is X = 0.7031" in e.value.message
+    # ... and as a number a script can go on from (the message rounds it).
+    assert e.value.best_quantity == "conversion"
+    assert round(e.value.best, 4) == 0.7031
 
 
 def test_no_input_crashes_the_loader():
