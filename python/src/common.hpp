@@ -32,6 +32,12 @@ const UnitParser& units();
 py::object json_to_python(const std::string& text);
 inline py::object to_python(const nlohmann::json& j) { return json_to_python(j.dump()); }
 
+// Text from the library as a Python str. A message may quote a byte cut
+// out of a multi-byte character of the input (the formula parser quotes
+// one byte): invalid UTF-8 becomes U+FFFD instead of a UnicodeDecodeError.
+py::str text(const std::string& s);
+py::list texts(const std::vector<std::string>& v);
+
 // Kelvin from a KelvinArg; an InputError located at the argument `name`.
 double kelvin_difference(const KelvinArg& v, const char* name);
 

@@ -77,11 +77,11 @@ void register_errors(py::module_& m) {
   py::register_exception_translator([](std::exception_ptr p) {
     auto raise = [](const py::object& type, const std::string& what, const SourceLocation* at,
                     const std::string& message) {
-      py::object e = type(what);
-      e.attr("file") = at ? at->file : std::string();
+      py::object e = type(text(what));
+      e.attr("file") = text(at ? at->file : std::string());
       e.attr("line") = at ? at->line : 0;
       e.attr("column") = at ? at->column : 0;
-      e.attr("message") = message;
+      e.attr("message") = text(message);
       return e;
     };
     try {
@@ -123,7 +123,7 @@ PYBIND11_MODULE(_rxtrain, m) {
   bind_result(m);
 
   py::class_<PyCase> cls(m, "Case", "A validated case, in SI units");
-  cls.def_property_readonly("title", [](const PyCase& c) { return c.c.title; })
+  cls.def_property_readonly("title", [](const PyCase& c) { return text(c.c.title); })
       .def_property_readonly("file", [](const PyCase& c) { return c.c.file; })
       .def_property_readonly(
           "paths", [](const PyCase& c) { return sweep::CasePathTable(c.c).names(); },

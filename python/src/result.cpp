@@ -17,6 +17,18 @@ py::object json_to_python(const std::string& text) {
   return py::module_::import("json").attr("loads")(text);
 }
 
+py::str text(const std::string& s) {
+  PyObject* o = PyUnicode_DecodeUTF8(s.data(), static_cast<Py_ssize_t>(s.size()), "replace");
+  if (!o) throw py::error_already_set();
+  return py::reinterpret_steal<py::str>(o);
+}
+
+py::list texts(const std::vector<std::string>& v) {
+  py::list out;
+  for (const auto& s : v) out.append(text(s));
+  return out;
+}
+
 double kelvin_difference(const KelvinArg& v, const char* name) {
   if (const double* d = std::get_if<double>(&v)) return *d;
   try {
@@ -101,9 +113,9 @@ void bind_result(py::module_& m) {
       .def_property_readonly(
           "conversion", [](const PyResult& r) { return r.result.conversion; },
           "Overall conversion of the key species at the train outlet")
-      .def_property_readonly("title", [](const PyResult& r) { return r.result.title; })
+      .def_property_readonly("title", [](const PyResult& r) { return text(r.result.title); })
       .def_property_readonly("key", [](const PyResult& r) { return r.result.key; })
-      .def_property_readonly("warnings", [](const PyResult& r) { return r.result.warnings; })
+      .def_property_readonly("warnings", [](const PyResult& r) { return texts(r.result.warnings); })
       .def_property_readonly("species", [](const PyResult& r) { return r.result.species; })
       .def_property_readonly(
           "feed", [](const PyResult& r) { return stream(r.result.feed, r.result.species); },

@@ -98,7 +98,7 @@ void bind_studies(py::module_& m, py::class_<PyCase>& cls) {
           "to_dict", [](const PyStaging& s) { return json_to_python(staging_json_text(s.r)); },
           "As `rxtrain staging --json` writes it (SI units)")
       .def(
-          "text", [](const PyStaging& s) { return format_staging_report(s.r); },
+          "text", [](const PyStaging& s) { return text(format_staging_report(s.r)); },
           "What `rxtrain staging` prints")
       .def_property_readonly("reachable", [](const PyStaging& s) { return s.r.reachable; })
       .def_property_readonly(
@@ -113,7 +113,7 @@ void bind_studies(py::module_& m, py::class_<PyCase>& cls) {
                              [](const PyStaging& s) { return s.r.as_given_conversion; })
       .def_property_readonly("staged_conversion",
                              [](const PyStaging& s) { return s.r.staged_conversion; })
-      .def_property_readonly("warnings", [](const PyStaging& s) { return s.r.warnings; })
+      .def_property_readonly("warnings", [](const PyStaging& s) { return texts(s.r.warnings); })
       .def_property_readonly(
           "as_given_run", [](const PyStaging& s) { return as_result(s.r.as_given_run); },
           "The stages of the train as given that ran, as a Result")
@@ -126,7 +126,7 @@ void bind_studies(py::module_& m, py::class_<PyCase>& cls) {
           "to_dict", [](const PyCompare& c) { return json_to_python(compare_json_text(c.r)); },
           "As `rxtrain compare --json` writes it (SI units)")
       .def(
-          "text", [](const PyCompare& c) { return format_compare_table(c.r); },
+          "text", [](const PyCompare& c) { return text(format_compare_table(c.r)); },
           "What `rxtrain compare` prints");
 
   py::class_<PyDesign>(m, "DesignResult", "The least-catalyst layout of adiabatic beds")
@@ -134,14 +134,14 @@ void bind_studies(py::module_& m, py::class_<PyCase>& cls) {
           "to_dict", [](const PyDesign& d) { return json_to_python(optimize_json_text(d.r)); },
           "As `rxtrain optimize --json` writes it (SI units)")
       .def(
-          "text", [](const PyDesign& d) { return optimize_table(d.r, d.options); },
+          "text", [](const PyDesign& d) { return text(optimize_table(d.r, d.options)); },
           "What `rxtrain optimize` prints")
       .def_property_readonly("bed_count", [](const PyDesign& d) { return d.r.best.beds; })
       .def_property_readonly("total_volume",
                              [](const PyDesign& d) { return d.r.best.total_volume; })
       .def_property_readonly("total_catalyst",
                              [](const PyDesign& d) { return d.r.best.total_catalyst; })
-      .def_property_readonly("warnings", [](const PyDesign& d) { return d.r.warnings; })
+      .def_property_readonly("warnings", [](const PyDesign& d) { return texts(d.r.warnings); })
       .def_property_readonly(
           "train", [](const PyDesign& d) { return as_result(d.r.train); },
           "The optimum's train as run_train ran it (the independent check), as a Result")

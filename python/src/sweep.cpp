@@ -64,7 +64,7 @@ struct PySweep {
     py::list status, message;
     for (const auto& row : rows) {
       status.append(run_status_name(row.result.status));
-      message.append(row.result.message);
+      message.append(text(row.result.message));
     }
     const py::module_ np = py::module_::import("numpy");
     out["status"] = np.attr("array")(status, "dtype"_a = "object");
@@ -161,9 +161,9 @@ void bind_sweep(py::module_& m, py::class_<PyCase>& cls) {
       .def(
           "text",
           [](const PySweep& s) {
-            return sweep_text(s.inputs, s.id.header.outputs,
-                              ColumnUnits{s.id.input_units, s.id.output_units}, s.rows, s.summary,
-                              s.monte_carlo);
+            return text(sweep_text(s.inputs, s.id.header.outputs,
+                                   ColumnUnits{s.id.input_units, s.id.output_units}, s.rows,
+                                   s.summary, s.monte_carlo));
           },
           "The table and summary `rxtrain sweep` prints")
       .def_property_readonly("inputs", [](const PySweep& s) { return s.inputs; })

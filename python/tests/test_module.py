@@ -8,7 +8,9 @@ import glob
 import json
 import os
 import re
+import shutil
 import subprocess
+import sys
 import tempfile
 
 import numpy
@@ -126,3 +128,22 @@ def test_the_worked_example_in_docs_python_md_runs():
             exec(compile(block, "docs/python.md", "exec"), scope)  # noqa: S102
     finally:
         os.chdir(cwd)
+
+
+def test_a_fuzz_of_the_loader_and_runs_raises_only_the_modules_errors(tmp_path):
+    """The case loader's fuzzing corpus and random mutations of it, loaded
+    and (where they load) run through the module, in a child interpreter so
+    that a crash is a failure that leaves its input behind. 30 s by
+    default (RXTRAIN_PY_FUZZ_SECONDS)."""
+    seconds = os.environ.get("RXTRAIN_PY_FUZZ_SECONDS", "30")
+    seed = os.environ.get("RXTRAIN_PY_FUZZ_SEED", "22")
+    last = tmp_path / "last-input.yaml"
+    corpus = os.path.join(SOURCE, "tests", "fuzz", "corpus", "case_loader")
+    child = subprocess.run(
+        [sys.executable, os.path.join(os.path.dirname(__file__), "fuzz_load.py"), corpus,
+         seconds, seed, str(last)], capture_output=True, text=True, timeout=float(seconds) + 120)
+    kept = os.path.join(tempfile.gettempdir(), "rxtrain-fuzz-finding.yaml")
+    if child.returncode != 0:
+        shutil.copy(last, kept)
+    assert child.returncode == 0, f"seed {seed}; input kept in {kept}\n{child.stderr[-3000:]}"
+    assert re.fullmatch(r"\d+ inputs, \d+ loaded, \d+ ran\n", child.stdout), child.stdout
