@@ -55,8 +55,13 @@ class CMakeBuild(build_ext):
         if len(modules) != 1:
             raise RuntimeError(f"expected one _rxtrain module in {built}, found {modules}")
         shutil.copy2(modules[0], self.get_ext_fullpath(ext.name))
+        libs = []
         for lib in glob.glob(os.path.join(built, "libsundials_*.so.*")):
             shutil.copy2(lib, target)
+            libs.append(os.path.join(target, os.path.basename(lib)))
+        if libs:  # each finds the others beside it, not in the build folder
+            subprocess.check_call(["cmake", f"-DFILES={';'.join(libs)}", "-P",
+                                   os.path.join(ROOT, "python", "cmake", "origin_rpath.cmake")])
 
 
 setup(
