@@ -70,6 +70,14 @@ def stages_frame(result):
     return table if pandas is None else pandas.DataFrame(table)
 
 
+def _input_error(argument, message):
+    """An InputError raised here, with the attributes the library's carry
+    (the argument stands for the file, as for the library's argument errors)."""
+    e = InputError(f"{argument}: error: {message}")
+    e.file, e.line, e.column, e.message = argument, 0, 0, message
+    return e
+
+
 def _axis(path, spec):
     """One --vary axis: "START:STOP:N" (or "log:START:STOP:N") as text, or
     a tuple (start, stop, n) whose ends are numbers (SI) or text with units."""
@@ -80,7 +88,7 @@ def _axis(path, spec):
     if log:
         parts = parts[1:]
     if len(parts) != 3:
-        raise InputError(f"vary: {path}: give (start, stop, n), got {spec!r}")
+        raise _input_error("vary", f"{path}: give (start, stop, n), got {spec!r}")
     start, stop, n = parts
     text = ":".join(repr(v) if isinstance(v, float) else str(v) for v in (start, stop, n))
     return f"{path}={'log:' if log else ''}{text}"
@@ -98,7 +106,7 @@ def _specs(given, make):
 
 
 def _sweep(self, vary=None, sample=None, runs=0, seed=None, outputs=None, jobs=0,
-           shard="1/1", rtol=1e-8, limit_margin=5.0, progress=None):
+           shard="1/1", rtol=None, limit_margin=5.0, progress=None):
     """A grid or Monte Carlo study of the case, as `rxtrain sweep`.
 
     vary:   {"feed.T": ("120 degC", "200 degC", 41)} or {"feed.T": "120degC:200degC:41"}
@@ -110,6 +118,7 @@ def _sweep(self, vary=None, sample=None, runs=0, seed=None, outputs=None, jobs=0
     jobs:   worker threads, the CLI's pool (0: every core); the rows are the
             same for any number.
     shard:  "K/N", a slice of the runs, as --shard.
+    rtol, limit_margin: as for run() (default: the CLI's).
     progress: called with (done, total) about ten times a second; an
             exception from it stops the sweep, as Ctrl-C does.
     """
@@ -118,7 +127,7 @@ def _sweep(self, vary=None, sample=None, runs=0, seed=None, outputs=None, jobs=0
     if isinstance(outputs, (list, tuple)):
         outputs = ",".join(outputs)
     return self._sweep(vary, sample, int(runs or 0), seed, outputs, int(jobs), str(shard),
-                       float(rtol), limit_margin, progress)
+                       None if rtol is None else float(rtol), limit_margin, progress)
 
 
 def _to_dataframe(self):

@@ -101,23 +101,37 @@ class Watcher {
   std::optional<py::error_already_set> raised_;
 };
 
+// The argument of sweep() a parser's error is located at: the study's
+// parsers name the command's options ("--vary"), a script its arguments.
+std::string argument_name(const std::string& option) {
+  if (option == "--output") return "outputs";
+  return option.rfind("--", 0) == 0 ? option.substr(2) : option;
+}
+
 PySweep run(const PyCase& self, const std::vector<std::string>& vary,
             const std::vector<std::string>& sample, std::size_t runs,
             std::optional<std::uint64_t> seed, const std::optional<std::string>& output,
-            std::size_t jobs, const std::string& shard, double rtol, const KelvinArg& limit_margin,
-            const py::object& progress) {
+            std::size_t jobs, const std::string& shard, std::optional<double> rtol,
+            const KelvinArg& limit_margin, const py::object& progress) {
   const Case& c = self.c;
   PySweep out;
-  out.shard = Shard::parse(shard);
   const CasePathTable table(c);
-  Study study = parse_study(vary, sample, runs, seed.value_or(1), table, units());
+  Study study;
+  std::optional<OutputSpec> parsed;
+  try {
+    out.shard = Shard::parse(shard);
+    study = parse_study(vary, sample, runs, seed.value_or(1), table, units());
+    parsed = output ? OutputSpec::parse(*output, c) : OutputSpec::defaults(c);
+  } catch (const InputError& e) {
+    throw InputError({argument_name(e.where().file), 0, 0}, e.message());
+  }
   if (seed && !study.monte_carlo())
     throw InputError({"seed", 0, 0}, "seed applies to sample (Monte Carlo) only");
-  const OutputSpec outputs = output ? OutputSpec::parse(*output, c) : OutputSpec::defaults(c);
+  const OutputSpec& outputs = *parsed;
   SweepOptions options;
   options.jobs = jobs;
   options.shard = out.shard;
-  options.train = train_options(rtol, limit_margin);
+  options.train = train_options(rtol.value_or(CvodeOptions{}.rtol), limit_margin);
   if (batched_study(c, table, outputs, options)) study.chain = kBatchRuns;
   out.id = study_identity(c, sha256_hex(self.bytes), study, table, outputs, options.train);
   out.monte_carlo = study.monte_carlo();

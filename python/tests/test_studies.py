@@ -128,8 +128,17 @@ def test_sweep_columns_are_numpy_and_match_the_rows():
     with pytest.raises(rxtrain.InputError) as e:
         c.sweep(vary={"feed.Tx": ("380 degC", "460 degC", 5)})
     assert "feed.T" in e.value.message
-    with pytest.raises(rxtrain.InputError):
+    with pytest.raises(rxtrain.InputError) as e:
         c.sweep(vary=GRID, seed=3)  # a seed belongs to Monte Carlo
+    assert e.value.file == "seed"
+    # Errors name the argument (the study's parsers name the CLI's options).
+    for kwargs, argument in [(dict(vary=GRID, outputs="X,Q"), "outputs"),
+                             (dict(vary=GRID, shard="3/2"), "shard"),
+                             (dict(sample={"feed.T": "normal(420degC,5K)"}), "runs"),
+                             (dict(vary={"feed.T": ("380 degC", "460 degC")}), "vary")]:
+        with pytest.raises(rxtrain.InputError) as e:
+            c.sweep(**kwargs)
+        assert e.value.file == argument and e.value.line == 0, kwargs
 
 
 def test_sweep_table_is_a_dataframe_with_pandas():
