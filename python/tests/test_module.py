@@ -6,36 +6,20 @@ RXTRAIN_BIN the rxtrain binary and RXTRAIN_SOURCE_DIR the repository.
 
 import glob
 import json
-import math
 import os
 import re
+import shutil
 import subprocess
+import sys
 import tempfile
 
 import numpy
 import pytest
+from conftest import BIN, SOURCE, same
 
 import rxtrain
 
-SOURCE = os.environ.get("RXTRAIN_SOURCE_DIR", os.path.join(os.path.dirname(__file__), "..", ".."))
-BIN = os.environ.get("RXTRAIN_BIN", os.path.join(SOURCE, "build", "rxtrain"))
 DEMOS = sorted(glob.glob(os.path.join(SOURCE, "cases", "*.yaml")))
-
-
-def same(a, b, where="$"):
-    """Equal documents, numbers within 1e-12 relative (the issue's bound)."""
-    if isinstance(a, dict):
-        assert isinstance(b, dict) and sorted(a) == sorted(b), where
-        for k in a:
-            same(a[k], b[k], f"{where}.{k}")
-    elif isinstance(a, list):
-        assert isinstance(b, list) and len(a) == len(b), where
-        for i, (x, y) in enumerate(zip(a, b)):
-            same(x, y, f"{where}[{i}]")
-    elif isinstance(a, float) or isinstance(b, float):
-        assert math.isclose(a, b, rel_tol=1e-12, abs_tol=0.0) or a == b, f"{where}: {a} != {b}"
-    else:
-        assert a == b, f"{where}: {a!r} != {b!r}"
 
 
 @pytest.mark.parametrize("path", DEMOS, ids=os.path.basename)
@@ -113,6 +97,9 @@ def test_an_unreachable_target_is_an_infeasible_error_with_the_reach():
     assert isinstance(e.value, rxtrain.SolverError)
     assert e.value.file == "unreachable.yaml" and e.value.line == 70
     assert "the most this stage can reach is X = 0.7031" in e.value.message
+    # ... and as a number a script can go on from (the message rounds it).
+    assert e.value.best_quantity == "conversion"
+    assert round(e.value.best, 4) == 0.7031
 
 
 def test_no_input_crashes_the_loader():
@@ -141,3 +128,22 @@ def test_the_worked_example_in_docs_python_md_runs():
             exec(compile(block, "docs/python.md", "exec"), scope)  # noqa: S102
     finally:
         os.chdir(cwd)
+
+
+def test_a_fuzz_of_the_loader_and_runs_raises_only_the_modules_errors(tmp_path):
+    """The case loader's fuzzing corpus and random mutations of it, loaded
+    and (where they load) run through the module, in a child interpreter so
+    that a crash is a failure that leaves its input behind. 30 s by
+    default (RXTRAIN_PY_FUZZ_SECONDS)."""
+    seconds = os.environ.get("RXTRAIN_PY_FUZZ_SECONDS", "30")
+    seed = os.environ.get("RXTRAIN_PY_FUZZ_SEED", "22")
+    last = tmp_path / "last-input.yaml"
+    corpus = os.path.join(SOURCE, "tests", "fuzz", "corpus", "case_loader")
+    child = subprocess.run(
+        [sys.executable, os.path.join(os.path.dirname(__file__), "fuzz_load.py"), corpus,
+         seconds, seed, str(last)], capture_output=True, text=True, timeout=float(seconds) + 120)
+    kept = os.path.join(tempfile.gettempdir(), "rxtrain-fuzz-finding.yaml")
+    if child.returncode != 0:
+        shutil.copy(last, kept)
+    assert child.returncode == 0, f"seed {seed}; input kept in {kept}\n{child.stderr[-3000:]}"
+    assert re.fullmatch(r"\d+ inputs, \d+ loaded, \d+ ran\n", child.stdout), child.stdout

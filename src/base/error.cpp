@@ -20,9 +20,12 @@ InputError::InputError(SourceLocation where, const std::string& message)
       where_(std::move(where)),
       message_(message) {}
 
-InfeasibleError::InfeasibleError(SourceLocation where, const std::string& message)
+InfeasibleError::InfeasibleError(SourceLocation where, const std::string& message,
+                                 std::optional<double> best, std::string best_quantity)
     : SolverError(format_diagnostic(where, "error", message)),
       where_(std::move(where)),
-      message_(message) {}
+      message_(message),
+      best_(best),
+      best_quantity_(std::move(best_quantity)) {}
 
 }  // namespace rxtrain

@@ -26,6 +26,7 @@
 #include "rxtrain/sweep/case_path.hpp"
 #include "rxtrain/sweep/outputs.hpp"
 #include "rxtrain/sweep/study.hpp"
+#include "rxtrain/sweep/study_identity.hpp"
 #include "rxtrain/sweep/summary.hpp"
 #include "rxtrain/sweep/sweep.hpp"
 #include "rxtrain/sweep/sweep_csv.hpp"
@@ -131,28 +132,10 @@ int run_sweep_command(const SweepCommandOptions& o) {
 
   std::ifstream in(o.case_file, std::ios::binary);
   const std::string bytes((std::istreambuf_iterator<char>(in)), std::istreambuf_iterator<char>());
-  StudyHeader header{RXTRAIN_VERSION, sha256_hex(bytes), study.definition(), outputs.names()};
-  ColumnUnits col_units;
-  for (std::size_t p : study.paths()) {
-    const std::string u = table.at(p).unit.to_string();
-    col_units.inputs.push_back(u.empty() || u == "1" ? "-" : u);
-  }
-  col_units.outputs = outputs.units();
-  const auto input_names = study.input_names();
-  for (std::size_t i = 0; i < input_names.size(); ++i)
-    header.units.emplace_back(input_names[i], col_units.inputs[i]);
-  for (std::size_t i = 0; i < header.outputs.size(); ++i)
-    header.units.emplace_back(header.outputs[i], col_units.outputs[i]);
-  // The integrator's tolerance changes the numbers, so it is part of the study.
-  header.definition.push_back(fmt::format("rtol: {}", o.rtol));
-  // So does the margin the rows' notes near a limit are taken at.
-  if (c.limits.T_max || c.limits.T_in_min)
-    header.definition.push_back(
-        fmt::format("limit-margin: {} K", options.train.limit_check.margin));
-  for (const auto& m : design_margin_columns(c)) {
-    const auto names = outputs.names();
-    if (std::find(names.begin(), names.end(), m) != names.end()) header.margin.push_back(m);
-  }
+  const StudyIdentity identity =
+      study_identity(c, sha256_hex(bytes), study, table, outputs, options.train);
+  const StudyHeader& header = identity.header;
+  const ColumnUnits col_units{identity.input_units, identity.output_units};
 
   const std::vector<RunRow> rows = run_sweep(c, table, study, outputs, options);
   const auto inputs = study.input_names();

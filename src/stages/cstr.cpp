@@ -536,7 +536,9 @@ struct Tank {
       reach = cstr_reach(mech, spec, inlet, basis, workspace, options);
     } catch (const SolverError&) {
     }
-    if (reach) throw InfeasibleError(spec.where, out_of_reach_text(spec, X_t, *reach, mech));
+    if (reach)
+      throw InfeasibleError(spec.where, out_of_reach_text(spec, X_t, *reach, mech), reach->X_max,
+                            "conversion");
     throw InfeasibleError(spec.where,
                           fmt::format("stage {}: target conversion {:.4f} is out of reach: the "
                                       "net rate there is zero or negative",
@@ -885,6 +887,13 @@ StageReach cstr_reach(const Mechanism& mech, const ReactorSpec& spec, const Stre
   const std::vector<State> fallbacks = starts_from({}, State{inlet.F, inlet.T}, inlet, limit);
   const March m = feed_branch(ws.solver, inlet, V_end * std::pow(10.0, -kSizingDecades), V_end,
                               options.continuation_steps, fallbacks, track);
+  // No solution at all (a volume range that is not finite, from a feed
+  // whose volumetric flow is not): nothing is known of the branch.
+  if (m.state.F.size() != inlet.F.size() || m.previous.F.size() != inlet.F.size())
+    throw SolverError(
+        fmt::format("{}: what the tank can reach: continuation in volume found no "
+                    "solution ({})",
+                    spec.id, m.message.empty() ? "none tried" : m.message));
   // A march that fails far out along the branch still tells where it went,
   // if it had stopped moving.
   const double X_prev = basis.conversion(m.previous.F.data());

@@ -346,7 +346,8 @@ double volume_for_outlet(const Mechanism& mech, const ReactorSpec& spec, const S
                     spec.id, sp, t.x * 1e6, x_min * 1e6, V_min,
                     V >= V_end            ? ", the path followed to the space-time bound"
                     : T_stop && V < V_end ? ", the stop temperature"
-                                          : ""));
+                                          : ""),
+        x_min, "mole fraction of " + sp);
 
   // Outlet mole fraction less the target, of the stage rated at volume v.
   auto excess = [&](double v) {
@@ -450,8 +451,8 @@ StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream
   double V = w.V;
   if (sizing && !w.reached && !w.stopped) {
     const StageReach reach = pfr_reach(mech, spec, inlet, basis, ws, options);
-    throw InfeasibleError(spec.where,
-                          out_of_reach_text(spec, *spec.target_conversion, reach, mech));
+    throw InfeasibleError(spec.where, out_of_reach_text(spec, *spec.target_conversion, reach, mech),
+                          reach.X_max, "conversion");
   }
 
   // The quadrature reads the intrinsic rate: with effectiveness factors

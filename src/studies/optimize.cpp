@@ -585,7 +585,11 @@ DesignResult optimize_design(const Case& c, const DesignOptions& options) {
                                                      counts.front() == 1 ? "" : "s")
                                        : fmt::format("1 to {} adiabatic beds", counts.back()),
                     s.target, s.lo_label, s.hi_label, celsius(s.T_lo), celsius(s.T_hi),
-                    shortfall_message(res, layouts.back().shortfall)));
+                    shortfall_message(res, layouts.back().shortfall)),
+        layouts.back().shortfall.kind == ShortfallKind::LastBedShort
+            ? std::optional<double>(layouts.back().shortfall.X_reach)
+            : std::nullopt,
+        "conversion");
   res.best = *best;
   if (options.max_beds) res.by_bed_count = layouts;
   check_optimum(s, options, res);

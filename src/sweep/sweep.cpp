@@ -178,8 +178,12 @@ std::vector<RunRow> run_sweep(const Case& base, const CasePathTable& table, cons
       [&](std::size_t c, std::size_t w) {
         shard.run_chain((first_chain + c) * chain, chain, batched, workers[w]);
       },
-      options.progress ? [&](std::size_t) { options.progress(shard.done(), count); }
-                       : std::function<void(std::size_t)>{},
+      options.progress || options.cancel
+          ? [&](std::size_t) {
+              if (options.progress) options.progress(shard.done(), count);
+              if (options.cancel && options.cancel()) throw SweepCancelled();
+            }
+          : std::function<void(std::size_t)>{},
       options.progress_period);
   return shard.take_rows();
 }

@@ -54,9 +54,17 @@ void parallel_for(std::size_t count, std::size_t jobs,
     std::unique_lock lock(m);
     while (running > 0) {
       cv.wait_for(lock, period, [&] { return running == 0; });
-      if (progress && running > 0) {
+      if (progress && running > 0 && !stop.load()) {
         lock.unlock();
-        progress(done.load());
+        try {
+          progress(done.load());
+        } catch (...) {
+          // A caller that stops the work (cancel) stops it as a failed
+          // task does: the tasks under way finish, no other starts.
+          std::lock_guard guard(m);
+          if (!error) error = std::current_exception();
+          stop.store(true);
+        }
         lock.lock();
       }
     }

@@ -26,6 +26,7 @@
 #include <chrono>
 #include <cstddef>
 #include <functional>
+#include <stdexcept>
 #include <vector>
 
 #include "rxtrain/sweep/run_point.hpp"
@@ -49,6 +50,15 @@ struct SweepOptions {
   // Called on the calling thread with the runs done so far of this shard.
   std::function<void(std::size_t done, std::size_t total)> progress;
   std::chrono::milliseconds progress_period{200};
+  // Asked on the calling thread every progress_period: when it returns
+  // true no further run starts, the runs under way finish, and run_sweep
+  // throws SweepCancelled (a caller's Ctrl-C).
+  std::function<bool()> cancel;
+};
+
+// Thrown by run_sweep when options.cancel asked it to stop.
+struct SweepCancelled : std::runtime_error {
+  SweepCancelled() : std::runtime_error("the sweep was cancelled") {}
 };
 
 // Runs per batch, the chain length of a batched study: long enough that

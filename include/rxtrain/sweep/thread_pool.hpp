@@ -23,7 +23,8 @@ std::size_t resolve_jobs(std::size_t jobs);
 // (worker in [0, jobs)). progress(done) is called on the calling thread
 // about every `period` and once at the end. The first exception a body
 // throws stops the hand-out of further tasks and is rethrown here after
-// every thread has finished.
+// every thread has finished; so does an exception from progress (the
+// tasks under way finish first), which is how a caller cancels the work.
 void parallel_for(std::size_t count, std::size_t jobs,
                   const std::function<void(std::size_t index, std::size_t worker)>& body,
                   const std::function<void(std::size_t done)>& progress = {},
