@@ -401,8 +401,9 @@ double volume_for_outlet(const Mechanism& mech, const ReactorSpec& spec, const S
     arm_roots(st, o, basis, n, std::nullopt, std::nullopt);
     o.set_stop_time(v);
     double at = 0;
-    while (o.advance(v, at, y) != CvodeIntegrator::Event::Stop) {
-    }
+    for (auto ev = o.advance(v, at, y); ev != CvodeIntegrator::Event::Stop;
+         ev = o.advance(v, at, y))
+      if (floor_found(st, o.roots_found())) pressure_floor_error(st, spec, at);
     return detail::mole_fraction(y.data(), n, t.species) - t.x;
   };
   double a = V_prev, b = V;
