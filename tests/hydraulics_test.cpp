@@ -56,7 +56,7 @@ ReactorSpec packed_bed(double V, HeatMode heat, double D, double eps, PelletSpec
   s.heat = heat;
   s.volume = V;
   s.bulk_density = 800;
-  s.geometry = BedGeometry{0, D, eps, {}};
+  s.geometry = BedGeometry{0, D, std::nullopt, eps, {}};
   s.pellet = pellet;
   s.viscosity = mu;
   s.where = {"case.yaml", 12, 5};
@@ -268,4 +268,34 @@ TEST_CASE("a bed whose pressure would fall below a tenth of its inlet stops with
     CHECK_THAT(m, Catch::Contains("stage R1: the pressure falls below a tenth of its inlet"));
     CHECK_THAT(m, Catch::Contains("m into the bed"));
   }
+}
+
+TEST_CASE("diameter: auto finds the smallest diameter whose pressure drop is dP_max",
+          "[hydraulics]") {
+  // The stage's own result checked by re-rating: at the diameter found
+  // the pressure drop is dP_max (to 1e-6 relative), and a diameter 1e-4
+  // smaller exceeds it (dP falls as the diameter grows).
+  const Mechanism mech = a_to_2b(Phase::Gas, 1e-7, 60e3, 600, -50e3);
+  const Stream inlet{600, 5e5, {10.0, 0.0, 40.0}};
+  ReactorSpec spec =
+      packed_bed(0.6, HeatMode::Adiabatic, 0.6, 0.4, sphere(3e-3), ViscosityLaw{3.3e-5, 700, 0.7});
+  const double dP_max = 0.3e5;
+  spec.geometry->dP_max = dP_max;
+  SunContext ctx;
+  PfrOptions tight;
+  tight.cvode.rtol = 1e-10;
+  tight.cvode.atol = 1e-12;
+  const ConversionBasis basis{0, 10.0};
+  const StageResult res = run_pfr(mech, spec, inlet, basis, ctx, tight);
+  REQUIRE(res.hydraulics);
+  const double D = res.hydraulics->geometry.diameter;
+  CHECK(*res.hydraulics->dP == Approx(dP_max).epsilon(1e-6));
+  CHECK(*res.hydraulics->dP <= dP_max);
+  ReactorSpec rated = spec;
+  rated.geometry->dP_max.reset();
+  rated.geometry->diameter = D;
+  CHECK(*run_pfr(mech, rated, inlet, basis, ctx, tight).hydraulics->dP ==
+        Approx(dP_max).epsilon(1e-6));
+  rated.geometry->diameter = D * (1 - 1e-4);
+  CHECK(*run_pfr(mech, rated, inlet, basis, ctx, tight).hydraulics->dP > dP_max);
 }

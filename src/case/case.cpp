@@ -1236,17 +1236,31 @@ BedGeometry Loader::read_geometry(const Fields& f, const std::string& ctx) const
   const std::string what = fmt::format("{} of {}", tubes ? "tubes" : "bed", ctx);
   Fields g(*this, *f.find(tubes ? "tubes" : "bed"), what);
   if (tubes)
-    g.check({"count", "diameter", "void_fraction"});
+    g.check({"count", "diameter", "void_fraction", "dP_max"});
   else
-    g.check({"diameter", "void_fraction"});
+    g.check({"diameter", "void_fraction", "dP_max"});
   BedGeometry b;
   b.where = at(g.node());
   const SiUnit length_unit = SiUnit::of("m", "a length");
   const YAML::Node& d =
       g.need("diameter", tubes ? "each tube's inside diameter, e.g. diameter: 38 mm"
-                               : "the vessel's inside diameter, e.g. diameter: 3.2 m");
-  b.diameter = quantity(d, "diameter of " + what, length_unit);
-  check_range(d, "diameter of " + what, kPositive, "m", b.diameter);
+                               : "the vessel's inside diameter, e.g. diameter: 3.2 m, or auto "
+                                 "with dP_max");
+  if (d.IsScalar() && d.Scalar() == "auto") {
+    // The smallest diameter whose pressure drop does not exceed dP_max.
+    const YAML::Node& m = g.need(
+        "dP_max", "the allowed pressure drop that diameter: auto sizes to, e.g. dP_max: 0.3 bar");
+    b.dP_max = quantity(m, "dP_max of " + what, SiUnit::of("Pa", "a pressure"));
+    check_range(m, "dP_max of " + what, kPositive, "Pa", *b.dP_max);
+  } else {
+    if (const auto* m = g.find("dP_max"); m != nullptr)
+      fail(*g.key_of("dP_max"),
+           fmt::format("{} gives dP_max with a diameter; dP_max sizes the diameter: give "
+                       "diameter: auto, or leave dP_max out",
+                       what));
+    b.diameter = quantity(d, "diameter of " + what, length_unit);
+    check_range(d, "diameter of " + what, kPositive, "m", b.diameter);
+  }
   const YAML::Node& e = g.need("void_fraction", "the bed voidage, e.g. void_fraction: 0.40");
   b.void_fraction = number(e, "void_fraction of " + what);
   check_range(e, "void_fraction of " + what, kOpenUnitInterval, "", b.void_fraction);
@@ -1305,6 +1319,12 @@ void Loader::apply_fluid(const YAML::Node* fluid) {
     auto* r = std::get_if<ReactorSpec>(&s);
     if (!r) continue;
     r->viscosity = law;
+    if (r->geometry && r->geometry->dP_max && !r->pellet)
+      throw InputError(r->geometry->where,
+                       fmt::format("stage {}: diameter: auto sizes the bed to its pressure drop, "
+                                   "which needs a pellet (e.g. pellet: {{shape: sphere, size: 3 "
+                                   "mm}})",
+                                   r->id));
     if (!r->geometry || !r->pellet) continue;
     if (!law)
       throw InputError(r->geometry->where,

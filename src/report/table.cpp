@@ -103,12 +103,17 @@ std::string bed_columns(const TrainResult& result) {
          h.dP ? bar_text(*h.dP) : std::string("-")});
   }
   if (rows.empty()) return {};
+  std::string sized;
+  for (const auto& r : result.stages)
+    if (r.hydraulics && r.hydraulics->dP_max)
+      sized += fmt::format("  {}: diameter found for dP_max = {} bar (diameter: auto)\n", r.id,
+                           bar_text(*r.hydraulics->dP_max));
   rows.insert(rows.begin(), {"stage", "D m", "L m", "L/D", "G kg/m2s", "u in m/s", "u out m/s",
                              "Re_p", "P in bar", "P out bar", "dP bar"});
   return "\nbeds (D: vessel diameter, or tubes x tube diameter; L: bed length; G: mass flux; u: "
          "superficial velocity; Re_p = G d_p / mu at the inlet; dP by Ergun, \"-\": not computed, "
          "constant pressure)\n" +
-         render_columns(rows, 1);
+         render_columns(rows, 1) + sized;
 }
 
 std::string format_stage_table(const TrainResult& result) {

@@ -5,6 +5,7 @@
 #include <algorithm>
 #include <cmath>
 #include <limits>
+#include <numbers>
 #include <optional>
 #include <vector>
 
@@ -230,10 +231,17 @@ bool floor_found(const PfrWorkspace::State& st, const std::vector<int>& found) {
   return st.roots.i_floor >= 0 && found[st.roots.i_floor] != 0;
 }
 
+// A bed whose pressure falls to the floor (diameter: auto takes it as a
+// diameter far too small).
+class PressureFloorError : public InfeasibleError {
+ public:
+  using InfeasibleError::InfeasibleError;
+};
+
 [[noreturn]] void pressure_floor_error(const PfrWorkspace::State& st, const ReactorSpec& spec,
                                        double V) {
   const double P_in = st.roots.P_floor / kPressureFloor;
-  throw InfeasibleError(
+  throw PressureFloorError(
       spec.where,
       fmt::format("stage {}: the pressure falls below a tenth of its inlet value ({:.4g} bar) at "
                   "V = {:.6g} m3, {:.4g} m into the bed: the bed is too long or too narrow for "
@@ -460,8 +468,69 @@ void add_effectiveness(PfrWorkspace::State& st, const ReactorSpec& spec, StageRe
 
 }  // namespace
 
+namespace {
+
+// `diameter: auto`: the smallest diameter whose pressure drop does not
+// exceed dP_max, each trial a whole rating (or sizing) of the stage: dP
+// falls as the diameter grows, so a bracket by doubling, then Brent's
+// method on the diameter; a trial whose pressure reaches the floor counts
+// as too narrow. Returns the stage at the diameter found.
+StageResult run_auto_diameter(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
+                              const ConversionBasis& basis, PfrWorkspace& ws,
+                              const PfrOptions& options) {
+  const double dP_max = *spec.geometry->dP_max;
+  ReactorSpec trial = spec;
+  trial.geometry->dP_max.reset();
+  const int count = std::max(spec.geometry->tubes, 1);
+  auto excess = [&](double D) {
+    trial.geometry->diameter = D;
+    try {
+      const StageResult r = run_pfr(mech, trial, inlet, basis, ws, options);
+      return *r.hydraulics->dP - dP_max;
+    } catch (const PressureFloorError&) {
+      return std::numeric_limits<double>::infinity();
+    }
+  };
+  // Start where the inlet's superficial velocity is 1 m/s (a mid value for
+  // gas beds; only a start).
+  const double v0 = mech.volumetric_flow(inlet.T, inlet.P, inlet.F.data());
+  double b = std::sqrt(4 * v0 / (std::numbers::pi * count));
+  double fb = excess(b);
+  for (int k = 0; k < 60 && fb > 0; ++k) fb = excess(b *= 2);
+  double a = b / 2, fa = excess(a);
+  for (int k = 0; k < 60 && fa <= 0; ++k) {
+    b = a;
+    fb = fa;
+    fa = excess(a /= 2);
+  }
+  if (!(fb <= 0 && fa > 0))
+    throw InfeasibleError(spec.geometry->where,
+                          fmt::format("stage {}: no diameter found whose pressure drop stays "
+                                      "within dP_max = {:.4g} bar",
+                                      spec.id, dP_max / 1e5));
+  // Brent needs finite values: halve towards b past the floor.
+  for (int k = 0; k < 200 && !std::isfinite(fa); ++k) {
+    const double m = 0.5 * (a + b), fm = excess(m);
+    (fm > 0 ? a : b) = m;
+    (fm > 0 ? fa : fb) = fm;
+  }
+  const ScalarRoot r = brent_root(excess, a, b, fa, fb, 1e-12, 200);
+  double D = r.x;
+  // The side that keeps within dP_max: Brent's last point may lie a hair
+  // on the other.
+  for (int k = 0; k < 10 && excess(D) > 0; ++k) D *= 1 + 1e-9 * (1 << k);
+  trial.geometry->diameter = D;
+  StageResult res = run_pfr(mech, trial, inlet, basis, ws, options);
+  res.hydraulics->dP_max = dP_max;
+  return res;
+}
+
+}  // namespace
+
 StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
                     const ConversionBasis& basis, PfrWorkspace& ws, const PfrOptions& options) {
+  if (spec.geometry && spec.geometry->dP_max)
+    return run_auto_diameter(mech, spec, inlet, basis, ws, options);
   if (spec.target_outlet) {
     // Sized to a purity: rated at the volume found, so that the result is
     // exactly that of a rated stage of that size.

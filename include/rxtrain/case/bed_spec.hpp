@@ -5,6 +5,7 @@
 
 #include <cmath>
 #include <numbers>
+#include <optional>
 
 #include "rxtrain/base/error.hpp"
 
@@ -27,8 +28,11 @@ struct ViscosityLaw {
 // catalyst in the tubes): the flow area is the vessel's cross-section or
 // the tubes' together, and the bed volume is that area times the length.
 struct BedGeometry {
-  int tubes = 0;             // 0: one vessel
-  double diameter = 0;       // m: the vessel's, or each tube's inside diameter
+  int tubes = 0;        // 0: one vessel
+  double diameter = 0;  // m: the vessel's, or each tube's inside diameter
+  // `diameter: auto`: the stage finds the smallest diameter whose pressure
+  // drop does not exceed dP_max (Pa); `diameter` is then unused.
+  std::optional<double> dP_max;
   double void_fraction = 0;  // bed voidage, 0 < eps < 1
   SourceLocation where;      // the `bed` or `tubes` entry
 

@@ -134,6 +134,9 @@ struct StageHydraulics {
   // Pa, inlet less outlet pressure; empty where the stage runs at constant
   // pressure (no pellet, or no viscosity).
   std::optional<double> dP;
+  // `diameter: auto`: the pressure drop the diameter was sized to (the
+  // diameter found is geometry.diameter).
+  std::optional<double> dP_max;
 };
 
 struct StageResult {
