@@ -304,3 +304,30 @@ TEST_CASE("diameter: auto finds the smallest diameter whose pressure drop is dP_
   rated.geometry->diameter = D * (1 - 1e-4);
   CHECK(*run_pfr(mech, rated, inlet, basis, ctx, tight).hydraulics->dP > dP_max);
 }
+
+TEST_CASE("a bed warns of a pressure drop above 10 % and of a Reynolds number outside Ergun's data",
+          "[hydraulics]") {
+  // The thresholds: 10 % of the inlet pressure (common practice, no
+  // source) and a modified particle Reynolds number G d_p / (mu (1 - eps))
+  // of about 1 to 2000 (Ergun's data, from memory).
+  const Mechanism mech = a_to_2b(Phase::Gas, 1e-7, 60e3, 600, -50e3);
+  const Stream inlet{600, 5e5, {0.0, 10.0, 40.0}};
+  SunContext ctx;
+  auto warnings_of = [&](double D, double mu) {
+    const ReactorSpec spec = packed_bed(area(D) * 4.0, HeatMode::Isothermal, D, 0.4, sphere(3e-3),
+                                        ViscosityLaw{mu, 0, 0});
+    std::string all;
+    for (const auto& w :
+         run_pfr(mech, spec, inlet, ConversionBasis{0, 1.0}, ctx, PfrOptions{}).warnings)
+      all += w + "\n";
+    return all;
+  };
+  // D = 1 m: a drop of about 6 % (see the P^2 test), Re_p / (1 - eps) about 300.
+  const std::string quiet = warnings_of(1.0, 3e-5);
+  CHECK(quiet.find("pressure drop") == std::string::npos);
+  CHECK(quiet.find("Reynolds") == std::string::npos);
+  const std::string narrow = warnings_of(0.7, 3e-5);
+  CHECK_THAT(narrow, Catch::Contains("% of the inlet pressure (above 10 %, common practice"));
+  const std::string thin = warnings_of(1.0, 1e-7);
+  CHECK_THAT(thin, Catch::Contains("outside the range of Ergun's 1952 data"));
+}
