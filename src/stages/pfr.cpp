@@ -479,6 +479,12 @@ StageResult run_auto_diameter(const Mechanism& mech, const ReactorSpec& spec, co
                               const ConversionBasis& basis, PfrWorkspace& ws,
                               const PfrOptions& options) {
   const double dP_max = *spec.geometry->dP_max;
+  if (!(dP_max < (1 - kPressureFloor) * inlet.P))
+    throw InputError(spec.geometry->where,
+                     fmt::format("stage {}: dP_max = {:.4g} bar is not below 90 % of the stage's "
+                                 "inlet pressure ({:.4g} bar), where a bed stops (its pressure "
+                                 "may not fall below a tenth of the inlet's)",
+                                 spec.id, dP_max / 1e5, inlet.P / 1e5));
   ReactorSpec trial = spec;
   trial.geometry->dP_max.reset();
   const int count = std::max(spec.geometry->tubes, 1);
@@ -514,6 +520,11 @@ StageResult run_auto_diameter(const Mechanism& mech, const ReactorSpec& spec, co
     (fm > 0 ? a : b) = m;
     (fm > 0 ? fa : fb) = fm;
   }
+  if (!std::isfinite(fa))
+    throw SolverError(
+        fmt::format("{}: the diameter for dP_max = {:.4g} bar could not be "
+                    "bracketed away from the pressure floor",
+                    spec.id, dP_max / 1e5));
   const ScalarRoot r = brent_root(excess, a, b, fa, fb, 1e-12, 200);
   double D = r.x;
   // The side that keeps within dP_max: Brent's last point may lie a hair
