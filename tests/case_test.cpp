@@ -352,7 +352,7 @@ TEST_CASE("an unknown key names the nearest valid key", "[case]") {
   const InputError far = load_error(edit(kCase, "phase: gas", "colour: blue"), units);
   CHECK(far.message() ==
         "unknown key \"colour\" in the case; valid keys: title, phase, species, reactions, feed, "
-        "key, train, target, limits, space_velocity_basis, products");
+        "key, train, target, limits, space_velocity_basis, products, fluid");
   CHECK(far.where().line == 2);
   CHECK(far.where().column == 1);
 }

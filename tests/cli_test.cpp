@@ -392,3 +392,29 @@ TEST_CASE("help shows plain words, an unknown command is named", "[cli]") {
   // thermo designs nothing: no caution.
   CHECK(by_new.out.find("Results are for screening") == std::string::npos);
 }
+
+TEST_CASE("a bed whose pressure would fall below a tenth of its inlet exits 3 and writes nothing",
+          "[cli]") {
+  // The vessels demo with its first bed made far too narrow for its flow.
+  const auto dir = scratch("pressure_floor");
+  std::string text = slurp(std::string(RXTRAIN_SOURCE_DIR) + "/cases/so2-converter-vessels.yaml");
+  const std::string wide = "bed: {diameter: 4.5 m, void_fraction: 0.45}";
+  const auto at = text.find(wide);
+  REQUIRE(at != std::string::npos);
+  text.replace(at, wide.size(), "bed: {diameter: 0.4 m, void_fraction: 0.45}");
+  {
+    std::ofstream out(dir / "narrow.yaml");
+    out << text;
+  }
+  const auto r =
+      run_rxtrain("run '" + (dir / "narrow.yaml").string() + "' --json '" +
+                  (dir / "r.json").string() + "' --csv '" + (dir / "csv").string() + "'");
+  INFO(r.err);
+  CHECK(r.exit_code == 3);
+  CHECK(r.err.find("stage B1: the pressure falls below a tenth of its inlet value") !=
+        std::string::npos);
+  CHECK(r.err.find("m into the bed") != std::string::npos);
+  CHECK_FALSE(fs::exists(dir / "r.json"));
+  CHECK_FALSE(fs::exists(dir / "csv"));
+  fs::remove_all(dir);
+}

@@ -70,6 +70,26 @@ constexpr std::array kStage{
                     [](const TrainResult&, const StageResult* s, int) -> V { return s->outlet.T; }},
     ResultFieldSpec{"outlet.P", "Pa", R::Stage,
                     [](const TrainResult&, const StageResult* s, int) -> V { return s->outlet.P; }},
+    // Beds with geometry (empty elsewhere; dP empty at constant pressure).
+    ResultFieldSpec{"dP", "Pa", R::Stage,
+                    [](const TrainResult&, const StageResult* s, int) -> V {
+                      return s->hydraulics ? s->hydraulics->dP : std::nullopt;
+                    }},
+    ResultFieldSpec{"length", "m", R::Stage,
+                    [](const TrainResult&, const StageResult* s, int) -> V {
+                      if (!s->hydraulics) return std::nullopt;
+                      return s->hydraulics->length;
+                    }},
+    ResultFieldSpec{"diameter", "m", R::Stage,
+                    [](const TrainResult&, const StageResult* s, int) -> V {
+                      if (!s->hydraulics) return std::nullopt;
+                      return s->hydraulics->geometry.diameter;
+                    }},
+    ResultFieldSpec{"velocity_in", "m/s", R::Stage,
+                    [](const TrainResult&, const StageResult* s, int) -> V {
+                      if (!s->hydraulics) return std::nullopt;
+                      return s->hydraulics->velocity_in;
+                    }},
     ResultFieldSpec{"over_limit", "K", R::Stage,
                     [](const TrainResult& r, const StageResult* s, int) -> V {
                       if (!r.limit_check.applies() || s->kind == StageKind::Exchanger)

@@ -239,6 +239,9 @@ class Loader {
   void read_exchanger_size(const Fields& f, ExchangerSpec& x) const;
   TemperatureLimits read_limits(const YAML::Node& node) const;
   PelletSpec read_pellet(const YAML::Node& node, const std::string& ctx) const;
+  BedGeometry read_geometry(const Fields& f, const std::string& ctx) const;
+  ViscosityLaw read_fluid(const YAML::Node& node) const;
+  void apply_fluid(const YAML::Node* fluid);
   std::vector<int> read_space_velocity_basis(const YAML::Node& node) const;
   std::vector<int> read_products(const YAML::Node& node) const;
   StageSpec read_stage(const YAML::Node& node, std::size_t index);
@@ -1030,7 +1033,7 @@ StageSpec Loader::read_stage(const YAML::Node& node, std::size_t index) {
   }
 
   f.check({"type", "id", "volume", "catalyst", "bulk_density", "target", "heat", "activity",
-           "pellet", "effectiveness"});
+           "pellet", "effectiveness", "bed", "tubes"});
   ReactorSpec r;
   r.id = sid;
   r.type = type == "cstr" ? ReactorType::Cstr : ReactorType::Pfr;
@@ -1082,6 +1085,14 @@ StageSpec Loader::read_stage(const YAML::Node& node, std::size_t index) {
                  : HeatMode::Adiabatic;
   if (const auto* n = f.find("activity")) r.activity = field(*n, CaseFieldKind::Activity, sid);
   if (const auto* n = f.find("pellet")) r.pellet = read_pellet(*n, "pellet of " + ctx);
+  if (f.find("bed") || f.find("tubes")) {
+    if (r.type != ReactorType::Pfr)
+      fail(*f.key_of(f.find("bed") ? "bed" : "tubes"),
+           fmt::format("{}: bed and tubes describe a packed tubular stage (type: pfr); a stirred "
+                       "tank has no bed geometry",
+                       ctx));
+    r.geometry = read_geometry(f, ctx);
+  }
   if (const auto* n = f.find("effectiveness")) {
     if (!r.pellet || r.pellet->D_eff.empty())
       fail(*f.key_of("effectiveness"),
@@ -1256,6 +1267,122 @@ PelletSpec Loader::read_pellet(const YAML::Node& node, const std::string& ctx) c
   return p;
 }
 
+// A tubular stage's bed: one vessel (`bed: {diameter, void_fraction}`) or
+// a multitubular reactor (`tubes: {count, diameter, void_fraction}`).
+BedGeometry Loader::read_geometry(const Fields& f, const std::string& ctx) const {
+  if (f.find("bed") && f.find("tubes"))
+    fail(*f.key_of("tubes"), fmt::format("{} gives both bed and tubes; give one (bed: one vessel, "
+                                         "tubes: a multitubular reactor)",
+                                         ctx));
+  const bool tubes = f.find("tubes") != nullptr;
+  const std::string what = fmt::format("{} of {}", tubes ? "tubes" : "bed", ctx);
+  Fields g(*this, *f.find(tubes ? "tubes" : "bed"), what);
+  if (tubes)
+    g.check({"count", "diameter", "void_fraction", "dP_max"});
+  else
+    g.check({"diameter", "void_fraction", "dP_max"});
+  BedGeometry b;
+  b.where = at(g.node());
+  const SiUnit length_unit = SiUnit::of("m", "a length");
+  const YAML::Node& d =
+      g.need("diameter", tubes ? "each tube's inside diameter, e.g. diameter: 38 mm"
+                               : "the vessel's inside diameter, e.g. diameter: 3.2 m, or auto "
+                                 "with dP_max");
+  if (d.IsScalar() && d.Scalar() == "auto") {
+    // The smallest diameter whose pressure drop does not exceed dP_max.
+    const YAML::Node& m = g.need(
+        "dP_max", "the allowed pressure drop that diameter: auto sizes to, e.g. dP_max: 0.3 bar");
+    b.dP_max = quantity(m, "dP_max of " + what, SiUnit::of("Pa", "a pressure"));
+    check_range(m, "dP_max of " + what, kPositive, "Pa", *b.dP_max);
+  } else {
+    if (const auto* m = g.find("dP_max"); m != nullptr)
+      fail(*g.key_of("dP_max"),
+           fmt::format("{} gives dP_max with a diameter; dP_max sizes the diameter: give "
+                       "diameter: auto, or leave dP_max out",
+                       what));
+    b.diameter = quantity(d, "diameter of " + what, length_unit);
+    check_range(d, "diameter of " + what, kPositive, "m", b.diameter);
+  }
+  const YAML::Node& e = g.need("void_fraction", "the bed voidage, e.g. void_fraction: 0.40");
+  b.void_fraction = number(e, "void_fraction of " + what);
+  check_range(e, "void_fraction of " + what, kOpenUnitInterval, "", b.void_fraction);
+  if (tubes) {
+    const YAML::Node& c =
+        g.need("count", "the number of tubes the catalyst is packed in, e.g. count: 2400");
+    const double count = number(c, "count of " + what);
+    if (!(count >= 1 && count <= 1e7 && count == std::floor(count)))
+      fail(c, fmt::format("count of {} must be a whole number of tubes from 1 to 10000000, got {}",
+                          what, describe(c)));
+    b.tubes = static_cast<int>(count);
+  }
+  return b;
+}
+
+// The fluid's viscosity: `viscosity: 2.6e-5 Pa*s` (constant) or
+// `viscosity: {value: 2.6e-5 Pa*s, T: 700 K, exponent: 0.7}` (a power law
+// in T).
+ViscosityLaw Loader::read_fluid(const YAML::Node& node) const {
+  Fields f(*this, node, "fluid");
+  f.check({"viscosity"});
+  const YAML::Node& v = f.need("viscosity",
+                               "the fluid's dynamic viscosity, e.g. viscosity: 2.6e-5 Pa*s, or "
+                               "viscosity: {value: 2.6e-5 Pa*s, T: 700 K, exponent: 0.7}");
+  const SiUnit mu_unit = SiUnit::of("Pa*s", "a dynamic viscosity");
+  ViscosityLaw law;
+  const YAML::Node* value = &v;
+  if (v.IsMap()) {
+    Fields p(*this, v, "viscosity of fluid");
+    p.check({"value", "T", "exponent"});
+    value = &p.need("value", "the viscosity at T, e.g. value: 2.6e-5 Pa*s");
+    law.value = quantity(*value, "value of the fluid viscosity", mu_unit);
+    check_range(*value, "value of the fluid viscosity", kPositive, "Pa*s", law.value);
+    law.T_ref = temperature(p.need("T", "the temperature of value, e.g. T: 700 K"),
+                            "T of the fluid viscosity");
+    if (const auto* x = p.find("exponent")) {
+      law.exponent = number(*x, "exponent of the fluid viscosity");
+      if (!(law.exponent >= 0 && law.exponent <= 3))
+        fail(*x, fmt::format("exponent of the fluid viscosity must lie between 0 and 3 (a gas's "
+                             "viscosity rises with T, about as T^0.5 to T^1), got {}",
+                             describe(*x)));
+    }
+    return law;
+  }
+  law.value = quantity(v, "fluid viscosity", mu_unit);
+  check_range(v, "fluid viscosity", kPositive, "Pa*s", law.value);
+  return law;
+}
+
+// Gives every reactor the fluid's viscosity; a bed with a pellet needs it
+// (and every species' molar mass, for the mass flux and the density).
+void Loader::apply_fluid(const YAML::Node* fluid) {
+  std::optional<ViscosityLaw> law;
+  if (fluid) law = read_fluid(*fluid);
+  for (auto& s : train_) {
+    auto* r = std::get_if<ReactorSpec>(&s);
+    if (!r) continue;
+    r->viscosity = law;
+    if (r->geometry && r->geometry->dP_max && !r->pellet)
+      throw InputError(r->geometry->where,
+                       fmt::format("stage {}: diameter: auto sizes the bed to its pressure drop, "
+                                   "which needs a pellet (e.g. pellet: {{shape: sphere, size: 3 "
+                                   "mm}})",
+                                   r->id));
+    if (!r->geometry || !r->pellet) continue;
+    if (!law)
+      throw InputError(r->geometry->where,
+                       fmt::format("stage {} has a bed and a pellet, so its pressure drop is "
+                                   "computed (Ergun), which needs the fluid's viscosity: add a "
+                                   "top-level fluid: {{viscosity: 2.6e-5 Pa*s}}",
+                                   r->id));
+    for (const auto& sp : species_)
+      if (!sp.mw)
+        throw InputError(r->geometry->where,
+                         fmt::format("stage {}: its pressure drop needs the mass flow, and "
+                                     "species {} has no molar mass; give it a formula or mw",
+                                     r->id, sp.id));
+  }
+}
+
 // ---- train-level target and temperature limits --------------------------
 
 void Loader::read_train_target(const YAML::Node& node, Case& c) const {
@@ -1424,7 +1551,7 @@ Case Loader::load(const YAML::Node& root) {
                      "reactions, feed, key and train");
   Fields top(*this, root, "the case");
   top.check({"title", "phase", "species", "reactions", "feed", "key", "train", "target", "limits",
-             "space_velocity_basis", "products"});
+             "space_velocity_basis", "products", "fluid"});
   Case c;
   c.file = file_;
   c.title = file_;
@@ -1437,6 +1564,7 @@ Case Loader::load(const YAML::Node& root) {
   read_feed(top.need("feed", "the feed: T, P and flow with composition, or flows"));
   read_key(top.need("key", "the key reactant, e.g. key: NC5"));
   read_train(top.need("train", "the list of stages"));
+  apply_fluid(top.find("fluid"));
   c.target_where = {file_, 0, 0};
   if (const auto* n = top.find("target")) {
     read_train_target(*n, c);

@@ -60,7 +60,42 @@ struct Checker {
   void limits_and_basis() const;
   void adsorption(const Reaction& rx) const;
   void energy_and_catalyst() const;
+  void bed(const ReactorSpec& r) const;
 };
+
+// The loader's checks of a bed, its pellet and the fluid's viscosity.
+void Checker::bed(const ReactorSpec& r) const {
+  if (r.viscosity) {
+    const ViscosityLaw& mu = *r.viscosity;
+    if (!(mu.value > 0) || !(mu.exponent >= 0 && mu.exponent <= 3) ||
+        (mu.exponent != 0 && !(mu.T_ref > 0)))
+      fail(r.where, fmt::format("stage {}: the fluid viscosity needs a positive value, an exponent "
+                                "from 0 to 3 and, with an exponent, a positive T",
+                                r.id));
+  }
+  if (!r.geometry) return;
+  const BedGeometry& g = *r.geometry;
+  if (r.type != ReactorType::Pfr)
+    fail(g.where, fmt::format("stage {}: a bed or tubes describe a tubular stage only", r.id));
+  if (!(g.void_fraction > 0 && g.void_fraction < 1))
+    fail(g.where,
+         fmt::format("stage {}: the bed's void_fraction must lie strictly between 0 and 1, "
+                     "got {:g}",
+                     r.id, g.void_fraction));
+  if (g.tubes < 0) fail(g.where, fmt::format("stage {}: a negative tube count", r.id));
+  if (g.dP_max ? !(*g.dP_max > 0) : !(g.diameter > 0))
+    fail(g.where, fmt::format("stage {}: the bed needs a positive diameter (or diameter: auto with "
+                              "a positive dP_max)",
+                              r.id));
+  if (g.dP_max && !(r.pellet && r.viscosity))
+    fail(g.where, fmt::format("stage {}: diameter: auto sizes the bed to its pressure drop, which "
+                              "needs a pellet and the fluid's viscosity",
+                              r.id));
+  if (r.pellet && !r.viscosity)
+    fail(g.where, fmt::format("stage {} has a bed and a pellet, so its pressure drop is computed "
+                              "(Ergun), which needs the fluid's viscosity",
+                              r.id));
+}
 
 void Checker::shapes() const {
   const std::size_t n = c.mechanism.species().size();
@@ -207,6 +242,7 @@ void Checker::stages() const {
            fmt::format("stage {} needs one of volume, catalyst (a mass, with bulk_density) or "
                        "target",
                        r.id));
+    bed(r);
     if (!r.catalyst_mass) continue;
     if (!r.bulk_density)
       fail(r.where, fmt::format("stage {} gives catalyst but is missing \"bulk_density\", which "

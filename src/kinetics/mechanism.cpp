@@ -389,4 +389,28 @@ void Mechanism::rates_and_sparse_jacobian(double T, double P, const double* F, d
   }
 }
 
+void Mechanism::rates_pressure_derivative(double T, double P, const double* F, double* dr_dP,
+                                          Scratch& scratch) const {
+  const int nr = n_reactions();
+  if (phase_ != Phase::Gas) {
+    std::fill(dr_dP, dr_dP + nr, 0.0);
+    return;
+  }
+  scratch.d.resize(n_species());
+  scratch.g.resize(n_species());
+  Scales scales;
+  for (int j = 0; j < nr; ++j) {
+    const Scale& sc = scale_for(reactions_[j].rate.driving, T, P, F, scales);
+    const auto& parts = compiled_[j].parts;
+    for (const auto& p : parts) {
+      scratch.d[p.i] = std::max(F[p.i], 0.0) * sc.phi;
+      scratch.g[p.i] = 0;
+    }
+    const RateLawValue v = evaluate(j, T, scratch.d.data(), scratch.g.data());
+    double sum = 0;
+    for (const auto& p : parts) sum += scratch.g[p.i] * scratch.d[p.i];
+    dr_dP[j] = v.k * sum / P;
+  }
+}
+
 }  // namespace rxtrain

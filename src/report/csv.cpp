@@ -80,7 +80,8 @@ std::string profiles_csv(const TrainResult& result) {
   out += "\n";
   for (const auto& r : result.stages) {
     for (const auto& p : r.profile) {
-      out += fmt::format("{},{},{},{},{}", r.id, cell(p.V), cell(p.T), cell(r.inlet.P), cell(p.X));
+      out += fmt::format("{},{},{},{},{}", r.id, cell(p.V), cell(p.T),
+                         cell(p.P.value_or(r.inlet.P)), cell(p.X));
       for (double f : p.F) out += fmt::format(",{}", cell(f));
       if (eta)
         for (std::size_t j = 0; j < result.reactions.size(); ++j)

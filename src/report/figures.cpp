@@ -219,12 +219,19 @@ std::vector<Figure> profile_figures(const TrainResult& r) {
   svg::ChartOptions ox = ot;
   ox.title = "Conversion along the train";
   ox.y_label = fmt::format("Conversion of {} (–)", r.key);
-  svg::Chart tchart(ot), xchart(ox);
+  svg::ChartOptions op = ot;
+  op.title = "Pressure along the train";
+  op.y_label = "Pressure (bar)";
+  svg::Chart tchart(ot), xchart(ox), pchart(op);
+  // The pressure panel only where a bed has a pressure drop.
+  const bool pressure = std::any_of(r.stages.begin(), r.stages.end(), [](const StageResult& s) {
+    return s.hydraulics && s.hydraulics->dP;
+  });
   double start = 0;
   for (const auto& s : r.stages) {
     if (s.kind == StageKind::Exchanger) continue;
     const double scale = catalyst ? *s.bulk_density : 1.0;
-    std::vector<double> pos, T, X;
+    std::vector<double> pos, T, X, P;
     if (s.kind == StageKind::Cstr) {
       // Uniform contents: the outlet state across the whole volume.
       const double V = s.volume.value_or(0);
@@ -236,15 +243,19 @@ std::vector<Figure> profile_figures(const TrainResult& r) {
         pos.push_back(start + p.V * scale);
         T.push_back(p.T - kZeroCelsius);
         X.push_back(p.X);
+        P.push_back(p.P.value_or(s.inlet.P) / 1e5);
       }
     }
+    if (P.size() != pos.size()) P.assign(pos.size(), s.outlet.P / 1e5);  // a tank
     const std::string label = fmt::format("{} ({})", s.id, stage_word(s.kind));
     const std::string colour = stage_colour(r, s.id), dash = stage_dash(r, s.id);
     tchart.add_line(pos, T, {.label = label, .colour = colour, .dash = dash});
     xchart.add_line(pos, X, {.label = label, .colour = colour, .dash = dash});
+    pchart.add_line(pos, P, {.label = label, .colour = colour, .dash = dash});
     if (start > 0) {
       tchart.add_vline(start, {.label = s.id});
       xchart.add_vline(start, {.label = s.id});
+      pchart.add_vline(start, {.label = s.id});
     }
     start = pos.empty() ? start : pos.back();
   }
@@ -256,6 +267,11 @@ std::vector<Figure> profile_figures(const TrainResult& r) {
                  std::move(tchart)});
   out.push_back({"profile-conversion", "Overall conversion of the key along every reactor stage.",
                  std::move(xchart)});
+  if (pressure)
+    out.push_back({"profile-pressure",
+                   "Pressure along every reactor stage: Ergun's pressure drop in the beds given "
+                   "a vessel, a pellet and the fluid's viscosity; constant elsewhere.",
+                   std::move(pchart)});
   return out;
 }
 

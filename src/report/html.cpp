@@ -86,6 +86,33 @@ std::string space_velocity_table(const TrainResult& r) {
          rows + "</table>\n";
 }
 
+// Stages with a bed or tubes: the bed as built and its pressure drop
+// (nothing when no stage has one).
+std::string bed_table(const TrainResult& r) {
+  std::string rows;
+  for (const auto& s : r.stages) {
+    if (!s.hydraulics) continue;
+    const auto& h = *s.hydraulics;
+    const std::string D = h.geometry.tubes > 0 ? fmt::format("{} × {}", h.geometry.tubes,
+                                                             plain_sig_text(h.geometry.diameter, 4))
+                                               : plain_sig_text(h.geometry.diameter, 4);
+    rows += "<tr>" + cell(s.id, false) + cell(D + (h.dP_max ? " (found)" : ""), true) +
+            cell(plain_sig_text(h.length, 4), true) +
+            cell(plain_sig_text(h.length / h.geometry.diameter, 3), true) +
+            cell(sig_text(h.mass_flux), true) + cell(plain_sig_text(h.velocity_in, 4), true) +
+            cell(plain_sig_text(h.velocity_out, 4), true) +
+            cell(sig_text(h.reynolds_particle), true) + cell(bar_text(s.inlet.P), true) +
+            cell(bar_text(s.outlet.P), true) +
+            cell(h.dP ? bar_text(*h.dP) : std::string("- (constant pressure)"), true) + "</tr>\n";
+  }
+  if (rows.empty()) return {};
+  return "<h2 id=\"beds\">Beds</h2>\n<table>\n<tr><th>stage</th><th>D (m; tubes × tube "
+         "diameter)</th><th>L (m)</th><th>L/D</th><th>G (kg/(m² s))</th><th>u in (m/s)</th>"
+         "<th>u out (m/s)</th><th>Re_p = G d_p / μ</th><th>P in (bar)</th><th>P out (bar)</th>"
+         "<th>ΔP (bar, Ergun)</th></tr>\n" +
+         rows + "</table>\n";
+}
+
 // The feed and every stage's outlet, one row each: conditions, totals and
 // each species' molar flow; then the mole fractions. Where the species have
 // molar masses, each stage's mass balance beside the stream it makes.
@@ -158,6 +185,7 @@ std::string run_report_html(const Case& c, const TrainResult& r, const std::vect
     if (s.reach && s.heat) h += "<p>" + xml_escape(reach_sentence(s, r.species)) + ".</p>\n";
   h += product_table(r);
   h += space_velocity_table(r);
+  h += bed_table(r);
   h += stream_tables(r);
   h += html::figures_section(figures);
   h += html::warnings_section(r.warnings);

@@ -54,7 +54,16 @@ json units_json(const std::vector<std::string>& reactions) {
             {"duty", "W"},
             {"inverse_rate", "kg*s/mol or m3*s/mol, by the curve's basis"},
             {"area", "m2 for an exchanger; kg or m3 for a Levenspiel curve, by its basis"},
-            {"flow", "kg/s (a utility's mass flow)"}};
+            {"flow", "kg/s (a utility's mass flow)"},
+            {"dP", "Pa"},
+            {"mass_flux", "kg/(m2*s)"},
+            {"velocity_in", "m/s"},
+            {"velocity_out", "m/s"},
+            {"reynolds_particle", "1"},
+            {"flow_area", "m2"},
+            {"void_fraction", "1"},
+            {"tubes", "1"}};
+  for (const char* k : {"diameter", "tube_diameter", "length", "particle_diameter"}) u[k] = "m";
   for (const char* k : {"T", "T_peak", "T_max", "T_min", "T_in_min", "T_opt", "T_ad_eq",
                         "T_at_X_max", "T_end", "limit", "T_in", "T_out"})
     u[k] = "K";
@@ -83,6 +92,15 @@ json profile(const std::vector<std::string>& ids, const std::vector<std::string>
   json flows_by_id = json::object();
   for (std::size_t i = 0; i < ids.size(); ++i) flows_by_id[ids[i]] = F[i];
   json out = {{"V", V}, {"T", T}, {"X", X}, {"flows", flows_by_id}};
+  // The local pressure of a bed with a pressure drop (null: the stage runs
+  // at its inlet's pressure).
+  if (r.hydraulics && r.hydraulics->dP) {
+    json P = json::array();
+    for (const auto& p : r.profile) P.push_back(p.P ? json_number(*p.P) : json());
+    out["P"] = P;
+  } else {
+    out["P"] = nullptr;
+  }
   // With effectiveness factors: "eta_REACTION" per reaction.
   if (!r.effectiveness.empty())
     for (std::size_t j = 0; j < reactions.size(); ++j) {
@@ -107,6 +125,30 @@ json product_values(const std::vector<std::string>& products,
   for (std::size_t k = 0; k < products.size() && k < values.size(); ++k)
     o[products[k]] = values[k] ? json_number(*values[k]) : json(nullptr);
   return o;
+}
+
+// A bed's geometry and flow (null where the stage has no bed or tubes).
+void add_hydraulics(json& s, const StageResult& r) {
+  const auto& h = r.hydraulics;
+  if (!h) {
+    s["geometry"] = nullptr;
+    for (const char* k : {"dP", "mass_flux", "velocity_in", "velocity_out", "reynolds_particle"})
+      s[k] = nullptr;
+    return;
+  }
+  const bool tubes = h->geometry.tubes > 0;
+  s["geometry"] = {{"diameter", tubes ? json() : json_number(h->geometry.diameter)},
+                   {"tubes", tubes ? json(h->geometry.tubes) : json()},
+                   {"tube_diameter", tubes ? json_number(h->geometry.diameter) : json()},
+                   {"flow_area", json_number(h->flow_area)},
+                   {"length", json_number(h->length)},
+                   {"void_fraction", json_number(h->geometry.void_fraction)},
+                   {"particle_diameter", json_number(h->particle_diameter)}};
+  s["dP"] = json_number(h->dP);
+  s["mass_flux"] = json_number(h->mass_flux);
+  s["velocity_in"] = json_number(h->velocity_in);
+  s["velocity_out"] = json_number(h->velocity_out);
+  s["reynolds_particle"] = json_number(h->reynolds_particle);
 }
 
 json stage(const TrainResult& t, const StageResult& r) {
@@ -206,6 +248,7 @@ json stage(const TrainResult& t, const StageResult& r) {
     s["reach"] = nullptr;
   }
   s["size_sensitivity"] = json_number(r.size_sensitivity);
+  add_hydraulics(s, r);
   json path = json::array();
   for (const auto& p : r.profile)
     path.push_back({{"T", json_number(p.T)}, {"X", json_number(p.X)}});

@@ -107,6 +107,17 @@ std::string format_staging_report(const StagingResult& r) {
     }
     out += fmt::format("  total: {} m3{}\n", volume_text(V),
                        all_mass ? fmt::format(", {} kg of catalyst", volume_text(W)) : "");
+    // Beds built as the case's first reactor: their length and pressure drop.
+    std::string beds;
+    for (const auto& st : r.staged_run.stages)
+      if (st.hydraulics && st.hydraulics->dP)
+        beds += fmt::format("{}{} L = {} m, dP = {} bar", beds.empty() ? "" : "; ", st.id,
+                            plain_sig_text(st.hydraulics->length, 4), bar_text(*st.hydraulics->dP));
+    if (!beds.empty())
+      out += fmt::format(
+          "  beds built as the first reactor (diameter, voidage, pellet; Ergun): {}; "
+          "outlet {} bar\n",
+          beds, bar_text(r.staged_run.stages.back().outlet.P));
   }
   if (!r.coolers.empty()) {
     std::vector<std::vector<std::string>> x;

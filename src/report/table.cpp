@@ -85,6 +85,37 @@ std::string product_columns(const TrainResult& result) {
 
 }  // namespace
 
+// Stages with a bed or tubes: the bed as built and its pressure drop
+// (empty when no stage has one).
+std::string bed_columns(const TrainResult& result) {
+  std::vector<std::vector<std::string>> rows;
+  for (const auto& r : result.stages) {
+    if (!r.hydraulics) continue;
+    const auto& h = *r.hydraulics;
+    const bool tubes = h.geometry.tubes > 0;
+    rows.push_back(
+        {r.id,
+         tubes ? fmt::format("{} x {}", h.geometry.tubes, plain_sig_text(h.geometry.diameter, 4))
+               : plain_sig_text(h.geometry.diameter, 4),
+         plain_sig_text(h.length, 4), plain_sig_text(h.length / h.geometry.diameter, 3),
+         sig_text(h.mass_flux), plain_sig_text(h.velocity_in, 4), plain_sig_text(h.velocity_out, 4),
+         sig_text(h.reynolds_particle), bar_text(r.inlet.P), bar_text(r.outlet.P),
+         h.dP ? bar_text(*h.dP) : std::string("-")});
+  }
+  if (rows.empty()) return {};
+  std::string sized;
+  for (const auto& r : result.stages)
+    if (r.hydraulics && r.hydraulics->dP_max)
+      sized += fmt::format("  {}: diameter found for dP_max = {} bar (diameter: auto)\n", r.id,
+                           bar_text(*r.hydraulics->dP_max));
+  rows.insert(rows.begin(), {"stage", "D m", "L m", "L/D", "G kg/m2s", "u in m/s", "u out m/s",
+                             "Re_p", "P in bar", "P out bar", "dP bar"});
+  return "\nbeds (D: vessel diameter, or tubes x tube diameter; L: bed length; G: mass flux; u: "
+         "superficial velocity; Re_p = G d_p / mu at the inlet; dP by Ergun, \"-\": not computed, "
+         "constant pressure)\n" +
+         render_columns(rows, 1) + sized;
+}
+
 std::string format_stage_table(const TrainResult& result) {
   std::string out;
   out += result.title + "\n";
@@ -169,6 +200,7 @@ std::string format_stage_table(const TrainResult& result) {
   }
 
   out += product_columns(result);
+  out += bed_columns(result);
 
   out += fmt::format("\noutlet: {} °C, {} bar, overall conversion of {} = {}\n",
                      celsius_text(result.outlet.T), bar_text(result.outlet.P), result.key,

@@ -5,12 +5,14 @@
 #include <algorithm>
 #include <cmath>
 #include <limits>
+#include <numbers>
 #include <optional>
 #include <vector>
 
 #include "pfr_shared.hpp"
 #include "rxtrain/base/error.hpp"
 #include "rxtrain/base/units.hpp"
+#include "rxtrain/models/hydraulics.hpp"
 #include "rxtrain/solvers/quadrature.hpp"
 #include "rxtrain/solvers/scalar_root.hpp"
 
@@ -50,20 +52,26 @@ struct PfrWorkspace::State {
     int n = 0;
     int i_target = -1, i_stop = -1;
     double X_target = 0, T_stop = 0;
+    // A bed with a pressure drop: the pressure floor (a tenth of the
+    // inlet's), which ends the stage with an error.
+    int i_floor = -1;
+    double P_floor = 0;
     // >= 0: the target is this species' mole fraction X_target, not the
     // key's conversion.
     int fraction_of = -1;
-    int count() const { return (i_target >= 0) + (i_stop >= 0); }
+    int count() const { return (i_target >= 0) + (i_stop >= 0) + (i_floor >= 0); }
     int eval(const double* y, double* g) const {
       if (i_target >= 0)
         g[i_target] = fraction_of >= 0 ? detail::mole_fraction(y, n, fraction_of) - X_target
                                        : basis.conversion(y) - X_target;
       if (i_stop >= 0) g[i_stop] = y[n] - T_stop;
+      if (i_floor >= 0) g[i_floor] = y[n + 2] - P_floor;
       return 0;
     }
   } roots;
   std::vector<double> dky, y_turn;              // interpolated dT/dV (dX/dV) search (see run_pfr)
   std::optional<detail::PelletBinding> pellet;  // of the current stage
+  std::optional<detail::HydraulicBinding> hydraulics;
   // Binds the system to a stage and (re)starts the integrator at its inlet,
   // re-creating the integrator only when it cannot be reused. `spec` is the
   // stage's, for its pellets (effectiveness factors); null only where no
@@ -73,9 +81,12 @@ struct PfrWorkspace::State {
                          const std::vector<double>& multipliers, HeatMode heat, const Stream& inlet,
                          const PfrOptions& options, const ReactorSpec* spec) {
     pellet = spec ? detail::pellet_binding(mech, *spec, options.cvode.rtol) : std::nullopt;
-    sys.reset(mech, multipliers, heat, inlet.P, pellet ? &*pellet : nullptr);
+    hydraulics = spec ? detail::hydraulic_binding(mech, *spec, inlet) : std::nullopt;
+    sys.reset(mech, multipliers, heat, inlet.P, pellet ? &*pellet : nullptr,
+              hydraulics ? &*hydraulics : nullptr);
     const bool sparse = uses_sparse_jacobian(options, mech.n_species());
-    state_scale(mech, inlet, scale);
+    const bool with_P = sys.has_pressure();
+    state_scale(mech, inlet, scale, with_P);
     bool reuse = ode && ode->size() == sys.size() && ode->sparse() == sparse &&
                  same_options(ode->options(), options.cvode);
     if (sparse) {
@@ -103,7 +114,7 @@ struct PfrWorkspace::State {
           options.cvode, scale);
     }
     if (reuse) ode->set_scale(scale);
-    initial_state(inlet, y);
+    initial_state(inlet, y, with_P);
     ydot.resize(y.size());
     dky.resize(y.size() + 1);
     y_turn.resize(y.size() + 1);
@@ -153,7 +164,9 @@ class PathRecorder {
   void record(double V, const std::vector<double>& y) { record(V, y.data()); }
   void record(double V, const double* y) {
     res_.profile.push_back(detail::profile_point(V, y, n_, basis_));
+    if (with_pressure_) res_.profile.back().P = y[n_ + 2];
   }
+  void set_with_pressure(bool b) { with_pressure_ = b; }
 
   // After a step of `o` from t_prev to t ending at y; v_index < 0: V is t.
   void stepped(const CvodeIntegrator& o, double t_prev, double t, const std::vector<double>& y,
@@ -179,7 +192,8 @@ class PathRecorder {
   const ConversionBasis& basis_;
   int n_;
   bool turns_;
-  double slope_ = 0;  // dT/dt at the last point; 0 where unknown or flat
+  bool with_pressure_ = false;  // the state carries P (y[n + 2])
+  double slope_ = 0;            // dT/dt at the last point; 0 where unknown or flat
   std::vector<double>& dky_;
   std::vector<double>& y_turn_;
 };
@@ -198,6 +212,42 @@ double end_volume(const Mechanism& mech, const ReactorSpec& spec, const Stream& 
                                              "conversion at its inlet ({:.4f})",
                                              spec.id, *spec.target_conversion, X_in));
   return options.max_space_time * mech.volumetric_flow(inlet.T, inlet.P, inlet.F.data());
+}
+
+// A bed with a pressure drop stops where P falls to a tenth of its inlet
+// value: Ergun's P(z) falls ever faster as the gas expands, and below that
+// the bed is no design (common practice, no source).
+constexpr double kPressureFloor = 0.1;
+
+// Arms the pressure floor's root (a bed with a pressure drop), after the
+// other roots; st.y holds the inlet state.
+void arm_floor(PfrWorkspace::State& st, int n) {
+  if (!st.sys.has_pressure()) return;
+  st.roots.i_floor = st.roots.count();
+  st.roots.P_floor = kPressureFloor * st.y[n + 2];
+}
+
+bool floor_found(const PfrWorkspace::State& st, const std::vector<int>& found) {
+  return st.roots.i_floor >= 0 && found[st.roots.i_floor] != 0;
+}
+
+// A bed whose pressure falls to the floor (diameter: auto takes it as a
+// diameter far too small).
+class PressureFloorError : public InfeasibleError {
+ public:
+  using InfeasibleError::InfeasibleError;
+};
+
+[[noreturn]] void pressure_floor_error(const PfrWorkspace::State& st, const ReactorSpec& spec,
+                                       double V) {
+  const double P_in = st.roots.P_floor / kPressureFloor;
+  throw PressureFloorError(
+      spec.where,
+      fmt::format("stage {}: the pressure falls below a tenth of its inlet value ({:.4g} bar) at "
+                  "V = {:.6g} m3, {:.4g} m into the bed: the bed is too long or too narrow for "
+                  "this flow, or its pellets too small; widen the bed, shorten it or use larger "
+                  "pellets",
+                  spec.id, P_in / 1e5, V, V / st.hydraulics->area));
 }
 
 // Roots: the target conversion when sizing, and the stop temperature.
@@ -222,6 +272,8 @@ void arm_roots(PfrWorkspace::State& st, CvodeIntegrator& ode, const ConversionBa
     rt.i_stop = rt.count();
     directions.push_back(0);
   }
+  arm_floor(st, n);
+  if (rt.i_floor >= 0) directions.push_back(0);
   ode.set_roots(
       rt.count(), [r = &rt](double, const double* y, double* g) { return r->eval(y, g); },
       directions);
@@ -274,6 +326,7 @@ Walk walk_stage(PfrWorkspace::State& st, CvodeIntegrator& ode, PathRecorder& pat
       w.stopped = true;
       break;
     }
+    if (floor_found(st, found)) pressure_floor_error(st, spec, w.V);
   }
   return w;
 }
@@ -332,6 +385,7 @@ double volume_for_outlet(const Mechanism& mech, const ReactorSpec& spec, const S
     if (ev == CvodeIntegrator::Event::Stop) break;
     if (ev != CvodeIntegrator::Event::Root) continue;
     const auto found = ode.roots_found();
+    if (floor_found(st, found)) pressure_floor_error(st, spec, V);
     if (found[st.roots.i_target] != 0 && x <= t.x * (1 + 1e-6)) {
       reached = true;
       break;
@@ -356,8 +410,9 @@ double volume_for_outlet(const Mechanism& mech, const ReactorSpec& spec, const S
     arm_roots(st, o, basis, n, std::nullopt, std::nullopt);
     o.set_stop_time(v);
     double at = 0;
-    while (o.advance(v, at, y) != CvodeIntegrator::Event::Stop) {
-    }
+    for (auto ev = o.advance(v, at, y); ev != CvodeIntegrator::Event::Stop;
+         ev = o.advance(v, at, y))
+      if (floor_found(st, o.roots_found())) pressure_floor_error(st, spec, at);
     return detail::mole_fraction(y.data(), n, t.species) - t.x;
   };
   double a = V_prev, b = V;
@@ -394,6 +449,8 @@ void add_effectiveness(PfrWorkspace::State& st, const ReactorSpec& spec, StageRe
   for (auto& p : res.profile) {
     y.assign(p.F.begin(), p.F.end());
     y.push_back(p.T);
+    y.push_back(0.0);
+    if (p.P) y.push_back(*p.P);
     if (st.sys.update_eta(p.T, y.data()) != 0)
       throw SolverError(
           fmt::format("{}: effectiveness factors at V = {:.6g} m3 failed", spec.id, p.V));
@@ -412,8 +469,80 @@ void add_effectiveness(PfrWorkspace::State& st, const ReactorSpec& spec, StageRe
 
 }  // namespace
 
+namespace {
+
+// `diameter: auto`: the smallest diameter whose pressure drop does not
+// exceed dP_max, each trial a whole rating (or sizing) of the stage: dP
+// falls as the diameter grows, so a bracket by doubling, then Brent's
+// method on the diameter; a trial whose pressure reaches the floor counts
+// as too narrow. Returns the stage at the diameter found.
+StageResult run_auto_diameter(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
+                              const ConversionBasis& basis, PfrWorkspace& ws,
+                              const PfrOptions& options) {
+  const double dP_max = *spec.geometry->dP_max;
+  if (!(dP_max < (1 - kPressureFloor) * inlet.P))
+    throw InputError(spec.geometry->where,
+                     fmt::format("stage {}: dP_max = {:.4g} bar is not below 90 % of the stage's "
+                                 "inlet pressure ({:.4g} bar), where a bed stops (its pressure "
+                                 "may not fall below a tenth of the inlet's)",
+                                 spec.id, dP_max / 1e5, inlet.P / 1e5));
+  ReactorSpec trial = spec;
+  trial.geometry->dP_max.reset();
+  const int count = std::max(spec.geometry->tubes, 1);
+  auto excess = [&](double D) {
+    trial.geometry->diameter = D;
+    try {
+      const StageResult r = run_pfr(mech, trial, inlet, basis, ws, options);
+      return *r.hydraulics->dP - dP_max;
+    } catch (const PressureFloorError&) {
+      return std::numeric_limits<double>::infinity();
+    }
+  };
+  // Start where the inlet's superficial velocity is 1 m/s (a mid value for
+  // gas beds; only a start).
+  const double v0 = mech.volumetric_flow(inlet.T, inlet.P, inlet.F.data());
+  double b = std::sqrt(4 * v0 / (std::numbers::pi * count));
+  double fb = excess(b);
+  for (int k = 0; k < 60 && fb > 0; ++k) fb = excess(b *= 2);
+  double a = b / 2, fa = excess(a);
+  for (int k = 0; k < 60 && fa <= 0; ++k) {
+    b = a;
+    fb = fa;
+    fa = excess(a /= 2);
+  }
+  if (!(fb <= 0 && fa > 0))
+    throw InfeasibleError(spec.geometry->where,
+                          fmt::format("stage {}: no diameter found whose pressure drop stays "
+                                      "within dP_max = {:.4g} bar",
+                                      spec.id, dP_max / 1e5));
+  // Brent needs finite values: halve towards b past the floor.
+  for (int k = 0; k < 200 && !std::isfinite(fa); ++k) {
+    const double m = 0.5 * (a + b), fm = excess(m);
+    (fm > 0 ? a : b) = m;
+    (fm > 0 ? fa : fb) = fm;
+  }
+  if (!std::isfinite(fa))
+    throw SolverError(
+        fmt::format("{}: the diameter for dP_max = {:.4g} bar could not be "
+                    "bracketed away from the pressure floor",
+                    spec.id, dP_max / 1e5));
+  const ScalarRoot r = brent_root(excess, a, b, fa, fb, 1e-12, 200);
+  double D = r.x;
+  // The side that keeps within dP_max: Brent's last point may lie a hair
+  // on the other.
+  for (int k = 0; k < 10 && excess(D) > 0; ++k) D *= 1 + 1e-9 * (1 << k);
+  trial.geometry->diameter = D;
+  StageResult res = run_pfr(mech, trial, inlet, basis, ws, options);
+  res.hydraulics->dP_max = dP_max;
+  return res;
+}
+
+}  // namespace
+
 StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
                     const ConversionBasis& basis, PfrWorkspace& ws, const PfrOptions& options) {
+  if (spec.geometry && spec.geometry->dP_max)
+    return run_auto_diameter(mech, spec, inlet, basis, ws, options);
   if (spec.target_outlet) {
     // Sized to a purity: rated at the volume found, so that the result is
     // exactly that of a rated stage of that size.
@@ -446,6 +575,7 @@ StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream
   // and its extremes are the end points (isothermal: T is constant).
   const bool monotonic = !adiabatic || mech.n_reactions() == 1;
   PathRecorder path(res, basis, n, !monotonic, st.dky, st.y_turn);
+  path.set_with_pressure(st.sys.has_pressure());
   const Walk w =
       walk_stage(st, ode, path, spec, inlet, n, V_end, options.full_profile || !monotonic, T_stop);
   double V = w.V;
@@ -457,7 +587,8 @@ StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream
 
   // The quadrature reads the intrinsic rate: with effectiveness factors
   // the volume integration's root stands.
-  if (w.reached && mech.n_reactions() == 1 && !st.pellet) {
+  // So does a bed with a pressure drop: the quadrature's path is at constant P.
+  if (w.reached && mech.n_reactions() == 1 && !st.pellet && !st.hydraulics) {
     // One reaction: the volume by quadrature along the exact path (see
     // size_by_quadrature); the volume integration above told that the target is
     // met before the stop temperature.
@@ -507,6 +638,7 @@ StageReach pfr_reach(const Mechanism& mech, const ReactorSpec& spec, const Strea
     rt.T_stop = *options.stop_temperature;
     rt.i_stop = 0;
   }
+  arm_floor(st, n);
   ode.set_roots(
       rt.count(), [r = &rt](double, const double* y, double* g) { return r->eval(y, g); },
       std::vector<int>(rt.count(), 0));
@@ -562,7 +694,10 @@ StageReach pfr_reach(const Mechanism& mech, const ReactorSpec& spec, const Strea
     }
     consider(V, y.data());
     if (ev == CvodeIntegrator::Event::Stop) break;
-    if (ev == CvodeIntegrator::Event::Root) stopped = true;
+    if (ev == CvodeIntegrator::Event::Root) {
+      if (floor_found(st, ode.roots_found())) pressure_floor_error(st, spec, V);
+      stopped = true;
+    }
   }
   reach.X_end = basis.conversion(y.data());
   reach.T_end = y[n];
@@ -659,12 +794,77 @@ StageResult pfr_result(const Mechanism& mech, const ReactorSpec& spec, const Str
   res.volume = V;
   res.sized = sized;
   if (spec.bulk_density) res.catalyst_mass = V * *spec.bulk_density;
-  res.outlet = Stream{y[n], inlet.P, std::vector<double>(y, y + n)};
+  res.outlet =
+      Stream{y[n], spec.has_pressure_drop() ? y[n + 2] : inlet.P, std::vector<double>(y, y + n)};
   for (auto& f : res.outlet.F) f = std::max(f, 0.0);  // solver round-off below zero
   res.duty = y[n + 1];
   res.conversion = basis.conversion(res.outlet);
   add_space_velocities(mech, res);
+  if (spec.geometry) add_hydraulics(mech, spec, res);
   return res;
+}
+
+std::optional<HydraulicBinding> hydraulic_binding(const Mechanism& mech, const ReactorSpec& spec,
+                                                  const Stream& inlet) {
+  if (!spec.has_pressure_drop()) return std::nullopt;
+  HydraulicBinding h;
+  h.area = spec.geometry->flow_area();
+  h.mass_flow = mech.mass_flow(inlet.F.data());
+  h.d_p = particle_diameter(*spec.pellet);
+  h.eps = spec.geometry->void_fraction;
+  h.mu = *spec.viscosity;
+  return h;
+}
+
+namespace {
+
+// The range of Ergun's (1952) data in the modified particle Reynolds
+// number G d_p / (mu (1 - eps)): roughly 1 to 2000 (from memory).
+constexpr double kErgunReMin = 1, kErgunReMax = 2000;
+// A pressure drop above this share of the inlet pressure is flagged:
+// the bed then changes the rates and equilibrium of what follows
+// noticeably (common practice, no source).
+constexpr double kLargePressureDrop = 0.10;
+
+}  // namespace
+
+void add_hydraulics(const Mechanism& mech, const ReactorSpec& spec, StageResult& res) {
+  StageHydraulics h;
+  h.geometry = *spec.geometry;
+  h.flow_area = h.geometry.flow_area();
+  h.length = res.volume.value_or(0) / h.flow_area;
+  const bool all_mw = std::all_of(mech.species().begin(), mech.species().end(),
+                                  [](const Species& sp) { return sp.mw.has_value(); });
+  if (all_mw) h.mass_flux = mech.mass_flow(res.inlet.F.data()) / h.flow_area;
+  h.velocity_in = mech.volumetric_flow(res.inlet.T, res.inlet.P, res.inlet.F.data()) / h.flow_area;
+  h.velocity_out =
+      mech.volumetric_flow(res.outlet.T, res.outlet.P, res.outlet.F.data()) / h.flow_area;
+  if (spec.pellet) h.particle_diameter = particle_diameter(*spec.pellet);
+  if (h.particle_diameter && h.mass_flux && spec.viscosity)
+    h.reynolds_particle =
+        particle_reynolds(*h.mass_flux, *h.particle_diameter, spec.viscosity->at(res.inlet.T));
+  if (spec.has_pressure_drop()) {
+    h.dP = res.inlet.P - res.outlet.P;
+    if (*h.dP > kLargePressureDrop * res.inlet.P)
+      res.warnings.push_back(fmt::format(
+          "stage {}: the pressure drop {:.4g} bar is {:.0f} % of the inlet pressure (above 10 %, "
+          "common practice, no source); the bed's diameter or pellets deserve a second look",
+          res.id, *h.dP / 1e5, 100 * *h.dP / res.inlet.P));
+    const double re_mod = *h.reynolds_particle / (1 - h.geometry.void_fraction);
+    if (re_mod < kErgunReMin || re_mod > kErgunReMax)
+      res.warnings.push_back(fmt::format(
+          "stage {}: the modified particle Reynolds number G d_p / (mu (1 - eps)) = {:.3g} lies "
+          "outside the range of Ergun's 1952 data (about {:g} to {:g}, from memory); the pressure "
+          "drop is extrapolated",
+          res.id, re_mod, kErgunReMin, kErgunReMax));
+  } else {
+    res.warnings.push_back(fmt::format(
+        "stage {}: its pressure drop is not computed ({}); the stage runs at constant pressure",
+        res.id,
+        !spec.pellet ? "no pellet is given, so the bed has no particle size"
+                     : "no fluid viscosity is given"));
+  }
+  res.hydraulics = std::move(h);
 }
 
 // A one-reaction bed sized to X_target: V = integral of dV/dX =

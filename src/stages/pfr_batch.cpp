@@ -61,6 +61,8 @@ PfrBatchWorkspace& PfrBatchWorkspace::operator=(PfrBatchWorkspace&&) noexcept = 
 bool pfr_batchable(const Mechanism& mech, const ReactorSpec& spec, const PfrOptions& options) {
   // Effectiveness factors take the lone path (run_pfr), which binds them.
   if (spec.pellet && !spec.pellet->D_eff.empty()) return false;
+  // So does a pressure drop (the state P).
+  if (spec.has_pressure_drop()) return false;
   return spec.type == ReactorType::Pfr &&
          (spec.target_conversion || (spec.volume && *spec.volume > 0)) && !options.full_profile &&
          !options.stop_temperature && !uses_sparse_jacobian(options, mech.n_species()) &&

@@ -36,6 +36,17 @@ void add_size_sensitivity(const Mechanism& mech, const std::vector<double>& mult
 std::optional<PelletBinding> pellet_binding(const Mechanism& mech, const ReactorSpec& spec,
                                             double rtol);
 
+// The pressure drop binding of a stage with a bed, a pellet and a
+// viscosity (ReactorSpec::has_pressure_drop); empty otherwise.
+std::optional<HydraulicBinding> hydraulic_binding(const Mechanism& mech, const ReactorSpec& spec,
+                                                  const Stream& inlet);
+
+// The bed of a stage with geometry, from its result (volume, inlet and
+// outlet), with its warnings: a pressure drop above a tenth of the inlet
+// pressure, a particle Reynolds number outside Ergun's data, a bed whose
+// pressure drop is not computed.
+void add_hydraulics(const Mechanism& mech, const ReactorSpec& spec, StageResult& res);
+
 // Mole fraction of species i in flows F[0..n).
 double mole_fraction(const double* F, int n, int i);
 

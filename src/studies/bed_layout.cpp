@@ -126,6 +126,9 @@ LayoutCase check_layout_case(const Case& c, LayoutStudy study) {
   if (first) {
     lc.bulk_density = first->bulk_density;
     lc.bed_where = first->where;
+    lc.geometry = first->geometry;
+    lc.pellet = first->pellet;
+    lc.viscosity = first->viscosity;
   }
   return lc;
 }

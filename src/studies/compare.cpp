@@ -51,9 +51,20 @@ ReactorSpec with_heat(ReactorSpec r, LayoutHeat heat) {
 // Two stages are interchangeable when everything that shapes the run is
 // equal; the id and the place in the file are only names.
 bool same_spec(const ReactorSpec& a, const ReactorSpec& b) {
+  // The bed as built (it sets the pressure drop) and the pellet's size.
+  auto same_bed = [](const ReactorSpec& x, const ReactorSpec& y) {
+    if (x.geometry.has_value() != y.geometry.has_value()) return false;
+    if (x.geometry &&
+        (x.geometry->tubes != y.geometry->tubes || x.geometry->diameter != y.geometry->diameter ||
+         x.geometry->void_fraction != y.geometry->void_fraction))
+      return false;
+    if (x.pellet.has_value() != y.pellet.has_value()) return false;
+    return !x.pellet || (x.pellet->shape == y.pellet->shape && x.pellet->size == y.pellet->size &&
+                         x.pellet->length == y.pellet->length);
+  };
   return a.type == b.type && a.heat == b.heat && a.volume == b.volume &&
          a.catalyst_mass == b.catalyst_mass && a.bulk_density == b.bulk_density &&
-         a.target_conversion == b.target_conversion && a.activity == b.activity;
+         a.target_conversion == b.target_conversion && a.activity == b.activity && same_bed(a, b);
 }
 
 // The case with its reactors in `order` (indices into `reactors`) placed

@@ -558,6 +558,11 @@ DesignResult optimize_design(const Case& c, const DesignOptions& options) {
 
   DesignResult res = result_for(s, options);
   res.activity = lc.activity;
+  if (lc.geometry && lc.pellet && lc.viscosity)
+    res.warnings.push_back(
+        "the case's first reactor has a bed with a pressure drop (Ergun); optimize designs and "
+        "checks its beds at constant pressure, the feed's: the optimum leaves the pressure drop "
+        "out. Give the written case's beds a bed and pellet and rate it with run to see it");
   if (!(s.target > s.basis.conversion(c.feed)))
     throw InputError(c.target_where, "the target conversion is not above the feed's");
   const StagedStarts staged =

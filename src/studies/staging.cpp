@@ -36,7 +36,8 @@ struct Setup {
   // The first reactor's, given to every staged bed.
   std::optional<double> bulk_density;
   SourceLocation bed_where;
-  double activity = 1;  // of every staged bed (the case's reactors')
+  double activity = 1;                 // of every staged bed (the case's reactors')
+  const LayoutCase* layout = nullptr;  // the first reactor's bed, pellet and viscosity
 };
 
 TrainResult empty_result(const Case& c) {
@@ -321,6 +322,10 @@ void build_staged(const Setup& s, const StagingOptions& o, const SunContext& ctx
   const Mechanism& mech = s.mech;
   res.staged_run = empty_result(s.c);
   ReactorSpec bed = bed_stage("", s.bulk_density, s.activity, s.bed_where);
+  // Every new bed as the first reactor is built: its pressure drop counts.
+  bed.geometry = s.layout->geometry;
+  bed.pellet = s.layout->pellet;
+  bed.viscosity = s.layout->viscosity;
   PfrOptions po = o.solvers.tube;
   po.stop_temperature = s.T_limit;
   const char* exchanger_prefix = s.exothermic ? "C" : "H";
@@ -447,7 +452,8 @@ StagingResult run_staging(const Case& c, const StagingOptions& options) {
                 exo ? "T_max" : "T_in_min",
                 lc.bulk_density,
                 lc.bed_where,
-                lc.activity};
+                lc.activity,
+                &lc};
   if (options.return_to == ReturnTo::MaxRate && !s.exothermic && !c.limits.T_max)
     throw InputError(
         c.limits.where,

@@ -9,6 +9,7 @@
 #include <vector>
 
 #include "rxtrain/base/error.hpp"
+#include "rxtrain/case/bed_spec.hpp"
 #include "rxtrain/chem/heat_mode.hpp"
 #include "rxtrain/chem/stream.hpp"
 #include "rxtrain/kinetics/mechanism.hpp"
@@ -46,6 +47,16 @@ struct ReactorSpec {
   // Catalyst pellets: effectiveness factors of a tubular stage when D_eff
   // is given (models/pellet.hpp); absent: the intrinsic rates.
   std::optional<PelletSpec> pellet;
+  // The bed as built (tubular stages): with a pellet and a viscosity, the
+  // pressure falls along it by Ergun (models/hydraulics.hpp); otherwise
+  // the stage runs at constant pressure.
+  std::optional<BedGeometry> geometry;
+  // The fluid's viscosity (top-level `fluid`), copied to every reactor by
+  // the loader so that a stage runs from its spec alone.
+  std::optional<ViscosityLaw> viscosity;
+  bool has_pressure_drop() const {
+    return type == ReactorType::Pfr && geometry && pellet && viscosity;
+  }
   SourceLocation where;
 };
 

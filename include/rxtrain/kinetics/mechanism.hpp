@@ -105,6 +105,11 @@ class Mechanism {
   // with the same values rates_and_jacobian gives.
   void rates_and_sparse_jacobian(double T, double P, const double* F, double* r, double* direct,
                                  double* dilution, double* dr_dT, Scratch& scratch) const;
+  // dr_j/dP at fixed flows and T: every driving quantity of a gas is
+  // proportional to P, so dr_j/dP = (1/P) sum_i (dr_j/dd_i) d_i; 0 for a
+  // liquid (incompressible).
+  void rates_pressure_derivative(double T, double P, const double* F, double* dr_dP,
+                                 Scratch& scratch) const;
   // Whether r_j's law reads rate_species(j)[p] itself: a forward order, a
   // reverse exponent (reversible) or an adsorption term. The other rate
   // species (products of an irreversible reaction) have dr_j/dF = 0

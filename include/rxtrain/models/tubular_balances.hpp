@@ -1,7 +1,8 @@
 // The tubular balances: the mole and energy balances of a tubular stage
-// as an ODE system in its volume, on the state y = [F_1..F_n, T, Q]
-// (molar flows mol/s, temperature K, heat added W), with its dense and
-// sparse analytic Jacobians. The one home of these balances: lone and
+// as an ODE system in its volume, on the state y = [F_1..F_n, T, Q] or,
+// for a packed bed with a pressure drop, y = [F_1..F_n, T, Q, P] (molar
+// flows mol/s, temperature K, heat added W, pressure Pa), with its dense
+// and sparse analytic Jacobians. The one home of these balances: lone and
 // batched tubular stages (stages/pfr.cpp, stages/pfr_batch.cpp) integrate
 // it; a new state (pressure, a coolant temperature) is added here.
 // Internal to the library (rxtrain::detail), not API.
@@ -11,8 +12,10 @@
 #include <cmath>
 #include <vector>
 
+#include "rxtrain/chem/heat_mode.hpp"
 #include "rxtrain/chem/stream.hpp"
 #include "rxtrain/kinetics/mechanism.hpp"
+#include "rxtrain/models/hydraulics.hpp"
 #include "rxtrain/models/pellet.hpp"
 #include "rxtrain/solvers/cvode.hpp"
 
@@ -70,7 +73,17 @@ struct PelletBinding {
   double rtol = 1e-6;                // the pellet solve's grid tolerance
 };
 
-// The tubular-reactor ODE system on y = [F_1..F_n, T, Q]. Rebound to each
+// A packed bed's pressure drop (see PfrSystem::reset): Ergun along the bed
+// length z, with dV = A dz (A the flow area) and the local fluid density.
+struct HydraulicBinding {
+  double area = 0;       // m2, the flow area
+  double mass_flow = 0;  // kg/s, constant along the bed
+  double d_p = 0;        // m, the pellet's equivalent diameter
+  double eps = 0;        // bed voidage
+  ViscosityLaw mu;
+};
+
+// The tubular-reactor ODE system on y = [F_1..F_n, T, Q (, P)]. Rebound to each
 // stage with reset(); its buffers keep their capacity between runs, so
 // neither rhs() nor the Jacobians allocate.
 class PfrSystem {
@@ -81,9 +94,12 @@ class PfrSystem {
   // they are approximate, which CVODE's Newton iteration tolerates: it
   // converges on the residual, and tests/pellet_test.cpp checks the stage
   // outlet against a tight-tolerance run and GSL.
+  // With `hydraulics`, P is the state y[n+2] and every rate reads it; the
+  // rows and column of P are analytic (the viscosity's T dependence too).
   void reset(const Mechanism& mech, const std::vector<double>& multipliers, HeatMode heat, double P,
-             const PelletBinding* pellet = nullptr) {
+             const PelletBinding* pellet = nullptr, const HydraulicBinding* hydraulics = nullptr) {
     mech_ = &mech;
+    hyd_ = hydraulics;
     bind_pellet(mech, pellet);
     beta_.assign(multipliers.begin(), multipliers.end());
     heat_ = heat;
@@ -93,6 +109,7 @@ class PfrSystem {
     r_.resize(nr_);
     dr_dF_.resize(nr_, n_);
     dr_dT_.resize(nr_);
+    dr_dP_.resize(nr_);
     dq_dF_.resize(n_);
     // Nonzero stoichiometric coefficients per reaction, in species order.
     st_start_.clear();
@@ -110,7 +127,10 @@ class PfrSystem {
     st_start_.push_back(static_cast<int>(st_species_.size()));
   }
 
-  int size() const { return n_ + 2; }
+  int size() const { return n_ + 2 + (hyd_ ? 1 : 0); }
+  bool has_pressure() const { return hyd_ != nullptr; }
+  // The pressure at state y: its own state with a pressure drop, else the stage's.
+  double pressure(const double* y) const { return hyd_ ? y[n_ + 2] : P_; }
   const Mechanism& mech() const { return *mech_; }
 
   int rhs(const double* y, double* ydot) {
@@ -120,7 +140,9 @@ class PfrSystem {
     double Ft = 0;
     for (int i = 0; i < n_; ++i) Ft += std::max(y[i], 0.0);
     if (!(Ft > 0)) return 1;
-    mech.rates(T, P_, y, r_.data());
+    P_now_ = pressure(y);
+    if (!(P_now_ > 0) || !std::isfinite(P_now_)) return 1;
+    mech.rates(T, P_now_, y, r_.data());
     if (pellet_) update_eta(T, y, Ft);
     for (int i = 0; i < n_; ++i) ydot[i] = 0;
     double q = 0;  // sum_j dH_j R_j, W/m3
@@ -136,7 +158,8 @@ class PfrSystem {
       ydot[n_] = 0;
       ydot[n_ + 1] = q;
     }
-    for (int i = 0; i < n_ + 2; ++i)
+    if (hyd_) ydot[n_ + 2] = pressure_gradient(y, T, Ft);
+    for (int i = 0; i < size(); ++i)
       if (!std::isfinite(ydot[i])) return 1;
     return 0;
   }
@@ -144,17 +167,21 @@ class PfrSystem {
   // Column-major dense Jacobian.
   int jac(const double* y, double* J) {
     const Mechanism& mech = *mech_;
-    const int N = n_ + 2;
+    const int N = size();
     std::fill(J, J + N * N, 0.0);
     const double T = y[n_];
     if (!(T > 0)) return 1;
-    mech.rates_and_jacobian(T, P_, y, r_.data(), dr_dF_, dr_dT_, scratch_);
+    P_now_ = pressure(y);
+    if (!(P_now_ > 0)) return 1;
+    mech.rates_and_jacobian(T, P_now_, y, r_.data(), dr_dF_, dr_dT_, scratch_);
+    if (hyd_) mech.rates_pressure_derivative(T, P_now_, y, dr_dP_.data(), scratch_);
     if (pellet_) {
       if (update_eta(T, y) != 0) return 1;
       for (int j = 0; j < nr_; ++j) {
         r_[j] *= eta_[j];
         dr_dF_.row(j) *= eta_[j];
         dr_dT_(j) *= eta_[j];
+        dr_dP_[j] *= eta_[j];
       }
     }
     auto at = [&](int row, int col) -> double& { return J[row + N * col]; };
@@ -164,6 +191,7 @@ class PfrSystem {
         const double c = st_nu_[s] * beta_[j];
         for (int k = 0; k < n_; ++k) at(i, k) += c * dr_dF_(j, k);
         at(i, n_) += c * dr_dT_(j);
+        if (hyd_) at(i, n_ + 2) += c * dr_dP_[j];
       }
     }
     // Energy rows: q = sum_j dH_j(T) beta_j r_j.
@@ -177,6 +205,7 @@ class PfrSystem {
       for (int k = 0; k < n_; ++k) dq_dF_[k] += dH * beta_[j] * dr_dF_(j, k);
     }
     energy_rows(y, T, q, dq_dT, [&](int row, int col) -> double& { return at(row, col); });
+    if (hyd_) pressure_rows(y, T, [&](int row, int col) -> double& { return at(row, col); });
     return 0;
   }
 
@@ -185,7 +214,7 @@ class PfrSystem {
   // integration of a mechanism large enough to use it.
   void build_pattern(SparsePattern& pat) {
     const Mechanism& mech = *mech_;
-    const int N = n_ + 2;
+    const int N = size();
     const int T_row = heat_ == HeatMode::Adiabatic ? n_ : n_ + 1;  // the dense energy row
     // The rate species r_j depends on directly (Mechanism::reads). The others
     // (products of an irreversible reaction) have dr_j/dF_k = 0 exactly;
@@ -209,6 +238,13 @@ class PfrSystem {
           mark(st_species_[s], mech.rate_species(j)[dep_p_[d]]);
     for (int i = 0; i < n_; ++i) mark(i, n_);  // every species row: dF_i/dT
     for (int k = 0; k <= n_; ++k) mark(T_row, k);
+    if (hyd_) {
+      // The pressure column (every species row and the energy row) and the
+      // pressure row (every flow through the density, and T).
+      for (int i = 0; i < n_; ++i) mark(i, n_ + 2);
+      mark(T_row, n_ + 2);
+      for (int k = 0; k <= n_; ++k) mark(n_ + 2, k);
+    }
     pat.n = N;
     pat.col_start.assign(1, 0);
     pat.row.clear();
@@ -229,8 +265,16 @@ class PfrSystem {
           scatter_.push_back(at(st_species_[s], mech.rate_species(j)[dep_p_[d]]));
     col_T_.resize(n_);
     for (int i = 0; i < n_; ++i) col_T_[i] = at(i, n_);
-    row_E_.resize(n_ + 1);
+    row_E_.resize(n_ + 1 + (hyd_ ? 1 : 0));
     for (int k = 0; k <= n_; ++k) row_E_[k] = at(T_row, k);
+    if (hyd_) {
+      row_E_[n_ + 1] = at(T_row, n_ + 2);  // the energy row's pressure entry
+      col_P_.resize(n_);
+      for (int i = 0; i < n_; ++i) col_P_[i] = at(i, n_ + 2);
+      row_P_.resize(n_ + 2);
+      for (int k = 0; k <= n_; ++k) row_P_[k] = at(n_ + 2, k);
+      row_P_[n_ + 1] = at(n_ + 2, n_ + 2);
+    }
     direct_.resize(mech.n_direct());
     dilution_.resize(nr_);
     nnz_ = pat.nonzeros();
@@ -242,8 +286,11 @@ class PfrSystem {
     const Mechanism& mech = *mech_;
     const double T = y[n_];
     if (!(T > 0)) return 1;
-    mech.rates_and_sparse_jacobian(T, P_, y, r_.data(), direct_.data(), dilution_.data(),
+    P_now_ = pressure(y);
+    if (!(P_now_ > 0)) return 1;
+    mech.rates_and_sparse_jacobian(T, P_now_, y, r_.data(), direct_.data(), dilution_.data(),
                                    dr_dT_.data(), scratch_);
+    if (hyd_) mech.rates_pressure_derivative(T, P_now_, y, dr_dP_.data(), scratch_);
     if (pellet_) {
       if (update_eta(T, y) != 0) return 1;
       for (int j = 0; j < nr_; ++j) {
@@ -252,6 +299,7 @@ class PfrSystem {
         r_[j] *= eta_[j];
         dilution_[j] *= eta_[j];
         dr_dT_(j) *= eta_[j];
+        dr_dP_[j] *= eta_[j];
       }
     }
     std::fill(values, values + nnz_, 0.0);
@@ -267,6 +315,7 @@ class PfrSystem {
         for (int d = dep_start_[j]; d < dep_start_[j + 1]; ++d)
           values[scatter_[t++]] += c * dj[dep_p_[d]];
         values[col_T_[i]] += c * dr_dT_(j);
+        if (hyd_) values[col_P_[i]] += c * dr_dP_[j];
         u[i] += c * dilution_[j];
       }
       const double dH = mech.dH(j, T);
@@ -281,7 +330,13 @@ class PfrSystem {
       dq_dF_[k] += dq_dilution * w[k];  // the energy row is dense: exact in S
     }
     // Only the energy row is written, so the column picks the entry.
-    energy_rows(y, T, q, dq_dT, [&](int, int col) -> double& { return values[row_E_[col]]; });
+    energy_rows(y, T, q, dq_dT, [&](int, int col) -> double& {
+      return values[row_E_[col == n_ + 2 ? n_ + 1 : col]];
+    });
+    if (hyd_)
+      pressure_rows(y, T, [&](int, int col) -> double& {
+        return values[row_P_[col == n_ + 2 ? n_ + 1 : col]];  // only the P row is written
+      });
     return 0;
   }
 
@@ -290,6 +345,7 @@ class PfrSystem {
   bool has_pellet() const { return pellet_ != nullptr; }
   // eta_j at state y (for the profile points); 0 on success.
   int update_eta(double T, const double* y) {
+    P_now_ = pressure(y);
     double Ft = 0;
     for (int i = 0; i < n_; ++i) Ft += std::max(y[i], 0.0);
     if (!(Ft > 0) || !(T > 0)) return 1;
@@ -323,7 +379,7 @@ class PfrSystem {
     const Mechanism& mech = *mech_;
     double scale = 0;
     if (mech.phase() == Phase::Gas) {
-      scale = P_ / (Ft * kGasConstant * T);
+      scale = P_now_ / (Ft * kGasConstant * T);
     } else {
       for (int i = 0; i < n_; ++i) c_surface_[i] = std::max(y[i], 0.0);
       scale = 1.0 / mech.liquid_volume_flow(c_surface_.data());
@@ -344,6 +400,7 @@ class PfrSystem {
   template <class At>
   void energy_rows(const double* y, double T, double q, double dq_dT, At at) {
     const Mechanism& mech = *mech_;
+    T_last_ = T;
     if (heat_ == HeatMode::Adiabatic) {
       const double C = mech.heat_capacity_flow(T, y);
       // d(sum F cp)/dT by a central difference of the property (the rate
@@ -356,9 +413,60 @@ class PfrSystem {
         at(n_, k) = -dq_dF_[k] / C + q * cp_k / (C * C);
       }
       at(n_, n_) = -dq_dT / C + q * dC_dT / (C * C);
+      if (hyd_) at(n_, n_ + 2) = -dq_dP() / C;
     } else {
       for (int k = 0; k < n_; ++k) at(n_ + 1, k) = dq_dF_[k];
       at(n_ + 1, n_) = dq_dT;
+      if (hyd_) at(n_ + 1, n_ + 2) = dq_dP();
+    }
+  }
+
+  // sum_j dH_j beta_j dr_j/dP (dr_dP_ already times eta_j).
+  double dq_dP() const {
+    double s = 0;
+    for (int j = 0; j < nr_; ++j) s += mech_->dH(j, T_last_) * beta_[j] * dr_dP_[j];
+    return s;
+  }
+
+  // 1/rho of the fluid at state y (m3/kg): an ideal gas at the local T and
+  // P, or the liquid by ideal mixing (incompressible).
+  double specific_volume(const double* y, double T, double Ft) const {
+    if (mech_->phase() == Phase::Gas) return Ft * kGasConstant * T / (P_now_ * hyd_->mass_flow);
+    double v = 0;
+    for (int i = 0; i < n_; ++i) v += mech_->dilution_weight(i, y) * std::max(y[i], 0.0);
+    return v / hyd_->mass_flow;
+  }
+
+  // dP/dV = (dP/dz) / A by Ergun at the local density and viscosity.
+  double pressure_gradient(const double* y, double T, double Ft) const {
+    const HydraulicBinding& h = *hyd_;
+    const double G = h.mass_flow / h.area;
+    return ergun_gradient(G, 1.0 / specific_volume(y, T, Ft), h.mu.at(T), h.d_p, h.eps) / h.area;
+  }
+
+  // The pressure row: g = dP/dV = -K(T) / rho with K the Ergun factor at
+  // T (the viscous term's mu(T)); 1/rho = Ft R T / (P mdot) for a gas and
+  // sum v_i F_i / mdot for a liquid.
+  template <class At>
+  void pressure_rows(const double* y, double T, At at) {
+    double Ft = 0;
+    for (int i = 0; i < n_; ++i) Ft += std::max(y[i], 0.0);
+    const HydraulicBinding& h = *hyd_;
+    const double g = pressure_gradient(y, T, Ft);
+    const double G = h.mass_flow / h.area;
+    const double viscous = kErgunViscous * (1 - h.eps) / h.d_p;
+    const double bracket = viscous * h.mu.at(T) + kErgunInertial * G;
+    const double dlnK_dT = viscous * h.mu.slope(T) / bracket;
+    const int row = n_ + 2;
+    if (mech_->phase() == Phase::Gas) {
+      for (int k = 0; k < n_; ++k) at(row, k) = y[k] > 0 ? g / Ft : 0.0;
+      at(row, n_) = g * (1.0 / T + dlnK_dT);
+      at(row, n_ + 2) = -g / P_now_;
+    } else {
+      const double v = specific_volume(y, T, Ft) * h.mass_flow;
+      for (int k = 0; k < n_; ++k) at(row, k) = g * mech_->dilution_weight(k, y) / v;
+      at(row, n_) = g * dlnK_dT;
+      at(row, n_ + 2) = 0.0;
     }
   }
 
@@ -370,7 +478,11 @@ class PfrSystem {
   std::vector<double> r_;
   Eigen::MatrixXd dr_dF_;
   Eigen::VectorXd dr_dT_;
+  std::vector<double> dr_dP_;  // with a pressure drop only
   std::vector<double> dq_dF_;
+  const HydraulicBinding* hyd_ = nullptr;
+  double P_now_ = 0;   // the pressure of the state last evaluated
+  double T_last_ = 0;  // its temperature (energy_rows)
   Mechanism::Scratch scratch_;
   std::vector<int> st_start_, st_species_;
   std::vector<double> st_nu_;
@@ -378,7 +490,9 @@ class PfrSystem {
   std::vector<int> pos_;      // (row, col) -> index in the pattern, -1 outside
   std::vector<int> scatter_;  // per (reaction, stoichiometric entry, dependency)
   std::vector<int> col_T_;    // entry (i, T) per species row
-  std::vector<int> row_E_;    // entry (energy row, k) for k = 0..n
+  std::vector<int> row_E_;    // entry (energy row, k) for k = 0..n, then (energy row, P)
+  std::vector<int> col_P_;    // entry (i, P) per species row (pressure drop)
+  std::vector<int> row_P_;    // entry (P row, k) for k = 0..n, then (P, P)
   std::vector<double> direct_, dilution_;
   // Per reaction j, dep_p_[dep_start_[j] .. dep_start_[j+1]) are the
   // positions in rate_species(j) that r_j depends on (see build_pattern).
@@ -400,17 +514,21 @@ inline bool same_options(const CvodeOptions& a, const CvodeOptions& b) {
          a.max_order == b.max_order;
 }
 
-inline void initial_state(const Stream& in, std::vector<double>& y) {
+// with_pressure: the state carries P (a bed with a pressure drop).
+inline void initial_state(const Stream& in, std::vector<double>& y, bool with_pressure = false) {
   y.assign(in.F.begin(), in.F.end());
   y.push_back(in.T);
   y.push_back(0.0);
+  if (with_pressure) y.push_back(in.P);
 }
 
-inline void state_scale(const Mechanism& mech, const Stream& in, std::vector<double>& s) {
+inline void state_scale(const Mechanism& mech, const Stream& in, std::vector<double>& s,
+                        bool with_pressure = false) {
   const double Ft = in.total_flow();
   s.assign(in.F.size(), Ft);
   s.push_back(in.T);
   s.push_back(std::max(1.0, mech.heat_capacity_flow(in.T, in.F.data()) * in.T));
+  if (with_pressure) s.push_back(in.P);
 }
 
 }  // namespace rxtrain::detail

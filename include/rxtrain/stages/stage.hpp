@@ -33,6 +33,9 @@ struct ProfilePoint {
   // Effectiveness factor of each reaction at this point (catalyst pellets
   // with D_eff; empty without).
   std::vector<double> eta;
+  // Pa, the local pressure of a bed with a pressure drop; empty where the
+  // stage runs at constant pressure (its inlet's).
+  std::optional<double> P = std::nullopt;
 };
 
 // A reaction's effectiveness factor over a stage: its least and greatest
@@ -119,6 +122,24 @@ void finish_reach(StageReach& reach, double V_last);
 std::string out_of_reach_text(const ReactorSpec& spec, double X_target, const StageReach& reach,
                               const Mechanism& mech);
 
+// A tubular stage's bed as built (its `bed` or `tubes`) and what flows
+// through it, SI. Velocities are superficial (volumetric flow / flow area).
+struct StageHydraulics {
+  BedGeometry geometry;
+  double flow_area = 0;                      // m2
+  double length = 0;                         // m, the bed's (tubes') length, V / flow_area
+  std::optional<double> particle_diameter;   // m, d_p = 6 V_p / S_p (with a pellet)
+  std::optional<double> mass_flux;           // kg/(m2 s), G (every molar mass known)
+  double velocity_in = 0, velocity_out = 0;  // m/s
+  std::optional<double> reynolds_particle;   // G d_p / mu at the inlet
+  // Pa, inlet less outlet pressure; empty where the stage runs at constant
+  // pressure (no pellet, or no viscosity).
+  std::optional<double> dP;
+  // `diameter: auto`: the pressure drop the diameter was sized to (the
+  // diameter found is geometry.diameter).
+  std::optional<double> dP_max;
+};
+
 struct StageResult {
   std::string id;
   StageKind kind = StageKind::Pfr;
@@ -172,6 +193,8 @@ struct StageResult {
   // (models/heat_exchange.hpp); empty without.
   std::optional<UtilitySpec> utility;
   std::optional<ExchangerSize> exchanger_size;
+  // Tubular stages given a bed or tubes: the bed as built and its flow.
+  std::optional<StageHydraulics> hydraulics;
 };
 
 // Fills space time, space velocity, GHSV, WHSV and LHSV from the stage's

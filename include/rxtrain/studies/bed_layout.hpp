@@ -66,6 +66,12 @@ struct LayoutCase {
   // reactor of the case gives (1 when none does).
   double activity = 1;
   SourceLocation bed_where;
+  // The first reactor's bed geometry, pellet and the fluid's viscosity:
+  // with all three, every new bed of staging has the same diameter,
+  // voidage and pellets, and so its pressure drop.
+  std::optional<BedGeometry> geometry;
+  std::optional<PelletSpec> pellet;
+  std::optional<ViscosityLaw> viscosity;
 };
 
 // The study a case is checked for, which also names it in the messages.
