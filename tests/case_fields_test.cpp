@@ -32,7 +32,8 @@ namespace {
 
 // Invented data: fields the demo cases do not hold (a reactor given by
 // volume, an exchanger given by duty, molar masses, van 't Hoff data with
-// a given dH, both limits, feed by flow and composition).
+// a given dH, both limits, feed by flow and composition, multitubular
+// beds, one sized for its pressure drop, with pellets and a constant viscosity).
 constexpr const char* kExtraCase = R"(
 title: field table coverage (invented data)
 species:
@@ -47,10 +48,19 @@ feed: {T: 430 K, P: 10 bar, flow: 40 mol/s, composition: {A: 0.9, B: 0.1}}
 key: A
 target: {conversion: 0.5}
 limits: {T_max: 600 K, T_in_min: 400 K}
+fluid: {viscosity: 2.0e-5 Pa*s}
 train:
-  - {type: pfr, id: R1, volume: 2 m3}
+  - type: pfr
+    id: R1
+    volume: 2 m3
+    tubes: {count: 400, diameter: 40 mm, void_fraction: 0.4}
+    pellet: {shape: sphere, size: 4 mm}
   - {type: exchanger, id: C1, duty: -50 kW}
-  - {type: pfr, id: R2, volume: 3 m3}
+  - type: pfr
+    id: R2
+    volume: 3 m3
+    tubes: {count: 300, diameter: auto, dP_max: 0.5 bar, void_fraction: 0.4}
+    pellet: {shape: sphere, size: 4 mm}
 )";
 
 std::string read_text(const std::filesystem::path& p) {

@@ -45,6 +45,22 @@ constexpr std::array kSpecs{
                   "a temperature", false, kPositive, S::Offered},
     CaseFieldSpec{K::ExchangerDuty, O::Stage, "train.{}.duty", "duty of stage {}", "W", "a power",
                   false, kAnyValue, S::Offered},
+    CaseFieldSpec{K::BedDiameter, O::Stage, "train.{}.bed.diameter", "bed diameter of stage {}",
+                  "m", "a length", false, kPositive, S::Offered},
+    CaseFieldSpec{K::TubeDiameter, O::Stage, "train.{}.tubes.diameter", "tube diameter of stage {}",
+                  "m", "a length", false, kPositive, S::Offered},
+    CaseFieldSpec{K::BedVoid, O::Stage, "train.{}.bed.void_fraction",
+                  "bed void_fraction of stage {}", "1", "a plain number", false, kOpenUnitInterval,
+                  S::Offered},
+    CaseFieldSpec{K::TubeVoid, O::Stage, "train.{}.tubes.void_fraction",
+                  "tubes void_fraction of stage {}", "1", "a plain number", false,
+                  kOpenUnitInterval, S::Offered},
+    CaseFieldSpec{K::BedDPmax, O::Stage, "train.{}.bed.dP_max", "bed dP_max of stage {}", "Pa",
+                  "a pressure", false, kPositive, S::Offered},
+    CaseFieldSpec{K::TubeDPmax, O::Stage, "train.{}.tubes.dP_max", "tubes dP_max of stage {}", "Pa",
+                  "a pressure", false, kPositive, S::Offered},
+    CaseFieldSpec{K::PelletSize, O::Stage, "train.{}.pellet.size", "pellet size of stage {}", "m",
+                  "a length", false, kPositive, S::Offered},
     CaseFieldSpec{K::RateA, O::Reaction, "reactions.{}.rate.A", "A of reaction {}", "",
                   "a rate constant", false, kPositive, S::Offered},
     CaseFieldSpec{K::RateEa, O::Reaction, "reactions.{}.rate.Ea", "Ea of reaction {}", "J/mol",
@@ -66,6 +82,11 @@ constexpr std::array kSpecs{
                   "a density", false, kPositive, S::LiquidPhase},
     CaseFieldSpec{K::TrainTarget, O::Case, "target.conversion", "target conversion", "1",
                   "a plain number", false, kOpenUnitInterval, S::NotOffered},
+    CaseFieldSpec{K::Viscosity, O::Case, "fluid.viscosity", "fluid viscosity", "Pa*s",
+                  "a dynamic viscosity", false, kPositive, S::Offered},
+    CaseFieldSpec{K::ViscosityValue, O::Case, "fluid.viscosity.value",
+                  "value of the fluid viscosity", "Pa*s", "a dynamic viscosity", false, kPositive,
+                  S::Offered},
     CaseFieldSpec{K::LimitTmax, O::Case, "limits.T_max", "T_max of limits", "K", "a temperature",
                   false, kPositive, S::NotOffered},
     CaseFieldSpec{K::LimitTinMin, O::Case, "limits.T_in_min", "T_in_min of limits", "K",
@@ -75,6 +96,20 @@ constexpr std::array kSpecs{
 const ReactorSpec* reactor(const Case& c, int k) { return std::get_if<ReactorSpec>(&c.train[k]); }
 const ExchangerSpec* exchanger(const Case& c, int k) {
   return std::get_if<ExchangerSpec>(&c.train[k]);
+}
+// A reactor's bed when it is `bed` (vessel) or `tubes`, with a diameter
+// given or found.
+const BedGeometry* bed(const Case& c, int k, bool tubes) {
+  const ReactorSpec* r = reactor(c, k);
+  if (!r || !r->geometry || (r->geometry->tubes > 0) != tubes) return nullptr;
+  return &*r->geometry;
+}
+// The first reactor's viscosity: the loader copies the case's one law to
+// every reactor.
+const ViscosityLaw* viscosity(const Case& c) {
+  for (int k = 0; k < static_cast<int>(c.train.size()); ++k)
+    if (const ReactorSpec* r = reactor(c, k); r && r->viscosity) return &*r->viscosity;
+  return nullptr;
 }
 
 // Whether the case holds field `kind` of owner `k`.
@@ -103,6 +138,24 @@ bool present(K kind, const Case& c, int k) {
       return exchanger(c, k) && exchanger(c, k)->T_out;
     case K::ExchangerDuty:
       return exchanger(c, k) && exchanger(c, k)->duty;
+    case K::BedDiameter:
+      return bed(c, k, false) && !bed(c, k, false)->dP_max;
+    case K::TubeDiameter:
+      return bed(c, k, true) && !bed(c, k, true)->dP_max;
+    case K::BedVoid:
+      return bed(c, k, false) != nullptr;
+    case K::TubeVoid:
+      return bed(c, k, true) != nullptr;
+    case K::BedDPmax:
+      return bed(c, k, false) && bed(c, k, false)->dP_max;
+    case K::TubeDPmax:
+      return bed(c, k, true) && bed(c, k, true)->dP_max;
+    case K::PelletSize:
+      return reactor(c, k) && reactor(c, k)->pellet;
+    case K::Viscosity:
+      return viscosity(c) && viscosity(c)->exponent == 0;
+    case K::ViscosityValue:
+      return viscosity(c) && viscosity(c)->exponent != 0;
     case K::RateTref:
       return m.reactions()[k].rate.T_ref.has_value();
     case K::EquilibriumK:
@@ -298,6 +351,20 @@ double case_field_value(const Case& c, const CaseFieldSpec& spec, int index) {
       return exchanger(c, index)->T_out.value_or(0);
     case K::ExchangerDuty:
       return exchanger(c, index)->duty.value_or(0);
+    case K::BedDiameter:
+    case K::TubeDiameter:
+      return reactor(c, index)->geometry->diameter;
+    case K::BedVoid:
+    case K::TubeVoid:
+      return reactor(c, index)->geometry->void_fraction;
+    case K::BedDPmax:
+    case K::TubeDPmax:
+      return reactor(c, index)->geometry->dP_max.value_or(0);
+    case K::PelletSize:
+      return reactor(c, index)->pellet->size;
+    case K::Viscosity:
+    case K::ViscosityValue:
+      return viscosity(c)->value;
     case K::RateA:
       return m.reactions()[index].rate.A;
     case K::RateEa:
@@ -371,6 +438,21 @@ void set_stage_field(Case& c, const CaseField& f, double v) {
       break;
     case K::Activity:
       r.activity = v;
+      break;
+    case K::BedDiameter:
+    case K::TubeDiameter:
+      r.geometry->diameter = v;
+      break;
+    case K::BedVoid:
+    case K::TubeVoid:
+      r.geometry->void_fraction = v;
+      break;
+    case K::BedDPmax:
+    case K::TubeDPmax:
+      r.geometry->dP_max = v;
+      break;
+    case K::PelletSize:
+      r.pellet->size = v;
       break;
     default:
       break;
@@ -449,6 +531,11 @@ void set_case_fields(Case& c, std::span<const CaseField> fields, std::span<const
         break;
       case K::TrainTarget:
         c.target_conversion = v;
+        break;
+      case K::Viscosity:
+      case K::ViscosityValue:
+        for (auto& st : c.train)
+          if (auto* r = std::get_if<ReactorSpec>(&st); r && r->viscosity) r->viscosity->value = v;
         break;
       case K::LimitTmax:
         c.limits.T_max = v;

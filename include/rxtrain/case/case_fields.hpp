@@ -59,6 +59,15 @@ enum class CaseFieldKind {
   Activity,     // a reactor's catalyst activity; every reactor has one (default 1)
   ExchangerTout,
   ExchangerDuty,
+  BedDiameter,     // a vessel's diameter (not with `diameter: auto`)
+  TubeDiameter,    // each tube's inside diameter (not with `diameter: auto`)
+  BedVoid,         // a vessel's bed voidage
+  TubeVoid,        // the voidage of the tubes' beds
+  BedDPmax,        // the allowed pressure drop of a vessel with `diameter: auto`
+  TubeDPmax,       // the same of tubes with `diameter: auto`
+  PelletSize,      // the pellet's diameter or thickness (Ergun's d_p and the modulus)
+  Viscosity,       // the fluid's constant viscosity; every reactor holds a copy
+  ViscosityValue,  // a power-law viscosity's value at its T (the exponent stays)
   RateA,
   RateEa,
   RateTref,
