@@ -37,6 +37,34 @@ std::string beds_table(const DesignLayout& l) {
   return h + "</table>\n";
 }
 
+// The optimum run again with each bed built as the case's first reactor
+// is (a case with a bed and a pressure drop).
+std::string pressure_drop_section(const DesignResult& d) {
+  if (!d.with_pressure_drop) return {};
+  const auto& p = *d.with_pressure_drop;
+  std::string h = fmt::format(
+      "<h2 id=\"pressure-drop\">With the pressure drop</h2>\n<p>The optimum above was designed "
+      "at constant pressure, the feed's {} bar. Run again with each bed built as the case's "
+      "first reactor is (its bed, pellet and the fluid's viscosity; Ergun), ",
+      bar_text(d.feed_P));
+  if (!p.error.empty()) return h + "it does not run through: " + xml_escape(p.error) + "</p>\n";
+  h += fmt::format("the same catalyst reaches X = {} (target {}){}.</p>\n",
+                   fixed_text(p.train.conversion, 4), fixed_text(d.target, 4),
+                   pressure_drop_short(d) ? ": <strong>short of the target</strong>" : "");
+  h += "<table class=\"stages\">\n";
+  h += html::header_row(
+      {"bed", "diameter (m)", "length (m)", "P in (bar)", "P out (bar)", "dP (bar)", "X out"});
+  for (const auto& r : p.train.stages)
+    if (r.hydraulics)
+      h += "<tr>" + cell(r.id, false) +
+           cell(plain_sig_text(r.hydraulics->geometry.diameter, 4), true) +
+           cell(plain_sig_text(r.hydraulics->length, 4), true) + cell(bar_text(r.inlet.P), true) +
+           cell(bar_text(r.outlet.P), true) +
+           cell(r.hydraulics->dP ? bar_text(*r.hydraulics->dP) : std::string("-"), true) +
+           cell(fixed_text(r.conversion, 4), true) + "</tr>\n";
+  return h + "</table>\n";
+}
+
 std::string exchangers_table(const DesignResult& d) {
   const DesignLayout& l = d.best;
   std::string h = "<table class=\"stages\">\n";
@@ -216,6 +244,7 @@ std::string optimize_report_html(const Case& c, const DesignResult& d,
   h += fmt::format(
       "<p>Run with these beds by the train solver, the train reaches X = {} (target {}).</p>\n",
       fixed_text(l.checked_conversion, 6), fixed_text(d.target, 4));
+  h += pressure_drop_section(d);
   h += "<h2 id=\"gain\">Gain</h2>\n" + gains(d);
   if (!d.by_bed_count.empty())
     h += "<h2 id=\"by-bed-count\">Beds against catalyst</h2>\n" + by_bed_count_table(d);

@@ -9,6 +9,7 @@
 #include "rxtrain/base/json_number.hpp"
 #include "rxtrain/report/json.hpp"
 #include "rxtrain/report/optimize_text.hpp"
+#include "rxtrain/report/table.hpp"
 #include "rxtrain/report/text_format.hpp"
 
 namespace rxtrain {
@@ -153,6 +154,29 @@ json by_bed_count_json(const DesignResult& d) {
   return counts;
 }
 
+// {"conversion", "outlet_P", "error", "beds": [{"id", "length", "dP"}]},
+// or null when the case's first reactor has no bed with a pressure drop.
+json pressure_drop_json(const DesignResult& d) {
+  if (!d.with_pressure_drop) return nullptr;
+  const auto& p = *d.with_pressure_drop;
+  if (!p.error.empty())
+    return {{"conversion", nullptr},
+            {"outlet_P", nullptr},
+            {"error", p.error},
+            {"beds", json::array()}};
+  json beds = json::array();
+  for (const auto& r : p.train.stages)
+    if (r.hydraulics)
+      beds.push_back({{"id", r.id},
+                      {"length", json_number(r.hydraulics->length)},
+                      {"diameter", json_number(r.hydraulics->geometry.diameter)},
+                      {"dP", r.hydraulics->dP ? json_number(*r.hydraulics->dP) : json(nullptr)}});
+  return {{"conversion", json_number(p.train.conversion)},
+          {"outlet_P", json_number(p.train.outlet.P)},
+          {"error", nullptr},
+          {"beds", beds}};
+}
+
 }  // namespace
 
 std::string optimize_json_text(const DesignResult& d) {
@@ -176,6 +200,7 @@ std::string optimize_json_text(const DesignResult& d) {
   put_comparisons(j, d);
   j["by_bed_count"] = by_bed_count_json(d);
   j["limit_check"] = limit_check_json(d.limit_check);
+  j["with_pressure_drop"] = pressure_drop_json(d);
   j["warnings"] = optimize_warnings(d);
   j["caution"] = kCaution;
   return j.dump(2) + "\n";
@@ -329,10 +354,38 @@ std::string by_bed_count_lines(const DesignResult& d, int max_beds) {
   return out;
 }
 
+// The optimum rerun with its beds' pressure drop (a case whose first
+// reactor has a bed): what it reaches, and each bed's length and dP.
+std::string pressure_drop_lines(const DesignResult& d) {
+  if (!d.with_pressure_drop) return {};
+  const auto& p = *d.with_pressure_drop;
+  std::string out = fmt::format(
+      "With the pressure drop: the optimum above was designed at constant pressure, the "
+      "feed's {} bar. ",
+      bar_text(d.feed_P));
+  if (!p.error.empty())
+    return out + fmt::format(
+                     "Run again with each bed built as the case's first reactor is (its bed, "
+                     "pellet and the fluid's viscosity), it does not run through: {}\n\n",
+                     p.error);
+  out += fmt::format(
+      "Run again with each bed built as the case's first reactor is (its bed, pellet and the "
+      "fluid's viscosity), the same catalyst reaches X = {} (target {}{}), outlet at {} bar\n",
+      fixed_text(p.train.conversion, 4), fixed_text(d.target, 4),
+      pressure_drop_short(d)
+          ? fmt::format(", short by {}", fixed_text(d.target - p.train.conversion, 4))
+          : std::string(""),
+      bar_text(p.train.outlet.P));
+  std::string beds = bed_columns(p.train);
+  if (!beds.empty() && beds.front() == '\n') beds.erase(0, 1);
+  return out + beds + "\n";
+}
+
 }  // namespace
 
 std::string optimize_table(const DesignResult& d, const DesignOptions& o) {
   std::string out = header_lines(d) + layout_tables(d, d.best) + conditions_lines(d, d.best);
+  out += pressure_drop_lines(d);
   out += gain_lines(d);
   if (!d.by_bed_count.empty()) out += by_bed_count_lines(d, o.max_beds.value_or(0));
   return out + warnings_and_caution(optimize_warnings(d));

@@ -5,6 +5,7 @@
 #include <cmath>
 #include <vector>
 
+#include "rxtrain/case/case.hpp"
 #include "rxtrain/report/staging_report.hpp"
 #include "rxtrain/report/text_format.hpp"
 
@@ -224,6 +225,11 @@ std::string staging_policy_text(const DesignResult& d) {
   return d.staging ? staged_answer_text(d.staging->result) : std::string();
 }
 
+bool pressure_drop_short(const DesignResult& d) {
+  const auto& p = d.with_pressure_drop;
+  return p && p->error.empty() && p->train.conversion < d.target - kReachTolerance;
+}
+
 std::vector<std::string> optimize_warnings(const DesignResult& d) {
   std::vector<std::string> w = d.warnings;
   if (d.check_disagrees)
@@ -233,6 +239,19 @@ std::vector<std::string> optimize_warnings(const DesignResult& d) {
         d.best.checked_conversion, d.target));
   for (const auto& f : d.limit_check.findings)
     w.push_back("the optimum: " + limit_finding_text(f, d.limit_check.margin));
+  if (const auto& p = d.with_pressure_drop) {
+    if (!p->error.empty())
+      w.push_back(
+          "the optimum's beds, built as the case's first reactor is, do not run through "
+          "with their pressure drop: " +
+          p->error);
+    else if (pressure_drop_short(d))
+      w.push_back(fmt::format(
+          "the optimum was designed at constant pressure; with its beds' pressure drop it "
+          "reaches X = {:.4f}, short of the target {:.4f}: add catalyst to the last bed (or "
+          "widen the beds) and rate the train with run",
+          p->train.conversion, d.target));
+  }
   if (const auto& dT = d.dT_ad_past_T_max)
     w.push_back(fmt::format(
         "the adiabatic temperature rise of the feed at full conversion of {} is {:.1f} K "

@@ -21,6 +21,24 @@ json limit_of(const TrainResult& run, const std::string& id) {
   return nullptr;
 }
 
+// The staged bed built as the case's first reactor (its bed, pellet and
+// viscosity): its length, pressure drop and outlet pressure; null where
+// the first reactor has no bed (or no pressure drop).
+const StageResult* staged_stage(const StagingResult& r, const std::string& id) {
+  for (const auto& st : r.staged_run.stages)
+    if (st.id == id) return &st;
+  return nullptr;
+}
+json bed_length_of(const StagingResult& r, const std::string& id) {
+  const StageResult* st = staged_stage(r, id);
+  return st && st->hydraulics ? json_number(st->hydraulics->length) : json(nullptr);
+}
+json bed_dP_of(const StagingResult& r, const std::string& id) {
+  const StageResult* st = staged_stage(r, id);
+  return st && st->hydraulics && st->hydraulics->dP ? json_number(*st->hydraulics->dP)
+                                                    : json(nullptr);
+}
+
 json path_of(const StagingResult& r, const std::string& id) {
   json path = json::array();
   for (const auto& st : r.staged_run.stages)
@@ -93,6 +111,8 @@ json staging_json(const StagingResult& r) {
                     {"X_ad_eq", json_number(b.X_ad_eq)},
                     {"T_ad_eq", json_number(b.T_ad_eq)},
                     {"ended_by", b.ended_by},
+                    {"length", bed_length_of(r, b.id)},
+                    {"dP", bed_dP_of(r, b.id)},
                     {"path", path_of(r, b.id)},
                     {"limit", limit_of(r.staged_run, b.id)}});
   j["beds"] = beds;

@@ -518,6 +518,31 @@ void check_optimum(const Setup& s, const DesignOptions& options, DesignResult& r
   res.limit_check = res.train.limit_check;
 }
 
+// The optimum's beds built as the case's first reactor is (its bed,
+// pellet and the fluid's viscosity), run with their pressure drop. The
+// sizes stay the constant-pressure optimum's, so the conversion this run
+// reaches shows what the pressure drop costs.
+void rerun_with_pressure_drop(const Setup& s, const LayoutCase& lc, const DesignOptions& options,
+                              DesignResult& res) {
+  std::vector<StageSpec> train = design_train(s.c, res, res.best);
+  for (auto& st : train)
+    if (auto* r = std::get_if<ReactorSpec>(&st)) {
+      r->geometry = lc.geometry;
+      r->pellet = lc.pellet;
+      r->viscosity = lc.viscosity;
+    }
+  TrainOptions to;
+  to.solvers = options.solvers;
+  to.limit_check = options.limit_check;
+  DesignResult::PressureDropRun run;
+  try {
+    run.train = run_train(with_train(s.c, std::move(train)), to);
+  } catch (const SolverError& e) {
+    run.error = e.what();
+  }
+  res.with_pressure_drop = std::move(run);
+}
+
 DesignResult result_for(const Setup& s, const DesignOptions& options) {
   const Case& c = s.c;
   DesignResult res;
@@ -528,6 +553,7 @@ DesignResult result_for(const Setup& s, const DesignOptions& options) {
   res.exothermic = s.exothermic;
   res.catalyst_objective = s.catalyst;
   res.feed_T = c.feed.T;
+  res.feed_P = c.feed.P;
   res.bulk_density = s.bulk_density;
   res.fixed_feed_T = options.fixed_feed_T;
   res.margin = options.margin;
@@ -558,11 +584,6 @@ DesignResult optimize_design(const Case& c, const DesignOptions& options) {
 
   DesignResult res = result_for(s, options);
   res.activity = lc.activity;
-  if (lc.geometry && lc.pellet && lc.viscosity)
-    res.warnings.push_back(
-        "the case's first reactor has a bed with a pressure drop (Ergun); optimize designs and "
-        "checks its beds at constant pressure, the feed's: the optimum leaves the pressure drop "
-        "out. Give the written case's beds a bed and pellet and rate it with run to see it");
   if (!(s.target > s.basis.conversion(c.feed)))
     throw InputError(c.target_where, "the target conversion is not above the feed's");
   const StagedStarts staged =
@@ -598,6 +619,7 @@ DesignResult optimize_design(const Case& c, const DesignOptions& options) {
   res.best = *best;
   if (options.max_beds) res.by_bed_count = layouts;
   check_optimum(s, options, res);
+  if (lc.geometry && lc.pellet && lc.viscosity) rerun_with_pressure_drop(s, lc, options, res);
 
   if (options.compare) {
     res.as_written = as_written(s, options);

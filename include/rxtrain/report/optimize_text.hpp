@@ -40,6 +40,8 @@ std::string as_written_text(const DesignResult& d);
 std::string staging_policy_text(const DesignResult& d);
 // The warnings of the optimum: the result's own, then a disagreement of
 // the check, the optimum's limit findings, the adiabatic rise past T_max.
+// The optimum rerun with its beds' pressure drop falls short of the target.
+bool pressure_drop_short(const DesignResult& d);
 std::vector<std::string> optimize_warnings(const DesignResult& d);
 
 }  // namespace rxtrain

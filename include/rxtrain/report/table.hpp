@@ -10,4 +10,9 @@ namespace rxtrain {
 
 std::string format_stage_table(const TrainResult& result);
 
+// The beds table of the stages with a bed or tubes (diameter, length,
+// flux, velocities, particle Reynolds, pressures and dP); empty when no
+// stage has one.
+std::string bed_columns(const TrainResult& result);
+
 }  // namespace rxtrain

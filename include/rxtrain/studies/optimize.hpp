@@ -271,6 +271,7 @@ struct DesignResult {
   bool exothermic = true;
   bool catalyst_objective = true;      // per-catalyst rates: minimize kg, else m3
   double feed_T = 0;                   // K
+  double feed_P = 0;                   // Pa
   std::optional<double> bulk_density;  // kg/m3, of the first reactor
   double activity = 1;                 // the catalyst activity the beds are designed for
   bool fixed_feed_T = false;
@@ -290,6 +291,16 @@ struct DesignResult {
   // train's conversion differs from the target by more than 1e-5:
   // the optimizer's quadrature and the ODE solver disagree.
   bool check_disagrees = false;
+  // The first reactor has a bed with a pressure drop (Ergun): the optimum
+  // is designed at constant pressure, then its beds, each built as that
+  // reactor is (bed, pellet, viscosity), are run again with the pressure
+  // drop. `error` holds why that run stopped (a bed's pressure reached
+  // its floor), and `train` is then empty.
+  struct PressureDropRun {
+    TrainResult train;
+    std::string error;
+  };
+  std::optional<PressureDropRun> with_pressure_drop;
   // K: the feed's adiabatic temperature rise at full conversion of the
   // key, set when it carries the feed past T_max (exothermic).
   std::optional<double> dT_ad_past_T_max;
