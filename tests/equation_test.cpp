@@ -92,6 +92,7 @@ TEST_CASE("bad equations report the column", "[equation]") {
       {"A => B +", 7, "'+' must be followed by a species"},
       {"A + + B => C", 2, "'+' must be followed by a species"},
       {"A $ B => C", 2, "unexpected character '$'"},
+      {"A \xE2\x82\xAC B -> C", 2, "unexpected character '\xE2\x82\xAC'; species ids use"},
       {"A => B.", 6, "unexpected character '.'"},
       {"A = B", 2, "the arrow is '->'"},
       {"A <= B", 2, "the arrow is '->'"},
@@ -101,7 +102,7 @@ TEST_CASE("bad equations report the column", "[equation]") {
       {"A => 2", 5, "not followed by a species"},
       {"A => 2 3", 7, "needs a letter"},
       {"A B => C", 2, "unexpected character 'B'"},
-      {"A\xC3\xA9 => B", 1, "unexpected byte"},
+      {"A\xC3\xA9 => B", 1, "unexpected character '\xC3\xA9'"},
   };
   for (const auto& c : cases) {
     INFO("equation: \"" << c.text << "\"");

@@ -93,6 +93,11 @@ TEST_CASE("bad formulas name the position", "[formula]") {
       {"2H2O", "at character 1: a count must follow an element or ')'"},
       {"H2 O", "at character 3: unexpected character ' '"},
       {"H2O+", "at character 4: unexpected character '+'"},
+      // A character beyond ASCII is quoted whole (UTF-8 of U+00B7, two
+      // bytes), never one byte cut out of it; a control character by its
+      // code point.
+      {"H2O\xC2\xB7", "at character 4: unexpected character '\xC2\xB7'"},
+      {"H2\tO", "at character 3: unexpected character U+0009"},
   };
   for (const auto& c : cases) {
     INFO("formula: \"" << c.formula << "\"");

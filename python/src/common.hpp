@@ -32,9 +32,9 @@ const UnitParser& units();
 py::object json_to_python(const std::string& text);
 inline py::object to_python(const nlohmann::json& j) { return json_to_python(j.dump()); }
 
-// Text from the library as a Python str. A message may quote a byte cut
-// out of a multi-byte character of the input (the formula parser quotes
-// one byte): invalid UTF-8 becomes U+FFFD instead of a UnicodeDecodeError.
+// Text from the library as a Python str. The parsers quote whole
+// characters (base/utf8.hpp); should a message still hold invalid UTF-8,
+// it becomes U+FFFD instead of a UnicodeDecodeError.
 py::str text(const std::string& s);
 py::list texts(const std::vector<std::string>& v);
 

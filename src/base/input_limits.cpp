@@ -12,34 +12,13 @@
 #include <utility>
 #include <vector>
 
+#include "rxtrain/base/utf8.hpp"
+
 namespace rxtrain {
 
 namespace {
 
 // ---- UTF-8 ---------------------------------------------------------------
-
-// Length of the well-formed UTF-8 sequence at text[i] (RFC 3629, Table 3-7
-// of the Unicode Standard: no overlongs, no surrogates, nothing above
-// U+10FFFF), or 0 when it is not one.
-std::size_t utf8_length(std::string_view text, std::size_t i) {
-  const auto byte = [&](std::size_t k) -> unsigned {
-    return i + k < text.size() ? static_cast<unsigned char>(text[i + k]) : 0x100u;
-  };
-  const auto tail = [&](std::size_t k, unsigned lo = 0x80, unsigned hi = 0xBF) {
-    const unsigned b = byte(k);
-    return b >= lo && b <= hi;
-  };
-  const unsigned b0 = byte(0);
-  if (b0 < 0x80) return 1;
-  if (b0 >= 0xC2 && b0 <= 0xDF) return tail(1) ? 2 : 0;
-  if (b0 == 0xE0) return tail(1, 0xA0, 0xBF) && tail(2) ? 3 : 0;
-  if ((b0 >= 0xE1 && b0 <= 0xEC) || b0 == 0xEE || b0 == 0xEF) return tail(1) && tail(2) ? 3 : 0;
-  if (b0 == 0xED) return tail(1, 0x80, 0x9F) && tail(2) ? 3 : 0;
-  if (b0 == 0xF0) return tail(1, 0x90, 0xBF) && tail(2) && tail(3) ? 4 : 0;
-  if (b0 >= 0xF1 && b0 <= 0xF3) return tail(1) && tail(2) && tail(3) ? 4 : 0;
-  if (b0 == 0xF4) return tail(1, 0x80, 0x8F) && tail(2) && tail(3) ? 4 : 0;
-  return 0;
-}
 
 void check_utf8(std::string_view text, const std::string& name) {
   int line = 1, column = 1;  // column counts characters, as editors do

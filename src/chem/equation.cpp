@@ -6,6 +6,8 @@
 #include <optional>
 #include <system_error>
 
+#include "rxtrain/base/utf8.hpp"
+
 namespace rxtrain {
 
 namespace {
@@ -180,11 +182,11 @@ class EquationReader {
     const char c = text_[pos_];
     if (c == '=' || c == '<' || c == '>') fail("the arrow is '->' (one way) or '<->' (reversible)");
     const auto u = static_cast<unsigned char>(c);
-    if (u < 0x20 || u >= 0x7f) {
-      fail("unexpected byte " + std::to_string(static_cast<int>(u)) +
+    if (u < 0x20 || u >= 0x7f)
+      fail("unexpected character " + quoted_character(text_, pos_) +
            "; species ids use only A-Z a-z 0-9 _ -");
-    }
-    fail(std::string("unexpected character '") + c + "'; expected a species, '+' or the arrow");
+    fail("unexpected character " + quoted_character(text_, pos_) +
+         "; expected a species, '+' or the arrow");
   }
 
   [[noreturn]] void fail(const std::string& what) const { fail_at(pos_, what); }

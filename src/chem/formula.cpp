@@ -8,6 +8,8 @@
 #include <utility>
 #include <vector>
 
+#include "rxtrain/base/utf8.hpp"
+
 namespace rxtrain {
 
 namespace {
@@ -78,7 +80,7 @@ class FormulaReader {
       } else if (is_digit(c)) {
         fail("a count must follow an element or ')'");
       } else {
-        fail("unexpected character '" + std::string(1, c) + "'");
+        fail("unexpected character " + quoted_character(text_, pos_));
       }
     }
     if (stack.size() > 1) fail_at(stack.back().second, "'(' is never closed");

@@ -10,6 +10,8 @@
 #include <stdexcept>
 #include <utility>
 
+#include "rxtrain/base/utf8.hpp"
+
 namespace rxtrain::svg {
 
 namespace {
@@ -51,29 +53,13 @@ double pow10(int k) {
 // (3 * 0.1 gives 0.30000000000000004, 3 / 10 gives 0.3).
 double scaled(double m, int k) { return k >= 0 ? m * pow10(k) : m / pow10(-k); }
 
-// Length of the valid UTF-8 sequence that starts at s[i] and encodes a
-// character XML 1.0 allows; 0 if there is none.
-std::size_t utf8_length(std::string_view s, std::size_t i) {
-  const auto b0 = static_cast<unsigned char>(s[i]);
-  std::size_t n = 0;
-  std::uint32_t cp = 0, min_cp = 0;
-  if ((b0 & 0xE0u) == 0xC0u) {
-    n = 2, cp = b0 & 0x1Fu, min_cp = 0x80;
-  } else if ((b0 & 0xF0u) == 0xE0u) {
-    n = 3, cp = b0 & 0x0Fu, min_cp = 0x800;
-  } else if ((b0 & 0xF8u) == 0xF0u) {
-    n = 4, cp = b0 & 0x07u, min_cp = 0x10000;
-  } else {
+// Length of the valid UTF-8 sequence at s[i] of a character XML 1.0
+// allows beyond ASCII (not U+FFFE, U+FFFF); 0 if there is none.
+std::size_t xml_utf8_length(std::string_view s, std::size_t i) {
+  const std::size_t n = utf8_length(s, i);
+  if (n == 3 && static_cast<unsigned char>(s[i]) == 0xEF &&
+      static_cast<unsigned char>(s[i + 1]) == 0xBF && static_cast<unsigned char>(s[i + 2]) >= 0xBE)
     return 0;
-  }
-  if (i + n > s.size()) return 0;
-  for (std::size_t k = 1; k < n; ++k) {
-    const auto b = static_cast<unsigned char>(s[i + k]);
-    if ((b & 0xC0u) != 0x80u) return 0;
-    cp = (cp << 6) | (b & 0x3Fu);
-  }
-  const bool surrogate = cp >= 0xD800 && cp <= 0xDFFF;
-  if (cp < min_cp || cp > 0x10FFFF || surrogate || cp == 0xFFFE || cp == 0xFFFF) return 0;
   return n;
 }
 
@@ -264,7 +250,7 @@ std::string xml_escape(std::string_view text) {
           out += kReplacementChar;
         } else if (u < 0x80) {
           out += c;
-        } else if (const std::size_t n = utf8_length(text, i); n > 0) {
+        } else if (const std::size_t n = xml_utf8_length(text, i); n > 0) {
           out.append(text.substr(i, n));
           i += n;
           continue;
