@@ -83,10 +83,22 @@ void add_reaches(const Case& c, const TrainOptions& options, TrainResult& result
     spec.heat = *r.heat;
     spec.bulk_density = r.bulk_density;
     spec.activity = r.activity;
+    // What the run and the record already know of the path (ReachHints):
+    // its outlet, on the same path when the stage ran at constant
+    // pressure, and the exact equilibrium end of one reaction.
+    ReachHints known;
+    if (r.volume && !(r.hydraulics && r.hydraulics->dP)) {
+      known.V_from = r.volume;
+      known.state_from = r.outlet;
+    }
+    if (r.equilibrium && mech.n_reactions() == 1) {
+      known.X_eq_end = r.equilibrium->X_ad_eq;
+      known.T_eq_end = r.equilibrium->T_ad_eq;
+    }
     try {
       r.reach = r.kind == StageKind::Cstr
                     ? cstr_reach(mech, spec, r.inlet, basis, ws.cstr(), tank_options(options))
-                    : pfr_reach(mech, spec, r.inlet, basis, ws.pfr(), options.solvers.tube);
+                    : pfr_reach(mech, spec, r.inlet, basis, ws.pfr(), options.solvers.tube, known);
     } catch (const std::exception& e) {
       result.warnings.push_back(
           fmt::format("stage {}: what it can reach at any size not computed: {}", r.id, e.what()));

@@ -620,12 +620,25 @@ StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream
 }
 
 StageReach pfr_reach(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
-                     const ConversionBasis& basis, PfrWorkspace& ws, const PfrOptions& options) {
+                     const ConversionBasis& basis, PfrWorkspace& ws, const PfrOptions& options,
+                     const ReachHints& known) {
   const int n = mech.n_species();
   PfrWorkspace::State& st = ws.state();
   CvodeIntegrator& ode =
       st.start(ws.context(), mech, rate_multipliers(mech, spec), spec.heat, inlet, options, &spec);
   PfrSystem& sys = st.sys;
+  // One reaction: X rises monotonically along the path, so nothing before
+  // a known point of it can stand above what lies beyond; go on from
+  // there. Not with a temperature stop (the point may lie past it) nor a
+  // pressure state (the reach is at the inlet's pressure).
+  const bool go_on = known.V_from && known.state_from && mech.n_reactions() == 1 &&
+                     !options.stop_temperature && !sys.has_pressure() && *known.V_from > 0;
+  double V0 = 0;
+  if (go_on) {
+    V0 = *known.V_from;
+    initial_state(*known.state_from, st.y, false);
+    ode.init(V0, st.y);
+  }
   const double V_end =
       options.max_space_time * mech.volumetric_flow(inlet.T, inlet.P, inlet.F.data());
   ode.set_stop_time(V_end);
@@ -653,9 +666,9 @@ StageReach pfr_reach(const Mechanism& mech, const ReactorSpec& spec, const Strea
     return -dky[basis.key] / basis.F_key_feed;
   };
   StageReach reach;
-  reach.X_max = X_in;
-  reach.V_at_X_max = 0.0;
-  reach.T_at_X_max = inlet.T;
+  reach.X_max = go_on ? basis.conversion(*known.state_from) : X_in;
+  reach.V_at_X_max = V0;
+  reach.T_at_X_max = go_on ? known.state_from->T : inlet.T;
   auto consider = [&](double V, const double* state) {
     const double X = basis.conversion(state);
     if (X > reach.X_max) {
@@ -673,7 +686,7 @@ StageReach pfr_reach(const Mechanism& mech, const ReactorSpec& spec, const Strea
   }
   // One reaction: X is monotonic along the path, its most is the end.
   const bool several = mech.n_reactions() > 1;
-  double V = 0;
+  double V = V0;
   while (!stopped) {
     const double V_prev = V;
     CvodeIntegrator::Event ev;
@@ -709,7 +722,7 @@ StageReach pfr_reach(const Mechanism& mech, const ReactorSpec& spec, const Strea
     if (sys.rhs(y.data(), ydot.data()) == 0) g_end = -ydot[basis.key] / basis.F_key_feed;
     classify_reach_end(mech, inlet, y.data(), basis.key, g_end * V > 1e-6, reach);
   }
-  exact_equilibrium_end(mech, inlet, spec.heat, basis, reach);
+  exact_equilibrium_end(mech, inlet, spec.heat, basis, reach, known);
   finish_reach(reach, V);
   return reach;
 }

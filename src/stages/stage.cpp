@@ -140,8 +140,14 @@ void classify_reach_end(const Mechanism& mech, const Stream& inlet, const double
 }
 
 void exact_equilibrium_end(const Mechanism& mech, const Stream& inlet, HeatMode heat,
-                           const ConversionBasis& basis, StageReach& reach) {
+                           const ConversionBasis& basis, StageReach& reach,
+                           const ReachHints& known) {
   if (reach.end != ReachEnd::Equilibrium || mech.n_reactions() != 1) return;
+  if (known.X_eq_end && known.T_eq_end) {
+    reach.X_end = *known.X_eq_end;
+    reach.T_end = *known.T_eq_end;
+    return;
+  }
   try {
     if (const auto eq = adiabatic_equilibrium(mech, inlet, heat, basis)) {
       reach.X_end = eq->X;

@@ -108,9 +108,11 @@ StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream
 // conversion followed step by step and its peaks (dX/dV = 0) refined on
 // the integrator's interpolating polynomial. With one reversible reaction
 // the end point is the exact adiabatic (isothermal) equilibrium.
+// `known` spares work the caller has done (ReachHints); the answer is the
+// same path's, to the integrator's tolerance.
 StageReach pfr_reach(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
-                     const ConversionBasis& basis, PfrWorkspace& ws,
-                     const PfrOptions& options = {});
+                     const ConversionBasis& basis, PfrWorkspace& ws, const PfrOptions& options = {},
+                     const ReachHints& known = {});
 
 // Outlet of an adiabatic tubular bed of practically unlimited size fed
 // with `inlet`: the adiabatic equilibrium point (or complete conversion of

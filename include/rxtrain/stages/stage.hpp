@@ -102,12 +102,27 @@ const char* reach_end_name(ReachEnd end);
 void classify_reach_end(const Mechanism& mech, const Stream& inlet, const double* F_end, int key,
                         bool still_rising, StageReach& reach);
 
+// What a caller already knows of a stage's path, so that a reach need not
+// compute it again (a train's views: the stage was just run, and its
+// equilibrium record solved). Both are optional.
+struct ReachHints {
+  // A point of the path from the same inlet, with the same heat mode,
+  // rates and pressure: its volume (m3) and state. A tubular reach with one
+  // reaction (X monotonic along the path) goes on from there.
+  std::optional<double> V_from;
+  std::optional<Stream> state_from;
+  // The exact adiabatic (isothermal) equilibrium from the inlet, as
+  // equilibrium_record's X_ad_eq and T_ad_eq give it (one reaction).
+  std::optional<double> X_eq_end, T_eq_end;
+};
+
 // With one reaction whose path ends at equilibrium (reach.end), the end
 // point is set to the exact adiabatic (isothermal) equilibrium point that
-// the integration or the tank's continuation only approaches; a failed
-// equilibrium solve leaves the approached one.
+// the integration or the tank's continuation only approaches (the hints'
+// when given); a failed equilibrium solve leaves the approached one.
 void exact_equilibrium_end(const Mechanism& mech, const Stream& inlet, HeatMode heat,
-                           const ConversionBasis& basis, StageReach& reach);
+                           const ConversionBasis& basis, StageReach& reach,
+                           const ReachHints& known = {});
 
 // Settles a reach from its path: the most is the end point unless a peak
 // stands above it (peak_inside), and the end point is only approached as
