@@ -1,0 +1,111 @@
+// `rxtrain stability` (analysis/stability.hpp) and the continuation under
+// it (solvers/continuation.hpp): the turning points of the first-order
+// adiabatic tank against their closed form (van Heerden's slope
+// condition, tests/first_order_tank.hpp), and a fold of a curve whose
+// folds are known exactly.
+#include <catch2/catch.hpp>
+#include <cmath>
+#include <string>
+
+#include "first_order_tank.hpp"
+#include "rxtrain/analysis/stability.hpp"
+#include "rxtrain/base/units.hpp"
+#include "rxtrain/case/case_fields.hpp"
+#include "rxtrain/solvers/continuation.hpp"
+#include "s_curve_tank.hpp"
+
+namespace {
+
+rxtrain::CaseField field_named(const rxtrain::Case& c, const std::string& name) {
+  for (const auto& f : rxtrain::case_fields(c))
+    if (f.name == name) return f;
+  FAIL("no field " << name);
+  return {};
+}
+
+}  // namespace
+
+TEST_CASE("continuation passes the folds of a circle and locates them exactly", "[stability]") {
+  // u^2 + p^2 = 1 from (u, p) = (-1, 0) with p rising: folds at p = 1
+  // (u = 0); with p in [-0.5, 2] the branch leaves through p = -0.5 after
+  // the fold at p = 1 (analytic geometry, no source needed).
+  const rxtrain::BranchFunction fn = [](const Eigen::VectorXd& x, Eigen::VectorXd& H,
+                                        Eigen::MatrixXd& J) {
+    H[0] = x[0] * x[0] + x[1] * x[1] - 1;
+    J(0, 0) = 2 * x[0];
+    J(0, 1) = 2 * x[1];
+  };
+  Eigen::VectorXd x0(2);
+  x0 << -1.0, 0.0;
+  const auto r = rxtrain::continue_branch(fn, x0, +1, -0.5, 2.0, {});
+  REQUIRE(r.left_range);
+  REQUIRE(r.folds.size() == 1);
+  CHECK(std::abs(r.folds[0].x[1] - 1.0) < 1e-12);
+  CHECK(std::abs(r.folds[0].x[0]) < 1e-6);  // sqrt of the residual tolerance at a fold
+  CHECK(std::abs(r.points.back().x[1] + 0.5) < 1e-12);
+  CHECK(r.points.back().x[0] > 0);  // on the other half of the circle
+}
+
+TEST_CASE("continuation reproduces the closed-form ignition and extinction feed temperatures",
+          "[stability]") {
+  // The adiabatic first-order tank of s_curve_tank.hpp (tau = 1 s): its
+  // turning points in the feed temperature from the slope condition
+  // (van Heerden, Ind. Eng. Chem. 45 (1953) 1242), solved by GSL Brent.
+  const rxtrain::test::FirstOrderTank t;
+  const auto ref = rxtrain::test::closed_form_turning_points(t, 1.0);
+  REQUIRE(ref.size() == 2);
+  const double ignition_T0 = std::max(ref[0].T0, ref[1].T0);
+  const double extinction_T0 = std::min(ref[0].T0, ref[1].T0);
+  const double ignition_T = ref[0].T0 > ref[1].T0 ? ref[0].T : ref[1].T;
+  const double extinction_T = ref[0].T0 > ref[1].T0 ? ref[1].T : ref[0].T;
+
+  const rxtrain::UnitParser units;
+  const rxtrain::Case c =
+      rxtrain::load_case_from_string(rxtrain::test::kSCurveTank, "s-curve.yaml", units);
+  rxtrain::StabilityOptions o;
+  o.lo = 150.0;
+  o.hi = 350.0;
+  const auto r = rxtrain::run_stability(c, field_named(c, "feed.T"), o);
+  REQUIRE(r.turning_points.size() == 2);
+  const auto& ext = r.turning_points[0];
+  const auto& ign = r.turning_points[1];
+  CHECK(ign.kind == rxtrain::TurningKind::Ignition);
+  CHECK(ext.kind == rxtrain::TurningKind::Extinction);
+  CHECK(std::abs(ign.value - ignition_T0) / ignition_T0 < 1e-6);
+  CHECK(std::abs(ext.value - extinction_T0) / extinction_T0 < 1e-6);
+  // The whole state at the fold, not only the parameter: T to 0.01 K.
+  CHECK(std::abs(ign.T - ignition_T) < 0.01);
+  CHECK(std::abs(ext.T - extinction_T) < 0.01);
+  REQUIRE(r.hysteresis);
+  CHECK(r.hysteresis->first == ext.value);
+  CHECK(r.hysteresis->second == ign.value);
+  // Lower and upper branches stable, the middle one a saddle.
+  REQUIRE(r.branches.size() == 3);
+  CHECK(r.branches[0].stable);
+  CHECK_FALSE(r.branches[1].stable);
+  CHECK(r.branches[1].points[1].kind == rxtrain::StabilityKind::Saddle);
+  CHECK(r.branches[2].stable);
+  // Every point is a steady state of the closed form (X from T, T - T0 = J X).
+  for (const auto& b : r.branches)
+    for (const auto& p : b.points) {
+      CHECK(std::abs(p.X - t.X(p.T, 1.0)) < 1e-8);
+      CHECK(std::abs(p.T - p.value - t.J() * p.X) < 1e-6);
+    }
+  CHECK(r.warnings.empty());
+}
+
+TEST_CASE("stability refuses a case without a tank of given volume", "[stability]") {
+  const rxtrain::UnitParser units;
+  std::string text = rxtrain::test::kSCurveTank;
+  const auto at = text.find("volume: 1e-3 m3");
+  text.replace(at, std::string("volume: 1e-3 m3").size(), "target: {conversion: 0.5}");
+  const rxtrain::Case c = rxtrain::load_case_from_string(text, "sized.yaml", units);
+  rxtrain::StabilityOptions o;
+  o.lo = 290.0;
+  o.hi = 310.0;
+  CHECK_THROWS_WITH(rxtrain::run_stability(c, field_named(c, "feed.T"), o),
+                    Catch::Contains("stability follows a tank of given volume"));
+  o.stage = "R9";
+  CHECK_THROWS_WITH(rxtrain::run_stability(c, field_named(c, "feed.T"), o),
+                    Catch::Contains("no stirred tank (type: cstr) with id R9"));
+}
