@@ -219,3 +219,123 @@ TEST_CASE("the kind of a spectrum follows the signs of its real parts", "[stabil
   CHECK(kind({C(1, 0), C(-0.5, 2), C(-0.5, -2)}) == StabilityKind::Saddle);
   CHECK(kind({C(0, 0), C(-1, 0)}) == StabilityKind::Saddle);  // on the edge: not stable
 }
+
+namespace {
+
+// The dynamic balances of docs/stability.md written out for A -> 2 B
+// (first order in A's concentration, per volume, constant cp, cooled, with
+// a vessel heat capacity), by the outflow rule of each phase; the test
+// differentiates them numerically and compares with the analytic
+// linearization of the core.
+struct TwoSpeciesTank {
+  bool gas = true;
+  double P = 5e5, V = 0.5, UA = 800, Tc = 330, Cv = 4e4;
+  double k0 = 2e3, ER = 6000;  // k = k0 exp(-ER / T), 1/s
+  double cpA = 40, cpB = 30, dH298 = -40000;
+  double vA = 1e-4, vB = 0.7e-4;  // liquid molar volumes, m3/mol
+  Stream in{320.0, 5e5, {5.0, 1.0}};
+
+  rxtrain::Mechanism mechanism() const {
+    auto sp = [&](const char* id, double cp, double v) {
+      rxtrain::Species s;
+      s.id = id;
+      s.name = id;
+      s.mw = 0.05;
+      s.density = 0.05 / v;
+      s.thermo = rxtrain::ThermoModel(rxtrain::CpConstant{cp}, std::nullopt, std::nullopt);
+      return s;
+    };
+    rxtrain::Reaction r;
+    r.id = "r1";
+    r.equation = "A => 2 B";
+    r.nu = {-1, 2};
+    r.rate.A = k0;
+    r.rate.Ea = ER * rxtrain::kGasConstant;
+    r.rate.orders = {1, 0};
+    r.dH_298 = dH298;
+    return rxtrain::Mechanism(gas ? rxtrain::Phase::Gas : rxtrain::Phase::Liquid,
+                              {sp("A", cpA, vA), sp("B", cpB, vB)}, {r});
+  }
+  double h(double cp, double T) const { return cp * (T - 298.15); }
+  // d[N_A, N_B, T]/dt.
+  std::vector<double> rhs(const std::vector<double>& x) const {
+    const double NA = x[0], NB = x[1], T = x[2];
+    const double R = rxtrain::kGasConstant;
+    const double CA = gas ? NA / (NA + NB) * P / (R * T) : NA / (vA * NA + vB * NB);
+    const double r = k0 * std::exp(-ER / T) * CA;
+    const double dH = dH298 + (2 * cpB - cpA) * (T - 298.15);
+    const double Ch = NA * cpA + NB * cpB + Cv;
+    const double Tdot = (in.F[0] * (h(cpA, in.T) - h(cpA, T)) +
+                         in.F[1] * (h(cpB, in.T) - h(cpB, T)) - V * r * dH - UA * (T - Tc)) /
+                        Ch;
+    double FA, FB;
+    if (gas) {
+      const double Nstar = P * V / (R * T);
+      const double Ft = in.F[0] + in.F[1] + V * r + Nstar / T * Tdot;
+      FA = NA * Ft / Nstar;
+      FB = NB * Ft / Nstar;
+    } else {
+      const double q = vA * in.F[0] + vB * in.F[1] + V * (2 * vB - vA) * r;
+      FA = NA * q / V;
+      FB = NB * q / V;
+    }
+    return {in.F[0] - FA - V * r, in.F[1] - FB + 2 * V * r, Tdot};
+  }
+};
+
+}  // namespace
+
+TEST_CASE("the linearized balances of gas and liquid tanks match their outflow rules",
+          "[stability]") {
+  for (const bool gas : {true, false}) {
+    DYNAMIC_SECTION((gas ? "gas" : "liquid")) {
+      TwoSpeciesTank t;
+      t.gas = gas;
+      const rxtrain::Mechanism mech = t.mechanism();
+      rxtrain::ReactorSpec spec;
+      spec.id = "R1";
+      spec.type = rxtrain::ReactorType::Cstr;
+      spec.volume = t.V;
+      spec.cooling = rxtrain::TankCooling{t.UA, t.Tc};
+      spec.heat_capacity = t.Cv;
+      spec.where = {"case.yaml", 1, 1};
+      SunContext ctx;
+      const StageResult r = rxtrain::run_cstr(mech, spec, t.in, {0, t.in.F[0]}, ctx);
+      REQUIRE_FALSE(r.steady_states.empty());
+      for (const auto& s : r.steady_states) {
+        // The holdups at the steady state: N_i = F_i V / q_out.
+        const double q = mech.volumetric_flow(s.T, t.P, s.F.data());
+        const std::vector<double> x{s.F[0] * t.V / q, s.F[1] * t.V / q, s.T};
+        // A steady state of the written-out balances too.
+        const auto f0 = t.rhs(x);
+        CHECK(std::abs(f0[0]) < 1e-7 * t.in.F[0]);
+        CHECK(std::abs(f0[2]) < 1e-7 * s.T);
+        rxtrain::detail::CstrBalances b;
+        b.reset(mech, {1.0}, rxtrain::HeatMode::Adiabatic, t.in, spec.cooling);
+        Eigen::MatrixXd J;
+        b.dynamic_jacobian(s.F.data(), s.T, t.V, t.Cv, J);
+        REQUIRE(J.rows() == 3);
+        // Central differences of the written-out balances.
+        for (int c = 0; c < 3; ++c) {
+          const double hstep = 1e-6 * x[c];
+          auto xp = x, xm = x;
+          xp[c] += hstep;
+          xm[c] -= hstep;
+          const auto fp = t.rhs(xp), fm = t.rhs(xm);
+          for (int row = 0; row < 3; ++row) {
+            const double fd = (fp[row] - fm[row]) / (2 * hstep);
+            INFO("row " << row << " column " << c << ": analytic " << J(row, c) << ", numeric "
+                        << fd);
+            CHECK(std::abs(J(row, c) - fd) <=
+                  1e-6 * (std::abs(fd) + J.row(row).cwiseAbs().maxCoeff()));
+          }
+        }
+        // The flushing mode: -q_out / V is an eigenvalue.
+        bool flushing = false;
+        for (const auto& e : s.eigenvalues)
+          flushing = flushing || std::abs(e - std::complex<double>(-q / t.V, 0)) < 1e-8 * q / t.V;
+        CHECK(flushing);
+      }
+    }
+  }
+}
