@@ -109,3 +109,63 @@ TEST_CASE("stability refuses a case without a tank of given volume", "[stability
   CHECK_THROWS_WITH(rxtrain::run_stability(c, field_named(c, "feed.T"), o),
                     Catch::Contains("no stirred tank (type: cstr) with id R9"));
 }
+
+TEST_CASE("along the coolant's UA every point's stability is the classical model's",
+          "[stability]") {
+  // The cooled tank of tank_stability_test.cpp (Uppal, Ray and Poore's
+  // oscillatory region, from memory) with UA from 1 to 10 kW/K: every
+  // point's kind against the eigenvalues of the textbook two-state model,
+  // by the discriminant and trace of its 2 x 2 Jacobian (the third mode,
+  // -1/tau, is stable).
+  const char* text = R"(title: cooled tank (invented data)
+phase: liquid
+species:
+  - {id: A, mw: 0.1 kg/mol, density: 1000 kg/m3, thermo: {cp: 150 J/mol/K}}
+  - {id: B, mw: 0.1 kg/mol, density: 1000 kg/m3, thermo: {cp: 150 J/mol/K}}
+reactions:
+  - id: r1
+    equation: A => B
+    rate: {A: 0.0025, Ea: 49886.7757 J/mol, T_ref: 300 K, orders: {A: 1}}
+    dH: -31.5 kJ/mol
+feed: {T: 300 K, P: 2 bar, flows: {A: 10 mol/s}}
+key: A
+train:
+  - {type: cstr, id: R1, volume: 0.1 m3, heat: {UA: 4.5 kW/K, coolant: {T: 300 K}}}
+)";
+  const rxtrain::UnitParser units;
+  const rxtrain::Case c = rxtrain::load_case_from_string(text, "cooled.yaml", units);
+  rxtrain::StabilityOptions o;
+  o.lo = 1000.0;
+  o.hi = 10000.0;
+  const auto r = rxtrain::run_stability(c, field_named(c, "train.R1.heat.UA"), o);
+  rxtrain::test::FirstOrderTank t;
+  t.ER = 49886.7757 / rxtrain::kGasConstant;
+  t.T_ref = 300.0;
+  t.k_ref = 0.0025;
+  t.dH = -31500.0;
+  t.T_c = 300.0;
+  const double tau = 100.0;
+  int oscillatory = 0, stable = 0;
+  for (const auto& b : r.branches)
+    for (const auto& p : b.points) {
+      t.UA = p.value;
+      const double k = t.k(p.T), dk = k * t.ER / (p.T * p.T), X = t.X(p.T, tau);
+      const double NA = t.F0 * tau * (1 - X), Ch = t.F0 * tau * t.cp;
+      const double a11 = -1 / tau - k, a12 = -NA * dk;
+      const double a21 = -t.dH * k / Ch, a22 = (-t.F0 * t.cp - t.dH * NA * dk - t.UA) / Ch;
+      const double tr = a11 + a22, det = a11 * a22 - a12 * a21;
+      const bool complex_pair = tr * tr - 4 * det < 0;
+      INFO("UA = " << p.value << " W/K, T = " << p.T << " K, trace " << tr << ", det " << det);
+      CHECK(std::abs(t.residual(p.T, 300.0, tau)) < 1e-6);
+      if (complex_pair && tr > 0) {
+        CHECK(p.kind == rxtrain::StabilityKind::Oscillatory);
+        ++oscillatory;
+      } else if (tr < 0 && det > 0) {
+        CHECK(p.kind == rxtrain::StabilityKind::Stable);
+        ++stable;
+      }
+    }
+  CHECK(oscillatory >= 5);
+  CHECK(stable >= 10);
+  CHECK(r.turning_points.empty());  // one steady state at every UA here
+}

@@ -237,7 +237,7 @@ class Loader {
   void read_train_target(const YAML::Node& node, Case& c) const;
   OutletTarget read_outlet_target(const YAML::Node& node, const std::string& ctx) const;
   void read_exchanger_size(const Fields& f, ExchangerSpec& x) const;
-  TankCooling read_tank_cooling(const YAML::Node& node, ReactorType type,
+  TankCooling read_tank_cooling(const YAML::Node& node, ReactorType type, const std::string& sid,
                                 const std::string& ctx) const;
   TemperatureLimits read_limits(const YAML::Node& node) const;
   PelletSpec read_pellet(const YAML::Node& node, const std::string& ctx) const;
@@ -1083,7 +1083,7 @@ StageSpec Loader::read_stage(const YAML::Node& node, std::size_t index) {
   }
   if (const auto* n = f.find("heat")) {
     if (n->IsMap())
-      r.cooling = read_tank_cooling(*n, r.type, ctx);
+      r.cooling = read_tank_cooling(*n, r.type, sid, ctx);
     else
       r.heat = choice(*n, "heat of " + ctx, {"adiabatic", "isothermal"}) == "isothermal"
                    ? HeatMode::Isothermal
@@ -1095,9 +1095,7 @@ StageSpec Loader::read_stage(const YAML::Node& node, std::size_t index) {
            fmt::format("{}: heat_capacity (of the vessel and catalyst) belongs to a stirred tank "
                        "(type: cstr), where it slows the temperature's dynamics",
                        ctx));
-    const SiUnit unit = SiUnit::of("J/K", "a heat capacity");
-    r.heat_capacity = quantity(*n, "heat_capacity of " + ctx, unit);
-    check_range(*n, "heat_capacity of " + ctx, kNonNegative, unit.to_string(), *r.heat_capacity);
+    r.heat_capacity = field(*n, CaseFieldKind::TankHeatCapacity, sid);
   }
   if (const auto* n = f.find("activity")) r.activity = field(*n, CaseFieldKind::Activity, sid);
   if (const auto* n = f.find("pellet")) r.pellet = read_pellet(*n, "pellet of " + ctx);
@@ -1146,22 +1144,20 @@ StageSpec Loader::read_stage(const YAML::Node& node, std::size_t index) {
 
 // A cooled stirred tank's `heat: {UA: 40 kW/K, coolant: {T: 300 K}}`.
 TankCooling Loader::read_tank_cooling(const YAML::Node& node, ReactorType type,
-                                      const std::string& ctx) const {
+                                      const std::string& sid, const std::string& ctx) const {
   if (type != ReactorType::Cstr)
     fail(node, fmt::format("heat of {}: a mapping with UA and coolant cools a stirred tank (type: "
                            "cstr); a tubular stage takes adiabatic or isothermal",
                            ctx));
   Fields g(*this, node, "heat of " + ctx);
   g.check({"UA", "coolant"});
-  const SiUnit ua_unit = SiUnit::of("W/K", "a heat-transfer capacity (U times area)");
   TankCooling c;
-  const YAML::Node& ua = g.need("UA", "the wall's U times its area, e.g. UA: 40 kW/K");
-  c.UA = quantity(ua, "UA of " + ctx, ua_unit);
-  check_range(ua, "UA of " + ctx, kPositive, ua_unit.to_string(), c.UA);
+  c.UA = field(g.need("UA", "the wall's U times its area, e.g. UA: 40 kW/K"), CaseFieldKind::TankUA,
+               sid);
   Fields k(*this, g.need("coolant", "the coolant, e.g. coolant: {T: 300 K}"), "coolant of " + ctx);
   k.check({"T"});
-  c.T_coolant = temperature(k.need("T", "the coolant's temperature, e.g. T: 27 degC"),
-                            "T of the coolant of " + ctx);
+  c.T_coolant = field(k.need("T", "the coolant's temperature, e.g. T: 27 degC"),
+                      CaseFieldKind::TankCoolantT, sid);
   return c;
 }
 
