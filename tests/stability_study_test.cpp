@@ -9,6 +9,7 @@
 
 #include "first_order_tank.hpp"
 #include "rxtrain/analysis/stability.hpp"
+#include "rxtrain/analysis/train_warnings.hpp"
 #include "rxtrain/base/units.hpp"
 #include "rxtrain/case/case_fields.hpp"
 #include "rxtrain/solvers/continuation.hpp"
@@ -22,6 +23,23 @@ rxtrain::CaseField field_named(const rxtrain::Case& c, const std::string& name) 
   FAIL("no field " << name);
   return {};
 }
+
+// The cooled tank of tank_stability_test.cpp in a case file (invented data).
+constexpr const char* kCooledTank = R"(title: cooled tank (invented data)
+phase: liquid
+species:
+  - {id: A, mw: 0.1 kg/mol, density: 1000 kg/m3, thermo: {cp: 150 J/mol/K}}
+  - {id: B, mw: 0.1 kg/mol, density: 1000 kg/m3, thermo: {cp: 150 J/mol/K}}
+reactions:
+  - id: r1
+    equation: A => B
+    rate: {A: 0.0025, Ea: 49886.7757 J/mol, T_ref: 300 K, orders: {A: 1}}
+    dH: -31.5 kJ/mol
+feed: {T: 300 K, P: 2 bar, flows: {A: 10 mol/s}}
+key: A
+train:
+  - {type: cstr, id: R1, volume: 0.1 m3, heat: {UA: 4.5 kW/K, coolant: {T: 300 K}}}
+)";
 
 }  // namespace
 
@@ -117,23 +135,8 @@ TEST_CASE("along the coolant's UA every point's stability is the classical model
   // point's kind against the eigenvalues of the textbook two-state model,
   // by the discriminant and trace of its 2 x 2 Jacobian (the third mode,
   // -1/tau, is stable).
-  const char* text = R"(title: cooled tank (invented data)
-phase: liquid
-species:
-  - {id: A, mw: 0.1 kg/mol, density: 1000 kg/m3, thermo: {cp: 150 J/mol/K}}
-  - {id: B, mw: 0.1 kg/mol, density: 1000 kg/m3, thermo: {cp: 150 J/mol/K}}
-reactions:
-  - id: r1
-    equation: A => B
-    rate: {A: 0.0025, Ea: 49886.7757 J/mol, T_ref: 300 K, orders: {A: 1}}
-    dH: -31.5 kJ/mol
-feed: {T: 300 K, P: 2 bar, flows: {A: 10 mol/s}}
-key: A
-train:
-  - {type: cstr, id: R1, volume: 0.1 m3, heat: {UA: 4.5 kW/K, coolant: {T: 300 K}}}
-)";
   const rxtrain::UnitParser units;
-  const rxtrain::Case c = rxtrain::load_case_from_string(text, "cooled.yaml", units);
+  const rxtrain::Case c = rxtrain::load_case_from_string(kCooledTank, "cooled.yaml", units);
   rxtrain::StabilityOptions o;
   o.lo = 1000.0;
   o.hi = 10000.0;
@@ -168,4 +171,31 @@ train:
   CHECK(oscillatory >= 5);
   CHECK(stable >= 10);
   CHECK(r.turning_points.empty());  // one steady state at every UA here
+}
+
+TEST_CASE("run warns of an unstable reported state and of a multiple-steady-state region",
+          "[stability]") {
+  const rxtrain::UnitParser units;
+  // Three states at the case's feed (tau = 1 s, between the closed-form
+  // extinction and ignition feed temperatures): two stable ones.
+  const rxtrain::Case s_curve =
+      rxtrain::load_case_from_string(rxtrain::test::kSCurveTank, "s-curve.yaml", units);
+  const auto r = rxtrain::run_checked(s_curve, {});
+  const auto has = [](const rxtrain::TrainResult& t, const std::string& text) {
+    for (const auto& w : t.warnings)
+      if (w.find(text) != std::string::npos) return true;
+    return false;
+  };
+  CHECK(has(r, "stage R1: 2 stable steady states at these conditions"));
+  CHECK_FALSE(has(r, "is not stable"));
+  // Past ignition (feed 320 K > 312.36 K, closed form) one state: no warning.
+  rxtrain::Case hot = s_curve;
+  hot.feed.T = 320.0;
+  const auto rh = rxtrain::run_checked(hot, {});
+  CHECK_FALSE(has(rh, "stable steady states at these conditions"));
+  CHECK_FALSE(has(rh, "is not stable"));
+  // The cooled tank's only state is oscillatory.
+  const auto rc =
+      rxtrain::run_checked(rxtrain::load_case_from_string(kCooledTank, "cooled.yaml", units), {});
+  CHECK(has(rc, "is not stable (oscillatory): the tank cannot hold it without control"));
 }

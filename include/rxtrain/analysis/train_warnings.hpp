@@ -11,6 +11,9 @@
 //  * tubular beds whose last 10 % of volume adds under 0.01 conversion
 //    (catalyst, or volume in a tube without catalyst, wasted near
 //    equilibrium or complete conversion);
+//  * a stirred tank whose reported steady state is not stable (saddle,
+//    unstable, oscillatory), or that has more than one stable steady state
+//    (a multiple-steady-state region);
 //  * space times outside the usual ranges, for tanks and tubes without
 //    catalyst: stirred tanks about 10 min to 4 h, empty tubular reactors
 //    about 0.5 s to 1 h (common practice, no source); catalyst beds are
