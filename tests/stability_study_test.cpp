@@ -110,6 +110,13 @@ TEST_CASE("continuation reproduces the closed-form ignition and extinction feed 
       CHECK(std::abs(p.T - p.value - t.J() * p.X) < 1e-6);
     }
   CHECK(r.warnings.empty());
+  // van Heerden's curves at the case's feed (300 K): generation F0 (-dH)
+  // X(T), removal F0 cp (T - T0).
+  REQUIRE(r.heat_curves.size() > 50);
+  for (const auto& h : r.heat_curves) {
+    CHECK(std::abs(h.generation - t.F0 * -t.dH * t.X(h.T, 1.0)) <= 1e-8 * t.F0 * -t.dH);
+    CHECK(std::abs(h.removal - t.F0 * t.cp * (h.T - 300.0)) <= 1e-9 * t.F0 * t.cp * 300.0);
+  }
 }
 
 TEST_CASE("stability refuses a case without a tank of given volume", "[stability]") {

@@ -4,10 +4,13 @@
 
 #include <algorithm>
 #include <cmath>
+#include <functional>
+#include <limits>
 
 #include "rxtrain/base/error.hpp"
 #include "rxtrain/flowsheet/train.hpp"
 #include "rxtrain/models/tank_balances.hpp"
+#include "rxtrain/solvers/newton.hpp"
 
 namespace rxtrain {
 
@@ -85,6 +88,54 @@ class TankProblem {
       J(r, n_) = dg_(r, n_) / s * Ts_;
       J(r, n_ + 1) = (gp_[r] - gm_[r]) / (2 * h) / s;
     }
+  }
+
+  // The heat-generation and heat-removal curves of the tank at field value
+  // v over [T_lo, T_hi]: the mole balances solved at each T (Newton from
+  // the previous T's flows), the generation from them, the removal the
+  // rest of the energy balance.
+  std::vector<HeatCurvePoint> heat_curves(double v, double T_lo, double T_hi, int n_points) {
+    setup(v);
+    std::vector<HeatCurvePoint> out;
+    if (spec_.heat != HeatMode::Adiabatic) return out;
+    detail::CstrBalances iso;
+    Stream at = inlet_;
+    Eigen::VectorXd z(n_ + 1), lo(n_ + 1), up(n_ + 1);
+    for (int i = 0; i < n_; ++i) {
+      z[i] = std::max(inlet_.F[i], 1e-9 * Fs_) / Fs_;
+      lo[i] = 0;
+      up[i] = std::numeric_limits<double>::infinity();
+    }
+    lo[n_] = 0;
+    up[n_] = std::numeric_limits<double>::infinity();
+    NewtonWorkspace ws;
+    for (int k = 0; k < n_points; ++k) {
+      const double T = T_lo + (T_hi - T_lo) * k / (n_points - 1);
+      at.T = T;
+      iso.reset(work_.mechanism, beta_, HeatMode::Isothermal, at);
+      z[n_] = 1.0;
+      auto fn = [&](const Eigen::VectorXd& x, Eigen::VectorXd& f, Eigen::MatrixXd* J) {
+        for (int i = 0; i < n_; ++i) F_[i] = x[i] * Fs_;
+        iso.eval(F_.data(), x[n_] * T, V_, g_, J ? &dg_ : nullptr);
+        for (int r = 0; r <= n_; ++r) {
+          const double s = r < n_ ? Fs_ : T;
+          f[r] = g_[r] / s;
+          if (!J) continue;
+          for (int c = 0; c < n_; ++c) (*J)(r, c) = dg_(r, c) / s * Fs_;
+          (*J)(r, n_) = dg_(r, n_) / s * T;
+        }
+      };
+      const NewtonResult nr = solve_newton(std::cref(fn), z, lo, up, NewtonOptions{}, ws);
+      if (!nr.converged) continue;  // a gap in the drawn curve, not a wrong point
+      for (int i = 0; i < n_; ++i) F_[i] = std::max(z[i] * Fs_, 0.0);
+      HeatCurvePoint p;
+      p.T = T;
+      p.generation = -iso.duty(F_.data(), T, V_);
+      balances_.eval(F_.data(), T, V_, g_, nullptr);
+      p.removal = g_[n_] + p.generation;
+      out.push_back(p);
+    }
+    return out;
   }
 
   // The point x as the study reports it, with its stability.
@@ -260,6 +311,17 @@ StabilityResult run_stability(const Case& c, const CaseField& field,
       }
       out.branches.back().points.push_back(curve[k]);
     }
+  }
+  double T_lo = std::numeric_limits<double>::infinity(), T_hi = -T_lo;
+  for (const auto& b : out.branches)
+    for (const auto& p : b.points) {
+      T_lo = std::min(T_lo, p.T);
+      T_hi = std::max(T_hi, p.T);
+    }
+  if (T_lo < T_hi) {
+    const double margin = 0.1 * (T_hi - T_lo);
+    out.heat_curves =
+        tank.heat_curves(out.base_value, std::max(T_lo - margin, 2.0), T_hi + margin, 101);
   }
   std::sort(out.turning_points.begin(), out.turning_points.end(),
             [](const TurningPoint& a, const TurningPoint& b) { return a.value < b.value; });

@@ -61,7 +61,7 @@ int run_stability_command(const StabilityCommandOptions& o) {
   if (!o.json_path.empty()) out.add(o.json_path, stability_json_text(r));
   if (!o.csv_path.empty()) out.add(o.csv_path, stability_csv_text(r));
   if (!o.report_dir.empty()) {
-    const std::vector<Figure> figures{stability_figure(r)};
+    const std::vector<Figure> figures = stability_figures(r);
     add_report_files(
         out, o.report_dir,
         stability_report_html(c, r, figures, provenance_of(o.case_file, RXTRAIN_VERSION)), figures);
@@ -89,7 +89,8 @@ Action setup_stability(CLI::App& app) {
   app.add_option("--csv", o->csv_path, "Write every point of every branch as CSV (SI) to FILE");
   app.add_option("--report", o->report_dir,
                  "Write report.html (the S-shaped curve, stable branches solid and unstable "
-                 "dashed, and the turning points) and the curve as SVG into folder DIR");
+                 "dashed, the turning points, and the heat-generation and heat-removal curves "
+                 "at the case's values) and each figure as SVG into folder DIR");
   return [o] { return run_stability_command(*o); };
 }
 

@@ -66,6 +66,15 @@ struct StabilityBranch {
   std::vector<StabilityPoint> points;
 };
 
+// van Heerden's picture of a tank at the case's own values: the heat the
+// reactions release at T (with the mole balances solved at that T) and the
+// heat the flow and the wall take away, W; they cross at the steady states.
+struct HeatCurvePoint {
+  double T = 0;           // K
+  double generation = 0;  // W, -V sum_j R_j dH_j(T)
+  double removal = 0;     // W, sum_i F_i,in (h_i(T) - h_i(T_in)) + UA (T - T_coolant)
+};
+
 struct StabilityResult {
   std::string stage;  // the tank's id
   std::string param;  // the field's path
@@ -77,6 +86,9 @@ struct StabilityResult {
   // [lo, hi] of the values with several steady states when the curve has
   // exactly one ignition and one extinction.
   std::optional<std::pair<double, double>> hysteresis;
+  // At the case's value of the field, over the temperatures the branches
+  // span (an isothermal tank has none: its temperature is held).
+  std::vector<HeatCurvePoint> heat_curves;
   std::vector<std::string> warnings;  // a branch given up, the range cut, ...
   int points = 0;                     // points on every branch
   int corrector_iterations = 0;

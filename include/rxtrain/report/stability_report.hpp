@@ -24,6 +24,10 @@ std::string stability_csv_text(const StabilityResult& r);
 // The S-curve: the tank's temperature against the field (°C for
 // temperatures), stable solid, unstable dashed, turning points marked.
 Figure stability_figure(const StabilityResult& r);
+// The heat-generation and heat-removal curves at the case's values (kW
+// against °C), crossing at the steady states; the S-curve figure alone
+// where the tank has none (isothermal).
+std::vector<Figure> stability_figures(const StabilityResult& r);
 std::string stability_report_html(const Case& c, const StabilityResult& r,
                                   const std::vector<Figure>& figures,
                                   const ReportProvenance& provenance);
