@@ -206,3 +206,27 @@ TEST_CASE("run warns of an unstable reported state and of a multiple-steady-stat
       rxtrain::run_checked(rxtrain::load_case_from_string(kCooledTank, "cooled.yaml", units), {});
   CHECK(has(rc, "is not stable (oscillatory): the tank cannot hold it without control"));
 }
+
+TEST_CASE("stages before the tank give its inlet at every value of the field", "[stability]") {
+  // A heater setting the tank's inlet temperature: varying its T_out must
+  // give the turning points of varying the feed temperature of the tank
+  // alone.
+  const rxtrain::UnitParser units;
+  const rxtrain::Case alone =
+      rxtrain::load_case_from_string(rxtrain::test::kSCurveTank, "s-curve.yaml", units);
+  std::string text = rxtrain::test::kSCurveTank;
+  const std::string tank = "  - {type: cstr, id: R1, volume: 1e-3 m3}";
+  text.replace(text.find(tank), tank.size(),
+               "  - {type: exchanger, id: E1, T_out: 290 K}\n" + tank);
+  const rxtrain::Case heated = rxtrain::load_case_from_string(text, "heated.yaml", units);
+  rxtrain::StabilityOptions o;
+  o.lo = 250.0;
+  o.hi = 330.0;
+  const auto a = rxtrain::run_stability(alone, field_named(alone, "feed.T"), o);
+  const auto h = rxtrain::run_stability(heated, field_named(heated, "train.E1.T_out"), o);
+  REQUIRE(a.turning_points.size() == 1);  // ignition only: extinction is below 250 K
+  REQUIRE(h.turning_points.size() == a.turning_points.size());
+  CHECK(std::abs(h.turning_points[0].value - a.turning_points[0].value) < 1e-6);
+  CHECK(std::abs(h.turning_points[0].T - a.turning_points[0].T) < 1e-6);
+  CHECK(h.stage == "R1");
+}
