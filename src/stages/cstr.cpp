@@ -809,6 +809,7 @@ struct Tank {
     res.T_min = std::min(inlet.T, out.T);
     res.profile.push_back(ProfilePoint{0.0, inlet.T, X_in, inlet.F, {}});
     res.profile.push_back(ProfilePoint{V, res.outlet.T, res.conversion, res.outlet.F, {}});
+    std::vector<std::string> stability_notes;
     for (const auto& st : states) {
       SteadyState ss;
       ss.T = st.T;
@@ -816,10 +817,18 @@ struct Tank {
       for (auto& f : ss.F) f = std::max(f, 0.0);
       ss.X = basis.conversion(ss.F.data());
       ss.outlet = same_state(st, out, options.distinct_T, solver);
-      const TankStability stab =
-          tank_stability(balances, ss.F.data(), ss.T, V, spec.heat_capacity.value_or(0.0));
-      ss.eigenvalues = stab.eigenvalues;
-      ss.kind = stab.kind;
+      // The state stands without its stability (said so) rather than the
+      // run failing over it.
+      try {
+        const TankStability stab =
+            tank_stability(balances, ss.F.data(), ss.T, V, spec.heat_capacity.value_or(0.0));
+        ss.eigenvalues = stab.eigenvalues;
+        ss.kind = stab.kind;
+      } catch (const SolverError& e) {
+        stability_notes.push_back(
+            fmt::format("stage {}: the stability of the steady state at {} was not computed ({})",
+                        spec.id, temperature_words(ss.T), e.what()));
+      }
       res.steady_states.push_back(std::move(ss));
     }
     res.stats.newton_iters = solver.iterations() + extra.iterations;
@@ -830,6 +839,7 @@ struct Tank {
                         : "",
                     solver.solves() + extra.solves, res.stats.newton_iters, states.size());
     res.warnings = warnings;
+    res.warnings.insert(res.warnings.end(), stability_notes.begin(), stability_notes.end());
     add_space_velocities(mech, res);
     return res;
   }
