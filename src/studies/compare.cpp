@@ -223,7 +223,7 @@ CompareResult compare_layouts(const Case& c, const CompareOptions& options) {
   for (const auto& r : reactors) {
     out.case_order.push_back(r.id);
     if (r.target_conversion) X_sized = std::max(X_sized.value_or(0.0), *r.target_conversion);
-    all_adiabatic = all_adiabatic && r.heat == HeatMode::Adiabatic;
+    all_adiabatic = all_adiabatic && r.heat == HeatMode::Adiabatic && !r.cooling;
     all_isothermal = all_isothermal && r.heat == HeatMode::Isothermal;
   }
   out.sized = X_sized.has_value();
