@@ -956,8 +956,8 @@ StageReach cstr_reach(const Mechanism& mech, const ReactorSpec& spec, const Stre
   }
   // One reaction: the tank's outlet runs along the same adiabatic (or
   // isothermal) line as a tube's, to the same equilibrium point. A cooled
-  // tank's does not (the wall's heat depends on its size): its end stays
-  // the one the continuation approached.
+  // tank's outlet is on neither line (the wall takes heat out): its end
+  // stays the one the continuation approached.
   if (!(spec.cooling && spec.heat == HeatMode::Adiabatic))
     exact_equilibrium_end(mech, inlet, spec.heat, basis, reach);
   finish_reach(reach, m.V);
