@@ -230,3 +230,22 @@ TEST_CASE("stages before the tank give its inlet at every value of the field", "
   CHECK(std::abs(h.turning_points[0].T - a.turning_points[0].T) < 1e-6);
   CHECK(h.stage == "R1");
 }
+
+TEST_CASE("run's flip check names the ignition and extinction points within its margin",
+          "[stability]") {
+  // The S-curve tank at 300 K feed: ignition at a feed of 312.3646 K and
+  // extinction at 192.5110 K (closed form, slope condition).
+  const rxtrain::UnitParser units;
+  const rxtrain::Case c =
+      rxtrain::load_case_from_string(rxtrain::test::kSCurveTank, "s-curve.yaml", units);
+  const auto r = rxtrain::run_checked(c, {});
+  CHECK(rxtrain::flip_warnings(c, r, 10.0).empty());
+  CHECK(rxtrain::flip_warnings(c, r, 0.0).empty());
+  const auto one = rxtrain::flip_warnings(c, r, 15.0);
+  REQUIRE(one.size() == 1);
+  CHECK_THAT(one[0], Catch::Contains("a feed temperature 12.36 K above the case's (26.85 °C) "
+                                     "ignites the tank"));
+  const auto two = rxtrain::flip_warnings(c, r, 110.0);
+  REQUIRE(two.size() == 2);
+  CHECK_THAT(two[0], Catch::Contains("107.49 K below") && Catch::Contains("extinguishes"));
+}

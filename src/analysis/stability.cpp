@@ -8,6 +8,7 @@
 #include <limits>
 
 #include "rxtrain/base/error.hpp"
+#include "rxtrain/base/units.hpp"
 #include "rxtrain/flowsheet/train.hpp"
 #include "rxtrain/models/tank_balances.hpp"
 #include "rxtrain/solvers/newton.hpp"
@@ -331,6 +332,47 @@ StabilityResult run_stability(const Case& c, const CaseField& field,
   };
   if (count(TurningKind::Ignition) == 1 && count(TurningKind::Extinction) == 1)
     out.hysteresis = std::pair{out.turning_points.front().value, out.turning_points.back().value};
+  return out;
+}
+
+std::vector<std::string> flip_warnings(const Case& c, const TrainResult& result, double margin) {
+  std::vector<std::string> out;
+  if (!(margin > 0)) return out;
+  CaseField feed_T;
+  for (const auto& f : case_fields(c))
+    if (f.name == "feed.T") feed_T = f;
+  for (std::size_t k = 0; k < result.stages.size() && k < c.train.size(); ++k) {
+    const StageResult& r = result.stages[k];
+    if (r.kind != StageKind::Cstr || r.heat != HeatMode::Adiabatic || !r.volume) continue;
+    // The tank as it ran: a sized one at the volume found.
+    Case w = c;
+    auto& spec = std::get<ReactorSpec>(w.train[k]);
+    spec.volume = *r.volume;
+    spec.catalyst_mass.reset();
+    spec.target_conversion.reset();
+    spec.target_outlet.reset();
+    StabilityOptions o;
+    o.stage = r.id;
+    o.lo = std::max(c.feed.T - margin, 1.0);
+    o.hi = c.feed.T + margin;
+    try {
+      const StabilityResult s = run_stability(w, feed_T, o);
+      for (const auto& t : s.turning_points)
+        out.push_back(fmt::format(
+            "stage {}: a feed temperature {:.2f} K {} the case's ({:.2f} °C) {} the tank "
+            "({} point at {:.2f} °C feed, tank at {:.2f} °C): the design sits within {:g} K of "
+            "a flip",
+            r.id, std::abs(t.value - c.feed.T), t.value > c.feed.T ? "above" : "below",
+            c.feed.T - kZeroCelsius, t.kind == TurningKind::Ignition ? "ignites" : "extinguishes",
+            t.kind == TurningKind::Ignition ? "ignition" : "extinction", t.value - kZeroCelsius,
+            t.T - kZeroCelsius, margin));
+    } catch (const std::exception& e) {
+      out.push_back(
+          fmt::format("stage {}: its ignition and extinction points within {:g} K of "
+                      "the feed temperature were not checked ({})",
+                      r.id, margin, e.what()));
+    }
+  }
   return out;
 }
 

@@ -65,6 +65,7 @@ struct TypeWord {
 };
 constexpr TypeWord kTypeWords[] = {
     {"--limit-margin", "KELVIN"},
+    {"--ignition-margin", "KELVIN"},
     {"--margin", "KELVIN"},
     {"--approach-window", "KELVIN"},
     {"--return-to", "inlet|max-rate"},

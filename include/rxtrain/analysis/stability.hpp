@@ -17,6 +17,7 @@
 
 #include "rxtrain/case/case.hpp"
 #include "rxtrain/case/case_fields.hpp"
+#include "rxtrain/flowsheet/train.hpp"
 #include "rxtrain/models/tank_stability.hpp"
 #include "rxtrain/solvers/continuation.hpp"
 #include "rxtrain/stages/solver_options.hpp"
@@ -93,6 +94,15 @@ struct StabilityResult {
   int points = 0;                     // points on every branch
   int corrector_iterations = 0;
 };
+
+// `rxtrain run`'s check of each adiabatic or cooled stirred tank of
+// `result` (at the volume it ran with): a turning point of its steady
+// states in the feed temperature within `margin` K of the case's feed
+// temperature, where a small upset of the feed would ignite or extinguish
+// it. One sentence per finding (a train warning, worded here as the
+// train's other warnings are); a tank whose check fails gets a sentence
+// saying so.
+std::vector<std::string> flip_warnings(const Case& c, const TrainResult& result, double margin);
 
 // Throws InputError when the case has no such stirred tank, when the tank
 // is sized to a target (continuation follows a tank of given volume) or
