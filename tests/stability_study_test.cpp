@@ -5,6 +5,7 @@
 // folds are known exactly.
 #include <catch2/catch.hpp>
 #include <cmath>
+#include <filesystem>
 #include <string>
 
 #include "first_order_tank.hpp"
@@ -248,4 +249,121 @@ TEST_CASE("run's flip check names the ignition and extinction points within its 
   const auto two = rxtrain::flip_warnings(c, r, 110.0);
   REQUIRE(two.size() == 2);
   CHECK_THAT(two[0], Catch::Contains("107.49 K below") && Catch::Contains("extinguishes"));
+}
+
+TEST_CASE("continuation in the rate constant stays on each branch and finds both folds",
+          "[stability]") {
+  // The S-curve tank (T0 = 300 K, tau = 1 s) with k_ref varied: on the
+  // curve X = (T - T0)/J and k_ref = X / ((1 - X) tau exp(-ER (1/T -
+  // 1/T_ref))); its folds in k_ref satisfy the same slope condition J X
+  // (1 - X) ER / T^2 = 1 (van Heerden 1953), solved here by GSL Brent. The
+  // upper branch is nearly flat (X close to 1): a corrector that jumped to
+  // another branch there once gave the ignition twice.
+  const rxtrain::test::FirstOrderTank t;
+  const double T0 = 300.0, tau = 1.0;
+  const auto folds = rxtrain::test::gsl_roots(
+      [&](double T) {
+        const double X = (T - T0) / t.J();
+        return t.J() * X * (1 - X) * t.ER / (T * T) - 1;
+      },
+      T0 + 1e-3, T0 + t.J() - 1e-3, 0.01);
+  REQUIRE(folds.size() == 2);
+  std::vector<double> k_folds;
+  for (double T : folds) {
+    const double X = (T - T0) / t.J();
+    k_folds.push_back(X / ((1 - X) * tau * std::exp(-t.ER * (1 / T - 1 / t.T_ref))));
+  }
+  std::sort(k_folds.begin(), k_folds.end());
+  const rxtrain::UnitParser units;
+  const rxtrain::Case c =
+      rxtrain::load_case_from_string(rxtrain::test::kSCurveTank, "s-curve.yaml", units);
+  rxtrain::StabilityOptions o;
+  o.lo = 0.5 * k_folds[0];
+  o.hi = 2.0 * k_folds[1];
+  const auto r = rxtrain::run_stability(c, field_named(c, "reactions.r1.rate.A"), o);
+  REQUIRE(r.turning_points.size() == 2);
+  CHECK(r.turning_points[0].kind == rxtrain::TurningKind::Extinction);
+  CHECK(r.turning_points[1].kind == rxtrain::TurningKind::Ignition);
+  CHECK(std::abs(r.turning_points[0].value - k_folds[0]) / k_folds[0] < 1e-6);
+  CHECK(std::abs(r.turning_points[1].value - k_folds[1]) / k_folds[1] < 1e-6);
+  REQUIRE(r.branches.size() == 3);
+  for (const auto& b : r.branches)
+    for (const auto& p : b.points) {
+      const double X = (p.T - T0) / t.J();
+      CHECK(std::abs(p.X - X) < 1e-8);  // on the adiabatic line: no jump off the curve
+    }
+  CHECK(r.warnings.empty());
+}
+
+TEST_CASE("continuation stays on the demo tank's flat hot branch", "[stability]") {
+  // cases/isomerization-tank-three-states.yaml (invented data) with its
+  // rate constant varied from 0.001 to 0.1 1/s: first order in M at a
+  // constant volumetric flow (M and I share their molar volume), so on the
+  // curve X = (T - T0)/J with J = -dH F_M / sum F cp and k_ref = X / ((1 -
+  // X) tau exp(-ER (1/T - 1/T_ref))), folds where J X (1 - X) ER / T^2 = 1
+  // (van Heerden 1953; GSL Brent here). The hot branch is nearly flat (X
+  // close to 1): without the corrector's distance check the trace from it
+  // jumped to the cold branch and met the ignition twice.
+  const double T0 = 298.15, J = 60000.0 * 8 / (8 * 180.0 + 40 * 75.0);
+  const double ER = 120000.0 / rxtrain::kGasConstant, T_ref = 350.0;
+  const double tau = 2.0 / (8 * 0.1 / 900 + 40 * 0.018 / 1000);
+  const auto folds = rxtrain::test::gsl_roots(
+      [&](double T) {
+        const double X = (T - T0) / J;
+        return J * X * (1 - X) * ER / (T * T) - 1;
+      },
+      T0 + 1e-3, T0 + J - 1e-3, 0.01);
+  REQUIRE(folds.size() == 2);
+  std::vector<double> k_in_range;
+  for (double T : folds) {
+    const double X = (T - T0) / J;
+    const double k = X / ((1 - X) * tau * std::exp(-ER * (1 / T - 1 / T_ref)));
+    if (k > 0.001 && k < 0.1) k_in_range.push_back(k);
+  }
+  REQUIRE(k_in_range.size() == 1);  // the ignition; the extinction lies below 0.001 1/s
+  const rxtrain::UnitParser units;
+  const rxtrain::Case c = rxtrain::load_case(
+      (std::filesystem::path(RXTRAIN_SOURCE_DIR) / "cases/isomerization-tank-three-states.yaml")
+          .string(),
+      units);
+  rxtrain::StabilityOptions o;
+  o.lo = 0.001;
+  o.hi = 0.1;
+  const auto r = rxtrain::run_stability(c, field_named(c, "reactions.isom.rate.A"), o);
+  REQUIRE(r.turning_points.size() == 1);
+  CHECK(r.turning_points[0].kind == rxtrain::TurningKind::Ignition);
+  CHECK(std::abs(r.turning_points[0].value - k_in_range[0]) / k_in_range[0] < 1e-6);
+  for (const auto& b : r.branches)
+    for (const auto& p : b.points) CHECK(std::abs(p.X - (p.T - T0) / J) < 1e-8);
+  // Cold branch to the ignition, middle back to 0.001, hot branch from
+  // 0.001 to 0.1 and hot all the way (X > 0.99 on it).
+  REQUIRE(r.branches.size() == 3);
+  const auto& hot = r.branches[2];
+  CHECK(hot.stable);
+  CHECK(hot.points.front().value == Approx(0.001).epsilon(1e-12));
+  CHECK(hot.points.back().value == Approx(0.1).epsilon(1e-12));
+  for (const auto& p : hot.points) CHECK(p.X > 0.99);
+  CHECK(r.warnings.empty());
+}
+
+TEST_CASE("a range that starts on the field's bound is followed from there", "[stability]") {
+  // heat_capacity may be 0 but not below: the parameter derivative is
+  // one-sided there. It moves no steady state, so every branch is flat.
+  const rxtrain::UnitParser units;
+  const rxtrain::Case c = rxtrain::load_case(
+      (std::filesystem::path(RXTRAIN_SOURCE_DIR) / "cases/isomerization-tank-three-states.yaml")
+          .string(),
+      units);
+  rxtrain::StabilityOptions o;
+  o.lo = 0.0;
+  o.hi = 5e6;
+  const auto r = rxtrain::run_stability(c, field_named(c, "train.R1.heat_capacity"), o);
+  CHECK(r.warnings.empty());
+  CHECK(r.turning_points.empty());
+  REQUIRE(r.branches.size() == 3);
+  for (const auto& b : r.branches) {
+    CHECK(b.points.front().value == 0.0);
+    CHECK(b.points.back().value == Approx(5e6).epsilon(1e-12));
+    CHECK(std::abs(b.points.back().T - b.points.front().T) < 1e-8);
+  }
 }

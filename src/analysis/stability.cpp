@@ -75,10 +75,15 @@ class TankProblem {
     for (int i = 0; i < n_; ++i) F_[i] = x[i] * Fs_;
     const double T = x[n_] * Ts_;
     if (!(T > 1.0) || !(T < 1e4)) throw SolverError("temperature out of range");
+    // Central differences, one-sided where a side leaves the field's range
+    // (the range may start on the field's bound, e.g. heat_capacity = 0).
     const double h = 1e-6;
-    setup(value(p + h));
+    const double up = field_.contains(value(p + h)) ? h : 0.0;
+    const double down = field_.contains(value(p - h)) ? h : 0.0;
+    if (up + down == 0) throw SolverError("the field cannot move from here");
+    setup(value(p + up));
     balances_.eval(F_.data(), T, V_, gp_, nullptr);
-    setup(value(p - h));
+    setup(value(p - down));
     balances_.eval(F_.data(), T, V_, gm_, nullptr);
     setup(value(p));
     balances_.eval(F_.data(), T, V_, g_, &dg_);
@@ -87,7 +92,7 @@ class TankProblem {
       H[r] = g_[r] / s;
       for (int c = 0; c < n_; ++c) J(r, c) = dg_(r, c) / s * Fs_;
       J(r, n_) = dg_(r, n_) / s * Ts_;
-      J(r, n_ + 1) = (gp_[r] - gm_[r]) / (2 * h) / s;
+      J(r, n_ + 1) = (gp_[r] - gm_[r]) / (up + down) / s;
     }
   }
 
@@ -290,6 +295,12 @@ StabilityResult run_stability(const Case& c, const CaseField& field,
         const StabilityPoint before = curve[curve.size() - 2];
         const StabilityPoint after =
             tank.point(k + 1 < r.points.size() ? r.points[k + 1].x : r.folds[next_fold].x, basis);
+        // The same fold met by two traces is one turning point.
+        const bool seen = std::any_of(
+            out.turning_points.begin(), out.turning_points.end(), [&](const TurningPoint& q) {
+              return std::abs(q.value - f.value) <= 1e-9 * (options.hi - options.lo) &&
+                     std::abs(q.T - f.T) <= 1e-6;
+            });
         TurningPoint tp;
         tp.value = f.value;
         tp.T = f.T;
@@ -298,7 +309,7 @@ StabilityResult run_stability(const Case& c, const CaseField& field,
                                       ? (before.stable() ? before.T < after.T : after.T < before.T)
                                       : before.T < after.T;
         tp.kind = stable_below ? TurningKind::Ignition : TurningKind::Extinction;
-        out.turning_points.push_back(tp);
+        if (!seen) out.turning_points.push_back(tp);
         ++next_fold;
       }
     }

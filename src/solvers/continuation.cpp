@@ -126,9 +126,12 @@ ContinuationResult continue_branch(const BranchFunction& fn, const Eigen::Vector
     auto x = tr.correct(prev.x, prev.tangent, ds, iterations);
     std::optional<Eigen::VectorXd> t;
     if (x) t = tr.tangent(*x, prev.tangent);
-    // A step that turns the tangent by more than ~30 degrees may have
-    // jumped to another branch: shorter.
-    if (!x || !t || t->dot(prev.tangent) < 0.85) {
+    // A step that turns the tangent by more than ~30 degrees, or whose
+    // corrector moved the point far from the predictor (Newton found a
+    // solution of another branch on the same hyperplane), may have jumped
+    // to another branch: shorter.
+    const bool far = x && (*x - (prev.x + ds * prev.tangent)).norm() > o.max_correction * ds;
+    if (!x || !t || far || t->dot(prev.tangent) < 0.85) {
       ds *= 0.5;
       if (ds < o.ds_min) {
         out.message = "the continuation step fell below its least size (a singular point?)";

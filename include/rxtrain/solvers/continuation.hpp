@@ -33,6 +33,10 @@ struct ContinuationOptions {
   // see every change of stability.
   double ds_max = 0.02;
   double growth = 1.5;
+  // A corrected point farther than this times ds from its predictor is
+  // taken for a jump to another branch and the step is retried shorter
+  // (on a smooth branch the correction shrinks like ds^2).
+  double max_correction = 0.5;
   int max_points = 5000;          // a branch longer than this is cut (and said so)
   int max_iterations = 12;        // corrector iterations per step
   double tolerance = 1e-11;       // corrector: max |H| and max |dx|
