@@ -367,3 +367,22 @@ TEST_CASE("a range that starts on the field's bound is followed from there", "[s
     CHECK(std::abs(b.points.back().T - b.points.front().T) < 1e-8);
   }
 }
+
+TEST_CASE("a field that moves the feed measures conversion against the key fed at that value",
+          "[stability]") {
+  // The S-curve tank with its feed flow varied: every steady state lies on
+  // the adiabatic line X = (T - T0) / J whatever the flow (energy balance
+  // of an adiabatic tank with dCp = 0).
+  const rxtrain::test::FirstOrderTank t;
+  const rxtrain::UnitParser units;
+  const rxtrain::Case c =
+      rxtrain::load_case_from_string(rxtrain::test::kSCurveTank, "s-curve.yaml", units);
+  rxtrain::StabilityOptions o;
+  o.lo = 2.0;
+  o.hi = 40.0;
+  const auto r = rxtrain::run_stability(c, field_named(c, "feed.flow"), o);
+  REQUIRE_FALSE(r.branches.empty());
+  for (const auto& b : r.branches)
+    for (const auto& p : b.points) CHECK(std::abs(p.X - (p.T - 300.0) / t.J()) < 1e-8);
+  for (const auto& tp : r.turning_points) CHECK(std::abs(tp.X - (tp.T - 300.0) / t.J()) < 1e-8);
+}

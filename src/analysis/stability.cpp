@@ -145,13 +145,15 @@ class TankProblem {
   }
 
   // The point x as the study reports it, with its stability.
-  StabilityPoint point(const Eigen::VectorXd& x, const ConversionBasis& basis) {
+  // The conversion is the key's at this value of the field (a feed flow
+  // or composition moves the key fed).
+  StabilityPoint point(const Eigen::VectorXd& x) {
     setup(value(x[n_ + 1]));
     for (int i = 0; i < n_; ++i) F_[i] = std::max(x[i] * Fs_, 0.0);
     StabilityPoint pt;
     pt.value = value(x[n_ + 1]);
     pt.T = x[n_] * Ts_;
-    pt.X = basis.conversion(F_.data());
+    pt.X = work_.conversion_basis().conversion(F_.data());
     pt.kind =
         tank_stability(balances_, F_.data(), pt.T, V_, spec_.heat_capacity.value_or(0.0)).kind;
     return pt;
@@ -230,7 +232,6 @@ StabilityResult run_stability(const Case& c, const CaseField& field,
   out.lo = options.lo;
   out.hi = options.hi;
   out.base_value = field.get(c);
-  const ConversionBasis basis = c.conversion_basis();
   TankProblem tank(c, field, index, options);
   const int n = tank.n();
   const BranchFunction fn = [&](const Eigen::VectorXd& x, Eigen::VectorXd& H, Eigen::MatrixXd& J) {
@@ -284,9 +285,9 @@ StabilityResult run_stability(const Case& c, const CaseField& field,
     std::vector<StabilityPoint> curve;
     std::size_t next_fold = 0;
     for (std::size_t k = 0; k < r.points.size(); ++k) {
-      curve.push_back(tank.point(r.points[k].x, basis));
+      curve.push_back(tank.point(r.points[k].x));
       while (next_fold < r.folds.size() && r.fold_after[next_fold] == static_cast<int>(k)) {
-        StabilityPoint f = tank.point(r.folds[next_fold].x, basis);
+        StabilityPoint f = tank.point(r.folds[next_fold].x);
         // At the fold itself one eigenvalue is zero: it belongs to neither
         // side; drawn with the side it ends.
         f.kind = curve.back().kind;
@@ -294,7 +295,7 @@ StabilityResult run_stability(const Case& c, const CaseField& field,
         // Ignition when the stable side lies below in T.
         const StabilityPoint before = curve[curve.size() - 2];
         const StabilityPoint after =
-            tank.point(k + 1 < r.points.size() ? r.points[k + 1].x : r.folds[next_fold].x, basis);
+            tank.point(k + 1 < r.points.size() ? r.points[k + 1].x : r.folds[next_fold].x);
         // The same fold met by two traces is one turning point.
         const bool seen = std::any_of(
             out.turning_points.begin(), out.turning_points.end(), [&](const TurningPoint& q) {
