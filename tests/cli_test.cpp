@@ -418,3 +418,36 @@ TEST_CASE("a bed whose pressure would fall below a tenth of its inlet exits 3 an
   CHECK_FALSE(fs::exists(dir / "csv"));
   fs::remove_all(dir);
 }
+
+TEST_CASE("stability: bad --param and a case without a tank are input errors writing nothing",
+          "[cli]") {
+  const auto dir = scratch("stability-bad");
+  const std::string tank =
+      "'" + (fs::path(RXTRAIN_SOURCE_DIR) / "cases/isomerization-tank-three-states.yaml").string() +
+      "'";
+  const std::string json = " --json '" + (dir / "s.json").string() + "'";
+  const struct {
+    std::string args, message;
+  } bad[] = {
+      {"stability " + tank + " --param feed.T" + json, "is not PATH=FROM:TO"},
+      {"stability " + tank + " --param feed.T=330K:300K" + json, "FROM must be below TO"},
+      {"stability " + tank + " --param feed.X=300K:330K" + json, "did you mean \"feed.T\""},
+      {"stability " + tank + " --param feed.T=3bar:300K" + json, "cannot be converted to K"},
+      {"stability " + tank + " --param feed.T=-5K:300K" + json, "out of range"},
+      {"stability " + tank + " --param feed.T=300K:330K --stage R7" + json,
+       "no stirred tank (type: cstr) with id R7"},
+      {"stability '" +
+           (fs::path(RXTRAIN_SOURCE_DIR) / "cases/isomerization-two-bed.yaml").string() +
+           "' --param feed.T=300K:330K" + json,
+       "stability follows a stirred tank"},
+  };
+  for (const auto& b : bad) {
+    const auto r = run_rxtrain(b.args);
+    INFO(b.args << "\n" << r.err);
+    CHECK(r.exit_code == 2);
+    CHECK(r.err.find(b.message) != std::string::npos);
+    CHECK_FALSE(fs::exists(dir / "s.json"));
+  }
+  const auto help = run_rxtrain("stability --help");
+  CHECK(help.out.find("licensed engineers") != std::string::npos);
+}

@@ -554,3 +554,15 @@ TEST_CASE("what moved, in words", "[compare]") {
   CHECK(moved({"R2", "R1", "R4", "R3"}, {{"R2", 2, 1}, {"R1", 1, 2}, {"R4", 4, 3}, {"R3", 3, 4}}) ==
         "R2 to 1st, R1 to 2nd, R4 to 3rd, R3 to 4th");
 }
+
+TEST_CASE("a cooled tank's case gets its adiabatic layout, which drops the cooling", "[compare]") {
+  const std::string text = rxtrain::test::slurp(std::filesystem::path(RXTRAIN_SOURCE_DIR) /
+                                                "cases/cooled-tank-oscillating.yaml");
+  const CompareResult r = rxtrain::compare_layouts(load(text));
+  const Layout& cooled = find(r, {"R1"}, LayoutHeat::AsWritten);
+  const Layout& adiabatic = find(r, {"R1"}, LayoutHeat::Adiabatic);
+  REQUIRE(cooled.feasible);
+  REQUIRE(adiabatic.feasible);
+  // Without the wall the tank runs hotter and converts more.
+  CHECK(*adiabatic.conversion > *cooled.conversion + 0.1);
+}

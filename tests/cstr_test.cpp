@@ -554,7 +554,11 @@ TEST_CASE("a warm-started chain of tanks finds the steady states of cold runs", 
     previous = warm.steady_states;
   }
   // A guess must have one flow per species.
-  const std::vector<rxtrain::SteadyState> bad{{400.0, 0.5, {5.0}}};
+  rxtrain::SteadyState one_flow;
+  one_flow.T = 400.0;
+  one_flow.X = 0.5;
+  one_flow.F = {5.0};
+  const std::vector<rxtrain::SteadyState> bad{one_flow};
   rxtrain::CstrOptions bad_options;
   bad_options.guesses = bad;
   CHECK_THROWS_AS(

@@ -1,7 +1,7 @@
 // Speed benchmark (docs/performance.md): `rxtrain_bench [OPTIONS] [CASE...]`.
 //   --seconds S   time budget per measurement (default 1)
 //   --runs N      runs of the threaded sweep (default 2000)
-//   --only PART   one of startup, cases, tolerances, synthetic, threads, sweep
+//   --only PART   one of startup, cases, tolerances, synthetic, threads, sweep, stability
 // Cases default to cases/*.yaml and tools/bench-cases/*.yaml. Each figure
 // is the median of ten batches, each calibrated to about S/10 seconds,
 // with the solver's work counts of one run. Plain timed loops; nothing
@@ -21,8 +21,10 @@
 #include <thread>
 #include <vector>
 
+#include "rxtrain/analysis/stability.hpp"
 #include "rxtrain/base/units.hpp"
 #include "rxtrain/case/case.hpp"
+#include "rxtrain/case/case_fields.hpp"
 #include "rxtrain/case/synthetic_case.hpp"
 #include "rxtrain/flowsheet/train.hpp"
 #include "rxtrain/sweep/outputs.hpp"
@@ -344,6 +346,29 @@ void bench_sweep(const std::string& file, const std::string& range, int runs) {
   }
 }
 
+// `rxtrain stability` on the demo tank: the S-curve in the feed
+// temperature, the step bound set so that the continuation takes about 200
+// points (issue 20's benchmark: under 50 ms).
+void bench_stability(const std::string& file, double budget) {
+  const UnitParser units;
+  const Case c = load_case(file, units);
+  CaseField feed_T;
+  for (const auto& f : case_fields(c))
+    if (f.name == "feed.T") feed_T = f;
+  StabilityOptions o;
+  o.lo = 240.0;
+  o.hi = 320.0;
+  o.continuation.ds_max = 0.0133;
+  const StabilityResult r = run_stability(c, feed_T, o);
+  const Timing t = median_seconds([&] { (void)run_stability(c, feed_T, o); }, budget);
+  fmt::print("\nstability: {}, feed.T 240 K to 320 K\n",
+             std::filesystem::path(file).filename().string());
+  fmt::print("{:>8} {:>8} {:>12} {:>10} {:>10}\n", "points", "folds", "corrector it", "wall ms",
+             "CPU ms");
+  fmt::print("{:>8} {:>8} {:>12} {:>10.2f} {:>10.2f}\n", r.points, r.turning_points.size(),
+             r.corrector_iterations, t.wall * 1e3, t.cpu * 1e3);
+}
+
 }  // namespace
 
 int main(int argc, char** argv) {
@@ -381,6 +406,8 @@ int main(int argc, char** argv) {
   if (only.empty() || only == "tolerances") bench_tolerances(reference, budget);
   if (only.empty() || only == "synthetic") bench_synthetic(budget);
   if (only.empty() || only == "threads") bench_threads(reference, runs);
+  if (only.empty() || only == "stability")
+    bench_stability((root / "cases/isomerization-tank-three-states.yaml").string(), budget);
   if (only.empty() || only == "sweep") {
     bench_sweep(reference, "400degC:440degC", runs);
     bench_sweep((root / "tools/bench-cases/five-species-two-step.yaml").string(), "40degC:60degC",

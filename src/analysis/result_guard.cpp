@@ -101,6 +101,12 @@ void check_stage(const StageResult& s, const std::vector<std::string>& species) 
     g.value([&] { return at() + " T"; }, st.T);
     g.value([&] { return at() + " X"; }, st.X);
     g.flows(at, st.F);
+    for (std::size_t e = 0; e < st.eigenvalues.size(); ++e) {
+      g.value([&] { return fmt::format("{} eigenvalue {} (real part)", at(), e + 1); },
+              st.eigenvalues[e].real());
+      g.value([&] { return fmt::format("{} eigenvalue {} (imaginary part)", at(), e + 1); },
+              st.eigenvalues[e].imag());
+    }
   }
   if (const auto& e = s.equilibrium) {
     g.value("equilibrium X_ad_eq", e->X_ad_eq);

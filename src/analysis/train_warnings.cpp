@@ -8,6 +8,7 @@
 #include <variant>
 
 #include "rxtrain/analysis/result_guard.hpp"
+#include "rxtrain/analysis/stability.hpp"
 #include "rxtrain/base/error.hpp"
 #include "rxtrain/base/units.hpp"
 #include "rxtrain/models/energy_balance.hpp"
@@ -179,6 +180,29 @@ std::vector<std::string> design_warnings(const Case& c, const TrainResult& resul
       }
     }
 
+    // A stirred tank's reported state must be one the plant can hold, and
+    // the designer must know when another state is possible.
+    if (r.kind == StageKind::Cstr) {
+      const SteadyState* held = nullptr;
+      int stable_states = 0;
+      for (const auto& ss : r.steady_states) {
+        if (ss.outlet) held = &ss;
+        if (!ss.eigenvalues.empty() && ss.stable()) ++stable_states;
+      }
+      if (held && !held->eigenvalues.empty() && !held->stable())
+        out.push_back(fmt::format(
+            "stage {}: the steady state reported ({}) is not stable ({}): the tank cannot hold "
+            "it without control and will move away from it{}",
+            r.id, celsius(held->T), stability_kind_name(held->kind),
+            held->kind == StabilityKind::Oscillatory ? ", swinging in temperature" : ""));
+      else if (held && stable_states > 1)
+        out.push_back(fmt::format(
+            "stage {}: {} stable steady states at these conditions: the tank sits in a region of "
+            "multiple steady states, and a disturbance or a different start-up can move it to "
+            "another (rxtrain stability shows where they exist)",
+            r.id, stable_states));
+    }
+
     // A catalyst bed is judged by its space velocities (GHSV, WHSV), not
     // by a residence time: only empty tubes and tanks get this check.
     if (r.space_time && !r.bulk_density) {
@@ -196,9 +220,10 @@ std::vector<std::string> design_warnings(const Case& c, const TrainResult& resul
   return out;
 }
 
-TrainResult run_checked(const Case& c, const TrainOptions& options) {
+TrainResult run_checked(const Case& c, const TrainOptions& options, double ignition_margin) {
   TrainResult result = run_train(c, options);
   for (auto& w : design_warnings(c, result)) result.warnings.push_back(std::move(w));
+  for (auto& w : flip_warnings(c, result, ignition_margin)) result.warnings.push_back(std::move(w));
   check_finite(result);
   return result;
 }

@@ -237,6 +237,8 @@ class Loader {
   void read_train_target(const YAML::Node& node, Case& c) const;
   OutletTarget read_outlet_target(const YAML::Node& node, const std::string& ctx) const;
   void read_exchanger_size(const Fields& f, ExchangerSpec& x) const;
+  TankCooling read_tank_cooling(const YAML::Node& node, ReactorType type, const std::string& sid,
+                                const std::string& ctx) const;
   TemperatureLimits read_limits(const YAML::Node& node) const;
   PelletSpec read_pellet(const YAML::Node& node, const std::string& ctx) const;
   BedGeometry read_geometry(const Fields& f, const std::string& ctx) const;
@@ -1033,7 +1035,7 @@ StageSpec Loader::read_stage(const YAML::Node& node, std::size_t index) {
   }
 
   f.check({"type", "id", "volume", "catalyst", "bulk_density", "target", "heat", "activity",
-           "pellet", "effectiveness", "bed", "tubes"});
+           "pellet", "effectiveness", "bed", "tubes", "heat_capacity"});
   ReactorSpec r;
   r.id = sid;
   r.type = type == "cstr" ? ReactorType::Cstr : ReactorType::Pfr;
@@ -1079,10 +1081,22 @@ StageSpec Loader::read_stage(const YAML::Node& node, std::size_t index) {
       r.target_conversion = field(x, CaseFieldKind::StageTarget, sid);
     }
   }
-  if (const auto* n = f.find("heat"))
-    r.heat = choice(*n, "heat of " + ctx, {"adiabatic", "isothermal"}) == "isothermal"
-                 ? HeatMode::Isothermal
-                 : HeatMode::Adiabatic;
+  if (const auto* n = f.find("heat")) {
+    if (n->IsMap())
+      r.cooling = read_tank_cooling(*n, r.type, sid, ctx);
+    else
+      r.heat = choice(*n, "heat of " + ctx, {"adiabatic", "isothermal"}) == "isothermal"
+                   ? HeatMode::Isothermal
+                   : HeatMode::Adiabatic;
+  }
+  if (const auto* n = f.find("heat_capacity")) {
+    if (r.type != ReactorType::Cstr)
+      fail(*f.key_of("heat_capacity"),
+           fmt::format("{}: heat_capacity (of the vessel and catalyst) belongs to a stirred tank "
+                       "(type: cstr), where it slows the temperature's dynamics",
+                       ctx));
+    r.heat_capacity = field(*n, CaseFieldKind::TankHeatCapacity, sid);
+  }
   if (const auto* n = f.find("activity")) r.activity = field(*n, CaseFieldKind::Activity, sid);
   if (const auto* n = f.find("pellet")) r.pellet = read_pellet(*n, "pellet of " + ctx);
   if (f.find("bed") || f.find("tubes")) {
@@ -1126,6 +1140,25 @@ StageSpec Loader::read_stage(const YAML::Node& node, std::size_t index) {
                          ctx, rx.id));
     }
   return r;
+}
+
+// A cooled stirred tank's `heat: {UA: 40 kW/K, coolant: {T: 300 K}}`.
+TankCooling Loader::read_tank_cooling(const YAML::Node& node, ReactorType type,
+                                      const std::string& sid, const std::string& ctx) const {
+  if (type != ReactorType::Cstr)
+    fail(node, fmt::format("heat of {}: a mapping with UA and coolant cools a stirred tank (type: "
+                           "cstr); a tubular stage takes adiabatic or isothermal",
+                           ctx));
+  Fields g(*this, node, "heat of " + ctx);
+  g.check({"UA", "coolant"});
+  TankCooling c;
+  c.UA = field(g.need("UA", "the wall's U times its area, e.g. UA: 40 kW/K"), CaseFieldKind::TankUA,
+               sid);
+  Fields k(*this, g.need("coolant", "the coolant, e.g. coolant: {T: 300 K}"), "coolant of " + ctx);
+  k.check({"T"});
+  c.T_coolant = field(k.need("T", "the coolant's temperature, e.g. T: 27 degC"),
+                      CaseFieldKind::TankCoolantT, sid);
+  return c;
 }
 
 // An exchanger's sizing: U and its utility, both or neither. The utility

@@ -41,6 +41,14 @@ constexpr std::array kSpecs{
                   "kg/m3", "a density", false, kPositive, S::Offered},
     CaseFieldSpec{K::Activity, O::Stage, "train.{}.activity", "activity of stage {}", "1",
                   "a plain number", false, kPositive, S::Offered},
+    CaseFieldSpec{K::TankUA, O::Stage, "train.{}.heat.UA", "UA of stage {}", "W/K",
+                  "a heat-transfer capacity (U times area)", false, kPositive, S::Offered},
+    CaseFieldSpec{K::TankCoolantT, O::Stage, "train.{}.heat.coolant.T",
+                  "T of the coolant of stage {}", "K", "a temperature", false, kPositive,
+                  S::Offered},
+    CaseFieldSpec{K::TankHeatCapacity, O::Stage, "train.{}.heat_capacity",
+                  "heat_capacity of stage {}", "J/K", "a heat capacity", false, kNonNegative,
+                  S::Offered},
     CaseFieldSpec{K::ExchangerTout, O::Stage, "train.{}.T_out", "T_out of stage {}", "K",
                   "a temperature", false, kPositive, S::Offered},
     CaseFieldSpec{K::ExchangerDuty, O::Stage, "train.{}.duty", "duty of stage {}", "W", "a power",
@@ -134,6 +142,11 @@ bool present(K kind, const Case& c, int k) {
       return reactor(c, k) && reactor(c, k)->bulk_density;
     case K::Activity:
       return reactor(c, k) != nullptr;
+    case K::TankUA:
+    case K::TankCoolantT:
+      return reactor(c, k) && reactor(c, k)->cooling;
+    case K::TankHeatCapacity:
+      return reactor(c, k) && reactor(c, k)->heat_capacity;
     case K::ExchangerTout:
       return exchanger(c, k) && exchanger(c, k)->T_out;
     case K::ExchangerDuty:
@@ -347,6 +360,12 @@ double case_field_value(const Case& c, const CaseFieldSpec& spec, int index) {
       return reactor(c, index)->bulk_density.value_or(0);
     case K::Activity:
       return reactor(c, index)->activity;
+    case K::TankUA:
+      return reactor(c, index)->cooling ? reactor(c, index)->cooling->UA : 0.0;
+    case K::TankCoolantT:
+      return reactor(c, index)->cooling ? reactor(c, index)->cooling->T_coolant : 0.0;
+    case K::TankHeatCapacity:
+      return reactor(c, index)->heat_capacity.value_or(0);
     case K::ExchangerTout:
       return exchanger(c, index)->T_out.value_or(0);
     case K::ExchangerDuty:
@@ -453,6 +472,15 @@ void set_stage_field(Case& c, const CaseField& f, double v) {
       break;
     case K::PelletSize:
       r.pellet->size = v;
+      break;
+    case K::TankUA:
+      if (r.cooling) r.cooling->UA = v;
+      break;
+    case K::TankCoolantT:
+      if (r.cooling) r.cooling->T_coolant = v;
+      break;
+    case K::TankHeatCapacity:
+      r.heat_capacity = v;
       break;
     default:
       break;

@@ -61,7 +61,26 @@ struct Checker {
   void adsorption(const Reaction& rx) const;
   void energy_and_catalyst() const;
   void bed(const ReactorSpec& r) const;
+  void tank_heat(const ReactorSpec& r) const;
 };
+
+// The loader's checks of a stirred tank's cooling and heat capacity.
+void Checker::tank_heat(const ReactorSpec& r) const {
+  if ((r.cooling || r.heat_capacity) && r.type != ReactorType::Cstr)
+    fail(r.where, fmt::format("stage {}: cooling by UA and a vessel heat capacity belong to a "
+                              "stirred tank (type: cstr)",
+                              r.id));
+  if (r.cooling && !(r.cooling->UA > 0 && std::isfinite(r.cooling->UA)))
+    fail(r.where,
+         fmt::format("UA of stage {} must be positive, got {:g} W/K", r.id, r.cooling->UA));
+  if (r.cooling && !(r.cooling->T_coolant > 0 && std::isfinite(r.cooling->T_coolant)))
+    fail(r.where, fmt::format("T of the coolant of stage {} must be above absolute zero, got "
+                              "{:g} K",
+                              r.id, r.cooling->T_coolant));
+  if (r.heat_capacity && !(*r.heat_capacity >= 0 && std::isfinite(*r.heat_capacity)))
+    fail(r.where, fmt::format("heat_capacity of stage {} must not be negative, got {:g} J/K", r.id,
+                              *r.heat_capacity));
+}
 
 // The loader's checks of a bed, its pellet and the fluid's viscosity.
 void Checker::bed(const ReactorSpec& r) const {
@@ -243,6 +262,7 @@ void Checker::stages() const {
                        "target",
                        r.id));
     bed(r);
+    tank_heat(r);
     if (!r.catalyst_mass) continue;
     if (!r.bulk_density)
       fail(r.where, fmt::format("stage {} gives catalyst but is missing \"bulk_density\", which "

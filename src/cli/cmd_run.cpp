@@ -1,5 +1,7 @@
 // rxtrain run CASE [--json PATH] [--csv DIR] [--report DIR] [--rtol R] [--limit-margin DT]
 //                 [--approach-window 100K]
+#include <fmt/format.h>
+
 #include <cstdio>
 #include <filesystem>
 #include <memory>
@@ -31,6 +33,9 @@ struct RunOptions {
   double rtol = CvodeOptions{}.rtol;
   std::string limit_margin;
   std::string approach_window;  // a temperature difference; empty: the default
+  // A stirred tank whose ignition or extinction feed temperature lies this
+  // close to the case's is told (kDefaultIgnitionMargin).
+  std::string ignition_margin = fmt::format("{:g} K", kDefaultIgnitionMargin);
 };
 
 int run(const RunOptions& o) {
@@ -53,7 +58,18 @@ int run(const RunOptions& o) {
                       o.approach_window + "\"");
     options.solvers.equilibrium.approach_T_window = w;
   }
-  const TrainResult result = run_checked(c, options);  // no NaN or Inf may reach an output
+  double flip_margin = 0;
+  try {
+    flip_margin =
+        units.difference_to_si(o.ignition_margin, SiUnit::of("K", "a temperature difference"));
+  } catch (const UnitError& e) {
+    throw UnitError("--ignition-margin: " + std::string(e.what()));
+  }
+  if (!(flip_margin >= 0))
+    throw UnitError("--ignition-margin: the margin must not be negative, got \"" +
+                    o.ignition_margin + "\"");
+  // No NaN or Inf may reach an output.
+  const TrainResult result = run_checked(c, options, flip_margin);
 
   // Every output is rendered before any is written, and all are renamed
   // into place together: a failure leaves no half-written file behind.
@@ -96,6 +112,10 @@ Action setup_run(CLI::App& app) {
                  "much, and the cell says why it is empty");
   app.add_option("--rtol", o->rtol, "Relative tolerance of the ODE integrator")
       ->check(CLI::Range(1e-14, 1e-3))
+      ->capture_default_str();
+  app.add_option("--ignition-margin", o->ignition_margin,
+                 "Warn when a stirred tank's ignition or extinction feed temperature lies within "
+                 "this of the case's (a temperature difference; 0 K: no check)")
       ->capture_default_str();
   add_limit_margin_option(app, o->limit_margin);
   return [o] { return run(*o); };

@@ -49,6 +49,11 @@ constexpr CommandEntry kCommands[] = {
      rxtrain::cli::setup_sweep},
     {"merge", "Merge the CSVs of the shards of one sweep into the CSV of the whole study",
      rxtrain::cli::setup_merge},
+    {"stability",
+     "Where a stirred tank can flip: its steady states and their stability as one case field "
+     "varies (continuation), the ignition and extinction points and the hysteresis window; for "
+     "screening and study, designs to be confirmed by licensed engineers",
+     rxtrain::cli::setup_stability},
 };
 
 // Options shown with a word of their own in --help instead of the library's
@@ -60,6 +65,7 @@ struct TypeWord {
 };
 constexpr TypeWord kTypeWords[] = {
     {"--limit-margin", "KELVIN"},
+    {"--ignition-margin", "KELVIN"},
     {"--margin", "KELVIN"},
     {"--approach-window", "KELVIN"},
     {"--return-to", "inlet|max-rate"},

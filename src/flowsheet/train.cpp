@@ -77,8 +77,10 @@ void add_reaches(const Case& c, const TrainOptions& options, TrainResult& result
     spec.id = r.id;
     // The pellets too: the reach is on the rates the stage runs with.
     for (const auto& st : c.train)
-      if (const auto* rs = std::get_if<ReactorSpec>(&st); rs && rs->id == r.id)
+      if (const auto* rs = std::get_if<ReactorSpec>(&st); rs && rs->id == r.id) {
         spec.pellet = rs->pellet;
+        spec.cooling = rs->cooling;  // a cooled tank's branch is its own
+      }
     spec.type = r.kind == StageKind::Cstr ? ReactorType::Cstr : ReactorType::Pfr;
     spec.heat = *r.heat;
     spec.bulk_density = r.bulk_density;

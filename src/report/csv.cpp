@@ -5,6 +5,8 @@
 #include <cmath>
 #include <optional>
 
+#include "rxtrain/report/text_format.hpp"
+
 namespace rxtrain {
 
 namespace {
@@ -33,8 +35,7 @@ std::string stages_csv(const TrainResult& result) {
   for (const auto& p : result.products) out += fmt::format(",yield_{0},selectivity_{0}", p);
   out += "\n";
   for (const auto& r : result.stages) {
-    std::string heat;
-    if (r.heat) heat = heat_mode_name(*r.heat);
+    const std::string heat = heat_text(r, "");
     out += fmt::format("{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{}", r.id,
                        stage_kind_name(r.kind), heat, r.sized ? "yes" : "no", cell(r.volume),
                        cell(r.catalyst_mass), cell(r.space_time), cell(r.ghsv), cell(r.whsv),

@@ -25,8 +25,7 @@ std::string stage_table(const TrainResult& r) {
     h += fmt::format("<th>{}</th>", xml_escape(head));
   h += "</tr>\n";
   for (const auto& s : r.stages) {
-    std::string heat = "-";
-    if (s.heat) heat = heat_mode_name(*s.heat);
+    const std::string heat = heat_text(s);
     h += "<tr>" + cell(s.id, false) + cell(stage_kind_name(s.kind), false) + cell(heat, false) +
          cell(volume_text(s.volume) + (s.sized ? "*" : ""), true) +
          cell(volume_text(s.catalyst_mass), true) + cell(sig_text(s.space_time), true) +
@@ -44,6 +43,30 @@ std::string stage_table(const TrainResult& r) {
          "fraction).</p>\n";
   if (const auto note = approach_T_footnote(r); !note.empty())
     h += "<p>" + xml_escape(note) + ".</p>\n";
+  return h;
+}
+
+// Every steady state of each stirred tank and its stability (nothing
+// without tanks).
+std::string steady_state_table(const TrainResult& r) {
+  std::string rows;
+  for (const auto& s : r.stages)
+    for (const auto& ss : s.steady_states) {
+      const bool known = !ss.eigenvalues.empty();
+      rows += "<tr>" + cell(s.id, false) + temperature_cell(ss.T) +
+              cell(conversion_text(ss.X), true) + cell(ss.outlet ? "yes" : "", false) +
+              cell(known ? std::string(stability_kind_name(ss.kind)) : "-", false) +
+              cell(known ? eigenvalues_text(ss.eigenvalues) : "-", false) + "</tr>\n";
+    }
+  if (rows.empty()) return {};
+  std::string h = "<h2 id=\"steady-states\">Steady states of the stirred tanks</h2>\n<table>\n<tr>";
+  for (const char* head : {"stage", "T (°C / K)", "X", "outlet", "stability", "eigenvalues (1/s)"})
+    h += fmt::format("<th>{}</th>", xml_escape(head));
+  h += "</tr>\n" + rows + "</table>\n";
+  h += "<p>Outlet: the steady state reached from the feed. Stability from the eigenvalues of "
+       "the tank's balances linearized at each state (docs/stability.md): stable, saddle (a "
+       "small upset moves the tank to another state), unstable, or oscillatory (the tank swings "
+       "about the state).</p>\n";
   return h;
 }
 
@@ -183,6 +206,7 @@ std::string run_report_html(const Case& c, const TrainResult& r, const std::vect
       h += "<p>" + xml_escape(effectiveness_sentence(s, r.reactions)) + ".</p>\n";
   for (const auto& s : r.stages)
     if (s.reach && s.heat) h += "<p>" + xml_escape(reach_sentence(s, r.species)) + ".</p>\n";
+  h += steady_state_table(r);
   h += product_table(r);
   h += space_velocity_table(r);
   h += bed_table(r);

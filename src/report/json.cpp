@@ -158,7 +158,11 @@ json stage(const TrainResult& t, const StageResult& r) {
   json s;
   s["id"] = r.id;
   s["type"] = stage_kind_name(r.kind);
-  s["heat"] = r.heat ? json(heat_mode_name(*r.heat)) : json(nullptr);
+  s["heat"] = r.cooling ? json("cooled") : r.heat ? json(heat_mode_name(*r.heat)) : json(nullptr);
+  // A cooled stirred tank: its wall's UA (W/K) and the coolant's T (K).
+  s["cooling"] = r.cooling ? json{{"UA", json_number(r.cooling->UA)},
+                                  {"T_coolant", json_number(r.cooling->T_coolant)}}
+                           : json(nullptr);
   s["sized"] = r.sized;
   // The outlet purity the stage was sized to (null: none).
   s["target_outlet"] =
@@ -199,9 +203,21 @@ json stage(const TrainResult& t, const StageResult& r) {
   const auto closure = mass_balance_closure(r.inlet, r.outlet, molar_mass);
   s["mass_balance"] = closure ? json_number(*closure) : json(nullptr);
   json states = json::array();
-  for (const auto& ss : r.steady_states)
-    states.push_back(
-        {{"T", json_number(ss.T)}, {"conversion", json_number(ss.X)}, {"flows", flows(ids, ss.F)}});
+  for (const auto& ss : r.steady_states) {
+    // Each state's stability: the eigenvalues (1/s) of the tank's dynamic
+    // balances linearized there, [re, im] each (docs/stability.md).
+    json eig = json::array();
+    for (const auto& e : ss.eigenvalues)
+      eig.push_back({json_number(e.real()), json_number(e.imag())});
+    const bool known = !ss.eigenvalues.empty();
+    states.push_back({{"T", json_number(ss.T)},
+                      {"conversion", json_number(ss.X)},
+                      {"flows", flows(ids, ss.F)},
+                      {"outlet", ss.outlet},
+                      {"stable", known ? json(ss.stable()) : json(nullptr)},
+                      {"kind", known ? json(stability_kind_name(ss.kind)) : json(nullptr)},
+                      {"eigenvalues", eig}});
+  }
   s["steady_states"] = r.kind == StageKind::Cstr ? states : json(nullptr);
   s["profile"] = profile(ids, t.reactions, r);
   // Catalyst pellets with D_eff: each reaction's effectiveness factor over

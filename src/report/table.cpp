@@ -116,6 +116,27 @@ std::string bed_columns(const TrainResult& result) {
          render_columns(rows, 1) + sized;
 }
 
+namespace {
+
+// Every steady state of each stirred tank and its stability (nothing
+// without tanks).
+std::string steady_state_table(const TrainResult& result) {
+  std::vector<std::vector<std::string>> rows;
+  for (const auto& r : result.stages)
+    for (const auto& ss : r.steady_states)
+      rows.push_back({r.id, celsius_text(ss.T), conversion_text(ss.X), ss.outlet ? "yes" : "",
+                      ss.eigenvalues.empty() ? "-" : std::string(stability_kind_name(ss.kind)),
+                      ss.eigenvalues.empty() ? "-" : eigenvalues_text(ss.eigenvalues)});
+  if (rows.empty()) return {};
+  rows.insert(rows.begin(), {"stage", "T °C", "X", "outlet", "stability", "eigenvalues 1/s"});
+  return "\nsteady states of the stirred tanks (outlet: the one reached from the feed; "
+         "stability from the eigenvalues of the tank's balances linearized there, "
+         "docs/stability.md)\n" +
+         render_columns(rows, 1);
+}
+
+}  // namespace
+
 std::string format_stage_table(const TrainResult& result) {
   std::string out;
   out += result.title + "\n";
@@ -130,8 +151,7 @@ std::string format_stage_table(const TrainResult& result) {
   bool any_sized = false;
   for (const auto& r : result.stages) {
     const bool exchanger = r.kind == StageKind::Exchanger;
-    std::string heat = "-";
-    if (r.heat) heat = heat_mode_name(*r.heat);
+    const std::string heat = heat_text(r);
     std::string V = volume_text(r.volume);
     if (r.sized) {
       V += "*";
@@ -173,6 +193,7 @@ std::string format_stage_table(const TrainResult& result) {
     if (!r.effectiveness.empty()) out += "  " + effectiveness_sentence(r, result.reactions) + "\n";
   for (const auto& r : result.stages)
     if (r.reach && r.heat) out += "  " + reach_sentence(r, result.species) + "\n";
+  out += steady_state_table(result);
 
   // Space velocities only where they apply (GHSV at 0 °C, 1 atm).
   // WHSV and LHSV on the case's space_velocity_basis, named once when every

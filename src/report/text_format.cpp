@@ -1,6 +1,7 @@
 #include "rxtrain/report/text_format.hpp"
 
 #include <fmt/format.h>
+#include <fmt/ranges.h>
 
 #include <algorithm>
 #include <cmath>
@@ -20,6 +21,24 @@ std::string fixed_text(double v, int digits) {
 
 std::string fixed_text(const std::optional<double>& v, int digits) {
   return v ? fixed_text(*v, digits) : "-";
+}
+
+std::string heat_text(const StageResult& r, const char* none) {
+  if (r.cooling) return "cooled";
+  return r.heat ? std::string(heat_mode_name(*r.heat)) : std::string(none);
+}
+
+std::string eigenvalue_text(const std::complex<double>& e) {
+  if (!std::isfinite(e.real()) || !std::isfinite(e.imag())) return "-";
+  if (e.imag() == 0) return fmt::format("{:.4g}", e.real());
+  return fmt::format("{:.4g} ± {:.4g}i", e.real(), std::abs(e.imag()));
+}
+
+std::string eigenvalues_text(const std::vector<std::complex<double>>& eigenvalues) {
+  std::vector<std::string> parts;
+  for (const auto& e : eigenvalues)
+    if (e.imag() >= 0) parts.push_back(eigenvalue_text(e));
+  return fmt::format("{}", fmt::join(parts, ", "));
 }
 
 std::string sig_text(const std::optional<double>& v) {
@@ -124,7 +143,7 @@ std::string conversion_text(const std::optional<double>& X) {
 std::string volume_text(const std::optional<double>& v) { return v ? plain_sig_text(*v, 5) : "-"; }
 
 std::string duty_text(const StageResult& r) {
-  if (r.kind != StageKind::Exchanger && r.heat == HeatMode::Adiabatic) return "-";
+  if (r.kind != StageKind::Exchanger && r.heat == HeatMode::Adiabatic && !r.cooling) return "-";
   return fixed_text(r.duty / 1e3, 2);
 }
 

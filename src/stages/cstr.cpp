@@ -15,6 +15,7 @@
 #include "rxtrain/base/units.hpp"
 #include "rxtrain/models/energy_balance.hpp"
 #include "rxtrain/models/tank_balances.hpp"
+#include "rxtrain/models/tank_stability.hpp"
 #include "rxtrain/solvers/scalar_root.hpp"
 #include "rxtrain/stages/exchanger.hpp"
 
@@ -459,7 +460,30 @@ Rating rate_tank(const Mechanism& mech, HeatMode heat, const Stream& inlet, doub
     extra.solves += ws.iso_solver.solves();
     if (r.reached) first = *r.reached;
   }
-  return rate_all(ws.solver, inlet, V, starts_from(options.guesses, first, inlet, limit), options);
+  std::vector<State> starts = starts_from(options.guesses, first, inlet, limit);
+  if (heat == HeatMode::Adiabatic) {
+    // Where the feed is too cold for the plug-flow limit to light off, that
+    // limit is cold too, and the ignited state of the tank (its outlet
+    // near the adiabatic rise) would be missed: each reaction run alone
+    // to nearly its whole extent on the adiabatic line, and points
+    // between, are further starts.
+    for (int j = 0; j < mech.n_reactions(); ++j) {
+      const auto& nu = mech.reactions()[j].nu;
+      double xi = std::numeric_limits<double>::infinity();
+      for (int i = 0; i < mech.n_species(); ++i)
+        if (nu[i] < 0) xi = std::min(xi, inlet.F[i] / -nu[i]);
+      if (!(xi > 0) || !std::isfinite(xi)) continue;
+      try {
+        const Stream o = stream_after_extent(mech, inlet, HeatMode::Adiabatic, j, 0.999 * xi);
+        const State burnt{o.F, o.T};
+        starts.push_back(burnt);
+        for (double f : kBetween) starts.push_back(between(first, burnt, f));
+      } catch (const SolverError&) {
+        // No temperature closes that balance: not a start.
+      }
+    }
+  }
+  return rate_all(ws.solver, inlet, V, starts, options);
 }
 
 // "300.72 K, 334.79 K and 499.99 K"
@@ -525,7 +549,7 @@ struct Tank {
         solver(ws.solver),
         limit(mech, (ws.beta = rate_multipliers(mech, spec)), inlet, spec.heat, ws.pfr,
               options.pfr) {
-    balances.reset(mech, ws.beta, spec.heat, inlet);
+    balances.reset(mech, ws.beta, spec.heat, inlet, spec.cooling);
     solver.reset(balances, options.newton);
   }
 
@@ -776,18 +800,35 @@ struct Tank {
     if (spec.bulk_density) res.catalyst_mass = V * *spec.bulk_density;
     res.outlet = Stream{out.T, inlet.P, out.F};
     for (auto& f : res.outlet.F) f = std::max(f, 0.0);  // solver round-off below zero
-    res.duty = spec.heat == HeatMode::Isothermal ? balances.duty(out.F.data(), out.T, V) : 0.0;
+    res.cooling = spec.heat == HeatMode::Adiabatic ? spec.cooling : std::nullopt;
+    res.duty = spec.heat == HeatMode::Isothermal ? balances.duty(out.F.data(), out.T, V)
+               : res.cooling                     ? balances.wall_duty(out.T)
+                                                 : 0.0;
     res.conversion = basis.conversion(res.outlet);
     res.T_max = std::max(inlet.T, out.T);
     res.T_min = std::min(inlet.T, out.T);
     res.profile.push_back(ProfilePoint{0.0, inlet.T, X_in, inlet.F, {}});
     res.profile.push_back(ProfilePoint{V, res.outlet.T, res.conversion, res.outlet.F, {}});
+    std::vector<std::string> stability_notes;
     for (const auto& st : states) {
       SteadyState ss;
       ss.T = st.T;
       ss.F = st.F;
       for (auto& f : ss.F) f = std::max(f, 0.0);
       ss.X = basis.conversion(ss.F.data());
+      ss.outlet = same_state(st, out, options.distinct_T, solver);
+      // The state stands without its stability (said so) rather than the
+      // run failing over it.
+      try {
+        const TankStability stab =
+            tank_stability(balances, ss.F.data(), ss.T, V, spec.heat_capacity.value_or(0.0));
+        ss.eigenvalues = stab.eigenvalues;
+        ss.kind = stab.kind;
+      } catch (const SolverError& e) {
+        stability_notes.push_back(
+            fmt::format("stage {}: the stability of the steady state at {} was not computed ({})",
+                        spec.id, temperature_words(ss.T), e.what()));
+      }
       res.steady_states.push_back(std::move(ss));
     }
     res.stats.newton_iters = solver.iterations() + extra.iterations;
@@ -798,6 +839,7 @@ struct Tank {
                         : "",
                     solver.solves() + extra.solves, res.stats.newton_iters, states.size());
     res.warnings = warnings;
+    res.warnings.insert(res.warnings.end(), stability_notes.begin(), stability_notes.end());
     add_space_velocities(mech, res);
     return res;
   }
@@ -856,7 +898,7 @@ StageReach cstr_reach(const Mechanism& mech, const ReactorSpec& spec, const Stre
                       const CstrOptions& options) {
   Buffers& ws = workspace.state();
   ws.beta = rate_multipliers(mech, spec);
-  ws.balances.reset(mech, ws.beta, spec.heat, inlet);
+  ws.balances.reset(mech, ws.beta, spec.heat, inlet, spec.cooling);
   ws.solver.reset(ws.balances, options.newton);
   LimitOnce limit(mech, ws.beta, inlet, spec.heat, ws.pfr, options.pfr);
   const double V_end =
@@ -913,8 +955,11 @@ StageReach cstr_reach(const Mechanism& mech, const ReactorSpec& spec, const Stre
     }
   }
   // One reaction: the tank's outlet runs along the same adiabatic (or
-  // isothermal) line as a tube's, to the same equilibrium point.
-  exact_equilibrium_end(mech, inlet, spec.heat, basis, reach);
+  // isothermal) line as a tube's, to the same equilibrium point. A cooled
+  // tank's outlet is on neither line (the wall takes heat out): its end
+  // stays the one the continuation approached.
+  if (!(spec.cooling && spec.heat == HeatMode::Adiabatic))
+    exact_equilibrium_end(mech, inlet, spec.heat, basis, reach);
   finish_reach(reach, m.V);
   return reach;
 }

@@ -45,6 +45,7 @@ namespace {
 ReactorSpec with_heat(ReactorSpec r, LayoutHeat heat) {
   if (heat == LayoutHeat::Adiabatic) r.heat = HeatMode::Adiabatic;
   if (heat == LayoutHeat::Isothermal) r.heat = HeatMode::Isothermal;
+  if (heat != LayoutHeat::AsWritten) r.cooling.reset();  // a cooled tank is neither
   return r;
 }
 
@@ -64,7 +65,11 @@ bool same_spec(const ReactorSpec& a, const ReactorSpec& b) {
   };
   return a.type == b.type && a.heat == b.heat && a.volume == b.volume &&
          a.catalyst_mass == b.catalyst_mass && a.bulk_density == b.bulk_density &&
-         a.target_conversion == b.target_conversion && a.activity == b.activity && same_bed(a, b);
+         a.target_conversion == b.target_conversion && a.activity == b.activity &&
+         a.cooling.has_value() == b.cooling.has_value() &&
+         (!a.cooling ||
+          (a.cooling->UA == b.cooling->UA && a.cooling->T_coolant == b.cooling->T_coolant)) &&
+         a.heat_capacity == b.heat_capacity && same_bed(a, b);
 }
 
 // The case with its reactors in `order` (indices into `reactors`) placed
@@ -218,7 +223,7 @@ CompareResult compare_layouts(const Case& c, const CompareOptions& options) {
   for (const auto& r : reactors) {
     out.case_order.push_back(r.id);
     if (r.target_conversion) X_sized = std::max(X_sized.value_or(0.0), *r.target_conversion);
-    all_adiabatic = all_adiabatic && r.heat == HeatMode::Adiabatic;
+    all_adiabatic = all_adiabatic && r.heat == HeatMode::Adiabatic && !r.cooling;
     all_isothermal = all_isothermal && r.heat == HeatMode::Isothermal;
   }
   out.sized = X_sized.has_value();

@@ -11,6 +11,9 @@
 //  * tubular beds whose last 10 % of volume adds under 0.01 conversion
 //    (catalyst, or volume in a tube without catalyst, wasted near
 //    equilibrium or complete conversion);
+//  * a stirred tank whose reported steady state is not stable (saddle,
+//    unstable, oscillatory), or that has more than one stable steady state
+//    (a multiple-steady-state region);
 //  * space times outside the usual ranges, for tanks and tubes without
 //    catalyst: stirred tanks about 10 min to 4 h, empty tubular reactors
 //    about 0.5 s to 1 h (common practice, no source); catalyst beds are
@@ -39,10 +42,18 @@ std::optional<double> adiabatic_temperature_change(const Case& c);
 
 std::vector<std::string> design_warnings(const Case& c, const TrainResult& result);
 
+// How close (K) a stirred tank's ignition or extinction feed temperature
+// may lie to the case's before `run` says so (analysis/stability.hpp,
+// flip_warnings): 10 K, common practice, no source (a feed preheater's
+// swing in an upset is of that order).
+inline constexpr double kDefaultIgnitionMargin = 10.0;
+
 // What `rxtrain run` computes, for every caller that wants the same answer
 // (the command line, the Python module): run_train, then the design
-// warnings appended to the result's, then the finite-number guard
-// (result_guard.hpp; throws SolverError on a NaN or Inf).
-TrainResult run_checked(const Case& c, const TrainOptions& options);
+// warnings and the stirred tanks' flip warnings within `ignition_margin`
+// (K; 0: not checked) appended to the result's, then the finite-number
+// guard (result_guard.hpp; throws SolverError on a NaN or Inf).
+TrainResult run_checked(const Case& c, const TrainOptions& options,
+                        double ignition_margin = kDefaultIgnitionMargin);
 
 }  // namespace rxtrain

@@ -28,6 +28,14 @@ struct OutletTarget {
   double x = 0;      // mole fraction, 0 < x < the inlet's
 };
 
+// A stirred tank's cooling (`heat: {UA: 40 kW/K, coolant: {T: 300 K}}` on a
+// cstr): the wall takes UA (T - T_coolant) out of the contents, W. The
+// coolant's temperature is constant (a large or boiling coolant flow).
+struct TankCooling {
+  double UA = 0;         // W/K, positive
+  double T_coolant = 0;  // K
+};
+
 // A reactor stage. Exactly one of volume / catalyst_mass / target_conversion
 // / target_outlet is set (catalyst_mass needs bulk_density; volume =
 // catalyst_mass / bulk_density).
@@ -54,6 +62,13 @@ struct ReactorSpec {
   // The fluid's viscosity (top-level `fluid`), copied to every reactor by
   // the loader so that a stage runs from its spec alone.
   std::optional<ViscosityLaw> viscosity;
+  // Stirred tanks only. A cooled tank (heat = Adiabatic with cooling set:
+  // its energy balance closes with the wall's heat; see TankCooling).
+  std::optional<TankCooling> cooling;
+  // Stirred tanks only: the heat capacity of the vessel and catalyst, J/K,
+  // added to the contents' in the dynamic energy balance (it moves the
+  // eigenvalues of a steady state, never the state itself). Absent: 0.
+  std::optional<double> heat_capacity;
   bool has_pressure_drop() const {
     return type == ReactorType::Pfr && geometry && pellet && viscosity;
   }

@@ -9,6 +9,7 @@
 // sweeps):
 //   feed.T  feed.P  feed.flow  feed.flows.ID  feed.composition.ID
 //   train.ID.volume | catalyst | target.conversion | bulk_density | activity | T_out | duty
+//   train.ID.heat.UA | heat.coolant.T | heat_capacity      (stirred tanks, as given)
 //   reactions.ID.rate.A | rate.Ea | rate.T_ref
 //   reactions.ID.equilibrium.K | equilibrium.T | equilibrium.dH  (van 't Hoff form)
 //   species.ID.mw | species.ID.density
@@ -55,8 +56,11 @@ enum class CaseFieldKind {
   Catalyst,      // setting it sets the volume to catalyst / bulk_density
   Volume,        // a reactor given by volume (not by catalyst)
   StageTarget,
-  BulkDensity,  // with catalyst given, the mass stays and the volume follows
-  Activity,     // a reactor's catalyst activity; every reactor has one (default 1)
+  BulkDensity,       // with catalyst given, the mass stays and the volume follows
+  Activity,          // a reactor's catalyst activity; every reactor has one (default 1)
+  TankUA,            // a cooled stirred tank's wall UA
+  TankCoolantT,      // a cooled stirred tank's coolant temperature
+  TankHeatCapacity,  // a stirred tank's vessel and catalyst heat capacity
   ExchangerTout,
   ExchangerDuty,
   BedDiameter,     // a vessel's diameter (not with `diameter: auto`)

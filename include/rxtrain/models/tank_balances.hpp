@@ -7,8 +7,10 @@
 #pragma once
 
 #include <Eigen/Core>
+#include <optional>
 #include <vector>
 
+#include "rxtrain/case/case.hpp"
 #include "rxtrain/chem/stream.hpp"
 #include "rxtrain/kinetics/mechanism.hpp"
 
@@ -17,15 +19,19 @@ namespace rxtrain::detail {
 // The tank's balances in SI, unscaled, with R_j = beta_j r_j:
 //   g_i = F_i,in - F_i + V sum_j nu_ij R_j                                 (mol/s)
 //   adiabatic:  g_n = sum_i F_i,in (hs_i(T) - hs_i(T_in)) + V sum_j R_j dH_j(T)   (W)
+//   cooled:     g_n = (adiabatic g_n) + UA (T - T_coolant)                 (W)
 //   isothermal: g_n = T - T_in                                             (K)
 // The adiabatic row is sum F_in h(T_in) = sum F h(T) with the mole balances
 // substituted (dH_j(T) = dH_298 + sum_i nu_ij hs_i(T), kinetics.hpp).
 // Kept in a CstrWorkspace: reset() for each tank reuses the buffers.
 class CstrBalances {
  public:
+  // `cooling` (adiabatic tanks only): the wall's UA and coolant.
   void reset(const Mechanism& mech, const std::vector<double>& beta, HeatMode heat,
-             const Stream& inlet) {
+             const Stream& inlet, std::optional<TankCooling> cooling = std::nullopt) {
     mech_ = &mech;
+    UA_ = cooling && heat == HeatMode::Adiabatic ? cooling->UA : 0.0;
+    T_coolant_ = cooling ? cooling->T_coolant : 0.0;
     beta_ = beta;
     heat_ = heat;
     in_ = inlet;
@@ -67,7 +73,7 @@ class CstrBalances {
       double h = 0;
       for (int i = 0; i < n_; ++i)
         h += in_.F[i] * (mech.species()[i].thermo.h_sensible(T) - hs_in_[i]);
-      g[n_] = h + V * q;
+      g[n_] = h + V * q + UA_ * (T - T_coolant_);
     } else {
       g[n_] = T - in_.T;
     }
@@ -93,10 +99,28 @@ class CstrBalances {
       }
     }
     if (heat_ == HeatMode::Adiabatic)
-      d(n_, n_) += mech.heat_capacity_flow(T, in_.F.data());
+      d(n_, n_) += mech.heat_capacity_flow(T, in_.F.data()) + UA_;
     else
       d(n_, n_) = 1.0;
   }
+
+  // The wall's UA, W/K (0: no cooling), and the coolant's T, K.
+  double UA() const { return UA_; }
+  double T_coolant() const { return T_coolant_; }
+
+  // The heat the wall of a cooled tank adds to the stream at T: -UA (T -
+  // T_coolant), W.
+  double wall_duty(double T) const { return -UA_ * (T - T_coolant_); }
+
+  // The tank's dynamic balances linearized at a steady state (F, T) of
+  // volume V: J = d(dx/dt)/dx on x = [N_1..N_n, T], holdups N_i in mol,
+  // (n + 1) x (n + 1), in 1/s. `C_vessel` (J/K) adds to the contents' heat
+  // capacity. Adiabatic or cooled tanks only (an isothermal tank's T is
+  // held by its duty: see species_jacobian). Derivation and the outflow
+  // rules: docs/stability.md.
+  void dynamic_jacobian(const double* F, double T, double V, double C_vessel, Eigen::MatrixXd& J);
+  // An isothermal tank's: n x n, on the holdups at fixed T.
+  void species_jacobian(const double* F, double T, double V, Eigen::MatrixXd& J);
 
   // Heat that holds the contents at T: V sum_j R_j dH_j(T), W (heat added
   // to the stream; negative for a cooled exothermic tank).
@@ -118,6 +142,7 @@ class CstrBalances {
   std::vector<double> beta_;
   HeatMode heat_ = HeatMode::Adiabatic;
   Stream in_;
+  double UA_ = 0, T_coolant_ = 0;
   int n_ = 0, nr_ = 0;
   std::vector<double> hs_in_;
   // Scratch of eval(), duty() and volumetric_rate().

@@ -21,6 +21,16 @@ namespace rxtrain {
 // falls back to. r.reach and r.heat must be set.
 std::string reach_sentence(const StageResult& r, const std::vector<std::string>& species);
 
+// A stage's heat as every report names it: "adiabatic", "isothermal",
+// "cooled" (a cooled stirred tank); `none` for an exchanger.
+std::string heat_text(const StageResult& r, const char* none = "-");
+
+// An eigenvalue, 1/s, four significant digits: "-0.2541", "0.2416 ± 2.15i"
+// (a complex pair once, by its member with the positive imaginary part).
+std::string eigenvalue_text(const std::complex<double>& e);
+// Every eigenvalue of a steady state, pairs once: "0.2416 ± 2.15i, -0.01".
+std::string eigenvalues_text(const std::vector<std::complex<double>>& eigenvalues);
+
 // `v` with `digits` decimals; "-" when not finite or empty.
 std::string fixed_text(double v, int digits);
 std::string fixed_text(const std::optional<double>& v, int digits);

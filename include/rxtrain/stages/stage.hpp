@@ -3,6 +3,7 @@
 // a profile point is V * bulk_density where a bulk density is given.
 #pragma once
 
+#include <complex>
 #include <limits>
 #include <optional>
 #include <span>
@@ -14,6 +15,7 @@
 #include "rxtrain/models/energy_balance.hpp"
 #include "rxtrain/models/equilibrium.hpp"
 #include "rxtrain/models/heat_exchange.hpp"
+#include "rxtrain/models/tank_stability.hpp"
 #include "rxtrain/solvers/cvode.hpp"
 
 namespace rxtrain {
@@ -44,11 +46,17 @@ struct EffectivenessRange {
   double min = 1, max = 1, outlet = 1;
 };
 
-// One solution of a stirred tank's balances.
+// One solution of a stirred tank's balances, and its stability (the
+// eigenvalues of the tank's dynamic balances linearized there,
+// models/tank_stability.hpp; empty where they were not computed).
 struct SteadyState {
   double T = 0;
   double X = 0;
   std::vector<double> F;
+  bool outlet = false;                            // the state the stage reports as its outlet
+  std::vector<std::complex<double>> eigenvalues;  // 1/s
+  StabilityKind kind = StabilityKind::Stable;     // meaningful with eigenvalues
+  bool stable() const { return kind == StabilityKind::Stable; }
 };
 
 // Why a reactor's path (or a tank's branch) ends where it does as the
@@ -159,7 +167,9 @@ struct StageResult {
   std::string id;
   StageKind kind = StageKind::Pfr;
   std::optional<HeatMode> heat;  // reactors only
-  bool sized = false;            // volume found from a target
+  // A cooled stirred tank (heat is Adiabatic then): its wall and coolant.
+  std::optional<TankCooling> cooling;
+  bool sized = false;  // volume found from a target
   // Sized to an outlet purity: the target it was sized to (the outlet
   // stream says what it reached).
   std::optional<OutletTarget> outlet_target;

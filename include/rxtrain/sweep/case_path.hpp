@@ -17,6 +17,8 @@
 //                                        reactors, as given in the case; with
 //                                        catalyst, volume = catalyst / bulk_density
 //   train.ID.T_out | duty                exchangers, as given
+//   train.ID.heat.UA | heat.coolant.T | heat_capacity
+//                                        stirred tanks, as given
 //   reactions.ID.rate.A | rate.Ea | rate.T_ref
 //   reactions.ID.equilibrium.K | equilibrium.dH   (van 't Hoff form)
 //   species.ID.density                   liquid phase

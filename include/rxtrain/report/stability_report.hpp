@@ -1,0 +1,35 @@
+// The outputs of `rxtrain stability`: the terminal text (turning points,
+// hysteresis window, branches), JSON in the shape issue 20 fixes, a CSV of
+// every point, and the report page with the S-shaped curve (stable
+// branches solid, unstable dashed).
+#pragma once
+
+#include <string>
+#include <vector>
+
+#include "rxtrain/analysis/stability.hpp"
+#include "rxtrain/case/case.hpp"
+#include "rxtrain/report/figures.hpp"
+#include "rxtrain/report/html_page.hpp"
+
+namespace rxtrain {
+
+std::string stability_text(const std::string& title, const StabilityResult& r);
+// {"param", "unit", "branches": [{"stable", "points": [{"value", "T",
+// "conversion"}]}], "turning_points": [{"kind", "value", "T"}],
+// "sensitivity": [], "critical": null}, SI.
+std::string stability_json_text(const StabilityResult& r);
+// branch,stable,kind,value,T_K,conversion: one row per point, SI.
+std::string stability_csv_text(const StabilityResult& r);
+// The S-curve: the tank's temperature against the field (°C for
+// temperatures), stable solid, unstable dashed, turning points marked.
+Figure stability_figure(const StabilityResult& r);
+// The heat-generation and heat-removal curves at the case's values (kW
+// against °C), crossing at the steady states; the S-curve figure alone
+// where the tank has none (isothermal).
+std::vector<Figure> stability_figures(const StabilityResult& r);
+std::string stability_report_html(const Case& c, const StabilityResult& r,
+                                  const std::vector<Figure>& figures,
+                                  const ReportProvenance& provenance);
+
+}  // namespace rxtrain
