@@ -240,6 +240,8 @@ class Loader {
   TemperatureLimits read_limits(const YAML::Node& node) const;
   PelletSpec read_pellet(const YAML::Node& node, const std::string& ctx) const;
   BedGeometry read_geometry(const Fields& f, const std::string& ctx) const;
+  CoolingSpec read_cooling(const YAML::Node& node, const std::string& sid,
+                           const std::string& ctx) const;
   ViscosityLaw read_fluid(const YAML::Node& node) const;
   void apply_fluid(const YAML::Node* fluid);
   std::vector<int> read_space_velocity_basis(const YAML::Node& node) const;
@@ -1079,10 +1081,14 @@ StageSpec Loader::read_stage(const YAML::Node& node, std::size_t index) {
       r.target_conversion = field(x, CaseFieldKind::StageTarget, sid);
     }
   }
-  if (const auto* n = f.find("heat"))
-    r.heat = choice(*n, "heat of " + ctx, {"adiabatic", "isothermal"}) == "isothermal"
-                 ? HeatMode::Isothermal
-                 : HeatMode::Adiabatic;
+  if (const auto* n = f.find("heat")) {
+    if (n->IsMap())
+      r.cooling = read_cooling(*n, sid, ctx);
+    else
+      r.heat = choice(*n, "heat of " + ctx, {"adiabatic", "isothermal"}) == "isothermal"
+                   ? HeatMode::Isothermal
+                   : HeatMode::Adiabatic;
+  }
   if (const auto* n = f.find("activity")) r.activity = field(*n, CaseFieldKind::Activity, sid);
   if (const auto* n = f.find("pellet")) r.pellet = read_pellet(*n, "pellet of " + ctx);
   if (f.find("bed") || f.find("tubes")) {
@@ -1093,6 +1099,17 @@ StageSpec Loader::read_stage(const YAML::Node& node, std::size_t index) {
                        ctx));
     r.geometry = read_geometry(f, ctx);
   }
+  if (r.cooling && (r.type != ReactorType::Pfr || !r.geometry || r.geometry->tubes == 0))
+    fail(*f.key_of("heat"),
+         fmt::format("{} is cooled (heat: {{U, coolant}}) but gives no tubes; the heat goes "
+                     "through the tube walls, 4 / d per bed volume: give the tubes (type: pfr, "
+                     "e.g. tubes: {{count: 2400, diameter: 38 mm, void_fraction: 0.42}})",
+                     ctx));
+  if (r.cooling && r.cooling->direction == CoolantFlow::Countercurrent && r.sized())
+    fail(*f.key_of("target"),
+         fmt::format("{} has a countercurrent coolant, whose outlet is found by shooting on the "
+                     "whole bed: give the bed's size (volume or catalyst), not a target",
+                     ctx));
   if (const auto* n = f.find("effectiveness")) {
     if (!r.pellet || r.pellet->D_eff.empty())
       fail(*f.key_of("effectiveness"),
@@ -1126,6 +1143,56 @@ StageSpec Loader::read_stage(const YAML::Node& node, std::size_t index) {
                          ctx, rx.id));
     }
   return r;
+}
+
+// A cooled stage's heat: {U, coolant: {T}} (constant coolant) or
+// {U, coolant: {T_in, flow, cp, direction}}.
+CoolingSpec Loader::read_cooling(const YAML::Node& node, const std::string& sid,
+                                 const std::string& ctx) const {
+  Fields f(*this, node, "heat of " + ctx);
+  f.check({"U", "coolant"});
+  CoolingSpec c;
+  c.where = at(node);
+  const YAML::Node& co =
+      f.need("coolant", "the coolant outside the tubes, e.g. coolant: {T: 250 degC}");
+  if (!f.find("U"))
+    fail(*f.key_of("coolant"),
+         fmt::format("heat of {} gives a coolant without U, the overall heat transfer "
+                     "coefficient on the tube's inner surface (e.g. U: 220 W/m2/K)",
+                     ctx));
+  c.U = field(*f.find("U"), CaseFieldKind::HeatU, sid);
+  const std::string what = "coolant of " + ctx;
+  Fields g(*this, co, what);
+  g.check({"T", "T_in", "flow", "cp", "direction"});
+  if (const auto* t = g.find("T")) {
+    if (g.find("T_in") || g.find("flow") || g.find("cp") || g.find("direction"))
+      fail(*g.key_of("T"), fmt::format("{} gives T (a constant coolant temperature: boiling) "
+                                       "together with T_in, flow, cp or direction; give one kind",
+                                       what));
+    c.T = field(*t, CaseFieldKind::CoolantT, sid);
+    return c;
+  }
+  const YAML::Node& dir =
+      g.need("direction",
+             "cocurrent or countercurrent, with T_in, flow and cp; or T for a constant "
+             "coolant temperature");
+  c.direction = choice(dir, "direction of " + what, {"cocurrent", "countercurrent"}) == "cocurrent"
+                    ? CoolantFlow::Cocurrent
+                    : CoolantFlow::Countercurrent;
+  const char* words = c.direction == CoolantFlow::Cocurrent ? "cocurrent" : "countercurrent";
+  if (!g.find("flow") || !g.find("cp"))
+    fail(dir, fmt::format("{} is {} but gives no {}; a flowing coolant needs its mass flow and "
+                          "specific heat (e.g. flow: 30 kg/s, cp: 1.55 kJ/kg/K)",
+                          what, words, !g.find("flow") ? "flow" : "cp"));
+  c.T = field(g.need("T_in", "the coolant's inlet temperature, e.g. T_in: 240 degC"),
+              CaseFieldKind::CoolantT, sid);
+  const SiUnit flow_unit = SiUnit::of("kg/s", "a mass flow");
+  c.flow = quantity(*g.find("flow"), "flow of " + what, flow_unit);
+  check_range(*g.find("flow"), "flow of " + what, kPositive, "kg/s", *c.flow);
+  const SiUnit cp_unit = SiUnit::of("J/(kg*K)", "a specific heat capacity");
+  c.cp = quantity(*g.find("cp"), "cp of " + what, cp_unit);
+  check_range(*g.find("cp"), "cp of " + what, kPositive, "J/(kg*K)", *c.cp);
+  return c;
 }
 
 // An exchanger's sizing: U and its utility, both or neither. The utility

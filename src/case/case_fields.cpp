@@ -45,6 +45,10 @@ constexpr std::array kSpecs{
                   "a temperature", false, kPositive, S::Offered},
     CaseFieldSpec{K::ExchangerDuty, O::Stage, "train.{}.duty", "duty of stage {}", "W", "a power",
                   false, kAnyValue, S::Offered},
+    CaseFieldSpec{K::HeatU, O::Stage, "train.{}.heat.U", "U of stage {}", "W/(m2*K)",
+                  "a heat transfer coefficient", false, kPositive, S::Offered},
+    CaseFieldSpec{K::CoolantT, O::Stage, "train.{}.heat.coolant.T", "coolant T of stage {}", "K",
+                  "a temperature", false, kPositive, S::Offered},
     CaseFieldSpec{K::RateA, O::Reaction, "reactions.{}.rate.A", "A of reaction {}", "",
                   "a rate constant", false, kPositive, S::Offered},
     CaseFieldSpec{K::RateEa, O::Reaction, "reactions.{}.rate.Ea", "Ea of reaction {}", "J/mol",
@@ -103,6 +107,9 @@ bool present(K kind, const Case& c, int k) {
       return exchanger(c, k) && exchanger(c, k)->T_out;
     case K::ExchangerDuty:
       return exchanger(c, k) && exchanger(c, k)->duty;
+    case K::HeatU:
+    case K::CoolantT:
+      return reactor(c, k) && reactor(c, k)->cooling;
     case K::RateTref:
       return m.reactions()[k].rate.T_ref.has_value();
     case K::EquilibriumK:
@@ -298,6 +305,10 @@ double case_field_value(const Case& c, const CaseFieldSpec& spec, int index) {
       return exchanger(c, index)->T_out.value_or(0);
     case K::ExchangerDuty:
       return exchanger(c, index)->duty.value_or(0);
+    case K::HeatU:
+      return reactor(c, index)->cooling->U;
+    case K::CoolantT:
+      return reactor(c, index)->cooling->T;
     case K::RateA:
       return m.reactions()[index].rate.A;
     case K::RateEa:
@@ -371,6 +382,12 @@ void set_stage_field(Case& c, const CaseField& f, double v) {
       break;
     case K::Activity:
       r.activity = v;
+      break;
+    case K::HeatU:
+      r.cooling->U = v;
+      break;
+    case K::CoolantT:
+      r.cooling->T = v;
       break;
     default:
       break;

@@ -23,7 +23,9 @@ void add_equilibrium_records(const Case& c, const TrainOptions& options, TrainRe
   for (auto& r : result.stages) {
     T_lo = std::min({T_lo, r.T_min, r.inlet.T, r.outlet.T});
     T_hi = std::max({T_hi, r.T_max, r.inlet.T, r.outlet.T});
-    if (r.kind == StageKind::Exchanger || !r.heat) continue;
+    // A cooled stage's path lies on no adiabatic or isothermal line that
+    // these views are drawn on.
+    if (r.kind == StageKind::Exchanger || !r.heat || r.coolant) continue;
     try {
       r.equilibrium =
           equilibrium_record(mech, r.inlet, r.outlet, *r.heat, basis, options.solvers.equilibrium);
@@ -72,7 +74,9 @@ void add_reaches(const Case& c, const TrainOptions& options, TrainResult& result
   const ConversionBasis basis = c.conversion_basis();
   TrainWorkspace ws;
   for (auto& r : result.stages) {
-    if (r.kind == StageKind::Exchanger || !r.heat) continue;
+    // A cooled stage's path lies on no adiabatic or isothermal line that
+    // these views are drawn on.
+    if (r.kind == StageKind::Exchanger || !r.heat || r.coolant) continue;
     ReactorSpec spec{};
     spec.id = r.id;
     // The pellets too: the reach is on the rates the stage runs with.

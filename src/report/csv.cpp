@@ -34,7 +34,7 @@ std::string stages_csv(const TrainResult& result) {
   out += "\n";
   for (const auto& r : result.stages) {
     std::string heat;
-    if (r.heat) heat = heat_mode_name(*r.heat);
+    if (const char* h = stage_heat_name(r)) heat = h;
     out += fmt::format("{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{},{}", r.id,
                        stage_kind_name(r.kind), heat, r.sized ? "yes" : "no", cell(r.volume),
                        cell(r.catalyst_mass), cell(r.space_time), cell(r.ghsv), cell(r.whsv),
@@ -77,6 +77,10 @@ std::string profiles_csv(const TrainResult& result) {
   for (const auto& r : result.stages) eta = eta || !r.effectiveness.empty();
   if (eta)
     for (const auto& id : result.reactions) out += ",eta_" + id;
+  // The coolant's temperature, when a stage is cooled (empty elsewhere).
+  bool cooled = false;
+  for (const auto& r : result.stages) cooled = cooled || r.coolant.has_value();
+  if (cooled) out += ",T_coolant_K";
   out += "\n";
   for (const auto& r : result.stages) {
     for (const auto& p : r.profile) {
@@ -86,6 +90,7 @@ std::string profiles_csv(const TrainResult& result) {
       if (eta)
         for (std::size_t j = 0; j < result.reactions.size(); ++j)
           out += "," + (j < p.eta.size() ? cell(p.eta[j]) : std::string());
+      if (cooled) out += "," + (p.T_coolant ? cell(*p.T_coolant) : std::string());
       out += "\n";
     }
   }

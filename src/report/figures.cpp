@@ -231,7 +231,7 @@ std::vector<Figure> profile_figures(const TrainResult& r) {
   for (const auto& s : r.stages) {
     if (s.kind == StageKind::Exchanger) continue;
     const double scale = catalyst ? *s.bulk_density : 1.0;
-    std::vector<double> pos, T, X, P;
+    std::vector<double> pos, T, X, P, Tc;
     if (s.kind == StageKind::Cstr) {
       // Uniform contents: the outlet state across the whole volume.
       const double V = s.volume.value_or(0);
@@ -244,12 +244,16 @@ std::vector<Figure> profile_figures(const TrainResult& r) {
         T.push_back(p.T - kZeroCelsius);
         X.push_back(p.X);
         P.push_back(p.P.value_or(s.inlet.P) / 1e5);
+        if (p.T_coolant) Tc.push_back(*p.T_coolant - kZeroCelsius);
       }
     }
     if (P.size() != pos.size()) P.assign(pos.size(), s.outlet.P / 1e5);  // a tank
     const std::string label = fmt::format("{} ({})", s.id, stage_word(s.kind));
     const std::string colour = stage_colour(r, s.id), dash = stage_dash(r, s.id);
     tchart.add_line(pos, T, {.label = label, .colour = colour, .dash = dash});
+    // A cooled stage: its coolant beside it, dotted in the stage's colour.
+    if (s.coolant && Tc.size() == pos.size())
+      tchart.add_line(pos, Tc, {.label = s.id + " coolant", .colour = colour, .dash = "2 3"});
     xchart.add_line(pos, X, {.label = label, .colour = colour, .dash = dash});
     pchart.add_line(pos, P, {.label = label, .colour = colour, .dash = dash});
     if (start > 0) {
@@ -259,11 +263,14 @@ std::vector<Figure> profile_figures(const TrainResult& r) {
     }
     start = pos.empty() ? start : pos.back();
   }
+  const bool cooled = std::any_of(r.stages.begin(), r.stages.end(),
+                                  [](const StageResult& s) { return s.coolant.has_value(); });
   std::vector<Figure> out;
   out.push_back({"profile-temperature",
-                 "Temperature along every reactor stage, end to end; a stirred tank is uniform "
-                 "at its outlet state. Exchangers take no volume and show as jumps at the "
-                 "boundaries.",
+                 std::string("Temperature along every reactor stage, end to end; a stirred tank "
+                             "is uniform at its outlet state. Exchangers take no volume and show "
+                             "as jumps at the boundaries.") +
+                     (cooled ? " A cooled stage's coolant is drawn dotted in its colour." : ""),
                  std::move(tchart)});
   out.push_back({"profile-conversion", "Overall conversion of the key along every reactor stage.",
                  std::move(xchart)});

@@ -26,7 +26,7 @@ std::string stage_table(const TrainResult& r) {
   h += "</tr>\n";
   for (const auto& s : r.stages) {
     std::string heat = "-";
-    if (s.heat) heat = heat_mode_name(*s.heat);
+    if (const char* name = stage_heat_name(s)) heat = name;
     h += "<tr>" + cell(s.id, false) + cell(stage_kind_name(s.kind), false) + cell(heat, false) +
          cell(volume_text(s.volume) + (s.sized ? "*" : ""), true) +
          cell(volume_text(s.catalyst_mass), true) + cell(sig_text(s.space_time), true) +
@@ -178,6 +178,8 @@ std::string run_report_html(const Case& c, const TrainResult& r, const std::vect
     if (s.outlet_target) h += "<p>" + xml_escape(purity_sentence(s, r.species)) + ".</p>\n";
   for (const auto& s : r.stages)
     if (s.exchanger_size) h += "<p>" + xml_escape(exchanger_size_sentence(s)) + ".</p>\n";
+  for (const auto& s : r.stages)
+    if (s.coolant) h += "<p>" + xml_escape(coolant_sentence(s)) + ".</p>\n";
   for (const auto& s : r.stages)
     if (!s.effectiveness.empty())
       h += "<p>" + xml_escape(effectiveness_sentence(s, r.reactions)) + ".</p>\n";

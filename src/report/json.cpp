@@ -53,7 +53,9 @@ json units_json(const std::vector<std::string>& reactions) {
             {"lhsv", "1/h"},
             {"duty", "W"},
             {"inverse_rate", "kg*s/mol or m3*s/mol, by the curve's basis"},
-            {"area", "m2 for an exchanger; kg or m3 for a Levenspiel curve, by its basis"},
+            {"area",
+             "m2 for an exchanger or a cooled stage's tube wall; kg or m3 for a Levenspiel "
+             "curve, by its basis"},
             {"flow", "kg/s (a utility's mass flow)"},
             {"dP", "Pa"},
             {"mass_flux", "kg/(m2*s)"},
@@ -62,12 +64,15 @@ json units_json(const std::vector<std::string>& reactions) {
             {"reynolds_particle", "1"},
             {"flow_area", "m2"},
             {"void_fraction", "1"},
-            {"tubes", "1"}};
+            {"tubes", "1"},
+            {"U", "W/(m2*K)"},
+            {"z", "m"},
+            {"V_dT_max", "m3"}};
   for (const char* k : {"diameter", "tube_diameter", "length", "particle_diameter"}) u[k] = "m";
   for (const char* k : {"T", "T_peak", "T_max", "T_min", "T_in_min", "T_opt", "T_ad_eq",
-                        "T_at_X_max", "T_end", "limit", "T_in", "T_out"})
+                        "T_at_X_max", "T_end", "limit", "T_in", "T_out", "T_coolant"})
     u[k] = "K";
-  for (const char* k : {"approach_T", "approach_T_window", "margin", "by", "lmtd"})
+  for (const char* k : {"approach_T", "approach_T_window", "margin", "by", "lmtd", "dT_max"})
     u[k] = "K (a difference)";
   for (const char* k : {"volume", "V", "V_at_X_max"}) u[k] = "m3";
   for (const char* k :
@@ -100,6 +105,14 @@ json profile(const std::vector<std::string>& ids, const std::vector<std::string>
     out["P"] = P;
   } else {
     out["P"] = nullptr;
+  }
+  // A cooled stage: the coolant's temperature (null: not cooled).
+  if (r.coolant) {
+    json Tc = json::array();
+    for (const auto& p : r.profile) Tc.push_back(json_number(p.T_coolant));
+    out["T_coolant"] = Tc;
+  } else {
+    out["T_coolant"] = nullptr;
   }
   // With effectiveness factors: "eta_REACTION" per reaction.
   if (!r.effectiveness.empty())
@@ -158,7 +171,8 @@ json stage(const TrainResult& t, const StageResult& r) {
   json s;
   s["id"] = r.id;
   s["type"] = stage_kind_name(r.kind);
-  s["heat"] = r.heat ? json(heat_mode_name(*r.heat)) : json(nullptr);
+  const char* heat = stage_heat_name(r);
+  s["heat"] = heat ? json(heat) : json(nullptr);
   s["sized"] = r.sized;
   // The outlet purity the stage was sized to (null: none).
   s["target_outlet"] =
@@ -189,6 +203,23 @@ json stage(const TrainResult& t, const StageResult& r) {
                                                ? json_number(*r.exchanger_size->utility_flow)
                                                : json(nullptr)}}
                            : json(nullptr);
+  // A cooled stage: its coolant (T_in, T_out in the coolant's own flow
+  // direction; duty the heat added to the process stream) and its hot
+  // spot; null otherwise.
+  if (r.coolant) {
+    const auto& c = *r.coolant;
+    s["coolant"] = {
+        {"T_in", json_number(c.T_in)},     {"T_out", json_number(c.T_out)},
+        {"duty", json_number(c.duty)},     {"direction", coolant_flow_name(c.direction)},
+        {"U", json_number(c.U)},           {"area", json_number(c.area)},
+        {"dT_max", json_number(c.dT_max)}, {"V_dT_max", json_number(c.V_dT_max)}};
+  } else {
+    s["coolant"] = nullptr;
+  }
+  s["hot_spot"] = r.hot_spot ? json{{"T", json_number(r.hot_spot->T)},
+                                    {"V", json_number(r.hot_spot->V)},
+                                    {"z", json_number(r.hot_spot->z)}}
+                             : json(nullptr);
   s["T_peak"] = json_number(r.T_max);  // the stage's hottest point; T_max is the limit
   s["T_min"] = json_number(r.T_min);
   s["conversion"] = json_number(r.conversion);

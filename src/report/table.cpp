@@ -85,6 +85,28 @@ std::string product_columns(const TrainResult& result) {
 
 }  // namespace
 
+// Cooled tubular stages: the coolant, the heat through the walls, the hot
+// spot and the largest process-minus-coolant difference (empty when no
+// stage is cooled).
+std::string coolant_columns(const TrainResult& result) {
+  std::vector<std::vector<std::string>> rows;
+  for (const auto& r : result.stages) {
+    if (!r.coolant || !r.hot_spot) continue;
+    const auto& c = *r.coolant;
+    const auto& h = *r.hot_spot;
+    rows.push_back({r.id, coolant_flow_name(c.direction), plain_sig_text(c.U, 4),
+                    celsius_text(c.T_in), celsius_text(c.T_out), plain_sig_text(c.duty / 1e3),
+                    plain_sig_text(c.area), celsius_text(h.T), plain_sig_text(h.z, 4),
+                    fixed_text(c.dT_max, 2)});
+  }
+  if (rows.empty()) return {};
+  rows.insert(rows.begin(), {"stage", "coolant", "U W/m2K", "T_c in °C", "T_c out °C", "duty kW",
+                             "wall m2", "hot spot °C", "at z m", "max T−T_c K"});
+  return "\ncooled tubes (coolant T in and out in its own flow direction; duty: heat added to the "
+         "process stream; wall: the tubes' inner surface; z: length from the stage inlet)\n" +
+         render_columns(rows, 1);
+}
+
 // Stages with a bed or tubes: the bed as built and its pressure drop
 // (empty when no stage has one).
 std::string bed_columns(const TrainResult& result) {
@@ -131,7 +153,7 @@ std::string format_stage_table(const TrainResult& result) {
   for (const auto& r : result.stages) {
     const bool exchanger = r.kind == StageKind::Exchanger;
     std::string heat = "-";
-    if (r.heat) heat = heat_mode_name(*r.heat);
+    if (const char* h = stage_heat_name(r)) heat = h;
     std::string V = volume_text(r.volume);
     if (r.sized) {
       V += "*";
@@ -201,6 +223,7 @@ std::string format_stage_table(const TrainResult& result) {
 
   out += product_columns(result);
   out += bed_columns(result);
+  out += coolant_columns(result);
 
   out += fmt::format("\noutlet: {} °C, {} bar, overall conversion of {} = {}\n",
                      celsius_text(result.outlet.T), bar_text(result.outlet.P), result.key,

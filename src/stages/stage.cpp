@@ -30,6 +30,23 @@ const char* stage_kind_name(StageKind kind) {
   return "?";
 }
 
+const char* stage_heat_name(const StageResult& r) {
+  if (r.coolant) return "cooled";
+  return r.heat ? heat_mode_name(*r.heat) : nullptr;
+}
+
+const char* coolant_flow_name(CoolantFlow f) {
+  switch (f) {
+    case CoolantFlow::Constant:
+      return "constant";
+    case CoolantFlow::Cocurrent:
+      return "cocurrent";
+    case CoolantFlow::Countercurrent:
+      return "countercurrent";
+  }
+  return "constant";
+}
+
 const char* heat_mode_name(HeatMode heat) {
   return heat == HeatMode::Adiabatic ? "adiabatic" : "isothermal";
 }

@@ -45,6 +45,7 @@ namespace {
 ReactorSpec with_heat(ReactorSpec r, LayoutHeat heat) {
   if (heat == LayoutHeat::Adiabatic) r.heat = HeatMode::Adiabatic;
   if (heat == LayoutHeat::Isothermal) r.heat = HeatMode::Isothermal;
+  if (heat != LayoutHeat::AsWritten) r.cooling.reset();  // the layout's heat replaces the wall's
   return r;
 }
 
@@ -218,7 +219,7 @@ CompareResult compare_layouts(const Case& c, const CompareOptions& options) {
   for (const auto& r : reactors) {
     out.case_order.push_back(r.id);
     if (r.target_conversion) X_sized = std::max(X_sized.value_or(0.0), *r.target_conversion);
-    all_adiabatic = all_adiabatic && r.heat == HeatMode::Adiabatic;
+    all_adiabatic = all_adiabatic && r.heat == HeatMode::Adiabatic && !r.cooling;
     all_isothermal = all_isothermal && r.heat == HeatMode::Isothermal;
   }
   out.sized = X_sized.has_value();

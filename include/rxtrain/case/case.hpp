@@ -28,6 +28,28 @@ struct OutletTarget {
   double x = 0;      // mole fraction, 0 < x < the inlet's
 };
 
+// How a coolant outside the tubes flows, relative to the process stream.
+enum class CoolantFlow {
+  Constant,       // one temperature all along (a boiling coolant)
+  Cocurrent,      // enters with the process stream
+  Countercurrent  // enters at the process outlet
+};
+
+// A cooled tubular stage (`heat: {U, coolant}`): the heat taken per bed
+// volume is U (4 / d_tube) (T - T_coolant), d_tube the tubes' inside
+// diameter (`tubes`, required). A coolant with a flow warms (or cools) by
+// its own energy balance, flow * cp * dT_coolant.
+struct CoolingSpec {
+  double U = 0;  // W/(m2 K), on the tube's inner surface
+  // K: the constant coolant temperature, or the coolant's inlet
+  // temperature (where it enters, in its own flow direction).
+  double T = 0;
+  CoolantFlow direction = CoolantFlow::Constant;
+  std::optional<double> flow;  // kg/s, the coolant's mass flow (with a direction)
+  std::optional<double> cp;    // J/(kg K), the coolant's specific heat
+  SourceLocation where;        // the `heat` entry
+};
+
 // A reactor stage. Exactly one of volume / catalyst_mass / target_conversion
 // / target_outlet is set (catalyst_mass needs bulk_density; volume =
 // catalyst_mass / bulk_density).
@@ -54,6 +76,10 @@ struct ReactorSpec {
   // The fluid's viscosity (top-level `fluid`), copied to every reactor by
   // the loader so that a stage runs from its spec alone.
   std::optional<ViscosityLaw> viscosity;
+  // A cooled tubular stage (`heat: {U, coolant}`): its energy balance is
+  // the adiabatic one plus the heat through the tube walls; `heat` stays
+  // Adiabatic. Needs `geometry` with tubes.
+  std::optional<CoolingSpec> cooling;
   bool has_pressure_drop() const {
     return type == ReactorType::Pfr && geometry && pellet && viscosity;
   }

@@ -9,6 +9,7 @@
 // sweeps):
 //   feed.T  feed.P  feed.flow  feed.flows.ID  feed.composition.ID
 //   train.ID.volume | catalyst | target.conversion | bulk_density | activity | T_out | duty
+//   train.ID.heat.U | heat.coolant.T  (cooled tubular stages)
 //   reactions.ID.rate.A | rate.Ea | rate.T_ref
 //   reactions.ID.equilibrium.K | equilibrium.T | equilibrium.dH  (van 't Hoff form)
 //   species.ID.mw | species.ID.density
@@ -59,6 +60,8 @@ enum class CaseFieldKind {
   Activity,     // a reactor's catalyst activity; every reactor has one (default 1)
   ExchangerTout,
   ExchangerDuty,
+  HeatU,     // a cooled stage's overall coefficient
+  CoolantT,  // a cooled stage's coolant temperature (its inlet's, with a flow)
   RateA,
   RateEa,
   RateTref,
