@@ -18,6 +18,7 @@
 #include "gsl_reference.hpp"
 #include "rxtrain/base/units.hpp"
 #include "rxtrain/case/case.hpp"
+#include "rxtrain/case/case_fields.hpp"
 #include "rxtrain/models/tubular_balances.hpp"
 #include "rxtrain/stages/pfr.hpp"
 #include "test_species.hpp"
@@ -331,4 +332,12 @@ train:
   CHECK(*r.cooling->flow == 3);
   CHECK(*r.cooling->cp == Approx(1600).epsilon(1e-14));
   CHECK(r.heat == HeatMode::Adiabatic);
+  // A case built in code passes the loader's checks (validate_case).
+  CHECK_NOTHROW(validate_case(c));
+  Case no_tubes = c;
+  std::get<ReactorSpec>(no_tubes.train[0]).geometry.reset();
+  CHECK_THROWS_WITH(validate_case(no_tubes), Catch::Contains("cooled but gives no tubes"));
+  Case no_flow = c;
+  std::get<ReactorSpec>(no_flow.train[0]).cooling->flow.reset();
+  CHECK_THROWS_WITH(validate_case(no_flow), Catch::Contains("positive flow and cp"));
 }

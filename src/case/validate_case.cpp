@@ -73,6 +73,23 @@ void Checker::bed(const ReactorSpec& r) const {
                                 "from 0 to 3 and, with an exponent, a positive T",
                                 r.id));
   }
+  if (r.cooling) {
+    // The loader's checks of a cooled stage: tubes, and a flowing
+    // coolant's flow and cp (U and T are fields of the table).
+    const CoolingSpec& cs = *r.cooling;
+    if (r.type != ReactorType::Pfr || !r.geometry || r.geometry->tubes == 0)
+      fail(cs.where, fmt::format("stage {} is cooled but gives no tubes; the heat goes through the "
+                                 "tube walls",
+                                 r.id));
+    if (cs.direction != CoolantFlow::Constant &&
+        !(cs.flow && *cs.flow > 0 && std::isfinite(*cs.flow) && cs.cp && *cs.cp > 0 &&
+          std::isfinite(*cs.cp)))
+      fail(cs.where, fmt::format("stage {}: a flowing coolant needs a positive flow and cp", r.id));
+    if (cs.direction == CoolantFlow::Countercurrent && r.sized())
+      fail(cs.where, fmt::format("stage {} has a countercurrent coolant: give its size, not a "
+                                 "target",
+                                 r.id));
+  }
   if (!r.geometry) return;
   const BedGeometry& g = *r.geometry;
   if (r.type != ReactorType::Pfr)
