@@ -50,7 +50,7 @@ limits: {T_max: 600 K, T_in_min: 400 K}
 train:
   - {type: pfr, id: R1, volume: 2 m3}
   - {type: exchanger, id: C1, duty: -50 kW}
-  - {type: pfr, id: R2, volume: 3 m3}
+  - {type: pfr, id: R2, volume: 3 m3, tubes: {count: 100, diameter: 40 mm, void_fraction: 0.4}, heat: {U: 150 W/m2/K, coolant: {T: 400 K}}}
 )";
 
 std::string read_text(const std::filesystem::path& p) {

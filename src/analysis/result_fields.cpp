@@ -92,8 +92,7 @@ constexpr std::array kStage{
                     }},
     ResultFieldSpec{"over_limit", "K", R::Stage,
                     [](const TrainResult& r, const StageResult* s, int) -> V {
-                      if (!r.limit_check.applies() || s->kind == StageKind::Exchanger)
-                        return std::nullopt;
+                      if (!r.limit_check.applies() || !is_reactor(s->kind)) return std::nullopt;
                       return r.limit_check.past(s->id);
                     }},
     ResultFieldSpec{"inlet.flows", "mol/s", R::Flow,

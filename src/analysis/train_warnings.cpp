@@ -150,7 +150,7 @@ std::vector<std::string> design_warnings(const Case& c, const TrainResult& resul
 
   SunContext ctx;
   for (const auto& r : result.stages) {
-    if (r.kind == StageKind::Exchanger) continue;
+    if (!is_reactor(r.kind)) continue;
 
     // A stage sized to an outlet purity needs its last ppm, however little
     // conversion they are: its tail is the specification, not waste.

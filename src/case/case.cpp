@@ -32,6 +32,13 @@
 
 namespace rxtrain {
 
+double Case::quench_shares() const {
+  double sum = 0;
+  for (const auto& s : train)
+    if (const auto* q = std::get_if<QuenchSpec>(&s); q && q->share) sum += *q->share;
+  return sum;
+}
+
 const std::string& stage_id(const StageSpec& s) {
   return std::visit([](const auto& x) -> const std::string& { return x.id; }, s);
 }
@@ -242,6 +249,7 @@ class Loader {
   BedGeometry read_geometry(const Fields& f, const std::string& ctx) const;
   CoolingSpec read_cooling(const YAML::Node& node, const std::string& sid,
                            const std::string& ctx) const;
+  QuenchSpec read_quench(const Fields& f, const YAML::Node& node, const std::string& sid) const;
   ViscosityLaw read_fluid(const YAML::Node& node) const;
   void apply_fluid(const YAML::Node* fluid);
   std::vector<int> read_space_velocity_basis(const YAML::Node& node) const;
@@ -1000,17 +1008,26 @@ void Loader::read_train(const YAML::Node& list) {
                            describe(list)));
   if (list.size() > kMaxStages)
     fail(list, fmt::format("too many stages: {} (the limit is {})", list.size(), kMaxStages));
+  double shares = 0;
   for (std::size_t i = 0; i < list.size(); ++i) {
     train_.push_back(read_stage(list[i], i));
     stage_nodes_.push_back(list[i]);
+    if (const auto* q = std::get_if<QuenchSpec>(&train_.back()); q && q->share) {
+      shares += *q->share;
+      if (shares >= 1)
+        fail(list[i]["share"],
+             fmt::format("the quench shares sum to {:g} at stage {}; they are parts of the feed "
+                         "that bypass the first stage, so they must sum to less than 1",
+                         shares, q->id));
+    }
   }
 }
 
 StageSpec Loader::read_stage(const YAML::Node& node, std::size_t index) {
   Fields f(*this, node, fmt::format("stage entry {}", index + 1));
-  const std::string type =
-      choice(f.need("type", "pfr | cstr | exchanger"),
-             fmt::format("type of stage entry {}", index + 1), {"pfr", "cstr", "exchanger"});
+  const std::string type = choice(f.need("type", "pfr | cstr | exchanger | quench"),
+                                  fmt::format("type of stage entry {}", index + 1),
+                                  {"pfr", "cstr", "exchanger", "quench"});
   const std::string sid = id(f.need("id", "a stage id, e.g. id: R1"), "stage");
   f.set_context("stage " + sid);
   const std::string& ctx = f.context();
@@ -1033,6 +1050,8 @@ StageSpec Loader::read_stage(const YAML::Node& node, std::size_t index) {
     read_exchanger_size(f, x);
     return x;
   }
+
+  if (type == "quench") return read_quench(f, node, sid);
 
   f.check({"type", "id", "volume", "catalyst", "bulk_density", "target", "heat", "activity",
            "pellet", "effectiveness", "bed", "tubes"});
@@ -1145,6 +1164,70 @@ StageSpec Loader::read_stage(const YAML::Node& node, std::size_t index) {
   return r;
 }
 
+// A cold shot: {share, T} of the feed, or a side {stream: {T, P, flows}}.
+// It stands after a reactor (a quench before any has nothing to cool).
+QuenchSpec Loader::read_quench(const Fields& f, const YAML::Node& node,
+                               const std::string& sid) const {
+  const std::string& ctx = f.context();
+  f.check({"type", "id", "share", "T", "stream"});
+  QuenchSpec q;
+  q.id = sid;
+  q.where = at(node);
+  const bool after_reactor = std::any_of(train_.begin(), train_.end(), [](const StageSpec& st) {
+    return std::holds_alternative<ReactorSpec>(st);
+  });
+  if (!after_reactor)
+    fail(node, fmt::format("{} is a quench before the first reactor; a cold shot cools a "
+                           "reactor's outlet, so it stands after one (to cool the feed, lower "
+                           "its T or add an exchanger)",
+                           ctx));
+  const auto* share = f.find("share");
+  const auto* stream = f.find("stream");
+  if (share && stream)
+    fail(*f.key_of("stream"), fmt::format("{} gives both share and stream; give one (share: a part "
+                                          "of the feed, stream: an independent side stream)",
+                                          ctx));
+  if (!share && !stream)
+    fail(node, fmt::format("{} needs share (a part of the feed, e.g. share: 0.2, with T) or "
+                           "stream (e.g. stream: {{T: 40 degC, flows: {{H2: 120 kmol/h}}}})",
+                           ctx));
+  if (share) {
+    q.share = number(*share, "share of " + ctx);
+    check_range(*share, "share of " + ctx, kOpenUnitInterval, "", *q.share);
+    if (const auto* t = f.find("T")) q.T = temperature(*t, "T of " + ctx);
+    return q;
+  }
+  if (const auto* t = f.find("T"); t != nullptr)
+    fail(*f.key_of("T"),
+         fmt::format("{} gives T beside stream; the side stream gives its own T", ctx));
+  Fields g(*this, *stream, "stream of " + ctx);
+  g.check({"T", "P", "flows"});
+  Stream st;
+  st.T = temperature(g.need("T", "the side stream's temperature, e.g. T: 40 degC"),
+                     "T of the stream of " + ctx);
+  st.P = feed_.P;
+  if (const auto* p = g.find("P")) {
+    st.P = quantity(*p, "P of the stream of " + ctx, SiUnit::of("Pa", "a pressure"));
+    check_range(*p, "P of the stream of " + ctx, kPositive, "Pa", st.P);
+  }
+  st.F.assign(species_.size(), 0.0);
+  const YAML::Node& flows =
+      g.need("flows", "the side stream's flows, e.g. flows: {H2: 120 kmol/h}");
+  Fields fl(*this, flows, "flows of the stream of " + ctx);
+  double total = 0;
+  for (const auto& e : fl.entries()) {
+    const int i = species_index(e.key, "flows of the stream of " + ctx);
+    st.F[i] = quantity(e.value, "flow of " + e.name + " in the stream of " + ctx,
+                       SiUnit::of("mol/s", "a molar flow"));
+    check_range(e.value, "flow of " + e.name + " in the stream of " + ctx, kNonNegative, "mol/s",
+                st.F[i]);
+    total += st.F[i];
+  }
+  if (!(total > 0)) fail(flows, fmt::format("the side stream of {} has no flow", ctx));
+  q.stream = st;
+  return q;
+}
+
 // A cooled stage's heat: {U, coolant: {T}} (constant coolant) or
 // {U, coolant: {T_in, flow, cp, direction}}.
 CoolingSpec Loader::read_cooling(const YAML::Node& node, const std::string& sid,
@@ -1185,7 +1268,7 @@ CoolingSpec Loader::read_cooling(const YAML::Node& node, const std::string& sid,
                           "specific heat (e.g. flow: 30 kg/s, cp: 1.55 kJ/kg/K)",
                           what, words, !g.find("flow") ? "flow" : "cp"));
   c.T = field(g.need("T_in", "the coolant's inlet temperature, e.g. T_in: 240 degC"),
-              CaseFieldKind::CoolantT, sid);
+              CaseFieldKind::CoolantTin, sid);
   const SiUnit flow_unit = SiUnit::of("kg/s", "a mass flow");
   c.flow = quantity(*g.find("flow"), "flow of " + what, flow_unit);
   check_range(*g.find("flow"), "flow of " + what, kPositive, "kg/s", *c.flow);

@@ -49,6 +49,8 @@ constexpr std::array kSpecs{
                   "a heat transfer coefficient", false, kPositive, S::Offered},
     CaseFieldSpec{K::CoolantT, O::Stage, "train.{}.heat.coolant.T", "coolant T of stage {}", "K",
                   "a temperature", false, kPositive, S::Offered},
+    CaseFieldSpec{K::CoolantTin, O::Stage, "train.{}.heat.coolant.T_in", "coolant T_in of stage {}",
+                  "K", "a temperature", false, kPositive, S::Offered},
     CaseFieldSpec{K::RateA, O::Reaction, "reactions.{}.rate.A", "A of reaction {}", "",
                   "a rate constant", false, kPositive, S::Offered},
     CaseFieldSpec{K::RateEa, O::Reaction, "reactions.{}.rate.Ea", "Ea of reaction {}", "J/mol",
@@ -108,8 +110,11 @@ bool present(K kind, const Case& c, int k) {
     case K::ExchangerDuty:
       return exchanger(c, k) && exchanger(c, k)->duty;
     case K::HeatU:
-    case K::CoolantT:
       return reactor(c, k) && reactor(c, k)->cooling;
+    case K::CoolantT:
+    case K::CoolantTin:
+      return reactor(c, k) && reactor(c, k)->cooling &&
+             (reactor(c, k)->cooling->direction == CoolantFlow::Constant) == (kind == K::CoolantT);
     case K::RateTref:
       return m.reactions()[k].rate.T_ref.has_value();
     case K::EquilibriumK:
@@ -308,6 +313,7 @@ double case_field_value(const Case& c, const CaseFieldSpec& spec, int index) {
     case K::HeatU:
       return reactor(c, index)->cooling->U;
     case K::CoolantT:
+    case K::CoolantTin:
       return reactor(c, index)->cooling->T;
     case K::RateA:
       return m.reactions()[index].rate.A;
@@ -387,6 +393,7 @@ void set_stage_field(Case& c, const CaseField& f, double v) {
       r.cooling->U = v;
       break;
     case K::CoolantT:
+    case K::CoolantTin:
       r.cooling->T = v;
       break;
     default:

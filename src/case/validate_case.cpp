@@ -242,10 +242,20 @@ void Checker::feed_and_key() const {
 }
 
 void Checker::stages() const {
+  if (!(c.quench_shares() < 1))
+    fail(file(), fmt::format("the quench shares sum to {:g}; they must sum to less than 1",
+                             c.quench_shares()));
   for (const auto& s : c.train) {
     if (const auto* x = std::get_if<ExchangerSpec>(&s)) {
       if (x->T_out.has_value() == x->duty.has_value())
         fail(x->where, fmt::format("stage {} needs exactly one of T_out and duty", x->id));
+      continue;
+    }
+    if (const auto* q = std::get_if<QuenchSpec>(&s)) {
+      if (q->share.has_value() == q->stream.has_value())
+        fail(q->where, fmt::format("stage {} needs exactly one of share and stream", q->id));
+      if (q->share && !(*q->share > 0 && *q->share < 1))
+        fail(q->where, fmt::format("stage {}: share must lie strictly between 0 and 1", q->id));
       continue;
     }
     const auto& r = std::get<ReactorSpec>(s);

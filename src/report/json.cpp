@@ -67,7 +67,8 @@ json units_json(const std::vector<std::string>& reactions) {
             {"tubes", "1"},
             {"U", "W/(m2*K)"},
             {"z", "m"},
-            {"V_dT_max", "m3"}};
+            {"V_dT_max", "m3"},
+            {"share", "1"}};
   for (const char* k : {"diameter", "tube_diameter", "length", "particle_diameter"}) u[k] = "m";
   for (const char* k : {"T", "T_peak", "T_max", "T_min", "T_in_min", "T_opt", "T_ad_eq",
                         "T_at_X_max", "T_end", "limit", "T_in", "T_out", "T_coolant"})
@@ -185,7 +186,7 @@ json stage(const TrainResult& t, const StageResult& r) {
   s["bulk_density"] = json_number(r.bulk_density);
   // Reactors only: the factor on every rate in the stage (1: as the case's
   // rate laws give them).
-  s["activity"] = r.kind == StageKind::Exchanger ? json(nullptr) : json_number(r.activity);
+  s["activity"] = !is_reactor(r.kind) ? json(nullptr) : json_number(r.activity);
   s["space_time"] = json_number(r.space_time);
   s["space_velocity"] = json_number(r.space_velocity);
   s["ghsv"] = json_number(r.ghsv);
@@ -225,6 +226,10 @@ json stage(const TrainResult& t, const StageResult& r) {
   s["conversion"] = json_number(r.conversion);
   s["yield"] = product_values(products, r.yield);
   s["selectivity"] = product_values(products, r.selectivity);
+  // A quench: the side stream that joined and, where given, the share of
+  // the feed it is; null otherwise.
+  s["side_stream"] = r.side_stream ? stream(ids, molar_mass, *r.side_stream) : json(nullptr);
+  s["share"] = json_number(r.share);
   s["inlet"] = stream(ids, molar_mass, r.inlet);
   s["outlet"] = stream(ids, molar_mass, r.outlet);
   const auto closure = mass_balance_closure(r.inlet, r.outlet, molar_mass);
@@ -316,7 +321,7 @@ nlohmann::json limit_check_json(const LimitCheck& lc) {
 }
 
 nlohmann::json limit_json(const LimitCheck& lc, const StageResult& r) {
-  if (!lc.applies() || r.kind == StageKind::Exchanger) return nullptr;
+  if (!lc.applies() || !is_reactor(r.kind)) return nullptr;
   json findings = json::array();
   for (const auto& f : lc.findings)
     if (f.stage == r.id) findings.push_back(finding_json(f, lc.margin));

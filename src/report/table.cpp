@@ -50,7 +50,7 @@ std::string stream_columns(const TrainResult& result) {
     return out + "mass flows: not shown, not every species has a molar mass (mw or formula)\n";
   std::string closures;
   for (const auto& r : result.stages)
-    if (r.kind == StageKind::Exchanger)
+    if (!is_reactor(r.kind))
       continue;  // no reaction: in = out by construction
     else if (const auto c = mass_balance_closure(r.inlet, r.outlet, result.molar_mass))
       closures += fmt::format("{}{} {}", closures.empty() ? "" : ", ", r.id, closure_text(*c));
@@ -151,7 +151,7 @@ std::string format_stage_table(const TrainResult& result) {
                   "T peak °C", "X out", "X_eq(T_out) − X", "T_eq(X) − T K", "duty kW"});
   bool any_sized = false;
   for (const auto& r : result.stages) {
-    const bool exchanger = r.kind == StageKind::Exchanger;
+    const bool exchanger = !is_reactor(r.kind);
     std::string heat = "-";
     if (const char* h = stage_heat_name(r)) heat = h;
     std::string V = volume_text(r.volume);
@@ -173,7 +173,7 @@ std::string format_stage_table(const TrainResult& result) {
   // Only where a stage gives one: every rate in it is multiplied by it.
   std::vector<std::string> activities;
   for (const auto& r : result.stages)
-    if (r.kind != StageKind::Exchanger && r.activity != 1)
+    if (is_reactor(r.kind) && r.activity != 1)
       activities.push_back(fmt::format("{} {:.3g}", r.id, r.activity));
   if (!activities.empty())
     out += fmt::format("catalyst activity (multiplies every rate in the stage): {}\n",
@@ -191,6 +191,8 @@ std::string format_stage_table(const TrainResult& result) {
     if (r.outlet_target) out += "  " + purity_sentence(r, result.species) + "\n";
   for (const auto& r : result.stages)
     if (r.exchanger_size) out += "  " + exchanger_size_sentence(r) + "\n";
+  for (const auto& r : result.stages)
+    if (r.side_stream) out += "  " + quench_sentence(r) + "\n";
   for (const auto& r : result.stages)
     if (!r.effectiveness.empty()) out += "  " + effectiveness_sentence(r, result.reactions) + "\n";
   for (const auto& r : result.stages)

@@ -97,6 +97,17 @@ std::string exchanger_size_sentence(const StageResult& r) {
                      plain_sig_text(z.area), utility);
 }
 
+std::string quench_sentence(const StageResult& r) {
+  if (!r.side_stream) return {};
+  const Stream& s = *r.side_stream;
+  return fmt::format(
+      "{}: a side stream of {} mol/s{} joined at {} °C; mixed, {} → {} °C and X {} "
+      "on the key fed so far",
+      r.id, plain_sig_text(s.total_flow()),
+      r.share ? fmt::format(" ({} of the feed)", fixed_text(*r.share, 4)) : "", celsius_text(s.T),
+      celsius_text(r.inlet.T), celsius_text(r.outlet.T), conversion_text(r.conversion));
+}
+
 std::string coolant_sentence(const StageResult& r) {
   if (!r.coolant || !r.hot_spot) return {};
   const auto& c = *r.coolant;
@@ -140,7 +151,8 @@ std::string conversion_text(const std::optional<double>& X) {
 std::string volume_text(const std::optional<double>& v) { return v ? plain_sig_text(*v, 5) : "-"; }
 
 std::string duty_text(const StageResult& r) {
-  if (r.kind != StageKind::Exchanger && r.heat == HeatMode::Adiabatic && !r.coolant) return "-";
+  if (r.kind == StageKind::Quench) return "-";  // adiabatic mixing: no heat crosses
+  if (is_reactor(r.kind) && r.heat == HeatMode::Adiabatic && !r.coolant) return "-";
   return fixed_text(r.duty / 1e3, 2);
 }
 

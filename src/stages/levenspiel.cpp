@@ -175,7 +175,7 @@ std::vector<LevenspielCurve> levenspiel_curves(const Mechanism& mech, int key, d
   const ConversionBasis basis{key, F_key_feed};
   std::vector<LevenspielCurve> out;
   for (const auto& s : stages) {
-    if (s.kind == StageKind::Exchanger) continue;
+    if (!is_reactor(s.kind)) continue;
     LevenspielCurve c;
     c.stage = s.id;
     c.catalyst_basis = all_catalyst && s.bulk_density.has_value();

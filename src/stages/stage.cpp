@@ -26,6 +26,8 @@ const char* stage_kind_name(StageKind kind) {
       return "cstr";
     case StageKind::Exchanger:
       return "exchanger";
+    case StageKind::Quench:
+      return "quench";
   }
   return "?";
 }

@@ -103,7 +103,7 @@ Layout evaluate(const Case& lc, const TrainOptions& options, const std::optional
     bool all_catalyst = true;
     for (const auto& s : res.stages) {
       T_hi = std::max({T_hi, s.T_max, s.outlet.T});
-      if (s.kind == StageKind::Exchanger) continue;
+      if (!is_reactor(s.kind)) continue;
       V += s.volume.value_or(0);
       if (s.catalyst_mass)
         W += *s.catalyst_mass;
@@ -198,6 +198,12 @@ std::vector<int> name_orders(Layout& l, std::vector<std::vector<int>> orders,
 CompareResult compare_layouts(const Case& c, const CompareOptions& options) {
   std::vector<ReactorSpec> reactors;
   bool any_exchanger = false;
+  for (const auto& spec : c.train)
+    if (const auto* q = std::get_if<QuenchSpec>(&spec))
+      throw InputError(q->where, fmt::format("stage {} is a quench; compare reorders reactors "
+                                             "around exchangers only and does not handle side "
+                                             "streams yet: rate the train with run",
+                                             q->id));
   for (const auto& spec : c.train) {
     if (const auto* r = std::get_if<ReactorSpec>(&spec))
       reactors.push_back(*r);

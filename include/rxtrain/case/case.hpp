@@ -106,7 +106,20 @@ struct ExchangerSpec {
   SourceLocation where;
 };
 
-using StageSpec = std::variant<ReactorSpec, ExchangerSpec>;
+// A cold shot (`type: quench`): a side stream joins the process stream and
+// mixes with it adiabatically. Either a `share` of the case's feed (the
+// first stage then gets 1 - the sum of the shares; this share joins here
+// at `T`, default the feed's, and the feed's pressure) or an independent
+// side `stream` (its T, P and flows). Stands after a reactor.
+struct QuenchSpec {
+  std::string id;
+  std::optional<double> share;   // 0 < share < 1, of the case's feed
+  std::optional<double> T;       // K, the share's temperature (default: the feed's)
+  std::optional<Stream> stream;  // an independent side stream
+  SourceLocation where;
+};
+
+using StageSpec = std::variant<ReactorSpec, ExchangerSpec, QuenchSpec>;
 
 const std::string& stage_id(const StageSpec& s);
 
@@ -146,6 +159,9 @@ struct Case {
   std::vector<int> products;
 
   ConversionBasis conversion_basis() const { return {key, feed.F[key]}; }
+  // The sum of the quench shares (0 without): the first stage gets
+  // (1 - quench_shares()) of the feed.
+  double quench_shares() const;
 };
 
 // A conversion counts as reached when it is within this (absolute) of the

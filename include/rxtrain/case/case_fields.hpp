@@ -9,7 +9,7 @@
 // sweeps):
 //   feed.T  feed.P  feed.flow  feed.flows.ID  feed.composition.ID
 //   train.ID.volume | catalyst | target.conversion | bulk_density | activity | T_out | duty
-//   train.ID.heat.U | heat.coolant.T  (cooled tubular stages)
+//   train.ID.heat.U | heat.coolant.T | heat.coolant.T_in  (cooled tubular stages)
 //   reactions.ID.rate.A | rate.Ea | rate.T_ref
 //   reactions.ID.equilibrium.K | equilibrium.T | equilibrium.dH  (van 't Hoff form)
 //   species.ID.mw | species.ID.density
@@ -60,8 +60,9 @@ enum class CaseFieldKind {
   Activity,     // a reactor's catalyst activity; every reactor has one (default 1)
   ExchangerTout,
   ExchangerDuty,
-  HeatU,     // a cooled stage's overall coefficient
-  CoolantT,  // a cooled stage's coolant temperature (its inlet's, with a flow)
+  HeatU,       // a cooled stage's overall coefficient
+  CoolantT,    // a cooled stage's constant coolant temperature
+  CoolantTin,  // a cooled stage's flowing coolant's inlet temperature
   RateA,
   RateEa,
   RateTref,

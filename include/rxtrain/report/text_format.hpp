@@ -45,6 +45,9 @@ std::string exchanger_size_sentence(const StageResult& r);
 // A cooled stage's coolant, heat removed and hot spot, in one sentence
 // (empty when the stage is not cooled).
 std::string coolant_sentence(const StageResult& r);
+// A quench's side stream and its mixing, in one sentence (empty for other
+// stages).
+std::string quench_sentence(const StageResult& r);
 
 // A mole fraction as a purity is quoted: in ppm below 0.1 %, else in %
 // ("1 ppm", "6 %"), six significant digits.

@@ -18,9 +18,13 @@
 
 namespace rxtrain {
 
-enum class StageKind { Pfr, Cstr, Exchanger };
+enum class StageKind { Pfr, Cstr, Exchanger, Quench };
 
-// The names every output uses: "pfr", "cstr", "exchanger"; "adiabatic",
+// Tubular reactors and stirred tanks: the stages with a volume, catalyst
+// and a path; exchangers and quenches only change the stream's state.
+inline bool is_reactor(StageKind k) { return k == StageKind::Pfr || k == StageKind::Cstr; }
+
+// The names every output uses: "pfr", "cstr", "exchanger", "quench"; "adiabatic",
 // "isothermal".
 const char* stage_kind_name(StageKind kind);
 const char* heat_mode_name(HeatMode heat);
@@ -229,6 +233,14 @@ struct StageResult {
   std::optional<ExchangerSize> exchanger_size;
   // Tubular stages given a bed or tubes: the bed as built and its flow.
   std::optional<StageHydraulics> hydraulics;
+  // Quench stages: the side stream that joined, and the share of the feed
+  // it is (with `share`); empty else.
+  std::optional<Stream> side_stream;
+  std::optional<double> share;
+  // mol/s, the key fed so far at this stage's outlet (the first stage's
+  // feed plus every side stream joined up to here): the conversion's
+  // basis, X = 1 - F_key / F_key_fed (set by run_train).
+  double F_key_fed = 0;
   // Cooled tubular stages: the coolant and the hot spot; empty else.
   std::optional<CoolantResult> coolant;
   std::optional<HotSpot> hot_spot;
