@@ -341,3 +341,42 @@ train:
   std::get<ReactorSpec>(no_flow.train[0]).cooling->flow.reset();
   CHECK_THROWS_WITH(validate_case(no_flow), Catch::Contains("positive flow and cp"));
 }
+
+TEST_CASE("a countercurrent stage with several steady states is refused, naming them", "[cooled]") {
+  // A strongly exothermic reaction with a weak, countercurrent coolant:
+  // the heat the coolant carries back to the inlet can ignite the bed, so
+  // an extinguished state near 500 K and ignited ones coexist (the
+  // multiplicity of autothermal reactors; invented data).
+  const std::string text = R"(title: several steady states (invented)
+phase: gas
+species:
+  - {id: A, formula: C4H10, thermo: {cp: 90 J/mol/K, h_f: 0 J/mol}}
+  - {id: B, formula: C2H5, thermo: {cp: 40 J/mol/K, h_f: 0 J/mol}}
+  - {id: I, formula: N2, thermo: {cp: 30 J/mol/K, h_f: 0 J/mol}}
+reactions:
+  - id: R
+    equation: A => 2 B
+    rate: {per: volume, A: 1e-5 mol/(m3*s*Pa), Ea: 150 kJ/mol, T_ref: 600 K, driving: pressure, orders: {A: 1}}
+    dH: -150 kJ/mol
+feed: {T: 500 K, P: 5 bar, flows: {A: 10 mol/s, I: 40 mol/s}}
+key: A
+train:
+  - type: pfr
+    id: R1
+    volume: 1 m3
+    tubes: {count: 500, diameter: 40 mm, void_fraction: 0.4}
+    heat: {U: 20 W/m2/K, coolant: {T_in: 500 K, flow: 1 kg/s, cp: 1 kJ/kg/K, direction: countercurrent}}
+)";
+  UnitParser units;
+  const Case c = load_case_from_string(text, "case.yaml", units);
+  const auto& r = std::get<ReactorSpec>(c.train[0]);
+  SunContext ctx;
+  try {
+    run_pfr(c.mechanism, r, c.feed, c.conversion_basis(), ctx, PfrOptions{});
+    FAIL("no error");
+  } catch (const InfeasibleError& e) {
+    CHECK_THAT(e.what(), Catch::Contains("has 3 solutions") &&
+                             Catch::Contains("several steady states") &&
+                             Catch::Contains("steps of 2 K"));
+  }
+}

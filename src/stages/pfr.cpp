@@ -669,10 +669,13 @@ StageResult integrate_pfr(const Mechanism& mech, const ReactorSpec& spec, const 
 // rises by at most its adiabatic rise); every sign change of the miss is a
 // solution. None: refused; several: refused with each, since the stage
 // then has several steady states and which one a plant runs at depends on
-// its start-up. One: Brent's method on the bracket.
-constexpr double kScanAbove = 400;  // K (common practice, no source)
-constexpr int kScanPoints = 41;
-constexpr int kEdgeBisections = 30;  // to 400 K / 40 / 2^30, far below a kelvin
+// its start-up. One: Brent's method on the bracket. Two solutions closer
+// together than the scan's step (kScanStep) can hide between two guesses:
+// every message names the step, and the docs say so.
+constexpr double kScanAbove = 400;   // K (common practice, no source)
+constexpr double kScanBelow = 10;    // K below the lower inlet: a solution right at it
+constexpr double kScanStep = 2;      // K between guesses
+constexpr int kEdgeBisections = 30;  // to 2 K / 2^30, far below a kelvin
 
 StageResult run_countercurrent(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
                                const ConversionBasis& basis, PfrWorkspace& ws,
@@ -693,7 +696,9 @@ StageResult run_countercurrent(const Mechanism& mech, const ReactorSpec& spec, c
     }
     return st.y[ic] - T_in;
   };
-  const double lo = std::min(T_in, inlet.T), hi = std::max(T_in, inlet.T) + kScanAbove;
+  const double lo = std::min(T_in, inlet.T) - kScanBelow;
+  const double hi = std::max(T_in, inlet.T) + kScanAbove;
+  const int kScanPoints = static_cast<int>(std::ceil((hi - lo) / kScanStep)) + 1;
   // (guess, miss) in increasing guess; NaN where the bed cannot run from
   // the guess (the coolant drives T to absolute zero when the guess is far
   // off: integrated against its flow, a coolant's error grows along the bed).
@@ -739,9 +744,10 @@ StageResult run_countercurrent(const Mechanism& mech, const ReactorSpec& spec, c
     throw InfeasibleError(
         spec.cooling->where,
         fmt::format("stage {}: no countercurrent solution found: shooting on the coolant's "
-                    "outlet temperature from {:.2f} to {:.2f} K brackets no coolant inlet at "
-                    "{:.2f} K (check the coolant's flow, cp and T_in, and U)",
-                    spec.id, lo, hi, T_in),
+                    "outlet temperature from {:.2f} to {:.2f} K in steps of {:g} K brackets no "
+                    "coolant inlet at {:.2f} K (two solutions closer than a step would hide "
+                    "between guesses; check the coolant's flow, cp and T_in, and U)",
+                    spec.id, lo, hi, kScanStep, T_in),
         0.0, "coolant outlet temperature");
   std::vector<double> roots;
   for (const auto& [a, b] : brackets) {
@@ -758,15 +764,19 @@ StageResult run_countercurrent(const Mechanism& mech, const ReactorSpec& spec, c
     throw InfeasibleError(
         spec.cooling->where,
         fmt::format("stage {}: the countercurrent coolant has {} solutions (coolant outlet at "
-                    "{}): the stage has several steady states, and which one it runs at "
-                    "depends on its start-up; rate it with a constant or cocurrent coolant, or "
-                    "change U or the coolant flow",
-                    spec.id, roots.size(), list),
+                    "{}; scanned in steps of {:g} K): the stage has several steady states, and "
+                    "which one it runs at depends on its start-up; rate it with a constant or "
+                    "cocurrent coolant, or change U or the coolant flow",
+                    spec.id, roots.size(), list, kScanStep),
         0.0, "coolant outlet temperature");
   }
   st.counter_T_c0 = roots.front();
   StageResult res = integrate_pfr(mech, spec, inlet, basis, ws, options);
   res.coolant->shooting_trials = trials + 1;
+  res.stats.message = fmt::format(
+      "countercurrent coolant: its outlet found by shooting, one solution on a scan of {:.2f} to "
+      "{:.2f} K in steps of {:g} K ({} trials)",
+      lo, hi, kScanStep, trials + 1);
   return res;
 }
 
