@@ -174,3 +174,59 @@ TEST_CASE("a three-bed quench converter agrees with GSL doing the mixing itself"
   CHECK(r.stages[0].conversion > 0.2);
   CHECK(r.outlet.T > r.stages[3].outlet.T + 5);
 }
+
+TEST_CASE("a quench in a case file: a share, or a side stream with its own T, P and flows",
+          "[quench]") {
+  const std::string head = R"(title: t
+phase: gas
+species:
+  - {id: A, formula: C4H10, thermo: {cp: 90 J/mol/K, h_f: 0 J/mol}}
+  - {id: B, formula: C2H5, thermo: {cp: 40 J/mol/K, h_f: 0 J/mol}}
+reactions:
+  - id: R
+    equation: A => 2 B
+    rate: {per: volume, A: 1e-5 mol/(m3*s*Pa), Ea: 80 kJ/mol, T_ref: 600 K, driving: pressure, orders: {A: 1}}
+    dH: -60 kJ/mol
+feed: {T: 600 K, P: 5 bar, flows: {A: 10 mol/s}}
+key: A
+train:
+  - {type: pfr, id: B1, volume: 1 m3}
+)";
+  UnitParser units;
+  const Case c = load_case_from_string(
+      head +
+          "  - {type: quench, id: Q1, share: 0.25}\n"
+          "  - {type: pfr, id: B2, volume: 1 m3}\n"
+          "  - {type: quench, id: Q2, stream: {T: 40 degC, flows: {A: 3600 mol/h}}}\n"
+          "  - {type: pfr, id: B3, volume: 1 m3}\n",
+      "case.yaml", units);
+  const auto& q1 = std::get<QuenchSpec>(c.train[1]);
+  CHECK(*q1.share == 0.25);
+  CHECK_FALSE(q1.T);  // the feed's
+  const auto& q2 = std::get<QuenchSpec>(c.train[3]);
+  REQUIRE(q2.stream);
+  CHECK(q2.stream->T == Approx(313.15).epsilon(1e-14));
+  CHECK(q2.stream->P == 5e5);  // default: the feed's
+  CHECK(q2.stream->F[0] == Approx(1.0).epsilon(1e-14));
+  CHECK(c.quench_shares() == 0.25);
+  CHECK_NOTHROW(validate_case(c));
+  const TrainResult r = run_train(c, TrainOptions{});
+  CHECK(r.stages[0].inlet.F[0] == Approx(7.5).epsilon(1e-15));
+  CHECK(r.stages[1].side_stream->T == 600);  // a share without T joins at the feed's
+  CHECK(r.stages[4].F_key_fed == Approx(11.0).epsilon(1e-15));
+  CHECK(r.conversion == Approx(1 - r.outlet.F[0] / 11.0).epsilon(1e-14));
+  // A share and a stream together, or neither, are refused at the entry.
+  auto fails = [&](const std::string& stage) {
+    try {
+      load_case_from_string(head + stage, "case.yaml", units);
+    } catch (const InputError& e) {
+      return std::string(e.what());
+    }
+    return std::string("no error");
+  };
+  CHECK_THAT(fails("  - {type: quench, id: Q1, share: 0.2, stream: {T: 300 K, flows: {A: 1 "
+                   "mol/s}}}\n"),
+             Catch::Contains("case.yaml:15:") && Catch::Contains("gives both share and stream"));
+  CHECK_THAT(fails("  - {type: quench, id: Q1}\n"),
+             Catch::Contains("case.yaml:15:") && Catch::Contains("needs share"));
+}
