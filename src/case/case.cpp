@@ -1192,8 +1192,7 @@ QuenchSpec Loader::read_quench(const Fields& f, const YAML::Node& node,
                            "stream (e.g. stream: {{T: 40 degC, flows: {{H2: 120 kmol/h}}}})",
                            ctx));
   if (share) {
-    q.share = number(*share, "share of " + ctx);
-    check_range(*share, "share of " + ctx, kOpenUnitInterval, "", *q.share);
+    q.share = field(*share, CaseFieldKind::QuenchShare, sid);
     if (const auto* t = f.find("T")) q.T = temperature(*t, "T of " + ctx);
     return q;
   }

@@ -51,6 +51,8 @@ constexpr std::array kSpecs{
                   "a temperature", false, kPositive, S::Offered},
     CaseFieldSpec{K::CoolantTin, O::Stage, "train.{}.heat.coolant.T_in", "coolant T_in of stage {}",
                   "K", "a temperature", false, kPositive, S::Offered},
+    CaseFieldSpec{K::QuenchShare, O::Stage, "train.{}.share", "share of stage {}", "1",
+                  "a plain number", false, kOpenUnitInterval, S::Offered},
     CaseFieldSpec{K::RateA, O::Reaction, "reactions.{}.rate.A", "A of reaction {}", "",
                   "a rate constant", false, kPositive, S::Offered},
     CaseFieldSpec{K::RateEa, O::Reaction, "reactions.{}.rate.Ea", "Ea of reaction {}", "J/mol",
@@ -79,6 +81,7 @@ constexpr std::array kSpecs{
 };
 
 const ReactorSpec* reactor(const Case& c, int k) { return std::get_if<ReactorSpec>(&c.train[k]); }
+const QuenchSpec* quench(const Case& c, int k) { return std::get_if<QuenchSpec>(&c.train[k]); }
 const ExchangerSpec* exchanger(const Case& c, int k) {
   return std::get_if<ExchangerSpec>(&c.train[k]);
 }
@@ -109,6 +112,8 @@ bool present(K kind, const Case& c, int k) {
       return exchanger(c, k) && exchanger(c, k)->T_out;
     case K::ExchangerDuty:
       return exchanger(c, k) && exchanger(c, k)->duty;
+    case K::QuenchShare:
+      return quench(c, k) && quench(c, k)->share;
     case K::HeatU:
       return reactor(c, k) && reactor(c, k)->cooling;
     case K::CoolantT:
@@ -310,6 +315,8 @@ double case_field_value(const Case& c, const CaseFieldSpec& spec, int index) {
       return exchanger(c, index)->T_out.value_or(0);
     case K::ExchangerDuty:
       return exchanger(c, index)->duty.value_or(0);
+    case K::QuenchShare:
+      return quench(c, index)->share.value_or(0);
     case K::HeatU:
       return reactor(c, index)->cooling->U;
     case K::CoolantT:
@@ -364,6 +371,10 @@ void set_feed_fraction(Case& c, const CaseField& f, double v) {
 }
 
 void set_stage_field(Case& c, const CaseField& f, double v) {
+  if (auto* q = std::get_if<QuenchSpec>(&c.train[f.index])) {
+    q->share = v;  // QuenchShare, the quench's one field
+    return;
+  }
   if (auto* x = std::get_if<ExchangerSpec>(&c.train[f.index])) {
     (f.spec->kind == K::ExchangerTout ? x->T_out : x->duty) = v;
     return;

@@ -10,6 +10,7 @@
 //   feed.T  feed.P  feed.flow  feed.flows.ID  feed.composition.ID
 //   train.ID.volume | catalyst | target.conversion | bulk_density | activity | T_out | duty
 //   train.ID.heat.U | heat.coolant.T | heat.coolant.T_in  (cooled tubular stages)
+//   train.ID.share  (a quench's share of the feed)
 //   reactions.ID.rate.A | rate.Ea | rate.T_ref
 //   reactions.ID.equilibrium.K | equilibrium.T | equilibrium.dH  (van 't Hoff form)
 //   species.ID.mw | species.ID.density
@@ -60,9 +61,10 @@ enum class CaseFieldKind {
   Activity,     // a reactor's catalyst activity; every reactor has one (default 1)
   ExchangerTout,
   ExchangerDuty,
-  HeatU,       // a cooled stage's overall coefficient
-  CoolantT,    // a cooled stage's constant coolant temperature
-  CoolantTin,  // a cooled stage's flowing coolant's inlet temperature
+  HeatU,        // a cooled stage's overall coefficient
+  CoolantT,     // a cooled stage's constant coolant temperature
+  CoolantTin,   // a cooled stage's flowing coolant's inlet temperature
+  QuenchShare,  // a quench's share of the feed
   RateA,
   RateEa,
   RateTref,
