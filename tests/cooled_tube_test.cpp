@@ -11,7 +11,9 @@
 // tests.
 #include <catch2/catch.hpp>
 #include <cmath>
+#include <fstream>
 #include <numbers>
+#include <sstream>
 #include <string>
 #include <vector>
 
@@ -378,5 +380,33 @@ train:
     CHECK_THAT(e.what(), Catch::Contains("has 3 solutions") &&
                              Catch::Contains("several steady states") &&
                              Catch::Contains("steps of 2 K"));
+  }
+}
+
+TEST_CASE("a cooled stage sized past what it can reach names the cooled path's limit", "[cooled]") {
+  // The cooled demo (a reversible oxidation) with a constant coolant, no
+  // pellets and a target beyond the equilibrium near the coolant's
+  // temperature: refused, and not as an adiabatic limit.
+  std::ifstream in(std::string(RXTRAIN_SOURCE_DIR) + "/cases/so2-cooled-multitubular.yaml");
+  std::stringstream ss;
+  ss << in.rdbuf();
+  UnitParser units;
+  Case c = load_case_from_string(ss.str(), "so2-cooled-multitubular.yaml", units);
+  auto& r = std::get<ReactorSpec>(c.train[0]);
+  r.pellet.reset();
+  r.cooling->direction = CoolantFlow::Constant;
+  r.cooling->flow.reset();
+  r.cooling->cp.reset();
+  r.catalyst_mass.reset();
+  r.volume.reset();
+  r.target_conversion = 0.9995;
+  SunContext ctx;
+  try {
+    run_pfr(c.mechanism, r, c.feed, c.conversion_basis(), ctx, PfrOptions{});
+    FAIL("no error");
+  } catch (const InfeasibleError& e) {
+    CHECK_THAT(e.what(), Catch::Contains("out of reach") &&
+                             Catch::Contains("the equilibrium limit along the cooled path"));
+    CHECK_THAT(e.what(), !Catch::Contains("adiabatic"));
   }
 }
