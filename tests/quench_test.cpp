@@ -95,9 +95,17 @@ TEST_CASE("the conversion counts the key fed so far, side streams included", "[q
   side.where = {"case.yaml", 1, 1};
   Case c =
       quench_case({bed("B1", 0.3), share("Q1", 0.2, 450), bed("B2", 0.3), side, bed("B3", 0.3)});
+  c.products = {1};  // B: its yield is on the key fed so far too
   validate_case(c);
   const TrainResult r = run_train(c, tight());
   REQUIRE(r.stages.size() == 5);
+  // Y_B = |nu_A / nu_B| F_B / F_A,fed = 0.5 F_B / F_A,fed.
+  REQUIRE(r.stages[1].yield.size() == 1);
+  CHECK(r.stages[0].yield[0] == Approx(0.5 * r.stages[0].outlet.F[1] / 8).epsilon(1e-14));
+  CHECK(r.stages[1].yield[0] == Approx(0.5 * r.stages[1].outlet.F[1] / 10).epsilon(1e-14));
+  CHECK(r.yield[0] == Approx(0.5 * r.outlet.F[1] / 13).epsilon(1e-14));
+  // One reaction: every converted A makes B, S = 1 at every stage.
+  CHECK(*r.stages[3].selectivity[0] == Approx(1.0).epsilon(1e-10));
   CHECK(r.stages[0].inlet.F[0] == Approx(8.0).epsilon(1e-15));
   const double FA1 = r.stages[0].outlet.F[0];
   CHECK(r.stages[0].conversion == Approx(1 - FA1 / 8).epsilon(1e-14));
