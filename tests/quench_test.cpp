@@ -118,6 +118,12 @@ TEST_CASE("the conversion counts the key fed so far, side streams included", "[q
   // A quench steps the conversion down (the side stream brings unconverted key).
   CHECK(r.stages[1].conversion < r.stages[0].conversion);
   CHECK(r.stages[3].conversion < r.stages[2].conversion);
+  // The Levenspiel curve of a bed after a quench is on that bed's basis:
+  // its area is the bed's catalyst (0.3 m3 x 800 kg/m3).
+  const TrainResult with_views = run_train(c, TrainOptions{});
+  REQUIRE(with_views.levenspiel.size() == 3);
+  CHECK(with_views.levenspiel[1].X_in == Approx(with_views.stages[1].conversion).epsilon(1e-14));
+  CHECK(with_views.levenspiel[2].area == Approx(240.0).epsilon(1e-5));
   REQUIRE(r.stages[3].side_stream);
   CHECK(r.stages[3].side_stream->F[0] == 3.0);
   REQUIRE(r.stages[1].share);

@@ -172,17 +172,20 @@ std::vector<LevenspielCurve> levenspiel_curves(const Mechanism& mech, int key, d
   bool all_catalyst = mech.n_reactions() > 0;
   for (const auto& rx : mech.reactions())
     all_catalyst = all_catalyst && rx.rate.basis == RateBasis::Catalyst;
-  const ConversionBasis basis{key, F_key_feed};
   std::vector<LevenspielCurve> out;
   for (const auto& s : stages) {
     if (!is_reactor(s.kind)) continue;
+    // The stage's own basis where the train set it (the key fed so far,
+    // side streams included), so the curve's X is the stage's.
+    const double F0 = s.F_key_fed > 0 ? s.F_key_fed : F_key_feed;
+    const ConversionBasis basis{key, F0};
     LevenspielCurve c;
     c.stage = s.id;
     c.catalyst_basis = all_catalyst && s.bulk_density.has_value();
     c.rectangle = s.kind == StageKind::Cstr;
     c.X_in = basis.conversion(s.inlet);
     c.X_out = s.conversion;
-    StageCurve sc(mech, key, F_key_feed, s, c.catalyst_basis);
+    StageCurve sc(mech, key, F0, s, c.catalyst_basis);
     if (c.rectangle) {
       const double g = sc.inverse_rate(s.outlet.T, s.outlet.F.data());
       if (std::isfinite(g)) {
