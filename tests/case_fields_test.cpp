@@ -61,6 +61,7 @@ train:
     volume: 3 m3
     tubes: {count: 300, diameter: auto, dP_max: 0.5 bar, void_fraction: 0.4}
     pellet: {shape: sphere, size: 4 mm}
+  - {type: pfr, id: R3, volume: 3 m3, tubes: {count: 100, diameter: 40 mm, void_fraction: 0.4}, heat: {U: 150 W/m2/K, coolant: {T: 400 K}}}
 )";
 
 std::string read_text(const std::filesystem::path& p) {

@@ -79,7 +79,7 @@ struct FirstOrderTank {
     s.heat = HeatMode::Adiabatic;
     s.volume = tau * F0 * v;
     s.heat_capacity = C_vessel;
-    if (UA > 0) s.cooling = TankCooling{UA, T_c};
+    if (UA > 0) s.tank_cooling = TankCooling{UA, T_c};
     s.where = {"case.yaml", 7, 3};
     return s;
   }

@@ -296,7 +296,7 @@ TEST_CASE("the linearized balances of gas and liquid tanks match their outflow r
       spec.id = "R1";
       spec.type = rxtrain::ReactorType::Cstr;
       spec.volume = t.V;
-      spec.cooling = rxtrain::TankCooling{t.UA, t.Tc};
+      spec.tank_cooling = rxtrain::TankCooling{t.UA, t.Tc};
       spec.heat_capacity = t.Cv;
       spec.where = {"case.yaml", 1, 1};
       SunContext ctx;
@@ -311,7 +311,7 @@ TEST_CASE("the linearized balances of gas and liquid tanks match their outflow r
         CHECK(std::abs(f0[0]) < 1e-7 * t.in.F[0]);
         CHECK(std::abs(f0[2]) < 1e-7 * s.T);
         rxtrain::detail::CstrBalances b;
-        b.reset(mech, {1.0}, rxtrain::HeatMode::Adiabatic, t.in, spec.cooling);
+        b.reset(mech, {1.0}, rxtrain::HeatMode::Adiabatic, t.in, spec.tank_cooling);
         Eigen::MatrixXd J;
         b.dynamic_jacobian(s.F.data(), s.T, t.V, t.Cv, J);
         REQUIRE(J.rows() == 3);

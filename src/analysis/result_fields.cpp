@@ -90,10 +90,26 @@ constexpr std::array kStage{
                       if (!s->hydraulics) return std::nullopt;
                       return s->hydraulics->velocity_in;
                     }},
+    // Cooled tubular stages (empty elsewhere).
+    ResultFieldSpec{"coolant.T_out", "K", R::Stage,
+                    [](const TrainResult&, const StageResult* s, int) -> V {
+                      return s->coolant ? V(s->coolant->T_out) : std::nullopt;
+                    }},
+    ResultFieldSpec{"coolant.duty", "W", R::Stage,
+                    [](const TrainResult&, const StageResult* s, int) -> V {
+                      return s->coolant ? V(s->coolant->duty) : std::nullopt;
+                    }},
+    ResultFieldSpec{"coolant.dT_max", "K", R::Stage,
+                    [](const TrainResult&, const StageResult* s, int) -> V {
+                      return s->coolant ? V(s->coolant->dT_max) : std::nullopt;
+                    }},
+    ResultFieldSpec{"hot_spot.z", "m", R::Stage,
+                    [](const TrainResult&, const StageResult* s, int) -> V {
+                      return s->hot_spot ? V(s->hot_spot->z) : std::nullopt;
+                    }},
     ResultFieldSpec{"over_limit", "K", R::Stage,
                     [](const TrainResult& r, const StageResult* s, int) -> V {
-                      if (!r.limit_check.applies() || s->kind == StageKind::Exchanger)
-                        return std::nullopt;
+                      if (!r.limit_check.applies() || !is_reactor(s->kind)) return std::nullopt;
                       return r.limit_check.past(s->id);
                     }},
     ResultFieldSpec{"inlet.flows", "mol/s", R::Flow,

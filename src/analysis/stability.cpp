@@ -65,7 +65,7 @@ class TankProblem {
     spec_ = std::get<ReactorSpec>(work_.train[index_]);
     V_ = spec_.volume ? *spec_.volume : 0.0;
     beta_ = rate_multipliers(work_.mechanism, spec_);
-    balances_.reset(work_.mechanism, beta_, spec_.heat, inlet_, spec_.cooling);
+    balances_.reset(work_.mechanism, beta_, spec_.heat, inlet_, spec_.tank_cooling);
     at_ = v;
     ready_ = true;
   }

@@ -56,8 +56,17 @@ double conversion_at(const Case& c, const StageResult& r, double V, const SunCon
   spec.bulk_density = r.bulk_density;
   spec.activity = r.activity;
   spec.pellet = r.pellet;
+  // A cooled bed is re-run cooled, through its tubes (the diameter as run).
+  for (const auto& s : c.train)
+    if (const auto* rs = std::get_if<ReactorSpec>(&s); rs && rs->id == r.id && rs->cooling) {
+      spec.cooling = rs->cooling;
+      spec.geometry = r.hydraulics ? r.hydraulics->geometry : *rs->geometry;
+      spec.geometry->dP_max.reset();
+    }
+  // The stage's own basis: the key fed up to it (side streams included).
+  const ConversionBasis basis{c.key, r.F_key_fed > 0 ? r.F_key_fed : c.feed.F[c.key]};
   try {
-    return run_pfr(c.mechanism, spec, r.inlet, c.conversion_basis(), ctx).conversion;
+    return run_pfr(c.mechanism, spec, r.inlet, basis, ctx).conversion;
   } catch (const SolverError&) {
     const auto& p = r.profile;
     for (std::size_t k = 1; k < p.size(); ++k)
@@ -151,7 +160,7 @@ std::vector<std::string> design_warnings(const Case& c, const TrainResult& resul
 
   SunContext ctx;
   for (const auto& r : result.stages) {
-    if (r.kind == StageKind::Exchanger) continue;
+    if (!is_reactor(r.kind)) continue;
 
     // A stage sized to an outlet purity needs its last ppm, however little
     // conversion they are: its tail is the specification, not waste.
@@ -162,7 +171,9 @@ std::vector<std::string> design_warnings(const Case& c, const TrainResult& resul
     if (r.kind == StageKind::Pfr && r.volume && *r.volume > 0 && !r.profile.empty() &&
         !sized_to_purity) {
       const double V = *r.volume;
-      const double X_in = c.conversion_basis().conversion(r.inlet);
+      const double X_in =
+          ConversionBasis{c.key, r.F_key_fed > 0 ? r.F_key_fed : c.feed.F[c.key]}.conversion(
+              r.inlet);
       const double gain = r.conversion - X_in;
       const double tail = r.conversion - conversion_at(c, r, (1 - kTailFraction) * V, ctx);
       if (gain > 0 && tail < kTailMinConversion && tail < kTailShare * kTailFraction * gain) {

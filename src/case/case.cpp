@@ -32,6 +32,13 @@
 
 namespace rxtrain {
 
+double Case::quench_shares() const {
+  double sum = 0;
+  for (const auto& s : train)
+    if (const auto* q = std::get_if<QuenchSpec>(&s); q && q->share) sum += *q->share;
+  return sum;
+}
+
 const std::string& stage_id(const StageSpec& s) {
   return std::visit([](const auto& x) -> const std::string& { return x.id; }, s);
 }
@@ -242,6 +249,9 @@ class Loader {
   TemperatureLimits read_limits(const YAML::Node& node) const;
   PelletSpec read_pellet(const YAML::Node& node, const std::string& ctx) const;
   BedGeometry read_geometry(const Fields& f, const std::string& ctx) const;
+  CoolingSpec read_cooling(const YAML::Node& node, const std::string& sid,
+                           const std::string& ctx) const;
+  QuenchSpec read_quench(const Fields& f, const YAML::Node& node, const std::string& sid) const;
   ViscosityLaw read_fluid(const YAML::Node& node) const;
   void apply_fluid(const YAML::Node* fluid);
   std::vector<int> read_space_velocity_basis(const YAML::Node& node) const;
@@ -1000,17 +1010,26 @@ void Loader::read_train(const YAML::Node& list) {
                            describe(list)));
   if (list.size() > kMaxStages)
     fail(list, fmt::format("too many stages: {} (the limit is {})", list.size(), kMaxStages));
+  double shares = 0;
   for (std::size_t i = 0; i < list.size(); ++i) {
     train_.push_back(read_stage(list[i], i));
     stage_nodes_.push_back(list[i]);
+    if (const auto* q = std::get_if<QuenchSpec>(&train_.back()); q && q->share) {
+      shares += *q->share;
+      if (shares >= 1)
+        fail(list[i]["share"],
+             fmt::format("the quench shares sum to {:g} at stage {}; they are parts of the feed "
+                         "that bypass the first stage, so they must sum to less than 1",
+                         shares, q->id));
+    }
   }
 }
 
 StageSpec Loader::read_stage(const YAML::Node& node, std::size_t index) {
   Fields f(*this, node, fmt::format("stage entry {}", index + 1));
-  const std::string type =
-      choice(f.need("type", "pfr | cstr | exchanger"),
-             fmt::format("type of stage entry {}", index + 1), {"pfr", "cstr", "exchanger"});
+  const std::string type = choice(f.need("type", "pfr | cstr | exchanger | quench"),
+                                  fmt::format("type of stage entry {}", index + 1),
+                                  {"pfr", "cstr", "exchanger", "quench"});
   const std::string sid = id(f.need("id", "a stage id, e.g. id: R1"), "stage");
   f.set_context("stage " + sid);
   const std::string& ctx = f.context();
@@ -1033,6 +1052,8 @@ StageSpec Loader::read_stage(const YAML::Node& node, std::size_t index) {
     read_exchanger_size(f, x);
     return x;
   }
+
+  if (type == "quench") return read_quench(f, node, sid);
 
   f.check({"type", "id", "volume", "catalyst", "bulk_density", "target", "heat", "activity",
            "pellet", "effectiveness", "bed", "tubes", "heat_capacity"});
@@ -1083,7 +1104,12 @@ StageSpec Loader::read_stage(const YAML::Node& node, std::size_t index) {
   }
   if (const auto* n = f.find("heat")) {
     if (n->IsMap())
-      r.cooling = read_tank_cooling(*n, r.type, sid, ctx);
+      // A stirred tank is cooled through its wall (UA), a tubular stage
+      // through its tubes (U).
+      if (r.type == ReactorType::Cstr)
+        r.tank_cooling = read_tank_cooling(*n, r.type, sid, ctx);
+      else
+        r.cooling = read_cooling(*n, sid, ctx);
     else
       r.heat = choice(*n, "heat of " + ctx, {"adiabatic", "isothermal"}) == "isothermal"
                    ? HeatMode::Isothermal
@@ -1107,6 +1133,17 @@ StageSpec Loader::read_stage(const YAML::Node& node, std::size_t index) {
                        ctx));
     r.geometry = read_geometry(f, ctx);
   }
+  if (r.cooling && (r.type != ReactorType::Pfr || !r.geometry || r.geometry->tubes == 0))
+    fail(*f.key_of("heat"),
+         fmt::format("{} is cooled (heat: {{U, coolant}}) but gives no tubes; the heat goes "
+                     "through the tube walls, 4 / d per bed volume: give the tubes (type: pfr, "
+                     "e.g. tubes: {{count: 2400, diameter: 38 mm, void_fraction: 0.42}})",
+                     ctx));
+  if (r.cooling && r.cooling->direction == CoolantFlow::Countercurrent && r.sized())
+    fail(*f.key_of("target"),
+         fmt::format("{} has a countercurrent coolant, whose outlet is found by shooting on the "
+                     "whole bed: give the bed's size (volume or catalyst), not a target",
+                     ctx));
   if (const auto* n = f.find("effectiveness")) {
     if (!r.pellet || r.pellet->D_eff.empty())
       fail(*f.key_of("effectiveness"),
@@ -1157,7 +1194,126 @@ TankCooling Loader::read_tank_cooling(const YAML::Node& node, ReactorType type,
   Fields k(*this, g.need("coolant", "the coolant, e.g. coolant: {T: 300 K}"), "coolant of " + ctx);
   k.check({"T"});
   c.T_coolant = field(k.need("T", "the coolant's temperature, e.g. T: 27 degC"),
-                      CaseFieldKind::TankCoolantT, sid);
+                      CaseFieldKind::CoolantT, sid);
+  return c;
+}
+
+// A cold shot: {share, T} of the feed, or a side {stream: {T, P, flows}}.
+// It stands after a reactor (a quench before any has nothing to cool).
+QuenchSpec Loader::read_quench(const Fields& f, const YAML::Node& node,
+                               const std::string& sid) const {
+  const std::string& ctx = f.context();
+  f.check({"type", "id", "share", "T", "stream"});
+  QuenchSpec q;
+  q.id = sid;
+  q.where = at(node);
+  const bool after_reactor = std::any_of(train_.begin(), train_.end(), [](const StageSpec& st) {
+    return std::holds_alternative<ReactorSpec>(st);
+  });
+  if (!after_reactor)
+    fail(node, fmt::format("{} is a quench before the first reactor; a cold shot cools a "
+                           "reactor's outlet, so it stands after one (to cool the feed, lower "
+                           "its T or add an exchanger)",
+                           ctx));
+  const auto* share = f.find("share");
+  const auto* stream = f.find("stream");
+  if (share && stream)
+    fail(*f.key_of("stream"), fmt::format("{} gives both share and stream; give one (share: a part "
+                                          "of the feed, stream: an independent side stream)",
+                                          ctx));
+  if (!share && !stream)
+    fail(node, fmt::format("{} needs share (a part of the feed, e.g. share: 0.2, with T) or "
+                           "stream (e.g. stream: {{T: 40 degC, flows: {{H2: 120 kmol/h}}}})",
+                           ctx));
+  if (share) {
+    q.share = field(*share, CaseFieldKind::QuenchShare, sid);
+    if (const auto* t = f.find("T")) q.T = temperature(*t, "T of " + ctx);
+    return q;
+  }
+  if (const auto* t = f.find("T"); t != nullptr)
+    fail(*f.key_of("T"),
+         fmt::format("{} gives T beside stream; the side stream gives its own T", ctx));
+  Fields g(*this, *stream, "stream of " + ctx);
+  g.check({"T", "P", "flows"});
+  Stream st;
+  st.T = temperature(g.need("T", "the side stream's temperature, e.g. T: 40 degC"),
+                     "T of the stream of " + ctx);
+  st.P = feed_.P;
+  if (const auto* p = g.find("P")) {
+    st.P = quantity(*p, "P of the stream of " + ctx, SiUnit::of("Pa", "a pressure"));
+    check_range(*p, "P of the stream of " + ctx, kPositive, "Pa", st.P);
+  }
+  st.F.assign(species_.size(), 0.0);
+  const YAML::Node& flows =
+      g.need("flows", "the side stream's flows, e.g. flows: {H2: 120 kmol/h}");
+  Fields fl(*this, flows, "flows of the stream of " + ctx);
+  double total = 0;
+  for (const auto& e : fl.entries()) {
+    const int i = species_index(e.key, "flows of the stream of " + ctx);
+    st.F[i] = quantity(e.value, "flow of " + e.name + " in the stream of " + ctx,
+                       SiUnit::of("mol/s", "a molar flow"));
+    check_range(e.value, "flow of " + e.name + " in the stream of " + ctx, kNonNegative, "mol/s",
+                st.F[i]);
+    total += st.F[i];
+  }
+  if (!(total > 0)) fail(flows, fmt::format("the side stream of {} has no flow", ctx));
+  q.stream = st;
+  return q;
+}
+
+// A cooled stage's heat: {U, coolant: {T}} (constant coolant) or
+// {U, coolant: {T_in, flow, cp, direction}}.
+CoolingSpec Loader::read_cooling(const YAML::Node& node, const std::string& sid,
+                                 const std::string& ctx) const {
+  Fields f(*this, node, "heat of " + ctx);
+  if (f.find("UA"))
+    fail(*f.key_of("UA"),
+         fmt::format("heat of {}: UA (a wall's U times its area) cools a stirred tank (type: "
+                     "cstr); a cooled tubular stage gives U on the tubes' inner surface and "
+                     "tubes, e.g. heat: {{U: 220 W/m2/K, coolant: {{T: 250 degC}}}}",
+                     ctx));
+  f.check({"U", "coolant"});
+  CoolingSpec c;
+  c.where = at(node);
+  const YAML::Node& co =
+      f.need("coolant", "the coolant outside the tubes, e.g. coolant: {T: 250 degC}");
+  if (!f.find("U"))
+    fail(*f.key_of("coolant"),
+         fmt::format("heat of {} gives a coolant without U, the overall heat transfer "
+                     "coefficient on the tube's inner surface (e.g. U: 220 W/m2/K)",
+                     ctx));
+  c.U = field(*f.find("U"), CaseFieldKind::HeatU, sid);
+  const std::string what = "coolant of " + ctx;
+  Fields g(*this, co, what);
+  g.check({"T", "T_in", "flow", "cp", "direction"});
+  if (const auto* t = g.find("T")) {
+    if (g.find("T_in") || g.find("flow") || g.find("cp") || g.find("direction"))
+      fail(*g.key_of("T"), fmt::format("{} gives T (a constant coolant temperature: boiling) "
+                                       "together with T_in, flow, cp or direction; give one kind",
+                                       what));
+    c.T = field(*t, CaseFieldKind::CoolantT, sid);
+    return c;
+  }
+  const YAML::Node& dir =
+      g.need("direction",
+             "cocurrent or countercurrent, with T_in, flow and cp; or T for a constant "
+             "coolant temperature");
+  c.direction = choice(dir, "direction of " + what, {"cocurrent", "countercurrent"}) == "cocurrent"
+                    ? CoolantFlow::Cocurrent
+                    : CoolantFlow::Countercurrent;
+  const char* words = c.direction == CoolantFlow::Cocurrent ? "cocurrent" : "countercurrent";
+  if (!g.find("flow") || !g.find("cp"))
+    fail(dir, fmt::format("{} is {} but gives no {}; a flowing coolant needs its mass flow and "
+                          "specific heat (e.g. flow: 30 kg/s, cp: 1.55 kJ/kg/K)",
+                          what, words, !g.find("flow") ? "flow" : "cp"));
+  c.T = field(g.need("T_in", "the coolant's inlet temperature, e.g. T_in: 240 degC"),
+              CaseFieldKind::CoolantTin, sid);
+  const SiUnit flow_unit = SiUnit::of("kg/s", "a mass flow");
+  c.flow = quantity(*g.find("flow"), "flow of " + what, flow_unit);
+  check_range(*g.find("flow"), "flow of " + what, kPositive, "kg/s", *c.flow);
+  const SiUnit cp_unit = SiUnit::of("J/(kg*K)", "a specific heat capacity");
+  c.cp = quantity(*g.find("cp"), "cp of " + what, cp_unit);
+  check_range(*g.find("cp"), "cp of " + what, kPositive, "J/(kg*K)", *c.cp);
   return c;
 }
 

@@ -43,9 +43,8 @@ constexpr std::array kSpecs{
                   "a plain number", false, kPositive, S::Offered},
     CaseFieldSpec{K::TankUA, O::Stage, "train.{}.heat.UA", "UA of stage {}", "W/K",
                   "a heat-transfer capacity (U times area)", false, kPositive, S::Offered},
-    CaseFieldSpec{K::TankCoolantT, O::Stage, "train.{}.heat.coolant.T",
-                  "T of the coolant of stage {}", "K", "a temperature", false, kPositive,
-                  S::Offered},
+    CaseFieldSpec{K::CoolantT, O::Stage, "train.{}.heat.coolant.T", "T of the coolant of stage {}",
+                  "K", "a temperature", false, kPositive, S::Offered},
     CaseFieldSpec{K::TankHeatCapacity, O::Stage, "train.{}.heat_capacity",
                   "heat_capacity of stage {}", "J/K", "a heat capacity", false, kNonNegative,
                   S::Offered},
@@ -69,6 +68,12 @@ constexpr std::array kSpecs{
                   "a pressure", false, kPositive, S::Offered},
     CaseFieldSpec{K::PelletSize, O::Stage, "train.{}.pellet.size", "pellet size of stage {}", "m",
                   "a length", false, kPositive, S::Offered},
+    CaseFieldSpec{K::HeatU, O::Stage, "train.{}.heat.U", "U of stage {}", "W/(m2*K)",
+                  "a heat transfer coefficient", false, kPositive, S::Offered},
+    CaseFieldSpec{K::CoolantTin, O::Stage, "train.{}.heat.coolant.T_in", "coolant T_in of stage {}",
+                  "K", "a temperature", false, kPositive, S::Offered},
+    CaseFieldSpec{K::QuenchShare, O::Stage, "train.{}.share", "share of stage {}", "1",
+                  "a plain number", false, kOpenUnitInterval, S::Offered},
     CaseFieldSpec{K::RateA, O::Reaction, "reactions.{}.rate.A", "A of reaction {}", "",
                   "a rate constant", false, kPositive, S::Offered},
     CaseFieldSpec{K::RateEa, O::Reaction, "reactions.{}.rate.Ea", "Ea of reaction {}", "J/mol",
@@ -102,6 +107,7 @@ constexpr std::array kSpecs{
 };
 
 const ReactorSpec* reactor(const Case& c, int k) { return std::get_if<ReactorSpec>(&c.train[k]); }
+const QuenchSpec* quench(const Case& c, int k) { return std::get_if<QuenchSpec>(&c.train[k]); }
 const ExchangerSpec* exchanger(const Case& c, int k) {
   return std::get_if<ExchangerSpec>(&c.train[k]);
 }
@@ -143,8 +149,7 @@ bool present(K kind, const Case& c, int k) {
     case K::Activity:
       return reactor(c, k) != nullptr;
     case K::TankUA:
-    case K::TankCoolantT:
-      return reactor(c, k) && reactor(c, k)->cooling;
+      return reactor(c, k) && reactor(c, k)->tank_cooling;
     case K::TankHeatCapacity:
       return reactor(c, k) && reactor(c, k)->heat_capacity;
     case K::ExchangerTout:
@@ -169,6 +174,17 @@ bool present(K kind, const Case& c, int k) {
       return viscosity(c) && viscosity(c)->exponent == 0;
     case K::ViscosityValue:
       return viscosity(c) && viscosity(c)->exponent != 0;
+    case K::QuenchShare:
+      return quench(c, k) && quench(c, k)->share;
+    case K::HeatU:
+      return reactor(c, k) && reactor(c, k)->cooling;
+    case K::CoolantT:
+      return reactor(c, k) && (reactor(c, k)->tank_cooling ||
+                               (reactor(c, k)->cooling &&
+                                reactor(c, k)->cooling->direction == CoolantFlow::Constant));
+    case K::CoolantTin:
+      return reactor(c, k) && reactor(c, k)->cooling &&
+             reactor(c, k)->cooling->direction != CoolantFlow::Constant;
     case K::RateTref:
       return m.reactions()[k].rate.T_ref.has_value();
     case K::EquilibriumK:
@@ -361,9 +377,7 @@ double case_field_value(const Case& c, const CaseFieldSpec& spec, int index) {
     case K::Activity:
       return reactor(c, index)->activity;
     case K::TankUA:
-      return reactor(c, index)->cooling ? reactor(c, index)->cooling->UA : 0.0;
-    case K::TankCoolantT:
-      return reactor(c, index)->cooling ? reactor(c, index)->cooling->T_coolant : 0.0;
+      return reactor(c, index)->tank_cooling ? reactor(c, index)->tank_cooling->UA : 0.0;
     case K::TankHeatCapacity:
       return reactor(c, index)->heat_capacity.value_or(0);
     case K::ExchangerTout:
@@ -384,6 +398,15 @@ double case_field_value(const Case& c, const CaseFieldSpec& spec, int index) {
     case K::Viscosity:
     case K::ViscosityValue:
       return viscosity(c)->value;
+    case K::QuenchShare:
+      return quench(c, index)->share.value_or(0);
+    case K::HeatU:
+      return reactor(c, index)->cooling->U;
+    case K::CoolantT:
+      if (const auto& t = reactor(c, index)->tank_cooling) return t->T_coolant;
+      return reactor(c, index)->cooling->T;
+    case K::CoolantTin:
+      return reactor(c, index)->cooling->T;
     case K::RateA:
       return m.reactions()[index].rate.A;
     case K::RateEa:
@@ -433,6 +456,10 @@ void set_feed_fraction(Case& c, const CaseField& f, double v) {
 }
 
 void set_stage_field(Case& c, const CaseField& f, double v) {
+  if (auto* q = std::get_if<QuenchSpec>(&c.train[f.index])) {
+    q->share = v;  // QuenchShare, the quench's one field
+    return;
+  }
   if (auto* x = std::get_if<ExchangerSpec>(&c.train[f.index])) {
     (f.spec->kind == K::ExchangerTout ? x->T_out : x->duty) = v;
     return;
@@ -474,13 +501,22 @@ void set_stage_field(Case& c, const CaseField& f, double v) {
       r.pellet->size = v;
       break;
     case K::TankUA:
-      if (r.cooling) r.cooling->UA = v;
-      break;
-    case K::TankCoolantT:
-      if (r.cooling) r.cooling->T_coolant = v;
+      if (r.tank_cooling) r.tank_cooling->UA = v;
       break;
     case K::TankHeatCapacity:
       r.heat_capacity = v;
+      break;
+    case K::HeatU:
+      r.cooling->U = v;
+      break;
+    case K::CoolantT:
+      if (r.tank_cooling)
+        r.tank_cooling->T_coolant = v;
+      else
+        r.cooling->T = v;
+      break;
+    case K::CoolantTin:
+      r.cooling->T = v;
       break;
     default:
       break;

@@ -66,17 +66,18 @@ struct Checker {
 
 // The loader's checks of a stirred tank's cooling and heat capacity.
 void Checker::tank_heat(const ReactorSpec& r) const {
-  if ((r.cooling || r.heat_capacity) && r.type != ReactorType::Cstr)
+  if ((r.tank_cooling || r.heat_capacity) && r.type != ReactorType::Cstr)
     fail(r.where, fmt::format("stage {}: cooling by UA and a vessel heat capacity belong to a "
                               "stirred tank (type: cstr)",
                               r.id));
-  if (r.cooling && !(r.cooling->UA > 0 && std::isfinite(r.cooling->UA)))
+  if (r.tank_cooling && !(r.tank_cooling->UA > 0 && std::isfinite(r.tank_cooling->UA)))
     fail(r.where,
-         fmt::format("UA of stage {} must be positive, got {:g} W/K", r.id, r.cooling->UA));
-  if (r.cooling && !(r.cooling->T_coolant > 0 && std::isfinite(r.cooling->T_coolant)))
+         fmt::format("UA of stage {} must be positive, got {:g} W/K", r.id, r.tank_cooling->UA));
+  if (r.tank_cooling &&
+      !(r.tank_cooling->T_coolant > 0 && std::isfinite(r.tank_cooling->T_coolant)))
     fail(r.where, fmt::format("T of the coolant of stage {} must be above absolute zero, got "
                               "{:g} K",
-                              r.id, r.cooling->T_coolant));
+                              r.id, r.tank_cooling->T_coolant));
   if (r.heat_capacity && !(*r.heat_capacity >= 0 && std::isfinite(*r.heat_capacity)))
     fail(r.where, fmt::format("heat_capacity of stage {} must not be negative, got {:g} J/K", r.id,
                               *r.heat_capacity));
@@ -91,6 +92,23 @@ void Checker::bed(const ReactorSpec& r) const {
       fail(r.where, fmt::format("stage {}: the fluid viscosity needs a positive value, an exponent "
                                 "from 0 to 3 and, with an exponent, a positive T",
                                 r.id));
+  }
+  if (r.cooling) {
+    // The loader's checks of a cooled stage: tubes, and a flowing
+    // coolant's flow and cp (U and T are fields of the table).
+    const CoolingSpec& cs = *r.cooling;
+    if (r.type != ReactorType::Pfr || !r.geometry || r.geometry->tubes == 0)
+      fail(cs.where, fmt::format("stage {} is cooled but gives no tubes; the heat goes through the "
+                                 "tube walls",
+                                 r.id));
+    if (cs.direction != CoolantFlow::Constant &&
+        !(cs.flow && *cs.flow > 0 && std::isfinite(*cs.flow) && cs.cp && *cs.cp > 0 &&
+          std::isfinite(*cs.cp)))
+      fail(cs.where, fmt::format("stage {}: a flowing coolant needs a positive flow and cp", r.id));
+    if (cs.direction == CoolantFlow::Countercurrent && r.sized())
+      fail(cs.where, fmt::format("stage {} has a countercurrent coolant: give its size, not a "
+                                 "target",
+                                 r.id));
   }
   if (!r.geometry) return;
   const BedGeometry& g = *r.geometry;
@@ -244,10 +262,20 @@ void Checker::feed_and_key() const {
 }
 
 void Checker::stages() const {
+  if (!(c.quench_shares() < 1))
+    fail(file(), fmt::format("the quench shares sum to {:g}; they must sum to less than 1",
+                             c.quench_shares()));
   for (const auto& s : c.train) {
     if (const auto* x = std::get_if<ExchangerSpec>(&s)) {
       if (x->T_out.has_value() == x->duty.has_value())
         fail(x->where, fmt::format("stage {} needs exactly one of T_out and duty", x->id));
+      continue;
+    }
+    if (const auto* q = std::get_if<QuenchSpec>(&s)) {
+      if (q->share.has_value() == q->stream.has_value())
+        fail(q->where, fmt::format("stage {} needs exactly one of share and stream", q->id));
+      if (q->share && !(*q->share > 0 && *q->share < 1))
+        fail(q->where, fmt::format("stage {}: share must lie strictly between 0 and 1", q->id));
       continue;
     }
     const auto& r = std::get<ReactorSpec>(s);

@@ -23,10 +23,13 @@ void add_equilibrium_records(const Case& c, const TrainOptions& options, TrainRe
   for (auto& r : result.stages) {
     T_lo = std::min({T_lo, r.T_min, r.inlet.T, r.outlet.T});
     T_hi = std::max({T_hi, r.T_max, r.inlet.T, r.outlet.T});
-    if (r.kind == StageKind::Exchanger || !r.heat) continue;
+    // A cooled stage's path lies on no adiabatic or isothermal line that
+    // these views are drawn on.
+    if (!is_reactor(r.kind) || !r.heat || r.coolant) continue;
     try {
       r.equilibrium =
-          equilibrium_record(mech, r.inlet, r.outlet, *r.heat, basis, options.solvers.equilibrium);
+          equilibrium_record(mech, r.inlet, r.outlet, *r.heat, ConversionBasis{c.key, r.F_key_fed},
+                             options.solvers.equilibrium);
       if (r.equilibrium) {
         T_lo = std::min(T_lo, r.equilibrium->T_ad_eq);
         T_hi = std::max(T_hi, r.equilibrium->T_ad_eq);
@@ -69,22 +72,24 @@ CstrOptions tank_options(const TrainOptions& options) { return options.solvers.t
 // inside it, a rated bed already past its peak.
 void add_reaches(const Case& c, const TrainOptions& options, TrainResult& result) {
   const Mechanism& mech = c.mechanism;
-  const ConversionBasis basis = c.conversion_basis();
   TrainWorkspace ws;
   for (auto& r : result.stages) {
-    if (r.kind == StageKind::Exchanger || !r.heat) continue;
+    // A cooled stage's path lies on no adiabatic or isothermal line that
+    // these views are drawn on.
+    if (!is_reactor(r.kind) || !r.heat || r.coolant) continue;
     ReactorSpec spec{};
     spec.id = r.id;
     // The pellets too: the reach is on the rates the stage runs with.
     for (const auto& st : c.train)
       if (const auto* rs = std::get_if<ReactorSpec>(&st); rs && rs->id == r.id) {
         spec.pellet = rs->pellet;
-        spec.cooling = rs->cooling;  // a cooled tank's branch is its own
+        spec.tank_cooling = rs->tank_cooling;  // a cooled tank's branch is its own
       }
     spec.type = r.kind == StageKind::Cstr ? ReactorType::Cstr : ReactorType::Pfr;
     spec.heat = *r.heat;
     spec.bulk_density = r.bulk_density;
     spec.activity = r.activity;
+    const ConversionBasis basis{c.key, r.F_key_fed};  // the key fed up to this stage
     // What the run and the record already know of the path (ReachHints):
     // its outlet, on the same path when the stage ran at constant
     // pressure, and the exact equilibrium end of one reaction.
@@ -159,22 +164,31 @@ TrainResult run_train(const Case& c, const TrainOptions& options, TrainWorkspace
 
   TrainResult result = TrainResult::for_case(c);
 
+  // Quench shares bypass the first stage: it gets the rest of the feed.
+  // The conversion's basis is the key fed so far (docs/case-format.md,
+  // "Cold-shot quench"): the first stage's feed, then each side stream's
+  // key added as it joins.
   Stream stream = c.feed;
+  const double rest = 1 - c.quench_shares();
+  for (auto& f : stream.F) f *= rest;
+  ConversionBasis fed{basis.key, stream.F[basis.key]};
   CstrOptions tank = tank_options(options);
-  const StageContext ctx{mech, basis, ws.pfr(), ws.cstr(), options.solvers.tube, tank};
   for (const auto& spec : c.train) {
     // A stirred tank starts from its warm starts, if any.
     tank.guesses = {};
     for (const auto& w : options.warm_starts)
       if (w.stage == stage_id(spec)) tank.guesses = w.states;
+    const StageContext ctx{mech, fed, ws.pfr(), ws.cstr(), options.solvers.tube, tank, &c.feed};
     StageResult r = run_stage(spec, stream, ctx);
+    if (r.side_stream) fed.F_key_feed += r.side_stream->F[basis.key];
+    r.F_key_fed = fed.F_key_feed;
     if (!c.space_velocity_basis.empty()) add_space_velocities(mech, r, c.space_velocity_basis);
     for (const auto& w : r.warnings) result.warnings.push_back(w);
     stream = r.outlet;
     result.stages.push_back(std::move(r));
   }
   result.outlet = stream;
-  result.conversion = basis.conversion(stream);
+  result.conversion = fed.conversion(stream);
   result.limit_check = check_limits(c, options, result.stages);
   add_product_yields(c, result);
   if (options.equilibrium_views) add_equilibrium_views(c, options, result);

@@ -140,4 +140,17 @@ void stream_after_extent(const Mechanism& mech, const Stream& inlet, HeatMode he
   }
 }
 
+Stream mix_adiabatic(const Mechanism& mech, const Stream& main, const Stream& side) {
+  Stream out;
+  out.P = main.P;
+  out.F.resize(main.F.size());
+  for (std::size_t i = 0; i < out.F.size(); ++i) out.F[i] = main.F[i] + side.F[i];
+  const double H = mech.sensible_enthalpy_flow(main.T, main.F.data()) +
+                   mech.sensible_enthalpy_flow(side.T, side.F.data());
+  const double Fm = main.total_flow(), Fs = side.total_flow();
+  const double guess = Fm + Fs > 0 ? (Fm * main.T + Fs * side.T) / (Fm + Fs) : main.T;
+  out.T = temperature_for_enthalpy(mech, out.F, H, guess);
+  return out;
+}
+
 }  // namespace rxtrain

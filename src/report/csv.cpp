@@ -78,6 +78,10 @@ std::string profiles_csv(const TrainResult& result) {
   for (const auto& r : result.stages) eta = eta || !r.effectiveness.empty();
   if (eta)
     for (const auto& id : result.reactions) out += ",eta_" + id;
+  // The coolant's temperature, when a stage is cooled (empty elsewhere).
+  bool cooled = false;
+  for (const auto& r : result.stages) cooled = cooled || r.coolant.has_value();
+  if (cooled) out += ",T_coolant_K";
   out += "\n";
   for (const auto& r : result.stages) {
     for (const auto& p : r.profile) {
@@ -87,6 +91,7 @@ std::string profiles_csv(const TrainResult& result) {
       if (eta)
         for (std::size_t j = 0; j < result.reactions.size(); ++j)
           out += "," + (j < p.eta.size() ? cell(p.eta[j]) : std::string());
+      if (cooled) out += "," + (p.T_coolant ? cell(*p.T_coolant) : std::string());
       out += "\n";
     }
   }

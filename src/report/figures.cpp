@@ -22,7 +22,7 @@ const char* stage_word(StageKind k) {
 bool all_reactors_have_catalyst(const TrainResult& r) {
   bool any = false;
   for (const auto& s : r.stages) {
-    if (s.kind == StageKind::Exchanger) continue;
+    if (!is_reactor(s.kind)) continue;
     if (!s.catalyst_mass) return false;
     any = true;
   }
@@ -43,7 +43,7 @@ std::string stage_colour(std::size_t reactor_index) {
 std::string stage_colour(const TrainResult& r, const std::string& stage_id) {
   std::size_t k = 0;
   for (const auto& s : r.stages) {
-    if (s.kind == StageKind::Exchanger) continue;
+    if (!is_reactor(s.kind)) continue;
     if (s.id == stage_id) return stage_colour(k);
     ++k;
   }
@@ -56,7 +56,7 @@ namespace {
 std::string stage_dash(const TrainResult& r, const std::string& stage_id) {
   std::size_t k = 0;
   for (const auto& s : r.stages) {
-    if (s.kind == StageKind::Exchanger) continue;
+    if (!is_reactor(s.kind)) continue;
     if (s.id == stage_id) return k < 5 ? "" : "8 3";
     ++k;
   }
@@ -74,8 +74,8 @@ std::optional<Box> crowded_region(const TrainResult& r) {
   double bx0 = INFINITY, bx1 = -INFINITY, by0 = INFINITY, by1 = -INFINITY;  // later beds
   int reactors = 0;
   for (const auto& s : r.stages) {
-    const bool later = s.kind != StageKind::Exchanger && reactors >= 1;
-    if (s.kind != StageKind::Exchanger) ++reactors;
+    const bool later = is_reactor(s.kind) && reactors >= 1;
+    if (is_reactor(s.kind)) ++reactors;
     for (const auto& p : s.profile) {
       const double T = p.T - kZeroCelsius;
       ax0 = std::min(ax0, T), ax1 = std::max(ax1, T), ay0 = std::min(ay0, p.X),
@@ -133,7 +133,7 @@ svg::Chart tx_chart(const Case& c, const TrainResult& r, const std::string& titl
         x, y,
         {.label = "maximum-rate locus T_opt(X)", .colour = "#777777", .dash = "2 3", .width = 1.5});
   }
-  bool exchanger_in_legend = false;
+  bool exchanger_in_legend = false, quench_in_legend = false;
   for (const auto& s : r.stages) {
     x.clear();
     y.clear();
@@ -143,7 +143,16 @@ svg::Chart tx_chart(const Case& c, const TrainResult& r, const std::string& titl
     }
     if (x.empty()) continue;
     const std::string colour = stage_colour(r, s.id);
-    if (s.kind == StageKind::Exchanger) {
+    if (s.kind == StageKind::Quench) {
+      // The mixing line: a step down in T and X (the side stream's key
+      // joins the basis), in the legend once.
+      chart.add_line(x, y,
+                     {.label = quench_in_legend ? "" : "quenches (mixing)",
+                      .colour = "#444444",
+                      .dash = "1 3",
+                      .width = 2.0});
+      quench_in_legend = true;
+    } else if (!is_reactor(s.kind)) {
       // One neutral style for every exchanger, in the legend once.
       chart.add_line(x, y,
                      {.label = exchanger_in_legend ? "" : "exchangers (constant conversion)",
@@ -155,7 +164,9 @@ svg::Chart tx_chart(const Case& c, const TrainResult& r, const std::string& titl
       // A stirred tank has no path: its contents are its outlet state. A
       // thin jump from its inlet, and the tank as a point.
       const std::vector<double> jx{s.inlet.T - kZeroCelsius, x.back()},
-          jy{c.conversion_basis().conversion(s.inlet), y.back()};
+          jy{(s.F_key_fed > 0 ? ConversionBasis{c.key, s.F_key_fed} : c.conversion_basis())
+                 .conversion(s.inlet),
+             y.back()};
       chart.add_line(jx, jy, {.colour = colour, .dash = "2 3", .width = 1.0});
       const std::vector<double> px{x.back()}, py{y.back()};
       chart.add_line(px, py,
@@ -171,7 +182,7 @@ svg::Chart tx_chart(const Case& c, const TrainResult& r, const std::string& titl
                       .dash = stage_dash(r, s.id),
                       .width = 2.5});
     }
-    if (s.kind != StageKind::Exchanger) chart.add_text(x.back(), y.back(), s.id);
+    if (is_reactor(s.kind)) chart.add_text(x.back(), y.back(), s.id);
   }
   if (c.limits.T_max)
     chart.add_vline(*c.limits.T_max - kZeroCelsius, {.label = "T_max", .colour = "#D55E00"});
@@ -229,9 +240,9 @@ std::vector<Figure> profile_figures(const TrainResult& r) {
   });
   double start = 0;
   for (const auto& s : r.stages) {
-    if (s.kind == StageKind::Exchanger) continue;
+    if (!is_reactor(s.kind)) continue;
     const double scale = catalyst ? *s.bulk_density : 1.0;
-    std::vector<double> pos, T, X, P;
+    std::vector<double> pos, T, X, P, Tc;
     if (s.kind == StageKind::Cstr) {
       // Uniform contents: the outlet state across the whole volume.
       const double V = s.volume.value_or(0);
@@ -244,12 +255,16 @@ std::vector<Figure> profile_figures(const TrainResult& r) {
         T.push_back(p.T - kZeroCelsius);
         X.push_back(p.X);
         P.push_back(p.P.value_or(s.inlet.P) / 1e5);
+        if (p.T_coolant) Tc.push_back(*p.T_coolant - kZeroCelsius);
       }
     }
     if (P.size() != pos.size()) P.assign(pos.size(), s.outlet.P / 1e5);  // a tank
     const std::string label = fmt::format("{} ({})", s.id, stage_word(s.kind));
     const std::string colour = stage_colour(r, s.id), dash = stage_dash(r, s.id);
     tchart.add_line(pos, T, {.label = label, .colour = colour, .dash = dash});
+    // A cooled stage: its coolant beside it, dotted in the stage's colour.
+    if (s.coolant && Tc.size() == pos.size())
+      tchart.add_line(pos, Tc, {.label = s.id + " coolant", .colour = colour, .dash = "2 3"});
     xchart.add_line(pos, X, {.label = label, .colour = colour, .dash = dash});
     pchart.add_line(pos, P, {.label = label, .colour = colour, .dash = dash});
     if (start > 0) {
@@ -259,11 +274,14 @@ std::vector<Figure> profile_figures(const TrainResult& r) {
     }
     start = pos.empty() ? start : pos.back();
   }
+  const bool cooled = std::any_of(r.stages.begin(), r.stages.end(),
+                                  [](const StageResult& s) { return s.coolant.has_value(); });
   std::vector<Figure> out;
   out.push_back({"profile-temperature",
-                 "Temperature along every reactor stage, end to end; a stirred tank is uniform "
-                 "at its outlet state. Exchangers take no volume and show as jumps at the "
-                 "boundaries.",
+                 std::string("Temperature along every reactor stage, end to end; a stirred tank "
+                             "is uniform at its outlet state. Exchangers take no volume and show "
+                             "as jumps at the boundaries.") +
+                     (cooled ? " A cooled stage's coolant is drawn dotted in its colour." : ""),
                  std::move(tchart)});
   out.push_back({"profile-conversion", "Overall conversion of the key along every reactor stage.",
                  std::move(xchart)});

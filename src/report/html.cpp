@@ -30,7 +30,7 @@ std::string stage_table(const TrainResult& r) {
          cell(volume_text(s.volume) + (s.sized ? "*" : ""), true) +
          cell(volume_text(s.catalyst_mass), true) + cell(sig_text(s.space_time), true) +
          temperature_cell(s.inlet.T) + temperature_cell(s.outlet.T) +
-         (s.kind == StageKind::Exchanger ? cell("-", true) : temperature_cell(s.T_max)) +
+         (!is_reactor(s.kind) ? cell("-", true) : temperature_cell(s.T_max)) +
          cell(fixed_text(s.conversion, 4), true) +
          cell(s.equilibrium ? fixed_text(s.equilibrium->approach_X, 4) : "-", true) +
          cell(approach_T_cell(s), true) + cell(duty_text(s), true) + "</tr>\n";
@@ -152,7 +152,7 @@ std::string stream_tables(const TrainResult& r) {
          cell(plain_sig_text(s.total_flow()), true);
     if (mass) {
       std::string closure = "-";
-      if (from && from->kind != StageKind::Exchanger)
+      if (from && is_reactor(from->kind))
         if (const auto c = mass_balance_closure(from->inlet, from->outlet, r.molar_mass))
           closure = closure_text(*c);
       h += cell(plain_sig_text(mass_flow(s, r.molar_mass).value_or(0.0)), true) +
@@ -201,6 +201,10 @@ std::string run_report_html(const Case& c, const TrainResult& r, const std::vect
     if (s.outlet_target) h += "<p>" + xml_escape(purity_sentence(s, r.species)) + ".</p>\n";
   for (const auto& s : r.stages)
     if (s.exchanger_size) h += "<p>" + xml_escape(exchanger_size_sentence(s)) + ".</p>\n";
+  for (const auto& s : r.stages)
+    if (s.coolant) h += "<p>" + xml_escape(coolant_sentence(s)) + ".</p>\n";
+  for (const auto& s : r.stages)
+    if (s.side_stream) h += "<p>" + xml_escape(quench_sentence(s)) + ".</p>\n";
   for (const auto& s : r.stages)
     if (!s.effectiveness.empty())
       h += "<p>" + xml_escape(effectiveness_sentence(s, r.reactions)) + ".</p>\n";

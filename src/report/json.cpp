@@ -53,7 +53,9 @@ json units_json(const std::vector<std::string>& reactions) {
             {"lhsv", "1/h"},
             {"duty", "W"},
             {"inverse_rate", "kg*s/mol or m3*s/mol, by the curve's basis"},
-            {"area", "m2 for an exchanger; kg or m3 for a Levenspiel curve, by its basis"},
+            {"area",
+             "m2 for an exchanger or a cooled stage's tube wall; kg or m3 for a Levenspiel "
+             "curve, by its basis"},
             {"flow", "kg/s (a utility's mass flow)"},
             {"dP", "Pa"},
             {"mass_flux", "kg/(m2*s)"},
@@ -62,12 +64,16 @@ json units_json(const std::vector<std::string>& reactions) {
             {"reynolds_particle", "1"},
             {"flow_area", "m2"},
             {"void_fraction", "1"},
-            {"tubes", "1"}};
+            {"tubes", "1"},
+            {"U", "W/(m2*K)"},
+            {"z", "m"},
+            {"V_dT_max", "m3"},
+            {"share", "1"}};
   for (const char* k : {"diameter", "tube_diameter", "length", "particle_diameter"}) u[k] = "m";
   for (const char* k : {"T", "T_peak", "T_max", "T_min", "T_in_min", "T_opt", "T_ad_eq",
-                        "T_at_X_max", "T_end", "limit", "T_in", "T_out"})
+                        "T_at_X_max", "T_end", "limit", "T_in", "T_out", "T_coolant"})
     u[k] = "K";
-  for (const char* k : {"approach_T", "approach_T_window", "margin", "by", "lmtd"})
+  for (const char* k : {"approach_T", "approach_T_window", "margin", "by", "lmtd", "dT_max"})
     u[k] = "K (a difference)";
   for (const char* k : {"volume", "V", "V_at_X_max"}) u[k] = "m3";
   for (const char* k :
@@ -100,6 +106,14 @@ json profile(const std::vector<std::string>& ids, const std::vector<std::string>
     out["P"] = P;
   } else {
     out["P"] = nullptr;
+  }
+  // A cooled stage: the coolant's temperature (null: not cooled).
+  if (r.coolant) {
+    json Tc = json::array();
+    for (const auto& p : r.profile) Tc.push_back(json_number(p.T_coolant));
+    out["T_coolant"] = Tc;
+  } else {
+    out["T_coolant"] = nullptr;
   }
   // With effectiveness factors: "eta_REACTION" per reaction.
   if (!r.effectiveness.empty())
@@ -158,7 +172,8 @@ json stage(const TrainResult& t, const StageResult& r) {
   json s;
   s["id"] = r.id;
   s["type"] = stage_kind_name(r.kind);
-  s["heat"] = r.cooling ? json("cooled") : r.heat ? json(heat_mode_name(*r.heat)) : json(nullptr);
+  const char* heat = stage_heat_name(r);
+  s["heat"] = heat ? json(heat) : json(nullptr);
   // A cooled stirred tank: its wall's UA (W/K) and the coolant's T (K).
   s["cooling"] = r.cooling ? json{{"UA", json_number(r.cooling->UA)},
                                   {"T_coolant", json_number(r.cooling->T_coolant)}}
@@ -175,7 +190,7 @@ json stage(const TrainResult& t, const StageResult& r) {
   s["bulk_density"] = json_number(r.bulk_density);
   // Reactors only: the factor on every rate in the stage (1: as the case's
   // rate laws give them).
-  s["activity"] = r.kind == StageKind::Exchanger ? json(nullptr) : json_number(r.activity);
+  s["activity"] = !is_reactor(r.kind) ? json(nullptr) : json_number(r.activity);
   s["space_time"] = json_number(r.space_time);
   s["space_velocity"] = json_number(r.space_velocity);
   s["ghsv"] = json_number(r.ghsv);
@@ -193,11 +208,32 @@ json stage(const TrainResult& t, const StageResult& r) {
                                                ? json_number(*r.exchanger_size->utility_flow)
                                                : json(nullptr)}}
                            : json(nullptr);
+  // A cooled stage: its coolant (T_in, T_out in the coolant's own flow
+  // direction; duty the heat added to the process stream) and its hot
+  // spot; null otherwise.
+  if (r.coolant) {
+    const auto& c = *r.coolant;
+    s["coolant"] = {
+        {"T_in", json_number(c.T_in)},     {"T_out", json_number(c.T_out)},
+        {"duty", json_number(c.duty)},     {"direction", coolant_flow_name(c.direction)},
+        {"U", json_number(c.U)},           {"area", json_number(c.area)},
+        {"dT_max", json_number(c.dT_max)}, {"V_dT_max", json_number(c.V_dT_max)}};
+  } else {
+    s["coolant"] = nullptr;
+  }
+  s["hot_spot"] = r.hot_spot ? json{{"T", json_number(r.hot_spot->T)},
+                                    {"V", json_number(r.hot_spot->V)},
+                                    {"z", json_number(r.hot_spot->z)}}
+                             : json(nullptr);
   s["T_peak"] = json_number(r.T_max);  // the stage's hottest point; T_max is the limit
   s["T_min"] = json_number(r.T_min);
   s["conversion"] = json_number(r.conversion);
   s["yield"] = product_values(products, r.yield);
   s["selectivity"] = product_values(products, r.selectivity);
+  // A quench: the side stream that joined and, where given, the share of
+  // the feed it is; null otherwise.
+  s["side_stream"] = r.side_stream ? stream(ids, molar_mass, *r.side_stream) : json(nullptr);
+  s["share"] = json_number(r.share);
   s["inlet"] = stream(ids, molar_mass, r.inlet);
   s["outlet"] = stream(ids, molar_mass, r.outlet);
   const auto closure = mass_balance_closure(r.inlet, r.outlet, molar_mass);
@@ -301,7 +337,7 @@ nlohmann::json limit_check_json(const LimitCheck& lc) {
 }
 
 nlohmann::json limit_json(const LimitCheck& lc, const StageResult& r) {
-  if (!lc.applies() || r.kind == StageKind::Exchanger) return nullptr;
+  if (!lc.applies() || !is_reactor(r.kind)) return nullptr;
   json findings = json::array();
   for (const auto& f : lc.findings)
     if (f.stage == r.id) findings.push_back(finding_json(f, lc.margin));

@@ -54,6 +54,12 @@ Quantity column_quantity(const std::string& name, const std::string& si_unit) {
     return {upper + of, "h⁻¹"};
   }
   if (field == "over_limit") return {"Temperature past the limit" + in, "K"};
+  // A cooled stage: a difference of temperatures stays in K; the coolant's
+  // heat as any duty.
+  if (field == "coolant.dT_max") return {"Largest process − coolant difference" + in, "K"};
+  if (field == "coolant.duty") return {"Heat added through the tube walls" + of, "kW", 1e-3};
+  if (field == "coolant.T_out") return celsius("Coolant outlet temperature" + of);
+  if (field == "hot_spot.z") return {"Hot spot's distance from the inlet" + of, "m"};
   // A mole fraction read as a purity is quoted in ppm (1 ppm would be
   // 0.0000 as a fraction).
   if (field.rfind("x_out.", 0) == 0) return {"Outlet " + field.substr(6) + of, "ppm", 1e6};

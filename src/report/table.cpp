@@ -50,7 +50,7 @@ std::string stream_columns(const TrainResult& result) {
     return out + "mass flows: not shown, not every species has a molar mass (mw or formula)\n";
   std::string closures;
   for (const auto& r : result.stages)
-    if (r.kind == StageKind::Exchanger)
+    if (!is_reactor(r.kind))
       continue;  // no reaction: in = out by construction
     else if (const auto c = mass_balance_closure(r.inlet, r.outlet, result.molar_mass))
       closures += fmt::format("{}{} {}", closures.empty() ? "" : ", ", r.id, closure_text(*c));
@@ -84,6 +84,28 @@ std::string product_columns(const TrainResult& result) {
 }
 
 }  // namespace
+
+// Cooled tubular stages: the coolant, the heat through the walls, the hot
+// spot and the largest process-minus-coolant difference (empty when no
+// stage is cooled).
+std::string coolant_columns(const TrainResult& result) {
+  std::vector<std::vector<std::string>> rows;
+  for (const auto& r : result.stages) {
+    if (!r.coolant || !r.hot_spot) continue;
+    const auto& c = *r.coolant;
+    const auto& h = *r.hot_spot;
+    rows.push_back({r.id, coolant_flow_name(c.direction), plain_sig_text(c.U, 4),
+                    celsius_text(c.T_in), celsius_text(c.T_out), plain_sig_text(c.duty / 1e3),
+                    plain_sig_text(c.area), celsius_text(h.T), plain_sig_text(h.z, 4),
+                    fixed_text(c.dT_max, 2)});
+  }
+  if (rows.empty()) return {};
+  rows.insert(rows.begin(), {"stage", "coolant", "U W/m2K", "T_c in °C", "T_c out °C", "duty kW",
+                             "wall m2", "hot spot °C", "at z m", "max T−T_c K"});
+  return "\ncooled tubes (coolant T in and out in its own flow direction; duty: heat added to the "
+         "process stream; wall: the tubes' inner surface; z: length from the stage inlet)\n" +
+         render_columns(rows, 1);
+}
 
 // Stages with a bed or tubes: the bed as built and its pressure drop
 // (empty when no stage has one).
@@ -150,7 +172,7 @@ std::string format_stage_table(const TrainResult& result) {
                   "T peak °C", "X out", "X_eq(T_out) − X", "T_eq(X) − T K", "duty kW"});
   bool any_sized = false;
   for (const auto& r : result.stages) {
-    const bool exchanger = r.kind == StageKind::Exchanger;
+    const bool exchanger = !is_reactor(r.kind);
     const std::string heat = heat_text(r);
     std::string V = volume_text(r.volume);
     if (r.sized) {
@@ -171,7 +193,7 @@ std::string format_stage_table(const TrainResult& result) {
   // Only where a stage gives one: every rate in it is multiplied by it.
   std::vector<std::string> activities;
   for (const auto& r : result.stages)
-    if (r.kind != StageKind::Exchanger && r.activity != 1)
+    if (is_reactor(r.kind) && r.activity != 1)
       activities.push_back(fmt::format("{} {:.3g}", r.id, r.activity));
   if (!activities.empty())
     out += fmt::format("catalyst activity (multiplies every rate in the stage): {}\n",
@@ -189,6 +211,8 @@ std::string format_stage_table(const TrainResult& result) {
     if (r.outlet_target) out += "  " + purity_sentence(r, result.species) + "\n";
   for (const auto& r : result.stages)
     if (r.exchanger_size) out += "  " + exchanger_size_sentence(r) + "\n";
+  for (const auto& r : result.stages)
+    if (r.side_stream) out += "  " + quench_sentence(r) + "\n";
   for (const auto& r : result.stages)
     if (!r.effectiveness.empty()) out += "  " + effectiveness_sentence(r, result.reactions) + "\n";
   for (const auto& r : result.stages)
@@ -222,6 +246,7 @@ std::string format_stage_table(const TrainResult& result) {
 
   out += product_columns(result);
   out += bed_columns(result);
+  out += coolant_columns(result);
 
   out += fmt::format("\noutlet: {} °C, {} bar, overall conversion of {} = {}\n",
                      celsius_text(result.outlet.T), bar_text(result.outlet.P), result.key,

@@ -24,8 +24,8 @@ std::string fixed_text(const std::optional<double>& v, int digits) {
 }
 
 std::string heat_text(const StageResult& r, const char* none) {
-  if (r.cooling) return "cooled";
-  return r.heat ? std::string(heat_mode_name(*r.heat)) : std::string(none);
+  const char* h = stage_heat_name(r);
+  return h ? std::string(h) : std::string(none);
 }
 
 std::string eigenvalue_text(const std::complex<double>& e) {
@@ -116,6 +116,33 @@ std::string exchanger_size_sentence(const StageResult& r) {
                      plain_sig_text(z.area), utility);
 }
 
+std::string quench_sentence(const StageResult& r) {
+  if (!r.side_stream) return {};
+  const Stream& s = *r.side_stream;
+  return fmt::format(
+      "{}: a side stream of {} mol/s{} joined at {} °C; mixed, {} → {} °C and X {} "
+      "on the key fed so far",
+      r.id, plain_sig_text(s.total_flow()),
+      r.share ? fmt::format(" ({} of the feed)", fixed_text(*r.share, 4)) : "", celsius_text(s.T),
+      celsius_text(r.inlet.T), celsius_text(r.outlet.T), conversion_text(r.conversion));
+}
+
+std::string coolant_sentence(const StageResult& r) {
+  if (!r.coolant || !r.hot_spot) return {};
+  const auto& c = *r.coolant;
+  const auto& h = *r.hot_spot;
+  const std::string coolant =
+      c.direction == CoolantFlow::Constant
+          ? fmt::format("coolant at {} °C", celsius_text(c.T_in))
+          : fmt::format("{} coolant {} → {} °C", coolant_flow_name(c.direction),
+                        celsius_text(c.T_in), celsius_text(c.T_out));
+  return fmt::format(
+      "{}: cooled through {} m2 of tube wall at U = {} W/m2/K ({}), heat removed {} kW; hot "
+      "spot {} °C at {} m from the inlet; largest process − coolant difference {} K",
+      r.id, plain_sig_text(c.area), plain_sig_text(c.U, 4), coolant, fixed_text(-c.duty / 1e3, 2),
+      celsius_text(h.T), plain_sig_text(h.z, 4), fixed_text(c.dT_max, 2));
+}
+
 std::string closure_text(double relative) {
   if (!std::isfinite(relative)) return "-";
   // Below 1e-12 it is the round-off of the sums, whose digits vary with
@@ -143,7 +170,8 @@ std::string conversion_text(const std::optional<double>& X) {
 std::string volume_text(const std::optional<double>& v) { return v ? plain_sig_text(*v, 5) : "-"; }
 
 std::string duty_text(const StageResult& r) {
-  if (r.kind != StageKind::Exchanger && r.heat == HeatMode::Adiabatic && !r.cooling) return "-";
+  if (r.kind == StageKind::Quench) return "-";  // adiabatic mixing: no heat crosses
+  if (is_reactor(r.kind) && r.heat == HeatMode::Adiabatic && !r.coolant && !r.cooling) return "-";
   return fixed_text(r.duty / 1e3, 2);
 }
 

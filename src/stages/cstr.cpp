@@ -549,7 +549,7 @@ struct Tank {
         solver(ws.solver),
         limit(mech, (ws.beta = rate_multipliers(mech, spec)), inlet, spec.heat, ws.pfr,
               options.pfr) {
-    balances.reset(mech, ws.beta, spec.heat, inlet, spec.cooling);
+    balances.reset(mech, ws.beta, spec.heat, inlet, spec.tank_cooling);
     solver.reset(balances, options.newton);
   }
 
@@ -800,7 +800,7 @@ struct Tank {
     if (spec.bulk_density) res.catalyst_mass = V * *spec.bulk_density;
     res.outlet = Stream{out.T, inlet.P, out.F};
     for (auto& f : res.outlet.F) f = std::max(f, 0.0);  // solver round-off below zero
-    res.cooling = spec.heat == HeatMode::Adiabatic ? spec.cooling : std::nullopt;
+    res.cooling = spec.heat == HeatMode::Adiabatic ? spec.tank_cooling : std::nullopt;
     res.duty = spec.heat == HeatMode::Isothermal ? balances.duty(out.F.data(), out.T, V)
                : res.cooling                     ? balances.wall_duty(out.T)
                                                  : 0.0;
@@ -898,7 +898,7 @@ StageReach cstr_reach(const Mechanism& mech, const ReactorSpec& spec, const Stre
                       const CstrOptions& options) {
   Buffers& ws = workspace.state();
   ws.beta = rate_multipliers(mech, spec);
-  ws.balances.reset(mech, ws.beta, spec.heat, inlet, spec.cooling);
+  ws.balances.reset(mech, ws.beta, spec.heat, inlet, spec.tank_cooling);
   ws.solver.reset(ws.balances, options.newton);
   LimitOnce limit(mech, ws.beta, inlet, spec.heat, ws.pfr, options.pfr);
   const double V_end =
@@ -958,7 +958,7 @@ StageReach cstr_reach(const Mechanism& mech, const ReactorSpec& spec, const Stre
   // isothermal) line as a tube's, to the same equilibrium point. A cooled
   // tank's outlet is on neither line (the wall takes heat out): its end
   // stays the one the continuation approached.
-  if (!(spec.cooling && spec.heat == HeatMode::Adiabatic))
+  if (!(spec.tank_cooling && spec.heat == HeatMode::Adiabatic))
     exact_equilibrium_end(mech, inlet, spec.heat, basis, reach);
   finish_reach(reach, m.V);
   return reach;

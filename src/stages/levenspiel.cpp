@@ -39,9 +39,14 @@ class StageCurve {
     pellet_spec_.activity = s.activity;
     pellet_spec_.pellet = s.pellet;
     pellet_ = detail::pellet_binding(mech, pellet_spec_, 1e-6);
-    balances_.reset(mech, beta_,
-                    s.heat == HeatMode::Adiabatic ? HeatMode::Adiabatic : HeatMode::Isothermal,
-                    s.inlet.P, pellet_ ? &*pellet_ : nullptr);
+    // A cooled stage: the wall's heat (Ua from the wall area per volume),
+    // at each point's coolant temperature (slope_in_X sets it).
+    if (s.coolant && s.volume && *s.volume > 0)
+      cooling_ = detail::CoolingBinding{s.coolant->U * s.coolant->area / *s.volume, s.coolant->T_in,
+                                        0.0, 1.0};
+    balances_.reset(
+        mech, beta_, s.heat == HeatMode::Adiabatic ? HeatMode::Adiabatic : HeatMode::Isothermal,
+        s.inlet.P, pellet_ ? &*pellet_ : nullptr, nullptr, cooling_ ? &*cooling_ : nullptr);
     // Per unit of the curve's basis: a catalyst basis divides the
     // volumetric rates by the bulk density.
     basis_scale_ = catalyst_basis ? 1.0 / *s.bulk_density : 1.0;
@@ -67,7 +72,8 @@ class StageCurve {
   // tube's balances in V (models/tubular_balances.hpp) over
   // dX/dV = -r_key / F0. False where the key is not consumed (X does not
   // advance) or the balances cannot be evaluated.
-  bool slope_in_X(double T, const double* F, double* dy) {
+  bool slope_in_X(double T, const double* F, double* dy, std::optional<double> T_c = {}) {
+    if (cooling_ && T_c) cooling_->T_c = *T_c;
     y_.assign(F, F + n_);
     y_.push_back(T);
     y_.push_back(0.0);
@@ -90,8 +96,9 @@ class StageCurve {
   std::vector<double> beta_;
   std::vector<double> r_;
   double basis_scale_ = 1.0;
-  ReactorSpec pellet_spec_;                      // the stage's pellets, for pellet_
-  std::optional<detail::PelletBinding> pellet_;  // effectiveness factors, if any
+  ReactorSpec pellet_spec_;                        // the stage's pellets, for pellet_
+  std::optional<detail::PelletBinding> pellet_;    // effectiveness factors, if any
+  std::optional<detail::CoolingBinding> cooling_;  // a cooled stage's wall
   detail::PfrSystem balances_;
   std::vector<double> y_, ydot_;  // [F, T, Q] and its slope in V
 };
@@ -165,17 +172,20 @@ std::vector<LevenspielCurve> levenspiel_curves(const Mechanism& mech, int key, d
   bool all_catalyst = mech.n_reactions() > 0;
   for (const auto& rx : mech.reactions())
     all_catalyst = all_catalyst && rx.rate.basis == RateBasis::Catalyst;
-  const ConversionBasis basis{key, F_key_feed};
   std::vector<LevenspielCurve> out;
   for (const auto& s : stages) {
-    if (s.kind == StageKind::Exchanger) continue;
+    if (!is_reactor(s.kind)) continue;
+    // The stage's own basis where the train set it (the key fed so far,
+    // side streams included), so the curve's X is the stage's.
+    const double F0 = s.F_key_fed > 0 ? s.F_key_fed : F_key_feed;
+    const ConversionBasis basis{key, F0};
     LevenspielCurve c;
     c.stage = s.id;
     c.catalyst_basis = all_catalyst && s.bulk_density.has_value();
     c.rectangle = s.kind == StageKind::Cstr;
     c.X_in = basis.conversion(s.inlet);
     c.X_out = s.conversion;
-    StageCurve sc(mech, key, F_key_feed, s, c.catalyst_basis);
+    StageCurve sc(mech, key, F0, s, c.catalyst_basis);
     if (c.rectangle) {
       const double g = sc.inverse_rate(s.outlet.T, s.outlet.F.data());
       if (std::isfinite(g)) {
@@ -188,7 +198,7 @@ std::vector<LevenspielCurve> levenspiel_curves(const Mechanism& mech, int key, d
       for (const auto& p : s.profile) {
         Node node{p.X, p.F, std::vector<double>(n + 1)};
         node.y.push_back(p.T);
-        if (!sc.slope_in_X(p.T, p.F.data(), node.dy.data())) continue;
+        if (!sc.slope_in_X(p.T, p.F.data(), node.dy.data(), p.T_coolant)) continue;
         c.points.push_back({p.X, sc.inverse_rate(p.T, p.F.data())});
         nodes.push_back(std::move(node));
       }

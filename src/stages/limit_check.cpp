@@ -107,7 +107,7 @@ LimitCheck check_temperature_limits(const TemperatureLimits& limits,
   out.T_in_min = limits.T_in_min;
   out.margin = options.margin;
   for (const StageResult& r : stages) {
-    if (r.kind == StageKind::Exchanger) continue;
+    if (!is_reactor(r.kind)) continue;
     const std::size_t first = out.findings.size();
     if (limits.T_max)
       if (auto f = passing(r, LimitBound::TMax, *limits.T_max, options))

@@ -72,6 +72,10 @@ struct PfrWorkspace::State {
   std::vector<double> dky, y_turn;              // interpolated dT/dV (dX/dV) search (see run_pfr)
   std::optional<detail::PelletBinding> pellet;  // of the current stage
   std::optional<detail::HydraulicBinding> hydraulics;
+  std::optional<detail::CoolingBinding> cooling;
+  // A countercurrent coolant: its temperature at the process inlet (its
+  // outlet), the unknown the stage shoots on (run_countercurrent).
+  double counter_T_c0 = 0;
   // Binds the system to a stage and (re)starts the integrator at its inlet,
   // re-creating the integrator only when it cannot be reused. `spec` is the
   // stage's, for its pellets (effectiveness factors); null only where no
@@ -82,11 +86,16 @@ struct PfrWorkspace::State {
                          const PfrOptions& options, const ReactorSpec* spec) {
     pellet = spec ? detail::pellet_binding(mech, *spec, options.cvode.rtol) : std::nullopt;
     hydraulics = spec ? detail::hydraulic_binding(mech, *spec, inlet) : std::nullopt;
+    cooling = spec ? detail::cooling_binding(*spec) : std::nullopt;
     sys.reset(mech, multipliers, heat, inlet.P, pellet ? &*pellet : nullptr,
-              hydraulics ? &*hydraulics : nullptr);
+              hydraulics ? &*hydraulics : nullptr, cooling ? &*cooling : nullptr);
     const bool sparse = uses_sparse_jacobian(options, mech.n_species());
     const bool with_P = sys.has_pressure();
-    state_scale(mech, inlet, scale, with_P);
+    std::optional<double> T_c0;
+    if (sys.has_coolant_state())
+      T_c0 =
+          spec->cooling->direction == CoolantFlow::Countercurrent ? counter_T_c0 : spec->cooling->T;
+    state_scale(mech, inlet, scale, with_P, T_c0.has_value());
     bool reuse = ode && ode->size() == sys.size() && ode->sparse() == sparse &&
                  same_options(ode->options(), options.cvode);
     if (sparse) {
@@ -114,7 +123,7 @@ struct PfrWorkspace::State {
           options.cvode, scale);
     }
     if (reuse) ode->set_scale(scale);
-    initial_state(inlet, y, with_P);
+    initial_state(inlet, y, with_P, T_c0);
     ydot.resize(y.size());
     dky.resize(y.size() + 1);
     y_turn.resize(y.size() + 1);
@@ -165,8 +174,11 @@ class PathRecorder {
   void record(double V, const double* y) {
     res_.profile.push_back(detail::profile_point(V, y, n_, basis_));
     if (with_pressure_) res_.profile.back().P = y[n_ + 2];
+    if (cooled_) res_.profile.back().T_coolant = cooled_->coolant_T(y);
   }
   void set_with_pressure(bool b) { with_pressure_ = b; }
+  // A cooled tube: each point records the coolant's temperature.
+  void set_cooled(const PfrSystem* sys) { cooled_ = sys; }
 
   // After a step of `o` from t_prev to t ending at y; v_index < 0: V is t.
   void stepped(const CvodeIntegrator& o, double t_prev, double t, const std::vector<double>& y,
@@ -193,7 +205,8 @@ class PathRecorder {
   int n_;
   bool turns_;
   bool with_pressure_ = false;  // the state carries P (y[n + 2])
-  double slope_ = 0;            // dT/dt at the last point; 0 where unknown or flat
+  const PfrSystem* cooled_ = nullptr;
+  double slope_ = 0;  // dT/dt at the last point; 0 where unknown or flat
   std::vector<double>& dky_;
   std::vector<double>& y_turn_;
 };
@@ -440,6 +453,36 @@ double volume_for_outlet(const Mechanism& mech, const ReactorSpec& spec, const S
   return r.x;
 }
 
+// A cooled stage's coolant (ends, duty, the largest process-minus-coolant
+// difference) and its hot spot, from the state at the outlet and the
+// profile (every step, with T's turns: its peak is a point of it).
+void add_coolant(const PfrWorkspace::State& st, const ReactorSpec& spec, StageResult& res) {
+  const CoolingSpec& c = *spec.cooling;
+  CoolantResult cr;
+  cr.direction = c.direction;
+  cr.U = c.U;
+  const double d = spec.geometry->diameter;
+  cr.area = res.volume.value_or(0) * 4 / d;
+  cr.duty = res.duty;
+  const double T_c_end = st.sys.coolant_T(st.y.data());
+  const double T_c_start = res.profile.empty() ? c.T : res.profile.front().T_coolant.value_or(c.T);
+  cr.T_in = c.direction == CoolantFlow::Countercurrent ? T_c_end : T_c_start;
+  cr.T_out = c.direction == CoolantFlow::Countercurrent ? T_c_start : T_c_end;
+  cr.dT_max = -std::numeric_limits<double>::infinity();
+  HotSpot hs{res.inlet.T, 0, 0};
+  for (const auto& p : res.profile) {
+    const double dT = p.T - p.T_coolant.value_or(c.T);
+    if (dT > cr.dT_max) {
+      cr.dT_max = dT;
+      cr.V_dT_max = p.V;
+    }
+    if (p.T > hs.T) hs = HotSpot{p.T, p.V, 0};
+  }
+  hs.z = hs.V / spec.geometry->flow_area();
+  res.coolant = cr;
+  res.hot_spot = hs;
+}
+
 // Each reaction's effectiveness factor at every profile point, and its
 // range over the stage (the pellet model as the stage ran it).
 void add_effectiveness(PfrWorkspace::State& st, const ReactorSpec& spec, StageResult& res) {
@@ -451,6 +494,7 @@ void add_effectiveness(PfrWorkspace::State& st, const ReactorSpec& spec, StageRe
     y.push_back(p.T);
     y.push_back(0.0);
     if (p.P) y.push_back(*p.P);
+    if (p.T_coolant) y.push_back(*p.T_coolant);
     if (st.sys.update_eta(p.T, y.data()) != 0)
       throw SolverError(
           fmt::format("{}: effectiveness factors at V = {:.6g} m3 failed", spec.id, p.V));
@@ -539,21 +583,13 @@ StageResult run_auto_diameter(const Mechanism& mech, const ReactorSpec& spec, co
 
 }  // namespace
 
-StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
-                    const ConversionBasis& basis, PfrWorkspace& ws, const PfrOptions& options) {
-  if (spec.geometry && spec.geometry->dP_max)
-    return run_auto_diameter(mech, spec, inlet, basis, ws, options);
-  if (spec.target_outlet) {
-    // Sized to a purity: rated at the volume found, so that the result is
-    // exactly that of a rated stage of that size.
-    ReactorSpec rated = spec;
-    rated.target_outlet.reset();
-    rated.volume = volume_for_outlet(mech, spec, inlet, basis, ws, options);
-    StageResult res = run_pfr(mech, rated, inlet, basis, ws, options);
-    res.sized = true;
-    res.outlet_target = spec.target_outlet;
-    return res;
-  }
+namespace {
+
+// One integration of a stage from its inlet (rated, or sized to a target
+// conversion); a countercurrent coolant starts at st.counter_T_c0.
+StageResult integrate_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
+                          const ConversionBasis& basis, PfrWorkspace& ws,
+                          const PfrOptions& options) {
   const int n = mech.n_species();
   PfrWorkspace::State& st = ws.state();
   CvodeIntegrator& ode =
@@ -573,9 +609,11 @@ StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream
   // bed (the reaction approaches its equilibrium without crossing it) and
   // so does dH over the few hundred kelvin of one bed, so T is monotonic
   // and its extremes are the end points (isothermal: T is constant).
-  const bool monotonic = !adiabatic || mech.n_reactions() == 1;
+  // A cooled tube's T rises to a hot spot and falls: never monotonic.
+  const bool monotonic = !spec.cooling && (!adiabatic || mech.n_reactions() == 1);
   PathRecorder path(res, basis, n, !monotonic, st.dky, st.y_turn);
   path.set_with_pressure(st.sys.has_pressure());
+  if (spec.cooling) path.set_cooled(&st.sys);
   const Walk w =
       walk_stage(st, ode, path, spec, inlet, n, V_end, options.full_profile || !monotonic, T_stop);
   double V = w.V;
@@ -588,7 +626,8 @@ StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream
   // The quadrature reads the intrinsic rate: with effectiveness factors
   // the volume integration's root stands.
   // So does a bed with a pressure drop: the quadrature's path is at constant P.
-  if (w.reached && mech.n_reactions() == 1 && !st.pellet && !st.hydraulics) {
+  // So does a cooled tube: the quadrature's path is the adiabatic one.
+  if (w.reached && mech.n_reactions() == 1 && !st.pellet && !st.hydraulics && !spec.cooling) {
     // One reaction: the volume by quadrature along the exact path (see
     // size_by_quadrature); the volume integration above told that the target is
     // met before the stop temperature.
@@ -616,7 +655,151 @@ StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream
       for (std::size_t j = 0; j < beta.size(); ++j) beta[j] *= st.sys.eta()[j];
     detail::add_size_sensitivity(mech, beta, basis, res);
   }
+  if (spec.cooling) add_coolant(st, spec, res);
   return res;
+}
+
+// A countercurrent coolant enters at the process outlet at its T_in; its
+// temperature at the process inlet (its outlet) is the unknown of a
+// two-point problem. Shooting: each trial integrates the whole stage from
+// a guess of that outlet; the miss is the coolant's temperature at the
+// process outlet less its T_in. The guesses scanned span the coolant's and
+// the process inlet's temperatures and kScanAbove above the higher (a
+// coolant can leave no hotter than the hottest process point, and a bed
+// rises by at most its adiabatic rise); every sign change of the miss is a
+// solution. None: refused; several: refused with each, since the stage
+// then has several steady states and which one a plant runs at depends on
+// its start-up. One: Brent's method on the bracket. Two solutions closer
+// together than the scan's step (kScanStep) can hide between two guesses:
+// every message names the step, and the docs say so.
+constexpr double kScanAbove = 400;   // K (common practice, no source)
+constexpr double kScanBelow = 10;    // K below the lower inlet: a solution right at it
+constexpr double kScanStep = 2;      // K between guesses
+constexpr int kEdgeBisections = 30;  // to 2 K / 2^30, far below a kelvin
+
+StageResult run_countercurrent(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
+                               const ConversionBasis& basis, PfrWorkspace& ws,
+                               const PfrOptions& options) {
+  PfrWorkspace::State& st = ws.state();
+  const double T_in = spec.cooling->T;
+  const int ic = mech.n_species() + 2 + (spec.has_pressure_drop() ? 1 : 0);
+  int trials = 0;
+  auto miss = [&](double T0) {
+    ++trials;
+    st.counter_T_c0 = T0;
+    try {
+      integrate_pfr(mech, spec, inlet, basis, ws, options);
+    } catch (const InfeasibleError&) {
+      throw;  // the bed itself (its pressure drop), whatever the coolant
+    } catch (const SolverError&) {
+      return std::numeric_limits<double>::quiet_NaN();  // a guess the bed cannot run from
+    }
+    return st.y[ic] - T_in;
+  };
+  const double lo = std::min(T_in, inlet.T) - kScanBelow;
+  const double hi = std::max(T_in, inlet.T) + kScanAbove;
+  const int kScanPoints = static_cast<int>(std::ceil((hi - lo) / kScanStep)) + 1;
+  // (guess, miss) in increasing guess; NaN where the bed cannot run from
+  // the guess (the coolant drives T to absolute zero when the guess is far
+  // off: integrated against its flow, a coolant's error grows along the bed).
+  std::vector<std::pair<double, double>> pts;
+  for (int k = 0; k < kScanPoints; ++k) {
+    const double t = lo + (hi - lo) * k / (kScanPoints - 1);
+    pts.emplace_back(t, miss(t));
+  }
+  // Where a guess that runs meets one that does not, the edge is bisected
+  // to a guess that runs close to it: the sign of the miss there says
+  // which way the failed guesses lie.
+  const std::size_t scanned = pts.size();
+  for (std::size_t k = 0; k + 1 < scanned; ++k) {
+    const bool a_ok = std::isfinite(pts[k].second), b_ok = std::isfinite(pts[k + 1].second);
+    if (a_ok == b_ok) continue;
+    double good = a_ok ? pts[k].first : pts[k + 1].first;
+    double bad = a_ok ? pts[k + 1].first : pts[k].first;
+    double f_good = a_ok ? pts[k].second : pts[k + 1].second;
+    for (int it = 0; it < kEdgeBisections; ++it) {
+      const double m = 0.5 * (good + bad), fm = miss(m);
+      if (std::isfinite(fm)) {
+        good = m;
+        f_good = fm;
+      } else {
+        bad = m;
+      }
+    }
+    pts.emplace_back(good, f_good);
+  }
+  std::sort(pts.begin(), pts.end());
+  std::vector<std::pair<std::size_t, std::size_t>> brackets;  // between finite neighbours
+  for (std::size_t k = 0; k < pts.size(); ++k) {
+    if (!std::isfinite(pts[k].second)) continue;
+    if (pts[k].second == 0) {
+      brackets.emplace_back(k, k);
+      continue;
+    }
+    if (k + 1 < pts.size() && std::isfinite(pts[k + 1].second) && pts[k + 1].second != 0 &&
+        (pts[k].second < 0) != (pts[k + 1].second < 0))
+      brackets.emplace_back(k, k + 1);
+  }
+  if (brackets.empty())
+    throw InfeasibleError(
+        spec.cooling->where,
+        fmt::format("stage {}: no countercurrent solution found: shooting on the coolant's "
+                    "outlet temperature from {:.2f} to {:.2f} K in steps of {:g} K brackets no "
+                    "coolant inlet at {:.2f} K (two solutions closer than a step would hide "
+                    "between guesses; check the coolant's flow, cp and T_in, and U)",
+                    spec.id, lo, hi, kScanStep, T_in),
+        0.0, "coolant outlet temperature");
+  std::vector<double> roots;
+  for (const auto& [a, b] : brackets) {
+    if (a == b) {
+      roots.push_back(pts[a].first);
+      continue;
+    }
+    roots.push_back(
+        brent_root(miss, pts[a].first, pts[b].first, pts[a].second, pts[b].second, 1e-14, 200).x);
+  }
+  if (roots.size() > 1) {
+    std::string list;
+    for (double r : roots) list += fmt::format("{}{:.2f} K", list.empty() ? "" : ", ", r);
+    throw InfeasibleError(
+        spec.cooling->where,
+        fmt::format("stage {}: the countercurrent coolant has {} solutions (coolant outlet at "
+                    "{}; scanned in steps of {:g} K): the stage has several steady states, and "
+                    "which one it runs at depends on its start-up; rate it with a constant or "
+                    "cocurrent coolant, or change U or the coolant flow",
+                    spec.id, roots.size(), list, kScanStep),
+        0.0, "coolant outlet temperature");
+  }
+  st.counter_T_c0 = roots.front();
+  StageResult res = integrate_pfr(mech, spec, inlet, basis, ws, options);
+  res.coolant->shooting_trials = trials + 1;
+  res.stats.message = fmt::format(
+      "countercurrent coolant: its outlet found by shooting, one solution on a scan of {:.2f} to "
+      "{:.2f} K in steps of {:g} K ({} trials)",
+      lo, hi, kScanStep, trials + 1);
+  return res;
+}
+
+}  // namespace
+
+StageResult run_pfr(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
+                    const ConversionBasis& basis, PfrWorkspace& ws, const PfrOptions& options) {
+  if (spec.geometry && spec.geometry->dP_max)
+    return run_auto_diameter(mech, spec, inlet, basis, ws, options);
+  if (spec.target_outlet) {
+    // Sized to a purity: rated at the volume found, so that the result is
+    // exactly that of a rated stage of that size.
+    ReactorSpec rated = spec;
+    rated.target_outlet.reset();
+    rated.volume = volume_for_outlet(mech, spec, inlet, basis, ws, options);
+    StageResult res = run_pfr(mech, rated, inlet, basis, ws, options);
+    res.sized = true;
+    res.outlet_target = spec.target_outlet;
+    return res;
+  }
+  if (spec.cooling && spec.cooling->direction == CoolantFlow::Countercurrent)
+    return run_countercurrent(mech, spec, inlet, basis, ws, options);
+  return integrate_pfr(mech, spec, inlet, basis, ws, options);
 }
 
 StageReach pfr_reach(const Mechanism& mech, const ReactorSpec& spec, const Stream& inlet,
@@ -722,7 +905,8 @@ StageReach pfr_reach(const Mechanism& mech, const ReactorSpec& spec, const Strea
     if (sys.rhs(y.data(), ydot.data()) == 0) g_end = -ydot[basis.key] / basis.F_key_feed;
     classify_reach_end(mech, inlet, y.data(), basis.key, g_end * V > 1e-6, reach);
   }
-  exact_equilibrium_end(mech, inlet, spec.heat, basis, reach, known);
+  // A cooled path ends on no adiabatic or isothermal line.
+  if (!spec.cooling) exact_equilibrium_end(mech, inlet, spec.heat, basis, reach, known);
   finish_reach(reach, V);
   return reach;
 }
@@ -815,6 +999,23 @@ StageResult pfr_result(const Mechanism& mech, const ReactorSpec& spec, const Str
   add_space_velocities(mech, res);
   if (spec.geometry) add_hydraulics(mech, spec, res);
   return res;
+}
+
+std::optional<CoolingBinding> cooling_binding(const ReactorSpec& spec) {
+  if (!spec.cooling) return std::nullopt;
+  const CoolingSpec& c = *spec.cooling;
+  if (!spec.geometry || spec.geometry->tubes == 0 || !(spec.geometry->diameter > 0))
+    throw InputError(c.where, fmt::format("stage {} is cooled but gives no tubes; the heat goes "
+                                          "through the tube walls: give tubes",
+                                          spec.id));
+  CoolingBinding b;
+  b.Ua = c.U * 4 / spec.geometry->diameter;
+  b.T_c = c.T;
+  if (c.direction != CoolantFlow::Constant) {
+    b.inv_mcp = 1 / (c.flow.value() * c.cp.value());
+    b.sign = c.direction == CoolantFlow::Cocurrent ? 1 : -1;
+  }
+  return b;
 }
 
 std::optional<HydraulicBinding> hydraulic_binding(const Mechanism& mech, const ReactorSpec& spec,

@@ -63,6 +63,8 @@ bool pfr_batchable(const Mechanism& mech, const ReactorSpec& spec, const PfrOpti
   if (spec.pellet && !spec.pellet->D_eff.empty()) return false;
   // So does a pressure drop (the state P).
   if (spec.has_pressure_drop()) return false;
+  // So does a cooled tube (the wall's heat, the coolant's state).
+  if (spec.cooling) return false;
   return spec.type == ReactorType::Pfr &&
          (spec.target_conversion || (spec.volume && *spec.volume > 0)) && !options.full_profile &&
          !options.stop_temperature && !uses_sparse_jacobian(options, mech.n_species()) &&

@@ -41,6 +41,10 @@ std::optional<PelletBinding> pellet_binding(const Mechanism& mech, const Reactor
 std::optional<HydraulicBinding> hydraulic_binding(const Mechanism& mech, const ReactorSpec& spec,
                                                   const Stream& inlet);
 
+// The wall's heat of a cooled stage (ReactorSpec::cooling, with tubes);
+// empty when it is not cooled. Throws InputError without tubes.
+std::optional<CoolingBinding> cooling_binding(const ReactorSpec& spec);
+
 // The bed of a stage with geometry, from its result (volume, inlet and
 // outlet), with its warnings: a pressure drop above a tenth of the inlet
 // pressure, a particle Reynolds number outside Ergun's data, a bed whose

@@ -26,8 +26,27 @@ const char* stage_kind_name(StageKind kind) {
       return "cstr";
     case StageKind::Exchanger:
       return "exchanger";
+    case StageKind::Quench:
+      return "quench";
   }
   return "?";
+}
+
+const char* stage_heat_name(const StageResult& r) {
+  if (r.coolant || r.cooling) return "cooled";  // a tube's coolant, a tank's wall
+  return r.heat ? heat_mode_name(*r.heat) : nullptr;
+}
+
+const char* coolant_flow_name(CoolantFlow f) {
+  switch (f) {
+    case CoolantFlow::Constant:
+      return "constant";
+    case CoolantFlow::Cocurrent:
+      return "cocurrent";
+    case CoolantFlow::Countercurrent:
+      return "countercurrent";
+  }
+  return "constant";
 }
 
 const char* heat_mode_name(HeatMode heat) {
@@ -173,7 +192,11 @@ std::string out_of_reach_text(const ReactorSpec& spec, double X_target, const St
       spec.id, X_target, reach.X_max);
   std::vector<std::string> ids;
   for (const auto& sp : mech.species()) ids.push_back(sp.id);
-  const std::string end = reach_end_text(reach, spec.heat, ids);
+  // A cooled path ends at equilibrium near the coolant's temperature, on
+  // no adiabatic line.
+  const std::string end = spec.cooling && reach.end == ReachEnd::Equilibrium
+                              ? std::string("the equilibrium limit along the cooled path")
+                              : reach_end_text(reach, spec.heat, ids);
   if (!reach.peak_inside() || !reach.V_at_X_max)
     return head + fmt::format(" (at {}, {})", temperature_words(reach.T_at_X_max), end);
   std::string where = fmt::format("V = {:.4g} m3", *reach.V_at_X_max);

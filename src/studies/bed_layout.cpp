@@ -81,6 +81,11 @@ LayoutCase check_layout_case(const Case& c, LayoutStudy study) {
   LayoutCase lc;
   const ReactorSpec* set_by = nullptr;
   for (const auto& s : c.train) {
+    if (const auto* q = std::get_if<QuenchSpec>(&s))
+      throw InputError(q->where, fmt::format("stage {} is a quench; {} designs adiabatic beds with "
+                                             "intercoolers and does not take side streams yet: "
+                                             "rate the quench converter with run",
+                                             q->id, name));
     const auto* r = std::get_if<ReactorSpec>(&s);
     if (!r) continue;
     // The new beds' rates are the intrinsic ones: a case whose beds hold

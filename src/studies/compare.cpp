@@ -45,7 +45,11 @@ namespace {
 ReactorSpec with_heat(ReactorSpec r, LayoutHeat heat) {
   if (heat == LayoutHeat::Adiabatic) r.heat = HeatMode::Adiabatic;
   if (heat == LayoutHeat::Isothermal) r.heat = HeatMode::Isothermal;
-  if (heat != LayoutHeat::AsWritten) r.cooling.reset();  // a cooled tank is neither
+  // The layout's heat replaces a tank's wall and a tube's coolant.
+  if (heat != LayoutHeat::AsWritten) {
+    r.cooling.reset();
+    r.tank_cooling.reset();
+  }
   return r;
 }
 
@@ -66,9 +70,13 @@ bool same_spec(const ReactorSpec& a, const ReactorSpec& b) {
   return a.type == b.type && a.heat == b.heat && a.volume == b.volume &&
          a.catalyst_mass == b.catalyst_mass && a.bulk_density == b.bulk_density &&
          a.target_conversion == b.target_conversion && a.activity == b.activity &&
+         a.tank_cooling.has_value() == b.tank_cooling.has_value() &&
+         (!a.tank_cooling || (a.tank_cooling->UA == b.tank_cooling->UA &&
+                              a.tank_cooling->T_coolant == b.tank_cooling->T_coolant)) &&
          a.cooling.has_value() == b.cooling.has_value() &&
-         (!a.cooling ||
-          (a.cooling->UA == b.cooling->UA && a.cooling->T_coolant == b.cooling->T_coolant)) &&
+         (!a.cooling || (a.cooling->U == b.cooling->U && a.cooling->T == b.cooling->T &&
+                         a.cooling->direction == b.cooling->direction &&
+                         a.cooling->flow == b.cooling->flow && a.cooling->cp == b.cooling->cp)) &&
          a.heat_capacity == b.heat_capacity && same_bed(a, b);
 }
 
@@ -107,7 +115,7 @@ Layout evaluate(const Case& lc, const TrainOptions& options, const std::optional
     bool all_catalyst = true;
     for (const auto& s : res.stages) {
       T_hi = std::max({T_hi, s.T_max, s.outlet.T});
-      if (s.kind == StageKind::Exchanger) continue;
+      if (!is_reactor(s.kind)) continue;
       V += s.volume.value_or(0);
       if (s.catalyst_mass)
         W += *s.catalyst_mass;
@@ -202,6 +210,12 @@ std::vector<int> name_orders(Layout& l, std::vector<std::vector<int>> orders,
 CompareResult compare_layouts(const Case& c, const CompareOptions& options) {
   std::vector<ReactorSpec> reactors;
   bool any_exchanger = false;
+  for (const auto& spec : c.train)
+    if (const auto* q = std::get_if<QuenchSpec>(&spec))
+      throw InputError(q->where, fmt::format("stage {} is a quench; compare reorders reactors "
+                                             "around exchangers only and does not handle side "
+                                             "streams yet: rate the train with run",
+                                             q->id));
   for (const auto& spec : c.train) {
     if (const auto* r = std::get_if<ReactorSpec>(&spec))
       reactors.push_back(*r);
@@ -223,7 +237,7 @@ CompareResult compare_layouts(const Case& c, const CompareOptions& options) {
   for (const auto& r : reactors) {
     out.case_order.push_back(r.id);
     if (r.target_conversion) X_sized = std::max(X_sized.value_or(0.0), *r.target_conversion);
-    all_adiabatic = all_adiabatic && r.heat == HeatMode::Adiabatic && !r.cooling;
+    all_adiabatic = all_adiabatic && r.heat == HeatMode::Adiabatic && !r.cooling && !r.tank_cooling;
     all_isothermal = all_isothermal && r.heat == HeatMode::Isothermal;
   }
   out.sized = X_sized.has_value();

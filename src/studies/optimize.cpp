@@ -307,7 +307,7 @@ AsWrittenDesign as_written(const Setup& s, const DesignOptions& o) {
   // limit check's, so only a margin adds excursions.
   const bool narrowed = s.T_hi < *s.c.limits.T_max || s.T_lo > *s.c.limits.T_in_min;
   for (const auto& st : r.stages) {
-    if (st.kind == StageKind::Exchanger) {
+    if (!is_reactor(st.kind)) {
       a.total_duty += st.duty;
       continue;
     }

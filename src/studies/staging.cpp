@@ -169,7 +169,7 @@ LastReactor walk_as_given(const Setup& s, const StagingOptions& o, const SunCont
 std::pair<std::string, LimitPoint> first_crossing(const Setup& s, const StagingOptions& o,
                                                   const SunContext& ctx, StagingResult& res) {
   for (const StageResult& r : res.as_given_run.stages) {
-    if (r.kind == StageKind::Exchanger || !beyond(s, r)) continue;
+    if (!is_reactor(r.kind) || !beyond(s, r)) continue;
     LimitPoint p{r.conversion, r.volume.value_or(0.0), r.outlet.T, false};
     if (r.kind == StageKind::Pfr) {
       const auto& rs = std::get<ReactorSpec>(

@@ -125,7 +125,7 @@ WrittenRun run_written(const Case& back, const DesignResult& d) {
   const TrainResult r = run_train(back, to);
   WrittenRun w{r.conversion, 0};
   for (const auto& st : r.stages) {
-    if (st.kind == StageKind::Exchanger) continue;
+    if (!is_reactor(st.kind)) continue;
     w.outside = std::max({w.outside, st.T_max - d.window_high, d.window_low - st.T_min});
   }
   return w;

@@ -87,7 +87,7 @@ OutputSpec OutputSpec::defaults(const Case& c) {
   for (const auto& s : c.train) {
     const std::string& id = stage_id(s);
     // An exchanger's peak is only the hotter of its ends; its outlet says it.
-    if (!std::holds_alternative<ExchangerSpec>(s)) {
+    if (std::holds_alternative<ReactorSpec>(s)) {
       o.columns_.push_back(column(id + ".T_peak", c));
       if (c.limits.T_max || c.limits.T_in_min) o.columns_.push_back(column(id + ".over_limit", c));
     }

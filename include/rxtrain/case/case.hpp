@@ -36,6 +36,28 @@ struct TankCooling {
   double T_coolant = 0;  // K
 };
 
+// How a coolant outside the tubes flows, relative to the process stream.
+enum class CoolantFlow {
+  Constant,       // one temperature all along (a boiling coolant)
+  Cocurrent,      // enters with the process stream
+  Countercurrent  // enters at the process outlet
+};
+
+// A cooled tubular stage (`heat: {U, coolant}`): the heat taken per bed
+// volume is U (4 / d_tube) (T - T_coolant), d_tube the tubes' inside
+// diameter (`tubes`, required). A coolant with a flow warms (or cools) by
+// its own energy balance, flow * cp * dT_coolant.
+struct CoolingSpec {
+  double U = 0;  // W/(m2 K), on the tube's inner surface
+  // K: the constant coolant temperature, or the coolant's inlet
+  // temperature (where it enters, in its own flow direction).
+  double T = 0;
+  CoolantFlow direction = CoolantFlow::Constant;
+  std::optional<double> flow;  // kg/s, the coolant's mass flow (with a direction)
+  std::optional<double> cp;    // J/(kg K), the coolant's specific heat
+  SourceLocation where;        // the `heat` entry
+};
+
 // A reactor stage. Exactly one of volume / catalyst_mass / target_conversion
 // / target_outlet is set (catalyst_mass needs bulk_density; volume =
 // catalyst_mass / bulk_density).
@@ -62,13 +84,17 @@ struct ReactorSpec {
   // The fluid's viscosity (top-level `fluid`), copied to every reactor by
   // the loader so that a stage runs from its spec alone.
   std::optional<ViscosityLaw> viscosity;
-  // Stirred tanks only. A cooled tank (heat = Adiabatic with cooling set:
+  // Stirred tanks only. A cooled tank (heat = Adiabatic with tank_cooling set:
   // its energy balance closes with the wall's heat; see TankCooling).
-  std::optional<TankCooling> cooling;
+  std::optional<TankCooling> tank_cooling;
   // Stirred tanks only: the heat capacity of the vessel and catalyst, J/K,
   // added to the contents' in the dynamic energy balance (it moves the
   // eigenvalues of a steady state, never the state itself). Absent: 0.
   std::optional<double> heat_capacity;
+  // A cooled tubular stage (`heat: {U, coolant}`): its energy balance is
+  // the adiabatic one plus the heat through the tube walls; `heat` stays
+  // Adiabatic. Needs `geometry` with tubes.
+  std::optional<CoolingSpec> cooling;
   bool has_pressure_drop() const {
     return type == ReactorType::Pfr && geometry && pellet && viscosity;
   }
@@ -95,7 +121,20 @@ struct ExchangerSpec {
   SourceLocation where;
 };
 
-using StageSpec = std::variant<ReactorSpec, ExchangerSpec>;
+// A cold shot (`type: quench`): a side stream joins the process stream and
+// mixes with it adiabatically. Either a `share` of the case's feed (the
+// first stage then gets 1 - the sum of the shares; this share joins here
+// at `T`, default the feed's, and the feed's pressure) or an independent
+// side `stream` (its T, P and flows). Stands after a reactor.
+struct QuenchSpec {
+  std::string id;
+  std::optional<double> share;   // 0 < share < 1, of the case's feed
+  std::optional<double> T;       // K, the share's temperature (default: the feed's)
+  std::optional<Stream> stream;  // an independent side stream
+  SourceLocation where;
+};
+
+using StageSpec = std::variant<ReactorSpec, ExchangerSpec, QuenchSpec>;
 
 const std::string& stage_id(const StageSpec& s);
 
@@ -135,6 +174,9 @@ struct Case {
   std::vector<int> products;
 
   ConversionBasis conversion_basis() const { return {key, feed.F[key]}; }
+  // The sum of the quench shares (0 without): the first stage gets
+  // (1 - quench_shares()) of the feed.
+  double quench_shares() const;
 };
 
 // A conversion counts as reached when it is within this (absolute) of the

@@ -10,6 +10,8 @@
 //   feed.T  feed.P  feed.flow  feed.flows.ID  feed.composition.ID
 //   train.ID.volume | catalyst | target.conversion | bulk_density | activity | T_out | duty
 //   train.ID.heat.UA | heat.coolant.T | heat_capacity      (stirred tanks, as given)
+//   train.ID.heat.U | heat.coolant.T | heat.coolant.T_in  (cooled tubular stages)
+//   train.ID.share  (a quench's share of the feed)
 //   reactions.ID.rate.A | rate.Ea | rate.T_ref
 //   reactions.ID.equilibrium.K | equilibrium.T | equilibrium.dH  (van 't Hoff form)
 //   species.ID.mw | species.ID.density
@@ -59,7 +61,6 @@ enum class CaseFieldKind {
   BulkDensity,       // with catalyst given, the mass stays and the volume follows
   Activity,          // a reactor's catalyst activity; every reactor has one (default 1)
   TankUA,            // a cooled stirred tank's wall UA
-  TankCoolantT,      // a cooled stirred tank's coolant temperature
   TankHeatCapacity,  // a stirred tank's vessel and catalyst heat capacity
   ExchangerTout,
   ExchangerDuty,
@@ -72,6 +73,10 @@ enum class CaseFieldKind {
   PelletSize,      // the pellet's diameter or thickness (Ergun's d_p and the modulus)
   Viscosity,       // the fluid's constant viscosity; every reactor holds a copy
   ViscosityValue,  // a power-law viscosity's value at its T (the exponent stays)
+  HeatU,           // a cooled stage's overall coefficient
+  CoolantT,        // a cooled tank's or tubular stage's constant coolant temperature
+  CoolantTin,      // a cooled stage's flowing coolant's inlet temperature
+  QuenchShare,     // a quench's share of the feed
   RateA,
   RateEa,
   RateTref,

@@ -34,4 +34,13 @@ Stream stream_after_extent(const Mechanism& mech, const Stream& inlet, HeatMode 
 void stream_after_extent(const Mechanism& mech, const Stream& inlet, HeatMode heat, int j,
                          double xi, double T_guess, Stream& out);
 
+// Two streams mixed adiabatically, without reaction: the flows add and
+// the temperature is the one at which the mixture's sensible enthalpy
+// (each species' own h(T), from 298.15 K) equals the sum of the two
+// streams' (formation enthalpies cancel: no species changes); Newton from
+// the flow-weighted mean of the two temperatures. The pressure is
+// `main`'s: the side stream is taken to join at the pressure of the stream
+// it joins. Throws SolverError when no temperature closes the balance.
+Stream mix_adiabatic(const Mechanism& mech, const Stream& main, const Stream& side);
+
 }  // namespace rxtrain

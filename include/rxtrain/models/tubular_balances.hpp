@@ -1,8 +1,9 @@
 // The tubular balances: the mole and energy balances of a tubular stage
 // as an ODE system in its volume, on the state y = [F_1..F_n, T, Q] or,
 // for a packed bed with a pressure drop, y = [F_1..F_n, T, Q, P] (molar
-// flows mol/s, temperature K, heat added W, pressure Pa), with its dense
-// and sparse analytic Jacobians. The one home of these balances: lone and
+// flows mol/s, temperature K, heat added W, pressure Pa), and for a cooled
+// tube with a flowing coolant the coolant's temperature T_c (K) last,
+// with its dense and sparse analytic Jacobians. The one home of these balances: lone and
 // batched tubular stages (stages/pfr.cpp, stages/pfr_batch.cpp) integrate
 // it; a new state (pressure, a coolant temperature) is added here.
 // Internal to the library (rxtrain::detail), not API.
@@ -10,6 +11,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <optional>
 #include <vector>
 
 #include "rxtrain/chem/heat_mode.hpp"
@@ -83,7 +85,20 @@ struct HydraulicBinding {
   ViscosityLaw mu;
 };
 
-// The tubular-reactor ODE system on y = [F_1..F_n, T, Q (, P)]. Rebound to each
+// A cooled tube (see PfrSystem::reset): the heat through the wall per bed
+// volume is Ua (T - T_c), Ua = U 4 / d_tube. With a coolant flow T_c is
+// the last state, dT_c/dV = sign Ua (T - T_c) / (flow cp): sign +1 when
+// the coolant flows with the process stream, -1 against it (the balance
+// is integrated in the process direction either way).
+struct CoolingBinding {
+  double Ua = 0;       // W/(m3 K)
+  double T_c = 0;      // K, the coolant's temperature when it is constant
+  double inv_mcp = 0;  // K/W, 1 / (flow cp); 0: a constant coolant (no state)
+  double sign = 1;
+  bool has_state() const { return inv_mcp != 0; }
+};
+
+// The tubular-reactor ODE system on y = [F_1..F_n, T, Q (, P) (, T_c)]. Rebound to each
 // stage with reset(); its buffers keep their capacity between runs, so
 // neither rhs() nor the Jacobians allocate.
 class PfrSystem {
@@ -96,10 +111,15 @@ class PfrSystem {
   // outlet against a tight-tolerance run and GSL.
   // With `hydraulics`, P is the state y[n+2] and every rate reads it; the
   // rows and column of P are analytic (the viscosity's T dependence too).
+  // With `cooling` (heat must be Adiabatic), the energy row gains the wall
+  // term and Q sums the heat through the wall; its entries are analytic.
   void reset(const Mechanism& mech, const std::vector<double>& multipliers, HeatMode heat, double P,
-             const PelletBinding* pellet = nullptr, const HydraulicBinding* hydraulics = nullptr) {
+             const PelletBinding* pellet = nullptr, const HydraulicBinding* hydraulics = nullptr,
+             const CoolingBinding* cooling = nullptr) {
     mech_ = &mech;
     hyd_ = hydraulics;
+    cool_ = cooling;
+    ic_ = mech.n_species() + 2 + (hydraulics ? 1 : 0);
     bind_pellet(mech, pellet);
     beta_.assign(multipliers.begin(), multipliers.end());
     heat_ = heat;
@@ -127,8 +147,12 @@ class PfrSystem {
     st_start_.push_back(static_cast<int>(st_species_.size()));
   }
 
-  int size() const { return n_ + 2 + (hyd_ ? 1 : 0); }
+  int size() const { return n_ + 2 + (hyd_ ? 1 : 0) + (has_coolant_state() ? 1 : 0); }
   bool has_pressure() const { return hyd_ != nullptr; }
+  bool has_coolant_state() const { return cool_ && cool_->has_state(); }
+  // The coolant's temperature at state y (cooled tubes only).
+  double coolant_T(const double* y) const { return has_coolant_state() ? y[ic_] : cool_->T_c; }
+  int coolant_index() const { return ic_; }
   // The pressure at state y: its own state with a pressure drop, else the stage's.
   double pressure(const double* y) const { return hyd_ ? y[n_ + 2] : P_; }
   const Mechanism& mech() const { return *mech_; }
@@ -151,7 +175,12 @@ class PfrSystem {
       for (int s = st_start_[j]; s < st_start_[j + 1]; ++s) ydot[st_species_[s]] += st_nu_[s] * R;
       q += mech.dH(j, T) * R;
     }
-    if (heat_ == HeatMode::Adiabatic) {
+    if (cool_) {
+      const double w = cool_->Ua * (T - coolant_T(y));  // W/m3 through the wall
+      ydot[n_] = -(q + w) / mech.heat_capacity_flow(T, y);
+      ydot[n_ + 1] = -w;
+      if (cool_->has_state()) ydot[ic_] = cool_->sign * w * cool_->inv_mcp;
+    } else if (heat_ == HeatMode::Adiabatic) {
       ydot[n_] = -q / mech.heat_capacity_flow(T, y);
       ydot[n_ + 1] = 0;
     } else {
@@ -206,6 +235,7 @@ class PfrSystem {
     }
     energy_rows(y, T, q, dq_dT, [&](int row, int col) -> double& { return at(row, col); });
     if (hyd_) pressure_rows(y, T, [&](int row, int col) -> double& { return at(row, col); });
+    if (cool_) cooling_rows(y, T, [&](int row, int col) -> double& { return at(row, col); });
     return 0;
   }
 
@@ -244,6 +274,14 @@ class PfrSystem {
       for (int i = 0; i < n_; ++i) mark(i, n_ + 2);
       mark(T_row, n_ + 2);
       for (int k = 0; k <= n_; ++k) mark(n_ + 2, k);
+    }
+    if (cool_) {
+      mark(n_ + 1, n_);  // the wall's heat reads T
+      if (has_coolant_state()) {
+        mark(T_row, ic_);
+        mark(n_ + 1, ic_);
+        mark(ic_, n_);
+      }
     }
     pat.n = N;
     pat.col_start.assign(1, 0);
@@ -337,6 +375,10 @@ class PfrSystem {
       pressure_rows(y, T, [&](int, int col) -> double& {
         return values[row_P_[col == n_ + 2 ? n_ + 1 : col]];  // only the P row is written
       });
+    if (cool_)
+      cooling_rows(y, T, [&](int row, int col) -> double& {
+        return values[pos_[row + static_cast<std::size_t>(size()) * col]];
+      });
     return 0;
   }
 
@@ -402,6 +444,10 @@ class PfrSystem {
     const Mechanism& mech = *mech_;
     T_last_ = T;
     if (heat_ == HeatMode::Adiabatic) {
+      // A cooled tube: the wall's heat w = Ua (T - T_c) joins q.
+      const double w = cool_ ? cool_->Ua * (T - coolant_T(y)) : 0.0;
+      q += w;
+      dq_dT += cool_ ? cool_->Ua : 0.0;
       const double C = mech.heat_capacity_flow(T, y);
       // d(sum F cp)/dT by a central difference of the property (the rate
       // terms above are analytic).
@@ -419,6 +465,20 @@ class PfrSystem {
       at(n_ + 1, n_) = dq_dT;
       if (hyd_) at(n_ + 1, n_ + 2) = dq_dP();
     }
+  }
+
+  // A cooled tube's entries beyond energy_rows: the heat row Q' = -w, the
+  // T row's coolant column, and the coolant's row (with a coolant flow).
+  template <class At>
+  void cooling_rows(const double* y, double T, At at) {
+    const double Ua = cool_->Ua;
+    at(n_ + 1, n_) = -Ua;
+    if (!has_coolant_state()) return;
+    at(n_, ic_) = Ua / mech_->heat_capacity_flow(T, y);
+    at(n_ + 1, ic_) = Ua;
+    const double g = cool_->sign * Ua * cool_->inv_mcp;
+    at(ic_, n_) = g;
+    at(ic_, ic_) = -g;
   }
 
   // sum_j dH_j beta_j dr_j/dP (dr_dP_ already times eta_j).
@@ -481,6 +541,8 @@ class PfrSystem {
   std::vector<double> dr_dP_;  // with a pressure drop only
   std::vector<double> dq_dF_;
   const HydraulicBinding* hyd_ = nullptr;
+  const CoolingBinding* cool_ = nullptr;
+  int ic_ = 0;         // the coolant's state (with a coolant flow)
   double P_now_ = 0;   // the pressure of the state last evaluated
   double T_last_ = 0;  // its temperature (energy_rows)
   Mechanism::Scratch scratch_;
@@ -514,21 +576,25 @@ inline bool same_options(const CvodeOptions& a, const CvodeOptions& b) {
          a.max_order == b.max_order;
 }
 
-// with_pressure: the state carries P (a bed with a pressure drop).
-inline void initial_state(const Stream& in, std::vector<double>& y, bool with_pressure = false) {
+// with_pressure: the state carries P (a bed with a pressure drop);
+// T_c0: the coolant's temperature at the inlet (a coolant flow).
+inline void initial_state(const Stream& in, std::vector<double>& y, bool with_pressure = false,
+                          std::optional<double> T_c0 = std::nullopt) {
   y.assign(in.F.begin(), in.F.end());
   y.push_back(in.T);
   y.push_back(0.0);
   if (with_pressure) y.push_back(in.P);
+  if (T_c0) y.push_back(*T_c0);
 }
 
 inline void state_scale(const Mechanism& mech, const Stream& in, std::vector<double>& s,
-                        bool with_pressure = false) {
+                        bool with_pressure = false, bool with_coolant = false) {
   const double Ft = in.total_flow();
   s.assign(in.F.size(), Ft);
   s.push_back(in.T);
   s.push_back(std::max(1.0, mech.heat_capacity_flow(in.T, in.F.data()) * in.T));
   if (with_pressure) s.push_back(in.P);
+  if (with_coolant) s.push_back(in.T);
 }
 
 }  // namespace rxtrain::detail

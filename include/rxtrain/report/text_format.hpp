@@ -52,6 +52,12 @@ std::string closure_text(double relative);
 // "E1: counter flow, LMTD 45.20 K, area 123.4 m2 (utility 30.00 → 45.00
 // °C, 12.3 kg/s)" for an exchanger given U and its utility; empty else.
 std::string exchanger_size_sentence(const StageResult& r);
+// A cooled stage's coolant, heat removed and hot spot, in one sentence
+// (empty when the stage is not cooled).
+std::string coolant_sentence(const StageResult& r);
+// A quench's side stream and its mixing, in one sentence (empty for other
+// stages).
+std::string quench_sentence(const StageResult& r);
 
 // A mole fraction as a purity is quoted: in ppm below 0.1 %, else in %
 // ("1 ppm", "6 %"), six significant digits.

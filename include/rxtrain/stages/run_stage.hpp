@@ -8,6 +8,7 @@
 #include "rxtrain/stages/cstr.hpp"
 #include "rxtrain/stages/exchanger.hpp"
 #include "rxtrain/stages/pfr.hpp"
+#include "rxtrain/stages/quench.hpp"
 #include "rxtrain/stages/stage.hpp"
 
 namespace rxtrain {
@@ -21,6 +22,8 @@ struct StageContext {
   CstrWorkspace& cstr;
   const PfrOptions& pfr_options;
   const CstrOptions& cstr_options;
+  // The case's feed, whose shares quenches add; null outside a train.
+  const Stream* feed = nullptr;
 };
 
 StageResult run_stage(const StageSpec& spec, const Stream& inlet, const StageContext& ctx);

@@ -20,9 +20,13 @@
 
 namespace rxtrain {
 
-enum class StageKind { Pfr, Cstr, Exchanger };
+enum class StageKind { Pfr, Cstr, Exchanger, Quench };
 
-// The names every output uses: "pfr", "cstr", "exchanger"; "adiabatic",
+// Tubular reactors and stirred tanks: the stages with a volume, catalyst
+// and a path; exchangers and quenches only change the stream's state.
+inline bool is_reactor(StageKind k) { return k == StageKind::Pfr || k == StageKind::Cstr; }
+
+// The names every output uses: "pfr", "cstr", "exchanger", "quench"; "adiabatic",
 // "isothermal".
 const char* stage_kind_name(StageKind kind);
 const char* heat_mode_name(HeatMode heat);
@@ -38,7 +42,41 @@ struct ProfilePoint {
   // Pa, the local pressure of a bed with a pressure drop; empty where the
   // stage runs at constant pressure (its inlet's).
   std::optional<double> P = std::nullopt;
+  // K, the coolant's temperature here (cooled tubular stages); empty else.
+  std::optional<double> T_coolant = std::nullopt;
 };
+
+struct StageResult;
+
+// The coolant of a cooled tubular stage as it ran. T_in and T_out are in
+// the coolant's own flow direction (both the coolant's T when constant).
+struct CoolantResult {
+  double T_in = 0, T_out = 0;  // K
+  // W, the heat added to the process stream through the walls (negative
+  // when it is cooled, as an exchanger's duty).
+  double duty = 0;
+  CoolantFlow direction = CoolantFlow::Constant;
+  double U = 0;         // W/(m2 K)
+  double area = 0;      // m2, the tubes' inner surface
+  double dT_max = 0;    // K, the largest process-minus-coolant difference
+  double V_dT_max = 0;  // m3 from the stage inlet, where it stands
+  // Countercurrent: the coolant's outlet found by shooting (its value at
+  // the process inlet) and how many trials it took.
+  int shooting_trials = 0;
+};
+
+// The peak process temperature of a stage and where it stands, by volume
+// and by length from the stage inlet.
+struct HotSpot {
+  double T = 0, V = 0, z = 0;  // K, m3, m
+};
+
+// A reactor's heat in every output: heat_mode_name, or "cooled"; null
+// for an exchanger.
+const char* stage_heat_name(const StageResult& r);
+
+// "constant", "cocurrent", "countercurrent".
+const char* coolant_flow_name(CoolantFlow f);
 
 // A reaction's effectiveness factor over a stage: its least and greatest
 // along the integrated profile, and its value at the outlet.
@@ -220,6 +258,17 @@ struct StageResult {
   std::optional<ExchangerSize> exchanger_size;
   // Tubular stages given a bed or tubes: the bed as built and its flow.
   std::optional<StageHydraulics> hydraulics;
+  // Quench stages: the side stream that joined, and the share of the feed
+  // it is (with `share`); empty else.
+  std::optional<Stream> side_stream;
+  std::optional<double> share;
+  // mol/s, the key fed so far at this stage's outlet (the first stage's
+  // feed plus every side stream joined up to here): the conversion's
+  // basis, X = 1 - F_key / F_key_fed (set by run_train).
+  double F_key_fed = 0;
+  // Cooled tubular stages: the coolant and the hot spot; empty else.
+  std::optional<CoolantResult> coolant;
+  std::optional<HotSpot> hot_spot;
 };
 
 // Fills space time, space velocity, GHSV, WHSV and LHSV from the stage's
