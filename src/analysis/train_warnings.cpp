@@ -136,13 +136,20 @@ std::vector<std::string> design_warnings(const Case& c, const TrainResult& resul
       out.push_back(fmt::format("the feed, at {}, is already above T_max = {}", celsius(c.feed.T),
                                 celsius(*lim.T_max)));
     } else if (*dT > 0 && lim.T_max && T_full > *lim.T_max) {
+      // Where every reactor is cooled, the advice is the coolant's, not
+      // intercooling's.
+      bool all_cooled = true;
+      for (const auto& r : result.stages)
+        if (is_reactor(r.kind)) all_cooled = all_cooled && (r.coolant || r.cooling);
       out.push_back(fmt::format(
           "adiabatic temperature rise of the feed at full conversion of {} is {:.1f} K (from {} "
           "to {}), above T_max = {}: an adiabatic bed passes T_max near X = {:.2f} (linear in "
-          "conversion) unless equilibrium stops it first; split the conversion between beds "
-          "with intercooling",
+          "conversion) unless equilibrium stops it first; {}",
           key, *dT, celsius(c.feed.T), celsius(T_full), celsius(*lim.T_max),
-          std::clamp((*lim.T_max - c.feed.T) / *dT, 0.0, 1.0)));
+          std::clamp((*lim.T_max - c.feed.T) / *dT, 0.0, 1.0),
+          all_cooled ? "every reactor here is cooled, so it is the coolant that must hold each "
+                       "one below T_max (a loss of coolant lets it run away towards that rise)"
+                     : "split the conversion between beds with intercooling"));
     }
     if (*dT < 0 && lim.T_in_min && T_full < *lim.T_in_min && c.feed.T <= *lim.T_in_min) {
       out.push_back(fmt::format("the feed, at {}, is already below T_in_min = {}",
