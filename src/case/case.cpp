@@ -244,7 +244,7 @@ class Loader {
   void read_train_target(const YAML::Node& node, Case& c) const;
   OutletTarget read_outlet_target(const YAML::Node& node, const std::string& ctx) const;
   void read_exchanger_size(const Fields& f, ExchangerSpec& x) const;
-  TankCooling read_tank_cooling(const YAML::Node& node, ReactorType type, const std::string& sid,
+  TankCooling read_tank_cooling(const YAML::Node& node, const std::string& sid,
                                 const std::string& ctx) const;
   TemperatureLimits read_limits(const YAML::Node& node) const;
   PelletSpec read_pellet(const YAML::Node& node, const std::string& ctx) const;
@@ -1107,7 +1107,7 @@ StageSpec Loader::read_stage(const YAML::Node& node, std::size_t index) {
       // A stirred tank is cooled through its wall (UA), a tubular stage
       // through its tubes (U).
       if (r.type == ReactorType::Cstr)
-        r.tank_cooling = read_tank_cooling(*n, r.type, sid, ctx);
+        r.tank_cooling = read_tank_cooling(*n, sid, ctx);
       else
         r.cooling = read_cooling(*n, sid, ctx);
     else
@@ -1180,12 +1180,8 @@ StageSpec Loader::read_stage(const YAML::Node& node, std::size_t index) {
 }
 
 // A cooled stirred tank's `heat: {UA: 40 kW/K, coolant: {T: 300 K}}`.
-TankCooling Loader::read_tank_cooling(const YAML::Node& node, ReactorType type,
-                                      const std::string& sid, const std::string& ctx) const {
-  if (type != ReactorType::Cstr)
-    fail(node, fmt::format("heat of {}: a mapping with UA and coolant cools a stirred tank (type: "
-                           "cstr); a tubular stage takes adiabatic or isothermal",
-                           ctx));
+TankCooling Loader::read_tank_cooling(const YAML::Node& node, const std::string& sid,
+                                      const std::string& ctx) const {
   Fields g(*this, node, "heat of " + ctx);
   g.check({"UA", "coolant"});
   TankCooling c;
