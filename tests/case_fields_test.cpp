@@ -101,9 +101,13 @@ YAML::Node node_at(YAML::Node root, const std::string& path) {
   for (std::size_t i = 0; i < parts.size(); ++i) {
     const bool list = n[parts[i]].IsSequence();
     if (list) {
+      // An entry by its id, or by its index where the entries have none
+      // (adsorption terms: "terms.0").
       YAML::Node seq = n[parts[i]], entry;
       for (std::size_t j = 0; j < seq.size(); ++j)
-        if (seq[j]["id"].Scalar() == parts[i + 1]) entry.reset(seq[j]);
+        if (seq[j]["id"] ? seq[j]["id"].Scalar() == parts[i + 1]
+                         : std::to_string(j) == parts[i + 1])
+          entry.reset(seq[j]);
       REQUIRE(entry.IsDefined());
       n.reset(entry);
       ++i;

@@ -216,7 +216,7 @@ TEST_CASE("validate_case refuses adsorption terms the loader refuses", "[lhhw]")
   CHECK_THAT(with([](Adsorption& a) { a.exponent = -1; }),
              Catch::Contains("exponent of adsorption of rate of reaction ox must be positive"));
   CHECK_THAT(with([](Adsorption& a) { a.terms[1].K = 0; }),
-             Catch::Contains("K of term 2 of adsorption of rate of reaction ox must be positive"));
+             Catch::Contains("K of adsorption term 2 of rate of reaction ox must be positive"));
   CHECK_THAT(with([](Adsorption& a) { a.terms[0].powers[2] = -1; }),
              Catch::Contains("power of SO3 in term 1"));
   CHECK_THAT(with([](Adsorption& a) { a.terms[0].powers.assign(4, 0.0); }),

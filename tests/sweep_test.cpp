@@ -502,3 +502,92 @@ TEST_CASE("sampled values outside a field's range become invalid-input rows", "[
   CHECK(bad > 0);
   CHECK(bad < 50);
 }
+
+namespace {
+
+// Liquid A => B, isothermal, r = k C_A^n / (1 + K_A(T) C_A)^m (invented
+// data): v0 = 1e-4 m3/s and C_A0 = 1e4 mol/m3 throughout, tau = 1000 s.
+// The adsorption term's T_ref (350 K) differs from the feed's 300 K so
+// that its dH moves the run.
+constexpr const char* kInhibited = R"(title: inhibited tube (invented data)
+phase: liquid
+species:
+  - {id: A, mw: 0.1 kg/mol, density: 1000 kg/m3}
+  - {id: B, mw: 0.1 kg/mol, density: 1000 kg/m3}
+reactions:
+  - id: r1
+    equation: A => B
+    rate:
+      A: 1e-3
+      Ea: 0
+      adsorption:
+        terms: [{K: 1e-4 m3/mol, dH: 0, T_ref: 350 K, species: {A: 1}}]
+    dH: 0
+feed: {T: 300 K, P: 1 bar, flows: {A: 1 mol/s}}
+key: A
+train:
+  - {type: pfr, id: R1, volume: 0.1 m3, heat: isothermal}
+)";
+
+// The root in (0, 1) of an increasing g(X) - k tau (bisection to 1e-15).
+double solve_x(const std::function<double(double)>& g, double k_tau) {
+  double lo = 0, hi = 1 - 1e-15;
+  for (int i = 0; i < 200 && hi - lo > 1e-15; ++i) {
+    const double mid = 0.5 * (lo + hi);
+    (g(mid) < k_tau ? lo : hi) = mid;
+  }
+  return 0.5 * (lo + hi);
+}
+
+}  // namespace
+
+TEST_CASE("rate orders and adsorption fields are case paths that move the run as closed forms say",
+          "[sweep]") {
+  // Integrated plug-flow design equations k tau = int_C^C0 (1 + K C)^m /
+  // C^n dC at constant density (Levenspiel, Chemical Reaction Engineering,
+  // 3rd ed., ch. 5, for the power laws; the inhibited forms integrated by
+  // hand): n = 1, m = 1: -ln(1-X) + K C0 X; n = 2, m = 1: X/(C0 (1-X)) -
+  // K ln(1-X); n = 1, m = 2: -ln(1-X) + 2 K C0 X + K^2 C0^2 (1-(1-X)^2)/2.
+  const Fixture f(kInhibited);
+  const std::vector<std::size_t> which{
+      f.table.find("reactions.r1.rate.A", "t"),
+      f.table.find("reactions.r1.rate.orders.A", "t"),
+      f.table.find("reactions.r1.rate.adsorption.exponent", "t"),
+      f.table.find("reactions.r1.rate.adsorption.terms.0.K", "t"),
+      f.table.find("reactions.r1.rate.adsorption.terms.0.dH", "t"),
+      f.table.find("reactions.r1.rate.adsorption.terms.0.T_ref", "t")};
+  // B has no order: not a path of this law.
+  CHECK(input_error([&] {
+          (void)f.table.find("reactions.r1.rate.orders.B", "--vary");
+        }).find("unknown case path") != std::string::npos);
+  const CaseEditor editor(f.table, which);
+  const double C0 = 1e4, tau = 1000, R = 8.314462618, T = 300;
+  TrainOptions opt;
+  opt.equilibrium_views = false;
+  opt.solvers.tube.cvode.rtol = 1e-10;
+  opt.solvers.tube.cvode.atol = 1e-12;
+  struct Row {
+    double k, n, m, K, dH;
+  };
+  for (const Row& row : {Row{1e-3, 1, 1, 1e-4, 0}, Row{2e-7, 2, 1, 2e-4, 0},
+                         Row{1e-3, 1, 2, 5e-5, 0}, Row{1e-3, 1, 1, 1e-4, -20e3}}) {
+    INFO("k " << row.k << " n " << row.n << " m " << row.m << " dH " << row.dH);
+    Case work = f.c;
+    const std::vector<double> v{row.k, row.n, row.m, row.K, row.dH, 350.0};
+    editor.apply(f.c, v, work);
+    const double K = row.K * std::exp(-row.dH / R * (1 / T - 1 / 350.0));
+    std::function<double(double)> g;
+    if (row.n == 2)
+      g = [&](double x) { return x / (C0 * (1 - x)) - K * std::log1p(-x); };
+    else if (row.m == 2)
+      g = [&](double x) {
+        return -std::log1p(-x) + 2 * K * C0 * x + K * K * C0 * C0 * (1 - (1 - x) * (1 - x)) / 2;
+      };
+    else
+      g = [&](double x) { return -std::log1p(-x) + K * C0 * x; };
+    const double X = solve_x(g, row.k * tau);
+    CHECK(X > 0.05);
+    CHECK(X < 0.99);
+    CHECK_THAT(run_train(work, opt).conversion, Catch::Matchers::WithinRel(X, 1e-7));
+  }
+}

@@ -848,8 +848,8 @@ AdsorptionTerm Loader::read_adsorption_term(const YAML::Node& node, const std::s
                          "{{A: 1}}",
                          ctx));
   const bool pressure = driving == Driving::Pressure;
-  const SiUnit unit = SiUnit::per_power(
-      "1", pressure ? "Pa" : "mol/m3", total,
+  const SiUnit unit = adsorption_constant_unit(
+      driving, t,
       fmt::format("an adsorption constant for a {} driving force and species powers summing "
                   "to {:g}",
                   pressure ? "partial-pressure" : "concentration", total));

@@ -80,6 +80,9 @@ constexpr std::array kSpecs{
                   "an energy per mole", true, kAnyValue, S::Offered},
     CaseFieldSpec{K::RateTref, O::Reaction, "reactions.{}.rate.T_ref", "T_ref of reaction {}", "K",
                   "a temperature", false, kPositive, S::Offered},
+    CaseFieldSpec{K::AdsorptionExponent, O::Reaction, "reactions.{}.rate.adsorption.exponent",
+                  "exponent of adsorption of rate of reaction {}", "1", "a plain number", false,
+                  kPositive, S::Offered},
     CaseFieldSpec{K::EquilibriumK, O::Reaction, "reactions.{}.equilibrium.K",
                   "K of equilibrium of reaction {}", "1", "a plain number", false, kPositive,
                   S::Offered},
@@ -89,6 +92,19 @@ constexpr std::array kSpecs{
     CaseFieldSpec{K::EquilibriumDH, O::Reaction, "reactions.{}.equilibrium.dH",
                   "dH of equilibrium of reaction {}", "J/mol", "an energy per mole", true,
                   kAnyValue, S::Offered},
+    CaseFieldSpec{K::RateOrder, O::ReactionSpecies, "reactions.{0}.rate.orders.{1}",
+                  "order of {1} in rate of reaction {0}", "1", "a plain number", false,
+                  kNonNegative, S::Offered},
+    CaseFieldSpec{K::AdsorptionK, O::AdsorptionTerm, "reactions.{0}.rate.adsorption.terms.{1}.K",
+                  "K of adsorption term {2} of rate of reaction {0}", "", "an adsorption constant",
+                  false, kPositive, S::Offered},
+    CaseFieldSpec{K::AdsorptionDH, O::AdsorptionTerm, "reactions.{0}.rate.adsorption.terms.{1}.dH",
+                  "dH of adsorption term {2} of rate of reaction {0}", "J/mol",
+                  "an energy per mole", true, kAnyValue, S::Offered},
+    CaseFieldSpec{K::AdsorptionTref, O::AdsorptionTerm,
+                  "reactions.{0}.rate.adsorption.terms.{1}.T_ref",
+                  "T_ref of adsorption term {2} of rate of reaction {0}", "K", "a temperature",
+                  false, kPositive, S::Offered},
     CaseFieldSpec{K::MolarMass, O::Species, "species.{}.mw", "mw of species {}", "kg/mol",
                   "a molar mass", false, kPositive, S::NotOffered},
     CaseFieldSpec{K::Density, O::Species, "species.{}.density", "density of species {}", "kg/m3",
@@ -124,6 +140,21 @@ const ViscosityLaw* viscosity(const Case& c) {
   for (int k = 0; k < static_cast<int>(c.train.size()); ++k)
     if (const ReactorSpec* r = reactor(c, k); r && r->viscosity) return &*r->viscosity;
   return nullptr;
+}
+
+constexpr int kTerms = static_cast<int>(Adsorption::kMaxTerms);
+
+// Reaction j and species i of an owner index j * n_species + i.
+std::pair<int, int> reaction_species(const Case& c, int k) {
+  const int n = c.mechanism.n_species();
+  return {k / n, k % n};
+}
+// Reaction j and term t of an owner index j * kMaxTerms + t; the term,
+// or null where reaction j has fewer terms.
+const AdsorptionTerm* term(const Case& c, int k) {
+  const auto& a = c.mechanism.reactions()[k / kTerms].rate.adsorption;
+  const auto t = static_cast<std::size_t>(k % kTerms);
+  return a && t < a->terms.size() ? &a->terms[t] : nullptr;
 }
 
 // Whether the case holds field `kind` of owner `k`.
@@ -187,6 +218,20 @@ bool present(K kind, const Case& c, int k) {
              reactor(c, k)->cooling->direction != CoolantFlow::Constant;
     case K::RateTref:
       return m.reactions()[k].rate.T_ref.has_value();
+    case K::AdsorptionExponent:
+      return m.reactions()[k].rate.adsorption.has_value();
+    case K::RateOrder: {
+      // A reactant's order always (the default law is elementary in the
+      // reactants), any other species' where the law gives it one.
+      const auto [j, i] = reaction_species(c, k);
+      const Reaction& rx = m.reactions()[j];
+      return rx.nu[i] < 0 || rx.rate.orders[i] != 0;
+    }
+    case K::AdsorptionK:
+    case K::AdsorptionDH:
+      return term(c, k) != nullptr;
+    case K::AdsorptionTref:
+      return term(c, k) && term(c, k)->T_ref.has_value();
     case K::EquilibriumK:
     case K::EquilibriumT:
     case K::EquilibriumDH:
@@ -215,22 +260,40 @@ int owner_count(O owner, const Case& c) {
       return static_cast<int>(c.train.size());
     case O::Reaction:
       return c.mechanism.n_reactions();
+    case O::ReactionSpecies:
+      return c.mechanism.n_reactions() * c.mechanism.n_species();
+    case O::AdsorptionTerm:
+      return c.mechanism.n_reactions() * kTerms;
   }
   return 0;
 }
 
-std::string owner_id(O owner, const Case& c, int k) {
+// The arguments of a row's path and label: the owner's id; for a rate
+// law's species or an adsorption term the reaction's id, then the
+// species' id or the term's index from 0, then the term's number from 1.
+struct OwnerIds {
+  std::string id, sub, number;
+};
+
+OwnerIds owner_ids(O owner, const Case& c, int k) {
+  const auto& reactions = c.mechanism.reactions();
   switch (owner) {
     case O::Case:
-      return "";  // k is -1
+      return {};  // k is -1
     case O::Species:
-      return c.mechanism.species()[k].id;
+      return {c.mechanism.species()[k].id, "", ""};
     case O::Stage:
-      return stage_id(c.train[k]);
+      return {stage_id(c.train[k]), "", ""};
     case O::Reaction:
-      return c.mechanism.reactions()[k].id;
+      return {reactions[k].id, "", ""};
+    case O::ReactionSpecies: {
+      const auto [j, i] = reaction_species(c, k);
+      return {reactions[j].id, c.mechanism.species()[i].id, ""};
+    }
+    case O::AdsorptionTerm:
+      return {reactions[k / kTerms].id, std::to_string(k % kTerms), std::to_string(k % kTerms + 1)};
   }
-  return "";
+  return {};
 }
 
 }  // namespace
@@ -266,6 +329,27 @@ SiUnit rate_constant_unit(const RateLaw& law, std::string description) {
   return SiUnit::per_power(law.basis == RateBasis::Catalyst ? "mol/(kg*s)" : "mol/(m3*s)",
                            law.driving == Driving::Pressure ? "Pa" : "mol/m3", total_order,
                            std::move(description));
+}
+
+SiUnit adsorption_constant_unit(Driving driving, const AdsorptionTerm& term,
+                                std::string description) {
+  double total = 0;
+  for (double m : term.powers) total += m;
+  return SiUnit::per_power("1", driving == Driving::Pressure ? "Pa" : "mol/m3", total,
+                           std::move(description));
+}
+
+int field_reaction(const Case& c, const CaseFieldSpec& spec, int index) {
+  switch (spec.owner) {
+    case O::Reaction:
+      return index;
+    case O::ReactionSpecies:
+      return reaction_species(c, index).first;
+    case O::AdsorptionTerm:
+      return index / kTerms;
+    default:
+      return -1;
+  }
 }
 
 std::string out_of_range_text(std::string_view label, const FieldRange& range, std::string_view si,
@@ -322,13 +406,18 @@ std::vector<CaseField> case_fields(const Case& c) {
 
 CaseField case_field(const Case& c, const CaseFieldSpec& s, int k) {
   CaseField f;
-  const std::string id = owner_id(s.owner, c, k);
-  f.name = fmt::format(fmt::runtime(s.path), id);
-  f.label = fmt::format(fmt::runtime(s.label), id);
+  const OwnerIds ids = owner_ids(s.owner, c, k);
+  f.name = fmt::format(fmt::runtime(s.path), ids.id, ids.sub, ids.number);
+  f.label = fmt::format(fmt::runtime(s.label), ids.id, ids.sub, ids.number);
   f.spec = &s;
   f.index = k;
-  f.unit = s.kind == K::RateA ? rate_constant_unit(c.mechanism.reactions()[k].rate)
-                              : SiUnit::of(std::string(s.si), std::string(s.quantity));
+  if (s.kind == K::RateA)
+    f.unit = rate_constant_unit(c.mechanism.reactions()[k].rate);
+  else if (s.kind == K::AdsorptionK)
+    f.unit =
+        adsorption_constant_unit(c.mechanism.reactions()[k / kTerms].rate.driving, *term(c, k));
+  else
+    f.unit = SiUnit::of(std::string(s.si), std::string(s.quantity));
   f.chemistry_units = s.chemistry_units;
   f.range = s.range;
   return f;
@@ -347,7 +436,8 @@ bool offered_to_sweeps(const CaseField& f, const Case& c) {
 }
 
 bool CaseField::in_mechanism() const {
-  return spec->owner == O::Reaction || spec->kind == K::MolarMass || spec->kind == K::Density;
+  return spec->owner == O::Reaction || spec->owner == O::ReactionSpecies ||
+         spec->owner == O::AdsorptionTerm || spec->kind == K::MolarMass || spec->kind == K::Density;
 }
 
 double CaseField::get(const Case& c) const { return case_field_value(c, *spec, index); }
@@ -413,6 +503,18 @@ double case_field_value(const Case& c, const CaseFieldSpec& spec, int index) {
       return m.reactions()[index].rate.Ea;
     case K::RateTref:
       return m.reactions()[index].rate.T_ref.value_or(0);
+    case K::AdsorptionExponent:
+      return m.reactions()[index].rate.adsorption->exponent;
+    case K::RateOrder: {
+      const auto [j, i] = reaction_species(c, index);
+      return m.reactions()[j].rate.orders[i];
+    }
+    case K::AdsorptionK:
+      return term(c, index)->K;
+    case K::AdsorptionDH:
+      return term(c, index)->dH;
+    case K::AdsorptionTref:
+      return term(c, index)->T_ref.value_or(0);
     case K::EquilibriumK:
       return m.reactions()[index].equilibrium.K_ref;
     case K::EquilibriumT:
@@ -532,6 +634,21 @@ void set_mechanism_field(MechanismInputs& m, const CaseField& f, double v) {
     m.species[f.index].density = v;
     return;
   }
+  if (f.spec->owner == O::ReactionSpecies) {  // RateOrder
+    const auto n = static_cast<int>(m.species.size());
+    m.reactions[f.index / n].rate.orders[f.index % n] = v;
+    return;
+  }
+  if (f.spec->owner == O::AdsorptionTerm) {
+    AdsorptionTerm& t = m.reactions[f.index / kTerms].rate.adsorption->terms[f.index % kTerms];
+    if (f.spec->kind == K::AdsorptionK)
+      t.K = v;
+    else if (f.spec->kind == K::AdsorptionDH)
+      t.dH = v;
+    else
+      t.T_ref = v;
+    return;
+  }
   Reaction& rx = m.reactions[f.index];
   switch (f.spec->kind) {
     case K::RateA:
@@ -542,6 +659,9 @@ void set_mechanism_field(MechanismInputs& m, const CaseField& f, double v) {
       break;
     case K::RateTref:
       rx.rate.T_ref = v;
+      break;
+    case K::AdsorptionExponent:
+      rx.rate.adsorption->exponent = v;
       break;
     case K::EquilibriumK:
       rx.equilibrium.K_ref = v;

@@ -12,7 +12,9 @@
 //   train.ID.heat.UA | heat.coolant.T | heat_capacity      (stirred tanks, as given)
 //   train.ID.heat.U | heat.coolant.T | heat.coolant.T_in  (cooled tubular stages)
 //   train.ID.share  (a quench's share of the feed)
-//   reactions.ID.rate.A | rate.Ea | rate.T_ref
+//   reactions.ID.rate.A | rate.Ea | rate.T_ref | rate.adsorption.exponent
+//   reactions.ID.rate.orders.SP                 (every reactant, and any species with an order)
+//   reactions.ID.rate.adsorption.terms.N.K | .dH | .T_ref   (N from 0, in the case's order)
 //   reactions.ID.equilibrium.K | equilibrium.T | equilibrium.dH  (van 't Hoff form)
 //   species.ID.mw | species.ID.density
 //   target.conversion  limits.T_max  limits.T_in_min
@@ -80,6 +82,11 @@ enum class CaseFieldKind {
   RateA,
   RateEa,
   RateTref,
+  AdsorptionExponent,  // n of DEN^n
+  RateOrder,           // one species' order in one rate law
+  AdsorptionK,         // one adsorption term's K (at its T_ref, when given)
+  AdsorptionDH,        // one adsorption term's enthalpy
+  AdsorptionTref,      // one adsorption term's reference temperature (where given)
   EquilibriumK,
   EquilibriumT,
   EquilibriumDH,
@@ -90,8 +97,10 @@ enum class CaseFieldKind {
   LimitTinMin,
 };
 
-// Whose field it is: one per case, or one per species, stage or reaction.
-enum class FieldOwner { Case, Species, Stage, Reaction };
+// Whose field it is: one per case, or one per species, stage or reaction,
+// or one per species of a reaction's rate law (index j * n_species + i),
+// or one per adsorption term of a reaction (index j * kMaxTerms + t).
+enum class FieldOwner { Case, Species, Stage, Reaction, ReactionSpecies, AdsorptionTerm };
 
 // Whether sweeps offer the field. Species thermo, molar masses and the
 // limits are not offered: the loader derives reaction data from the first
@@ -102,8 +111,12 @@ enum class SweepUse { Offered, LiquidPhase, NotOffered };
 struct CaseFieldSpec {
   CaseFieldKind kind;
   FieldOwner owner;
-  std::string_view path;      // "{}" stands for the owner's id
-  std::string_view label;     // in messages, as the loader names the field; "{}" as above
+  // "{}" stands for the owner's id; a field of a rate law's species or of
+  // an adsorption term has "{0}" for the reaction's id, "{1}" for the
+  // species' id or the term's index from 0 (paths) and "{2}" for the
+  // term's number from 1 (labels).
+  std::string_view path;
+  std::string_view label;     // in messages, as the loader names the field
   std::string_view si;        // SI unit; "1": a plain number; "": per reaction (rate constants)
   std::string_view quantity;  // in messages: "a temperature"
   bool chemistry_units;       // plain cal is the thermochemical calorie
@@ -127,6 +140,13 @@ const CaseFieldSpec& case_field_spec(CaseFieldKind kind);
 // The SI unit a rate constant of `law` is read in (mol/(m3 s) or
 // mol/(kg s), per concentration or partial pressure to its total order).
 SiUnit rate_constant_unit(const RateLaw& law, std::string description = "a rate constant");
+// The SI unit of an adsorption term's K: one over the driving unit to the
+// sum of the term's powers.
+SiUnit adsorption_constant_unit(Driving driving, const AdsorptionTerm& term,
+                                std::string description = "an adsorption constant");
+// The reaction of a field whose owner is a reaction, one of its rate
+// law's species or one of its adsorption terms; -1 for other owners.
+int field_reaction(const Case& c, const CaseFieldSpec& spec, int index);
 
 // The loader's words for a value outside its field's range, e.g.
 // `volume of stage R1 must be positive, got "-2 m3"`. `given` is the text
@@ -145,8 +165,8 @@ struct CaseField {
   std::string name;   // its path: "train.R1.volume"
   std::string label;  // in messages: "volume of stage R1"
   const CaseFieldSpec* spec = nullptr;
-  int index = -1;  // species, stage or reaction index; -1 for the case's own
-  SiUnit unit;     // the reaction's own for a rate constant
+  int index = -1;  // owner index (FieldOwner); -1 for the case's own
+  SiUnit unit;     // the law's own for a rate or adsorption constant
   bool chemistry_units = false;
   FieldRange range;
 
