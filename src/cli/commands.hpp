@@ -19,6 +19,7 @@ Action setup_optimize(CLI::App& app);
 Action setup_sweep(CLI::App& app);
 Action setup_merge(CLI::App& app);
 Action setup_stability(CLI::App& app);
+Action setup_fit(CLI::App& app);
 
 // Exit codes (also in --help): 0 success, 2 input error, 3 solver failure,
 // 4 output could not be written.

@@ -54,6 +54,10 @@ constexpr CommandEntry kCommands[] = {
      "varies (continuation), the ignition and extinction points and the hysteresis window; for "
      "screening and study, designs to be confirmed by licensed engineers",
      rxtrain::cli::setup_stability},
+    {"fit",
+     "Fit the case's rate law to lab runs (CSV): estimates, standard errors, 95 % intervals, "
+     "correlations and residuals; writes the fitted case",
+     rxtrain::cli::setup_fit},
 };
 
 // Options shown with a word of their own in --help instead of the library's

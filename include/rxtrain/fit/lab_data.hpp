@@ -24,8 +24,8 @@ struct LabData {
   std::string file;
   std::vector<std::size_t> input_paths;  // CasePathTable indices, column order
   std::vector<std::string> input_names;
-  sweep::OutputSpec outputs;                 // the measured outputs, column order
-  std::vector<std::vector<double>> inputs;   // per run, input_paths order (SI)
+  sweep::OutputSpec outputs;                  // the measured outputs, column order
+  std::vector<std::vector<double>> inputs;    // per run, input_paths order (SI)
   std::vector<std::vector<double>> measured;  // per run, outputs order (SI)
   // Per run and output: the measurement's SD (SI), from a sigma column or
   // --sigma; empty when no output has one (then one variance per output

@@ -19,7 +19,8 @@
 //   train.ID.T_out | duty                exchangers, as given
 //   train.ID.heat.UA | heat.coolant.T | heat_capacity
 //                                        stirred tanks, as given
-//   reactions.ID.rate.A | rate.Ea | rate.T_ref
+//   reactions.ID.rate.A | rate.Ea | rate.T_ref | rate.orders.SP
+//   reactions.ID.rate.adsorption.exponent | rate.adsorption.terms.N.K | .dH | .T_ref
 //   reactions.ID.equilibrium.K | equilibrium.dH   (van 't Hoff form)
 //   species.ID.density                   liquid phase
 // Species thermo data and molar masses are not offered: the loader derives
