@@ -10,6 +10,7 @@
 #include <fstream>
 #include <iterator>
 #include <memory>
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -41,6 +42,7 @@ struct SweepCommandOptions {
   std::string case_file;
   std::vector<std::string> vary;
   std::vector<std::string> sample;
+  std::string sample_fit;
   std::size_t runs = 0;
   std::uint64_t seed = 1;
   bool seed_given = false;
@@ -106,7 +108,9 @@ std::vector<std::string> as_given(const SweepCommandOptions& o) {
   std::vector<std::string> out;
   for (const auto& v : o.vary) out.push_back("--vary " + v);
   for (const auto& v : o.sample) out.push_back("--sample " + v);
-  if (!o.sample.empty()) out.push_back(fmt::format("--runs {} --seed {}", o.runs, o.seed));
+  if (!o.sample_fit.empty()) out.push_back("--sample-fit " + o.sample_fit);
+  if (!o.sample.empty() || !o.sample_fit.empty())
+    out.push_back(fmt::format("--runs {} --seed {}", o.runs, o.seed));
   return out;
 }
 
@@ -115,7 +119,15 @@ int run_sweep_command(const SweepCommandOptions& o) {
   const Case c = load_case(o.case_file, units);
   const Shard shard = Shard::parse(o.shard);
   const CasePathTable table(c);
-  Study study = parse_study(o.vary, o.sample, o.runs, o.seed, table, units);
+  std::optional<FittedDraws> fitted;
+  if (!o.sample_fit.empty()) {
+    std::ifstream in(o.sample_fit, std::ios::binary);
+    if (!in)
+      throw InputError({o.sample_fit, 0, 0}, fmt::format("cannot read \"{}\"", o.sample_fit));
+    const std::string text((std::istreambuf_iterator<char>(in)), std::istreambuf_iterator<char>());
+    fitted = read_fitted_draws(text, o.sample_fit, table, c);
+  }
+  Study study = parse_study(o.vary, o.sample, o.runs, o.seed, table, units, std::move(fitted));
   if (o.seed_given && !study.monte_carlo())
     throw InputError({"--seed", 0, 0}, "--seed applies to --sample (Monte Carlo) only");
   const OutputSpec outputs =
@@ -188,6 +200,10 @@ Action setup_sweep(CLI::App& app) {
                  "PATH=normal(MEAN,SD) | uniform(LO,HI) | lognormal(MEDIAN,SIGMA): Monte Carlo "
                  "over uncertain inputs (with --runs); SIGMA is the SD of ln X; repeatable")
       ->take_all();
+  app.add_option("--sample-fit", o->sample_fit,
+                 "Monte Carlo over a fit's parameters: draw them from the multivariate normal "
+                 "of the estimate and covariance in FIT.json (`rxtrain fit --json`; log-scale "
+                 "ones lognormal), with --runs; may join --sample");
   app.add_option("--runs", o->runs, "Monte Carlo: number of runs");
   CLI::Option* seed = app.add_option("--seed", o->seed, "Monte Carlo: seed of the generator")
                           ->capture_default_str();

@@ -81,6 +81,10 @@ struct Setup {
   sweep::CaseEditor editor;
   std::size_t jobs;
   std::size_t n_out;
+  // Each worker's working case and solver state, kept from evaluation to
+  // evaluation (CVODE re-initialized, not re-created).
+  mutable std::vector<Case> work;
+  mutable std::vector<sweep::PointWorkspace> ws;
 
   // The SI value of each parameter from the internal vector.
   std::vector<double> values(std::span<const double> u) const {
@@ -97,15 +101,9 @@ std::vector<std::vector<sweep::PointResult>> run_points(const Setup& s,
   std::vector<std::vector<sweep::PointResult>> out(u.size(), std::vector<sweep::PointResult>(runs));
   std::vector<std::vector<double>> values(u.size());
   for (std::size_t p = 0; p < u.size(); ++p) values[p] = s.values(u[p]);
-  const std::size_t jobs = std::min(sweep::resolve_jobs(s.jobs), u.size() * runs);
-  std::vector<Case> work(jobs, s.base);
-  std::vector<sweep::PointWorkspace> ws(jobs);
-  for (auto& w : ws) {
-    w.train.equilibrium_views = false;
-    // The differences of the Jacobian need runs far tighter than their
-    // step (docs/fit.md).
-    w.train.solvers.tube.cvode.rtol = 1e-10;
-  }
+  const std::size_t jobs = std::min(s.ws.size(), u.size() * runs);
+  auto& work = s.work;
+  auto& ws = s.ws;
   sweep::parallel_for(u.size() * runs, jobs, [&](std::size_t task, std::size_t worker) {
     const std::size_t p = task / runs, r = task % runs;
     std::vector<double> all = s.data.inputs[r];
@@ -188,7 +186,15 @@ FitResult run_fit(const Case& lab, const sweep::CasePathTable& table, const LabD
 
   std::vector<std::size_t> which = data.input_paths;
   for (const auto& p : o.free) which.push_back(p.path);
-  Setup s{base, data, {}, {}, {}, sweep::CaseEditor(table, which), o.jobs, K};
+  Setup s{base, data, {}, {}, {}, sweep::CaseEditor(table, which), o.jobs, K, {}, {}};
+  s.work.assign(sweep::resolve_jobs(o.jobs), base);
+  s.ws.resize(s.work.size());
+  for (auto& w : s.ws) {
+    w.train.equilibrium_views = false;
+    // The differences of the Jacobian need runs far tighter than their
+    // step (docs/fit.md).
+    w.train.solvers.tube.cvode.rtol = 1e-10;
+  }
   std::vector<double> typical(n), lower(n, -kInf), upper(n, kInf);
   for (int i = 0; i < n; ++i) {
     const CaseField& f = table.at(o.free[i].path);

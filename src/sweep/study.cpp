@@ -4,9 +4,12 @@
 
 #include <charconv>
 #include <cmath>
+#include <nlohmann/json.hpp>
 #include <set>
 
 #include "rxtrain/base/error.hpp"
+#include "rxtrain/base/suggest.hpp"
+#include "rxtrain/chem/thermo.hpp"
 
 namespace rxtrain::sweep {
 
@@ -210,6 +213,8 @@ std::vector<std::size_t> Study::paths() const {
   std::vector<std::size_t> out;
   for (const auto& a : axes) out.push_back(a.path);
   for (const auto& s : samples) out.push_back(s.path);
+  if (fitted)
+    for (const auto& p : fitted->params) out.push_back(p.path);
   return out;
 }
 
@@ -217,6 +222,8 @@ std::vector<std::string> Study::input_names() const {
   std::vector<std::string> out;
   for (const auto& a : axes) out.push_back(a.name);
   for (const auto& s : samples) out.push_back(s.name);
+  if (fitted)
+    for (const auto& p : fitted->params) out.push_back(p.name);
   return out;
 }
 
@@ -224,6 +231,9 @@ void Study::inputs(std::size_t run, std::span<double> out) const {
   if (monte_carlo()) {
     for (std::size_t j = 0; j < samples.size(); ++j)
       out[j] = samples[j].dist.sample(seed, run, static_cast<std::uint32_t>(j));
+    if (fitted)
+      fitted->draw(seed, run, static_cast<std::uint32_t>(samples.size()),
+                   out.subspan(samples.size()));
     return;
   }
   std::size_t rest = run;
@@ -239,6 +249,24 @@ std::vector<std::string> Study::definition() const {
     out.push_back("mode: monte-carlo");
     for (const auto& s : samples)
       out.push_back(fmt::format("sample: {}={}", s.name, s.dist.to_string()));
+    if (fitted) {
+      // Everything the draws depend on, in full precision.
+      for (const auto& p : fitted->params)
+        out.push_back(
+            p.T_ref_fit > 0
+                ? fmt::format("sample-fit: {}={}({}) at T_ref {} K, rewritten for T_ref {} K with "
+                              "Ea {}",
+                              p.name, p.log ? "log" : "linear", p.estimate, p.T_ref_fit,
+                              p.T_ref_case,
+                              p.ea_param >= 0 ? "drawn" : fmt::format("{} J/mol", p.Ea))
+                : fmt::format("sample-fit: {}={}({})", p.name, p.log ? "log" : "linear",
+                              p.estimate));
+      std::string l;
+      for (Eigen::Index i = 0; i < fitted->L.rows(); ++i)
+        for (Eigen::Index j = 0; j <= i; ++j)
+          l += fmt::format("{}{}", l.empty() ? "" : " ", fitted->L(i, j));
+      out.push_back("sample-fit-cholesky: " + l);
+    }
     out.push_back(fmt::format("runs: {}", runs));
     out.push_back(fmt::format("seed: {}", seed));
   } else {
@@ -253,12 +281,109 @@ std::vector<std::string> Study::definition() const {
   return out;
 }
 
+void FittedDraws::draw(std::uint64_t seed, std::uint64_t run, std::uint32_t first_input,
+                       std::span<double> values) const {
+  const auto n = static_cast<Eigen::Index>(params.size());
+  Eigen::VectorXd z(n);
+  for (Eigen::Index i = 0; i < n; ++i)
+    z(i) = standard_normal(seed, run, first_input + static_cast<std::uint32_t>(i));
+  const Eigen::VectorXd y = L.triangularView<Eigen::Lower>() * z;
+  for (Eigen::Index i = 0; i < n; ++i) {
+    const Param& p = params[static_cast<std::size_t>(i)];
+    values[i] = p.log ? p.estimate * std::exp(y(i)) : p.estimate + y(i);
+  }
+  for (Eigen::Index i = 0; i < n; ++i) {
+    const Param& p = params[static_cast<std::size_t>(i)];
+    if (!(p.T_ref_fit > 0)) continue;
+    const double Ea = p.ea_param >= 0 ? values[p.ea_param] : p.Ea;
+    values[i] *= p.T_ref_case > 0
+                     ? std::exp(-Ea / kGasConstant * (1 / p.T_ref_case - 1 / p.T_ref_fit))
+                     : std::exp(Ea / (kGasConstant * p.T_ref_fit));
+  }
+}
+
+FittedDraws read_fitted_draws(const std::string& text, const std::string& file,
+                              const CasePathTable& table, const Case& c) {
+  const auto bad = [&](const std::string& what) -> void {
+    throw InputError({file, 0, 0},
+                     fmt::format("{} is not the JSON of `rxtrain fit --json`: {}", file, what));
+  };
+  nlohmann::json j;
+  try {
+    j = nlohmann::json::parse(text);
+  } catch (const nlohmann::json::exception& e) {
+    bad(e.what());
+  }
+  if (!j.is_object() || !j.contains("parameters") || !j["parameters"].is_array() ||
+      !j.contains("covariance") || !j["covariance"].is_array())
+    bad("it has no \"parameters\" and \"covariance\"");
+  FittedDraws d;
+  d.source = file;
+  const auto& ps = j["parameters"];
+  const auto n = static_cast<Eigen::Index>(ps.size());
+  if (n == 0) bad("it has no parameters");
+  Eigen::MatrixXd cov(n, n);
+  const auto& jc = j["covariance"];
+  if (static_cast<Eigen::Index>(jc.size()) != n)
+    bad("the covariance is not square in the parameters");
+  for (Eigen::Index i = 0; i < n; ++i) {
+    const auto& row = jc[static_cast<std::size_t>(i)];
+    if (!row.is_array() || static_cast<Eigen::Index>(row.size()) != n)
+      bad("the covariance is not square in the parameters");
+    for (Eigen::Index k = 0; k < n; ++k) {
+      const auto& v = row[static_cast<std::size_t>(k)];
+      if (!v.is_number())
+        throw InputError({file, 0, 0},
+                         fmt::format("the covariance in {} has an infinite or missing entry: "
+                                     "the fit could not identify every parameter; fix some and "
+                                     "fit again",
+                                     file));
+      cov(i, k) = v.get<double>();
+    }
+  }
+  for (Eigen::Index i = 0; i < n; ++i) {
+    const auto& p = ps[static_cast<std::size_t>(i)];
+    if (!p.is_object() || !p.contains("path") || !p["path"].is_string() ||
+        !p.contains("estimate") || !p["estimate"].is_number() || !p.contains("scale"))
+      bad("a parameter lacks its path, scale or estimate");
+    FittedDraws::Param q;
+    q.name = p["path"].get<std::string>();
+    q.path = table.find(q.name, "--sample-fit");
+    q.log = p["scale"] == "log";
+    q.estimate = p["estimate"].get<double>();
+    if (q.log && !(q.estimate > 0)) bad(q.name + " is on a log scale but not above 0");
+    const CaseField& f = table.at(q.path);
+    if (f.spec->kind == CaseFieldKind::RateA && p.contains("T_ref") && p["T_ref"].is_number()) {
+      const Reaction& rx = c.mechanism.reactions()[static_cast<std::size_t>(f.index)];
+      const double t_fit = p["T_ref"].get<double>();
+      const double t_case = rx.rate.T_ref.value_or(0);
+      if (std::abs(t_case - t_fit) > 1e-9 * t_fit) {
+        q.T_ref_fit = t_fit;
+        q.T_ref_case = t_case;
+        q.Ea = rx.rate.Ea;
+        const std::string ea = "reactions." + rx.id + ".rate.Ea";
+        for (std::size_t k = 0; k < ps.size(); ++k)
+          if (ps[k].contains("path") && ps[k]["path"] == ea) q.ea_param = static_cast<int>(k);
+      }
+    }
+    d.params.push_back(std::move(q));
+  }
+  const Eigen::LLT<Eigen::MatrixXd> llt(cov);
+  if (llt.info() != Eigen::Success)
+    throw InputError({file, 0, 0},
+                     fmt::format("the covariance in {} is not positive definite: the fit could "
+                                 "not tell every parameter apart; fix some and fit again",
+                                 file));
+  d.L = llt.matrixL();
+  return d;
+}
+
 Study parse_study(const std::vector<std::string>& vary, const std::vector<std::string>& sample,
                   std::size_t runs, std::uint64_t seed, const CasePathTable& table,
-                  const UnitParser& units) {
-  if (vary.empty() && sample.empty())
+                  const UnitParser& units, std::optional<FittedDraws> fitted) {
+  if (vary.empty() && sample.empty() && !fitted)
     fail("--vary", "give --vary PATH=START:STOP:N (a grid) or --sample PATH=DIST (Monte Carlo)");
-  if (!vary.empty() && !sample.empty())
+  if (!vary.empty() && (!sample.empty() || fitted))
     fail("--sample", "--vary and --sample cannot be combined; run a grid or a Monte Carlo study");
   Study s;
   std::set<std::size_t> seen;
@@ -287,6 +412,10 @@ Study parse_study(const std::vector<std::string>& vary, const std::vector<std::s
   for (const auto& v : sample) {
     s.samples.push_back(parse_sample(v, table, units));
     once(s.samples.back().path, "--sample");
+  }
+  if (fitted) {
+    for (const auto& p : fitted->params) once(p.path, "--sample-fit");
+    s.fitted = std::move(fitted);
   }
   s.runs = runs;
   s.seed = seed;

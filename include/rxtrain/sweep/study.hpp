@@ -21,9 +21,11 @@
 // however the study is split, and its row is the same.
 #pragma once
 
+#include <Eigen/Dense>
 #include <algorithm>
 #include <cstddef>
 #include <cstdint>
+#include <optional>
 #include <span>
 #include <string>
 #include <utility>
@@ -61,9 +63,47 @@ struct SampledInput {
   Distribution dist;
 };
 
+// Parameters drawn together from the multivariate normal of a fit's
+// estimate and covariance (`--sample-fit FIT.json`, written by `rxtrain
+// fit --json`): y = L z, z standard normal (draws `first_input + i` of the
+// run), L the lower Cholesky factor of the covariance in each parameter's
+// own scale; a log-scale parameter is exp(ln estimate + y_i), lognormal.
+// A rate constant the fit estimated at its T_ref is rewritten for the
+// case's own law at each draw: A_case = A_fit exp(-Ea/R (1/T_ref,case -
+// 1/T_ref,fit)), or A_fit exp(Ea/(R T_ref,fit)) for a case without T_ref,
+// with the drawn Ea of the same reaction where the fit estimated it, else
+// the case's.
+struct FittedDraws {
+  struct Param {
+    std::size_t path = 0;  // index in the CasePathTable
+    std::string name;
+    bool log = false;
+    double estimate = 0;    // SI
+    double T_ref_fit = 0;   // > 0: a rate constant to rewrite as above
+    double T_ref_case = 0;  // 0: the case's law has no T_ref
+    int ea_param = -1;      // the drawn Ea of the same reaction, or -1
+    double Ea = 0;          // the case's Ea, where none is drawn
+  };
+  std::vector<Param> params;
+  Eigen::MatrixXd L;
+  std::string source;  // the FIT.json as named on the command line
+
+  // values (SI, params order) of run `run`.
+  void draw(std::uint64_t seed, std::uint64_t run, std::uint32_t first_input,
+            std::span<double> values) const;
+};
+
+// Reads `rxtrain fit --json` output (`text`, named `file` in messages) for
+// the case `c`. Throws InputError at `file` for JSON that is not a fit's,
+// a parameter path the case lacks (with the nearest one), a covariance
+// that is not positive definite (unidentified parameters).
+FittedDraws read_fitted_draws(const std::string& text, const std::string& file,
+                              const CasePathTable& table, const Case& c);
+
 struct Study {
   std::vector<Axis> axes;             // a grid study
   std::vector<SampledInput> samples;  // or a Monte Carlo study
+  std::optional<FittedDraws> fitted;  // with or without samples: Monte Carlo
   std::size_t runs = 0;               // Monte Carlo: number of runs
   std::uint64_t seed = 0;             // Monte Carlo: the generator's seed
   // Runs per chain: kGridChainLength for a grid over a case with a
@@ -74,7 +114,7 @@ struct Study {
   // kBatchRuns where the runs can be batched (batched_study, sweep.hpp).
   std::size_t chain = 1;
 
-  bool monte_carlo() const { return !samples.empty(); }
+  bool monte_carlo() const { return !samples.empty() || fitted.has_value(); }
   std::size_t run_count() const;
   std::size_t chain_length() const { return std::max<std::size_t>(chain, 1); }
   std::vector<std::size_t> paths() const;        // table indices, input order
@@ -98,9 +138,11 @@ inline constexpr std::size_t kMaxRuns = 100'000'000;
 // Throws InputError located at the option for an unknown path, a unit of
 // the wrong dimension, a value outside the field's range, a malformed
 // spec, a path given twice, --vary with --sample, or neither.
+// With `fitted`, the fit's parameters are drawn after the --sample inputs
+// (a path in both is refused).
 Study parse_study(const std::vector<std::string>& vary, const std::vector<std::string>& sample,
                   std::size_t runs, std::uint64_t seed, const CasePathTable& table,
-                  const UnitParser& units);
+                  const UnitParser& units, std::optional<FittedDraws> fitted = std::nullopt);
 
 // A value for path p given as text ("420 degC", a bare number is SI), in
 // SI. Throws InputError located at `option` for a unit of the wrong
