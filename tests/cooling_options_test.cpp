@@ -296,3 +296,43 @@ TEST_CASE("options skipped for want of their inputs say why", "[cooling-options]
   CHECK(option(run_cooling_options(s.load(0.6), o), CoolingKind::Quench).why ==
         CoolingShortfall::QuenchNotColder);
 }
+
+TEST_CASE("the intercooled option's coolers are sized with the U and utility the case gives",
+          "[cooling-options]") {
+  // Counter-flow LMTD (Incropera et al., Fundamentals of Heat and Mass
+  // Transfer, ch. 11, eq. 11.15): dT_a = T_in - T_u,out, dT_b = T_out -
+  // T_u,in, LMTD = (dT_a - dT_b) / ln(dT_a / dT_b); area = |duty| / (U LMTD).
+  const AbSystem s;
+  Case c = s.load(0.6);
+  ExchangerSpec x;
+  x.id = "E9";
+  x.T_out = 590;
+  x.U = 80;
+  x.utility = UtilitySpec{500, 560, 4180.0};
+  x.where = std::get<ReactorSpec>(c.train[0]).where;
+  c.train.push_back(x);
+  const CoolingOptionsResult r = run_cooling_options(c, ab_options());
+  const CoolingOption& o = option(r, CoolingKind::Intercooled);
+  CHECK(o.sized_like == "E9");
+  REQUIRE(o.area);
+  double area = 0;
+  int coolers = 0;
+  for (const auto& st : o.train.stages) {
+    if (st.kind != StageKind::Exchanger) continue;
+    const double a = st.inlet.T - 560, b = st.outlet.T - 500;
+    area += std::abs(st.duty) / (80 * (a - b) / std::log(a / b));
+    ++coolers;
+  }
+  CHECK(coolers >= 2);
+  CHECK(*o.area == Approx(area).epsilon(1e-12));
+  // A utility leaving hotter than the coolers' inlet (T_max at most)
+  // crosses them, though not E9 (725 K to 560 K): no area, and why.
+  auto& e9 = std::get<ExchangerSpec>(c.train.back());
+  e9.T_out = 560;
+  e9.utility = UtilitySpec{550, 650, 4180.0};
+  const CoolingOptionsResult crossed = run_cooling_options(c, ab_options());
+  const CoolingOption& oc = option(crossed, CoolingKind::Intercooled);
+  CHECK(oc.utility_cross);
+  CHECK_FALSE(oc.area);
+  CHECK_THAT(format_cooling_options(crossed), Catch::Contains("crosses a cooler's temperatures"));
+}

@@ -46,8 +46,16 @@ std::string how_text(const CoolingOptionsResult& r, const CoolingOption& o) {
     case CoolingKind::Intercooled:
       return fmt::format(
           "staging's answer: each bed runs {:.0f} % of the way to its adiabatic equilibrium, or "
-          "to T_max, or to the target; coolers return the stream to bed 1's inlet ({} °C)",
-          100 * r.approach, celsius_text(r.feed_T));
+          "to T_max, or to the target; coolers return the stream to bed 1's inlet ({} °C){}",
+          100 * r.approach, celsius_text(r.feed_T),
+          o.sized_like.empty() ? std::string("; coolers not sized (no exchanger of the case "
+                                             "gives U and a utility)")
+          : o.utility_cross
+              ? fmt::format("; coolers not sized: the utility of exchanger {} crosses a "
+                            "cooler's temperatures",
+                            o.sized_like)
+              : fmt::format("; area: the coolers' with exchanger {}'s U and utility",
+                            o.sized_like));
     case CoolingKind::Quench:
       if (o.skipped) return {};
       return fmt::format(

@@ -9,6 +9,7 @@
 
 #include "rxtrain/base/error.hpp"
 #include "rxtrain/models/energy_balance.hpp"
+#include "rxtrain/models/heat_exchange.hpp"
 #include "rxtrain/solvers/scalar_root.hpp"
 #include "rxtrain/stages/pfr.hpp"
 #include "rxtrain/stages/quench.hpp"
@@ -79,6 +80,24 @@ CoolingOption intercooled_option(const Case& c, const StagingResult& s) {
   for (const auto& x : s.coolers) removed -= x.duty;
   o.heat_removed = removed;
   o.conversion = s.staged_conversion;
+  // The coolers' areas, with the U and utility the case gives an exchanger.
+  for (const auto& sp : c.train) {
+    const auto* x = std::get_if<ExchangerSpec>(&sp);
+    if (!x || !x->U || !x->utility) continue;
+    o.sized_like = x->id;
+    double area = 0;
+    for (const auto& k : s.coolers) {
+      const auto size = size_exchanger(k.duty, *x->U, k.T_in, k.T_out, x->utility->T_in,
+                                       x->utility->T_out, x->utility->cp);
+      if (!size) {
+        o.utility_cross = true;
+        break;
+      }
+      area += size->area;
+    }
+    if (!o.utility_cross) o.area = area;
+    break;
+  }
   set_margin(c, o);
   return o;
 }

@@ -5,7 +5,8 @@
 //
 //  1. Intercooled: adiabatic beds with exchangers returning the stream to
 //     bed 1's inlet temperature: run_staging's staged answer (staging.hpp),
-//     as it is.
+//     as it is; its coolers sized (models/heat_exchange.hpp) with the U and
+//     utility of the case's first exchanger that gives them.
 //  2. Quench: adiabatic beds with cold shots of fresh feed available at
 //     quench_T. Each bed runs as staging's beds do (to `approach` of the way
 //     to its X_ad_eq, or to T_max, or to the target); each shot is the share
@@ -101,13 +102,20 @@ struct CoolingOption {
   // coolant's duty, or what the cold shots take up as they warm to the
   // mixed temperature.
   std::optional<double> heat_removed;
-  std::optional<double> area;             // m2: the tubes' inner surface (cooled)
+  // m2: the tubes' inner surface (cooled); the coolers' areas together
+  // (intercooled) when an exchanger of the case gives U and a utility.
+  std::optional<double> area;
   std::optional<double> T_peak;           // K, the hottest point of any bed
   std::optional<double> margin_to_T_max;  // K, T_max - T_peak
   std::optional<double> coolant_T;        // K, cooled
   std::optional<double> conversion;       // overall key conversion at the outlet
   // Quench: each shot's share of the feed (Q1, ...); bed 1 gets 1 - sum.
   std::vector<double> shares;
+  // Intercooled: the exchanger of the case whose U and utility sized the
+  // coolers (the first that gives both; empty when none does), and whether
+  // its utility crosses a cooler's temperatures (no area then).
+  std::string sized_like;
+  bool utility_cross = false;
   // Cooled: the coolant range scanned and the trials run.
   double coolant_T_lo = 0, coolant_T_hi = 0;
   int trials = 0;
