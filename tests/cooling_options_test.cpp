@@ -29,6 +29,7 @@
 #include <vector>
 
 #include "gsl_reference.hpp"
+#include "run_command.hpp"
 #include "rxtrain/base/units.hpp"
 #include "rxtrain/report/cooling_options_report.hpp"
 #include "rxtrain/report/text_format.hpp"
@@ -335,4 +336,40 @@ TEST_CASE("the intercooled option's coolers are sized with the U and utility the
   CHECK(oc.utility_cross);
   CHECK_FALSE(oc.area);
   CHECK_THAT(format_cooling_options(crossed), Catch::Contains("crosses a cooler's temperatures"));
+}
+
+TEST_CASE("a cooled reactor whose peak passes T_max at every coolant temperature is infeasible",
+          "[cooling-options]") {
+  // U = 20 W/m2/K: the wall takes U 4/d (T - T_c) = 1.6 kW/(m3 K) while the
+  // reaction releases about 160 kW/m3 at the inlet, so the gas heats by
+  // about 100 K per m3 against a removal of 1 K per m3 and kelvin: the
+  // 40 K window to T_max is passed whatever the coolant.
+  const AbSystem s;
+  CoolingOptionsOptions o = ab_options();
+  o.tubes.U = 20;
+  const CoolingOptionsResult r = run_cooling_options(s.load(0.6), o);
+  const CoolingOption& x = option(r, CoolingKind::Cooled);
+  CHECK_FALSE(x.feasible);
+  CHECK_FALSE(x.skipped);
+  CHECK(x.why == CoolingShortfall::PeakAboveTMax);
+  CHECK(x.train.stages.empty());
+  CHECK(x.trials == o.coolant_scan_points);
+  CHECK_THAT(cooling_reason_text(r, x),
+             Catch::Contains("that reaches the target takes the tubes' peak to T_max") &&
+                 Catch::Contains("from 296.85 to 366.85 °C"));
+  const nlohmann::json j = cooling_options_json(r);
+  CHECK(j["options"].back()["kind"] == "cooled");
+  CHECK(j["options"].back()["coolant_T"].is_null());
+}
+
+TEST_CASE("staging refuses the options' flags without --options, naming the flag",
+          "[cooling-options]") {
+  const std::string so2 = std::string(RXTRAIN_SOURCE_DIR) + "/cases/so2-oxidation-staging.yaml";
+  const auto r = test::run_rxtrain("staging '" + so2 + "' --U 220W/m2/K");
+  CHECK(r.exit_code == 2);
+  CHECK_THAT(r.err, Catch::StartsWith("--U: error:") && Catch::Contains("go with --options"));
+  const auto t = test::run_rxtrain("staging '" + so2 + "' --options --tubes 38mm");
+  CHECK(t.exit_code == 2);
+  CHECK_THAT(t.err, Catch::Contains("expected COUNTxDIAMETER"));
+  CHECK(t.out.empty());
 }

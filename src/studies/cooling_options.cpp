@@ -246,17 +246,39 @@ struct TrialResult {
   double catalyst = 0;  // Ok: kg (or m3 without a bulk density)
 };
 
-CoolingOption cooled_option(const Case& c, const LayoutCase& lc, const CoolingOptionsOptions& o,
-                            const SunContext& ctx) {
-  CoolingOption x;
-  x.kind = CoolingKind::Cooled;
-  auto skip = [&](CoolingShortfall why) {
-    x.skipped = true;
-    x.why = why;
-    return x;
-  };
-  if (!lc.exothermic) return skip(CoolingShortfall::Endothermic);
-  if (!c.limits.T_max) return skip(CoolingShortfall::NoTMax);
+// The cooled reactor sized to the target, run at one coolant temperature
+// after another (each a trial, counted).
+struct CoolantTrials {
+  const Case& c;
+  const LayoutCase& lc;
+  ReactorSpec spec;
+  PfrOptions po;
+  const SunContext& ctx;
+  int count = 0;
+
+  TrialResult operator()(double Tc) {
+    ++count;
+    spec.cooling->T = Tc;
+    TrialResult t;
+    try {
+      const StageResult r = run_pfr(c.mechanism, spec, c.feed, c.conversion_basis(), ctx, po);
+      if (r.conversion < lc.target - kReachTolerance) {
+        t.kind = Trial::PeakAbove;  // stopped where T reached the limit
+      } else {
+        t.kind = Trial::Ok;
+        t.catalyst = r.catalyst_mass.value_or(r.volume.value_or(0.0));
+      }
+    } catch (const InfeasibleError&) {
+      t.kind = Trial::Unreached;  // beyond the cooled path's reach at this coolant T
+    }
+    return t;
+  }
+};
+
+// The cooled reactor: the case's first reactor's tubes and U, or the
+// options'; empty (x says why) when neither gives all three.
+std::optional<ReactorSpec> cooled_spec(const Case& c, const LayoutCase& lc,
+                                       const CoolingOptionsOptions& o, CoolingOption& x) {
   const ReactorSpec& first = first_reactor(c);
   const bool case_tubes = first.geometry && first.geometry->tubes > 0;
   const int count = o.tubes.count > 0 ? o.tubes.count : case_tubes ? first.geometry->tubes : 0;
@@ -267,9 +289,7 @@ CoolingOption cooled_option(const Case& c, const LayoutCase& lc, const CoolingOp
   x.tubes = count;
   x.tube_diameter = d;
   x.U = U;
-  if (count <= 0 || !(d > 0) || !(U > 0)) return skip(CoolingShortfall::NoTubes);
-
-  const double T_max = *c.limits.T_max;
+  if (count <= 0 || !(d > 0) || !(U > 0)) return std::nullopt;
   ReactorSpec spec = bed_stage("R1", lc.bulk_density, lc.activity, lc.bed_where);
   // The voidage matters only with pellets (the pressure drop): the case's
   // own tubes keep theirs and their pellets; tubes given here run at
@@ -287,49 +307,31 @@ CoolingOption cooled_option(const Case& c, const LayoutCase& lc, const CoolingOp
                              std::nullopt,
                              first.cooling ? first.cooling->where : lc.bed_where};
   spec.target_conversion = lc.target;
-  PfrOptions po = o.staging.solvers.tube;
-  po.full_profile = false;
-  po.stop_temperature = T_max - kPeakClearance;
+  return spec;
+}
 
-  auto trial = [&](double Tc) {
-    ++x.trials;
-    spec.cooling->T = Tc;
-    TrialResult t;
-    try {
-      const StageResult r = run_pfr(c.mechanism, spec, c.feed, c.conversion_basis(), ctx, po);
-      if (r.conversion < lc.target - kReachTolerance) {
-        t.kind = Trial::PeakAbove;  // stopped where T reached the limit
-      } else {
-        t.kind = Trial::Ok;
-        t.catalyst = r.catalyst_mass.value_or(r.volume.value_or(0.0));
-      }
-    } catch (const InfeasibleError&) {
-      t.kind = Trial::Unreached;  // beyond the cooled path's reach at this coolant T
-    }
-    return t;
-  };
-
-  x.coolant_T_lo = c.limits.T_in_min.value_or(c.feed.T - kCoolantBelowFeed);
-  x.coolant_T_hi = T_max;
-  const int n = std::max(3, o.coolant_scan_points);
+// The coolant temperature in [lo, hi] needing the least catalyst: a scan of
+// n points, then around the best one the feasible interval (a neighbour
+// that fails is bisected to the edge of what works: the peak reaching
+// T_max on the hot side, the target's reach on either) and Brent's
+// minimizer inside it. Empty when no scanned point works; `why` says what
+// stopped them.
+std::optional<double> least_catalyst_coolant(CoolantTrials& trial, double lo, double hi, int n,
+                                             CoolingShortfall& why) {
   std::vector<double> Ts(n);
   std::vector<TrialResult> scan(n);
   int best = -1;
   bool any_peak_above = false;
   for (int k = 0; k < n; ++k) {
-    Ts[k] = x.coolant_T_lo + (x.coolant_T_hi - x.coolant_T_lo) * k / (n - 1);
+    Ts[k] = lo + (hi - lo) * k / (n - 1);
     scan[k] = trial(Ts[k]);
     any_peak_above = any_peak_above || scan[k].kind == Trial::PeakAbove;
     if (scan[k].kind == Trial::Ok && (best < 0 || scan[k].catalyst < scan[best].catalyst)) best = k;
   }
-  if (best < 0) {  // computed, none works: infeasible, with why
-    x.why = any_peak_above ? CoolingShortfall::PeakAboveTMax : CoolingShortfall::TargetOutOfReach;
-    return x;
+  if (best < 0) {
+    why = any_peak_above ? CoolingShortfall::PeakAboveTMax : CoolingShortfall::TargetOutOfReach;
+    return std::nullopt;
   }
-
-  // The feasible interval around the best scanned point: a neighbour that
-  // fails is bisected to the edge of what works (the peak reaching T_max
-  // on the hot side, the target's reach on either).
   auto edge = [&](double ok, double bad) {
     for (int it = 0; it < 60 && std::abs(bad - ok) > kCoolantTol; ++it) {
       const double m = 0.5 * (ok + bad);
@@ -355,17 +357,44 @@ CoolingOption cooled_option(const Case& c, const LayoutCase& lc, const CoolingOp
     const double W = catalyst(T);
     if (W < W_best) T_best = T, W_best = W;
   }
+  return T_best;
+}
+
+CoolingOption cooled_option(const Case& c, const LayoutCase& lc, const CoolingOptionsOptions& o,
+                            const SunContext& ctx) {
+  CoolingOption x;
+  x.kind = CoolingKind::Cooled;
+  auto skip = [&](CoolingShortfall why) {
+    x.skipped = true;
+    x.why = why;
+    return x;
+  };
+  if (!lc.exothermic) return skip(CoolingShortfall::Endothermic);
+  if (!c.limits.T_max) return skip(CoolingShortfall::NoTMax);
+  std::optional<ReactorSpec> spec = cooled_spec(c, lc, o, x);
+  if (!spec) return skip(CoolingShortfall::NoTubes);
+  const double T_max = *c.limits.T_max;
+  PfrOptions po = o.staging.solvers.tube;
+  po.full_profile = false;
+  po.stop_temperature = T_max - kPeakClearance;
+  CoolantTrials trial{c, lc, *spec, po, ctx};
+  x.coolant_T_lo = c.limits.T_in_min.value_or(c.feed.T - kCoolantBelowFeed);
+  x.coolant_T_hi = T_max;
+  const auto T_best = least_catalyst_coolant(trial, x.coolant_T_lo, x.coolant_T_hi,
+                                             std::max(3, o.coolant_scan_points), x.why);
+  x.trials = trial.count;
+  if (!T_best) return x;  // computed, none works: infeasible, with why
 
   // The design at the best coolant temperature, with its full profile.
-  spec.cooling->T = T_best;
-  PfrOptions full = o.staging.solvers.tube;
-  StageResult r = run_pfr(c.mechanism, spec, c.feed, c.conversion_basis(), ctx, full);
+  spec->cooling->T = *T_best;
+  StageResult r =
+      run_pfr(c.mechanism, *spec, c.feed, c.conversion_basis(), ctx, o.staging.solvers.tube);
   r.F_key_fed = c.feed.F[c.key];
   x.train = TrainResult::for_case(c);
   x.train.warnings.clear();
   x.train.outlet = r.outlet;
   x.train.conversion = r.conversion;
-  x.coolant_T = T_best;
+  x.coolant_T = *T_best;
   x.heat_removed = -r.duty;
   if (r.coolant) x.area = r.coolant->area;
   x.train.stages.push_back(std::move(r));
