@@ -19,9 +19,6 @@ namespace rxtrain {
 
 namespace {
 
-// A bed whose X_ad_eq lies no further than this above its inlet conversion
-// cannot progress (as staging's).
-constexpr double kNoProgress = 1e-9;
 // Without T_in_min, the coolant scan starts this far below the feed
 // (common practice, no source: a coolant much colder quenches the bed).
 constexpr double kCoolantBelowFeed = 100;
@@ -150,8 +147,8 @@ QuenchWalk walk_quench(const Case& c, const LayoutCase& lc, const CoolingOptions
     if (c.limits.T_max && stream.T >= *c.limits.T_max) break;
     const auto eq =
         adiabatic_equilibrium(mech, stream, HeatMode::Adiabatic, basis, {}, so.solvers.equilibrium);
-    if (!eq || eq->X - X <= kNoProgress) break;
-    bed.target_conversion = std::min(X + so.approach * (eq->X - X), lc.target);
+    if (!eq || eq->X - X <= kBedNoProgress) break;
+    bed.target_conversion = std::min(approach_end(X, eq->X, so.approach), lc.target);
     const StageResult r = run_pfr(mech, bed, stream, basis, ctx, po);
     w.X_end.push_back(r.conversion);
     if (r.conversion >= lc.target - kReachTolerance) {
