@@ -372,4 +372,7 @@ TEST_CASE("staging refuses the options' flags without --options, naming the flag
   CHECK(t.exit_code == 2);
   CHECK_THAT(t.err, Catch::Contains("expected COUNTxDIAMETER"));
   CHECK(t.out.empty());
+  const auto m = test::run_rxtrain("staging '" + so2 + "' --options --return-to max-rate");
+  CHECK(m.exit_code == 2);
+  CHECK_THAT(m.err, Catch::StartsWith("--return-to: error:"));
 }

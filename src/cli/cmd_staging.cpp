@@ -76,6 +76,14 @@ TubeBundleSpec parse_tubes(const UnitParser& units, const std::string& text) {
 }
 
 int run_options_command(const StagingCommandOptions& o, const Case& c, const UnitParser& units) {
+  // The options compare at bed 1's inlet temperature (the quench shots
+  // return the stream there too); another return would be ignored, so it
+  // is refused.
+  if (o.staging.return_to != ReturnTo::Inlet)
+    throw InputError({"--return-to", 0, 0},
+                     "--options compares the layouts with every exchanger and cold shot "
+                     "returning the stream to bed 1's inlet temperature: drop --return-to "
+                     "max-rate (or run staging without --options)");
   CoolingOptionsOptions co;
   co.staging = o.staging;
   co.staging.limit_check.margin = parse_limit_margin(o.limit_margin, units);
