@@ -394,6 +394,7 @@ CoolingOption cooled_option(const Case& c, const LayoutCase& lc, const CoolingOp
   x.coolant_T = *T_best;
   x.heat_removed = -r.duty;
   if (r.coolant) x.area = r.coolant->area;
+  x.train.warnings = r.warnings;
   x.train.stages.push_back(std::move(r));
   add_reactor_totals(x.train, x);
   if (x.train.stages.back().hot_spot) x.T_peak = x.train.stages.back().hot_spot->T;
@@ -452,6 +453,12 @@ CoolingOptionsResult run_cooling_options(const Case& c, const CoolingOptionsOpti
   res.options.push_back(intercooled_option(c, run_staging(c, so)));
   res.options.push_back(quench_option(c, lc, options, ctx));
   res.options.push_back(cooled_option(c, lc, options, ctx));
+  // Each option's stage warnings, named by the option (stage ids repeat
+  // between options).
+  for (const auto& opt : res.options)
+    for (const auto& w : opt.train.warnings)
+      if (std::find(c.warnings.begin(), c.warnings.end(), w) == c.warnings.end())
+        res.warnings.push_back(fmt::format("{}: {}", cooling_kind_name(opt.kind), w));
   // Stable: equal ranks keep the order intercooled, quench, cooled.
   std::stable_sort(res.options.begin(), res.options.end(),
                    [](const CoolingOption& a, const CoolingOption& b) {

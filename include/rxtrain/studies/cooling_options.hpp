@@ -135,7 +135,9 @@ struct CoolingOptionsResult {
   // Feasible options first, by catalyst mass; then the infeasible ones,
   // then the skipped, each in the order intercooled, quench, cooled.
   std::vector<CoolingOption> options;
-  std::vector<std::string> warnings;  // the case's (loader) warnings
+  // The case's (loader) warnings, then each option's stage warnings,
+  // "KIND: ..." (the trains' own, as run_train and staging give them).
+  std::vector<std::string> warnings;
 };
 
 // Throws what run_staging throws for a case it cannot study (no target, no
