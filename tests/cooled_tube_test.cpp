@@ -410,3 +410,50 @@ TEST_CASE("a cooled stage sized past what it can reach names the cooled path's l
     CHECK_THAT(e.what(), !Catch::Contains("adiabatic"));
   }
 }
+
+TEST_CASE(
+    "a countercurrent stage whose coolant outlet lies outside the scan is refused as unsolved",
+    "[cooled]") {
+  // A fast, strongly endothermic reaction with a small flow of hot heating
+  // medium against the gas: the gas falls far below both inlets within the
+  // first millimetres of the tubes (adiabatic fall of the feed at full
+  // conversion: 10 mol/s * 100 kJ/mol / 2100 W/K = 476 K), and the medium,
+  // whose heat capacity flow (50 W/K) is a fortieth of the gas's, leaves
+  // at the gas's cold temperature. Its outlet lies far below the scan's
+  // lower end (10 K below the lower inlet, 790 K), so no guess of the scan
+  // brackets a solution and the stage is refused, naming the scan (invented
+  // data).
+  const std::string text = R"(title: no bracket (invented)
+phase: gas
+species:
+  - {id: A, formula: C4H10, thermo: {cp: 90 J/mol/K, h_f: 0 J/mol}}
+  - {id: B, formula: C2H5, thermo: {cp: 45 J/mol/K, h_f: 0 J/mol}}
+  - {id: I, formula: N2, thermo: {cp: 30 J/mol/K, h_f: 0 J/mol}}
+reactions:
+  - id: R
+    equation: A => 2 B
+    rate: {per: volume, A: 1 mol/(m3*s*Pa), Ea: 100 kJ/mol, T_ref: 800 K, driving: pressure, orders: {A: 1}}
+    dH: 100 kJ/mol
+feed: {T: 800 K, P: 5 bar, flows: {A: 10 mol/s, I: 40 mol/s}}
+key: A
+train:
+  - type: pfr
+    id: R1
+    volume: 1 m3
+    tubes: {count: 500, diameter: 40 mm, void_fraction: 0.4}
+    heat: {U: 50 W/m2/K, coolant: {T_in: 900 K, flow: 0.05 kg/s, cp: 1 kJ/kg/K, direction: countercurrent}}
+)";
+  UnitParser units;
+  const Case c = load_case_from_string(text, "case.yaml", units);
+  const auto& r = std::get<ReactorSpec>(c.train[0]);
+  SunContext ctx;
+  try {
+    run_pfr(c.mechanism, r, c.feed, c.conversion_basis(), ctx, PfrOptions{});
+    FAIL("no error");
+  } catch (const InfeasibleError& e) {
+    CHECK_THAT(e.what(), Catch::Contains("no countercurrent solution found") &&
+                             Catch::Contains("from 790.00 to 1300.00 K in steps of 2 K") &&
+                             Catch::Contains("brackets no coolant inlet at 900.00 K"));
+    CHECK(e.where().line == r.cooling->where.line);
+  }
+}

@@ -1,16 +1,20 @@
-// Case.staging, Case.compare and Case.optimize: the studies/ calls the
+// Case.staging, Case.cooling_options, Case.compare and Case.optimize: the
+// studies/ calls the
 // commands make, their results with to_dict() (the command's --json, by
 // the same writer) and text() (what the command prints).
 #include <algorithm>
 #include <cctype>
+#include <cmath>
 
 #include "common.hpp"
 #include "rxtrain/base/error.hpp"
 #include "rxtrain/report/compare_report.hpp"
+#include "rxtrain/report/cooling_options_report.hpp"
 #include "rxtrain/report/json.hpp"
 #include "rxtrain/report/optimize_output.hpp"
 #include "rxtrain/report/staging_report.hpp"
 #include "rxtrain/studies/compare.hpp"
+#include "rxtrain/studies/cooling_options.hpp"
 #include "rxtrain/studies/optimize.hpp"
 #include "rxtrain/studies/staging.hpp"
 #include "rxtrain/studies/write_case.hpp"
@@ -24,6 +28,9 @@ struct PyStaging {
 };
 struct PyCompare {
   CompareResult r;
+};
+struct PyCoolingOptions {
+  CoolingOptionsResult r;
 };
 struct PyDesign {
   Case c;
@@ -54,6 +61,50 @@ PyStaging staging(const PyCase& self, double approach, const std::string& to, do
   PyStaging out;
   py::gil_scoped_release free;
   out.r = run_staging(self.c, o);
+  return out;
+}
+
+// A positive quantity in SI: a number, or text with a unit ("38 mm");
+// an InputError located at the argument `name`.
+double positive_si(const KelvinArg& v, const char* name, const SiUnit& unit) {
+  double x = 0;
+  if (const double* d = std::get_if<double>(&v)) {
+    x = *d;
+  } else {
+    try {
+      x = units().to_si(std::get<std::string>(v), unit);
+    } catch (const UnitError& e) {
+      throw InputError({name, 0, 0}, e.what());
+    }
+  }
+  if (!(x > 0) || !std::isfinite(x)) throw InputError({name, 0, 0}, "expected a positive value");
+  return x;
+}
+
+PyCoolingOptions cooling_options(const PyCase& self, const std::optional<KelvinArg>& quench_T,
+                                 std::optional<int> tube_count,
+                                 const std::optional<KelvinArg>& tube_diameter,
+                                 const std::optional<KelvinArg>& U, double approach, int max_beds,
+                                 double rtol, const KelvinArg& limit_margin) {
+  CoolingOptionsOptions o;
+  o.staging.approach = approach;
+  o.staging.max_beds = max_beds;
+  const TrainOptions t = train_options(rtol, limit_margin);
+  o.staging.solvers = t.solvers;
+  o.staging.limit_check = t.limit_check;
+  if (quench_T) o.quench_T = positive_si(*quench_T, "quench_T", SiUnit::of("K", "a temperature"));
+  if (tube_count) {
+    if (*tube_count < 1) throw InputError({"tube_count", 0, 0}, "expected a positive count");
+    o.tubes.count = *tube_count;
+  }
+  if (tube_diameter)
+    o.tubes.diameter = positive_si(*tube_diameter, "tube_diameter", SiUnit::of("m", "a length"));
+  if (U) o.tubes.U = positive_si(*U, "U", SiUnit::of("W/(m2*K)", "a heat transfer coefficient"));
+  if (const std::string err = o.validate(); !err.empty())
+    throw InputError({"cooling_options", 0, 0}, err);
+  PyCoolingOptions out;
+  py::gil_scoped_release free;
+  out.r = run_cooling_options(self.c, o);
   return out;
 }
 
@@ -121,6 +172,16 @@ void bind_studies(py::module_& m, py::class_<PyCase>& cls) {
           "staged_run", [](const PyStaging& s) { return as_result(s.r.staged_run); },
           "The staged beds and exchangers, as a Result (profiles for plotting)");
 
+  py::class_<PyCoolingOptions>(m, "CoolingOptionsResult",
+                               "The cooling options side by side, best feasible first")
+      .def(
+          "to_dict",
+          [](const PyCoolingOptions& r) { return json_to_python(cooling_options_json_text(r.r)); },
+          "As `rxtrain staging --options --json` writes it (SI units)")
+      .def(
+          "text", [](const PyCoolingOptions& r) { return text(format_cooling_options(r.r)); },
+          "What `rxtrain staging --options` prints");
+
   py::class_<PyCompare>(m, "CompareResult", "Layouts of the train compared, best first")
       .def(
           "to_dict", [](const PyCompare& c) { return json_to_python(compare_json_text(c.r)); },
@@ -157,6 +218,11 @@ void bind_studies(py::module_& m, py::class_<PyCase>& cls) {
           py::arg("min_return") = 0.2, py::arg("max_beds") = 10,
           py::arg("rtol") = CvodeOptions{}.rtol, py::arg("limit_margin") = 5.0,
           "The interstage-cooling check, as `rxtrain staging`")
+      .def("cooling_options", &cooling_options, py::arg("quench_T") = py::none(),
+           py::arg("tube_count") = py::none(), py::arg("tube_diameter") = py::none(),
+           py::arg("U") = py::none(), py::arg("approach") = 0.9, py::arg("max_beds") = 10,
+           py::arg("rtol") = CvodeOptions{}.rtol, py::arg("limit_margin") = 5.0,
+           "The cooling options side by side, as `rxtrain staging --options`")
       .def("compare", &compare, py::arg("rtol") = CvodeOptions{}.rtol,
            py::arg("limit_margin") = 5.0, "Every layout of the train, as `rxtrain compare`")
       .def("optimize", &optimize, py::arg("beds") = py::none(), py::arg("max_beds") = py::none(),

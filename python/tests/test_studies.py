@@ -224,3 +224,17 @@ def test_other_threads_run_python_while_a_sweep_solves():
         stop.set()
         t.join()
     assert len(ticks) > 20
+
+
+def test_cooling_options_equal_the_cli(tmp_path):
+    r = rxtrain.load_case(STAGING).cooling_options(
+        quench_T="200 degC", tube_count=2400, tube_diameter="38 mm", U=220.0)
+    args = ("staging", STAGING, "--options", "--quench-T", "200degC", "--tubes", "2400x38mm",
+            "--U", "220W/m2/K")
+    same(r.to_dict(), cli_json(tmp_path, *args))
+    assert r.text() == cli(*args).stdout
+    kinds = [o["kind"] for o in r.to_dict()["options"]]
+    assert sorted(kinds) == ["cooled", "intercooled", "quench"]
+    with pytest.raises(rxtrain.InputError) as e:
+        rxtrain.load_case(STAGING).cooling_options(tube_diameter="38 kg")
+    assert e.value.file == "tube_diameter"

@@ -136,9 +136,9 @@ std::string bed_table(const TrainResult& r) {
          rows + "</table>\n";
 }
 
-// The feed and every stage's outlet, one row each: conditions, totals and
-// each species' molar flow; then the mole fractions. Where the species have
-// molar masses, each stage's mass balance beside the stream it makes.
+// The feed, every quench's side stream and every stage's outlet, one row each: conditions, totals
+// and each species' molar flow; then the mole fractions. Where the species have molar masses, each
+// stage's mass balance beside the stream it makes.
 std::string stream_tables(const TrainResult& r) {
   const bool mass = !r.molar_mass.empty();
   std::string h =
@@ -162,14 +162,26 @@ std::string stream_tables(const TrainResult& r) {
     h += "</tr>\n";
   };
   row("feed", r.feed, nullptr);
-  for (const auto& s : r.stages) row(s.id + " outlet", s.outlet, &s);
+  for (const auto& s : r.stages) {
+    // A quench's side stream joins before the mixed stream leaves it.
+    if (s.side_stream) row(s.id + " side stream", *s.side_stream, nullptr);
+    row(s.id + " outlet", s.outlet, &s);
+  }
   h += "</table>\n";
   if (!mass)
     h += "<p>Mass flows are not shown: not every species has a molar mass (mw or formula).</p>\n";
 
   // Mole fractions, one column of common decimals per species.
   std::vector<const Stream*> streams{&r.feed};
-  for (const auto& s : r.stages) streams.push_back(&s.outlet);
+  std::vector<std::string> names{"feed"};
+  for (const auto& s : r.stages) {
+    if (s.side_stream) {
+      streams.push_back(&*s.side_stream);
+      names.push_back(s.id + " side stream");
+    }
+    streams.push_back(&s.outlet);
+    names.push_back(s.id + " outlet");
+  }
   std::vector<std::vector<std::string>> y_cols;
   for (std::size_t i = 0; i < r.species.size(); ++i) {
     std::vector<double> column;
@@ -180,7 +192,7 @@ std::string stream_tables(const TrainResult& r) {
   for (const auto& id : r.species) h += "<th>" + xml_escape(id) + "</th>";
   h += "</tr>\n";
   for (std::size_t k = 0; k < streams.size(); ++k) {
-    h += "<tr>" + cell(k == 0 ? std::string("feed") : r.stages[k - 1].id + " outlet", false);
+    h += "<tr>" + cell(names[k], false);
     for (const auto& col : y_cols) h += cell(col[k], true);
     h += "</tr>\n";
   }

@@ -16,6 +16,26 @@ namespace rxtrain {
 
 namespace {
 
+// Every quench's side stream, one row each (empty without quenches).
+std::string side_stream_rows(const TrainResult& result) {
+  std::vector<std::vector<std::string>> rows;
+  rows.push_back({"side stream", "T °C", "P bar", "total mol/s"});
+  for (const auto& id : result.species) rows.front().push_back(id + " mol/s");
+  bool share = false;
+  for (const auto& r : result.stages) {
+    if (!r.side_stream) continue;
+    const Stream& s = *r.side_stream;
+    rows.push_back({r.id, celsius_text(s.T), bar_text(s.P), plain_sig_text(s.total_flow())});
+    for (double f : s.F) rows.back().push_back(plain_sig_text(std::max(0.0, f)));
+    share = share || r.share;
+  }
+  if (rows.size() == 1) return {};
+  return render_columns(rows, 1) +
+         (share ? "(a side stream given as a share is part of the feed above: the first stage "
+                  "gets the rest)\n"
+                : "");
+}
+
 // Feed and outlet: molar flows, mole fractions and (with molar masses) mass
 // flows, their totals, and how well each stage keeps mass.
 std::string stream_columns(const TrainResult& result) {
@@ -46,6 +66,7 @@ std::string stream_columns(const TrainResult& result) {
       fixed_text(1.0, 4), mass_flow(result.feed, result.molar_mass),
       mass_flow(result.outlet, result.molar_mass));
   std::string out = render_columns(fl, 1);
+  out += side_stream_rows(result);
   if (!m_feed)
     return out + "mass flows: not shown, not every species has a molar mass (mw or formula)\n";
   std::string closures;

@@ -16,10 +16,6 @@ namespace rxtrain {
 
 namespace {
 
-// A bed whose X_ad_eq lies no further than this above its inlet conversion
-// cannot progress.
-constexpr double kNoProgress = 1e-9;
-
 // Where the train's conversion and temperature limit stand, shared by the
 // two halves of the check.
 struct Setup {
@@ -348,11 +344,11 @@ void build_staged(const Setup& s, const StagingOptions& o, const SunContext& ctx
     }
     const auto eq = adiabatic_equilibrium(mech, stream, HeatMode::Adiabatic, s.basis, {},
                                           o.solvers.equilibrium);
-    if (!eq || eq->X - X <= kNoProgress) {
+    if (!eq || eq->X - X <= kBedNoProgress) {
       res.stop = {StagedStopKind::NoProgress, k, stream.T, X};
       break;
     }
-    const double X_stop = X + o.approach * (eq->X - X);
+    const double X_stop = approach_end(X, eq->X, o.approach);
     const double X_run = X_stop < s.target ? run_on_end(s, o, stream, X, eq->X, X_stop) : X_stop;
     const double X_bed = std::min(X_run, s.target);
     bed.id = fmt::format("B{}", k);

@@ -21,6 +21,17 @@ namespace rxtrain {
 // kReachTolerance (case/case.hpp) is the one tolerance on reaching a
 // conversion the studies use.
 
+// A bed whose X_ad_eq lies no further than this above its inlet conversion
+// cannot progress.
+inline constexpr double kBedNoProgress = 1e-9;
+
+// Where a bed of the staged studies' policy ends on its way to equilibrium:
+// `approach` (0 < approach < 1) of the way from its inlet conversion X_in
+// to its adiabatic equilibrium conversion X_ad_eq (staging.hpp).
+inline double approach_end(double X_in, double X_ad_eq, double approach) {
+  return X_in + approach * (X_ad_eq - X_in);
+}
+
 // One adiabatic bed of a layout. T is monotone along an adiabatic bed of
 // one reaction; with several, T_max and T_min are the extremes inside it.
 struct Bed {
