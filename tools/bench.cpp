@@ -1,7 +1,7 @@
 // Speed benchmark (docs/performance.md): `rxtrain_bench [OPTIONS] [CASE...]`.
 //   --seconds S   time budget per measurement (default 1)
 //   --runs N      runs of the threaded sweep (default 2000)
-//   --only PART   one of startup, cases, tolerances, synthetic, threads, sweep, stability
+//   --only PART   one of startup, cases, tolerances, synthetic, threads, sweep, stability, fit
 // Cases default to cases/*.yaml and tools/bench-cases/*.yaml. Each figure
 // is the median of ten batches, each calibrated to about S/10 seconds,
 // with the solver's work counts of one run. Plain timed loops; nothing
@@ -26,6 +26,8 @@
 #include "rxtrain/case/case.hpp"
 #include "rxtrain/case/case_fields.hpp"
 #include "rxtrain/case/synthetic_case.hpp"
+#include "rxtrain/fit/fit.hpp"
+#include "rxtrain/fit/lab_data.hpp"
 #include "rxtrain/flowsheet/train.hpp"
 #include "rxtrain/sweep/outputs.hpp"
 #include "rxtrain/sweep/study.hpp"
@@ -369,6 +371,29 @@ void bench_stability(const std::string& file, double budget) {
              r.corrector_iterations, t.wall * 1e3, t.cpu * 1e3);
 }
 
+// The demo fit: 4 parameters (A and Ea of both reactions) to 40 lab runs
+// of two measured outputs, on every hardware thread, from the case's
+// first guesses.
+void bench_fit(const std::filesystem::path& root) {
+  const UnitParser units;
+  const Case lab = load_case((root / "cases/selective-hydrogenation-lab.yaml").string(), units);
+  const sweep::CasePathTable table(lab);
+  std::ifstream in(root / "cases/selective-hydrogenation-lab-runs.csv");
+  const std::string text((std::istreambuf_iterator<char>(in)), std::istreambuf_iterator<char>());
+  const fit::LabData data = fit::read_lab_data(text, "runs.csv", lab, table, units);
+  fit::FitOptions o;
+  for (const char* p : {"reactions.semi.rate.A", "reactions.semi.rate.Ea", "reactions.over.rate.A",
+                        "reactions.over.rate.Ea"})
+    o.free.push_back({table.find(p, "bench"), {}, {}});
+  fit::FitResult r;
+  const Timing t = median_seconds([&] { r = fit::run_fit(lab, table, data, o); }, 3.0);
+  fmt::print("\nfit: selective-hydrogenation-lab, {} parameters, {} runs x {} outputs\n",
+             o.free.size(), data.runs(), data.outputs.columns().size());
+  fmt::print("{:>10} {:>10} {:>10} {:>10}\n", "iterations", "converged", "wall s", "CPU s");
+  fmt::print("{:>10} {:>10} {:>10.3f} {:>10.3f}\n", r.iterations, r.converged ? "yes" : "no",
+             t.wall, t.cpu);
+}
+
 }  // namespace
 
 int main(int argc, char** argv) {
@@ -408,6 +433,7 @@ int main(int argc, char** argv) {
   if (only.empty() || only == "threads") bench_threads(reference, runs);
   if (only.empty() || only == "stability")
     bench_stability((root / "cases/isomerization-tank-three-states.yaml").string(), budget);
+  if (only.empty() || only == "fit") bench_fit(root);
   if (only.empty() || only == "sweep") {
     bench_sweep(reference, "400degC:440degC", runs);
     bench_sweep((root / "tools/bench-cases/five-species-two-step.yaml").string(), "40degC:60degC",
