@@ -148,7 +148,7 @@ svg::LineOptions points(const std::string& label, const std::string& colour) {
   svg::LineOptions lo;
   lo.label = label;
   lo.colour = colour;
-  lo.width = 0;
+  lo.connect = false;
   lo.dash = "";
   lo.marker = svg::Marker::Circle;
   lo.marker_size = 3.5;

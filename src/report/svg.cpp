@@ -397,6 +397,8 @@ void Chart::add_line(std::span<const double> x, std::span<const double> y, LineO
         fmt::format("add_line: x has {} values but y has {}", x.size(), y.size()));
   check_finite_positive(options.width, "LineOptions.width");
   check_finite_positive(options.marker_size, "LineOptions.marker_size");
+  check(options.connect || options.marker != Marker::None,
+        "add_line: a series without its line needs a marker");
   series_.emplace_back(detail::LineSeries{
       {x.begin(), x.end()}, {y.begin(), y.end()}, std::move(options), next_style_++});
 }
@@ -722,6 +724,14 @@ class Drawing {
         dash.empty() ? "round" : "butt");
     std::string markers;
     for (const auto& [b, e] : runs(px.size(), ok)) {
+      if (!l->opt.connect) {
+        for (std::size_t i = b; i < e; ++i) {
+          markers +=
+              marker_svg(l->opt.marker, px[i].first, px[i].second, l->opt.marker_size, colour);
+          occupied.push_back(px[i]);
+        }
+        continue;
+      }
       g += "<polyline points=\"";
       for (std::size_t i = b; i < e; ++i) {
         g += fmt::format("{}{},{}", i == b ? "" : " ", num(px[i].first), num(px[i].second));
@@ -736,8 +746,9 @@ class Drawing {
       g += fmt::format("<g class=\"markers\" data-series=\"{}\">{}</g>\n", si, markers);
     lines += g;
     if (!l->opt.label.empty())
-      legend.push_back({LegendEntry::Line, l->opt.label, colour, dash, l->opt.width, 1.0,
-                        l->opt.marker, l->opt.marker_size});
+      legend.push_back({LegendEntry::Line, l->opt.label, colour, dash,
+                        l->opt.connect ? l->opt.width : 0.0, 1.0, l->opt.marker,
+                        l->opt.marker_size});
   }
 
   void area(std::size_t si, const detail::AreaSeries* a) {
@@ -1060,11 +1071,12 @@ class Drawing {
         const double cy = b.y0 + kLegendPad + 0.5 * fs + row * static_cast<double>(i);
         const double sx = b.x0 + kLegendPad;
         if (e.kind == LegendEntry::Line) {
-          g += fmt::format(
-              "<line x1=\"{0}\" y1=\"{1}\" x2=\"{2}\" y2=\"{1}\" stroke=\"{3}\" "
-              "stroke-width=\"{4}\"{5}/>\n",
-              num(sx), num(cy), num(sx + kLegendSwatch), xml_escape(e.colour), num(e.width),
-              dash_attr(e.dash));
+          if (e.width > 0)  // a scatter series shows its marker alone
+            g += fmt::format(
+                "<line x1=\"{0}\" y1=\"{1}\" x2=\"{2}\" y2=\"{1}\" stroke=\"{3}\" "
+                "stroke-width=\"{4}\"{5}/>\n",
+                num(sx), num(cy), num(sx + kLegendSwatch), xml_escape(e.colour), num(e.width),
+                dash_attr(e.dash));
           g += marker_svg(e.marker, sx + 0.5 * kLegendSwatch, cy, e.marker_size, e.colour);
         } else {
           g += fmt::format(

@@ -147,6 +147,7 @@ struct LineOptions {
   double width = 2.0;                   // px
   Marker marker = Marker::None;         // drawn at every finite point
   double marker_size = 3.5;             // px, radius of the marker
+  bool connect = true;                  // false: the markers alone (a scatter plot)
 };
 
 struct AreaOptions {
