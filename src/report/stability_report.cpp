@@ -51,6 +51,13 @@ std::string axis_label(const StabilityResult& r) {
 
 // ---------------------------------------------------------- tubular beds
 
+// A sentence of the text output as a paragraph starts: its first letter
+// upper case (the sentences start with an ASCII word).
+std::string capitalized(std::string s) {
+  if (!s.empty() && s[0] >= 'a' && s[0] <= 'z') s[0] = static_cast<char>(s[0] - 'a' + 'A');
+  return s;
+}
+
 std::string scan_heading(const StabilityResult& r) {
   return fmt::format(
       "sensitivity of stage {}'s peak temperature to {} from {} to {} (the case: {}): {} points; "
@@ -174,8 +181,9 @@ std::string tubular_html(const Case& c, const StabilityResult& r,
   using svg::xml_escape;
   std::string h = html::page_begin(c.title + " — runaway margin of " + r.stage, provenance);
   h += html::feed_section(c);
-  h += "<h2 id=\"summary\">Critical value</h2>\n<p>" + xml_escape(scan_heading(r)) + ".</p>\n";
-  h += "<p>" + xml_escape(critical_sentences(r)) + "</p>\n";
+  h += "<h2 id=\"summary\">Critical value</h2>\n<p>" + xml_escape(capitalized(scan_heading(r))) +
+       ".</p>\n";
+  h += "<p>" + xml_escape(capitalized(critical_sentences(r))) + "</p>\n";
   if (r.critical) {
     const CriticalValue& k = *r.critical;
     h += "<table>\n" +
