@@ -231,6 +231,7 @@ TEST_CASE(
   // measured 1e-5 K apart).
   CHECK(std::abs(r.critical->value - reference) <= 1e-3);
   CHECK(r.critical->S > 5);  // a sharp peak: the bed runs away past it
+  CHECK(r.critical->pronounced);
   CHECK(std::abs(r.critical->margin - (r.critical->value - design)) <= 1e-12);
   CHECK(r.critical->beyond == (r.critical->value < design));
   // The S at the critical value is the largest of the scan's.

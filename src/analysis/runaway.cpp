@@ -229,6 +229,9 @@ SensitivityScan sensitivity_scan(const Case& c, const CaseField& field, std::siz
   (void)brent_minimize(minus_abs_S, out.points[top - 1].value, out.points[top + 1].value,
                        o.critical_tol * (hi - lo), 100);
   set_critical(c, field, best);
+  double least = std::abs(best.S);
+  for (const auto& q : out.points) least = std::min(least, std::abs(q.S));
+  best.pronounced = std::abs(best.S) >= kRunawayPeakProminence * least;
   out.critical = best;
   out.runs = probe.runs();
   return out;
@@ -259,12 +262,6 @@ BedCheck bed_check(const ReactorSpec& spec, const Stream& inlet, std::size_t k) 
 // side of the case's value reach twice the margin, so that a peak within
 // the margin has a point beyond it on each side).
 constexpr int kHalfSteps = 4;
-// A peak of |S| inside the window counts when it stands at least this
-// many times above the window's least |S| (common practice, no source):
-// near a runaway S climbs several-fold over a few kelvin, while a bed far
-// from one has only shallow bumps (an adiabatic bed past its light-off,
-// whose S stays near 1).
-constexpr double kPeakProminence = 2.0;
 
 }  // namespace
 
@@ -329,7 +326,7 @@ std::vector<std::string> runaway_warnings(const Case& c, const TrainResult& resu
     double least = std::abs(S[1]);
     for (std::size_t i = 1; i + 1 < v.size(); ++i) least = std::min(least, std::abs(S[i]));
     if (top == 1 || top + 2 == v.size() || S[top] == 0 ||
-        std::abs(S[top]) < kPeakProminence * least)
+        std::abs(S[top]) < kRunawayPeakProminence * least)
       continue;
     const double a = std::abs(S[top - 1]), b = std::abs(S[top]), d = std::abs(S[top + 1]);
     const double curvature = a - 2 * b + d;

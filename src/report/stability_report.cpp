@@ -88,6 +88,11 @@ std::string critical_sentences(const StabilityResult& r) {
       difference_text(r, std::abs(k.margin)), k.margin > 0 ? "below" : "above",
       difference_text(r, k.margin), k.beyond ? ", past it on the runaway side" : "",
       rising ? "rises" : "falls", r.param, rising ? "above" : "below");
+  if (!k.pronounced)
+    out += fmt::format(
+        " But |S| there is less than {:g} times its least over the range: a shallow peak in this "
+        "range, where a runaway's S climbs several-fold; widen the range to tell.",
+        kRunawayPeakProminence);
   return out;
 }
 
@@ -116,7 +121,7 @@ std::string tubular_text(const std::string& title, const StabilityResult& r) {
   }
   out += render_columns(rows, 1);
   if (every > 1)
-    out += fmt::format("(every {}th point and the one nearest the critical value; --csv has all)\n",
+    out += fmt::format("(one point in {} and the one nearest the critical value; --csv has all)\n",
                        every);
   out += "+-: the step's and the half step's S differ by this (the error is about a third)";
   out += unchecked ? "; *: they never agreed within the tolerance\n" : "\n";
@@ -271,7 +276,8 @@ std::string stability_json_text(const StabilityResult& r) {
                 {"margin", json_number(r.critical->margin)},
                 {"S", json_number(r.critical->S)},
                 {"T_peak", json_number(r.critical->T_peak)},
-                {"beyond", r.critical->beyond}};
+                {"beyond", r.critical->beyond},
+                {"pronounced", r.critical->pronounced}};
   const json j{{"param", r.param},           {"unit", r.unit},
                {"branches", branches},       {"turning_points", turning},
                {"sensitivity", sensitivity}, {"critical", critical}};

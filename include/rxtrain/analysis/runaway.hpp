@@ -46,6 +46,13 @@ struct SensitivityPoint {
   bool checked = true;  // the pair agreed within the tolerance
 };
 
+// A peak of |S| counts as a runaway when it stands at least this many
+// times above the least |S| around it (common practice, no source): near a
+// runaway S climbs several-fold over a few kelvin, while a bed far from one
+// has only a shallow maximum (an adiabatic bed past its light-off, whose S
+// stays near 1).
+inline constexpr double kRunawayPeakProminence = 2.0;
+
 // The critical value: where |S| peaks over the range.
 struct CriticalValue {
   double value = 0;   // SI
@@ -57,6 +64,10 @@ struct CriticalValue {
   // The case stands past the critical value on the side where the peak
   // temperature rises (above it when S > 0, below it when S < 0).
   bool beyond = false;
+  // |S| here is at least kRunawayPeakProminence times its least over the
+  // scan: a runaway's peak, not a shallow maximum (over a range wide
+  // enough to hold the climb to it).
+  bool pronounced = false;
 };
 
 // The scan's part of a StabilityResult (analysis/stability.hpp), filled by
@@ -84,8 +95,8 @@ SensitivityScan sensitivity_scan(const Case& c, const CaseField& field, std::siz
 // runs of the stage alone on the inlet it ran with, at steps of margin/2
 // up to twice the margin either side of the case's value; S by central
 // differences of neighbours, its peak placed by a parabola through three;
-// a peak counts when it stands at least twice as high as the window's
-// least |S| (shallow bumps are not runaways).
+// a peak counts when it stands kRunawayPeakProminence times as high as
+// the window's least |S| (shallow bumps are not runaways).
 // One sentence per finding (a train warning); a bed whose check fails
 // gets a sentence saying so. margin <= 0: no check.
 std::vector<std::string> runaway_warnings(const Case& c, const TrainResult& result, double margin,
