@@ -168,12 +168,12 @@ SensitivityScan sensitivity_scan(const Case& c, const CaseField& field, std::siz
     const double v = k == n - 1 ? hi : lo + (hi - lo) * k / (n - 1);
     const PeakRun r = probe.peak(v);
     if (!r.error.empty()) {
-      failed.push_back(fmt::format("{:.6g}: {}", v, r.error));
+      failed.push_back(fmt::format("{:.6g} {}: {}", v, field.unit.to_string(), r.error));
       continue;
     }
     const Slope s = probe.slope(v, r.T);
     if (!s.failure.empty()) {
-      failed.push_back(fmt::format("{:.6g}: {}", v, s.failure));
+      failed.push_back(fmt::format("{:.6g} {}: {}", v, field.unit.to_string(), s.failure));
       continue;
     }
     out.points.push_back({v, r.T, s.S, s.error, s.checked});
@@ -186,8 +186,8 @@ SensitivityScan sensitivity_scan(const Case& c, const CaseField& field, std::siz
   if (!failed.empty())
     warnings.push_back(fmt::format(
         "{} of {} points left out: the stage could not be run there or beside them (first at {} "
-        "= {} {})",
-        failed.size(), n, field.name, failed.front(), unit));
+        "= {})",
+        failed.size(), n, field.name, failed.front()));
   if (unchecked > 0)
     warnings.push_back(fmt::format(
         "at {} point(s) the sensitivity's central differences at the step and at half of it "
