@@ -2,9 +2,10 @@
 // `rxtrain stability`'s run_stability): the normalized sensitivity of the
 // peak temperature S = (T_c / T_peak) dT_peak/dT_c against central
 // differences of independent runs, and the critical coolant temperature
-// (where S peaks: Morbidelli and Varma, AIChE J. 28 (1982) 705) of a
-// cooled first-order bed against an independent scan written here: the
-// bed's balances integrated by GSL's rk8pd for each coolant temperature,
+// (where S peaks: Morbidelli and Varma, AIChE J. 28 (1982) 705, the
+// reference from memory) of a cooled first-order bed against an
+// independent scan written here: the bed's balances integrated by GSL's
+// rk8pd for each coolant temperature,
 // the peak located on the integration by GSL's Brent root of dT/dV, S by
 // central differences and its peak by GSL's Brent minimizer. All kinetic
 // and physical data are invented for the tests.

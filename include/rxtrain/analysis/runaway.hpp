@@ -1,12 +1,12 @@
 // How far a tubular bed stands from runaway: the parametric sensitivity of
 // its peak temperature to one numeric field of the case, and the critical
 // value of that field where the sensitivity peaks (the generalized
-// criterion of Morbidelli and Varma, AIChE J. 28 (1982) 705). The
-// normalized sensitivity S = (phi / T_peak) dT_peak/dphi, phi the field
-// and T_peak the stage's highest temperature, both SI (kelvin), is taken
-// by central differences of whole runs, each checked against the same
-// difference at half the step (docs/stability.md). Results are for
-// screening and study.
+// criterion of Morbidelli and Varma, AIChE J. 28 (1982) 705, the reference
+// from memory). The normalized sensitivity S = (phi / T_peak)
+// dT_peak/dphi, phi the field and T_peak the stage's highest temperature,
+// both SI (kelvin), is taken by central differences of whole runs, each
+// checked against the same difference at half the step
+// (docs/stability.md). Results are for screening and study.
 #pragma once
 
 #include <optional>
