@@ -419,8 +419,10 @@ TEST_CASE("a bed whose pressure would fall below a tenth of its inlet exits 3 an
   fs::remove_all(dir);
 }
 
-TEST_CASE("stability: bad --param and a case without a tank are input errors writing nothing",
-          "[cli]") {
+TEST_CASE(
+    "stability: bad --param, --points and reactors it cannot study are input errors "
+    "writing nothing",
+    "[cli]") {
   const auto dir = scratch("stability-bad");
   const std::string tank =
       "'" + (fs::path(RXTRAIN_SOURCE_DIR) / "cases/isomerization-tank-three-states.yaml").string() +
@@ -435,11 +437,17 @@ TEST_CASE("stability: bad --param and a case without a tank are input errors wri
       {"stability " + tank + " --param feed.T=3bar:300K" + json, "cannot be converted to K"},
       {"stability " + tank + " --param feed.T=-5K:300K" + json, "out of range"},
       {"stability " + tank + " --param feed.T=300K:330K --stage R7" + json,
-       "no stirred tank (type: cstr) with id R7"},
+       "no reactor (type: cstr or pfr) with id R7"},
+      {"stability " + tank + " --param feed.T=300K:330K --points 2" + json,
+       "--points: error: expected a number of points from 3"},
+      {"stability '" +
+           (fs::path(RXTRAIN_SOURCE_DIR) / "cases/benzene-hydrogenation-bed.yaml").string() +
+           "' --param feed.T=300K:330K" + json,
+       "stability follows a bed of given volume"},
       {"stability '" +
            (fs::path(RXTRAIN_SOURCE_DIR) / "cases/isomerization-two-bed.yaml").string() +
-           "' --param feed.T=300K:330K" + json,
-       "stability follows a stirred tank"},
+           "' --stage R1 --param train.R2.activity=0.5:1" + json,
+       "belongs to a stage after R1"},
   };
   for (const auto& b : bad) {
     const auto r = run_rxtrain(b.args);

@@ -133,7 +133,7 @@ TEST_CASE("stability refuses a case without a tank of given volume", "[stability
                     Catch::Contains("stability follows a tank of given volume"));
   o.stage = "R9";
   CHECK_THROWS_WITH(rxtrain::run_stability(c, field_named(c, "feed.T"), o),
-                    Catch::Contains("no stirred tank (type: cstr) with id R9"));
+                    Catch::Contains("no reactor (type: cstr or pfr) with id R9"));
 }
 
 TEST_CASE("along the coolant's UA every point's stability is the classical model's",

@@ -1,7 +1,8 @@
 // Speed benchmark (docs/performance.md): `rxtrain_bench [OPTIONS] [CASE...]`.
 //   --seconds S   time budget per measurement (default 1)
 //   --runs N      runs of the threaded sweep (default 2000)
-//   --only PART   one of startup, cases, tolerances, synthetic, threads, sweep, stability, fit
+//   --only PART   one of startup, cases, tolerances, synthetic, threads, sweep, stability,
+//                 runaway, fit
 // Cases default to cases/*.yaml and tools/bench-cases/*.yaml. Each figure
 // is the median of ten batches, each calibrated to about S/10 seconds,
 // with the solver's work counts of one run. Plain timed loops; nothing
@@ -22,6 +23,7 @@
 #include <vector>
 
 #include "rxtrain/analysis/stability.hpp"
+#include "rxtrain/analysis/train_warnings.hpp"
 #include "rxtrain/base/units.hpp"
 #include "rxtrain/case/case.hpp"
 #include "rxtrain/case/case_fields.hpp"
@@ -392,6 +394,38 @@ void bench_fit(const std::filesystem::path& root) {
   fmt::print("{:>10} {:>10} {:>10} {:>10}\n", "iterations", "converged", "wall s", "CPU s");
   fmt::print("{:>10} {:>10} {:>10.3f} {:>10.3f}\n", r.iterations, r.converged ? "yes" : "no",
              t.wall, t.cpu);
+// `rxtrain stability` on the cooled demo bed: a 100-point sensitivity scan
+// of its coolant temperature (issue 20's benchmark: under 1 s); and what
+// `run`'s runaway check (--runaway-margin, default 5 K) adds to run_checked
+// on each cooled demo bed.
+void bench_runaway(const std::filesystem::path& root, double budget) {
+  const UnitParser units;
+  const Case c = load_case((root / "cases/cooled-bed-runaway.yaml").string(), units);
+  CaseField coolant_T;
+  for (const auto& f : case_fields(c))
+    if (f.name == "train.R1.heat.coolant.T") coolant_T = f;
+  StabilityOptions o;
+  o.lo = 653.15;
+  o.hi = 693.15;
+  o.sensitivity.points = 100;
+  const StabilityResult r = run_stability(c, coolant_T, o);
+  const Timing t = median_seconds([&] { (void)run_stability(c, coolant_T, o); }, budget);
+  fmt::print("\nrunaway: cooled-bed-runaway.yaml, train.R1.heat.coolant.T 380 °C to 420 °C\n");
+  fmt::print("{:>8} {:>8} {:>12} {:>10} {:>10}\n", "points", "runs", "critical K", "wall ms",
+             "CPU ms");
+  fmt::print("{:>8} {:>8} {:>12.3f} {:>10.2f} {:>10.2f}\n", r.sensitivity.size(), r.runs,
+             r.critical ? r.critical->value : 0.0, t.wall * 1e3, t.cpu * 1e3);
+  fmt::print("\nrun's runaway check (run_checked, table only)\n");
+  fmt::print("{:<32} {:>14} {:>14}\n", "case", "margin 0 CPU ms", "margin 5 K CPU ms");
+  for (const char* name : {"cooled-bed-runaway.yaml", "so2-cooled-multitubular.yaml",
+                           "so2-three-bed-converter.yaml"}) {
+    const Case k = load_case((root / "cases" / name).string(), units);
+    TrainOptions table;
+    table.view_curves = false;
+    const Timing off = median_seconds([&] { (void)run_checked(k, table, 0.0, 0.0); }, budget);
+    const Timing on = median_seconds([&] { (void)run_checked(k, table, 0.0, 5.0); }, budget);
+    fmt::print("{:<32} {:>14.2f} {:>14.2f}\n", name, off.cpu * 1e3, on.cpu * 1e3);
+  }
 }
 
 }  // namespace
@@ -434,6 +468,7 @@ int main(int argc, char** argv) {
   if (only.empty() || only == "stability")
     bench_stability((root / "cases/isomerization-tank-three-states.yaml").string(), budget);
   if (only.empty() || only == "fit") bench_fit(root);
+  if (only.empty() || only == "runaway") bench_runaway(root, budget);
   if (only.empty() || only == "sweep") {
     bench_sweep(reference, "400degC:440degC", runs);
     bench_sweep((root / "tools/bench-cases/five-species-two-step.yaml").string(), "40degC:60degC",

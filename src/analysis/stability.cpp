@@ -178,18 +178,58 @@ class TankProblem {
   std::vector<double> F_;
 };
 
-std::size_t tank_index(const Case& c, const std::string& id) {
+// The reactor studied: the one named, else the first stirred tank, else
+// the first tubular reactor.
+std::size_t reactor_index(const Case& c, const std::string& id) {
+  std::optional<std::size_t> first_tube;
   for (std::size_t k = 0; k < c.train.size(); ++k) {
     const auto* r = std::get_if<ReactorSpec>(&c.train[k]);
-    if (!r || r->type != ReactorType::Cstr) continue;
-    if (id.empty() || r->id == id) return k;
+    if (!r) continue;
+    if (!id.empty()) {
+      if (r->id == id) return k;
+      continue;
+    }
+    if (r->type == ReactorType::Cstr) return k;
+    if (!first_tube) first_tube = k;
   }
+  if (first_tube) return *first_tube;
   throw InputError({c.file, 0, 0},
-                   id.empty() ? std::string("stability follows a stirred tank (type: cstr); the "
+                   id.empty() ? std::string("stability studies a reactor (type: cstr or pfr); the "
                                             "case has none")
-                              : fmt::format("stability: the case has no stirred tank (type: "
-                                            "cstr) with id {}",
+                              : fmt::format("stability: the case has no reactor (type: cstr or "
+                                            "pfr) with id {}",
                                             id));
+}
+
+// A tubular bed: the sensitivity of its peak temperature along the field.
+StabilityResult tubular_stability(const Case& c, const CaseField& field, std::size_t index,
+                                  const StabilityOptions& options) {
+  const auto& spec = std::get<ReactorSpec>(c.train[index]);
+  if (spec.heat == HeatMode::Isothermal && !spec.cooling)
+    throw InputError(spec.where, fmt::format("stage {}: an isothermal tube's temperature is held; "
+                                             "stability scans a bed whose temperature moves "
+                                             "(adiabatic or cooled)",
+                                             spec.id));
+  if (field.spec && field.spec->owner == FieldOwner::Stage && field.index > static_cast<int>(index))
+    throw InputError({c.file, 0, 0},
+                     fmt::format("stability: {} belongs to a stage after {}, so it cannot move "
+                                 "that stage's peak temperature",
+                                 field.name, spec.id));
+  StabilityResult out;
+  out.stage = spec.id;
+  out.tubular = true;
+  out.param = field.name;
+  out.unit = field.unit.to_string();
+  out.lo = options.lo;
+  out.hi = options.hi;
+  out.base_value = field.get(c);
+  SensitivityScan scan = sensitivity_scan(c, field, index, options.lo, options.hi,
+                                          options.sensitivity, options.solvers, out.warnings);
+  out.sensitivity = std::move(scan.points);
+  out.critical = scan.critical;
+  out.runs = scan.runs;
+  out.points = static_cast<int>(out.sensitivity.size());
+  return out;
 }
 
 // The steady states of the tank at field value v, from a cold run of the
@@ -218,13 +258,14 @@ StabilityResult run_stability(const Case& c, const CaseField& field,
                      fmt::format("stability: the range of {} must go from a lower to a higher "
                                  "value, got {:g} to {:g} (SI)",
                                  field.name, options.lo, options.hi));
-  const std::size_t index = tank_index(c, options.stage);
+  const std::size_t index = reactor_index(c, options.stage);
   const auto& spec = std::get<ReactorSpec>(c.train[index]);
+  const bool tube = spec.type == ReactorType::Pfr;
   if (spec.sized() || !spec.volume)
-    throw InputError(spec.where,
-                     fmt::format("stage {}: stability follows a tank of given volume (or "
-                                 "catalyst); this one is sized to a target",
-                                 spec.id));
+    throw InputError(spec.where, fmt::format("stage {}: stability follows a {} of given volume (or "
+                                             "catalyst); this one is sized to a target",
+                                             spec.id, tube ? "bed" : "tank"));
+  if (tube) return tubular_stability(c, field, index, options);
   StabilityResult out;
   out.stage = spec.id;
   out.param = field.name;

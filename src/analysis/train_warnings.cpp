@@ -8,6 +8,7 @@
 #include <variant>
 
 #include "rxtrain/analysis/result_guard.hpp"
+#include "rxtrain/analysis/runaway.hpp"
 #include "rxtrain/analysis/stability.hpp"
 #include "rxtrain/base/error.hpp"
 #include "rxtrain/base/units.hpp"
@@ -238,10 +239,13 @@ std::vector<std::string> design_warnings(const Case& c, const TrainResult& resul
   return out;
 }
 
-TrainResult run_checked(const Case& c, const TrainOptions& options, double ignition_margin) {
+TrainResult run_checked(const Case& c, const TrainOptions& options, double ignition_margin,
+                        double runaway_margin) {
   TrainResult result = run_train(c, options);
   for (auto& w : design_warnings(c, result)) result.warnings.push_back(std::move(w));
   for (auto& w : flip_warnings(c, result, ignition_margin)) result.warnings.push_back(std::move(w));
+  for (auto& w : runaway_warnings(c, result, runaway_margin, options.solvers))
+    result.warnings.push_back(std::move(w));
   check_finite(result);
   return result;
 }

@@ -36,7 +36,23 @@ struct RunOptions {
   // A stirred tank whose ignition or extinction feed temperature lies this
   // close to the case's is told (kDefaultIgnitionMargin).
   std::string ignition_margin = fmt::format("{:g} K", kDefaultIgnitionMargin);
+  // A tubular bed whose runaway critical coolant (adiabatic: inlet)
+  // temperature lies this close to the case's is told (kDefaultRunawayMargin).
+  std::string runaway_margin = fmt::format("{:g} K", kDefaultRunawayMargin);
 };
+
+// A margin option's temperature difference, K, not negative.
+double margin_option(const UnitParser& units, const std::string& option, const std::string& text) {
+  double m = 0;
+  try {
+    m = units.difference_to_si(text, SiUnit::of("K", "a temperature difference"));
+  } catch (const UnitError& e) {
+    throw UnitError(option + ": " + std::string(e.what()));
+  }
+  if (!(m >= 0))
+    throw UnitError(option + ": the margin must not be negative, got \"" + text + "\"");
+  return m;
+}
 
 int run(const RunOptions& o) {
   const UnitParser units;
@@ -58,18 +74,10 @@ int run(const RunOptions& o) {
                       o.approach_window + "\"");
     options.solvers.equilibrium.approach_T_window = w;
   }
-  double flip_margin = 0;
-  try {
-    flip_margin =
-        units.difference_to_si(o.ignition_margin, SiUnit::of("K", "a temperature difference"));
-  } catch (const UnitError& e) {
-    throw UnitError("--ignition-margin: " + std::string(e.what()));
-  }
-  if (!(flip_margin >= 0))
-    throw UnitError("--ignition-margin: the margin must not be negative, got \"" +
-                    o.ignition_margin + "\"");
+  const double flip_margin = margin_option(units, "--ignition-margin", o.ignition_margin);
+  const double runaway_margin = margin_option(units, "--runaway-margin", o.runaway_margin);
   // No NaN or Inf may reach an output.
-  const TrainResult result = run_checked(c, options, flip_margin);
+  const TrainResult result = run_checked(c, options, flip_margin, runaway_margin);
 
   // Every output is rendered before any is written, and all are renamed
   // into place together: a failure leaves no half-written file behind.
@@ -116,6 +124,12 @@ Action setup_run(CLI::App& app) {
   app.add_option("--ignition-margin", o->ignition_margin,
                  "Warn when a stirred tank's ignition or extinction feed temperature lies within "
                  "this of the case's (a temperature difference; 0 K: no check)")
+      ->capture_default_str();
+  app.add_option("--runaway-margin", o->runaway_margin,
+                 "Warn when a tubular bed's runaway critical temperature (where its peak "
+                 "temperature's normalized sensitivity peaks) of the coolant, or of the inlet for "
+                 "an adiabatic bed, lies within this of the case's (a temperature difference; "
+                 "default 5 K: common practice, no source; 0 K: no check)")
       ->capture_default_str();
   add_limit_margin_option(app, o->limit_margin);
   return [o] { return run(*o); };

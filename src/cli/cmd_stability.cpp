@@ -1,4 +1,5 @@
-// rxtrain stability CASE --param PATH=A:B [--stage ID] [--json FILE] [--csv FILE] [--report DIR]
+// rxtrain stability CASE --param PATH=A:B [--stage ID] [--points N] [--json FILE] [--csv FILE]
+//   [--report DIR]
 #include <fmt/format.h>
 
 #include <cstdio>
@@ -27,6 +28,7 @@ struct StabilityCommandOptions {
   std::string json_path;
   std::string csv_path;
   std::string report_dir;
+  int points = SensitivityOptions{}.points;
 };
 
 int run_stability_command(const StabilityCommandOptions& o) {
@@ -43,8 +45,12 @@ int run_stability_command(const StabilityCommandOptions& o) {
   const sweep::CasePathTable table(c);
   const std::size_t i = table.find(o.param.substr(0, eq), option);
   const CaseField& field = table.at(i);
+  if (o.points < 3 || o.points > 100000)
+    throw InputError({"--points", 0, 0},
+                     fmt::format("expected a number of points from 3 to 100000, got {}", o.points));
   StabilityOptions options;
   options.stage = o.stage;
+  options.sensitivity.points = o.points;
   options.lo = sweep::path_value(o.param.substr(eq + 1, colon - eq - 1), field, units, option);
   options.hi = sweep::path_value(o.param.substr(colon + 1), field, units, option);
   if (!(options.lo < options.hi))
@@ -83,14 +89,23 @@ Action setup_stability(CLI::App& app) {
                  "The case field to vary and its range, PATH=FROM:TO with units (e.g. "
                  "feed.T=280K:340K, train.R1.volume=0.5m3:4m3; the paths of sweep --vary)")
       ->required();
-  app.add_option("--stage", o->stage, "The stirred tank to follow (default: the first cstr)");
+  app.add_option("--stage", o->stage,
+                 "The reactor: a stirred tank to follow, or a tubular bed whose runaway margin "
+                 "to find (default: the first cstr, else the first pfr)");
+  app.add_option("--points", o->points,
+                 "A tubular bed: points of the sensitivity scan over FROM:TO, ends included")
+      ->capture_default_str();
   app.add_option("--json", o->json_path,
-                 "Write the branches and turning points as JSON (SI) to FILE");
-  app.add_option("--csv", o->csv_path, "Write every point of every branch as CSV (SI) to FILE");
+                 "Write the branches and turning points (a bed: the sensitivity and the "
+                 "critical value) as JSON (SI) to FILE");
+  app.add_option("--csv", o->csv_path,
+                 "Write every point of every branch (a bed: of the scan) as CSV (SI) to FILE");
   app.add_option("--report", o->report_dir,
-                 "Write report.html (the S-shaped curve, stable branches solid and unstable "
-                 "dashed, the turning points, and the heat-generation and heat-removal curves "
-                 "at the case's values) and each figure as SVG into folder DIR");
+                 "Write report.html (a tank: the S-shaped curve, stable branches solid and "
+                 "unstable dashed, the turning points, and the heat-generation and heat-removal "
+                 "curves at the case's values; a bed: S and the peak temperature against the "
+                 "field, the critical value and the case's marked) and each figure as SVG into "
+                 "folder DIR");
   return [o] { return run_stability_command(*o); };
 }
 

@@ -51,8 +51,10 @@ constexpr CommandEntry kCommands[] = {
      rxtrain::cli::setup_merge},
     {"stability",
      "Where a stirred tank can flip: its steady states and their stability as one case field "
-     "varies (continuation), the ignition and extinction points and the hysteresis window; for "
-     "screening and study, designs to be confirmed by licensed engineers",
+     "varies (continuation), the ignition and extinction points and the hysteresis window; "
+     "where a tubular bed runs away: its peak temperature's sensitivity to the field, the "
+     "critical value and the design's margin to it; for screening and study, designs to be "
+     "confirmed by licensed engineers",
      rxtrain::cli::setup_stability},
     {"fit",
      "Fit the case's rate law to lab runs (CSV): estimates, standard errors, 95 % intervals, "
@@ -70,6 +72,7 @@ struct TypeWord {
 constexpr TypeWord kTypeWords[] = {
     {"--limit-margin", "KELVIN"},
     {"--ignition-margin", "KELVIN"},
+    {"--runaway-margin", "KELVIN"},
     {"--margin", "KELVIN"},
     {"--approach-window", "KELVIN"},
     {"--return-to", "inlet|max-rate"},

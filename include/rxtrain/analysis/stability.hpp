@@ -8,6 +8,9 @@
 // there to the corrector's tolerance) and named ignition or extinction.
 // Branches are traced from every steady state at both ends of the range; a
 // closed branch (an isola) that touches neither end is not found.
+// A tubular bed has one steady state along a field: for it the study is
+// the parametric sensitivity of its peak temperature and the critical value
+// where that peaks (analysis/runaway.hpp).
 // Results are for screening and study.
 #pragma once
 
@@ -15,6 +18,7 @@
 #include <string>
 #include <vector>
 
+#include "rxtrain/analysis/runaway.hpp"
 #include "rxtrain/case/case.hpp"
 #include "rxtrain/case/case_fields.hpp"
 #include "rxtrain/flowsheet/train.hpp"
@@ -25,8 +29,9 @@
 namespace rxtrain {
 
 struct StabilityOptions {
-  // The stirred tank followed (its id); empty: the case's first stirred
-  // tank. The stages before it run at each value to give its inlet.
+  // The stirred tank followed or the tubular bed scanned (its id); empty:
+  // the case's first stirred tank, or without one its first tubular
+  // reactor. The stages before it run at each value to give its inlet.
   std::string stage;
   // The range of the field, SI, lo < hi.
   double lo = 0, hi = 1;
@@ -37,6 +42,8 @@ struct StabilityOptions {
   // How the tanks at the ends of the range (the starts) and the stages
   // before the tank are solved.
   SolverOptions solvers;
+  // A tubular bed's scan: its grid and central differences.
+  SensitivityOptions sensitivity;
 };
 
 // One point of a branch.
@@ -77,7 +84,9 @@ struct HeatCurvePoint {
 };
 
 struct StabilityResult {
-  std::string stage;  // the tank's id
+  std::string stage;  // the tank's (or bed's) id
+  // A tubular bed: the sensitivity scan below, no branches.
+  bool tubular = false;
   std::string param;  // the field's path
   std::string unit;   // its SI unit ("K", "m3", "1")
   double lo = 0, hi = 0;
@@ -90,6 +99,12 @@ struct StabilityResult {
   // At the case's value of the field, over the temperatures the branches
   // span (an isothermal tank has none: its temperature is held).
   std::vector<HeatCurvePoint> heat_curves;
+  // A tubular bed: S at every point of the grid that could be run, and
+  // the critical value where |S| peaks (empty when it peaks at an end of
+  // the range).
+  std::vector<SensitivityPoint> sensitivity;
+  std::optional<CriticalValue> critical;
+  int runs = 0;                       // whole runs of a tubular bed's train
   std::vector<std::string> warnings;  // a branch given up, the range cut, ...
   int points = 0;                     // points on every branch
   int corrector_iterations = 0;
@@ -104,10 +119,11 @@ struct StabilityResult {
 // saying so.
 std::vector<std::string> flip_warnings(const Case& c, const TrainResult& result, double margin);
 
-// Throws InputError when the case has no such stirred tank, when the tank
-// is sized to a target (continuation follows a tank of given volume) or
-// isothermal with a field that moves nothing, and SolverError when no
-// steady state is found at either end of the range.
+// Throws InputError when the case has no such reactor, when the reactor
+// is sized to a target (continuation and the scan follow one of given
+// size), when a tubular bed is isothermal or the field belongs to a stage
+// after it, and SolverError when no steady state is found at either end of
+// the range (a tank) or no point of the scan can be run (a bed).
 StabilityResult run_stability(const Case& c, const CaseField& field,
                               const StabilityOptions& options);
 

@@ -48,12 +48,21 @@ std::vector<std::string> design_warnings(const Case& c, const TrainResult& resul
 // swing in an upset is of that order).
 inline constexpr double kDefaultIgnitionMargin = 10.0;
 
+// How close (K) a tubular bed's runaway critical value of its coolant
+// temperature (adiabatic: its inlet temperature) may lie to the case's
+// before `run` says so (analysis/runaway.hpp, runaway_warnings): 5 K,
+// common practice, no source (a coolant's or preheater's control swings by
+// a few kelvin in an upset).
+inline constexpr double kDefaultRunawayMargin = 5.0;
+
 // What `rxtrain run` computes, for every caller that wants the same answer
 // (the command line, the Python module): run_train, then the design
-// warnings and the stirred tanks' flip warnings within `ignition_margin`
-// (K; 0: not checked) appended to the result's, then the finite-number
-// guard (result_guard.hpp; throws SolverError on a NaN or Inf).
+// warnings, the stirred tanks' flip warnings within `ignition_margin` and
+// the tubular beds' runaway warnings within `runaway_margin` (K; 0: not
+// checked) appended to the result's, then the finite-number guard
+// (result_guard.hpp; throws SolverError on a NaN or Inf).
 TrainResult run_checked(const Case& c, const TrainOptions& options,
-                        double ignition_margin = kDefaultIgnitionMargin);
+                        double ignition_margin = kDefaultIgnitionMargin,
+                        double runaway_margin = kDefaultRunawayMargin);
 
 }  // namespace rxtrain
