@@ -394,6 +394,8 @@ void bench_fit(const std::filesystem::path& root) {
   fmt::print("{:>10} {:>10} {:>10} {:>10}\n", "iterations", "converged", "wall s", "CPU s");
   fmt::print("{:>10} {:>10} {:>10.3f} {:>10.3f}\n", r.iterations, r.converged ? "yes" : "no",
              t.wall, t.cpu);
+}
+
 // `rxtrain stability` on the cooled demo bed: a 100-point sensitivity scan
 // of its coolant temperature (issue 20's benchmark: under 1 s); and what
 // `run`'s runaway check (--runaway-margin, default 5 K) adds to run_checked
