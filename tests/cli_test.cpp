@@ -459,3 +459,50 @@ TEST_CASE(
   const auto help = run_rxtrain("stability --help");
   CHECK(help.out.find("licensed engineers") != std::string::npos);
 }
+
+TEST_CASE("fit: bad data, paths and bounds are located input errors writing nothing", "[cli]") {
+  const auto dir = scratch("fit-bad");
+  const std::string lab =
+      "'" + (fs::path(RXTRAIN_SOURCE_DIR) / "cases/selective-hydrogenation-lab.yaml").string() +
+      "'";
+  const std::string runs =
+      (fs::path(RXTRAIN_SOURCE_DIR) / "cases/selective-hydrogenation-lab-runs.csv").string();
+  const auto write = [&](const std::string& name, const std::string& text) {
+    std::ofstream(dir / name) << text;
+    return "'" + (dir / name).string() + "'";
+  };
+  const std::string unknown = write("unknown.csv", "feed.T,X\ndegC,-\n40,0.5\n50,0.6\n60,0.7\n");
+  const std::string typo = write("typo.csv", "feed.T,Xx\n313,0.5\n");
+  const std::string dims = write("dims.csv", "feed.T,X\n313,0.5\n320 bar,0.6\n");
+  const std::string json = " --json '" + (dir / "f.json").string() + "'";
+  const std::string free = " --free reactions.semi.rate.A,reactions.semi.rate.Ea";
+  const struct {
+    std::string args, message;
+  } bad[] = {
+      {"fit " + lab + " --data " + typo + free + json,
+       "typo.csv:1:8: error: unknown column \"Xx\""},
+      {"fit " + lab + " --data " + dims + free + json,
+       "dims.csv:3:1: error: column feed.T needs K"},
+      {"fit " + lab + " --data '" + runs + "' --free reactions.semi.rate.B" + json,
+       "did you mean \"reactions.semi.rate.A\""},
+      {"fit " + lab + " --data '" + runs + "'" + free +
+           " --bound reactions.semi.rate.Ea=50kJ/mol:60kJ/mol" + json,
+       "lies outside its bounds"},
+      {"fit " + lab + " --data '" + runs + "'" + free + " --bound reactions.over.rate.Ea=1:2" +
+           json,
+       "is bounded but not named by --free"},
+      {"fit " + lab + " --data '" + runs + "'" + free + " --sigma X=-1" + json,
+       "a standard deviation must be above 0"},
+      {"fit " + lab + " --data " + unknown + free + " --into x.yaml" + json,
+       "give --write-case OUT.yaml too"},
+  };
+  for (const auto& b : bad) {
+    const auto r = run_rxtrain(b.args);
+    INFO(b.args << "\n" << r.err);
+    CHECK(r.exit_code == 2);
+    CHECK(r.err.find(b.message) != std::string::npos);
+    CHECK_FALSE(fs::exists(dir / "f.json"));
+  }
+  const auto help = run_rxtrain("fit --help");
+  CHECK(help.out.find("licensed engineers") != std::string::npos);
+}

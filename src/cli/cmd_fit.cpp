@@ -119,10 +119,9 @@ int run_fit_command(const FitCommandOptions& o) {
   }
   if (!o.report_dir.empty()) {
     const auto figures = fit_figures(r);
-    add_report_files(
-        out, o.report_dir,
-        fit_report_html(lab.title, r, figures, provenance_of(o.case_file, RXTRAIN_VERSION)),
-        figures);
+    add_report_files(out, o.report_dir,
+                     fit_report_html(lab, r, figures, provenance_of(o.case_file, RXTRAIN_VERSION)),
+                     figures);
   }
   out.commit();
   std::fputs(fit_text(lab.title, r).c_str(), stdout);

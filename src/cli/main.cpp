@@ -81,6 +81,9 @@ constexpr TypeWord kTypeWords[] = {
     {"shards", "FILE"},
     {"--json", "FILE"},
     {"--write-case", "FILE"},
+    {"--data", "FILE"},
+    {"--into", "FILE"},
+    {"--sample-fit", "FILE"},
     {"--report", "DIR"},
 };
 

@@ -228,12 +228,12 @@ std::vector<Figure> fit_figures(const fit::FitResult& r) {
   return out;
 }
 
-std::string fit_report_html(const std::string& title, const fit::FitResult& r,
+std::string fit_report_html(const Case& lab, const fit::FitResult& r,
                             const std::vector<Figure>& figures,
                             const ReportProvenance& provenance) {
   using html::cell;
   using svg::xml_escape;
-  std::string h = html::page_begin(title + " — fit to lab runs", provenance);
+  std::string h = html::page_begin(lab.title + " — fit to lab runs", provenance);
   h += fmt::format(
       "<h2 id=\"summary\">Estimates</h2>\n<p>{} parameter(s) fitted to {} run(s), "
       "{} residual degrees of freedom; 95 % intervals from Student's t ({}).</p>\n",
@@ -272,6 +272,7 @@ std::string fit_report_html(const std::string& title, const fit::FitResult& r,
   h += "</table>\n";
   h += html::figures_section(figures);
   h += html::warnings_section(r.notes);
+  h += html::inputs_section(lab);
   h += html::page_end();
   return h;
 }

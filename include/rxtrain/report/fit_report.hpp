@@ -7,6 +7,7 @@
 #include <string>
 #include <vector>
 
+#include "rxtrain/case/case.hpp"
 #include "rxtrain/fit/fit.hpp"
 #include "rxtrain/report/figures.hpp"
 #include "rxtrain/report/html_page.hpp"
@@ -22,7 +23,7 @@ std::string fit_json_text(const fit::FitResult& r);
 // A parity plot per output (fitted against measured, the 1:1 line) and
 // the standardized residuals against each input.
 std::vector<Figure> fit_figures(const fit::FitResult& r);
-std::string fit_report_html(const std::string& title, const fit::FitResult& r,
+std::string fit_report_html(const Case& lab, const fit::FitResult& r,
                             const std::vector<Figure>& figures, const ReportProvenance& provenance);
 
 }  // namespace rxtrain
