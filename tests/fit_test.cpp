@@ -243,3 +243,59 @@ TEST_CASE("sample-fit draws have the fit's mean and covariance", "[fit]") {
   CHECK(n * (Qw.trace() - std::log(Qw.determinant()) - p) >
         gsl_cdf_chisq_Qinv(1e-4, p * (p + 1) / 2.0));
 }
+
+TEST_CASE("lack of fit: replicates expose a wrong rate law, not a right one", "[fit]") {
+  // The pure-error F test of a regression with replicated runs (Draper and
+  // Smith, Applied Regression Analysis, 3rd ed., sect. 2.1): F = (SS_lack /
+  // dof_lack) / (SS_pure / dof_pure), its p-value checked against GSL's F
+  // distribution. Runs: 8 conditions x 3 replicates, noise SD 0.005, seed 21.
+  const Lab lab;
+  const auto data = [&](bool second_order) {
+    fit::LabData d;
+    d.file = "runs.csv";
+    d.input_paths = {lab.table.find("feed.T", "t"), lab.table.find("train.L1.volume", "t")};
+    d.input_names = {"feed.T", "train.L1.volume"};
+    d.outputs = sweep::OutputSpec::parse("X", lab.c);
+    int line = 2;
+    for (double T : {400.0, 440.0})
+      for (double V : {0.02, 0.05, 0.1, 0.2})
+        for (int rep = 0; rep < 3; ++rep) {
+          const double k = kTrueK420 * std::exp(-kTrueEa / kGasConstant * (1 / T - 1 / 420.0));
+          // Second order in A with C_A0 = 1e4 mol/m3: X = Da / (1 + Da),
+          // Da = k' tau C_A0 with k' C_A0 = k.
+          const double Da = k * V / 1e-4;
+          const double x = second_order ? Da / (1 + Da) : 1 - std::exp(-Da);
+          d.inputs.push_back({T, V});
+          d.measured.push_back(
+              {x + 0.005 * sweep::standard_normal(21, static_cast<std::uint64_t>(line), 0)});
+          d.lines.push_back(line++);
+        }
+    return d;
+  };
+  for (const bool wrong : {false, true}) {
+    INFO((wrong ? "second-order data, first-order law" : "first-order data and law"));
+    const fit::LabData d = data(wrong);
+    const fit::FitResult r = fit::run_fit(lab.c, lab.table, d, free_a_ea(lab));
+    REQUIRE(r.lack_of_fit);
+    const auto& lof = *r.lack_of_fit;
+    CHECK(lof.groups == 8);
+    CHECK(lof.dof_pure == 16);
+    CHECK(lof.dof_lack == 6);  // 24 - 2 - 16
+    // The sums of squares from the runs, by hand (one output: weights 1/s
+    // cancel in F).
+    double ss_pure = 0, ss_res = 0;
+    for (std::size_t g = 0; g < 8; ++g) {
+      double mean = 0;
+      for (std::size_t j = 0; j < 3; ++j) mean += d.measured[3 * g + j][0] / 3;
+      for (std::size_t j = 0; j < 3; ++j) ss_pure += std::pow(d.measured[3 * g + j][0] - mean, 2);
+    }
+    for (const auto& run : r.runs) ss_res += std::pow(*run.residual[0], 2);
+    const double F = ((ss_res - ss_pure) / 6) / (ss_pure / 16);
+    CHECK(lof.F == Approx(F).epsilon(1e-9));
+    CHECK(lof.p_value == Approx(gsl_cdf_fdist_Q(F, 6, 16)).epsilon(1e-9));
+    if (wrong)
+      CHECK(lof.p_value < 1e-3);
+    else
+      CHECK(lof.p_value > 0.01);
+  }
+}

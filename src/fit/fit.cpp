@@ -461,8 +461,9 @@ FitResult run_fit(const Case& lab, const sweep::CasePathTable& table, const LabD
     if (lof.dof_lack > 0 && lof.ss_pure > 0) {
       lof.F = (lof.ss_lack / lof.dof_lack) / (lof.ss_pure / lof.dof_pure);
       const double d1 = lof.dof_lack, d2 = lof.dof_pure;
-      lof.p_value =
-          lof.F > 0 ? 1 - incomplete_beta(d1 / 2, d2 / 2, d1 * lof.F / (d1 * lof.F + d2)) : 1.0;
+      // The upper tail directly, I_{d2/(d2 + d1 F)}(d2/2, d1/2), which keeps
+      // its digits where 1 - CDF would cancel to 0.
+      lof.p_value = lof.F > 0 ? incomplete_beta(d2 / 2, d1 / 2, d2 / (d2 + d1 * lof.F)) : 1.0;
       out.lack_of_fit = lof;
       if (lof.p_value < 0.05)
         out.notes.push_back(
