@@ -44,6 +44,12 @@ namespace {
 thread_local long g_allocations = 0;
 }  // namespace
 
+// GCC 12 inlines these replacements into std::allocator and then takes
+// the free() for a mismatch with its builtin operator new
+// (-Wmismatched-new-delete): a false positive, since this operator new is
+// the malloc() the free() matches.
+#pragma GCC diagnostic push
+#pragma GCC diagnostic ignored "-Wmismatched-new-delete"
 void* operator new(std::size_t size) {
   ++g_allocations;
   if (void* p = std::malloc(size == 0 ? 1 : size)) return p;
@@ -51,6 +57,7 @@ void* operator new(std::size_t size) {
 }
 void operator delete(void* p) noexcept { std::free(p); }
 void operator delete(void* p, std::size_t) noexcept { std::free(p); }
+#pragma GCC diagnostic pop
 
 namespace {
 
