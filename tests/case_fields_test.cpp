@@ -384,6 +384,10 @@ TEST_CASE("every stage result field reads what the JSON writer writes", "[case-f
           for (int i = 0; i < c.mechanism.n_species(); ++i) species.push_back(i);
         }
         if (f.scope == ResultScope::Product) species = c.products;
+        if (f.scope == ResultScope::Reaction) {
+          species.clear();
+          for (int rx = 0; rx < c.mechanism.n_reactions(); ++rx) species.push_back(rx);
+        }
         for (int i : species) {
           nlohmann::json want = f.name == "over_limit"
                                     ? (js["limit"].is_null() ? nlohmann::json() : js["limit"])
@@ -394,7 +398,10 @@ TEST_CASE("every stage result field reads what the JSON writer writes", "[case-f
             pointer = "/outlet/x";
           else if (f.name != "over_limit")
             for (const auto& part : split_path(std::string(f.name))) pointer += "/" + part;
-          if (i >= 0) pointer += "/" + r.species[static_cast<std::size_t>(i)];
+          if (i >= 0)
+            pointer +=
+                "/" + (f.scope == ResultScope::Reaction ? r.reactions[static_cast<std::size_t>(i)]
+                                                        : r.species[static_cast<std::size_t>(i)]);
           const auto ptr = nlohmann::json::json_pointer(pointer);
           const std::optional<double> got = f.get(r, &s, i);
           const bool in_json = !want.is_null() && want.contains(ptr) && !want[ptr].is_null();

@@ -137,6 +137,12 @@ constexpr std::array kStage{
                         return std::nullopt;
                       return s->selectivity[static_cast<std::size_t>(k)];
                     }},
+    ResultFieldSpec{"rate", "mol/(kg*s)", R::Reaction,
+                    [](const TrainResult& r, const StageResult* s, int j) -> V {
+                      const auto rates = mean_rates(r, *s);
+                      if (!rates) return std::nullopt;
+                      return rates->at(static_cast<std::size_t>(j));
+                    }},
     ResultFieldSpec{"equilibrium.X_ad_eq", "-", R::Equilibrium,
                     [](const TrainResult&, const StageResult* s, int) -> V {
                       return s->equilibrium ? V(s->equilibrium->X_ad_eq) : std::nullopt;
@@ -160,6 +166,25 @@ constexpr std::array kStage{
 };
 
 }  // namespace
+
+std::optional<std::vector<double>> mean_rates(const TrainResult& r, const StageResult& s) {
+  if (!is_reactor(s.kind)) return std::nullopt;
+  auto xi = extents_from_flows(r.stoichiometry, s.inlet.F, s.outlet.F);
+  if (!xi) return std::nullopt;
+  for (std::size_t j = 0; j < xi->size(); ++j) {
+    const std::optional<double> per =
+        r.stoichiometry.basis.at(j) == RateBasis::Catalyst ? s.catalyst_mass : s.volume;
+    if (!per || *per <= 0) return std::nullopt;
+    (*xi)[j] /= *per;
+  }
+  return xi;
+}
+
+std::string_view result_field_unit(const ResultFieldSpec& f, const Stoichiometry& s, int index) {
+  if (f.scope != ResultScope::Reaction) return f.unit;
+  return s.basis.at(static_cast<std::size_t>(index)) == RateBasis::Catalyst ? "mol/(kg*s)"
+                                                                            : "mol/(m3*s)";
+}
 
 std::span<const ResultFieldSpec> train_result_fields() { return kTrain; }
 std::span<const ResultFieldSpec> stage_result_fields() { return kStage; }

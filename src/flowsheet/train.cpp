@@ -148,6 +148,7 @@ TrainResult TrainResult::for_case(const Case& c) {
   if (result.molar_mass.size() != result.species.size()) result.molar_mass.clear();
   result.key = c.mechanism.species()[c.key].id;
   for (const auto& rx : c.mechanism.reactions()) result.reactions.push_back(rx.id);
+  result.stoichiometry = Stoichiometry::of(c.mechanism.reactions());
   result.feed = c.feed;
   result.warnings = c.warnings;
   return result;

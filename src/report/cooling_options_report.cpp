@@ -43,19 +43,45 @@ std::string kw_or_dash(const std::optional<double>& W) {
 // How each option was found, for the notes under the table.
 std::string how_text(const CoolingOptionsResult& r, const CoolingOption& o) {
   switch (o.kind) {
-    case CoolingKind::Intercooled:
-      return fmt::format(
-          "staging's answer: each bed runs {:.0f} % of the way to its adiabatic equilibrium, or "
-          "to T_max, or to the target; coolers return the stream to bed 1's inlet ({} °C){}",
-          100 * r.approach, celsius_text(r.feed_T),
-          o.sized_like.empty() ? std::string("; coolers not sized (no exchanger of the case "
-                                             "gives U and a utility)")
+    case CoolingKind::Intercooled: {
+      const std::string sizing =
+          o.sized_like.empty() ? std::string(
+                                     "; coolers not sized (no exchanger of the case gives U and a "
+                                     "utility)")
           : o.utility_cross
-              ? fmt::format("; coolers not sized: the utility of exchanger {} crosses a "
-                            "cooler's temperatures",
-                            o.sized_like)
-              : fmt::format("; area: the coolers' with exchanger {}'s U and utility",
-                            o.sized_like));
+              ? fmt::format(
+                    "; coolers not sized: the utility of exchanger {} crosses a "
+                    "cooler's temperatures",
+                    o.sized_like)
+              : fmt::format("; area: the coolers' with exchanger {}'s U and utility", o.sized_like);
+      const std::string staging_text = fmt::format(
+          "each bed runs {:.0f} % of the way to its adiabatic equilibrium, or to T_max, or to the "
+          "target, and coolers return the stream to bed 1's inlet ({} °C)",
+          100 * r.approach, celsius_text(r.feed_T));
+      if (o.optimized) {
+        const double policy = o.staging_total.value_or(0.0);
+        const double now = o.catalyst_mass.value_or(o.volume.value_or(0.0));
+        double bed1_T = r.feed_T;
+        for (const auto& s : o.train.stages)
+          if (is_reactor(s.kind)) {
+            bed1_T = s.inlet.T;
+            break;
+          }
+        return fmt::format(
+            "{} beds, as staging's policy needs ({} {}: {}); here each bed's inlet temperature "
+            "and conversion are chosen for the least catalyst (optimize: {} % less){}{}",
+            o.beds.value_or(0), volume_text(policy), o.catalyst_mass ? "kg" : "m3", staging_text,
+            fixed_text(policy > 0 ? 100 * (policy - now) / policy : 0.0, 1),
+            o.feed_conditioning_duty != 0
+                ? fmt::format("; the feed goes to bed 1 at {} °C ({} kW before bed 1)",
+                              celsius_text(bed1_T), fixed_text(o.feed_conditioning_duty / 1e3, 1))
+                : std::string(),
+            sizing);
+      }
+      return fmt::format(
+          "staging's answer: {}{}{}", staging_text,
+          o.optimum_note.empty() ? std::string() : "; not optimized: " + o.optimum_note, sizing);
+    }
     case CoolingKind::Quench:
       if (o.skipped) return {};
       return fmt::format(
@@ -215,6 +241,14 @@ json cooling_options_json(const CoolingOptionsResult& r) {
     x["tube_diameter"] = o.tubes && *o.tubes > 0 ? json_number(o.tube_diameter) : json(nullptr);
     x["U"] = o.tubes && *o.tubes > 0 ? json_number(o.U) : json(nullptr);
     x["volume"] = json_number(o.volume);
+    if (o.kind == CoolingKind::Intercooled) {
+      // Whether the row is optimize's layout for staging's bed count, and
+      // staging's policy total beside it.
+      x["optimized"] = o.optimized;
+      x["staging_total"] = json_number(o.staging_total);
+      x["feed_conditioning_duty"] = json_number(o.feed_conditioning_duty);
+      x["optimum_note"] = o.optimum_note.empty() ? json(nullptr) : json(o.optimum_note);
+    }
     x["path"] = path_json(o.train);
     opts.push_back(std::move(x));
   }

@@ -3,6 +3,7 @@
 #include <cmath>
 #include <optional>
 
+#include "rxtrain/analysis/result_fields.hpp"
 #include "rxtrain/base/caution.hpp"
 #include "rxtrain/base/json_number.hpp"
 
@@ -81,6 +82,7 @@ json units_json(const std::vector<std::string>& reactions) {
         "approach_X", "x", "activity", "yield", "selectivity", "effectiveness"})
     u[k] = "1";
   for (const auto& id : reactions) u["eta_" + id] = "1";
+  u["rate"] = "mol/(kg*s) for a rate per catalyst, mol/(m3*s) per volume";
   return u;
 }
 
@@ -255,6 +257,18 @@ json stage(const TrainResult& t, const StageResult& r) {
                       {"eigenvalues", eig}});
   }
   s["steady_states"] = r.kind == StageKind::Cstr ? states : json(nullptr);
+  // A reactor's mean rate of each reaction over it (its extent, read from
+  // the flows, per kg of catalyst or per m3 by the rate's basis): what a
+  // differential lab reactor measures. Null for other stages and for
+  // dependent reactions, which flows cannot tell apart.
+  if (const auto rates = mean_rates(t, r)) {
+    json m = json::object();
+    for (std::size_t j = 0; j < rates->size() && j < t.reactions.size(); ++j)
+      m[t.reactions[j]] = json_number((*rates)[j]);
+    s["rate"] = m;
+  } else {
+    s["rate"] = nullptr;
+  }
   s["profile"] = profile(ids, t.reactions, r);
   // Catalyst pellets with D_eff: each reaction's effectiveness factor over
   // the stage (null without).

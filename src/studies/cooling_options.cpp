@@ -14,6 +14,7 @@
 #include "rxtrain/stages/pfr.hpp"
 #include "rxtrain/stages/quench.hpp"
 #include "rxtrain/studies/bed_layout.hpp"
+#include "rxtrain/studies/optimize.hpp"
 
 namespace rxtrain {
 
@@ -63,27 +64,20 @@ void set_margin(const Case& c, CoolingOption& o) {
   if (c.limits.T_max && o.T_peak) o.margin_to_T_max = *c.limits.T_max - *o.T_peak;
 }
 
-// ---- 1. intercooled: staging's answer -------------------------------------
+// ---- 1. intercooled: staging's bed count, optimize's layout ---------------
 
-CoolingOption intercooled_option(const Case& c, const StagingResult& s) {
-  CoolingOption o;
-  o.kind = CoolingKind::Intercooled;
-  o.feasible = s.target_reached;
-  o.why = s.target_reached ? CoolingShortfall::None : CoolingShortfall::TargetMissed;
-  o.beds = static_cast<int>(s.beds.size());
-  o.train = s.staged_run;
-  add_reactor_totals(o.train, o);
-  double removed = 0;
-  for (const auto& x : s.coolers) removed -= x.duty;
-  o.heat_removed = removed;
-  o.conversion = s.staged_conversion;
-  // The coolers' areas, with the U and utility the case gives an exchanger.
+// The coolers' areas, with the U and utility the case gives an exchanger
+// (the first that gives both).
+void size_coolers(const Case& c, const std::vector<Interstage>& coolers, CoolingOption& o) {
+  o.sized_like.clear();
+  o.utility_cross = false;
+  o.area.reset();
   for (const auto& sp : c.train) {
     const auto* x = std::get_if<ExchangerSpec>(&sp);
     if (!x || !x->U || !x->utility) continue;
     o.sized_like = x->id;
     double area = 0;
-    for (const auto& k : s.coolers) {
+    for (const auto& k : coolers) {
       const auto size = size_exchanger(k.duty, *x->U, k.T_in, k.T_out, x->utility->T_in,
                                        x->utility->T_out, x->utility->cp);
       if (!size) {
@@ -95,8 +89,83 @@ CoolingOption intercooled_option(const Case& c, const StagingResult& s) {
     if (!o.utility_cross) o.area = area;
     break;
   }
+}
+
+double heat_removed_by(const std::vector<Interstage>& coolers) {
+  double removed = 0;
+  for (const auto& x : coolers) removed -= x.duty;
+  return removed;
+}
+
+CoolingOption intercooled_option(const Case& c, const StagingResult& s) {
+  CoolingOption o;
+  o.kind = CoolingKind::Intercooled;
+  o.feasible = s.target_reached;
+  o.why = s.target_reached ? CoolingShortfall::None : CoolingShortfall::TargetMissed;
+  o.beds = static_cast<int>(s.beds.size());
+  o.train = s.staged_run;
+  add_reactor_totals(o.train, o);
+  o.heat_removed = heat_removed_by(s.coolers);
+  o.conversion = s.staged_conversion;
+  size_coolers(c, s.coolers, o);
   set_margin(c, o);
   return o;
+}
+
+// Replaces staging's layout by optimize's for the same number of beds when
+// the optimizer applies and needs less; otherwise says why not.
+void optimize_intercooled(const Case& c, const CoolingOptionsOptions& options, CoolingOption& o) {
+  if (!o.feasible || !o.beds) return;
+  const std::optional<double> policy = o.catalyst_mass ? o.catalyst_mass : o.volume;
+  o.staging_total = policy;
+  DesignOptions d;
+  d.beds = *o.beds;
+  d.compare = false;
+  // The peak kept as clear of T_max as the cooled option's.
+  d.margin = c.limits.T_max ? kPeakClearance : 0.0;
+  d.equilibrium_views = true;  // the diagram's curve, as staging's run has it
+  d.solvers = options.staging.solvers;
+  DesignResult r;
+  try {
+    r = optimize_design(c, d);
+  } catch (const InputError& e) {
+    o.optimum_note = e.message();
+    return;
+  } catch (const SolverError& e) {
+    o.optimum_note = e.what();
+    return;
+  }
+  const double optimum =
+      r.catalyst_objective ? r.best.total_catalyst.value_or(0.0) : r.best.total_volume;
+  if (!r.best.feasible || r.check_disagrees || r.train.stages.empty()) {
+    o.optimum_note = "the optimizer found no layout it could confirm by a run of the train";
+    return;
+  }
+  if (policy && optimum >= *policy) {
+    o.optimum_note = "the optimizer found no layout needing less than staging's";
+    return;
+  }
+  o.optimized = true;
+  o.train = r.train;
+  o.catalyst_mass.reset();
+  add_reactor_totals(o.train, o);
+  // The coolers as the train ran them (the layout's own numbers come from
+  // the optimizer's quadrature, a hair from the run): the exchangers after
+  // the first bed; one before it conditions the feed.
+  std::vector<Interstage> coolers;
+  bool after_bed = false;
+  for (const auto& st : o.train.stages) {
+    if (st.kind == StageKind::Exchanger) {
+      if (after_bed)
+        coolers.push_back({st.id, st.inlet.T, st.outlet.T, st.duty});
+      else
+        o.feed_conditioning_duty += st.duty;
+    }
+    after_bed = after_bed || is_reactor(st.kind);
+  }
+  o.heat_removed = heat_removed_by(coolers);
+  size_coolers(c, coolers, o);
+  set_margin(c, o);
 }
 
 // ---- 2. quench: cold shots of fresh feed ----------------------------------
@@ -451,6 +520,7 @@ CoolingOptionsResult run_cooling_options(const Case& c, const CoolingOptionsOpti
   so.return_to = ReturnTo::Inlet;
   SunContext ctx;
   res.options.push_back(intercooled_option(c, run_staging(c, so)));
+  optimize_intercooled(c, options, res.options.back());
   res.options.push_back(quench_option(c, lc, options, ctx));
   res.options.push_back(cooled_option(c, lc, options, ctx));
   // Each option's stage warnings, named by the option (stage ids repeat

@@ -34,8 +34,43 @@ std::vector<std::string> all_names(const Case& c) {
           names.push_back(fmt::format("{}.{}.{}", id, f.name, c.mechanism.species()[p].id));
     for (const auto& f : stage_result_fields())
       if (f.scope == ResultScope::Equilibrium) names.push_back(id + "." + std::string(f.name));
+    if (std::holds_alternative<ReactorSpec>(s))
+      for (const auto& rx : c.mechanism.reactions())
+        for (const auto& f : stage_result_fields())
+          if (f.scope == ResultScope::Reaction)
+            names.push_back(fmt::format("{}.{}.{}", id, f.name, rx.id));
   }
   return names;
+}
+
+// A reactor's mean rate of one reaction: the reaction must exist and be
+// readable from flows.
+OutputColumn rate_column(const std::string& name, int stage, const std::string& rx,
+                         const ResultFieldSpec& f, const Case& c) {
+  const auto& reactions = c.mechanism.reactions();
+  int j = -1;
+  std::vector<std::string> ids;
+  for (std::size_t k = 0; k < reactions.size(); ++k) {
+    ids.push_back(reactions[k].id);
+    if (reactions[k].id == rx) j = static_cast<int>(k);
+  }
+  if (j < 0)
+    throw InputError({"--output", 0, 0},
+                     fmt::format("\"{}\": the case has no reaction \"{}\"{}", name, rx,
+                                 suggest_nearest(rx, ids, "its reactions", 40)));
+  if (!std::holds_alternative<ReactorSpec>(c.train.at(static_cast<std::size_t>(stage))))
+    throw InputError({"--output", 0, 0},
+                     fmt::format("\"{}\": {} is not a reactor; a rate is a reactor's output", name,
+                                 stage_id(c.train.at(static_cast<std::size_t>(stage)))));
+  const Stoichiometry st = Stoichiometry::of(reactions);
+  if (!st.independent())
+    throw InputError({"--output", 0, 0},
+                     fmt::format("\"{}\": the case's reactions are not independent (one's "
+                                 "coefficients are a combination of the others'), so no "
+                                 "measurement of flows can tell their rates apart; expected "
+                                 "a case whose reactions are independent",
+                                 name));
+  return {name, stage, std::string(f.name), j, &f, std::string(result_field_unit(f, st, j))};
 }
 
 OutputColumn column(const std::string& name, const Case& c) {
@@ -45,7 +80,7 @@ OutputColumn column(const std::string& name, const Case& c) {
                                  suggest_nearest(name, all_names(c), "valid names", 40)));
   };
   for (const auto& f : train_result_fields())
-    if (name == f.name) return {name, -1, name, -1, &f};
+    if (name == f.name) return {name, -1, name, -1, &f, std::string(f.unit)};
   const auto dot = name.find('.');
   if (dot == std::string::npos) return fail();
   const std::string id = name.substr(0, dot), field = name.substr(dot + 1);
@@ -59,12 +94,15 @@ OutputColumn column(const std::string& name, const Case& c) {
                                  "T_max names only the catalyst's limit)",
                                  name, id));
   for (const auto& f : stage_result_fields()) {
-    if (f.scope != ResultScope::Flow && f.scope != ResultScope::Product) {
-      if (field == f.name) return {name, stage, field, -1, &f};
+    if (f.scope != ResultScope::Flow && f.scope != ResultScope::Product &&
+        f.scope != ResultScope::Reaction) {
+      if (field == f.name) return {name, stage, field, -1, &f, std::string(f.unit)};
       continue;
     }
     const std::string pre = std::string(f.name) + ".";
     if (field.rfind(pre, 0) != 0) continue;
+    if (f.scope == ResultScope::Reaction)
+      return rate_column(name, stage, field.substr(pre.size()), f, c);
     const int i = c.mechanism.index_of(field.substr(pre.size()));
     if (i < 0) continue;
     if (f.scope == ResultScope::Product &&
@@ -73,7 +111,7 @@ OutputColumn column(const std::string& name, const Case& c) {
                        fmt::format("\"{}\": {} is not one of the case's wanted products; "
                                    "expected a species the case lists under products:",
                                    name, field.substr(pre.size())));
-    return {name, stage, std::string(f.name), i, &f};
+    return {name, stage, std::string(f.name), i, &f, std::string(f.unit)};
   }
   return fail();
 }
@@ -142,7 +180,7 @@ std::vector<std::string> OutputSpec::names() const {
 
 std::vector<std::string> OutputSpec::units() const {
   std::vector<std::string> out;
-  for (const auto& col : columns_) out.emplace_back(col.spec->unit);
+  for (const auto& col : columns_) out.push_back(col.unit);
   return out;
 }
 

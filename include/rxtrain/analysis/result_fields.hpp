@@ -13,7 +13,10 @@
 // without limits), inlet.flows.SP, outlet.flows.SP, x_out.SP (outlet mole
 // fraction), yield.P and selectivity.P (P a wanted product, cumulative from
 // the feed; flowsheet/yields.hpp), equilibrium.X_ad_eq | T_ad_eq | X_eq_out | approach_X |
-// approach_T.
+// approach_T, rate.RX (the mean rate of reaction RX over the stage: its
+// extent, read from the stage's flows (kinetics/extents.hpp), per kg of
+// catalyst or per m3 by the rate law's basis — a differential reactor's
+// measured rate; empty for a set of dependent reactions).
 #pragma once
 
 #include <optional>
@@ -30,6 +33,7 @@ enum class ResultScope {
   Flow,         // a species' flow at a stage's inlet or outlet (name + ".SP")
   Equilibrium,  // the stage's equilibrium record (needs the equilibrium views)
   Product,      // a wanted product's yield or selectivity (name + ".P", P in `products:`)
+  Reaction,     // a reaction's mean rate over the stage (name + ".RX"; index: the reaction)
 };
 
 struct ResultFieldSpec {
@@ -41,6 +45,15 @@ struct ResultFieldSpec {
   // train's own fields; `species` indexes flows.
   std::optional<double> (*get)(const TrainResult& r, const StageResult* stage, int species);
 };
+
+// A reactor's mean rate of each reaction over it, in the order of
+// r.reactions (mol/(kg*s) or mol/(m3*s) by each rate law's basis); nullopt
+// for an exchanger or quench, or when the reactions are dependent.
+std::optional<std::vector<double>> mean_rates(const TrainResult& r, const StageResult& s);
+
+// The SI unit of a field at an index: the spec's own, but for a
+// reaction's rate, mol/(kg*s) or mol/(m3*s) by its basis.
+std::string_view result_field_unit(const ResultFieldSpec& f, const Stoichiometry& s, int index);
 
 // X, T_out.
 std::span<const ResultFieldSpec> train_result_fields();

@@ -8,6 +8,7 @@
 #include <vector>
 
 #include "rxtrain/case/case.hpp"
+#include "rxtrain/kinetics/extents.hpp"
 #include "rxtrain/stages/cstr.hpp"
 #include "rxtrain/stages/levenspiel.hpp"
 #include "rxtrain/stages/limit_check.hpp"
@@ -57,6 +58,9 @@ struct TrainResult {
   std::vector<std::string> species;    // ids, column order of every output
   std::string key;                     // key species id
   std::vector<std::string> reactions;  // ids, order of each stage's effectiveness
+  // The reactions' coefficients and rate bases: each stage's extents and
+  // mean rates are read from its flows with them (kinetics/extents.hpp).
+  Stoichiometry stoichiometry;
   // kg/mol in species order, for mass flows; empty when a species has none
   // (a gas case may omit them).
   std::vector<double> molar_mass;

@@ -3,10 +3,14 @@
 // heat of an exothermic reaction out, each with the least catalyst its
 // policy allows. SI units throughout (T in K, masses kg, duties W, areas m2).
 //
-//  1. Intercooled: adiabatic beds with exchangers returning the stream to
-//     bed 1's inlet temperature: run_staging's staged answer (staging.hpp),
-//     as it is; its coolers sized (models/heat_exchange.hpp) with the U and
-//     utility of the case's first exchanger that gives them.
+//  1. Intercooled: adiabatic beds with intercoolers. run_staging's staged
+//     answer (staging.hpp) gives the number of beds; optimize_design
+//     (optimize.hpp) then places that many beds' inlet temperatures and
+//     conversions for the least catalyst, and the row is that optimum when
+//     it applies (one reversible reaction, T_in_min and T_max) and needs
+//     less than staging's policy — else staging's answer, with why. Its
+//     coolers are sized (models/heat_exchange.hpp) with the U and utility
+//     of the case's first exchanger that gives them.
 //  2. Quench: adiabatic beds with cold shots of fresh feed available at
 //     quench_T. Each bed runs as staging's beds do (to `approach` of the way
 //     to its X_ad_eq, or to T_max, or to the target); each shot is the share
@@ -116,6 +120,14 @@ struct CoolingOption {
   // its utility crosses a cooler's temperatures (no area then).
   std::string sized_like;
   bool utility_cross = false;
+  // Intercooled: the row is optimize's optimum for `beds` beds; staging's
+  // policy answer for the same beds beside it (kg, or m3 for per-volume
+  // rates); the heat the optimum's feed exchanger adds (W; 0 when bed 1
+  // takes the feed as it is). Not optimized: why (optimum_note).
+  bool optimized = false;
+  std::optional<double> staging_total;
+  double feed_conditioning_duty = 0;
+  std::string optimum_note;
   // Cooled: the coolant range scanned and the trials run.
   double coolant_T_lo = 0, coolant_T_hi = 0;
   int trials = 0;

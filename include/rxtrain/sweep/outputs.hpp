@@ -4,7 +4,8 @@
 //                           table of result fields names it
 //                           (analysis/result_fields.hpp): volume, T_max,
 //                           outlet.T, inlet.flows.SP, over_limit,
-//                           equilibrium.approach_T, ...
+//                           equilibrium.approach_T, rate.RX (a reactor's
+//                           mean rate of reaction RX), ...
 // Values and units are SI (GHSV, WHSV, LHSV in 1/h, as in the JSON), the
 // units those of the table.
 #pragma once
@@ -23,8 +24,9 @@ struct OutputColumn {
   std::string name;
   int stage = -1;                         // -1: the train (X, T_out)
   std::string field;                      // JSON field name within the stage, dotted
-  int species = -1;                       // for *.flows.SP
+  int species = -1;                       // *.flows.SP: the species; rate.RX: the reaction
   const ResultFieldSpec* spec = nullptr;  // its row of the result table
+  std::string unit;                       // SI (result_field_unit)
 };
 
 class OutputSpec {
