@@ -65,6 +65,10 @@ Quantity column_quantity(const std::string& name, const std::string& si_unit) {
   if (field.rfind("x_out.", 0) == 0) return {"Outlet " + field.substr(6) + of, "ppm", 1e6};
   if (field.rfind("yield.", 0) == 0) return {"Yield of " + field.substr(6) + of, "–"};
   if (field.rfind("selectivity.", 0) == 0) return {"Selectivity to " + field.substr(12) + of, "–"};
+  if (field.rfind("rate.", 0) == 0)
+    return {"Mean rate of " + field.substr(5) + in, si_unit == "mol/(kg*s)"   ? "mol/(kg·s)"
+                                                    : si_unit == "mol/(m3*s)" ? "mol/(m³·s)"
+                                                                              : si_unit};
   if (field == "equilibrium.X_ad_eq") return {"Adiabatic equilibrium conversion" + of, "–"};
   if (field == "equilibrium.approach_X") return {"X_eq(T_out) − X" + of, "–"};
   // Anything else: its name, and its SI unit (absolute temperatures in °C).
