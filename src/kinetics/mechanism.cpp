@@ -215,11 +215,16 @@ void Mechanism::activity_scale(int j, double T, double& ln_s, double& dln_s_dT) 
 }
 
 Mechanism::RateLawValue Mechanism::evaluate(int j, double T, const double* d, double* g) const {
+  return evaluate(j, T, d, g, true);
+}
+
+Mechanism::RateLawValue Mechanism::evaluate(int j, double T, const double* d, double* g,
+                                            bool with_dT) const {
   const auto& rx = reactions_[j];
   const auto& parts = compiled_[j].parts;
   RateLawValue v;
   v.k = rate_constant(j, T);
-  v.dk_dT = v.k * rx.rate.Ea / (kGasConstant * T * T);  // same for both Arrhenius forms
+  if (with_dT) v.dk_dT = v.k * rx.rate.Ea / (kGasConstant * T * T);  // both Arrhenius forms
   double fwd = 1, rev = 1;
   for (const auto& p : parts) {
     fwd *= safe_pow(d[p.i], p.forward_exp);
@@ -229,7 +234,7 @@ Mechanism::RateLawValue Mechanism::evaluate(int j, double T, const double* d, do
     double ln_s, dln_s;
     activity_scale(j, T, ln_s, dln_s);
     v.c_rev = std::exp(compiled_[j].dnu * ln_s - ln_K(j, T));
-    v.dc_rev_dT = v.c_rev * (compiled_[j].dnu * dln_s - dln_K_dT(j, T));
+    if (with_dT) v.dc_rev_dT = v.c_rev * (compiled_[j].dnu * dln_s - dln_K_dT(j, T));
     v.rev = rev;
   }
   v.value = fwd - v.c_rev * v.rev;
@@ -301,7 +306,9 @@ void Mechanism::rates(double T, double P, const double* F, double* r) const {
   for (int j = 0; j < nr; ++j) {
     const Scale& sc = scale_for(reactions_[j].rate.driving, T, P, F, scales);
     for (const auto& p : compiled_[j].parts) d[p.i] = std::max(F[p.i], 0.0) * sc.phi;
-    r[j] = evaluate(j, T, d).rate();
+    // The rates alone: the T derivatives (a second thermo evaluation
+    // for K(T)) are left out, the value is the same arithmetic.
+    r[j] = evaluate(j, T, d, nullptr, false).rate();
   }
 }
 
