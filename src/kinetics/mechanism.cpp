@@ -118,20 +118,36 @@ double Mechanism::volumetric_flow(double T, double P, const double* F) const {
   return v;
 }
 
-double Mechanism::cp(int i, double T) const {
+namespace {
+
+void check_temperature(double T) {
   if (!(T > 0) || !std::isfinite(T))
     throw std::domain_error("thermo: temperature must be finite and positive (got " +
                             std::to_string(T) + " K)");
-  const CpPiece* p = &cp_pieces_[cp_start_[i]];
-  const CpPiece* last = &cp_pieces_[cp_start_[i + 1] - 1];
+}
+
+// cp at T (T2 = T * T) from one species' pieces p .. last (last included).
+double cp_of_pieces(const CpPiece* p, const CpPiece* last, double T, double T2) {
   while (p != last && !(T < p->T_to)) ++p;
   const auto& c = p->c;
-  return c[0] + T * (c[1] + T * (c[2] + T * (c[3] + T * c[4]))) + c[5] / (T * T);
+  return c[0] + T * (c[1] + T * (c[2] + T * (c[3] + T * c[4]))) + c[5] / T2;
+}
+
+}  // namespace
+
+double Mechanism::cp(int i, double T) const {
+  check_temperature(T);
+  return cp_of_pieces(&cp_pieces_[cp_start_[i]], &cp_pieces_[cp_start_[i + 1] - 1], T, T * T);
 }
 
 double Mechanism::heat_capacity_flow(double T, const double* F) const {
+  // The right-hand side calls this once per evaluation: T is checked and
+  // squared once for every species.
+  check_temperature(T);
+  const double T2 = T * T;
   double c = 0;
-  for (int i = 0; i < n_species(); ++i) c += F[i] * cp(i, T);
+  for (int i = 0; i < n_species(); ++i)
+    c += F[i] * cp_of_pieces(&cp_pieces_[cp_start_[i]], &cp_pieces_[cp_start_[i + 1] - 1], T, T2);
   return c;
 }
 
