@@ -1,8 +1,8 @@
 // Speed benchmark (docs/performance.md): `rxtrain_bench [OPTIONS] [CASE...]`.
 //   --seconds S   time budget per measurement (default 1)
 //   --runs N      runs of the threaded sweep (default 2000)
-//   --only PART   one of startup, cases, tolerances, synthetic, threads, sweep, stability,
-//                 runaway, fit
+//   --only PART   one of startup, cases, views, tolerances, synthetic, threads, sweep,
+//                 stability, runaway, fit
 // Cases default to cases/*.yaml and tools/bench-cases/*.yaml. Each figure
 // is the median of ten batches, each calibrated to about S/10 seconds,
 // with the solver's work counts of one run. Plain timed loops; nothing
@@ -31,6 +31,7 @@
 #include "rxtrain/fit/fit.hpp"
 #include "rxtrain/fit/lab_data.hpp"
 #include "rxtrain/flowsheet/train.hpp"
+#include "rxtrain/models/equilibrium.hpp"
 #include "rxtrain/sweep/outputs.hpp"
 #include "rxtrain/sweep/study.hpp"
 #include "rxtrain/sweep/sweep.hpp"
@@ -187,6 +188,65 @@ void bench_cases(const std::vector<std::string>& files, double budget) {
       fmt::print("{:<36} failed: {}\n", name, e.what());
     }
   }
+}
+
+// What `run`'s views add to the train, piece by piece, CPU time per run
+// with a reused workspace: the train as `run` computes it (full profiles),
+// the table's views (each reactor's equilibrium record and reach), every
+// view (as `run --json`), and from those and two direct timings the
+// records, the reaches, the Levenspiel curves and the equilibrium curve
+// with the maximum-rate locus.
+void bench_views(const std::vector<std::string>& files, double budget) {
+  fmt::print(
+      "\n== run's views, CPU time per run (reused workspace; train: with full profiles, as "
+      "`rxtrain run` runs it)\n");
+  fmt::print("{:<36} {:>9} {:>9} {:>9} {:>9} {:>9} {:>9} {:>9} {:>7}\n", "case", "train", "table",
+             "views", "records", "reaches", "levensp.", "curves", "views/train");
+  const UnitParser units;
+  for (const auto& f : files) {
+    const std::string name = std::filesystem::path(f).filename().string();
+    try {
+      const Case c = load_case(f, units);
+      TrainWorkspace ws;
+      TrainOptions train;
+      train.equilibrium_views = false;
+      TrainOptions table;
+      table.view_curves = false;
+      const TrainOptions all;
+      const TrainResult r = run_train(c, train, ws);
+      const Timing t_train = median_seconds([&] { (void)run_train(c, train, ws); }, budget);
+      const Timing t_table = median_seconds([&] { (void)run_train(c, table, ws); }, budget);
+      const Timing t_all = median_seconds([&] { (void)run_train(c, all, ws); }, budget);
+      const Mechanism& mech = c.mechanism;
+      const Timing t_lev = median_seconds(
+          [&] { (void)levenspiel_curves(mech, c.key, c.feed.F[c.key], r.stages); }, budget);
+      // The records as add_equilibrium_views computes them (adiabatic and
+      // isothermal reactors with a reversible reaction).
+      const Timing t_rec = median_seconds(
+          [&] {
+            if (!has_reversible_reaction(mech)) return;
+            for (const auto& s : r.stages)
+              if (is_reactor(s.kind) && s.heat && !s.coolant)
+                (void)equilibrium_record(mech, s.inlet, s.outlet, *s.heat,
+                                         ConversionBasis{c.key, s.F_key_fed}, {});
+          },
+          budget);
+      const double us = 1e6;
+      const double views = t_all.cpu - t_train.cpu;
+      fmt::print(
+          "{:<36} {:>6.1f} us {:>6.1f} us {:>6.1f} us {:>6.1f} us {:>6.1f} us {:>6.1f} us "
+          "{:>6.1f} us {:>9.2f}\n",
+          name, t_train.cpu * us, t_table.cpu * us, t_all.cpu * us, t_rec.cpu * us,
+          (t_table.cpu - t_train.cpu - t_rec.cpu) * us, t_lev.cpu * us,
+          (t_all.cpu - t_table.cpu - t_lev.cpu) * us, views / t_train.cpu);
+    } catch (const std::exception& e) {
+      fmt::print("{:<36} failed: {}\n", name, e.what());
+    }
+  }
+  fmt::print(
+      "(views: the whole `run --json` computation; records and levensp. timed alone; reaches = "
+      "table - train - records; curves = views - table - levensp.; views/train = (views - "
+      "train) / train)\n");
 }
 
 // Cost against accuracy for one case: the overall conversion at each rtol
@@ -471,6 +531,7 @@ int main(int argc, char** argv) {
              std::thread::hardware_concurrency(), load_average());
   if (only.empty() || only == "startup") bench_startup(reference, budget);
   if (only.empty() || only == "cases") bench_cases(files, budget);
+  if (only.empty() || only == "views") bench_views(files, budget);
   if (only.empty() || only == "tolerances") bench_tolerances(reference, budget);
   if (only.empty() || only == "synthetic") bench_synthetic(budget);
   if (only.empty() || only == "threads") bench_threads(reference, runs);

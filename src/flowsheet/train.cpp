@@ -70,9 +70,9 @@ CstrOptions tank_options(const TrainOptions& options) { return options.solvers.t
 // What each reactor stage can reach at any size (StageReach), and what a
 // designer must be told about it: a sized bed whose conversion peaks
 // inside it, a rated bed already past its peak.
-void add_reaches(const Case& c, const TrainOptions& options, TrainResult& result) {
+void add_reaches(const Case& c, const TrainOptions& options, TrainResult& result,
+                 TrainWorkspace& ws) {
   const Mechanism& mech = c.mechanism;
-  TrainWorkspace ws;
   for (auto& r : result.stages) {
     // A cooled stage's path lies on no adiabatic or isothermal line that
     // these views are drawn on.
@@ -192,7 +192,7 @@ TrainResult run_train(const Case& c, const TrainOptions& options, TrainWorkspace
   result.conversion = fed.conversion(stream);
   result.limit_check = check_limits(c, options, result.stages);
   add_product_yields(c, result);
-  if (options.equilibrium_views) add_equilibrium_views(c, options, result);
+  if (options.equilibrium_views) add_equilibrium_views(c, options, result, ws);
   return result;
 }
 
@@ -216,8 +216,14 @@ void set_warm_starts(const TrainResult& result, std::vector<CstrWarmStart>& warm
 }
 
 void add_equilibrium_views(const Case& c, const TrainOptions& options, TrainResult& result) {
+  TrainWorkspace ws;
+  add_equilibrium_views(c, options, result, ws);
+}
+
+void add_equilibrium_views(const Case& c, const TrainOptions& options, TrainResult& result,
+                           TrainWorkspace& ws) {
   add_equilibrium_records(c, options, result);
-  add_reaches(c, options, result);
+  add_reaches(c, options, result, ws);
   if (options.view_curves)
     result.levenspiel = levenspiel_curves(c.mechanism, c.key, c.feed.F[c.key], result.stages);
 }

@@ -118,20 +118,36 @@ double Mechanism::volumetric_flow(double T, double P, const double* F) const {
   return v;
 }
 
-double Mechanism::cp(int i, double T) const {
+namespace {
+
+void check_temperature(double T) {
   if (!(T > 0) || !std::isfinite(T))
     throw std::domain_error("thermo: temperature must be finite and positive (got " +
                             std::to_string(T) + " K)");
-  const CpPiece* p = &cp_pieces_[cp_start_[i]];
-  const CpPiece* last = &cp_pieces_[cp_start_[i + 1] - 1];
+}
+
+// cp at T (T2 = T * T) from one species' pieces p .. last (last included).
+double cp_of_pieces(const CpPiece* p, const CpPiece* last, double T, double T2) {
   while (p != last && !(T < p->T_to)) ++p;
   const auto& c = p->c;
-  return c[0] + T * (c[1] + T * (c[2] + T * (c[3] + T * c[4]))) + c[5] / (T * T);
+  return c[0] + T * (c[1] + T * (c[2] + T * (c[3] + T * c[4]))) + c[5] / T2;
+}
+
+}  // namespace
+
+double Mechanism::cp(int i, double T) const {
+  check_temperature(T);
+  return cp_of_pieces(&cp_pieces_[cp_start_[i]], &cp_pieces_[cp_start_[i + 1] - 1], T, T * T);
 }
 
 double Mechanism::heat_capacity_flow(double T, const double* F) const {
+  // The right-hand side calls this once per evaluation: T is checked and
+  // squared once for every species.
+  check_temperature(T);
+  const double T2 = T * T;
   double c = 0;
-  for (int i = 0; i < n_species(); ++i) c += F[i] * cp(i, T);
+  for (int i = 0; i < n_species(); ++i)
+    c += F[i] * cp_of_pieces(&cp_pieces_[cp_start_[i]], &cp_pieces_[cp_start_[i + 1] - 1], T, T2);
   return c;
 }
 
@@ -215,11 +231,16 @@ void Mechanism::activity_scale(int j, double T, double& ln_s, double& dln_s_dT) 
 }
 
 Mechanism::RateLawValue Mechanism::evaluate(int j, double T, const double* d, double* g) const {
+  return evaluate(j, T, d, g, true);
+}
+
+Mechanism::RateLawValue Mechanism::evaluate(int j, double T, const double* d, double* g,
+                                            bool with_dT) const {
   const auto& rx = reactions_[j];
   const auto& parts = compiled_[j].parts;
   RateLawValue v;
   v.k = rate_constant(j, T);
-  v.dk_dT = v.k * rx.rate.Ea / (kGasConstant * T * T);  // same for both Arrhenius forms
+  if (with_dT) v.dk_dT = v.k * rx.rate.Ea / (kGasConstant * T * T);  // both Arrhenius forms
   double fwd = 1, rev = 1;
   for (const auto& p : parts) {
     fwd *= safe_pow(d[p.i], p.forward_exp);
@@ -229,7 +250,7 @@ Mechanism::RateLawValue Mechanism::evaluate(int j, double T, const double* d, do
     double ln_s, dln_s;
     activity_scale(j, T, ln_s, dln_s);
     v.c_rev = std::exp(compiled_[j].dnu * ln_s - ln_K(j, T));
-    v.dc_rev_dT = v.c_rev * (compiled_[j].dnu * dln_s - dln_K_dT(j, T));
+    if (with_dT) v.dc_rev_dT = v.c_rev * (compiled_[j].dnu * dln_s - dln_K_dT(j, T));
     v.rev = rev;
   }
   v.value = fwd - v.c_rev * v.rev;
@@ -301,7 +322,9 @@ void Mechanism::rates(double T, double P, const double* F, double* r) const {
   for (int j = 0; j < nr; ++j) {
     const Scale& sc = scale_for(reactions_[j].rate.driving, T, P, F, scales);
     for (const auto& p : compiled_[j].parts) d[p.i] = std::max(F[p.i], 0.0) * sc.phi;
-    r[j] = evaluate(j, T, d).rate();
+    // The rates alone: the T derivatives (a second thermo evaluation
+    // for K(T)) are left out, the value is the same arithmetic.
+    r[j] = evaluate(j, T, d, nullptr, false).rate();
   }
 }
 

@@ -145,6 +145,9 @@ class EquilibriumSystem {
 
   int size() const { return static_cast<int>(active_.size()); }
   const std::vector<int>& active() const { return active_; }
+  // The same reactions at the same T and P from other flows F0 (their
+  // ln K kept: no second thermo evaluation).
+  void set_origin(const std::vector<double>& F0) { F0_ = F0; }
   const Eigen::MatrixXd& nu() const { return nu_; }
 
   void flows(const Eigen::VectorXd& xi, std::vector<double>& F) const {
@@ -172,7 +175,8 @@ class EquilibriumSystem {
     }
     if (J) {
       // d ln phi / d xi_k: gas -dnu_k / Ft; liquid -(sum_i nu_ik w_i) / v.
-      Eigen::VectorXd dlp(m);
+      Eigen::VectorXd& dlp = dlp_;
+      dlp.resize(m);
       if (mech_.phase() == Phase::Gas) {
         double Ft = 0;
         for (double f : F) Ft += f;
@@ -206,6 +210,7 @@ class EquilibriumSystem {
   Eigen::MatrixXd nu_;  // n_species x active
   std::vector<double> dnu_, ln_K_, w_;
   std::vector<bool> participant_;
+  mutable Eigen::VectorXd dlp_;  // residual()'s work space
 };
 
 // Feasible interval [lo, hi] of one extent from flows F with the others
@@ -285,6 +290,13 @@ void split_active(const Mechanism& mech, const std::vector<double>& F0, std::vec
 
 void check_independent(const Mechanism& mech, const std::vector<int>& active) {
   const int n = mech.n_species();
+  // One reaction (every solve of a one-reaction case): independent unless
+  // its column is zero, the rank the LU below would find, without its
+  // allocations.
+  if (active.size() == 1) {
+    const auto& rx = mech.reactions()[active[0]];
+    if (std::any_of(rx.nu.begin(), rx.nu.end(), [](double c) { return c != 0; })) return;
+  }
   Eigen::MatrixXd N(n, 0);
   for (std::size_t k = 0; k < active.size(); ++k) {
     N.conservativeResize(n, N.cols() + 1);
@@ -326,7 +338,7 @@ std::vector<double> apply_fixed_extents(const Mechanism& mech, const Stream& inl
   return F;
 }
 
-void check_inlet(const Mechanism& mech, const Stream& inlet, double T) {
+void check_inlet_flows(const Mechanism& mech, const Stream& inlet) {
   if (static_cast<int>(inlet.F.size()) != mech.n_species())
     throw std::invalid_argument("equilibrium: inlet flows not sized to the species");
   double Ft = 0;
@@ -336,10 +348,19 @@ void check_inlet(const Mechanism& mech, const Stream& inlet, double T) {
     Ft += f;
   }
   if (!(Ft > 0)) throw std::invalid_argument("equilibrium: inlet has no flow");
+}
+
+// T and the inlet's P.
+void check_conditions(const Mechanism& mech, const Stream& inlet, double T) {
   if (!(T > 0) || !std::isfinite(T))
     throw std::invalid_argument("equilibrium: temperature must be > 0 K");
   if (mech.phase() == Phase::Gas && (!(inlet.P > 0) || !std::isfinite(inlet.P)))
     throw std::invalid_argument("equilibrium: pressure must be > 0 Pa");
+}
+
+void check_inlet(const Mechanism& mech, const Stream& inlet, double T) {
+  check_inlet_flows(mech, inlet);
+  check_conditions(mech, inlet, T);
 }
 
 struct SingleResult {
@@ -362,7 +383,8 @@ SingleResult solve_single(const Mechanism& mech, const std::vector<double>& F0, 
                           int j, const EquilibriumOptions& o) {
   const int n = mech.n_species();
   const auto& nu = mech.reactions()[j].nu;
-  const EquilibriumSystem whole(mech, F0, T, P, {j});
+  EquilibriumSystem sys(mech, F0, T, P, {j});
+  const EquilibriumSystem& whole = sys;
   double lo, hi;
   extent_interval(whole.nu(), 0, F0, lo, hi);
   if (!std::isfinite(lo) || !std::isfinite(hi))
@@ -392,7 +414,8 @@ SingleResult solve_single(const Mechanism& mech, const std::vector<double>& F0, 
     if (limiting_side && Fb[i] <= 4 * kEps * F0[i]) Fb[i] = 0;
     Fb[i] = std::max(Fb[i], 0.0);
   }
-  const EquilibriumSystem near(mech, Fb, T, P, {j});
+  sys.set_origin(Fb);
+  const EquilibriumSystem& near = sys;
   // h(t) = sigma g(end + sigma t) rises from -inf at t = 0+ to
   // |g(mid)| at t = (hi - lo) / 2; dh/dt = dg/dxi.
   auto eval = [&](double t, double& h, double& dh) {
@@ -448,26 +471,46 @@ double max_abs_residual(const EquilibriumSystem& sys, const std::vector<double>&
   return g.lpNorm<Eigen::Infinity>();
 }
 
-EquilibriumState solve_equilibrium_impl(const Mechanism& mech, const Stream& inlet, double T,
-                                        const ConversionBasis& basis,
-                                        const std::vector<double>& fixed,
-                                        const EquilibriumOptions& o) {
-  check_inlet(mech, inlet, T);
+// What every equilibrium from one inlet with the same fixed extents
+// shares, whatever T: the flows the reversible reactions start from, which
+// of them can run, and the checks. A curve or a temperature search
+// prepares it once and solves at each T.
+struct PreparedEquilibrium {
+  std::vector<double> F0;       // the inlet with the irreversible extents applied
+  double Fscale = 0;            // sum of F0
+  std::vector<double> extents;  // per reaction: the irreversible ones as given, else 0
+  std::vector<int> active, frozen;
+};
+
+PreparedEquilibrium prepare_equilibrium(const Mechanism& mech, const Stream& inlet,
+                                        const std::vector<double>& fixed) {
+  check_inlet_flows(mech, inlet);
   if (!has_reversible_reaction(mech))
     throw std::invalid_argument("equilibrium: the mechanism has no reversible reaction");
-  const int n = mech.n_species();
-  const std::vector<double> F0 = apply_fixed_extents(mech, inlet, fixed);
-  double Fscale = 0;
-  for (double f : F0) Fscale += f;
-
-  EquilibriumState st;
-  st.extents.assign(mech.n_reactions(), 0.0);
+  PreparedEquilibrium p;
+  p.F0 = apply_fixed_extents(mech, inlet, fixed);
+  for (double f : p.F0) p.Fscale += f;
+  p.extents.assign(mech.n_reactions(), 0.0);
   if (!fixed.empty())
     for (int j = 0; j < mech.n_reactions(); ++j)
-      if (!mech.reactions()[j].reversible) st.extents[j] = fixed[j];
-  std::vector<int> active;
-  split_active(mech, F0, active, st.frozen);
-  check_independent(mech, active);
+      if (!mech.reactions()[j].reversible) p.extents[j] = fixed[j];
+  split_active(mech, p.F0, p.active, p.frozen);
+  check_independent(mech, p.active);
+  return p;
+}
+
+EquilibriumState solve_prepared(const Mechanism& mech, const Stream& inlet, double T,
+                                const ConversionBasis& basis, const PreparedEquilibrium& prep,
+                                const EquilibriumOptions& o) {
+  check_conditions(mech, inlet, T);
+  const int n = mech.n_species();
+  const std::vector<double>& F0 = prep.F0;
+  const double Fscale = prep.Fscale;
+  const std::vector<int>& active = prep.active;
+
+  EquilibriumState st;
+  st.extents = prep.extents;
+  st.frozen = prep.frozen;
 
   std::vector<double> F = F0;
   const int m = static_cast<int>(active.size());
@@ -537,9 +580,17 @@ EquilibriumState solve_equilibrium_impl(const Mechanism& mech, const Stream& inl
     }
   }
   for (double& f : F) f = std::max(f, 0.0);  // round-off at a limiting reactant
-  st.stream = Stream{T, inlet.P, F};
+  st.stream = Stream{T, inlet.P, std::move(F)};
   st.X = basis.conversion(st.stream);
   return st;
+}
+
+EquilibriumState solve_equilibrium_impl(const Mechanism& mech, const Stream& inlet, double T,
+                                        const ConversionBasis& basis,
+                                        const std::vector<double>& fixed,
+                                        const EquilibriumOptions& o) {
+  check_inlet(mech, inlet, T);
+  return solve_prepared(mech, inlet, T, basis, prepare_equilibrium(mech, inlet, fixed), o);
 }
 
 void check_options(const EquilibriumOptions& o) {
@@ -642,8 +693,9 @@ std::vector<EquilibriumCurvePoint> equilibrium_curve(const Mechanism& mech, cons
                                                      const EquilibriumOptions& options) {
   check_options(options);
   std::vector<EquilibriumCurvePoint> out;
-  for (double T : temperature_grid(range))
-    out.push_back({T, solve_equilibrium_impl(mech, inlet, T, basis, fixed_extents, options).X});
+  const std::vector<double> grid = temperature_grid(range);
+  const PreparedEquilibrium prep = prepare_equilibrium(mech, inlet, fixed_extents);
+  for (double T : grid) out.push_back({T, solve_prepared(mech, inlet, T, basis, prep, options).X});
   return out;
 }
 
@@ -656,9 +708,8 @@ std::optional<double> equilibrium_temperature(const Mechanism& mech, const Strea
                                               const EquilibriumOptions& options) {
   check_options(options);
   if (!std::isfinite(X)) throw std::invalid_argument("equilibrium_temperature: X not finite");
-  auto f = [&](double T) {
-    return solve_equilibrium_impl(mech, inlet, T, basis, fixed_extents, options).X - X;
-  };
+  const PreparedEquilibrium prep = prepare_equilibrium(mech, inlet, fixed_extents);
+  auto f = [&](double T) { return solve_prepared(mech, inlet, T, basis, prep, options).X - X; };
   return root_outward(f, T_start.value_or(inlet.T), options, "equilibrium temperature");
 }
 
@@ -674,14 +725,14 @@ std::optional<EquilibriumState> adiabatic_equilibrium(const Mechanism& mech, con
   if (heat == HeatMode::Isothermal)
     return solve_equilibrium_impl(mech, inlet, inlet.T, basis, fixed_extents, options);
 
+  const PreparedEquilibrium prep = prepare_equilibrium(mech, inlet, fixed_extents);
   const double* Fin = inlet.F.data();
   const double H_in = mech.sensible_enthalpy_flow(inlet.T, Fin);
   // E(T) in units of the inlet's C_p T (order one).
   const double scale =
       std::max(mech.heat_capacity_flow(inlet.T, Fin) * inlet.T, std::numeric_limits<double>::min());
   auto energy = [&](double T) {
-    const EquilibriumState st =
-        solve_equilibrium_impl(mech, inlet, T, basis, fixed_extents, options);
+    const EquilibriumState st = solve_prepared(mech, inlet, T, basis, prep, options);
     double E = mech.sensible_enthalpy_flow(T, Fin) - H_in;
     for (int j = 0; j < mech.n_reactions(); ++j)
       if (st.extents[j] != 0) E += st.extents[j] * mech.dH(j, T);
@@ -694,7 +745,7 @@ std::optional<EquilibriumState> adiabatic_equilibrium(const Mechanism& mech, con
                     "nowhere between {} and {}",
                     temperature_words(inlet.T), temperature_words(options.T_min),
                     temperature_words(options.T_max)));
-  return solve_equilibrium_impl(mech, inlet, *T, basis, fixed_extents, options);
+  return solve_prepared(mech, inlet, *T, basis, prep, options);
 }
 
 // ---- 5. adiabatic line ---------------------------------------------------------
@@ -874,8 +925,9 @@ std::optional<MaxRatePoint> max_rate_temperature(const Mechanism& mech, const St
   // locates a flat maximum only to ~sqrt(eps) relative.
   Eigen::MatrixXd dr_dF(nr, mech.n_species());
   Eigen::VectorXd dr_dT(nr);
+  Mechanism::Scratch scratch;  // one for every slope below
   auto slope = [&](double T) {
-    mech.rates_and_jacobian(T, P, F.data(), rv.data(), dr_dF, dr_dT);
+    mech.rates_and_jacobian(T, P, F.data(), rv.data(), dr_dF, dr_dT, scratch);
     return dr_dT[j];
   };
   const double h = 1e-6 * T_best;

@@ -7,6 +7,7 @@
 #include <array>
 #include <cmath>
 #include <memory>
+#include <type_traits>
 #include <utility>
 #include <vector>
 
@@ -19,11 +20,38 @@ namespace {
 inline sunindextype len(N_Vector v) { return NV_LENGTH_S(v); }
 inline double* data(N_Vector v) { return NV_DATA_S(v); }
 
+// Calls body(n) with n a compile-time constant for the sizes of a lone
+// tube's state (4 to 9: species, T and Q, perhaps P and a coolant's T),
+// else with n itself. CVODE calls the hottest operations below some 20
+// times a step on vectors of 6 or 7; with the length known the compiler
+// unrolls the loops, whose own bookkeeping was much of their cost. The
+// operations and their order are the same either way.
+template <class Body>
+void with_length(sunindextype n, Body&& body) {
+  switch (n) {
+    case 4:
+      return body(std::integral_constant<sunindextype, 4>{});
+    case 5:
+      return body(std::integral_constant<sunindextype, 5>{});
+    case 6:
+      return body(std::integral_constant<sunindextype, 6>{});
+    case 7:
+      return body(std::integral_constant<sunindextype, 7>{});
+    case 8:
+      return body(std::integral_constant<sunindextype, 8>{});
+    case 9:
+      return body(std::integral_constant<sunindextype, 9>{});
+    default:
+      return body(n);
+  }
+}
+
 void linear_sum(double a, N_Vector x, double b, N_Vector y, N_Vector z) {
   const double *xd = data(x), *yd = data(y);
   double* zd = data(z);
-  const sunindextype n = len(x);
-  for (sunindextype i = 0; i < n; ++i) zd[i] = a * xd[i] + b * yd[i];
+  with_length(len(x), [&](auto n) {
+    for (sunindextype i = 0; i < n; ++i) zd[i] = a * xd[i] + b * yd[i];
+  });
 }
 void constant(double c, N_Vector z) {
   double* zd = data(z);
@@ -45,8 +73,9 @@ void div(N_Vector x, N_Vector y, N_Vector z) {
 void scale(double c, N_Vector x, N_Vector z) {
   const double* xd = data(x);
   double* zd = data(z);
-  const sunindextype n = len(x);
-  for (sunindextype i = 0; i < n; ++i) zd[i] = c * xd[i];
+  with_length(len(x), [&](auto n) {
+    for (sunindextype i = 0; i < n; ++i) zd[i] = c * xd[i];
+  });
 }
 void abs_value(N_Vector x, N_Vector z) {
   const double* xd = data(x);
@@ -82,12 +111,13 @@ double max_norm(N_Vector x) {
 }
 double wsqr_sum(N_Vector x, N_Vector w) {
   const double *xd = data(x), *wd = data(w);
-  const sunindextype n = len(x);
   double s = 0;
-  for (sunindextype i = 0; i < n; ++i) {
-    const double p = xd[i] * wd[i];
-    s += p * p;
-  }
+  with_length(len(x), [&](auto n) {
+    for (sunindextype i = 0; i < n; ++i) {
+      const double p = xd[i] * wd[i];
+      s += p * p;
+    }
+  });
   return s;
 }
 double wrms_norm(N_Vector x, N_Vector w) {
@@ -135,22 +165,24 @@ sunbooleantype inv_test(N_Vector x, N_Vector z) {
 // input (z == X[0], as CVODE passes) is read before it is written.
 int linear_combination(int nv, double* c, N_Vector* X, N_Vector z) {
   double* zd = data(z);
-  const sunindextype n = len(z);
-  for (sunindextype i = 0; i < n; ++i) {
-    double s = c[0] * data(X[0])[i];
-    for (int k = 1; k < nv; ++k) s += c[k] * data(X[k])[i];
-    zd[i] = s;
-  }
+  with_length(len(z), [&](auto n) {
+    for (sunindextype i = 0; i < n; ++i) {
+      double s = c[0] * data(X[0])[i];
+      for (int k = 1; k < nv; ++k) s += c[k] * data(X[k])[i];
+      zd[i] = s;
+    }
+  });
   return 0;
 }
 int scale_add_multi(int nv, double* a, N_Vector x, N_Vector* Y, N_Vector* Z) {
   const double* xd = data(x);
-  const sunindextype n = len(x);
-  for (int k = 0; k < nv; ++k) {
-    const double* yd = data(Y[k]);
-    double* zd = data(Z[k]);
-    for (sunindextype i = 0; i < n; ++i) zd[i] = a[k] * xd[i] + yd[i];
-  }
+  with_length(len(x), [&](auto n) {
+    for (int k = 0; k < nv; ++k) {
+      const double* yd = data(Y[k]);
+      double* zd = data(Z[k]);
+      for (sunindextype i = 0; i < n; ++i) zd[i] = a[k] * xd[i] + yd[i];
+    }
+  });
   return 0;
 }
 int dot_prod_multi(int nv, N_Vector x, N_Vector* Y, double* d) {
@@ -210,42 +242,55 @@ int lu_initialize(SUNLinearSolver S) {
 // (row interchanges recorded in p), the method of the library's dense
 // solver. Returns 0, or k + 1 when the k-th pivot is exactly zero (a
 // singular iteration matrix: CVODE retries with a smaller step).
-sunindextype lu_factor(double* a, sunindextype n, sunindextype* piv) {
-  auto at = [a, n](sunindextype i, sunindextype j) -> double& { return a[i + j * n]; };
-  for (sunindextype k = 0; k < n; ++k) {
-    sunindextype p = k;
-    for (sunindextype i = k + 1; i < n; ++i)
-      if (std::abs(at(i, k)) > std::abs(at(p, k))) p = i;
-    piv[k] = p;
-    if (at(p, k) == 0) return k + 1;
-    if (p != k)
-      for (sunindextype j = 0; j < n; ++j) std::swap(at(k, j), at(p, j));
-    const double inv_pivot = 1.0 / at(k, k);
-    for (sunindextype i = k + 1; i < n; ++i) at(i, k) *= inv_pivot;
-    for (sunindextype j = k + 1; j < n; ++j) {
-      const double akj = at(k, j);
-      if (akj == 0) continue;
-      for (sunindextype i = k + 1; i < n; ++i) at(i, j) -= at(i, k) * akj;
+sunindextype lu_factor(double* a, sunindextype size, sunindextype* piv) {
+  sunindextype flag = 0;
+  with_length(size, [&](auto n) {
+    auto at = [a, n](sunindextype i, sunindextype j) -> double& { return a[i + j * n]; };
+    for (sunindextype k = 0; k < n; ++k) {
+      sunindextype p = k;
+      for (sunindextype i = k + 1; i < n; ++i)
+        if (std::abs(at(i, k)) > std::abs(at(p, k))) p = i;
+      piv[k] = p;
+      if (at(p, k) == 0) {
+        flag = k + 1;
+        return;
+      }
+      if (p != k)
+        for (sunindextype j = 0; j < n; ++j) std::swap(at(k, j), at(p, j));
+      const double inv_pivot = 1.0 / at(k, k);
+      for (sunindextype i = k + 1; i < n; ++i) at(i, k) *= inv_pivot;
+      for (sunindextype j = k + 1; j < n; ++j) {
+        const double akj = at(k, j);
+        if (akj == 0) continue;
+        for (sunindextype i = k + 1; i < n; ++i) at(i, j) -= at(i, k) * akj;
+      }
     }
-  }
-  return 0;
+  });
+  return flag;
 }
 
 // Solves (LU) x = P b in place in x with the factors of lu_factor().
+// Runs once per Newton iteration of every step (see with_length). The
+// division by each pivot in turn (a chain: each waits for the last) is
+// much of its cost; a product by reciprocal pivots was tried: it moves
+// the last bit, and through CVODE's step choices the demo outputs by up
+// to 1e-7 relative (docs/performance.md), so it stays a division.
 void lu_substitute(const double* a, sunindextype n, const sunindextype* piv, double* xd) {
-  for (sunindextype k = 0; k < n; ++k)
-    if (piv[k] != k) std::swap(xd[k], xd[piv[k]]);
-  for (sunindextype j = 0; j < n; ++j) {  // L y = P b (unit diagonal)
-    const double v = xd[j];
-    if (v != 0)
-      for (sunindextype i = j + 1; i < n; ++i) xd[i] -= a[i + j * n] * v;
-  }
-  for (sunindextype j = n - 1; j >= 0; --j) {  // U x = y
-    xd[j] /= a[j + j * n];
-    const double v = xd[j];
-    if (v != 0)
-      for (sunindextype i = 0; i < j; ++i) xd[i] -= a[i + j * n] * v;
-  }
+  with_length(n, [&](auto m) {
+    for (sunindextype k = 0; k < m; ++k)
+      if (piv[k] != k) std::swap(xd[k], xd[piv[k]]);
+    for (sunindextype j = 0; j < m; ++j) {  // L y = P b (unit diagonal)
+      const double v = xd[j];
+      if (v != 0)
+        for (sunindextype i = j + 1; i < m; ++i) xd[i] -= a[i + j * m] * v;
+    }
+    for (sunindextype j = m - 1; j >= 0; --j) {  // U x = y
+      xd[j] /= a[j + j * m];
+      const double v = xd[j];
+      if (v != 0)
+        for (sunindextype i = 0; i < j; ++i) xd[i] -= a[i + j * m] * v;
+    }
+  });
 }
 
 int lu_setup(SUNLinearSolver S, SUNMatrix A) {

@@ -133,6 +133,10 @@ TrainResult run_train(const Case& c, const TrainOptions& options = {});
 // stage (staging, optimize), for its report. A view that cannot be
 // computed becomes a warning in the result.
 void add_equilibrium_views(const Case& c, const TrainOptions& options, TrainResult& result);
+// The same on `ws`: the reaches reuse its integrator instead of creating
+// one (run_train's path).
+void add_equilibrium_views(const Case& c, const TrainOptions& options, TrainResult& result,
+                           TrainWorkspace& ws);
 // Same result, reusing `ws` instead of creating the solvers afresh: the
 // fast path for many runs (the per-run cost is in docs/performance.md).
 TrainResult run_train(const Case& c, const TrainOptions& options, TrainWorkspace& ws);

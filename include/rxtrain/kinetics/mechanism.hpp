@@ -143,6 +143,9 @@ class Mechanism {
     std::vector<CompiledTerm> ads;  // empty: no adsorption denominator
     double ads_exp = 1;             // n of DEN^n
   };
+  // evaluate(), the T derivatives (dk_dT, dc_rev_dT, dvalue_dT) left zero
+  // unless with_dT: rates() needs the value alone.
+  RateLawValue evaluate(int j, double T, const double* d, double* g, bool with_dT) const;
   // Divides v's value (and g, when given) by DEN^n of reaction j.
   void apply_adsorption(int j, double T, const double* d, double* g, RateLawValue& v) const;
   // Driving forces d_i = max(F_i, 0) * phi; returns phi and its derivatives.
