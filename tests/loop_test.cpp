@@ -20,6 +20,8 @@
 #include "rxtrain/case/case_fields.hpp"
 #include "rxtrain/flowsheet/train.hpp"
 #include "rxtrain/models/heat_exchange.hpp"
+#include "rxtrain/studies/bed_layout.hpp"
+#include "rxtrain/studies/compare.hpp"
 
 namespace {
 
@@ -253,10 +255,24 @@ TEST_CASE("the loop gain tells what a perturbation run does", "[loop]") {
 }
 
 TEST_CASE("studies that do not solve loops refuse them", "[loop]") {
-  const auto c = load(loop_case(kBedLoop));
+  // A target, so that staging and optimize reach their check of the train.
+  auto text = loop_case(kBedLoop);
+  text.replace(text.find("key: M\n"), 7,
+               "key: M\ntarget: {conversion: 0.9}\nlimits: {T_max: 600 K, T_in_min: 300 K}\n");
+  const auto c = load(text);
   rxtrain::TrainOptions o;
   o.equilibrium_views = false;
-  CHECK_FALSE(rxtrain::train_batchable(c, o));
+  CHECK_FALSE(rxtrain::train_batchable(c, o));  // sweeps run each point alone
+  for (auto study : {rxtrain::LayoutStudy::Staging, rxtrain::LayoutStudy::Optimize}) {
+    try {
+      rxtrain::check_layout_case(c, study);
+      FAIL("a loop was taken");
+    } catch (const rxtrain::InputError& e) {
+      CHECK(std::string(e.what()).find("does not solve loops") != std::string::npos);
+      CHECK(e.where().line == 17);  // the interchanger's entry
+    }
+  }
+  CHECK_THROWS_WITH(rxtrain::compare_layouts(c), Catch::Matchers::Contains("does not solve loops"));
 }
 
 TEST_CASE("continuation locates a loop's ignition feed temperature of an independent scan",
