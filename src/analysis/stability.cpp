@@ -9,6 +9,7 @@
 
 #include "rxtrain/base/error.hpp"
 #include "rxtrain/base/units.hpp"
+#include "rxtrain/flowsheet/loop.hpp"
 #include "rxtrain/flowsheet/train.hpp"
 #include "rxtrain/models/tank_balances.hpp"
 #include "rxtrain/solvers/newton.hpp"
@@ -249,6 +250,225 @@ std::vector<SteadyState> states_at(const Case& c, const CaseField& field, std::s
   return run_train(w, to).stages.back().steady_states;
 }
 
+// The turning points in order of value, and the hysteresis window when
+// there is one ignition and one extinction.
+void finish_turning_points(StabilityResult& out) {
+  std::sort(out.turning_points.begin(), out.turning_points.end(),
+            [](const TurningPoint& a, const TurningPoint& b) { return a.value < b.value; });
+  const auto count = [&](TurningKind k) {
+    return std::count_if(out.turning_points.begin(), out.turning_points.end(),
+                         [&](const TurningPoint& t) { return t.kind == k; });
+  };
+  if (count(TurningKind::Ignition) == 1 && count(TurningKind::Extinction) == 1)
+    out.hysteresis = std::pair{out.turning_points.front().value, out.turning_points.back().value};
+}
+
+// Adds a traced curve to `out`: its points with the refined folds among
+// them (each fold a turning point, once however many traces meet it), cut
+// into branches of one stability. `point` reads a state of the trace.
+void add_trace(const ContinuationResult& r,
+               const std::function<StabilityPoint(const Eigen::VectorXd&)>& point,
+               const StabilityOptions& options, StabilityResult& out) {
+  // The points in order with the refined folds among them.
+  std::vector<StabilityPoint> curve;
+  std::size_t next_fold = 0;
+  for (std::size_t k = 0; k < r.points.size(); ++k) {
+    curve.push_back(point(r.points[k].x));
+    while (next_fold < r.folds.size() && r.fold_after[next_fold] == static_cast<int>(k)) {
+      StabilityPoint f = point(r.folds[next_fold].x);
+      // At the fold itself one eigenvalue is zero: it belongs to neither
+      // side; drawn with the side it ends.
+      f.kind = curve.back().kind;
+      curve.push_back(f);
+      // Ignition when the stable side lies below in T.
+      const StabilityPoint before = curve[curve.size() - 2];
+      const StabilityPoint after =
+          point(k + 1 < r.points.size() ? r.points[k + 1].x : r.folds[next_fold].x);
+      // The same fold met by two traces is one turning point.
+      const bool seen = std::any_of(
+          out.turning_points.begin(), out.turning_points.end(), [&](const TurningPoint& q) {
+            return std::abs(q.value - f.value) <= 1e-9 * (options.hi - options.lo) &&
+                   std::abs(q.T - f.T) <= 1e-6;
+          });
+      TurningPoint tp;
+      tp.value = f.value;
+      tp.T = f.T;
+      tp.X = f.X;
+      const bool stable_below = before.stable() != after.stable()
+                                    ? (before.stable() ? before.T < after.T : after.T < before.T)
+                                    : before.T < after.T;
+      tp.kind = stable_below ? TurningKind::Ignition : TurningKind::Extinction;
+      if (!seen) out.turning_points.push_back(tp);
+      ++next_fold;
+    }
+  }
+  out.points += static_cast<int>(curve.size());
+  for (std::size_t k = 0; k < curve.size(); ++k) {
+    if (out.branches.empty() || k == 0 || out.branches.back().stable != curve[k].stable()) {
+      StabilityBranch b;
+      b.stable = curve[k].stable();
+      if (k > 0) b.points.push_back(curve[k - 1]);  // no gap in the drawn curve
+      out.branches.push_back(std::move(b));
+    }
+    out.branches.back().points.push_back(curve[k]);
+  }
+}
+
+// A loop's steady states (flowsheet/loop.hpp) as H(u, p) = 0 on the
+// scaled tear u = T / Ts (T the interchanger's cold outlet, Ts the feed's
+// temperature) and p = (value - lo) / (hi - lo): H = (g(T) - T) / Ts, its
+// derivatives by central differences of passes (any field may move any
+// stage). The tubes run at rtol 1e-10 so that the differences hold their
+// digits.
+class LoopProblem {
+ public:
+  LoopProblem(const Case& c, const CaseField& field, const StabilityOptions& o)
+      : work_(c), field_(field), o_(o) {
+    Ts_ = c.feed.T;
+    to_.solvers = o.solvers;
+    to_.equilibrium_views = false;
+    auto& cv = to_.solvers.tube.cvode;
+    cv.rtol = std::min(cv.rtol, 1e-10);
+  }
+  double value(double p) const { return o_.lo + p * (o_.hi - o_.lo); }
+  double scaled(double v) const { return (v - o_.lo) / (o_.hi - o_.lo); }
+  double Ts() const { return Ts_; }
+  const TrainOptions& train_options() const { return to_; }
+
+  // One pass at tear T and field value v.
+  LoopPass pass(double T, double v) {
+    set(v);
+    const LoopMap g(work_, to_, ws_);
+    return g(T);
+  }
+  double F(double T, double v) { return pass(T, v).T_computed - T; }
+
+  void eval(const Eigen::VectorXd& x, Eigen::VectorXd& H, Eigen::MatrixXd& J) {
+    const double T = x[0] * Ts_, v = value(x[1]);
+    H[0] = F(T, v) / Ts_;
+    J(0, 0) = dF_dT(T, v);
+    // dH/dp: central where both sides lie in the field's range, one-sided
+    // (three points, also of order h^2) at its bound.
+    const double h = 1e-5;
+    const double vp = value(x[1] + h), vm = value(x[1] - h);
+    double d = 0;
+    if (field_.contains(vm) && field_.contains(vp)) {
+      d = (F(T, vp) - F(T, vm)) / (2 * h);
+    } else {
+      const double s = field_.contains(vp) ? 1 : -1;
+      d = s * (-3 * F(T, v) + 4 * F(T, value(x[1] + s * h)) - F(T, value(x[1] + 2 * s * h))) /
+          (2 * h);
+    }
+    J(0, 1) = d / Ts_;
+    set(v);
+  }
+
+  // The state's point: the gain is 1 + dF/dT. A loop has no eigenvalues
+  // here; an unstable state is named `unstable` (kind Unstable).
+  StabilityPoint point(const Eigen::VectorXd& x) {
+    const double T = x[0] * Ts_, v = value(x[1]);
+    StabilityPoint p;
+    p.value = v;
+    p.T = T;
+    p.X = pass(T, v).conversion;
+    p.kind = 1 + dF_dT(T, v) < 1 ? StabilityKind::Stable : StabilityKind::Unstable;
+    return p;
+  }
+
+ private:
+  // dF/dT by a central difference of 1e-2 K: wide enough that the passes'
+  // integration error (about 1e-8 K) stays out of the slope.
+  double dF_dT(double T, double v) {
+    const double h = 1e-2;
+    return (F(T + h, v) - F(T - h, v)) / (2 * h);
+  }
+  void set(double v) {
+    if (ready_ && v == at_) return;
+    const std::vector<CaseField> f{field_};
+    const std::vector<double> x{v};
+    set_case_fields(work_, f, x);
+    at_ = v;
+    ready_ = true;
+  }
+  Case work_;
+  CaseField field_;
+  const StabilityOptions& o_;
+  TrainOptions to_;
+  TrainWorkspace ws_;
+  double Ts_ = 0, at_ = 0;
+  bool ready_ = false;
+};
+
+// The loop's branches of steady states along the field, from every state
+// at both ends of the range (solve_loop's scan there).
+StabilityResult loop_stability(const Case& c, const CaseField& field,
+                               const StabilityOptions& options) {
+  StabilityResult out;
+  out.stage = c.interchanger()->id;
+  out.loop = true;
+  out.param = field.name;
+  out.unit = field.unit.to_string();
+  out.lo = options.lo;
+  out.hi = options.hi;
+  out.base_value = field.get(c);
+  LoopProblem loop(c, field, options);
+  const BranchFunction fn = [&](const Eigen::VectorXd& x, Eigen::VectorXd& H, Eigen::MatrixXd& J) {
+    loop.eval(x, H, J);
+  };
+  ContinuationOptions co = options.continuation;
+  // The residual is a difference of integrated passes: good to about
+  // 1e-9 of T, not to the tank's 1e-11.
+  co.tolerance = std::max(co.tolerance, 1e-9);
+  co.fold_tolerance = std::max(co.fold_tolerance, 1e-11);
+  struct Start {
+    Eigen::VectorXd x;
+    int direction;
+  };
+  std::vector<Start> starts;
+  for (const double end : {options.lo, options.hi}) {
+    Case w = c;
+    const std::vector<CaseField> f{field};
+    const std::vector<double> v{end};
+    set_case_fields(w, f, v);
+    TrainWorkspace ws;
+    const LoopMap g(w, loop.train_options(), ws);
+    for (const auto& s : solve_loop(g, loop.train_options().loop).states) {
+      Eigen::VectorXd x(2);
+      x[0] = s.T_cold_out / loop.Ts();
+      x[1] = loop.scaled(end);
+      starts.push_back({x, end == options.lo ? +1 : -1});
+    }
+  }
+  std::vector<Eigen::VectorXd> ends;
+  auto covered = [&](const Eigen::VectorXd& x) {
+    for (const auto& e : ends)
+      if ((e - x).lpNorm<Eigen::Infinity>() < 1e-6) return true;
+    return false;
+  };
+  for (const auto& st : starts) {
+    if (covered(st.x)) continue;
+    ContinuationResult r = continue_branch(fn, st.x, st.direction, 0.0, 1.0, co);
+    out.corrector_iterations += r.corrector_iterations;
+    if (r.points.empty()) {
+      out.warnings.push_back(fmt::format("a branch from {} = {:.6g} {} could not start: {}",
+                                         field.name, loop.value(st.x[1]), out.unit, r.message));
+      continue;
+    }
+    ends.push_back(st.x);
+    ends.push_back(r.points.back().x);
+    if (!r.left_range)
+      out.warnings.push_back(fmt::format(
+          "the branch from {} = {:.6g} {} ended inside the range at {} = {:.6g} {}, T = {:.2f} "
+          "K: {}",
+          field.name, loop.value(st.x[1]), out.unit, field.name, loop.value(r.points.back().x[1]),
+          out.unit, r.points.back().x[0] * loop.Ts(), r.message));
+    add_trace(
+        r, [&](const Eigen::VectorXd& x) { return loop.point(x); }, options, out);
+  }
+  finish_turning_points(out);
+  return out;
+}
+
 }  // namespace
 
 StabilityResult run_stability(const Case& c, const CaseField& field,
@@ -258,6 +478,7 @@ StabilityResult run_stability(const Case& c, const CaseField& field,
                      fmt::format("stability: the range of {} must go from a lower to a higher "
                                  "value, got {:g} to {:g} (SI)",
                                  field.name, options.lo, options.hi));
+  if (c.interchanger()) return loop_stability(c, field, options);
   const std::size_t index = reactor_index(c, options.stage);
   const auto& spec = std::get<ReactorSpec>(c.train[index]);
   const bool tube = spec.type == ReactorType::Pfr;
@@ -322,49 +543,8 @@ StabilityResult run_stability(const Case& c, const CaseField& field,
           field.name, tank.value(st.x[n + 1]), out.unit, field.name,
           tank.value(r.points.back().x[n + 1]), out.unit, r.points.back().x[n] * tank.Ts(),
           r.message));
-    // The points in order with the refined folds among them.
-    std::vector<StabilityPoint> curve;
-    std::size_t next_fold = 0;
-    for (std::size_t k = 0; k < r.points.size(); ++k) {
-      curve.push_back(tank.point(r.points[k].x));
-      while (next_fold < r.folds.size() && r.fold_after[next_fold] == static_cast<int>(k)) {
-        StabilityPoint f = tank.point(r.folds[next_fold].x);
-        // At the fold itself one eigenvalue is zero: it belongs to neither
-        // side; drawn with the side it ends.
-        f.kind = curve.back().kind;
-        curve.push_back(f);
-        // Ignition when the stable side lies below in T.
-        const StabilityPoint before = curve[curve.size() - 2];
-        const StabilityPoint after =
-            tank.point(k + 1 < r.points.size() ? r.points[k + 1].x : r.folds[next_fold].x);
-        // The same fold met by two traces is one turning point.
-        const bool seen = std::any_of(
-            out.turning_points.begin(), out.turning_points.end(), [&](const TurningPoint& q) {
-              return std::abs(q.value - f.value) <= 1e-9 * (options.hi - options.lo) &&
-                     std::abs(q.T - f.T) <= 1e-6;
-            });
-        TurningPoint tp;
-        tp.value = f.value;
-        tp.T = f.T;
-        tp.X = f.X;
-        const bool stable_below = before.stable() != after.stable()
-                                      ? (before.stable() ? before.T < after.T : after.T < before.T)
-                                      : before.T < after.T;
-        tp.kind = stable_below ? TurningKind::Ignition : TurningKind::Extinction;
-        if (!seen) out.turning_points.push_back(tp);
-        ++next_fold;
-      }
-    }
-    out.points += static_cast<int>(curve.size());
-    for (std::size_t k = 0; k < curve.size(); ++k) {
-      if (out.branches.empty() || k == 0 || out.branches.back().stable != curve[k].stable()) {
-        StabilityBranch b;
-        b.stable = curve[k].stable();
-        if (k > 0) b.points.push_back(curve[k - 1]);  // no gap in the drawn curve
-        out.branches.push_back(std::move(b));
-      }
-      out.branches.back().points.push_back(curve[k]);
-    }
+    add_trace(
+        r, [&](const Eigen::VectorXd& x) { return tank.point(x); }, options, out);
   }
   double T_lo = std::numeric_limits<double>::infinity(), T_hi = -T_lo;
   for (const auto& b : out.branches)
@@ -377,14 +557,7 @@ StabilityResult run_stability(const Case& c, const CaseField& field,
     out.heat_curves =
         tank.heat_curves(out.base_value, std::max(T_lo - margin, 2.0), T_hi + margin, 101);
   }
-  std::sort(out.turning_points.begin(), out.turning_points.end(),
-            [](const TurningPoint& a, const TurningPoint& b) { return a.value < b.value; });
-  const auto count = [&](TurningKind k) {
-    return std::count_if(out.turning_points.begin(), out.turning_points.end(),
-                         [&](const TurningPoint& t) { return t.kind == k; });
-  };
-  if (count(TurningKind::Ignition) == 1 && count(TurningKind::Extinction) == 1)
-    out.hysteresis = std::pair{out.turning_points.front().value, out.turning_points.back().value};
+  finish_turning_points(out);
   return out;
 }
 

@@ -118,9 +118,10 @@ std::vector<std::string> design_warnings(const Case& c, const TrainResult& resul
   if (c.target_conversion && result.conversion < *c.target_conversion - kReachTolerance)
     out.push_back(fmt::format(
         "the train as the case gives it reaches X = {:.4f} of {} at its outlet, short of its "
-        "target {:.4f}; staging "
-        "shows how many beds with intercoolers the target takes",
-        result.conversion, key, *c.target_conversion));
+        "target {:.4f}; {}",
+        result.conversion, key, *c.target_conversion,
+        c.interchanger() ? "the loop's other steady states are listed with it"
+                         : "staging shows how many beds with intercoolers the target takes"));
   if (c.target_outlet) {
     const auto& t = *c.target_outlet;
     const double x = mole_fractions(result.outlet)[t.species];

@@ -39,6 +39,12 @@ double Case::quench_shares() const {
   return sum;
 }
 
+const InterchangerSpec* Case::interchanger() const {
+  for (const auto& s : train)
+    if (const auto* x = std::get_if<InterchangerSpec>(&s)) return x;
+  return nullptr;
+}
+
 const std::string& stage_id(const StageSpec& s) {
   return std::visit([](const auto& x) -> const std::string& { return x.id; }, s);
 }
@@ -258,6 +264,7 @@ class Loader {
   std::vector<int> read_products(const YAML::Node& node) const;
   StageSpec read_stage(const YAML::Node& node, std::size_t index);
   void check_energy_needs() const;
+  void check_loop() const;
   void check_catalyst_basis() const;
   void add_range_warnings();
 
@@ -1027,9 +1034,9 @@ void Loader::read_train(const YAML::Node& list) {
 
 StageSpec Loader::read_stage(const YAML::Node& node, std::size_t index) {
   Fields f(*this, node, fmt::format("stage entry {}", index + 1));
-  const std::string type = choice(f.need("type", "pfr | cstr | exchanger | quench"),
+  const std::string type = choice(f.need("type", "pfr | cstr | exchanger | quench | interchanger"),
                                   fmt::format("type of stage entry {}", index + 1),
-                                  {"pfr", "cstr", "exchanger", "quench"});
+                                  {"pfr", "cstr", "exchanger", "quench", "interchanger"});
   const std::string sid = id(f.need("id", "a stage id, e.g. id: R1"), "stage");
   f.set_context("stage " + sid);
   const std::string& ctx = f.context();
@@ -1054,6 +1061,24 @@ StageSpec Loader::read_stage(const YAML::Node& node, std::size_t index) {
   }
 
   if (type == "quench") return read_quench(f, node, sid);
+
+  if (type == "interchanger") {
+    f.check({"type", "id", "hot_from", "UA", "arrangement"});
+    InterchangerSpec x;
+    x.id = sid;
+    x.where = at(node);
+    x.hot_from = text(f.need("hot_from",
+                             "the stage whose outlet passes the hot side, e.g. "
+                             "hot_from: R1"),
+                      "hot_from of " + ctx, "a stage id");
+    x.UA = field(f.need("UA", "the interchanger's UA, e.g. UA: 45 kW/K"),
+                 CaseFieldKind::InterchangerUA, sid);
+    if (const auto* a = f.find("arrangement"))
+      x.arrangement = choice(*a, "arrangement of " + ctx, {"counter", "parallel"}) == "parallel"
+                          ? FlowArrangement::Parallel
+                          : FlowArrangement::Counter;
+    return x;
+  }
 
   f.check({"type", "id", "volume", "catalyst", "bulk_density", "target", "heat", "activity",
            "pellet", "effectiveness", "bed", "tubes", "heat_capacity"});
@@ -1683,6 +1708,55 @@ void Loader::check_energy_needs() const {
   }
 }
 
+// A feed-effluent interchanger makes the train a loop (flowsheet/loop.hpp):
+// one per train, its hot side after a later stage, and between the two only
+// stages whose outlet follows from their inlet alone (a stirred tank can
+// hold several steady states of its own, a sized stage changes its size with
+// every pass).
+void Loader::check_loop() const {
+  std::optional<std::size_t> at_x;
+  for (std::size_t k = 0; k < train_.size(); ++k) {
+    const auto* x = std::get_if<InterchangerSpec>(&train_[k]);
+    if (!x) continue;
+    if (at_x)
+      fail(stage_nodes_[k],
+           fmt::format("stage {} is a second interchanger; a train holds one (stage {} is the "
+                       "first): one loop is solved on one tear",
+                       x->id, stage_id(train_[*at_x])));
+    at_x = k;
+    std::vector<std::string> ids;
+    std::optional<std::size_t> at_hot;
+    for (std::size_t j = 0; j < train_.size(); ++j) {
+      ids.push_back(stage_id(train_[j]));
+      if (ids.back() == x->hot_from) at_hot = j;
+    }
+    const YAML::Node hot = stage_nodes_[k]["hot_from"];
+    if (!at_hot)
+      fail(hot, fmt::format("hot_from of stage {}: no stage \"{}\"{}", x->id, x->hot_from,
+                            suggest(x->hot_from, ids, "stages")));
+    if (*at_hot <= k)
+      fail(hot, fmt::format("hot_from of stage {}: stage {} {}; the hot side is the outlet of a "
+                            "later stage, which the cold side's stream reaches after it is heated",
+                            x->id, x->hot_from,
+                            *at_hot == k ? "is the interchanger itself" : "stands before it"));
+    for (std::size_t j = k + 1; j <= *at_hot; ++j) {
+      const auto* r = std::get_if<ReactorSpec>(&train_[j]);
+      if (!r) continue;
+      if (r->type == ReactorType::Cstr)
+        fail(stage_nodes_[j],
+             fmt::format("stage {} is a stirred tank inside the loop of interchanger {}; a loop "
+                         "holds tubular beds, exchangers and quenches (a tank's own steady states "
+                         "would make the loop's pass many-valued)",
+                         r->id, x->id));
+      if (r->sized())
+        fail(stage_nodes_[j],
+             fmt::format("stage {} is sized to a target inside the loop of interchanger {}; give "
+                         "it its volume or catalyst (its size would change with every pass)",
+                         r->id, x->id));
+    }
+  }
+}
+
 void Loader::check_catalyst_basis() const {
   for (std::size_t k = 0; k < train_.size(); ++k) {
     const auto* r = std::get_if<ReactorSpec>(&train_[k]);
@@ -1762,6 +1836,7 @@ Case Loader::load(const YAML::Node& root) {
   if (const auto* n = top.find("products")) c.products = read_products(*n);
   check_energy_needs();
   check_catalyst_basis();
+  check_loop();
 
   // A heat capacity must be positive where the train starts.
   for (std::size_t i = 0; i < species_.size(); ++i) {

@@ -52,6 +52,8 @@ constexpr std::array kSpecs{
                   "a temperature", false, kPositive, S::Offered},
     CaseFieldSpec{K::ExchangerDuty, O::Stage, "train.{}.duty", "duty of stage {}", "W", "a power",
                   false, kAnyValue, S::Offered},
+    CaseFieldSpec{K::InterchangerUA, O::Stage, "train.{}.UA", "UA of interchanger {}", "W/K",
+                  "a heat-transfer capacity (U times area)", false, kPositive, S::Offered},
     CaseFieldSpec{K::BedDiameter, O::Stage, "train.{}.bed.diameter", "bed diameter of stage {}",
                   "m", "a length", false, kPositive, S::Offered},
     CaseFieldSpec{K::TubeDiameter, O::Stage, "train.{}.tubes.diameter", "tube diameter of stage {}",
@@ -124,6 +126,9 @@ constexpr std::array kSpecs{
 
 const ReactorSpec* reactor(const Case& c, int k) { return std::get_if<ReactorSpec>(&c.train[k]); }
 const QuenchSpec* quench(const Case& c, int k) { return std::get_if<QuenchSpec>(&c.train[k]); }
+const InterchangerSpec* interchanger(const Case& c, int k) {
+  return std::get_if<InterchangerSpec>(&c.train[k]);
+}
 const ExchangerSpec* exchanger(const Case& c, int k) {
   return std::get_if<ExchangerSpec>(&c.train[k]);
 }
@@ -187,6 +192,8 @@ bool present(K kind, const Case& c, int k) {
       return exchanger(c, k) && exchanger(c, k)->T_out;
     case K::ExchangerDuty:
       return exchanger(c, k) && exchanger(c, k)->duty;
+    case K::InterchangerUA:
+      return interchanger(c, k) != nullptr;
     case K::BedDiameter:
       return bed(c, k, false) && !bed(c, k, false)->dP_max;
     case K::TubeDiameter:
@@ -474,6 +481,8 @@ double case_field_value(const Case& c, const CaseFieldSpec& spec, int index) {
       return exchanger(c, index)->T_out.value_or(0);
     case K::ExchangerDuty:
       return exchanger(c, index)->duty.value_or(0);
+    case K::InterchangerUA:
+      return interchanger(c, index)->UA;
     case K::BedDiameter:
     case K::TubeDiameter:
       return reactor(c, index)->geometry->diameter;
@@ -564,6 +573,10 @@ void set_stage_field(Case& c, const CaseField& f, double v) {
   }
   if (auto* x = std::get_if<ExchangerSpec>(&c.train[f.index])) {
     (f.spec->kind == K::ExchangerTout ? x->T_out : x->duty) = v;
+    return;
+  }
+  if (auto* x = std::get_if<InterchangerSpec>(&c.train[f.index])) {
+    x->UA = v;  // InterchangerUA, the interchanger's one field
     return;
   }
   auto& r = std::get<ReactorSpec>(c.train[f.index]);

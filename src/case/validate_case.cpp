@@ -267,6 +267,23 @@ void Checker::stages() const {
         fail(x->where, fmt::format("stage {} needs exactly one of T_out and duty", x->id));
       continue;
     }
+    if (const auto* x = std::get_if<InterchangerSpec>(&s)) {
+      // The loader's checks of a loop (case.cpp, check_loop) on a case
+      // built in code: a later stage to take the hot side from, one loop.
+      std::size_t at = 0, hot = 0, count = 0;
+      for (std::size_t k = 0; k < c.train.size(); ++k) {
+        if (stage_id(c.train[k]) == x->id) at = k;
+        if (stage_id(c.train[k]) == x->hot_from) hot = k;
+        if (std::holds_alternative<InterchangerSpec>(c.train[k])) ++count;
+      }
+      if (count > 1)
+        fail(x->where,
+             fmt::format("the train holds {} interchangers; one loop is supported", count));
+      if (!(hot > at))
+        fail(x->where,
+             fmt::format("stage {}: hot_from {} must name a stage after it", x->id, x->hot_from));
+      continue;
+    }
     if (const auto* q = std::get_if<QuenchSpec>(&s)) {
       if (q->share.has_value() == q->stream.has_value())
         fail(q->where, fmt::format("stage {} needs exactly one of share and stream", q->id));

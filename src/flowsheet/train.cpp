@@ -5,6 +5,7 @@
 #include <algorithm>
 #include <type_traits>
 
+#include "rxtrain/flowsheet/loop.hpp"
 #include "rxtrain/flowsheet/yields.hpp"
 #include "rxtrain/stages/exchanger.hpp"
 #include "rxtrain/stages/run_stage.hpp"
@@ -160,6 +161,7 @@ TrainResult run_train(const Case& c, const TrainOptions& options) {
 }
 
 TrainResult run_train(const Case& c, const TrainOptions& options, TrainWorkspace& ws) {
+  if (c.interchanger()) return run_loop_train(c, options, ws);
   const Mechanism& mech = c.mechanism;
   const ConversionBasis basis = c.conversion_basis();
 

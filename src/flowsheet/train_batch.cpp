@@ -12,7 +12,8 @@ namespace rxtrain {
 bool train_batchable(const Case& c, const TrainOptions& options) {
   if (options.equilibrium_views) return false;
   for (const auto& spec : c.train)
-    if (std::holds_alternative<QuenchSpec>(spec)) return false;  // side streams: the lone path
+    if (std::holds_alternative<QuenchSpec>(spec) || std::holds_alternative<InterchangerSpec>(spec))
+      return false;  // side streams and loops: the lone path
   for (const auto& spec : c.train)
     if (const auto* r = std::get_if<ReactorSpec>(&spec);
         r != nullptr && !pfr_batchable(c.mechanism, *r, options.solvers.tube))

@@ -70,6 +70,32 @@ std::string steady_state_table(const TrainResult& r) {
   return h;
 }
 
+// Every steady state of a loop (a train with an interchanger) and whether
+// the loop holds it (nothing without a loop).
+std::string loop_state_table(const TrainResult& r) {
+  if (r.loop_states.empty()) return {};
+  std::string h = "<h2 id=\"loop-states\">Steady states of the loop</h2>\n<table>\n<tr>";
+  for (const char* head :
+       {"T cold out (°C / K)", "X out", "T peak (°C / K)", "loop gain", "stability", "shown"})
+    h += fmt::format("<th>{}</th>", xml_escape(head));
+  h += "</tr>\n";
+  for (std::size_t k = 0; k < r.loop_states.size(); ++k) {
+    const LoopState& s = r.loop_states[k];
+    h += "<tr>" + temperature_cell(s.T_cold_out) + cell(conversion_text(s.conversion), true) +
+         temperature_cell(s.T_peak) + cell(fixed_text(s.gain, 4), true) +
+         cell(s.stable() ? "stable" : "unstable", false) +
+         cell(static_cast<int>(k) == r.loop_cold_start ? "yes" : "", false) + "</tr>\n";
+  }
+  h += "</table>\n";
+  h += fmt::format(
+      "<p>The interchanger's cold outlet was scanned from {} to {} °C. Loop gain: how much of a "
+      "small change of the cold outlet comes back to it after one pass; a state is unstable "
+      "above 1 (docs/stability.md). Shown: the cold-start state the stages above describe, "
+      "reached from the feed's temperature as a plant starts up.</p>\n",
+      celsius_text(r.loop_T_low), celsius_text(r.loop_T_high));
+  return h;
+}
+
 // Per wanted product: each stage's yield and selectivity, cumulative from
 // the feed (nothing without products).
 std::string product_table(const TrainResult& r) {
@@ -218,11 +244,14 @@ std::string run_report_html(const Case& c, const TrainResult& r, const std::vect
   for (const auto& s : r.stages)
     if (s.side_stream) h += "<p>" + xml_escape(quench_sentence(s)) + ".</p>\n";
   for (const auto& s : r.stages)
+    if (const auto x = interchanger_sentence(s); !x.empty()) h += "<p>" + xml_escape(x) + ".</p>\n";
+  for (const auto& s : r.stages)
     if (!s.effectiveness.empty())
       h += "<p>" + xml_escape(effectiveness_sentence(s, r.reactions)) + ".</p>\n";
   for (const auto& s : r.stages)
     if (s.reach && s.heat) h += "<p>" + xml_escape(reach_sentence(s, r.species)) + ".</p>\n";
   h += steady_state_table(r);
+  h += loop_state_table(r);
   h += product_table(r);
   h += space_velocity_table(r);
   h += bed_table(r);

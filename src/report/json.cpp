@@ -269,6 +269,23 @@ json stage(const TrainResult& t, const StageResult& r) {
   } else {
     s["rate"] = nullptr;
   }
+  // An interchanger's side (only on interchangers): the exchange at the
+  // state the stages describe.
+  if (r.interchanger) {
+    const InterchangerResult& x = *r.interchanger;
+    s["interchanger"] = {{"hot_from", x.hot_from},
+                         {"arrangement", flow_arrangement_name(x.arrangement)},
+                         {"UA", json_number(x.UA)},
+                         {"effectiveness", json_number(x.effectiveness)},
+                         {"NTU", json_number(x.NTU)},
+                         {"duty", json_number(x.duty)},
+                         {"C_cold", json_number(x.C_cold)},
+                         {"C_hot", json_number(x.C_hot)},
+                         {"T_cold_in", json_number(x.T_cold_in)},
+                         {"T_cold_out", json_number(x.T_cold_out)},
+                         {"T_hot_in", json_number(x.T_hot_in)},
+                         {"T_hot_out", json_number(x.T_hot_out)}};
+  }
   s["profile"] = profile(ids, t.reactions, r);
   // Catalyst pellets with D_eff: each reaction's effectiveness factor over
   // the stage (null without).
@@ -402,6 +419,22 @@ nlohmann::json to_json(const TrainResult& result) {
                    {"points", points}});
   }
   j["levenspiel"] = lev;
+  // A train with an interchanger: its loop's steady states (only then).
+  if (!result.loop_states.empty()) {
+    json states = json::array();
+    for (std::size_t k = 0; k < result.loop_states.size(); ++k) {
+      const LoopState& s = result.loop_states[k];
+      states.push_back({{"T_cold_out", json_number(s.T_cold_out)},
+                        {"conversion", json_number(s.conversion)},
+                        {"T_peak", json_number(s.T_peak)},
+                        {"gain", json_number(s.gain)},
+                        {"stable", s.stable()},
+                        {"cold_start", static_cast<int>(k) == result.loop_cold_start}});
+    }
+    j["steady_states"] = states;
+    j["loop_scan"] = {{"T_low", json_number(result.loop_T_low)},
+                      {"T_high", json_number(result.loop_T_high)}};
+  }
   j["warnings"] = result.warnings;
   j["caution"] = kCaution;
   return j;

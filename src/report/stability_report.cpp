@@ -211,10 +211,11 @@ std::string stability_text(const std::string& title, const StabilityResult& r) {
   if (r.tubular) return tubular_text(title, r);
   std::string out = title + "\n";
   out += fmt::format(
-      "steady states of stage {} as {} goes from {} to {} (the case: {}), by pseudo-arclength "
+      "steady states of {} {} as {} goes from {} to {} (the case: {}), by pseudo-arclength "
       "continuation: {} points\n",
-      r.stage, r.param, value_text(r, r.lo), value_text(r, r.hi), value_text(r, r.base_value),
-      r.points);
+      r.loop ? "the loop of interchanger" : "stage", r.stage, r.param, value_text(r, r.lo),
+      value_text(r, r.hi), value_text(r, r.base_value), r.points);
+  if (r.loop) out += "(T: the interchanger's cold outlet)\n";
   out += "\nturning points\n";
   if (r.turning_points.empty()) {
     out += "  none in the range: one steady state at every value reached\n";
@@ -227,12 +228,13 @@ std::string stability_text(const std::string& title, const StabilityResult& r) {
   }
   if (r.hysteresis)
     out += fmt::format(
-        "hysteresis window: {} from {} to {}: several steady states; which one the tank holds "
+        "hysteresis window: {} from {} to {}: several steady states; which one the {} holds "
         "depends on where it came from\n",
-        r.param, value_text(r, r.hysteresis->first), value_text(r, r.hysteresis->second));
-  out +=
-      "\nbranches (stable: every eigenvalue of the linearized balances has a negative real "
-      "part)\n";
+        r.param, value_text(r, r.hysteresis->first), value_text(r, r.hysteresis->second),
+        r.loop ? "plant" : "tank");
+  out += r.loop ? "\nbranches (stable: the loop gain d(T fed back)/d(T assumed) is below 1)\n"
+                : "\nbranches (stable: every eigenvalue of the linearized balances has a "
+                  "negative real part)\n";
   std::vector<std::vector<std::string>> rows{
       {"#", "stability", r.param + " from", "to", "T °C from", "to", "points"}};
   for (std::size_t k = 0; k < r.branches.size(); ++k) {
@@ -297,9 +299,10 @@ std::string stability_csv_text(const StabilityResult& r) {
 
 Figure stability_figure(const StabilityResult& r) {
   svg::ChartOptions o;
-  o.title = fmt::format("Steady states of {} against {}", r.stage, r.param);
+  o.title = fmt::format("Steady states of {} against {}",
+                        r.loop ? "the loop of " + r.stage : r.stage, r.param);
   o.x_label = axis_label(r);
-  o.y_label = "Tank temperature (°C)";
+  o.y_label = r.loop ? "Interchanger cold outlet (°C)" : "Tank temperature (°C)";
   o.x_domain = svg::nice_domain(axis_value(r, r.lo), axis_value(r, r.hi));
   svg::Chart chart(o);
   bool stable_labelled = false, unstable_labelled = false;
@@ -323,9 +326,11 @@ Figure stability_figure(const StabilityResult& r) {
   }
   return Figure{"s-curve",
                 fmt::format("The steady states of {} as {} varies: stable branches solid, "
-                            "unstable (saddle or oscillatory) dashed; past a turning point the "
-                            "tank jumps to the other stable branch.",
-                            r.stage, r.param),
+                            "unstable ({}) dashed; past a turning point the {} jumps to the "
+                            "other stable branch.",
+                            r.loop ? "the loop of " + r.stage : r.stage, r.param,
+                            r.loop ? "loop gain above 1" : "saddle or oscillatory",
+                            r.loop ? "plant" : "tank"),
                 std::move(chart)};
 }
 
@@ -374,11 +379,13 @@ std::string stability_report_html(const Case& c, const StabilityResult& r,
   std::string h = html::page_begin(c.title + " — stability of " + r.stage, provenance);
   h += html::feed_section(c);
   h += fmt::format(
-      "<h2 id=\"summary\">Turning points</h2>\n<p>Steady states of stage {} as {} "
+      "<h2 id=\"summary\">Turning points</h2>\n<p>Steady states of {} as {} "
       "goes from {} to {} (the case: {}), followed by pseudo-arclength "
       "continuation ({} points).</p>\n",
-      xml_escape(r.stage), xml_escape(r.param), xml_escape(value_text(r, r.lo)),
-      xml_escape(value_text(r, r.hi)), xml_escape(value_text(r, r.base_value)), r.points);
+      xml_escape(r.loop ? "the loop of interchanger " + r.stage + " (T: its cold outlet)"
+                        : "stage " + r.stage),
+      xml_escape(r.param), xml_escape(value_text(r, r.lo)), xml_escape(value_text(r, r.hi)),
+      xml_escape(value_text(r, r.base_value)), r.points);
   if (r.turning_points.empty()) {
     h += "<p>None in the range: one steady state at every value reached.</p>\n";
   } else {
@@ -391,9 +398,9 @@ std::string stability_report_html(const Case& c, const StabilityResult& r,
   if (r.hysteresis)
     h += "<p>" +
          xml_escape(fmt::format("Hysteresis window: {} from {} to {}: several steady states; "
-                                "which one the tank holds depends on where it came from.",
+                                "which one the {} holds depends on where it came from.",
                                 r.param, value_text(r, r.hysteresis->first),
-                                value_text(r, r.hysteresis->second))) +
+                                value_text(r, r.hysteresis->second), r.loop ? "plant" : "tank")) +
          "</p>\n";
   h += html::figures_section(figures);
   h += html::warnings_section(r.warnings);

@@ -178,6 +178,27 @@ std::string steady_state_table(const TrainResult& result) {
          render_columns(rows, 1);
 }
 
+// Every steady state of the loop of a train with an interchanger, and
+// whether the loop holds it (nothing without a loop).
+std::string loop_state_table(const TrainResult& result) {
+  if (result.loop_states.empty()) return {};
+  std::vector<std::vector<std::string>> rows;
+  rows.push_back({"T cold out °C", "X out", "T peak °C", "loop gain", "stability", "shown"});
+  for (std::size_t k = 0; k < result.loop_states.size(); ++k) {
+    const LoopState& s = result.loop_states[k];
+    rows.push_back({celsius_text(s.T_cold_out), conversion_text(s.conversion),
+                    celsius_text(s.T_peak), fixed_text(s.gain, 4),
+                    s.stable() ? "stable" : "unstable",
+                    static_cast<int>(k) == result.loop_cold_start ? "yes" : ""});
+  }
+  return fmt::format(
+             "\nsteady states of the loop (the interchanger's cold outlet scanned from {} to {} "
+             "°C; loop gain: d(T cold out fed back)/d(T cold out assumed), unstable above 1; "
+             "shown: the cold-start state the stages above describe, docs/stability.md)\n",
+             celsius_text(result.loop_T_low), celsius_text(result.loop_T_high)) +
+         render_columns(rows, 0);
+}
+
 }  // namespace
 
 std::string format_stage_table(const TrainResult& result) {
@@ -235,10 +256,13 @@ std::string format_stage_table(const TrainResult& result) {
   for (const auto& r : result.stages)
     if (r.side_stream) out += "  " + quench_sentence(r) + "\n";
   for (const auto& r : result.stages)
+    if (const auto s = interchanger_sentence(r); !s.empty()) out += "  " + s + "\n";
+  for (const auto& r : result.stages)
     if (!r.effectiveness.empty()) out += "  " + effectiveness_sentence(r, result.reactions) + "\n";
   for (const auto& r : result.stages)
     if (r.reach && r.heat) out += "  " + reach_sentence(r, result.species) + "\n";
   out += steady_state_table(result);
+  out += loop_state_table(result);
 
   // Space velocities only where they apply (GHSV at 0 °C, 1 atm).
   // WHSV and LHSV on the case's space_velocity_basis, named once when every

@@ -116,6 +116,18 @@ std::string exchanger_size_sentence(const StageResult& r) {
                      plain_sig_text(z.area), utility);
 }
 
+std::string interchanger_sentence(const StageResult& r) {
+  if (!r.interchanger) return {};
+  const InterchangerResult& x = *r.interchanger;
+  return fmt::format(
+      "{}: {} flow, UA {} kW/K, effectiveness {} (NTU {}); cold side {} → {} °C, hot side (after "
+      "{}) {} → {} °C, {} kW",
+      r.id, flow_arrangement_name(x.arrangement), plain_sig_text(x.UA / 1e3),
+      fixed_text(x.effectiveness, 4), plain_sig_text(x.NTU), celsius_text(x.T_cold_in),
+      celsius_text(x.T_cold_out), x.hot_from, celsius_text(x.T_hot_in), celsius_text(x.T_hot_out),
+      fixed_text(x.duty / 1e3, 2));
+}
+
 std::string quench_sentence(const StageResult& r) {
   if (!r.side_stream) return {};
   const Stream& s = *r.side_stream;

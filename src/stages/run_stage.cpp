@@ -11,6 +11,10 @@ StageResult run_stage(const StageSpec& spec, const Stream& inlet, const StageCon
         using T = std::decay_t<decltype(s)>;
         if constexpr (std::is_same_v<T, ExchangerSpec>) {
           return run_exchanger(ctx.mech, s, inlet, ctx.basis);
+        } else if constexpr (std::is_same_v<T, InterchangerSpec>) {
+          // Its cold side's outlet is the loop's tear: flowsheet/loop runs it.
+          throw InputError(s.where,
+                           "stage " + s.id + ": an interchanger runs inside its loop only");
         } else if constexpr (std::is_same_v<T, QuenchSpec>) {
           if (!ctx.feed)
             throw InputError(s.where, "stage " + s.id + ": a quench runs inside a train only");

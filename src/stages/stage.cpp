@@ -28,6 +28,8 @@ const char* stage_kind_name(StageKind kind) {
       return "exchanger";
     case StageKind::Quench:
       return "quench";
+    case StageKind::Interchanger:
+      return "interchanger";
   }
   return "?";
 }
@@ -35,6 +37,10 @@ const char* stage_kind_name(StageKind kind) {
 const char* stage_heat_name(const StageResult& r) {
   if (r.coolant || r.cooling) return "cooled";  // a tube's coolant, a tank's wall
   return r.heat ? heat_mode_name(*r.heat) : nullptr;
+}
+
+const char* flow_arrangement_name(FlowArrangement a) {
+  return a == FlowArrangement::Parallel ? "parallel" : "counter";
 }
 
 const char* coolant_flow_name(CoolantFlow f) {

@@ -81,6 +81,12 @@ LayoutCase check_layout_case(const Case& c, LayoutStudy study) {
   LayoutCase lc;
   const ReactorSpec* set_by = nullptr;
   for (const auto& s : c.train) {
+    if (const auto* x = std::get_if<InterchangerSpec>(&s))
+      throw InputError(x->where, fmt::format("stage {} is a feed-effluent interchanger; {} designs "
+                                             "beds with intercoolers in a once-through train and "
+                                             "does not solve loops: rate the loop with run, and "
+                                             "follow its steady states with stability",
+                                             x->id, name));
     if (const auto* q = std::get_if<QuenchSpec>(&s))
       throw InputError(q->where, fmt::format("stage {} is a quench; {} designs adiabatic beds with "
                                              "intercoolers and does not take side streams yet: "

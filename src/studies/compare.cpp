@@ -211,6 +211,12 @@ CompareResult compare_layouts(const Case& c, const CompareOptions& options) {
   std::vector<ReactorSpec> reactors;
   bool any_exchanger = false;
   for (const auto& spec : c.train)
+    if (const auto* x = std::get_if<InterchangerSpec>(&spec))
+      throw InputError(x->where, fmt::format("stage {} is a feed-effluent interchanger; compare "
+                                             "reorders reactors in a once-through train and does "
+                                             "not solve loops: rate the loop with run",
+                                             x->id));
+  for (const auto& spec : c.train)
     if (const auto* q = std::get_if<QuenchSpec>(&spec))
       throw InputError(q->where, fmt::format("stage {} is a quench; compare reorders reactors "
                                              "around exchangers only and does not handle side "

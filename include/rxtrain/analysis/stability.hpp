@@ -8,6 +8,8 @@
 // there to the corrector's tolerance) and named ignition or extinction.
 // Branches are traced from every steady state at both ends of the range; a
 // closed branch (an isola) that touches neither end is not found.
+// A train with a feed-effluent interchanger is followed the same way on its
+// loop's tear (flowsheet/loop.hpp), whatever `stage` says.
 // A tubular bed has one steady state along a field: for it the study is
 // the parametric sensitivity of its peak temperature and the critical value
 // where that peaks (analysis/runaway.hpp).
@@ -87,6 +89,11 @@ struct StabilityResult {
   std::string stage;  // the tank's (or bed's) id
   // A tubular bed: the sensitivity scan below, no branches.
   bool tubular = false;
+  // A loop with an interchanger (`stage` is the interchanger's id): the
+  // branches are the loop's steady states, each point's T the
+  // interchanger's cold outlet, stable where the loop gain is below 1
+  // (docs/stability.md, "Feed-effluent loops"); no heat curves.
+  bool loop = false;
   std::string param;  // the field's path
   std::string unit;   // its SI unit ("K", "m3", "1")
   double lo = 0, hi = 0;

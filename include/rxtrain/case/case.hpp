@@ -134,7 +134,25 @@ struct QuenchSpec {
   SourceLocation where;
 };
 
-using StageSpec = std::variant<ReactorSpec, ExchangerSpec, QuenchSpec>;
+// How the two streams of an interchanger flow past each other.
+enum class FlowArrangement { Counter, Parallel };
+
+// A feed-effluent interchanger (`type: interchanger`): its cold side stands
+// where it is in the train (the stream arriving is heated); its hot side is
+// the outlet of the later stage `hot_from`, which passes it right after that
+// stage and is cooled by the same duty. UA is constant; each side's heat
+// capacity flow is taken at its mean temperature (models/heat_exchange.hpp).
+// The train becomes a loop, solved on the cold side's outlet temperature
+// (flowsheet/loop.hpp). One interchanger per train.
+struct InterchangerSpec {
+  std::string id;
+  std::string hot_from;  // id of a reactor or exchanger after this stage
+  double UA = 0;         // W/K, positive
+  FlowArrangement arrangement = FlowArrangement::Counter;
+  SourceLocation where;
+};
+
+using StageSpec = std::variant<ReactorSpec, ExchangerSpec, QuenchSpec, InterchangerSpec>;
 
 const std::string& stage_id(const StageSpec& s);
 
@@ -177,6 +195,8 @@ struct Case {
   // The sum of the quench shares (0 without): the first stage gets
   // (1 - quench_shares()) of the feed.
   double quench_shares() const;
+  // The train's interchanger (a loop), or null.
+  const InterchangerSpec* interchanger() const;
 };
 
 // A conversion counts as reached when it is within this (absolute) of the

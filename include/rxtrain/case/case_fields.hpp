@@ -66,6 +66,7 @@ enum class CaseFieldKind {
   TankHeatCapacity,  // a stirred tank's vessel and catalyst heat capacity
   ExchangerTout,
   ExchangerDuty,
+  InterchangerUA,  // a feed-effluent interchanger's UA
   BedDiameter,     // a vessel's diameter (not with `diameter: auto`)
   TubeDiameter,    // each tube's inside diameter (not with `diameter: auto`)
   BedVoid,         // a vessel's bed voidage

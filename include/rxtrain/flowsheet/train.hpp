@@ -27,6 +27,38 @@ struct CstrWarmStart {
   std::vector<SteadyState> states;
 };
 
+// How a train with a feed-effluent interchanger (a loop) is solved: on its
+// tear, the interchanger's cold-side outlet temperature (flowsheet/loop.hpp).
+struct LoopOptions {
+  // The scan's spacing, K: every sign change of (computed - assumed) on this
+  // grid is a steady state, refined by Brent. Two states closer than this
+  // (near a turning point) can fall in one step and be missed; `rxtrain
+  // stability` follows them through the fold. 1 K: a light-off spans tens of
+  // kelvin, and a run of a bed costs about a millisecond.
+  double scan_step = 1.0;
+  // At most this many scan points; a wider range takes a coarser step.
+  int max_scan_points = 4000;
+  // Relative tolerance of each root on the tear (Brent).
+  double root_tolerance = 1e-13;
+  // Central-difference step of the loop gain, K.
+  double gain_step = 1e-3;
+  // Passes of the successive substitution from the feed's temperature that
+  // finds the cold-start state.
+  int max_passes = 400;
+};
+
+// One steady state of a loop.
+struct LoopState {
+  double T_cold_out = 0;  // K, the tear: the interchanger's cold-side outlet
+  double conversion = 0;  // overall key conversion at the train's outlet
+  double T_peak = 0;      // K, the highest temperature in any stage
+  // d(T_cold_out computed)/d(T_cold_out assumed) at the state: a
+  // disturbance of the tear returns after one pass multiplied by it
+  // (docs/stability.md); the state is unstable above 1.
+  double gain = 0;
+  bool stable() const { return gain < 1; }
+};
+
 struct TrainOptions {
   // How every stage is solved (solver_options.hpp): one setting holds for
   // every tube, every tank and the tubular runs inside the tanks.
@@ -51,6 +83,8 @@ struct TrainOptions {
   // The check of every reactor stage against the case's limits (its
   // margin); crossings are located only where pfr.full_profile is on.
   LimitCheckOptions limit_check;
+  // Trains with an interchanger.
+  LoopOptions loop;
 };
 
 struct TrainResult {
@@ -83,6 +117,14 @@ struct TrainResult {
   std::vector<std::string> products;
   std::vector<double> yield;
   std::vector<std::optional<double>> selectivity;
+  // A train with an interchanger: every steady state of its loop, lowest
+  // tear first, and which one the stages and outlet describe (the
+  // cold-start state, reached by successive substitution from the tear at
+  // its inlet temperature, as a plant starts up); the tear's range scanned.
+  // Empty without an interchanger.
+  std::vector<LoopState> loop_states;
+  int loop_cold_start = -1;                // index into loop_states
+  double loop_T_low = 0, loop_T_high = 0;  // K, the scan's range
 
   // An empty result for c: its title, species, key, feed and loader
   // warnings, ready for its stages.

@@ -58,6 +58,10 @@ std::string coolant_sentence(const StageResult& r);
 // A quench's side stream and its mixing, in one sentence (empty for other
 // stages).
 std::string quench_sentence(const StageResult& r);
+// "X1: counter flow, UA 45 kW/K, effectiveness 0.8123 (NTU 4.33); cold side
+// 150.00 → 330.00 °C, hot side (after R1) 420.00 → 240.00 °C, 1234.56 kW"
+// (empty for a stage that is not an interchanger).
+std::string interchanger_sentence(const StageResult& r);
 
 // A mole fraction as a purity is quoted: in ppm below 0.1 %, else in %
 // ("1 ppm", "6 %"), six significant digits.

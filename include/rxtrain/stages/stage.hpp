@@ -20,13 +20,14 @@
 
 namespace rxtrain {
 
-enum class StageKind { Pfr, Cstr, Exchanger, Quench };
+enum class StageKind { Pfr, Cstr, Exchanger, Quench, Interchanger };
 
 // Tubular reactors and stirred tanks: the stages with a volume, catalyst
 // and a path; exchangers and quenches only change the stream's state.
 inline bool is_reactor(StageKind k) { return k == StageKind::Pfr || k == StageKind::Cstr; }
 
-// The names every output uses: "pfr", "cstr", "exchanger", "quench"; "adiabatic",
+// The names every output uses: "pfr", "cstr", "exchanger", "quench",
+// "interchanger"; "adiabatic",
 // "isothermal".
 const char* stage_kind_name(StageKind kind);
 const char* heat_mode_name(HeatMode heat);
@@ -77,6 +78,9 @@ const char* stage_heat_name(const StageResult& r);
 
 // "constant", "cocurrent", "countercurrent".
 const char* coolant_flow_name(CoolantFlow f);
+
+// "counter", "parallel".
+const char* flow_arrangement_name(FlowArrangement a);
 
 // A reaction's effectiveness factor over a stage: its least and greatest
 // along the integrated profile, and its value at the outlet.
@@ -201,6 +205,23 @@ struct StageHydraulics {
   std::optional<double> dP_max;
 };
 
+// A feed-effluent interchanger as it ran at a loop's steady state. Its
+// stage row is its cold side (inlet, outlet, duty: the heat the cold stream
+// gains); its hot side is here: `hot_from`'s outlet, T_hot_in, leaves the
+// hot side at T_hot_out, the next stage's inlet. Stage results stay one per
+// stage of the case, in its order.
+struct InterchangerResult {
+  std::string hot_from;
+  FlowArrangement arrangement = FlowArrangement::Counter;
+  double UA = 0;                         // W/K
+  double effectiveness = 0;              // duty / (C_min (T_hot_in - T_cold_in))
+  double NTU = 0;                        // UA / C_min
+  double C_cold = 0, C_hot = 0;          // W/K, each side's F cp at its mean temperature
+  double T_cold_in = 0, T_cold_out = 0;  // K
+  double T_hot_in = 0, T_hot_out = 0;    // K
+  double duty = 0;                       // W, the heat passed from the hot side to the cold
+};
+
 struct StageResult {
   std::string id;
   StageKind kind = StageKind::Pfr;
@@ -269,6 +290,8 @@ struct StageResult {
   // Cooled tubular stages: the coolant and the hot spot; empty else.
   std::optional<CoolantResult> coolant;
   std::optional<HotSpot> hot_spot;
+  // Interchanger stages: the exchange, both sides; empty else.
+  std::optional<InterchangerResult> interchanger;
 };
 
 // Fills space time, space velocity, GHSV, WHSV and LHSV from the stage's
