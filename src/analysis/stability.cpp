@@ -314,6 +314,53 @@ void add_trace(const ContinuationResult& r,
   }
 }
 
+// Where a branch starts: a steady state at one end of the range, and the
+// way into the range.
+struct BranchStart {
+  Eigen::VectorXd x;
+  int direction;
+};
+
+// Follows a branch from every start that no earlier branch ended on,
+// adding each as a trace; a branch that cannot start or ends inside the
+// range is a warning. `problem` reads the scaled state: value() of the
+// parameter, Ts() of the temperature, point(); x[param] and x[temp] are
+// where the parameter and the temperature stand in it.
+template <class Problem>
+void follow_branches(const std::vector<BranchStart>& starts, const BranchFunction& fn,
+                     const ContinuationOptions& co, Problem& problem, Eigen::Index param,
+                     Eigen::Index temp, const CaseField& field, const StabilityOptions& options,
+                     StabilityResult& out) {
+  std::vector<Eigen::VectorXd> ends;
+  auto covered = [&](const Eigen::VectorXd& x) {
+    for (const auto& e : ends)
+      if ((e - x).lpNorm<Eigen::Infinity>() < 1e-6) return true;
+    return false;
+  };
+  for (const auto& st : starts) {
+    if (covered(st.x)) continue;
+    ContinuationResult r = continue_branch(fn, st.x, st.direction, 0.0, 1.0, co);
+    out.corrector_iterations += r.corrector_iterations;
+    if (r.points.empty()) {
+      out.warnings.push_back(fmt::format("a branch from {} = {:.6g} {} could not start: {}",
+                                         field.name, problem.value(st.x[param]), out.unit,
+                                         r.message));
+      continue;
+    }
+    ends.push_back(st.x);
+    ends.push_back(r.points.back().x);
+    if (!r.left_range)
+      out.warnings.push_back(fmt::format(
+          "the branch from {} = {:.6g} {} ended inside the range at {} = {:.6g} {}, T = {:.2f} "
+          "K: {}",
+          field.name, problem.value(st.x[param]), out.unit, field.name,
+          problem.value(r.points.back().x[param]), out.unit, r.points.back().x[temp] * problem.Ts(),
+          r.message));
+    add_trace(
+        r, [&](const Eigen::VectorXd& x) { return problem.point(x); }, options, out);
+  }
+}
+
 // A loop's steady states (flowsheet/loop.hpp) as H(u, p) = 0 on the
 // scaled tear u = T / Ts (T the interchanger's cold outlet, Ts the feed's
 // temperature) and p = (value - lo) / (hi - lo): H = (g(T) - T) / Ts, its
@@ -420,11 +467,7 @@ StabilityResult loop_stability(const Case& c, const CaseField& field,
   // 1e-9 of T, not to the tank's 1e-11.
   co.tolerance = std::max(co.tolerance, 1e-9);
   co.fold_tolerance = std::max(co.fold_tolerance, 1e-11);
-  struct Start {
-    Eigen::VectorXd x;
-    int direction;
-  };
-  std::vector<Start> starts;
+  std::vector<BranchStart> starts;
   for (const double end : {options.lo, options.hi}) {
     Case w = c;
     const std::vector<CaseField> f{field};
@@ -439,32 +482,7 @@ StabilityResult loop_stability(const Case& c, const CaseField& field,
       starts.push_back({x, end == options.lo ? +1 : -1});
     }
   }
-  std::vector<Eigen::VectorXd> ends;
-  auto covered = [&](const Eigen::VectorXd& x) {
-    for (const auto& e : ends)
-      if ((e - x).lpNorm<Eigen::Infinity>() < 1e-6) return true;
-    return false;
-  };
-  for (const auto& st : starts) {
-    if (covered(st.x)) continue;
-    ContinuationResult r = continue_branch(fn, st.x, st.direction, 0.0, 1.0, co);
-    out.corrector_iterations += r.corrector_iterations;
-    if (r.points.empty()) {
-      out.warnings.push_back(fmt::format("a branch from {} = {:.6g} {} could not start: {}",
-                                         field.name, loop.value(st.x[1]), out.unit, r.message));
-      continue;
-    }
-    ends.push_back(st.x);
-    ends.push_back(r.points.back().x);
-    if (!r.left_range)
-      out.warnings.push_back(fmt::format(
-          "the branch from {} = {:.6g} {} ended inside the range at {} = {:.6g} {}, T = {:.2f} "
-          "K: {}",
-          field.name, loop.value(st.x[1]), out.unit, field.name, loop.value(r.points.back().x[1]),
-          out.unit, r.points.back().x[0] * loop.Ts(), r.message));
-    add_trace(
-        r, [&](const Eigen::VectorXd& x) { return loop.point(x); }, options, out);
-  }
+  follow_branches(starts, fn, co, loop, 1, 0, field, options, out);
   finish_turning_points(out);
   return out;
 }
@@ -502,11 +520,7 @@ StabilityResult run_stability(const Case& c, const CaseField& field,
 
   // Every steady state at each end starts a trace unless a trace already
   // ended on it.
-  struct Start {
-    Eigen::VectorXd x;
-    int direction;
-  };
-  std::vector<Start> starts;
+  std::vector<BranchStart> starts;
   for (const double end : {options.lo, options.hi}) {
     for (const auto& s : states_at(c, field, index, end, options)) {
       Eigen::VectorXd x(n + 2);
@@ -519,33 +533,7 @@ StabilityResult run_stability(const Case& c, const CaseField& field,
   if (starts.empty())
     throw SolverError(fmt::format("{}: no steady state found at either end of the range of {}",
                                   spec.id, field.name));
-  std::vector<Eigen::VectorXd> ends;
-  auto covered = [&](const Eigen::VectorXd& x) {
-    for (const auto& e : ends)
-      if ((e - x).lpNorm<Eigen::Infinity>() < 1e-6) return true;
-    return false;
-  };
-  for (const auto& st : starts) {
-    if (covered(st.x)) continue;
-    ContinuationResult r = continue_branch(fn, st.x, st.direction, 0.0, 1.0, options.continuation);
-    out.corrector_iterations += r.corrector_iterations;
-    if (r.points.empty()) {
-      out.warnings.push_back(fmt::format("a branch from {} = {:.6g} {} could not start: {}",
-                                         field.name, tank.value(st.x[n + 1]), out.unit, r.message));
-      continue;
-    }
-    ends.push_back(st.x);
-    ends.push_back(r.points.back().x);
-    if (!r.left_range)
-      out.warnings.push_back(fmt::format(
-          "the branch from {} = {:.6g} {} ended inside the range at {} = {:.6g} {}, T = {:.2f} "
-          "K: {}",
-          field.name, tank.value(st.x[n + 1]), out.unit, field.name,
-          tank.value(r.points.back().x[n + 1]), out.unit, r.points.back().x[n] * tank.Ts(),
-          r.message));
-    add_trace(
-        r, [&](const Eigen::VectorXd& x) { return tank.point(x); }, options, out);
-  }
+  follow_branches(starts, fn, options.continuation, tank, n + 1, n, field, options, out);
   double T_lo = std::numeric_limits<double>::infinity(), T_hi = -T_lo;
   for (const auto& b : out.branches)
     for (const auto& p : b.points) {
