@@ -5,7 +5,6 @@
 // GSL's Brent minimizer (the criterion of Morbidelli and Varma 1982: the
 // critical value is where the normalized sensitivity peaks).
 #include <fmt/format.h>
-#include <gsl/gsl_min.h>
 
 #include <catch2/catch.hpp>
 #include <cmath>
@@ -81,22 +80,8 @@ TEST_CASE("an adiabatic bed's critical feed temperature equals an independent sc
       best = T0;
       S_best = s;
     }
-  std::function<double(double)> minus_S = [](double T0) { return -gsl_S(T0); };
-  gsl_function fn;
-  fn.function = [](double x, void* p) {
-    return (*static_cast<std::function<double(double)>*>(p))(x);
-  };
-  fn.params = &minus_S;
-  std::unique_ptr<gsl_min_fminimizer, decltype(&gsl_min_fminimizer_free)> m(
-      gsl_min_fminimizer_alloc(gsl_min_fminimizer_brent), &gsl_min_fminimizer_free);
-  REQUIRE(gsl_min_fminimizer_set(m.get(), &fn, best, best - 0.25, best + 0.25) == GSL_SUCCESS);
-  for (int it = 0; it < 100; ++it) {
-    REQUIRE(gsl_min_fminimizer_iterate(m.get()) == GSL_SUCCESS);
-    if (gsl_min_test_interval(gsl_min_fminimizer_x_lower(m.get()),
-                              gsl_min_fminimizer_x_upper(m.get()), 1e-6, 0) == GSL_SUCCESS)
-      break;
-  }
-  const double T0_crit = gsl_min_fminimizer_x_minimum(m.get());
+  const double T0_crit = rxtrain::test::gsl_maximize([](double T0) { return gsl_S(T0); }, best,
+                                                     best - 0.25, best + 0.25, 1e-6);
 
   const rxtrain::UnitParser units;
   const auto c = rxtrain::load_case_from_string(kBed, "bed.yaml", units);

@@ -5,6 +5,7 @@
 #pragma once
 
 #include <gsl/gsl_errno.h>
+#include <gsl/gsl_min.h>
 #include <gsl/gsl_odeiv2.h>
 #include <gsl/gsl_roots.h>
 
@@ -76,6 +77,28 @@ inline double gsl_brent(const std::function<double(double)>& g, double lo, doubl
     if (gsl_root_test_interval(a, b, xtol, 0) == GSL_SUCCESS) break;
   }
   return gsl_root_fsolver_root(s.get());
+}
+
+// GSL's Brent minimizer on -f: the x in [lo, hi] where f peaks, from a
+// guess inside with f(guess) above both ends, to xtol absolute.
+inline double gsl_maximize(const std::function<double(double)>& f, double guess, double lo,
+                           double hi, double xtol) {
+  const std::function<double(double)> minus_f = [&f](double x) { return -f(x); };
+  gsl_function fn;
+  fn.function = [](double x, void* p) {
+    return (*static_cast<const std::function<double(double)>*>(p))(x);
+  };
+  fn.params = const_cast<std::function<double(double)>*>(&minus_f);
+  std::unique_ptr<gsl_min_fminimizer, decltype(&gsl_min_fminimizer_free)> m(
+      gsl_min_fminimizer_alloc(gsl_min_fminimizer_brent), &gsl_min_fminimizer_free);
+  REQUIRE(gsl_min_fminimizer_set(m.get(), &fn, guess, lo, hi) == GSL_SUCCESS);
+  for (int it = 0; it < 100; ++it) {
+    REQUIRE(gsl_min_fminimizer_iterate(m.get()) == GSL_SUCCESS);
+    if (gsl_min_test_interval(gsl_min_fminimizer_x_lower(m.get()),
+                              gsl_min_fminimizer_x_upper(m.get()), xtol, 0) == GSL_SUCCESS)
+      break;
+  }
+  return gsl_min_fminimizer_x_minimum(m.get());
 }
 
 }  // namespace rxtrain::test

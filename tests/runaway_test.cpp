@@ -12,7 +12,6 @@
 #include "rxtrain/analysis/runaway.hpp"
 
 #include <fmt/format.h>
-#include <gsl/gsl_min.h>
 
 #include <catch2/catch.hpp>
 #include <cmath>
@@ -153,22 +152,8 @@ double gsl_critical(double lo, double hi) {
   }
   REQUIRE(best > lo);
   REQUIRE(best < hi);
-  std::function<double(double)> minus_S = [](double Tc) { return -gsl_S(Tc); };
-  gsl_function fn;
-  fn.function = [](double x, void* p) {
-    return (*static_cast<std::function<double(double)>*>(p))(x);
-  };
-  fn.params = &minus_S;
-  std::unique_ptr<gsl_min_fminimizer, decltype(&gsl_min_fminimizer_free)> m(
-      gsl_min_fminimizer_alloc(gsl_min_fminimizer_brent), &gsl_min_fminimizer_free);
-  REQUIRE(gsl_min_fminimizer_set(m.get(), &fn, best, best - 1, best + 1) == GSL_SUCCESS);
-  for (int it = 0; it < 100; ++it) {
-    REQUIRE(gsl_min_fminimizer_iterate(m.get()) == GSL_SUCCESS);
-    if (gsl_min_test_interval(gsl_min_fminimizer_x_lower(m.get()),
-                              gsl_min_fminimizer_x_upper(m.get()), 1e-4, 0) == GSL_SUCCESS)
-      break;
-  }
-  return gsl_min_fminimizer_x_minimum(m.get());
+  return rxtrain::test::gsl_maximize([](double Tc) { return gsl_S(Tc); }, best, best - 1, best + 1,
+                                     1e-4);
 }
 
 rxtrain::StabilityResult scan(const rxtrain::Case& c, double lo, double hi, int points) {
