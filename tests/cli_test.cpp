@@ -407,6 +407,31 @@ TEST_CASE("help shows plain words, an unknown command is named", "[cli]") {
   CHECK(by_new.out.find("Results are for screening") == std::string::npos);
 }
 
+TEST_CASE("an exchanger whose utility crosses the process temperatures is a located error",
+          "[cli]") {
+  // The converter's waste-heat boiler given steam at 450 degC: hotter than
+  // the 430 degC the process leaves at, so no counter-flow exchanger can
+  // cool the gas with it.
+  const auto dir = scratch("cross");
+  std::string text = slurp(std::string(RXTRAIN_SOURCE_DIR) + "/cases/so2-three-bed-converter.yaml");
+  const std::string steam = "utility: {T: 250 degC}";
+  const auto at = text.find(steam);
+  REQUIRE(at != std::string::npos);
+  text.replace(at, steam.size(), "utility: {T: 450 degC}");
+  {
+    std::ofstream out(dir / "cross.yaml");
+    out << text;
+  }
+  const auto r = run_rxtrain("run '" + (dir / "cross.yaml").string() + "' --json '" +
+                             (dir / "r.json").string() + "'");
+  INFO(r.err);
+  CHECK(r.exit_code == 2);
+  CHECK(r.err.find("cross.yaml:68:") != std::string::npos);
+  CHECK(r.err.find("temperature cross") != std::string::npos);
+  CHECK_FALSE(fs::exists(dir / "r.json"));
+  fs::remove_all(dir);
+}
+
 TEST_CASE("a bed whose pressure would fall below a tenth of its inlet exits 3 and writes nothing",
           "[cli]") {
   // The vessels demo with its first bed made far too narrow for its flow.
