@@ -196,6 +196,17 @@ TEST_CASE("SiUnit describes itself", "[units]") {
   CHECK(SiUnit::per_power("mol/(kg*s)", "Pa", 1.5).to_string() == "mol/(kg*s) / Pa^1.5");
   CHECK(SiUnit::per_power("mol/(kg*s)", "Pa", 1.0).to_string() == "mol/(kg*s) / Pa");
   CHECK(SiUnit::per_power("mol/(kg*s)", "Pa", 0.0).to_string() == "mol/(kg*s)");
+  // What --write-case writes reads back as the same unit: 1 of it is 1 SI.
+  const UnitParser parser;
+  for (const SiUnit& w :
+       {SiUnit::per_power("mol/(kg*s)", "mol/m3", 1.5), SiUnit::per_power("mol/(kg*s)", "Pa", 2.0),
+        SiUnit::per_power("mol/(m3*s)", "mol/m3", 1.0), SiUnit::per_power("1", "Pa", 0.5)}) {
+    INFO(w.to_parsable());
+    CHECK(parser.to_si("1 " + w.to_parsable(), w) == Approx(1.0).epsilon(1e-15));
+  }
+  CHECK(SiUnit::per_power("mol/(kg*s)", "mol/m3", 1.5).to_parsable() ==
+        "mol/(kg*s) / (mol/m3)^1.5");
+  CHECK(SiUnit::per_power("mol/(kg*s)", "Pa", 2.0).to_parsable() == "mol/(kg*s) / Pa^2");
   const SiUnit u = SiUnit::of("J/mol", "a molar energy");
   CHECK(u.description == "a molar energy");
   CHECK(u.base.empty());

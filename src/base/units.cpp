@@ -443,6 +443,14 @@ std::string SiUnit::to_string() const {
   return out;
 }
 
+std::string SiUnit::to_parsable() const {
+  if (base.empty() || base_power == 0) return numerator;
+  const bool compound = base.find_first_of("/* ") != std::string::npos;
+  std::string out = numerator + " / " + (compound ? "(" + base + ")" : base);
+  if (base_power != 1) out += "^" + format_number(base_power);
+  return out;
+}
+
 // ---------------------------------------------------------------- UnitParser
 
 UnitParser::UnitParser() : impl_(std::make_unique<Impl>()) {

@@ -87,10 +87,16 @@ std::string fitted_case_text(const std::string& text, const std::string& file, c
   };
   for (const FittedParameter& p : r.parameters) {
     const CaseFieldSpec* spec = nullptr;
+    std::string unit;  // a rate or adsorption constant's SI unit, which depends on the law
     for (const auto& f : case_fields(r.fitted))
-      if (f.name == p.path) spec = f.spec;
+      if (f.name == p.path) {
+        spec = f.spec;
+        if (spec->kind == CaseFieldKind::RateA || spec->kind == CaseFieldKind::AdsorptionK)
+          unit = f.unit.to_parsable();
+      }
     if (!spec) continue;
-    replace(p.path, case_field_text(*spec, p.estimate, 17));
+    replace(p.path, unit.empty() ? case_field_text(*spec, p.estimate, 17)
+                                 : fmt::format("{:.17g} {}", p.estimate, unit));
     if (!p.T_ref) continue;
     // The T_ref the estimate of A holds at: replaced, or added beside A.
     const std::string rate = p.path.substr(0, p.path.rfind('.'));

@@ -50,6 +50,10 @@ struct SiUnit {
                           std::string description = "");
   // Human-readable SI unit, e.g. "K" or "mol/(kg*s) / Pa^1.5".
   std::string to_string() const;
+  // The same unit as UnitParser reads it back: a compound base in
+  // parentheses (a "/" inside it would otherwise divide again), e.g.
+  // "mol/(kg*s) / (mol/m3)^1.5", "mol/(kg*s) / Pa^2".
+  std::string to_parsable() const;
 };
 
 // Options for one conversion.
